@@ -1,0 +1,1 @@
+//! Growth arithmetic (placeholder, being filled).

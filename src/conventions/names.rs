@@ -1,0 +1,129 @@
+//! Matching the plain names a book or a command line uses for a convention
+//! (a basis, a compounding, a rounding mode...) to the engine's own values.
+//!
+//! Names match case-insensitively with spaces, `_` and `-` ignored, so
+//! `act/365 fixed`, `ACT/365FIXED` and `Act/365-Fixed` are one name. An unknown
+//! name is an [`UnknownName`] that lists the accepted names and the closest one.
+//! This module never reads files or prints.
+
+use std::fmt;
+
+/// A name that matched none of the accepted ones.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct UnknownName {
+    /// What kind of name it was, for example `day-count basis`.
+    pub kind: &'static str,
+    /// The text found.
+    pub found: String,
+    /// The canonical names accepted, in their usual order.
+    pub accepted: Vec<&'static str>,
+    /// The accepted name closest to what was found, when one is close enough.
+    pub suggestion: Option<&'static str>,
+}
+
+impl fmt::Display for UnknownName {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "unknown {} '{}'", self.kind, self.found)?;
+        if let Some(s) = self.suggestion {
+            write!(f, "; did you mean '{s}'?")?;
+        }
+        write!(f, " (accepted: {})", self.accepted.join(", "))
+    }
+}
+
+impl std::error::Error for UnknownName {}
+
+/// Folds a name for matching: lower case, without spaces, `_` or `-`.
+///
+/// ```
+/// use ledgerate::conventions::names::fold;
+/// assert_eq!(fold(" ACT/365 Fixed "), "act/365fixed");
+/// assert_eq!(fold("modified_following"), "modifiedfollowing");
+/// ```
+pub fn fold(name: &str) -> String {
+    name.chars()
+        .filter(|c| !c.is_whitespace() && *c != '_' && *c != '-')
+        .flat_map(char::to_lowercase)
+        .collect()
+}
+
+/// Looks `found` up in `table` (each entry: a spelling and its value). The
+/// canonical names of the values, in their usual order, are `accepted`; each
+/// must also appear as a spelling in `table`.
+///
+/// # Errors
+/// [`UnknownName`] with the closest accepted name as a suggestion.
+pub fn lookup<T: Copy + PartialEq>(
+    kind: &'static str,
+    found: &str,
+    table: &[(&'static str, T)],
+    accepted: &[&'static str],
+) -> Result<T, UnknownName> {
+    let key = fold(found);
+    if let Some((_, v)) = table.iter().find(|(n, _)| fold(n) == key) {
+        return Ok(*v);
+    }
+    Err(UnknownName {
+        kind,
+        found: found.trim().to_string(),
+        accepted: accepted.to_vec(),
+        suggestion: closest(&key, table, accepted),
+    })
+}
+
+/// The canonical name of the value whose spelling is nearest to the folded key.
+fn closest<T: Copy + PartialEq>(
+    key: &str,
+    table: &[(&'static str, T)],
+    accepted: &[&'static str],
+) -> Option<&'static str> {
+    if key.is_empty() {
+        return None;
+    }
+    // Similarity scores only rank candidates for a message; they are never a figure.
+    let (score, value) = table
+        .iter()
+        .enumerate()
+        .map(|(i, (n, v))| (strsim::jaro_winkler(key, &fold(n)), i, *v))
+        // Highest score; on a tie, the earlier entry.
+        .max_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)))
+        .map(|(s, _, v)| (s, v))?;
+    if score < 0.75 {
+        return None;
+    }
+    accepted.iter().copied().find(|a| {
+        table
+            .iter()
+            .any(|(n, v)| fold(n) == fold(a) && *v == value)
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[derive(Clone, Copy, PartialEq, Debug)]
+    enum Colour {
+        Red,
+        Green,
+    }
+    const TABLE: &[(&str, Colour)] = &[("red", Colour::Red), ("scarlet", Colour::Red), ("green", Colour::Green)];
+
+    #[test]
+    fn names_match_whatever_the_case_spaces_and_dashes() {
+        assert_eq!(lookup("colour", " R-e_D ", TABLE, &["red", "green"]), Ok(Colour::Red));
+        assert_eq!(lookup("colour", "SCARLET", TABLE, &["red", "green"]), Ok(Colour::Red));
+    }
+
+    #[test]
+    fn an_unknown_name_suggests_the_canonical_name_of_the_closest_spelling() {
+        let e = lookup("colour", "scarlett", TABLE, &["red", "green"]).unwrap_err();
+        assert_eq!(e.suggestion, Some("red"));
+        assert_eq!(
+            e.to_string(),
+            "unknown colour 'scarlett'; did you mean 'red'? (accepted: red, green)"
+        );
+        let far = lookup("colour", "purple", TABLE, &["red", "green"]).unwrap_err();
+        assert_eq!(far.suggestion, None);
+    }
+}

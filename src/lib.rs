@@ -1,0 +1,4 @@
+//! ledgerate: month-end interest accrual, statement reconciliation and
+//! variance audit in basis points, in exact decimal arithmetic.
+
+pub mod conventions;
