@@ -5,8 +5,12 @@
 //! The engine and the command line build on these pieces; books and reports
 //! never reach into them except through names and values.
 
+pub mod calendar;
 pub mod compounding;
 pub mod currency;
+pub mod daycount;
 pub mod growth;
 pub mod names;
+pub mod ratio;
 pub mod rounding;
+pub mod schedule;

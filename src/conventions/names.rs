@@ -91,11 +91,10 @@ fn closest<T: Copy + PartialEq>(
     if score < 0.75 {
         return None;
     }
-    accepted.iter().copied().find(|a| {
-        table
-            .iter()
-            .any(|(n, v)| fold(n) == fold(a) && *v == value)
-    })
+    accepted
+        .iter()
+        .copied()
+        .find(|a| table.iter().any(|(n, v)| fold(n) == fold(a) && *v == value))
 }
 
 #[cfg(test)]
@@ -107,12 +106,22 @@ mod tests {
         Red,
         Green,
     }
-    const TABLE: &[(&str, Colour)] = &[("red", Colour::Red), ("scarlet", Colour::Red), ("green", Colour::Green)];
+    const TABLE: &[(&str, Colour)] = &[
+        ("red", Colour::Red),
+        ("scarlet", Colour::Red),
+        ("green", Colour::Green),
+    ];
 
     #[test]
     fn names_match_whatever_the_case_spaces_and_dashes() {
-        assert_eq!(lookup("colour", " R-e_D ", TABLE, &["red", "green"]), Ok(Colour::Red));
-        assert_eq!(lookup("colour", "SCARLET", TABLE, &["red", "green"]), Ok(Colour::Red));
+        assert_eq!(
+            lookup("colour", " R-e_D ", TABLE, &["red", "green"]),
+            Ok(Colour::Red)
+        );
+        assert_eq!(
+            lookup("colour", "SCARLET", TABLE, &["red", "green"]),
+            Ok(Colour::Red)
+        );
     }
 
     #[test]
