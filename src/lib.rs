@@ -2,3 +2,4 @@
 //! variance audit in basis points, in exact decimal arithmetic.
 
 pub mod conventions;
+pub mod engine;

@@ -1,0 +1,20 @@
+//! The accrual engine: one account's terms, rate schedule and movements in,
+//! its day-by-day timeline, postings and cut-off figures out.
+//!
+//! A pure function of its inputs. It never reads files, looks at the clock,
+//! prints, or knows what a spreadsheet is; books are read into
+//! [`terms::AccountTerms`] elsewhere and results are written elsewhere.
+//! Every amount is an exact [`rust_decimal::Decimal`]; interest is summed as
+//! exact numerators per day-count denominator ([`accrual::Accrual`]) and
+//! divided once per reported figure, so true terminating values (a 30/360
+//! month of 1,000.00 at 2.25% is 1.875) round the right way.
+
+pub mod accrual;
+pub mod error;
+pub mod rates;
+pub mod run;
+pub mod terms;
+
+pub use error::EngineError;
+pub use run::{accrue, resume, AccountResult, AccrualState, DayRow, PostingRow, RunOptions};
+pub use terms::{AccountTerms, ActualPosting, Movement, RoundAt, Side, TierMethod};

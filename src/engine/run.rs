@@ -1,0 +1,739 @@
+//! The day loop: accrue one account night by night from its opening (or a
+//! saved period start) to the cut-off, posting at each period end.
+//!
+//! Semantics sections 1-8. Day D earns on the balance standing at its end;
+//! a movement valued V earns from V; a posting at the end of E capitalises
+//! from E+1. The loop keeps exact numerators ([`Accrual`]) and rounds only
+//! what is posted or reported.
+
+use chrono::{Datelike, NaiveDate};
+use rust_decimal::Decimal;
+
+use super::accrual::{Accrual, Overflow};
+use super::error::EngineError;
+use super::rates::{RateSource, RateTable};
+use super::terms::{AccountTerms, ActualPosting, Movement, RoundAt, TierMethod};
+use crate::conventions::compounding::Compounding;
+use crate::conventions::daycount::{Basis, DayFraction, PeriodBasis};
+use crate::conventions::growth;
+use crate::conventions::schedule::{month_end, Period, PeriodKind, ScheduleTerms};
+
+/// What to compute besides the postings.
+#[derive(Debug, Clone, Copy)]
+pub struct RunOptions {
+    /// F: the first day of the window (semantics section 7).
+    pub window_start: NaiveDate,
+    /// C: the cut-off, the last day computed.
+    pub cutoff: NaiveDate,
+    /// Keep one [`DayRow`] per computed day.
+    pub keep_days: bool,
+    /// Keep an [`AccrualState`] at the start of every posting period.
+    pub keep_states: bool,
+}
+
+impl RunOptions {
+    /// The window from the first day of the cut-off's month to the cut-off.
+    pub fn month_end(cutoff: NaiveDate) -> RunOptions {
+        RunOptions {
+            window_start: cutoff.with_day(1).unwrap_or(cutoff),
+            cutoff,
+            keep_days: false,
+            keep_states: false,
+        }
+    }
+}
+
+/// One computed day.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct DayRow {
+    /// D.
+    pub date: NaiveDate,
+    /// The balance standing at the end of D (all value-dated movements).
+    pub balance: Decimal,
+    /// B(D): balance plus compounded-unposted interest, less movements not
+    /// yet booked when the period posts.
+    pub base: Decimal,
+    /// The annual rate the base earned (blended over bands).
+    pub rate: Decimal,
+    /// f(D).
+    pub fraction: DayFraction,
+    /// i(D), unrounded unless the account rounds daily.
+    pub interest: Decimal,
+    /// Interest of back-valued movements earned on D, added to a later posting.
+    pub back_value: Decimal,
+    /// Accrued since the last posting, unrounded, after D's interest.
+    pub accrued: Decimal,
+    /// The amount posted at the end of D, if a period ends on D.
+    pub posted: Option<Decimal>,
+}
+
+/// One posting period's result.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PostingRow {
+    /// First day of the period.
+    pub start: NaiveDate,
+    /// Last earning day; the posting is at its end.
+    pub end: NaiveDate,
+    /// Payment (and journal) date.
+    pub payment: NaiveDate,
+    /// Regular or stub.
+    pub kind: PeriodKind,
+    /// The period's interest before rounding (with any opening accrued).
+    pub interest: Decimal,
+    /// The back-value adjustment added to this posting, rounded.
+    pub back_value: Decimal,
+    /// What the engine expects to be posted: rounded interest plus the adjustment.
+    pub expected: Decimal,
+    /// What counts as posted: the actual amount where a statement gives one, else `expected`.
+    pub posted: Decimal,
+    /// Whether `posted` came from a statement.
+    pub actual_given: bool,
+}
+
+/// The account's state at the start of a posting period: enough to run the
+/// account again from there, with any term changed.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct AccrualState {
+    /// The first day still to compute.
+    pub day: NaiveDate,
+    /// The balance at the start of `day` (movements valued before it included).
+    pub balance: Decimal,
+    /// Compounded interest not yet posted, in the base.
+    pub compounded: Decimal,
+    /// Opening accrued not yet posted.
+    pub opening_pending: Decimal,
+    /// Opening accrued still to join the base at the next compounding end.
+    pub opening_to_join: Decimal,
+    /// Back-value interest owed per movement (index into the movements), not yet posted.
+    pub back_value_owed: Vec<(usize, Accrual)>,
+}
+
+impl AccrualState {
+    /// The state at the start of `open_date` (semantics section 8).
+    pub fn opening(terms: &AccountTerms) -> AccrualState {
+        let a = terms.opening_accrued;
+        AccrualState {
+            day: terms.open_date,
+            balance: terms.opening_balance,
+            compounded: if terms.compounding.joins_daily() { a } else { Decimal::ZERO },
+            opening_pending: a,
+            opening_to_join: if terms.compounding.months().is_some() { a } else { Decimal::ZERO },
+            back_value_owed: Vec::new(),
+        }
+    }
+}
+
+/// Everything the engine computed for one account.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct AccountResult {
+    /// Postings whose period ends on or before the cut-off, in date order.
+    pub postings: Vec<PostingRow>,
+    /// Balance after any posting at the end of C.
+    pub balance_at_cutoff: Decimal,
+    /// Interest earned since the last posting and not posted, rounded.
+    pub accrued_at_cutoff: Decimal,
+    /// The same at the end of F-1.
+    pub accrued_before_window: Decimal,
+    /// Postings whose end lies in F..C.
+    pub posted_in_window: Decimal,
+    /// posted in window + accrued at cut-off - accrued before window.
+    pub interest_for_window: Decimal,
+    /// The rate in force at the cut-off, when the account earns on C.
+    pub rate_at_cutoff: Option<Decimal>,
+    /// Its yield under the account's compounding (semantics section 7).
+    pub effective_annual_rate: Option<Decimal>,
+    /// The days computed, when asked for.
+    pub days: Vec<DayRow>,
+    /// The state at the start of each posting period, when asked for.
+    pub states: Vec<AccrualState>,
+}
+
+/// The inputs of one account besides its terms.
+#[derive(Clone, Copy)]
+pub struct Sources<'a> {
+    /// The account's rates.
+    pub rates: &'a dyn RateSource,
+    /// Rates for a base of the opposite sign, when the account has them.
+    pub debit_rates: Option<&'a dyn RateSource>,
+    /// Balance movements, in any order.
+    pub movements: &'a [Movement],
+    /// Amounts actually posted, from statements.
+    pub actual: &'a [ActualPosting],
+}
+
+/// Accrues `terms` from its opening to the cut-off.
+///
+/// # Errors
+/// An [`EngineError`] naming what stops the account being computed.
+///
+/// ```
+/// use ledgerate::conventions::daycount::Basis;
+/// use ledgerate::engine::rates::RateSchedule;
+/// use ledgerate::engine::run::{accrue, RunOptions, Sources};
+/// use ledgerate::engine::AccountTerms;
+/// use rust_decimal::Decimal;
+/// let d = |s: &str| s.parse::<chrono::NaiveDate>().unwrap();
+/// let n = |s: &str| s.parse::<Decimal>().unwrap();
+/// // 1,000.00 at 2.25% over a regular 30/360 month is exactly 1.875: it posts 1.88.
+/// let terms = AccountTerms::new("EX-01", "USD", 2, Basis::Thirty360, d("2026-11-01"), n("1000.00"));
+/// let rates = RateSchedule::from_rows([(d("2026-01-01"), n("0.0225"), Decimal::ZERO)]);
+/// let src = Sources { rates: &rates, debit_rates: None, movements: &[], actual: &[] };
+/// let r = accrue(&terms, src, RunOptions::month_end(d("2026-11-30"))).unwrap();
+/// assert_eq!(r.postings[0].interest.to_string(), "1.875");
+/// assert_eq!(r.postings[0].posted.to_string(), "1.88");
+/// ```
+pub fn accrue(terms: &AccountTerms, sources: Sources, options: RunOptions) -> Result<AccountResult, EngineError> {
+    resume(terms, sources, options, &AccrualState::opening(terms))
+}
+
+/// Runs `terms` again from a saved state (the start of a posting period).
+/// Postings before the state are not repeated; the window figures count only
+/// what this run computed.
+///
+/// # Errors
+/// An [`EngineError`]; [`EngineError::BadState`] when the state does not start a period.
+pub fn resume(
+    terms: &AccountTerms,
+    sources: Sources,
+    options: RunOptions,
+    state: &AccrualState,
+) -> Result<AccountResult, EngineError> {
+    Loop::new(terms, sources, options, state)?.run()
+}
+
+fn overflow(what: &'static str, date: NaiveDate) -> impl Fn(Overflow) -> EngineError {
+    move |_| EngineError::Overflow { what, date }
+}
+
+fn checked(x: Option<Decimal>, what: &'static str, date: NaiveDate) -> Result<Decimal, EngineError> {
+    x.ok_or(EngineError::Overflow { what, date })
+}
+
+/// The working state of one run.
+struct Loop<'a> {
+    terms: &'a AccountTerms,
+    sources: Sources<'a>,
+    options: RunOptions,
+    /// Posting periods; empty when the account never posts.
+    periods: Vec<Period>,
+    compounding_ends: Vec<NaiveDate>,
+    references: Vec<(NaiveDate, NaiveDate)>,
+    /// Movement indices by value date.
+    order: Vec<usize>,
+    /// The last day that earns.
+    last_day: NaiveDate,
+    state: AccrualState,
+    period_acc: Accrual,
+    since_compounding: Accrual,
+}
+
+impl<'a> Loop<'a> {
+    fn new(
+        terms: &'a AccountTerms,
+        sources: Sources<'a>,
+        options: RunOptions,
+        state: &AccrualState,
+    ) -> Result<Loop<'a>, EngineError> {
+        let open = terms.open_date;
+        let start = terms.first_period_start();
+        let anchor = match terms.anchor {
+            Some(a) => a,
+            None => month_end(start).ok_or(EngineError::Unsupported("a date out of range".into()))?,
+        };
+        let schedule = ScheduleTerms {
+            posting: terms.posting,
+            anchor,
+            anchor_kind: terms.anchor_kind,
+            business_day: terms.business_day,
+            maturity: terms.maturity,
+            payment_delay_days: terms.payment_delay_days,
+        };
+        let before_maturity = terms.maturity.and_then(|m| m.pred_opt());
+        let last_day = match before_maturity {
+            Some(m) if m < options.cutoff => m,
+            _ => options.cutoff,
+        };
+        if terms.basis == Basis::ActActIcma && terms.posting.per_year().is_none() {
+            return Err(EngineError::Unsupported(format!(
+                "ACT/ACT ICMA with posting {}: the basis needs a posting frequency (monthly, quarterly, semiannual or annual)",
+                terms.posting.name()
+            )));
+        }
+        let horizon = last_day.max(open);
+        let periods = schedule.periods(start, open, horizon, &terms.calendar)?;
+        let compounding_ends = match terms.compounding.months() {
+            Some(m) => schedule.compounding_ends(m, open, horizon, &terms.calendar)?,
+            None => Vec::new(),
+        };
+        let references = if terms.basis == Basis::ActActIcma {
+            let to = periods.last().map_or(horizon, |p| p.end.max(horizon));
+            schedule.reference_periods(start.min(open), to)?
+        } else {
+            Vec::new()
+        };
+        let mut order: Vec<usize> = (0..sources.movements.len()).collect();
+        order.sort_by_key(|&i| sources.movements.get(i).map(|m| m.value_date));
+        Ok(Loop {
+            terms,
+            sources,
+            options,
+            periods,
+            compounding_ends,
+            references,
+            order,
+            last_day,
+            state: state.clone(),
+            period_acc: Accrual::new(),
+            since_compounding: Accrual::new(),
+        })
+    }
+
+    fn movement(&self, i: usize) -> Option<&'a Movement> {
+        self.sources.movements.get(i)
+    }
+
+    /// Whether movement `i` is excluded from the base of a period ending on `end`:
+    /// it is booked after the period posts.
+    fn unbooked(&self, i: usize, end: Option<NaiveDate>) -> bool {
+        match (self.movement(i).and_then(|m| m.booking_date), end) {
+            (Some(b), Some(e)) => b > e,
+            _ => false,
+        }
+    }
+
+    fn run(mut self) -> Result<AccountResult, EngineError> {
+        let terms = self.terms;
+        let opts = self.options;
+        let open = terms.open_date;
+        let mut postings = Vec::new();
+        let mut days = Vec::new();
+        let mut states = Vec::new();
+        let mut accrued_before_window = None;
+        let mut rate_at_cutoff = None;
+        let places = terms.minor_units;
+        let round = |x: Decimal| terms.round_mode.round(x, places);
+        if opts.window_start <= open {
+            accrued_before_window = Some(round(self.state.opening_pending));
+        }
+
+        // Where the saved state sits in the schedule.
+        let resume_day = self.state.day;
+        let mut pi = self.periods.iter().position(|p| p.end >= resume_day).unwrap_or(self.periods.len());
+        if resume_day != open && self.periods.get(pi).is_none_or(|p| p.start != resume_day) {
+            return Err(EngineError::BadState(resume_day));
+        }
+        // Movements before the resume day are already in the balance; before
+        // the opening they are in the opening balance.
+        let mut mi = self
+            .order
+            .iter()
+            .position(|&i| self.movement(i).is_some_and(|m| m.value_date >= resume_day))
+            .unwrap_or(self.order.len());
+        let mut ci = self.compounding_ends.partition_point(|e| *e < resume_day);
+        let mut unbooked: Vec<usize> = Vec::new();
+        let mut pieces: Vec<(Decimal, Decimal)> = Vec::with_capacity(4);
+        let mut basis = None;
+        let mut period_end: Option<NaiveDate> = None;
+
+        let mut d = resume_day;
+        while d <= self.last_day {
+            // A new posting period: fix its day-fraction terms and which
+            // movements its base leaves out.
+            let period = self.periods.get(pi).copied();
+            if basis.is_none() || period.is_some_and(|p| p.start == d) {
+                let (p_start, end_excl) = match period {
+                    Some(p) => (p.start, p.end.succ_opt()),
+                    None => (terms.first_period_start(), None),
+                };
+                period_end = period.map(|p| p.end);
+                basis = Some((p_start, end_excl));
+                if opts.keep_states {
+                    let mut s = self.state.clone();
+                    s.day = d;
+                    states.push(s);
+                }
+                unbooked = self.order[..mi]
+                    .iter()
+                    .copied()
+                    .filter(|&i| self.unbooked(i, period_end))
+                    .collect();
+            }
+            let (p_start, end_excl) = basis.unwrap_or((d, None));
+            let pb = PeriodBasis {
+                basis: terms.basis,
+                start: p_start,
+                end: end_excl,
+                maturity: terms.maturity,
+                frequency: terms.posting.per_year(),
+                references: &self.references,
+                calendar: &terms.calendar,
+            };
+
+            // Movements valued today.
+            while let Some(&i) = self.order.get(mi) {
+                let Some(m) = self.movement(i) else { break };
+                if m.value_date > d {
+                    break;
+                }
+                self.state.balance = checked(self.state.balance.checked_add(m.amount), "the balance", d)?;
+                if self.unbooked(i, period_end) {
+                    unbooked.push(i);
+                }
+                mi += 1;
+            }
+
+            let mut excluded = Decimal::ZERO;
+            for &i in &unbooked {
+                if let Some(m) = self.movement(i) {
+                    excluded = checked(excluded.checked_add(m.amount), "the base", d)?;
+                }
+            }
+            let base = checked(
+                self.state
+                    .balance
+                    .checked_sub(excluded)
+                    .and_then(|b| b.checked_add(self.state.compounded)),
+                "the base",
+                d,
+            )?;
+            let fraction = pb.day(d)?;
+
+            // Today's interest on the base.
+            let table = self.table_for(base, d)?;
+            let day_interest = self.interest(base, table, fraction, d, &mut pieces)?;
+            let rate = blended_rate(base, &pieces, table, terms.tier_method);
+            day_interest.add_to(&mut self.period_acc).map_err(overflow("the accrued interest", d))?;
+            if terms.compounding.months().is_some() {
+                day_interest.add_to(&mut self.since_compounding).map_err(overflow("the accrued interest", d))?;
+            }
+            let need_value = opts.keep_days || terms.compounding.joins_daily();
+            let interest_value = if need_value {
+                day_interest.value().map_err(overflow("the daily interest", d))?
+            } else {
+                Decimal::ZERO
+            };
+
+            // Back-valued movements: the interest they earn in a period that
+            // posts before they are booked is owed to a later posting.
+            let mut back_value_today = Decimal::ZERO;
+            for &i in &unbooked {
+                let Some(m) = self.movement(i) else { continue };
+                let with = checked(base.checked_add(m.amount), "the base", d)?;
+                let mut scratch = Vec::with_capacity(4);
+                let t = self.table_for(with, d)?;
+                let full = self.interest(with, t, fraction, d, &mut scratch)?;
+                let mut diff = full;
+                diff.subtract(&day_interest).map_err(overflow("the back-value interest", d))?;
+                let owed = match self.state.back_value_owed.iter_mut().find(|(j, _)| *j == i) {
+                    Some((_, a)) => a,
+                    None => {
+                        self.state.back_value_owed.push((i, Accrual::new()));
+                        match self.state.back_value_owed.last_mut() {
+                            Some((_, a)) => a,
+                            None => continue,
+                        }
+                    }
+                };
+                diff.add_to(owed).map_err(overflow("the back-value interest", d))?;
+                if opts.keep_days {
+                    let v = diff.value().map_err(overflow("the back-value interest", d))?;
+                    back_value_today = checked(back_value_today.checked_add(v), "the back-value interest", d)?;
+                }
+            }
+
+            if terms.compounding.joins_daily() {
+                self.state.compounded = checked(self.state.compounded.checked_add(interest_value), "the base", d)?;
+            }
+
+            // End of day: a posting, else a compounding end.
+            let mut posted_today = None;
+            let is_compounding_end = self.compounding_ends.get(ci) == Some(&d);
+            if is_compounding_end {
+                ci += 1;
+            }
+            if let Some(p) = period.filter(|p| p.end == d) {
+                let row = self.post(p, d)?;
+                if terms.capitalise {
+                    self.state.balance = checked(self.state.balance.checked_add(row.posted), "the balance", d)?;
+                }
+                posted_today = Some(row.posted);
+                postings.push(row);
+                pi += 1;
+            } else if is_compounding_end {
+                let joined = self.since_compounding.value().map_err(overflow("the compounded interest", d))?;
+                self.state.compounded = checked(
+                    self.state
+                        .compounded
+                        .checked_add(joined)
+                        .and_then(|c| c.checked_add(self.state.opening_to_join)),
+                    "the base",
+                    d,
+                )?;
+                self.state.opening_to_join = Decimal::ZERO;
+                self.since_compounding = Accrual::new();
+            }
+
+            let is_window_eve = opts.window_start.pred_opt() == Some(d);
+            if opts.keep_days || is_window_eve || d == opts.cutoff {
+                let accrued = self.accrued(d)?;
+                if is_window_eve {
+                    accrued_before_window = Some(round(accrued));
+                }
+                if opts.keep_days {
+                    days.push(DayRow {
+                        date: d,
+                        balance: self.state.balance,
+                        base,
+                        rate,
+                        fraction,
+                        interest: interest_value,
+                        back_value: back_value_today,
+                        accrued,
+                        posted: posted_today,
+                    });
+                }
+            }
+            if d == opts.cutoff {
+                rate_at_cutoff = Some(rate);
+            }
+            d = match d.succ_opt() {
+                Some(n) => n,
+                None => break,
+            };
+        }
+
+        // Movements after the last earning day still reach the balance by the cut-off.
+        while let Some(&i) = self.order.get(mi) {
+            let Some(m) = self.movement(i) else { break };
+            if m.value_date > opts.cutoff {
+                break;
+            }
+            if m.value_date >= resume_day {
+                self.state.balance = checked(self.state.balance.checked_add(m.amount), "the balance", m.value_date)?;
+            }
+            mi += 1;
+        }
+
+        let accrued_at_cutoff = if opts.cutoff < open {
+            Decimal::ZERO
+        } else {
+            round(self.accrued(opts.cutoff)?)
+        };
+        let mut posted_in_window = Decimal::ZERO;
+        for p in postings.iter().filter(|p| p.end >= opts.window_start && p.end <= opts.cutoff) {
+            posted_in_window = checked(posted_in_window.checked_add(p.posted), "the posted total", p.end)?;
+        }
+        let before = accrued_before_window.unwrap_or(Decimal::ZERO);
+        let interest_for_window = checked(
+            posted_in_window
+                .checked_add(accrued_at_cutoff)
+                .and_then(|x| x.checked_sub(before)),
+            "the interest for the window",
+            opts.cutoff,
+        )?;
+        let effective_annual_rate = match rate_at_cutoff {
+            Some(r) => Some(growth::effective_annual_rate(terms.compounding, r)?),
+            None => None,
+        };
+        let balance_at_cutoff = if opts.cutoff < open { Decimal::ZERO } else { self.state.balance };
+        Ok(AccountResult {
+            postings,
+            balance_at_cutoff,
+            accrued_at_cutoff,
+            accrued_before_window: before,
+            posted_in_window,
+            interest_for_window,
+            rate_at_cutoff,
+            effective_annual_rate,
+            days,
+            states,
+        })
+    }
+
+    /// The table that applies to `base` on `d`: the account's rates, or the
+    /// debit rates for a base of the opposite sign (`None`: it earns nothing).
+    fn table_for(&self, base: Decimal, d: NaiveDate) -> Result<Option<&'a RateTable>, EngineError> {
+        let source = if base.is_sign_negative() && !base.is_zero() {
+            match self.sources.debit_rates {
+                Some(s) => s,
+                None => return Ok(None),
+            }
+        } else {
+            self.sources.rates
+        };
+        let t = source.table_on(d).ok_or_else(|| EngineError::NoRate {
+            date: d,
+            first: source
+                .first_effective()
+                .map_or_else(|| "no rates at all".to_string(), |f| f.to_string()),
+        })?;
+        Ok(Some(t))
+    }
+
+    /// i(D) for `base` (semantics section 5), as an exact sum.
+    fn interest(
+        &self,
+        base: Decimal,
+        table: Option<&RateTable>,
+        f: DayFraction,
+        d: NaiveDate,
+        pieces: &mut Vec<(Decimal, Decimal)>,
+    ) -> Result<DayInterest, EngineError> {
+        pieces.clear();
+        let Some(table) = table else {
+            return Ok(DayInterest::Fraction(Decimal::ZERO, f.den.max(1)));
+        };
+        table.pieces(base, self.terms.tier_method, pieces);
+        let terms = self.terms;
+        let raw = match terms.compounding {
+            Compounding::Continuous | Compounding::AnnualEffective => {
+                let years = checked(Decimal::from(f.num).checked_div(Decimal::from(f.den.max(1))), "the day fraction", d)?;
+                let mut total = Decimal::ZERO;
+                for &(slice, rate) in pieces.iter() {
+                    let growth = if terms.compounding == Compounding::Continuous {
+                        growth::exp_m1(checked(rate.checked_mul(years), "the exponent", d)?)?
+                    } else {
+                        growth::pow_m1(checked(Decimal::ONE.checked_add(rate), "the rate", d)?, years)?
+                    };
+                    total = checked(slice.checked_mul(growth).and_then(|x| total.checked_add(x)), "the daily interest", d)?;
+                }
+                DayInterest::Amount(total)
+            }
+            _ => {
+                let mut num = Decimal::ZERO;
+                for &(slice, rate) in pieces.iter() {
+                    num = checked(slice.checked_mul(rate).and_then(|x| num.checked_add(x)), "the daily interest", d)?;
+                }
+                let num = checked(num.checked_mul(Decimal::from(f.num)), "the daily interest", d)?;
+                DayInterest::Fraction(num, f.den)
+            }
+        };
+        if terms.round_at == RoundAt::Daily {
+            let places = terms.round_places.unwrap_or(terms.minor_units);
+            let v = raw.value().map_err(overflow("the daily interest", d))?;
+            return Ok(DayInterest::Amount(terms.round_mode.round(v, places)));
+        }
+        Ok(raw)
+    }
+
+    /// Accrued since the last posting at the end of `d`, unrounded: the
+    /// period's interest, any opening accrued and any back-value owed.
+    fn accrued(&self, d: NaiveDate) -> Result<Decimal, EngineError> {
+        let mut a = self.period_acc;
+        a.add_amount(self.state.opening_pending).map_err(overflow("the accrued interest", d))?;
+        for (_, owed) in &self.state.back_value_owed {
+            a.add(owed).map_err(overflow("the accrued interest", d))?;
+        }
+        a.value().map_err(overflow("the accrued interest", d))
+    }
+
+    /// The posting at the end of period `p` (semantics section 6).
+    fn post(&mut self, p: Period, d: NaiveDate) -> Result<PostingRow, EngineError> {
+        let terms = self.terms;
+        let round = |x: Decimal| terms.round_mode.round(x, terms.minor_units);
+        let mut acc = self.period_acc;
+        acc.add_amount(self.state.opening_pending).map_err(overflow("the posting", d))?;
+        let interest = acc.value().map_err(overflow("the posting", d))?.normalize();
+        // Back-value owed for movements booked by now joins this posting, as its own figure.
+        let mut owed = Accrual::new();
+        let mut keep = Vec::new();
+        for (i, a) in std::mem::take(&mut self.state.back_value_owed) {
+            let booked = self.movement(i).and_then(|m| m.booking_date).is_none_or(|b| b <= p.end);
+            if booked {
+                owed.add(&a).map_err(overflow("the back-value interest", d))?;
+            } else {
+                keep.push((i, a));
+            }
+        }
+        self.state.back_value_owed = keep;
+        let back_value = round(owed.value().map_err(overflow("the back-value interest", d))?);
+        let expected = checked(round(interest).checked_add(back_value), "the posting", d)?;
+        let first = self.periods.first().is_some_and(|f| f.start == p.start);
+        let actual = self.sources.actual.iter().find(|a| {
+            a.end == p.end && (a.start == p.start || (first && a.start == terms.open_date))
+        });
+        self.period_acc = Accrual::new();
+        self.since_compounding = Accrual::new();
+        self.state.compounded = Decimal::ZERO;
+        self.state.opening_pending = Decimal::ZERO;
+        self.state.opening_to_join = Decimal::ZERO;
+        Ok(PostingRow {
+            start: p.start,
+            end: p.end,
+            payment: p.payment,
+            kind: p.kind,
+            interest,
+            back_value,
+            expected,
+            posted: actual.map_or(expected, |a| a.amount),
+            actual_given: actual.is_some(),
+        })
+    }
+}
+
+/// One day's interest: an exact numerator over a day-count denominator, or an
+/// amount that is already a decimal (rounded daily, or exponential).
+#[derive(Debug, Clone, Copy)]
+enum DayInterest {
+    Fraction(Decimal, u32),
+    Amount(Decimal),
+}
+
+impl DayInterest {
+    fn add_to(self, acc: &mut Accrual) -> Result<(), Overflow> {
+        match self {
+            DayInterest::Fraction(n, den) => acc.add_fraction(n, den),
+            DayInterest::Amount(x) => acc.add_amount(x),
+        }
+    }
+
+    fn value(self) -> Result<Decimal, Overflow> {
+        match self {
+            DayInterest::Fraction(n, den) => n.checked_div(Decimal::from(den)).ok_or(Overflow),
+            DayInterest::Amount(x) => Ok(x),
+        }
+    }
+
+    /// self -= other, as an exact difference.
+    fn subtract(&mut self, other: &DayInterest) -> Result<(), Overflow> {
+        *self = match (*self, *other) {
+            (DayInterest::Fraction(a, da), DayInterest::Fraction(b, db)) if da == db => {
+                DayInterest::Fraction(a.checked_sub(b).ok_or(Overflow)?, da)
+            }
+            (a, b) => DayInterest::Amount(a.value()?.checked_sub(b.value()?).ok_or(Overflow)?),
+        };
+        Ok(())
+    }
+}
+
+/// The single annual rate a day's base earned: the tier's rate, or over bands
+/// the interest-weighted average.
+fn blended_rate(base: Decimal, pieces: &[(Decimal, Decimal)], table: Option<&RateTable>, method: TierMethod) -> Decimal {
+    match pieces {
+        [] => {
+            // Nothing earned: report the rate a zero base would get, if any.
+            match (table, method) {
+                (Some(t), _) if base.is_zero() => t
+                    .tiers
+                    .iter()
+                    .rev()
+                    .find(|t| t.from <= Decimal::ZERO)
+                    .map_or(Decimal::ZERO, |t| t.rate),
+                _ => Decimal::ZERO,
+            }
+        }
+        [(_, r)] if method == TierMethod::Whole => *r,
+        many => {
+            let total = many
+                .iter()
+                .try_fold(Decimal::ZERO, |acc, (s, r)| acc.checked_add(s.checked_mul(*r)?));
+            match total.and_then(|t| t.checked_div(base)) {
+                Some(r) => r,
+                None => Decimal::ZERO,
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests;
