@@ -30,7 +30,11 @@ fn dec(v: &Value) -> Decimal {
 
 fn examples() -> Vec<Value> {
     let text = include_str!("fixtures/spec_examples.json");
-    serde_json::from_str::<Value>(text).unwrap().as_array().unwrap().clone()
+    serde_json::from_str::<Value>(text)
+        .unwrap()
+        .as_array()
+        .unwrap()
+        .clone()
 }
 
 /// The account of an example, with the defaults of books.md for unset fields.
@@ -64,7 +68,11 @@ fn terms(a: &Value) -> AccountTerms {
         t.round_mode = RoundMode::parse(v).unwrap();
     }
     if let Some(v) = a.get("round_places") {
-        t.round_places = Some(v.as_u64().map(|n| n as u32).unwrap_or_else(|| v.as_str().unwrap().parse().unwrap()));
+        t.round_places = Some(
+            v.as_u64()
+                .map(|n| n as u32)
+                .unwrap_or_else(|| v.as_str().unwrap().parse().unwrap()),
+        );
     }
     if let Some(v) = s("maturity") {
         t.maturity = Some(v.parse().unwrap());
@@ -86,7 +94,11 @@ fn run(ex: &Value) -> AccountResult {
     let t = terms(&ex["account"]);
     let rates = RateSchedule::from_rows(ex["rates"].as_array().unwrap().iter().map(|r| {
         let pct = dec(&r["rate_percent"]);
-        (date(&r["effective"]), pct / Decimal::ONE_HUNDRED, dec(&r["tier_from"]))
+        (
+            date(&r["effective"]),
+            pct / Decimal::ONE_HUNDRED,
+            dec(&r["tier_from"]),
+        )
     }));
     let movements: Vec<Movement> = ex["movements"]
         .as_array()
@@ -125,13 +137,22 @@ fn run(ex: &Value) -> AccountResult {
 }
 
 fn check(name: &str) {
-    let ex = examples().into_iter().find(|e| e["name"] == name).unwrap_or_else(|| panic!("no example {name}"));
+    let ex = examples()
+        .into_iter()
+        .find(|e| e["name"] == name)
+        .unwrap_or_else(|| panic!("no example {name}"));
     let r = run(&ex);
     let want = &ex["expected"];
     let got: Vec<(String, String, String)> = r
         .postings
         .iter()
-        .map(|p| (p.start.to_string(), p.end.to_string(), p.expected.to_string()))
+        .map(|p| {
+            (
+                p.start.to_string(),
+                p.end.to_string(),
+                p.expected.to_string(),
+            )
+        })
         .collect();
     let expected: Vec<(String, String, String)> = want["postings"]
         .as_array()
@@ -146,10 +167,26 @@ fn check(name: &str) {
         })
         .collect();
     assert_eq!(got, expected, "{name}: postings");
-    assert_eq!(r.balance_at_cutoff, dec(&want["balance_at_cutoff"]), "{name}: balance at cut-off");
-    assert_eq!(r.accrued_at_cutoff, dec(&want["accrued_at_cutoff"]), "{name}: accrued at cut-off");
-    assert_eq!(r.posted_in_window, dec(&want["posted_in_window"]), "{name}: posted in window");
-    assert_eq!(r.interest_for_window, dec(&want["interest_for_window"]), "{name}: interest for window");
+    assert_eq!(
+        r.balance_at_cutoff,
+        dec(&want["balance_at_cutoff"]),
+        "{name}: balance at cut-off"
+    );
+    assert_eq!(
+        r.accrued_at_cutoff,
+        dec(&want["accrued_at_cutoff"]),
+        "{name}: accrued at cut-off"
+    );
+    assert_eq!(
+        r.posted_in_window,
+        dec(&want["posted_in_window"]),
+        "{name}: posted in window"
+    );
+    assert_eq!(
+        r.interest_for_window,
+        dec(&want["interest_for_window"]),
+        "{name}: interest for window"
+    );
 }
 
 macro_rules! spec_examples {

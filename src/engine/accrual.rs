@@ -101,7 +101,10 @@ impl Accrual {
         let parts = &self.parts[..self.used];
         match parts {
             [] => Ok(self.plain),
-            [(den, num)] => self.plain.checked_add(num.checked_div(Decimal::from(*den)).ok_or(Overflow)?).ok_or(Overflow),
+            [(den, num)] => self
+                .plain
+                .checked_add(num.checked_div(Decimal::from(*den)).ok_or(Overflow)?)
+                .ok_or(Overflow),
             _ => {
                 let lcm = parts.iter().try_fold(1u64, |l, (d, _)| {
                     let d = u64::from(*d);
@@ -117,7 +120,8 @@ impl Accrual {
                     Some(v) => v,
                     // The common numerator does not fit: divide part by part.
                     None => parts.iter().try_fold(Decimal::ZERO, |acc, (d, n)| {
-                        acc.checked_add(n.checked_div(Decimal::from(*d)).ok_or(Overflow)?).ok_or(Overflow)
+                        acc.checked_add(n.checked_div(Decimal::from(*d)).ok_or(Overflow)?)
+                            .ok_or(Overflow)
                     })?,
                 };
                 self.plain.checked_add(fractional).ok_or(Overflow)

@@ -104,7 +104,9 @@ impl RateSchedule {
     /// assert_eq!(s.table_on("2026-11-20".parse().unwrap()).unwrap().tiers[0].rate, d("0.0335"));
     /// assert!(s.table_on("2025-12-31".parse().unwrap()).is_none());
     /// ```
-    pub fn from_rows(rows: impl IntoIterator<Item = (NaiveDate, Decimal, Decimal)>) -> RateSchedule {
+    pub fn from_rows(
+        rows: impl IntoIterator<Item = (NaiveDate, Decimal, Decimal)>,
+    ) -> RateSchedule {
         let mut rows: Vec<_> = rows.into_iter().collect();
         rows.sort_by(|a, b| a.0.cmp(&b.0).then(a.2.cmp(&b.2)));
         let mut tables: Vec<RateTable> = Vec::new();
@@ -149,9 +151,18 @@ mod tests {
         RateTable {
             effective: "2026-01-01".parse().unwrap(),
             tiers: vec![
-                Tier { from: d("1000"), rate: d("0.01") },
-                Tier { from: d("5000"), rate: d("0.02") },
-                Tier { from: d("20000"), rate: d("0.03") },
+                Tier {
+                    from: d("1000"),
+                    rate: d("0.01"),
+                },
+                Tier {
+                    from: d("5000"),
+                    rate: d("0.02"),
+                },
+                Tier {
+                    from: d("20000"),
+                    rate: d("0.03"),
+                },
             ],
         }
     }
@@ -174,7 +185,14 @@ mod tests {
         table().pieces(d("8000"), TierMethod::Whole, &mut out);
         assert_eq!(out, vec![(d("8000"), d("0.02"))]);
         table().pieces(d("25000"), TierMethod::Banded, &mut out);
-        assert_eq!(out, vec![(d("4000"), d("0.01")), (d("15000"), d("0.02")), (d("5000"), d("0.03"))]);
+        assert_eq!(
+            out,
+            vec![
+                (d("4000"), d("0.01")),
+                (d("15000"), d("0.02")),
+                (d("5000"), d("0.03"))
+            ]
+        );
         // A debit base keeps its sign.
         table().pieces(d("-6000"), TierMethod::Banded, &mut out);
         assert_eq!(out, vec![(d("-4000"), d("0.01")), (d("-1000"), d("0.02"))]);

@@ -115,9 +115,17 @@ impl AccrualState {
         AccrualState {
             day: terms.open_date,
             balance: terms.opening_balance,
-            compounded: if terms.compounding.joins_daily() { a } else { Decimal::ZERO },
+            compounded: if terms.compounding.joins_daily() {
+                a
+            } else {
+                Decimal::ZERO
+            },
             opening_pending: a,
-            opening_to_join: if terms.compounding.months().is_some() { a } else { Decimal::ZERO },
+            opening_to_join: if terms.compounding.months().is_some() {
+                a
+            } else {
+                Decimal::ZERO
+            },
             back_value_owed: Vec::new(),
         }
     }
@@ -182,7 +190,11 @@ pub struct Sources<'a> {
 /// assert_eq!(r.postings[0].interest.to_string(), "1.875");
 /// assert_eq!(r.postings[0].posted.to_string(), "1.88");
 /// ```
-pub fn accrue(terms: &AccountTerms, sources: Sources, options: RunOptions) -> Result<AccountResult, EngineError> {
+pub fn accrue(
+    terms: &AccountTerms,
+    sources: Sources,
+    options: RunOptions,
+) -> Result<AccountResult, EngineError> {
     resume(terms, sources, options, &AccrualState::opening(terms))
 }
 
@@ -205,7 +217,11 @@ fn overflow(what: &'static str, date: NaiveDate) -> impl Fn(Overflow) -> EngineE
     move |_| EngineError::Overflow { what, date }
 }
 
-fn checked(x: Option<Decimal>, what: &'static str, date: NaiveDate) -> Result<Decimal, EngineError> {
+fn checked(
+    x: Option<Decimal>,
+    what: &'static str,
+    date: NaiveDate,
+) -> Result<Decimal, EngineError> {
     x.ok_or(EngineError::Overflow { what, date })
 }
 
@@ -238,7 +254,9 @@ impl<'a> Loop<'a> {
         let start = terms.first_period_start();
         let anchor = match terms.anchor {
             Some(a) => a,
-            None => month_end(start).ok_or(EngineError::Unsupported("a date out of range".into()))?,
+            None => {
+                month_end(start).ok_or(EngineError::Unsupported("a date out of range".into()))?
+            }
         };
         let schedule = ScheduleTerms {
             posting: terms.posting,
@@ -318,7 +336,11 @@ impl<'a> Loop<'a> {
 
         // Where the saved state sits in the schedule.
         let resume_day = self.state.day;
-        let mut pi = self.periods.iter().position(|p| p.end >= resume_day).unwrap_or(self.periods.len());
+        let mut pi = self
+            .periods
+            .iter()
+            .position(|p| p.end >= resume_day)
+            .unwrap_or(self.periods.len());
         if resume_day != open && self.periods.get(pi).is_none_or(|p| p.start != resume_day) {
             return Err(EngineError::BadState(resume_day));
         }
@@ -375,7 +397,8 @@ impl<'a> Loop<'a> {
                 if m.value_date > d {
                     break;
                 }
-                self.state.balance = checked(self.state.balance.checked_add(m.amount), "the balance", d)?;
+                self.state.balance =
+                    checked(self.state.balance.checked_add(m.amount), "the balance", d)?;
                 if self.unbooked(i, period_end) {
                     unbooked.push(i);
                 }
@@ -402,13 +425,19 @@ impl<'a> Loop<'a> {
             let table = self.table_for(base, d)?;
             let day_interest = self.interest(base, table, fraction, d, &mut pieces)?;
             let rate = blended_rate(base, &pieces, table, terms.tier_method);
-            day_interest.add_to(&mut self.period_acc).map_err(overflow("the accrued interest", d))?;
+            day_interest
+                .add_to(&mut self.period_acc)
+                .map_err(overflow("the accrued interest", d))?;
             if terms.compounding.months().is_some() {
-                day_interest.add_to(&mut self.since_compounding).map_err(overflow("the accrued interest", d))?;
+                day_interest
+                    .add_to(&mut self.since_compounding)
+                    .map_err(overflow("the accrued interest", d))?;
             }
             let need_value = opts.keep_days || terms.compounding.joins_daily();
             let interest_value = if need_value {
-                day_interest.value().map_err(overflow("the daily interest", d))?
+                day_interest
+                    .value()
+                    .map_err(overflow("the daily interest", d))?
             } else {
                 Decimal::ZERO
             };
@@ -423,7 +452,8 @@ impl<'a> Loop<'a> {
                 let t = self.table_for(with, d)?;
                 let full = self.interest(with, t, fraction, d, &mut scratch)?;
                 let mut diff = full;
-                diff.subtract(&day_interest).map_err(overflow("the back-value interest", d))?;
+                diff.subtract(&day_interest)
+                    .map_err(overflow("the back-value interest", d))?;
                 let owed = match self.state.back_value_owed.iter_mut().find(|(j, _)| *j == i) {
                     Some((_, a)) => a,
                     None => {
@@ -434,15 +464,26 @@ impl<'a> Loop<'a> {
                         }
                     }
                 };
-                diff.add_to(owed).map_err(overflow("the back-value interest", d))?;
+                diff.add_to(owed)
+                    .map_err(overflow("the back-value interest", d))?;
                 if opts.keep_days {
-                    let v = diff.value().map_err(overflow("the back-value interest", d))?;
-                    back_value_today = checked(back_value_today.checked_add(v), "the back-value interest", d)?;
+                    let v = diff
+                        .value()
+                        .map_err(overflow("the back-value interest", d))?;
+                    back_value_today = checked(
+                        back_value_today.checked_add(v),
+                        "the back-value interest",
+                        d,
+                    )?;
                 }
             }
 
             if terms.compounding.joins_daily() {
-                self.state.compounded = checked(self.state.compounded.checked_add(interest_value), "the base", d)?;
+                self.state.compounded = checked(
+                    self.state.compounded.checked_add(interest_value),
+                    "the base",
+                    d,
+                )?;
             }
 
             // End of day: a posting, else a compounding end.
@@ -454,13 +495,17 @@ impl<'a> Loop<'a> {
             if let Some(p) = period.filter(|p| p.end == d) {
                 let row = self.post(p, d)?;
                 if terms.capitalise {
-                    self.state.balance = checked(self.state.balance.checked_add(row.posted), "the balance", d)?;
+                    self.state.balance =
+                        checked(self.state.balance.checked_add(row.posted), "the balance", d)?;
                 }
                 posted_today = Some(row.posted);
                 postings.push(row);
                 pi += 1;
             } else if is_compounding_end {
-                let joined = self.since_compounding.value().map_err(overflow("the compounded interest", d))?;
+                let joined = self
+                    .since_compounding
+                    .value()
+                    .map_err(overflow("the compounded interest", d))?;
                 self.state.compounded = checked(
                     self.state
                         .compounded
@@ -509,7 +554,11 @@ impl<'a> Loop<'a> {
                 break;
             }
             if m.value_date >= resume_day {
-                self.state.balance = checked(self.state.balance.checked_add(m.amount), "the balance", m.value_date)?;
+                self.state.balance = checked(
+                    self.state.balance.checked_add(m.amount),
+                    "the balance",
+                    m.value_date,
+                )?;
             }
             mi += 1;
         }
@@ -520,8 +569,15 @@ impl<'a> Loop<'a> {
             round(self.accrued(opts.cutoff)?)
         };
         let mut posted_in_window = Decimal::ZERO;
-        for p in postings.iter().filter(|p| p.end >= opts.window_start && p.end <= opts.cutoff) {
-            posted_in_window = checked(posted_in_window.checked_add(p.posted), "the posted total", p.end)?;
+        for p in postings
+            .iter()
+            .filter(|p| p.end >= opts.window_start && p.end <= opts.cutoff)
+        {
+            posted_in_window = checked(
+                posted_in_window.checked_add(p.posted),
+                "the posted total",
+                p.end,
+            )?;
         }
         let before = accrued_before_window.unwrap_or(Decimal::ZERO);
         let interest_for_window = checked(
@@ -535,7 +591,11 @@ impl<'a> Loop<'a> {
             Some(r) => Some(growth::effective_annual_rate(terms.compounding, r)?),
             None => None,
         };
-        let balance_at_cutoff = if opts.cutoff < open { Decimal::ZERO } else { self.state.balance };
+        let balance_at_cutoff = if opts.cutoff < open {
+            Decimal::ZERO
+        } else {
+            self.state.balance
+        };
         Ok(AccountResult {
             postings,
             balance_at_cutoff,
@@ -587,24 +647,43 @@ impl<'a> Loop<'a> {
         let terms = self.terms;
         let raw = match terms.compounding {
             Compounding::Continuous | Compounding::AnnualEffective => {
-                let years = checked(Decimal::from(f.num).checked_div(Decimal::from(f.den.max(1))), "the day fraction", d)?;
+                let years = checked(
+                    Decimal::from(f.num).checked_div(Decimal::from(f.den.max(1))),
+                    "the day fraction",
+                    d,
+                )?;
                 let mut total = Decimal::ZERO;
                 for &(slice, rate) in pieces.iter() {
                     let growth = if terms.compounding == Compounding::Continuous {
                         growth::exp_m1(checked(rate.checked_mul(years), "the exponent", d)?)?
                     } else {
-                        growth::pow_m1(checked(Decimal::ONE.checked_add(rate), "the rate", d)?, years)?
+                        growth::pow_m1(
+                            checked(Decimal::ONE.checked_add(rate), "the rate", d)?,
+                            years,
+                        )?
                     };
-                    total = checked(slice.checked_mul(growth).and_then(|x| total.checked_add(x)), "the daily interest", d)?;
+                    total = checked(
+                        slice.checked_mul(growth).and_then(|x| total.checked_add(x)),
+                        "the daily interest",
+                        d,
+                    )?;
                 }
                 DayInterest::Amount(total)
             }
             _ => {
                 let mut num = Decimal::ZERO;
                 for &(slice, rate) in pieces.iter() {
-                    num = checked(slice.checked_mul(rate).and_then(|x| num.checked_add(x)), "the daily interest", d)?;
+                    num = checked(
+                        slice.checked_mul(rate).and_then(|x| num.checked_add(x)),
+                        "the daily interest",
+                        d,
+                    )?;
                 }
-                let num = checked(num.checked_mul(Decimal::from(f.num)), "the daily interest", d)?;
+                let num = checked(
+                    num.checked_mul(Decimal::from(f.num)),
+                    "the daily interest",
+                    d,
+                )?;
                 DayInterest::Fraction(num, f.den)
             }
         };
@@ -620,7 +699,8 @@ impl<'a> Loop<'a> {
     /// period's interest, any opening accrued and any back-value owed.
     fn accrued(&self, d: NaiveDate) -> Result<Decimal, EngineError> {
         let mut a = self.period_acc;
-        a.add_amount(self.state.opening_pending).map_err(overflow("the accrued interest", d))?;
+        a.add_amount(self.state.opening_pending)
+            .map_err(overflow("the accrued interest", d))?;
         for (_, owed) in &self.state.back_value_owed {
             a.add(owed).map_err(overflow("the accrued interest", d))?;
         }
@@ -632,21 +712,29 @@ impl<'a> Loop<'a> {
         let terms = self.terms;
         let round = |x: Decimal| terms.round_mode.round(x, terms.minor_units);
         let mut acc = self.period_acc;
-        acc.add_amount(self.state.opening_pending).map_err(overflow("the posting", d))?;
+        acc.add_amount(self.state.opening_pending)
+            .map_err(overflow("the posting", d))?;
         let interest = acc.value().map_err(overflow("the posting", d))?.normalize();
         // Back-value owed for movements booked by now joins this posting, as its own figure.
         let mut owed = Accrual::new();
         let mut keep = Vec::new();
         for (i, a) in std::mem::take(&mut self.state.back_value_owed) {
-            let booked = self.movement(i).and_then(|m| m.booking_date).is_none_or(|b| b <= p.end);
+            let booked = self
+                .movement(i)
+                .and_then(|m| m.booking_date)
+                .is_none_or(|b| b <= p.end);
             if booked {
-                owed.add(&a).map_err(overflow("the back-value interest", d))?;
+                owed.add(&a)
+                    .map_err(overflow("the back-value interest", d))?;
             } else {
                 keep.push((i, a));
             }
         }
         self.state.back_value_owed = keep;
-        let back_value = round(owed.value().map_err(overflow("the back-value interest", d))?);
+        let back_value = round(
+            owed.value()
+                .map_err(overflow("the back-value interest", d))?,
+        );
         let expected = checked(round(interest).checked_add(back_value), "the posting", d)?;
         let first = self.periods.first().is_some_and(|f| f.start == p.start);
         let actual = self.sources.actual.iter().find(|a| {
@@ -708,7 +796,12 @@ impl DayInterest {
 
 /// The single annual rate a day's base earned: the tier's rate, or over bands
 /// the interest-weighted average.
-fn blended_rate(base: Decimal, pieces: &[(Decimal, Decimal)], table: Option<&RateTable>, method: TierMethod) -> Decimal {
+fn blended_rate(
+    base: Decimal,
+    pieces: &[(Decimal, Decimal)],
+    table: Option<&RateTable>,
+    method: TierMethod,
+) -> Decimal {
     match pieces {
         [] => {
             // Nothing earned: report the rate a zero base would get, if any.
@@ -724,9 +817,9 @@ fn blended_rate(base: Decimal, pieces: &[(Decimal, Decimal)], table: Option<&Rat
         }
         [(_, r)] if method == TierMethod::Whole => *r,
         many => {
-            let total = many
-                .iter()
-                .try_fold(Decimal::ZERO, |acc, (s, r)| acc.checked_add(s.checked_mul(*r)?));
+            let total = many.iter().try_fold(Decimal::ZERO, |acc, (s, r)| {
+                acc.checked_add(s.checked_mul(*r)?)
+            });
             match total.and_then(|t| t.checked_div(base)) {
                 Some(r) => r,
                 None => Decimal::ZERO,
