@@ -3,3 +3,4 @@
 
 pub mod conventions;
 pub mod engine;
+pub mod cli;

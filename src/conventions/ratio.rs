@@ -93,7 +93,7 @@ impl Ratio {
     pub fn to_decimal(self) -> Option<Decimal> {
         let n = Decimal::try_from_i128_with_scale(self.num, 0).ok()?;
         let d = Decimal::try_from_i128_with_scale(self.den, 0).ok()?;
-        n.checked_div(d)
+        n.checked_div(d).map(|x| x.normalize())
     }
 }
 
