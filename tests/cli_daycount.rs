@@ -22,7 +22,15 @@ fn act_act_isda_prints_days_and_the_exact_fraction() {
 #[test]
 fn json_output_has_basis_days_and_fraction() {
     let out = ledgerate()
-        .args(["daycount", "30e/360isda", "2011-08-31", "2012-02-29", "--maturity", "2012-02-29", "--json"])
+        .args([
+            "daycount",
+            "30e/360isda",
+            "2011-08-31",
+            "2012-02-29",
+            "--maturity",
+            "2012-02-29",
+            "--json",
+        ])
         .assert()
         .success()
         .get_output()
@@ -33,7 +41,10 @@ fn json_output_has_basis_days_and_fraction() {
     // ISDA 30E/360 (ISDA) worked example: a February end on the termination date stays 29.
     assert_eq!(v["days"], 179);
     assert_eq!(v["exact"], "179/360");
-    assert!(v["fraction"].as_str().unwrap().starts_with("0.49722222222222222222"));
+    assert!(v["fraction"]
+        .as_str()
+        .unwrap()
+        .starts_with("0.49722222222222222222"));
 }
 
 /// ICMA Rule 251 through ISDA 4.16(c): a regular semiannual period is 1/2.
@@ -41,8 +52,17 @@ fn json_output_has_basis_days_and_fraction() {
 fn act_act_icma_uses_frequency_and_reference_period() {
     ledgerate()
         .args([
-            "daycount", "ACT/ACT ICMA", "2003-11-01", "2004-05-01", "--frequency", "2", "--reference-start",
-            "2003-11-01", "--reference-end", "2004-05-01", "--json",
+            "daycount",
+            "ACT/ACT ICMA",
+            "2003-11-01",
+            "2004-05-01",
+            "--frequency",
+            "2",
+            "--reference-start",
+            "2003-11-01",
+            "--reference-end",
+            "2004-05-01",
+            "--json",
         ])
         .assert()
         .success()
@@ -56,7 +76,13 @@ fn bus_252_reads_a_holiday_file() {
     std::fs::write(&cal, "# year-end holidays\n2026-12-25\n\n2027-01-01\n").unwrap();
     // 21 Dec 2026 to 4 Jan 2027: ten weekdays less two holidays.
     ledgerate()
-        .args(["daycount", "BUS/252", "2026-12-21", "2027-01-04", "--calendar"])
+        .args([
+            "daycount",
+            "BUS/252",
+            "2026-12-21",
+            "2027-01-04",
+            "--calendar",
+        ])
         .arg(&cal)
         .args(["--json"])
         .assert()
@@ -71,11 +97,19 @@ fn a_bad_holiday_line_names_the_file_and_line() {
     let cal = dir.path().join("holidays.txt");
     std::fs::write(&cal, "2026-12-25\n25/12/2026\n").unwrap();
     ledgerate()
-        .args(["daycount", "BUS/252", "2026-12-21", "2027-01-04", "--calendar"])
+        .args([
+            "daycount",
+            "BUS/252",
+            "2026-12-21",
+            "2027-01-04",
+            "--calendar",
+        ])
         .arg(&cal)
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("holidays.txt line 2: found '25/12/2026', expected one ISO date"));
+        .stderr(predicate::str::contains(
+            "holidays.txt line 2: found '25/12/2026', expected one ISO date",
+        ));
 }
 
 #[test]
@@ -108,7 +142,20 @@ fn missing_terms_are_errors_that_say_how_to_fix_them() {
 
 #[test]
 fn every_spec_basis_answers() {
-    for basis in ["ACT/360", "ACT/365F", "ACT/365L", "ACT/ACT ISDA", "NL/365", "30/360", "30/360 US", "30E/360", "30E/360 ISDA"] {
-        ledgerate().args(["daycount", basis, "2028-01-31", "2028-03-31"]).assert().success();
+    for basis in [
+        "ACT/360",
+        "ACT/365F",
+        "ACT/365L",
+        "ACT/ACT ISDA",
+        "NL/365",
+        "30/360",
+        "30/360 US",
+        "30E/360",
+        "30E/360 ISDA",
+    ] {
+        ledgerate()
+            .args(["daycount", basis, "2028-01-31", "2028-03-31"])
+            .assert()
+            .success();
     }
 }

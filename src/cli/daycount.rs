@@ -13,12 +13,14 @@ use crate::conventions::daycount::{day_count, months_per_period, year_fraction, 
 
 /// Arguments of `daycount`.
 #[derive(Debug, clap::Args)]
-#[command(after_help = "Bases: ACT/360, ACT/365F, ACT/365L, ACT/ACT ISDA, ACT/ACT ICMA, NL/365, 30/360, \
+#[command(
+    after_help = "Bases: ACT/360, ACT/365F, ACT/365L, ACT/ACT ISDA, ACT/ACT ICMA, NL/365, 30/360, \
 30/360 US, 30E/360, 30E/360 ISDA, BUS/252 (case and spaces do not matter: act/act-isda works).\n\n\
 Examples:\n  ledgerate daycount ACT/360 2026-11-01 2026-12-01\n  \
 ledgerate daycount \"30E/360 ISDA\" 2011-08-31 2012-02-29 --maturity 2012-02-29\n  \
 ledgerate daycount \"ACT/ACT ICMA\" 2003-11-01 2004-05-01 --frequency 2 \
---reference-start 2003-11-01 --reference-end 2004-05-01 --json")]
+--reference-start 2003-11-01 --reference-end 2004-05-01 --json"
+)]
 pub struct Args {
     /// Day-count basis, for example ACT/360 or "30E/360 ISDA".
     basis: String,
@@ -47,7 +49,9 @@ pub struct Args {
 }
 
 fn date(what: &str, s: &str) -> Result<NaiveDate> {
-    parse_iso_date(s).ok_or_else(|| anyhow!("{what} '{s}' is not an ISO date: write it as YYYY-MM-DD, for example 2026-11-30"))
+    parse_iso_date(s).ok_or_else(|| {
+        anyhow!("{what} '{s}' is not an ISO date: write it as YYYY-MM-DD, for example 2026-11-30")
+    })
 }
 
 /// Parses a strict ISO date (YYYY-MM-DD), nothing before or after.
@@ -62,7 +66,8 @@ pub(crate) fn parse_iso_date(s: &str) -> Option<NaiveDate> {
 
 /// Reads a holiday file: one ISO date a line, blank lines and `#` comments skipped.
 pub(crate) fn read_calendar(path: &Path) -> Result<Calendar> {
-    let text = std::fs::read_to_string(path).with_context(|| format!("cannot read the calendar file {}", path.display()))?;
+    let text = std::fs::read_to_string(path)
+        .with_context(|| format!("cannot read the calendar file {}", path.display()))?;
     let mut dates = Vec::new();
     for (i, line) in text.lines().enumerate() {
         let content = line.split('#').next().unwrap_or("").trim();
@@ -79,7 +84,10 @@ pub(crate) fn read_calendar(path: &Path) -> Result<Calendar> {
             ),
         }
     }
-    let name = path.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_default();
+    let name = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
     Ok(Calendar::new(&name, dates))
 }
 
@@ -88,7 +96,11 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let basis = Basis::parse(&args.basis).map_err(|e| anyhow!("{e}"))?;
     let from = date("FROM", &args.from)?;
     let to = date("TO", &args.to)?;
-    let maturity = args.maturity.as_deref().map(|m| date("--maturity", m)).transpose()?;
+    let maturity = args
+        .maturity
+        .as_deref()
+        .map(|m| date("--maturity", m))
+        .transpose()?;
     let reference = match (&args.reference_start, &args.reference_end) {
         (Some(s), Some(e)) => Some((date("--reference-start", s)?, date("--reference-end", e)?)),
         _ => None,
@@ -111,7 +123,9 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     };
     let days = day_count(basis, from, to, &terms).map_err(|e| anyhow!("{e}"))?;
     let exact = year_fraction(basis, from, to, &terms).map_err(|e| anyhow!("{e}"))?;
-    let fraction = exact.to_decimal().ok_or_else(|| anyhow!("the year fraction is too large to print as a decimal"))?;
+    let fraction = exact
+        .to_decimal()
+        .ok_or_else(|| anyhow!("the year fraction is too large to print as a decimal"))?;
     if args.json {
         let mut obj = serde_json::json!({
             "basis": basis.name(),
@@ -133,11 +147,17 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             _ => "days",
         };
         writeln!(out, "basis     {}", basis.name())?;
-        writeln!(out, "period    {from} to {to} (the first date earns, the second does not)")?;
+        writeln!(
+            out,
+            "period    {from} to {to} (the first date earns, the second does not)"
+        )?;
         writeln!(out, "days      {days} {unit}")?;
         writeln!(out, "fraction  {fraction}")?;
         if exact.denom() != 1 && fraction.scale() >= 28 {
-            writeln!(out, "exact     {exact} (the decimal above is rounded at 28 digits)")?;
+            writeln!(
+                out,
+                "exact     {exact} (the decimal above is rounded at 28 digits)"
+            )?;
         } else {
             writeln!(out, "exact     {exact}")?;
         }

@@ -57,7 +57,11 @@ where
         Err(e) => {
             // clap prints help and version to stdout with success, usage errors to stderr.
             let _ = e.print();
-            return ExitCode::from(if e.use_stderr() { exit::USAGE } else { exit::OK });
+            return ExitCode::from(if e.use_stderr() {
+                exit::USAGE
+            } else {
+                exit::OK
+            });
         }
     };
     let mut out = std::io::stdout().lock();
