@@ -1,0 +1,229 @@
+//! What a run hands to the workbook writer: plain rows of figures, already
+//! computed and rounded. The writer decides only how they look.
+
+use chrono::{NaiveDate, NaiveDateTime};
+use rust_decimal::Decimal;
+
+use crate::book::Problem;
+
+/// One input file of the run, for the audit trail.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct InputFile {
+    /// The path as given.
+    pub path: String,
+    /// Size in bytes (a CSV folder: the sum of its files).
+    pub size: u64,
+    /// SHA-256 in lower-case hex (a CSV folder: of its files' names and hashes, in name order).
+    pub sha256: String,
+}
+
+/// Where a setting's value came from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SettingSource {
+    /// The program's default.
+    Default,
+    /// A book's Settings sheet.
+    Book,
+    /// A command-line option.
+    Option,
+}
+
+impl SettingSource {
+    /// The word written in the Run sheet.
+    pub fn name(self) -> &'static str {
+        match self {
+            SettingSource::Default => "default",
+            SettingSource::Book => "Settings sheet",
+            SettingSource::Option => "command line",
+        }
+    }
+}
+
+/// One setting in force.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Setting {
+    /// Its name, as in the Settings sheet (cutoff, window_start, ...).
+    pub name: String,
+    /// Its value as text.
+    pub value: String,
+    /// Where it came from.
+    pub source: SettingSource,
+}
+
+/// Facts of the run (Summary and Run sheets).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct RunFacts {
+    /// Program name and version, e.g. `ledgerate 0.1.0`.
+    pub program: String,
+    /// The command line, without options that cannot change a figure.
+    pub command_line: String,
+    /// The input books.
+    pub inputs: Vec<InputFile>,
+    /// Every setting in force.
+    pub settings: Vec<Setting>,
+    /// When the run happened (or the pinned `--fixed-time`).
+    pub run_time: NaiveDateTime,
+    /// C.
+    pub cutoff: NaiveDate,
+    /// F.
+    pub window_start: NaiveDate,
+    /// Accounts in the books.
+    pub accounts_read: usize,
+    /// Accounts computed.
+    pub accounts_computed: usize,
+    /// Accounts left out by errors.
+    pub accounts_failed: usize,
+}
+
+/// One row of the Accruals sheet.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct AccrualLine {
+    /// Account id.
+    pub account: String,
+    /// Account name.
+    pub name: String,
+    /// ISO 4217 code.
+    pub currency: String,
+    /// Minor units of the currency (number format of the amounts).
+    pub minor_units: u32,
+    /// `asset` or `liability`.
+    pub side: String,
+    /// Canonical basis name.
+    pub day_count: String,
+    /// Canonical compounding name.
+    pub compounding: String,
+    /// Balance at cut-off.
+    pub balance_at_cutoff: Decimal,
+    /// Accrued at cut-off (rounded).
+    pub accrued_at_cutoff: Decimal,
+    /// Posted in window.
+    pub posted_in_window: Decimal,
+    /// Interest for window.
+    pub interest_for_window: Decimal,
+    /// Effective annual rate as a decimal (0.0512 for 5.12%), blank when the account does not earn on C.
+    pub effective_annual_rate: Option<Decimal>,
+}
+
+/// Totals of one currency (Summary sheet).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CurrencyTotal {
+    /// ISO 4217 code.
+    pub currency: String,
+    /// Minor units.
+    pub minor_units: u32,
+    /// Accounts computed in this currency.
+    pub accounts: usize,
+    /// Sum of balances at cut-off.
+    pub balance_at_cutoff: Decimal,
+    /// Sum of accrued at cut-off.
+    pub accrued_at_cutoff: Decimal,
+    /// Sum of posted in window.
+    pub posted_in_window: Decimal,
+    /// Sum of interest for window.
+    pub interest_for_window: Decimal,
+}
+
+/// One journal line (Journal sheet).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct JournalLine {
+    /// Booking date.
+    pub date: NaiveDate,
+    /// Entity (legal entity or ledger) booking it.
+    pub entity: String,
+    /// ISO 4217 code.
+    pub currency: String,
+    /// Minor units.
+    pub minor_units: u32,
+    /// GL account code.
+    pub gl_account: String,
+    /// Debit amount (zero when a credit).
+    pub debit: Decimal,
+    /// Credit amount (zero when a debit).
+    pub credit: Decimal,
+    /// What the line is.
+    pub memo: String,
+}
+
+/// One account-day (Daily sheet).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct DailyLine {
+    /// Account id.
+    pub account: String,
+    /// Minor units of the account's currency.
+    pub minor_units: u32,
+    /// The day.
+    pub date: NaiveDate,
+    /// Balance at the end of the day.
+    pub balance: Decimal,
+    /// Interest-bearing base.
+    pub base: Decimal,
+    /// Annual rate as a decimal.
+    pub rate: Decimal,
+    /// The day's fraction of a year (exact value rounded to 28 digits).
+    pub day_fraction: Decimal,
+    /// The day's interest, unrounded unless the account rounds daily.
+    pub interest: Decimal,
+    /// Accrued since the last posting, unrounded.
+    pub accrued: Decimal,
+}
+
+/// One row of the Reconciliation sheet.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ReconciliationLine {
+    /// Account id.
+    pub account: String,
+    /// ISO 4217 code.
+    pub currency: String,
+    /// Minor units.
+    pub minor_units: u32,
+    /// First day of the statement period.
+    pub period_start: NaiveDate,
+    /// Last day of the statement period.
+    pub period_end: NaiveDate,
+    /// Days in the period.
+    pub days: i64,
+    /// Balance-years: the sum of base x day fraction.
+    pub balance_years: Decimal,
+    /// Expected interest.
+    pub expected: Decimal,
+    /// Posted interest (zero for a missing posting).
+    pub posted: Decimal,
+    /// posted - expected.
+    pub variance: Decimal,
+    /// The variance as an annual rate gap in basis points; blank when balance-years is zero.
+    pub variance_bp: Option<Decimal>,
+    /// Status word.
+    pub status: String,
+    /// The likely cause, in plain words (empty when agreed or within tolerance).
+    pub likely_cause: String,
+}
+
+/// Counts of one status (Summary sheet).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct StatusCount {
+    /// Status word.
+    pub status: String,
+    /// Rows with it.
+    pub rows: usize,
+}
+
+/// Everything one output workbook holds.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Report {
+    /// Run facts.
+    pub facts: RunFacts,
+    /// Totals by currency, in code order.
+    pub totals: Vec<CurrencyTotal>,
+    /// One line per computed account, in book order.
+    pub accruals: Vec<AccrualLine>,
+    /// Reconciliation rows (empty without statements).
+    pub reconciliation: Vec<ReconciliationLine>,
+    /// Counts by status (empty without statements).
+    pub status_counts: Vec<StatusCount>,
+    /// Journal lines.
+    pub journal: Vec<JournalLine>,
+    /// Daily lines, when asked for.
+    pub daily: Option<Vec<DailyLine>>,
+    /// Problems of the books and the run.
+    pub problems: Vec<Problem>,
+}
