@@ -1,0 +1,277 @@
+//! A month-end batch: every account of the books accrued in parallel, then
+//! the totals, the journal and the daily lines, in book order.
+//!
+//! Takes books already read and returns report rows; it reads no file and
+//! prints nothing (the command line does both). Results are collected in book
+//! order whatever the thread count, and every total is a sum of rounded
+//! amounts, so the output is the same on one thread or many.
+
+pub mod journal;
+
+use std::collections::{BTreeMap, HashMap};
+
+use chrono::NaiveDate;
+use rayon::prelude::*;
+use rust_decimal::Decimal;
+
+use crate::book::{AccountEntry, Book, Problem, Severity};
+use crate::engine::rates::RateSource;
+use crate::engine::run::{accrue, AccountResult, RunOptions, Sources};
+use crate::engine::{ActualPosting, EngineError};
+use crate::report::model::{AccrualLine, CurrencyTotal, DailyLine, JournalLine};
+use journal::{AccountEntries, Journal, JournalStyle};
+
+/// What the batch needs besides the books.
+#[derive(Debug, Clone)]
+pub struct BatchSettings {
+    /// C.
+    pub cutoff: NaiveDate,
+    /// F.
+    pub window_start: NaiveDate,
+    /// Keep the day-by-day lines.
+    pub daily: bool,
+    /// How the journal books accruals.
+    pub journal_style: JournalStyle,
+    /// The entity of each book, by book index.
+    pub entities: Vec<String>,
+}
+
+/// The batch's figures, ready for the report.
+#[derive(Debug, Clone, Default)]
+pub struct BatchResult {
+    /// One line per computed account, in book order.
+    pub accruals: Vec<AccrualLine>,
+    /// Totals by currency, in code order.
+    pub totals: Vec<CurrencyTotal>,
+    /// Journal lines.
+    pub journal: Vec<JournalLine>,
+    /// Daily lines, when asked for.
+    pub daily: Option<Vec<DailyLine>>,
+    /// Problems the engine found (book problems stay with their books).
+    pub problems: Vec<Problem>,
+    /// Accounts in the books, counting those the reader left out.
+    pub accounts_read: usize,
+    /// Accounts computed.
+    pub accounts_computed: usize,
+}
+
+/// One account's outcome.
+struct Outcome {
+    line: AccrualLine,
+    entries: (String, Vec<(NaiveDate, Decimal)>),
+    daily: Vec<DailyLine>,
+}
+
+/// Accrues every account of `books` (in parallel on rayon's pool) and sums
+/// the results. `tick` is called once per account, from any thread, for a
+/// progress display.
+pub fn run_books(books: &[Book], settings: &BatchSettings, tick: &(dyn Fn() + Sync)) -> BatchResult {
+    let options = RunOptions {
+        window_start: settings.window_start,
+        cutoff: settings.cutoff,
+        keep_days: settings.daily,
+        keep_states: false,
+    };
+    // Amounts actually posted, summed per account and period (rows for the
+    // same period are one posting: a correction and its reversal, say).
+    let actual: Vec<HashMap<&str, Vec<ActualPosting>>> = books.iter().map(actual_postings).collect();
+    let work: Vec<(usize, &AccountEntry)> = books
+        .iter()
+        .enumerate()
+        .flat_map(|(bi, b)| b.accounts.iter().map(move |a| (bi, a)))
+        .collect();
+    let outcomes: Vec<Result<Outcome, Problem>> = work
+        .par_iter()
+        .with_min_len(64)
+        .map(|&(bi, entry)| {
+            let r = accrue_one(&books[bi], entry, actual[bi].get(entry.terms.id.as_str()), options);
+            tick();
+            r
+        })
+        .collect();
+
+    let mut result = BatchResult {
+        accounts_read: books
+            .iter()
+            .map(|b| b.accounts.len() + left_out_accounts(b))
+            .sum(),
+        ..BatchResult::default()
+    };
+    let mut journal = Journal::new();
+    let mut totals: BTreeMap<String, CurrencyTotal> = BTreeMap::new();
+    let mut daily = Vec::new();
+    for ((bi, entry), outcome) in work.iter().zip(outcomes) {
+        match outcome {
+            Ok(o) => {
+                let t = totals.entry(o.line.currency.clone()).or_insert_with(|| CurrencyTotal {
+                    currency: o.line.currency.clone(),
+                    minor_units: o.line.minor_units,
+                    accounts: 0,
+                    balance_at_cutoff: Decimal::ZERO,
+                    accrued_at_cutoff: Decimal::ZERO,
+                    posted_in_window: Decimal::ZERO,
+                    interest_for_window: Decimal::ZERO,
+                });
+                t.accounts += 1;
+                t.balance_at_cutoff += o.line.balance_at_cutoff;
+                t.accrued_at_cutoff += o.line.accrued_at_cutoff;
+                t.posted_in_window += o.line.posted_in_window;
+                t.interest_for_window += o.line.interest_for_window;
+                let entity = settings.entities.get(*bi).map_or("default", String::as_str);
+                journal.add_account(
+                    &AccountEntries {
+                        entity,
+                        currency: &o.line.currency,
+                        minor_units: o.line.minor_units,
+                        side: entry.terms.side,
+                        gl: &entry.gl,
+                        interest_for_window: o.line.interest_for_window,
+                        accrued_at_cutoff: o.line.accrued_at_cutoff,
+                        postings: o.entries.1,
+                    },
+                    settings.journal_style,
+                    settings.window_start,
+                    settings.cutoff,
+                );
+                daily.extend(o.daily);
+                result.accruals.push(o.line);
+                result.accounts_computed += 1;
+            }
+            Err(p) => result.problems.push(p),
+        }
+    }
+    result.totals = totals.into_values().collect();
+    result.journal = journal.lines();
+    result.daily = settings.daily.then_some(daily);
+    result
+}
+
+/// Accounts the reader kept out because of errors (each error names its account).
+fn left_out_accounts(book: &Book) -> usize {
+    let mut ids: Vec<&str> = book
+        .problems
+        .iter()
+        .filter(|p| p.severity == Severity::Error && p.position.sheet.eq_ignore_ascii_case("accounts"))
+        .filter_map(|p| p.account.as_deref())
+        .collect();
+    ids.sort_unstable();
+    ids.dedup();
+    ids.retain(|id| !book.accounts.iter().any(|a| a.terms.id == *id));
+    ids.len()
+}
+
+fn actual_postings(book: &Book) -> HashMap<&str, Vec<ActualPosting>> {
+    let mut sums: BTreeMap<(&str, NaiveDate, NaiveDate), Decimal> = BTreeMap::new();
+    for s in &book.statements {
+        *sums.entry((s.account.as_str(), s.period_start, s.period_end)).or_default() += s.posted;
+    }
+    let mut out: HashMap<&str, Vec<ActualPosting>> = HashMap::new();
+    for ((account, start, end), amount) in sums {
+        out.entry(account).or_default().push(ActualPosting { start, end, amount });
+    }
+    out
+}
+
+fn accrue_one(
+    book: &Book,
+    entry: &AccountEntry,
+    actual: Option<&Vec<ActualPosting>>,
+    options: RunOptions,
+) -> Result<Outcome, Problem> {
+    let t = &entry.terms;
+    let problem = |e: &EngineError| engine_problem(entry, e);
+    let rates = book.rates.get(&entry.rate_ref).ok_or_else(|| {
+        problem(&EngineError::Unsupported(format!("no Rates rows for rate_ref '{}'", entry.rate_ref)))
+    })?;
+    let debit = match &entry.debit_rate_ref {
+        Some(r) => Some(book.rates.get(r).ok_or_else(|| {
+            problem(&EngineError::Unsupported(format!("no Rates rows for debit_rate_ref '{r}'")))
+        })? as &dyn RateSource),
+        None => None,
+    };
+    let movements = book.movements.get(&t.id).map_or(&[][..], Vec::as_slice);
+    let sources = Sources {
+        rates,
+        debit_rates: debit,
+        movements,
+        actual: actual.map_or(&[][..], Vec::as_slice),
+    };
+    let r: AccountResult = accrue(t, sources, options).map_err(|e| problem(&e))?;
+    let postings = r
+        .postings
+        .iter()
+        .filter(|p| p.end >= options.window_start && p.end <= options.cutoff)
+        .map(|p| (p.payment, p.posted))
+        .collect();
+    let daily = r
+        .days
+        .iter()
+        .map(|d| DailyLine {
+            account: t.id.clone(),
+            minor_units: t.minor_units,
+            date: d.date,
+            balance: d.balance,
+            base: d.base,
+            rate: d.rate,
+            day_fraction: d.fraction.ratio().to_decimal().unwrap_or(Decimal::ZERO),
+            interest: d.interest,
+            accrued: d.accrued,
+        })
+        .collect();
+    Ok(Outcome {
+        line: AccrualLine {
+            account: t.id.clone(),
+            name: entry.name.clone(),
+            currency: t.currency.clone(),
+            minor_units: t.minor_units,
+            side: t.side.name().to_string(),
+            day_count: t.basis.name().to_string(),
+            compounding: t.compounding.name().to_string(),
+            balance_at_cutoff: r.balance_at_cutoff,
+            accrued_at_cutoff: r.accrued_at_cutoff,
+            posted_in_window: r.posted_in_window,
+            interest_for_window: r.interest_for_window,
+            effective_annual_rate: r.effective_annual_rate,
+        },
+        entries: (t.id.clone(), postings),
+        daily,
+    })
+}
+
+/// An engine error as a problem on the account's row, with a fix.
+fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
+    let (expected, fix) = match e {
+        EngineError::NoRate { date, .. } => (
+            format!("a rate in force on {date}"),
+            format!(
+                "add a Rates row for rate_ref '{}' effective on or before {date}, or move the account's open_date",
+                entry.rate_ref
+            ),
+        ),
+        EngineError::Overflow { .. } => (
+            "figures within the exact decimal range (28 significant digits)".to_string(),
+            "check the balance, movements and rates of this account for a typing error".to_string(),
+        ),
+        EngineError::Unsupported(_) => (
+            "terms the engine supports".to_string(),
+            "change the account's terms; see docs/user-guide.md for the supported combinations".to_string(),
+        ),
+        EngineError::DayCount(_) | EngineError::Schedule(_) => (
+            "terms the basis and schedule need".to_string(),
+            "give the missing term on the account's row".to_string(),
+        ),
+        EngineError::Growth(_) => (
+            "a rate and term that compounding can compute".to_string(),
+            "check the rate for a typing error".to_string(),
+        ),
+        EngineError::BadState(_) => ("a period start".to_string(), "report this as a defect".to_string()),
+    };
+    Problem {
+        severity: Severity::Error,
+        position: entry.position.clone(),
+        account: Some(entry.terms.id.clone()),
+        found: format!("account {}: {e}", entry.terms.id),
+        expected,
+        fix,
+    }
+}
