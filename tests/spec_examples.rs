@@ -15,6 +15,7 @@ use ledgerate::conventions::daycount::Basis;
 use ledgerate::conventions::rounding::RoundMode;
 use ledgerate::conventions::schedule::Posting;
 use ledgerate::engine::rates::RateSchedule;
+use ledgerate::engine::reconcile::{reconcile, StatementPeriod, Tolerance};
 use ledgerate::engine::run::{accrue, AccountResult, RunOptions, Sources};
 use ledgerate::engine::{AccountTerms, ActualPosting, Movement, RoundAt, Side, TierMethod};
 use rust_decimal::Decimal;
@@ -187,6 +188,58 @@ fn check(name: &str) {
         dec(&want["interest_for_window"]),
         "{name}: interest for window"
     );
+
+    // Reconciliation of the example's statement rows, default tolerance.
+    let statements: Vec<StatementPeriod> = ex["statements"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| StatementPeriod {
+            start: date(&s["period_start"]),
+            end: date(&s["period_end"]),
+            posted: dec(&s["posted_interest"]),
+            rows: 1,
+        })
+        .collect();
+    let rows = reconcile(
+        &terms(&ex["account"]),
+        &r,
+        &statements,
+        date(&ex["window_start"]),
+        date(&ex["cutoff"]),
+        &Tolerance::default(),
+    )
+    .unwrap();
+    let got: Vec<[String; 5]> = rows
+        .iter()
+        .map(|x| {
+            let mut bp = x.variance_bp.unwrap().round_dp(4);
+            bp.rescale(4);
+            [
+                x.start.to_string(),
+                x.expected.to_string(),
+                x.variance.to_string(),
+                bp.to_string(),
+                x.status.name().to_string(),
+            ]
+        })
+        .collect();
+    let expected: Vec<[String; 5]> = want["reconciliation"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| {
+            [
+                "period_start",
+                "expected",
+                "variance",
+                "variance_bp",
+                "status",
+            ]
+            .map(|k| x[k].as_str().unwrap().to_string())
+        })
+        .collect();
+    assert_eq!(got, expected, "{name}: reconciliation");
 }
 
 macro_rules! spec_examples {

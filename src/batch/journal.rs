@@ -42,7 +42,10 @@ impl JournalStyle {
         crate::conventions::names::lookup(
             "journal style",
             s,
-            &[("incremental", JournalStyle::Incremental), ("reversing", JournalStyle::Reversing)],
+            &[
+                ("incremental", JournalStyle::Incremental),
+                ("reversing", JournalStyle::Reversing),
+            ],
             &["incremental", "reversing"],
         )
     }
@@ -133,24 +136,50 @@ impl Journal {
                 gl: gl.to_string(),
                 memo: memo.to_string(),
             };
-            let slot = self.lines.entry(key).or_insert((minor_units, Decimal::ZERO));
+            let slot = self
+                .lines
+                .entry(key)
+                .or_insert((minor_units, Decimal::ZERO));
             // Amounts are rounded to minor units, so these sums are exact in any order.
             slot.1 += signed;
         }
     }
 
     /// Adds one account's entries for the window `from..=to`.
-    pub fn add_account(&mut self, a: &AccountEntries, style: JournalStyle, from: NaiveDate, to: NaiveDate) {
+    pub fn add_account(
+        &mut self,
+        a: &AccountEntries,
+        style: JournalStyle,
+        from: NaiveDate,
+        to: NaiveDate,
+    ) {
         let liability = a.side == Side::Liability;
         let interest_gl = a.gl.interest.clone().unwrap_or_else(|| {
-            if liability { defaults::INTEREST_EXPENSE } else { defaults::INTEREST_INCOME }.to_string()
+            if liability {
+                defaults::INTEREST_EXPENSE
+            } else {
+                defaults::INTEREST_INCOME
+            }
+            .to_string()
         });
         let accrued_gl = a.gl.accrued.clone().unwrap_or_else(|| {
-            if liability { defaults::ACCRUED_PAYABLE } else { defaults::ACCRUED_RECEIVABLE }.to_string()
+            if liability {
+                defaults::ACCRUED_PAYABLE
+            } else {
+                defaults::ACCRUED_RECEIVABLE
+            }
+            .to_string()
         });
-        let settle_gl = a.gl.settlement.clone().unwrap_or_else(|| defaults::SETTLEMENT.to_string());
+        let settle_gl =
+            a.gl.settlement
+                .clone()
+                .unwrap_or_else(|| defaults::SETTLEMENT.to_string());
         // Liability: Dr expense / Cr payable. Asset: Dr receivable / Cr income.
-        let (accrue_dr, accrue_cr) = if liability { (&interest_gl, &accrued_gl) } else { (&accrued_gl, &interest_gl) };
+        let (accrue_dr, accrue_cr) = if liability {
+            (&interest_gl, &accrued_gl)
+        } else {
+            (&accrued_gl, &interest_gl)
+        };
         let window = format!("{from}..{to}");
         match style {
             JournalStyle::Incremental => {
@@ -166,9 +195,23 @@ impl Journal {
                     a.interest_for_window,
                 );
                 // Settling a posting: liability Dr payable / Cr settlement; asset Dr settlement / Cr receivable.
-                let (dr, cr) = if liability { (&accrued_gl, &settle_gl) } else { (&settle_gl, &accrued_gl) };
+                let (dr, cr) = if liability {
+                    (&accrued_gl, &settle_gl)
+                } else {
+                    (&settle_gl, &accrued_gl)
+                };
                 for (date, amount) in &a.postings {
-                    self.entry(*date, a.entity, a.currency, a.minor_units, 1, dr, cr, "interest posted", *amount);
+                    self.entry(
+                        *date,
+                        a.entity,
+                        a.currency,
+                        a.minor_units,
+                        1,
+                        dr,
+                        cr,
+                        "interest posted",
+                        *amount,
+                    );
                 }
             }
             JournalStyle::Reversing => {
@@ -196,9 +239,23 @@ impl Journal {
                         a.accrued_at_cutoff,
                     );
                 }
-                let (dr, cr) = if liability { (&interest_gl, &settle_gl) } else { (&settle_gl, &interest_gl) };
+                let (dr, cr) = if liability {
+                    (&interest_gl, &settle_gl)
+                } else {
+                    (&settle_gl, &interest_gl)
+                };
                 for (date, amount) in &a.postings {
-                    self.entry(*date, a.entity, a.currency, a.minor_units, 1, dr, cr, "interest posted", *amount);
+                    self.entry(
+                        *date,
+                        a.entity,
+                        a.currency,
+                        a.minor_units,
+                        1,
+                        dr,
+                        cr,
+                        "interest posted",
+                        *amount,
+                    );
                 }
             }
         }
@@ -210,8 +267,13 @@ impl Journal {
             .into_iter()
             .filter(|(_, (_, amount))| !amount.is_zero())
             .map(|(k, (minor_units, amount))| {
-                let zero = crate::conventions::rounding::RoundMode::HalfUp.round(Decimal::ZERO, minor_units);
-                let (debit, credit) = if amount.is_sign_positive() { (amount, zero) } else { (zero, -amount) };
+                let zero = crate::conventions::rounding::RoundMode::HalfUp
+                    .round(Decimal::ZERO, minor_units);
+                let (debit, credit) = if amount.is_sign_positive() {
+                    (amount, zero)
+                } else {
+                    (zero, -amount)
+                };
                 JournalLine {
                     date: k.date,
                     entity: k.entity,
@@ -268,23 +330,63 @@ mod tests {
             accrued_at_cutoff: n("111.63"),
             postings: vec![(d("2026-11-16"), n("229.99"))],
         };
-        let loan = AccountEntries { side: Side::Asset, interest_for_window: n("20.00"), postings: vec![], ..deposit.clone() };
-        j.add_account(&deposit, JournalStyle::Incremental, d("2026-11-01"), d("2026-11-30"));
-        j.add_account(&loan, JournalStyle::Incremental, d("2026-11-01"), d("2026-11-30"));
+        let loan = AccountEntries {
+            side: Side::Asset,
+            interest_for_window: n("20.00"),
+            postings: vec![],
+            ..deposit.clone()
+        };
+        j.add_account(
+            &deposit,
+            JournalStyle::Incremental,
+            d("2026-11-01"),
+            d("2026-11-30"),
+        );
+        j.add_account(
+            &loan,
+            JournalStyle::Incremental,
+            d("2026-11-01"),
+            d("2026-11-30"),
+        );
         let lines = j.lines();
         balanced(&lines);
-        let find = |gl: &str, date: &str| lines.iter().find(|l| l.gl_account == gl && l.date == d(date)).unwrap().clone();
-        assert_eq!(find(defaults::INTEREST_EXPENSE, "2026-11-30").debit, n("222.91"));
-        assert_eq!(find(defaults::ACCRUED_PAYABLE, "2026-11-30").credit, n("222.91"));
-        assert_eq!(find(defaults::ACCRUED_RECEIVABLE, "2026-11-30").debit, n("20.00"));
-        assert_eq!(find(defaults::INTEREST_INCOME, "2026-11-30").credit, n("20.00"));
-        assert_eq!(find(defaults::ACCRUED_PAYABLE, "2026-11-16").debit, n("229.99"));
+        let find = |gl: &str, date: &str| {
+            lines
+                .iter()
+                .find(|l| l.gl_account == gl && l.date == d(date))
+                .unwrap()
+                .clone()
+        };
+        assert_eq!(
+            find(defaults::INTEREST_EXPENSE, "2026-11-30").debit,
+            n("222.91")
+        );
+        assert_eq!(
+            find(defaults::ACCRUED_PAYABLE, "2026-11-30").credit,
+            n("222.91")
+        );
+        assert_eq!(
+            find(defaults::ACCRUED_RECEIVABLE, "2026-11-30").debit,
+            n("20.00")
+        );
+        assert_eq!(
+            find(defaults::INTEREST_INCOME, "2026-11-30").credit,
+            n("20.00")
+        );
+        assert_eq!(
+            find(defaults::ACCRUED_PAYABLE, "2026-11-16").debit,
+            n("229.99")
+        );
         assert_eq!(find(defaults::SETTLEMENT, "2026-11-16").credit, n("229.99"));
     }
 
     #[test]
     fn lines_are_summed_by_gl_and_negative_amounts_swap_sides() {
-        let gl = GlCodes { interest: Some("6100".into()), accrued: Some("2300".into()), settlement: None };
+        let gl = GlCodes {
+            interest: Some("6100".into()),
+            accrued: Some("2300".into()),
+            settlement: None,
+        };
         let mut j = Journal::new();
         for amount in ["10.00", "15.50", "-30.00"] {
             let a = AccountEntries {
@@ -297,7 +399,12 @@ mod tests {
                 accrued_at_cutoff: Decimal::ZERO,
                 postings: vec![],
             };
-            j.add_account(&a, JournalStyle::Incremental, d("2026-11-01"), d("2026-11-30"));
+            j.add_account(
+                &a,
+                JournalStyle::Incremental,
+                d("2026-11-01"),
+                d("2026-11-30"),
+            );
         }
         let lines = j.lines();
         balanced(&lines);
@@ -322,12 +429,23 @@ mod tests {
             accrued_at_cutoff: n("500"),
             postings: vec![(d("2026-11-15"), n("400"))],
         };
-        j.add_account(&a, JournalStyle::Reversing, d("2026-11-01"), d("2026-11-30"));
+        j.add_account(
+            &a,
+            JournalStyle::Reversing,
+            d("2026-11-01"),
+            d("2026-11-30"),
+        );
         let lines = j.lines();
         balanced(&lines);
-        let rev = lines.iter().find(|l| l.date == d("2026-12-01") && l.gl_account == defaults::INTEREST_INCOME).unwrap();
+        let rev = lines
+            .iter()
+            .find(|l| l.date == d("2026-12-01") && l.gl_account == defaults::INTEREST_INCOME)
+            .unwrap();
         assert_eq!(rev.debit, n("500"));
-        let posted = lines.iter().find(|l| l.date == d("2026-11-15") && l.gl_account == defaults::INTEREST_INCOME).unwrap();
+        let posted = lines
+            .iter()
+            .find(|l| l.date == d("2026-11-15") && l.gl_account == defaults::INTEREST_INCOME)
+            .unwrap();
         assert_eq!(posted.credit, n("400"));
     }
 }

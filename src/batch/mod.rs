@@ -65,7 +65,11 @@ struct Outcome {
 /// Accrues every account of `books` (in parallel on rayon's pool) and sums
 /// the results. `tick` is called once per account, from any thread, for a
 /// progress display.
-pub fn run_books(books: &[Book], settings: &BatchSettings, tick: &(dyn Fn() + Sync)) -> BatchResult {
+pub fn run_books(
+    books: &[Book],
+    settings: &BatchSettings,
+    tick: &(dyn Fn() + Sync),
+) -> BatchResult {
     let options = RunOptions {
         window_start: settings.window_start,
         cutoff: settings.cutoff,
@@ -74,17 +78,23 @@ pub fn run_books(books: &[Book], settings: &BatchSettings, tick: &(dyn Fn() + Sy
     };
     // Amounts actually posted, summed per account and period (rows for the
     // same period are one posting: a correction and its reversal, say).
-    let actual: Vec<HashMap<&str, Vec<ActualPosting>>> = books.iter().map(actual_postings).collect();
+    let actual: Vec<HashMap<&str, Vec<ActualPosting>>> =
+        books.iter().map(actual_postings).collect();
     let work: Vec<(usize, &AccountEntry)> = books
         .iter()
         .enumerate()
         .flat_map(|(bi, b)| b.accounts.iter().map(move |a| (bi, a)))
         .collect();
-    let outcomes: Vec<Result<Outcome, Problem>> = work
+    let outcomes: Vec<Result<Outcome, Box<Problem>>> = work
         .par_iter()
         .with_min_len(64)
         .map(|&(bi, entry)| {
-            let r = accrue_one(&books[bi], entry, actual[bi].get(entry.terms.id.as_str()), options);
+            let r = accrue_one(
+                &books[bi],
+                entry,
+                actual[bi].get(entry.terms.id.as_str()),
+                options,
+            );
             tick();
             r
         })
@@ -103,15 +113,17 @@ pub fn run_books(books: &[Book], settings: &BatchSettings, tick: &(dyn Fn() + Sy
     for ((bi, entry), outcome) in work.iter().zip(outcomes) {
         match outcome {
             Ok(o) => {
-                let t = totals.entry(o.line.currency.clone()).or_insert_with(|| CurrencyTotal {
-                    currency: o.line.currency.clone(),
-                    minor_units: o.line.minor_units,
-                    accounts: 0,
-                    balance_at_cutoff: Decimal::ZERO,
-                    accrued_at_cutoff: Decimal::ZERO,
-                    posted_in_window: Decimal::ZERO,
-                    interest_for_window: Decimal::ZERO,
-                });
+                let t = totals
+                    .entry(o.line.currency.clone())
+                    .or_insert_with(|| CurrencyTotal {
+                        currency: o.line.currency.clone(),
+                        minor_units: o.line.minor_units,
+                        accounts: 0,
+                        balance_at_cutoff: Decimal::ZERO,
+                        accrued_at_cutoff: Decimal::ZERO,
+                        posted_in_window: Decimal::ZERO,
+                        interest_for_window: Decimal::ZERO,
+                    });
                 t.accounts += 1;
                 t.balance_at_cutoff += o.line.balance_at_cutoff;
                 t.accrued_at_cutoff += o.line.accrued_at_cutoff;
@@ -137,7 +149,7 @@ pub fn run_books(books: &[Book], settings: &BatchSettings, tick: &(dyn Fn() + Sy
                 result.accruals.push(o.line);
                 result.accounts_computed += 1;
             }
-            Err(p) => result.problems.push(p),
+            Err(p) => result.problems.push(*p),
         }
     }
     result.totals = totals.into_values().collect();
@@ -151,7 +163,9 @@ fn left_out_accounts(book: &Book) -> usize {
     let mut ids: Vec<&str> = book
         .problems
         .iter()
-        .filter(|p| p.severity == Severity::Error && p.position.sheet.eq_ignore_ascii_case("accounts"))
+        .filter(|p| {
+            p.severity == Severity::Error && p.position.sheet.eq_ignore_ascii_case("accounts")
+        })
         .filter_map(|p| p.account.as_deref())
         .collect();
     ids.sort_unstable();
@@ -163,11 +177,15 @@ fn left_out_accounts(book: &Book) -> usize {
 fn actual_postings(book: &Book) -> HashMap<&str, Vec<ActualPosting>> {
     let mut sums: BTreeMap<(&str, NaiveDate, NaiveDate), Decimal> = BTreeMap::new();
     for s in &book.statements {
-        *sums.entry((s.account.as_str(), s.period_start, s.period_end)).or_default() += s.posted;
+        *sums
+            .entry((s.account.as_str(), s.period_start, s.period_end))
+            .or_default() += s.posted;
     }
     let mut out: HashMap<&str, Vec<ActualPosting>> = HashMap::new();
     for ((account, start, end), amount) in sums {
-        out.entry(account).or_default().push(ActualPosting { start, end, amount });
+        out.entry(account)
+            .or_default()
+            .push(ActualPosting { start, end, amount });
     }
     out
 }
@@ -177,15 +195,20 @@ fn accrue_one(
     entry: &AccountEntry,
     actual: Option<&Vec<ActualPosting>>,
     options: RunOptions,
-) -> Result<Outcome, Problem> {
+) -> Result<Outcome, Box<Problem>> {
     let t = &entry.terms;
     let problem = |e: &EngineError| engine_problem(entry, e);
     let rates = book.rates.get(&entry.rate_ref).ok_or_else(|| {
-        problem(&EngineError::Unsupported(format!("no Rates rows for rate_ref '{}'", entry.rate_ref)))
+        problem(&EngineError::Unsupported(format!(
+            "no Rates rows for rate_ref '{}'",
+            entry.rate_ref
+        )))
     })?;
     let debit = match &entry.debit_rate_ref {
         Some(r) => Some(book.rates.get(r).ok_or_else(|| {
-            problem(&EngineError::Unsupported(format!("no Rates rows for debit_rate_ref '{r}'")))
+            problem(&EngineError::Unsupported(format!(
+                "no Rates rows for debit_rate_ref '{r}'"
+            )))
         })? as &dyn RateSource),
         None => None,
     };
@@ -239,7 +262,7 @@ fn accrue_one(
 }
 
 /// An engine error as a problem on the account's row, with a fix.
-fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
+fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Box<Problem> {
     let (expected, fix) = match e {
         EngineError::NoRate { date, .. } => (
             format!("a rate in force on {date}"),
@@ -266,12 +289,12 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
         ),
         EngineError::BadState(_) => ("a period start".to_string(), "report this as a defect".to_string()),
     };
-    Problem {
+    Box::new(Problem {
         severity: Severity::Error,
         position: entry.position.clone(),
         account: Some(entry.terms.id.clone()),
         found: format!("account {}: {e}", entry.terms.id),
         expected,
         fix,
-    }
+    })
 }

@@ -10,8 +10,10 @@
 //! month of 1,000.00 at 2.25% is 1.875) round the right way.
 
 pub mod accrual;
+pub mod causes;
 pub mod error;
 pub mod rates;
+pub mod reconcile;
 pub mod run;
 pub mod terms;
 

@@ -126,6 +126,13 @@ impl RateSchedule {
     pub fn tables(&self) -> &[RateTable] {
         &self.tables
     }
+
+    /// A schedule of whole tables (sorted here by effective date; of two
+    /// tables on one date, the later in the list wins).
+    pub fn from_tables(mut tables: Vec<RateTable>) -> RateSchedule {
+        tables.sort_by_key(|t| t.effective);
+        RateSchedule { tables }
+    }
 }
 
 impl RateSource for RateSchedule {

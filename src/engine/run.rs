@@ -59,6 +59,11 @@ pub struct DayRow {
     pub fraction: DayFraction,
     /// i(D), unrounded unless the account rounds daily.
     pub interest: Decimal,
+    /// i(D) exactly, as `interest_num / interest_den` (`interest_den` 1 when
+    /// it is already a decimal: rounded daily, or exponential).
+    pub interest_num: Decimal,
+    /// See `interest_num`.
+    pub interest_den: u32,
     /// Interest of back-valued movements earned on D, added to a later posting.
     pub back_value: Decimal,
     /// Accrued since the last posting, unrounded, after D's interest.
@@ -532,6 +537,8 @@ impl<'a> Loop<'a> {
                         rate,
                         fraction,
                         interest: interest_value,
+                        interest_num: day_interest.numerator(),
+                        interest_den: day_interest.denominator(),
                         back_value: back_value_today,
                         accrued,
                         posted: posted_today,
@@ -772,6 +779,19 @@ impl DayInterest {
         match self {
             DayInterest::Fraction(n, den) => acc.add_fraction(n, den),
             DayInterest::Amount(x) => acc.add_amount(x),
+        }
+    }
+
+    fn numerator(self) -> Decimal {
+        match self {
+            DayInterest::Fraction(n, _) | DayInterest::Amount(n) => n,
+        }
+    }
+
+    fn denominator(self) -> u32 {
+        match self {
+            DayInterest::Fraction(_, d) => d,
+            DayInterest::Amount(_) => 1,
         }
     }
 

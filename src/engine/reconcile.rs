@@ -1,0 +1,302 @@
+//! Statement reconciliation (semantics section 9): each statement period's
+//! expected interest, balance-years, variance in money and basis points, and
+//! status; and a "not posted" row for each posting the statements miss.
+//!
+//! Pure: works on an [`AccountResult`] computed with day rows. The search
+//! for a likely cause lives in [`super::causes`].
+
+use chrono::NaiveDate;
+use rust_decimal::Decimal;
+
+use super::accrual::Accrual;
+use super::run::AccountResult;
+use super::terms::AccountTerms;
+use super::EngineError;
+
+/// How far a posted amount may be from the expected one and still be accepted.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct Tolerance {
+    /// In units of the row's currency; `None`: one minor unit.
+    pub amount: Option<Decimal>,
+    /// As an annual rate gap in basis points.
+    pub bp: Decimal,
+}
+
+impl Tolerance {
+    /// The amount tolerance for a currency with `minor_units` places.
+    pub fn amount_for(&self, minor_units: u32) -> Decimal {
+        self.amount.unwrap_or_else(|| Decimal::new(1, minor_units))
+    }
+
+    /// Whether a variance is within tolerance: by amount, or by unrounded basis points.
+    pub fn accepts(
+        &self,
+        variance: Decimal,
+        variance_bp: Option<Decimal>,
+        minor_units: u32,
+    ) -> bool {
+        variance.abs() <= self.amount_for(minor_units)
+            || variance_bp.is_some_and(|bp| bp.abs() <= self.bp)
+    }
+}
+
+/// The status of a statement row, first that applies (semantics section 9).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Status {
+    /// Something was posted for a period in which no day had a base.
+    UnexpectedPosting,
+    /// Posted equals expected.
+    Agrees,
+    /// The variance is within tolerance.
+    WithinTolerance,
+    /// More was posted than expected.
+    OverPosted,
+    /// Less was posted than expected.
+    UnderPosted,
+    /// A posting period with interest that no statement row covers.
+    NotPosted,
+}
+
+impl Status {
+    /// Every status, in the order a summary lists them.
+    pub const ALL: [Status; 6] = [
+        Status::Agrees,
+        Status::WithinTolerance,
+        Status::OverPosted,
+        Status::UnderPosted,
+        Status::NotPosted,
+        Status::UnexpectedPosting,
+    ];
+
+    /// The word written in reports.
+    pub fn name(self) -> &'static str {
+        match self {
+            Status::UnexpectedPosting => "unexpected posting",
+            Status::Agrees => "agrees",
+            Status::WithinTolerance => "within tolerance",
+            Status::OverPosted => "over-posted",
+            Status::UnderPosted => "under-posted",
+            Status::NotPosted => "not posted",
+        }
+    }
+
+    /// Whether the row needs explaining.
+    pub fn is_exception(self) -> bool {
+        !matches!(self, Status::Agrees | Status::WithinTolerance)
+    }
+}
+
+/// One statement period of an account: the rows with the same period, summed.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct StatementPeriod {
+    /// First day (inclusive).
+    pub start: NaiveDate,
+    /// Last day (inclusive).
+    pub end: NaiveDate,
+    /// Interest posted (the sum of the rows).
+    pub posted: Decimal,
+    /// How many rows were summed.
+    pub rows: usize,
+}
+
+/// The expected side of a period: the engine's figures over S..E.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Expected {
+    /// The postings inside S..E plus the rounded interest of uncovered days.
+    pub amount: Decimal,
+    /// Balance-years Y = sum of B(D) x f(D).
+    pub balance_years: Decimal,
+    /// Whether any day of S..E had a non-zero base.
+    pub any_base: bool,
+}
+
+/// The engine's expected interest and balance-years over `start..=end`.
+///
+/// # Errors
+/// [`EngineError::Overflow`] past the decimal range.
+pub fn expected_over(
+    terms: &AccountTerms,
+    result: &AccountResult,
+    start: NaiveDate,
+    end: NaiveDate,
+) -> Result<Expected, EngineError> {
+    let overflow = |_| EngineError::Overflow {
+        what: "the expected interest",
+        date: end,
+    };
+    let inside: Vec<_> = result
+        .postings
+        .iter()
+        .filter(|p| p.start >= start && p.end <= end)
+        .collect();
+    let mut amount = Decimal::ZERO;
+    for p in &inside {
+        amount = amount
+            .checked_add(p.expected)
+            .ok_or(EngineError::Overflow {
+                what: "the expected interest",
+                date: p.end,
+            })?;
+    }
+    let mut uncovered = Accrual::new();
+    let mut years = Accrual::new();
+    let mut any_base = false;
+    for d in result
+        .days
+        .iter()
+        .filter(|d| d.date >= start && d.date <= end)
+    {
+        if !d.base.is_zero() {
+            any_base = true;
+        }
+        let by =
+            d.base
+                .checked_mul(Decimal::from(d.fraction.num))
+                .ok_or(EngineError::Overflow {
+                    what: "the balance-years",
+                    date: d.date,
+                })?;
+        years.add_fraction(by, d.fraction.den).map_err(overflow)?;
+        if !inside.iter().any(|p| p.start <= d.date && d.date <= p.end) {
+            uncovered
+                .add_fraction(d.interest_num, d.interest_den)
+                .map_err(overflow)?;
+        }
+    }
+    let rest = terms
+        .round_mode
+        .round(uncovered.value().map_err(overflow)?, terms.minor_units);
+    Ok(Expected {
+        amount: amount.checked_add(rest).ok_or(EngineError::Overflow {
+            what: "the expected interest",
+            date: end,
+        })?,
+        balance_years: years.value().map_err(overflow)?,
+        any_base,
+    })
+}
+
+/// One reconciled row.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Reconciled {
+    /// First day.
+    pub start: NaiveDate,
+    /// Last day.
+    pub end: NaiveDate,
+    /// Days in the period.
+    pub days: i64,
+    /// Balance-years.
+    pub balance_years: Decimal,
+    /// Expected interest.
+    pub expected: Decimal,
+    /// Posted interest (zero when not posted).
+    pub posted: Decimal,
+    /// posted - expected.
+    pub variance: Decimal,
+    /// variance / |Y| x 10,000, unrounded; `None` when Y is zero.
+    pub variance_bp: Option<Decimal>,
+    /// The status.
+    pub status: Status,
+    /// Statement rows summed into it.
+    pub rows: usize,
+}
+
+/// The variance in basis points: the annual rate gap it amounts to.
+///
+/// ```
+/// use ledgerate::engine::reconcile::variance_bp;
+/// use rust_decimal::Decimal;
+/// let d = |s: &str| s.parse::<Decimal>().unwrap();
+/// // 1 bp a year on 100.00 is 0.01 (common practice, no source).
+/// assert_eq!(variance_bp(d("0.01"), d("100")), Some(d("1")));
+/// assert_eq!(variance_bp(d("0.01"), Decimal::ZERO), None);
+/// ```
+pub fn variance_bp(variance: Decimal, balance_years: Decimal) -> Option<Decimal> {
+    if balance_years.is_zero() {
+        return None;
+    }
+    variance
+        .checked_mul(Decimal::from(10_000))
+        .and_then(|v| v.checked_div(balance_years.abs()))
+}
+
+/// Reconciles an account's statement periods, then adds a "not posted" row for
+/// each posting period ending in `window_start..=cutoff` with a non-zero
+/// expected amount and no statement period overlapping it.
+///
+/// # Errors
+/// [`EngineError::Overflow`] past the decimal range.
+pub fn reconcile(
+    terms: &AccountTerms,
+    result: &AccountResult,
+    statements: &[StatementPeriod],
+    window_start: NaiveDate,
+    cutoff: NaiveDate,
+    tolerance: &Tolerance,
+) -> Result<Vec<Reconciled>, EngineError> {
+    let mut out = Vec::new();
+    for s in statements {
+        let e = expected_over(terms, result, s.start, s.end)?;
+        let variance = s
+            .posted
+            .checked_sub(e.amount)
+            .ok_or(EngineError::Overflow {
+                what: "the variance",
+                date: s.end,
+            })?;
+        let bp = variance_bp(variance, e.balance_years);
+        let status = if !s.posted.is_zero() && !e.any_base {
+            Status::UnexpectedPosting
+        } else if variance.is_zero() {
+            Status::Agrees
+        } else if tolerance.accepts(variance, bp, terms.minor_units) {
+            Status::WithinTolerance
+        } else if variance.is_sign_positive() {
+            Status::OverPosted
+        } else {
+            Status::UnderPosted
+        };
+        out.push(Reconciled {
+            start: s.start,
+            end: s.end,
+            days: (s.end - s.start).num_days() + 1,
+            balance_years: e.balance_years,
+            expected: e.amount,
+            posted: s.posted,
+            variance,
+            variance_bp: bp,
+            status,
+            rows: s.rows,
+        });
+    }
+    if !statements.is_empty() {
+        for p in result
+            .postings
+            .iter()
+            .filter(|p| p.end >= window_start && p.end <= cutoff && !p.expected.is_zero())
+        {
+            let covered = statements
+                .iter()
+                .any(|s| s.start <= p.end && p.start <= s.end);
+            if covered {
+                continue;
+            }
+            let e = expected_over(terms, result, p.start, p.end)?;
+            let zero = terms.round_mode.round(Decimal::ZERO, terms.minor_units);
+            let variance = zero - e.amount;
+            out.push(Reconciled {
+                start: p.start,
+                end: p.end,
+                days: (p.end - p.start).num_days() + 1,
+                balance_years: e.balance_years,
+                expected: e.amount,
+                posted: zero,
+                variance,
+                variance_bp: variance_bp(variance, e.balance_years),
+                status: Status::NotPosted,
+                rows: 0,
+            });
+        }
+    }
+    Ok(out)
+}
