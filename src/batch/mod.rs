@@ -14,11 +14,15 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
-use crate::book::{AccountEntry, Book, Problem, Severity};
+use crate::book::{AccountEntry, Book, Position, Problem, Severity, StatementRow};
+use crate::engine::causes::{likely_cause, Account};
 use crate::engine::rates::RateSource;
+use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, Tolerance};
 use crate::engine::run::{accrue, AccountResult, RunOptions, Sources};
 use crate::engine::{ActualPosting, EngineError};
-use crate::report::model::{AccrualLine, CurrencyTotal, DailyLine, JournalLine};
+use crate::report::model::{
+    AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount,
+};
 use journal::{AccountEntries, Journal, JournalStyle};
 
 /// What the batch needs besides the books.
@@ -34,6 +38,8 @@ pub struct BatchSettings {
     pub journal_style: JournalStyle,
     /// The entity of each book, by book index.
     pub entities: Vec<String>,
+    /// Reconciliation tolerances.
+    pub tolerance: Tolerance,
 }
 
 /// The batch's figures, ready for the report.
@@ -47,6 +53,10 @@ pub struct BatchResult {
     pub journal: Vec<JournalLine>,
     /// Daily lines, when asked for.
     pub daily: Option<Vec<DailyLine>>,
+    /// Reconciliation rows, by account in book order.
+    pub reconciliation: Vec<ReconciliationLine>,
+    /// Rows by status, in the order of [`Status::ALL`] (statuses with rows only).
+    pub status_counts: Vec<StatusCount>,
     /// Problems the engine found (book problems stay with their books).
     pub problems: Vec<Problem>,
     /// Accounts in the books, counting those the reader left out.
@@ -60,6 +70,8 @@ struct Outcome {
     line: AccrualLine,
     entries: (String, Vec<(NaiveDate, Decimal)>),
     daily: Vec<DailyLine>,
+    reconciliation: Vec<(Status, ReconciliationLine)>,
+    notes: Vec<Problem>,
 }
 
 /// Accrues every account of `books` (in parallel on rayon's pool) and sums
@@ -94,6 +106,7 @@ pub fn run_books(
                 entry,
                 actual[bi].get(entry.terms.id.as_str()),
                 options,
+                &settings.tolerance,
             );
             tick();
             r
@@ -110,6 +123,7 @@ pub fn run_books(
     let mut journal = Journal::new();
     let mut totals: BTreeMap<String, CurrencyTotal> = BTreeMap::new();
     let mut daily = Vec::new();
+    let mut counts: BTreeMap<Status, usize> = BTreeMap::new();
     for ((bi, entry), outcome) in work.iter().zip(outcomes) {
         match outcome {
             Ok(o) => {
@@ -146,6 +160,11 @@ pub fn run_books(
                     settings.cutoff,
                 );
                 daily.extend(o.daily);
+                for (status, line) in o.reconciliation {
+                    *counts.entry(status).or_insert(0usize) += 1;
+                    result.reconciliation.push(line);
+                }
+                result.problems.extend(o.notes);
                 result.accruals.push(o.line);
                 result.accounts_computed += 1;
             }
@@ -153,6 +172,15 @@ pub fn run_books(
         }
     }
     result.totals = totals.into_values().collect();
+    result.status_counts = Status::ALL
+        .iter()
+        .filter_map(|st| {
+            counts.get(st).map(|&rows| StatusCount {
+                status: st.name().to_string(),
+                rows,
+            })
+        })
+        .collect();
     result.journal = journal.lines();
     result.daily = settings.daily.then_some(daily);
     result
@@ -195,8 +223,17 @@ fn accrue_one(
     entry: &AccountEntry,
     actual: Option<&Vec<ActualPosting>>,
     options: RunOptions,
+    tolerance: &Tolerance,
 ) -> Result<Outcome, Box<Problem>> {
     let t = &entry.terms;
+    let (periods, notes) = statement_periods(book, entry, options.cutoff);
+    // Day rows are kept for reconciliation; the Daily sheet gets them only when asked for.
+    let keep_daily = options.keep_days;
+    let options = RunOptions {
+        keep_days: options.keep_days || !periods.is_empty(),
+        keep_states: !periods.is_empty(),
+        ..options
+    };
     let problem = |e: &EngineError| engine_problem(entry, e);
     let rates = book.rates.get(&entry.rate_ref).ok_or_else(|| {
         problem(&EngineError::Unsupported(format!(
@@ -220,6 +257,35 @@ fn accrue_one(
         actual: actual.map_or(&[][..], Vec::as_slice),
     };
     let r: AccountResult = accrue(t, sources, options).map_err(|e| problem(&e))?;
+    let rows = reconcile(
+        t,
+        &r,
+        &periods,
+        options.window_start,
+        options.cutoff,
+        tolerance,
+    )
+    .map_err(|e| problem(&e))?;
+    let account = Account {
+        terms: t,
+        rates,
+        debit_rates: entry
+            .debit_rate_ref
+            .as_ref()
+            .and_then(|d| book.rates.get(d)),
+        movements,
+        actual: sources.actual,
+        states: &r.states,
+    };
+    let reconciliation = rows
+        .iter()
+        .map(|row| {
+            (
+                row.status,
+                reconciliation_line(entry, &account, row, tolerance),
+            )
+        })
+        .collect();
     let postings = r
         .postings
         .iter()
@@ -229,6 +295,7 @@ fn accrue_one(
     let daily = r
         .days
         .iter()
+        .filter(|_| keep_daily)
         .map(|d| DailyLine {
             account: t.id.clone(),
             minor_units: t.minor_units,
@@ -258,7 +325,97 @@ fn accrue_one(
         },
         entries: (t.id.clone(), postings),
         daily,
+        reconciliation,
+        notes,
     })
+}
+
+/// The account's statement rows grouped by period (rows with the same
+/// period are one posting), leaving out rows that end after the cut-off.
+fn statement_periods(
+    book: &Book,
+    entry: &AccountEntry,
+    cutoff: NaiveDate,
+) -> (Vec<StatementPeriod>, Vec<Problem>) {
+    let mut groups: BTreeMap<(NaiveDate, NaiveDate), (Decimal, Vec<&StatementRow>)> =
+        BTreeMap::new();
+    let mut notes = Vec::new();
+    for s in book
+        .statements
+        .iter()
+        .filter(|s| s.account == entry.terms.id)
+    {
+        if s.period_end > cutoff {
+            notes.push(Problem {
+                severity: Severity::Warning,
+                position: s.position.clone(),
+                account: Some(s.account.clone()),
+                found: format!(
+                    "a statement period {}..{} ending after the cut-off {cutoff}",
+                    s.period_start, s.period_end
+                ),
+                expected: "statement periods that end on or before the cut-off".to_string(),
+                fix: "run with a later --cutoff to reconcile it; this row is not reconciled"
+                    .to_string(),
+            });
+            continue;
+        }
+        let g = groups
+            .entry((s.period_start, s.period_end))
+            .or_insert((Decimal::ZERO, Vec::new()));
+        g.0 += s.posted;
+        g.1.push(s);
+    }
+    let periods = groups
+        .into_iter()
+        .map(|((start, end), (posted, rows))| {
+            if rows.len() > 1 {
+                let first: Position = rows.first().map(|r| r.position.clone()).unwrap_or_default();
+                notes.push(Problem {
+                    severity: Severity::Note,
+                    position: first,
+                    account: Some(entry.terms.id.clone()),
+                    found: format!("{} statement rows for {start}..{end}", rows.len()),
+                    expected: "one row per posting period".to_string(),
+                    fix: format!("they are summed into one posting of {posted} (a correction and its reversal, say)"),
+                });
+            }
+            StatementPeriod { start, end, posted, rows: rows.len() }
+        })
+        .collect();
+    (periods, notes)
+}
+
+fn reconciliation_line(
+    entry: &AccountEntry,
+    account: &Account,
+    row: &Reconciled,
+    tolerance: &Tolerance,
+) -> ReconciliationLine {
+    let t = &entry.terms;
+    let cause = match row.status {
+        Status::Agrees | Status::WithinTolerance => String::new(),
+        Status::NotPosted => "no statement row covers this posting period".to_string(),
+        Status::UnexpectedPosting => {
+            "no day of the period had a balance earning interest".to_string()
+        }
+        Status::OverPosted | Status::UnderPosted => likely_cause(account, row, tolerance),
+    };
+    ReconciliationLine {
+        account: t.id.clone(),
+        currency: t.currency.clone(),
+        minor_units: t.minor_units,
+        period_start: row.start,
+        period_end: row.end,
+        days: row.days,
+        balance_years: row.balance_years,
+        expected: row.expected,
+        posted: row.posted,
+        variance: row.variance,
+        variance_bp: row.variance_bp.map(|bp| bp.round_dp(4)),
+        status: row.status.name().to_string(),
+        likely_cause: cause,
+    }
 }
 
 /// An engine error as a problem on the account's row, with a fix.
@@ -298,3 +455,6 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Box<Problem> {
         fix,
     })
 }
+
+#[cfg(test)]
+mod tests;

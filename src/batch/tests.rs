@@ -1,0 +1,208 @@
+//! The batch on hand-built books: journal balance, book order, determinism
+//! across thread counts, and reconciliation wiring.
+
+use std::collections::BTreeMap;
+
+use super::*;
+use crate::book::GlCodes;
+use crate::conventions::daycount::Basis;
+use crate::engine::rates::RateSchedule;
+use crate::engine::{AccountTerms, Movement, Side};
+
+fn d(s: &str) -> NaiveDate {
+    s.parse().unwrap()
+}
+
+fn n(s: &str) -> Decimal {
+    s.parse().unwrap()
+}
+
+fn entry(id: &str, ccy: &str, minor: u32, side: Side, basis: Basis, balance: &str) -> AccountEntry {
+    let mut terms = AccountTerms::new(id, ccy, minor, basis, d("2026-10-01"), n(balance));
+    terms.side = side;
+    AccountEntry {
+        terms,
+        name: format!("account {id}"),
+        rate_ref: "R".into(),
+        debit_rate_ref: None,
+        gl: GlCodes::default(),
+        position: Position {
+            book: "test.xlsx".into(),
+            sheet: "Accounts".into(),
+            cell: "A2".into(),
+        },
+    }
+}
+
+fn book(count: usize) -> Book {
+    let mut b = Book::default();
+    let mut rates = BTreeMap::new();
+    rates.insert(
+        "R".to_string(),
+        RateSchedule::from_rows([
+            (d("2026-01-01"), n("0.0425"), Decimal::ZERO),
+            (d("2026-11-16"), n("0.04"), Decimal::ZERO),
+        ]),
+    );
+    b.rates = rates;
+    for i in 0..count {
+        let (ccy, minor) = [("USD", 2), ("JPY", 0), ("KWD", 3)][i % 3];
+        let side = if i % 2 == 0 {
+            Side::Liability
+        } else {
+            Side::Asset
+        };
+        let basis = Basis::ALL[i % 4];
+        let bal = format!("{}.{:02}", 1000 + i * 7919, i % 100);
+        let bal = if minor == 0 {
+            format!("{}", 100_000 + i * 7919)
+        } else {
+            bal
+        };
+        let e = entry(&format!("B-{i:04}"), ccy, minor, side, basis, &bal);
+        b.movements.insert(
+            e.terms.id.clone(),
+            vec![Movement {
+                value_date: d("2026-11-10"),
+                amount: Decimal::from(i as i64 * 13),
+                booking_date: None,
+                reference: None,
+            }],
+        );
+        b.accounts.push(e);
+    }
+    b
+}
+
+fn settings() -> BatchSettings {
+    BatchSettings {
+        cutoff: d("2026-11-30"),
+        window_start: d("2026-11-01"),
+        daily: false,
+        journal_style: JournalStyle::Incremental,
+        entities: vec!["HM".into()],
+        tolerance: Tolerance::default(),
+    }
+}
+
+/// Debits equal credits per currency (semantics section 7).
+#[test]
+fn journal_debits_equal_credits_per_currency() {
+    for style in [JournalStyle::Incremental, JournalStyle::Reversing] {
+        let s = BatchSettings {
+            journal_style: style,
+            ..settings()
+        };
+        let r = run_books(&[book(60)], &s, &|| {});
+        assert_eq!(r.accounts_computed, 60);
+        let mut sums: BTreeMap<String, (Decimal, Decimal)> = BTreeMap::new();
+        for l in &r.journal {
+            let e = sums.entry(l.currency.clone()).or_default();
+            e.0 += l.debit;
+            e.1 += l.credit;
+        }
+        assert_eq!(sums.len(), 3);
+        for (c, (dr, cr)) in sums {
+            assert_eq!(dr, cr, "{style:?} {c}");
+        }
+    }
+}
+
+/// Results come in book order and are the same on one thread or several.
+#[test]
+fn results_do_not_depend_on_the_thread_count() {
+    let books = [book(300)];
+    let one = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .unwrap()
+        .install(|| run_books(&books, &settings(), &|| {}));
+    let two = rayon::ThreadPoolBuilder::new()
+        .num_threads(2)
+        .build()
+        .unwrap()
+        .install(|| run_books(&books, &settings(), &|| {}));
+    assert_eq!(one.accruals, two.accruals);
+    assert_eq!(one.journal, two.journal);
+    assert_eq!(one.totals, two.totals);
+    let ids: Vec<&str> = one.accruals.iter().map(|a| a.account.as_str()).collect();
+    let mut sorted = ids.clone();
+    sorted.sort_unstable();
+    assert_eq!(ids, sorted);
+}
+
+/// The window's interest of every account adds up to the currency total.
+#[test]
+fn totals_are_the_sum_of_the_accounts() {
+    let r = run_books(&[book(30)], &settings(), &|| {});
+    for t in &r.totals {
+        let sum: Decimal = r
+            .accruals
+            .iter()
+            .filter(|a| a.currency == t.currency)
+            .map(|a| a.interest_for_window)
+            .sum();
+        assert_eq!(sum, t.interest_for_window);
+        assert_eq!(t.accounts, 10);
+    }
+}
+
+#[test]
+fn an_account_without_rates_is_a_problem_on_its_row() {
+    let mut b = book(2);
+    b.accounts[1].rate_ref = "MISSING".into();
+    let r = run_books(&[b], &settings(), &|| {});
+    assert_eq!(r.accounts_computed, 1);
+    assert_eq!(r.problems.len(), 1);
+    assert_eq!(r.problems[0].position.cell, "A2");
+    assert!(
+        r.problems[0]
+            .found
+            .contains("no Rates rows for rate_ref 'MISSING'"),
+        "{}",
+        r.problems[0]
+    );
+}
+
+/// Statement rows for one period are summed, reconciled and explained; a
+/// posting period that no row covers is "not posted".
+#[test]
+fn statements_are_reconciled_with_causes() {
+    let mut b = book(1);
+    b.accounts[0].terms.basis = Basis::Act360;
+    b.movements.clear();
+    let row = |start: &str, end: &str, posted: &str| StatementRow {
+        account: "B-0000".into(),
+        period_start: d(start),
+        period_end: d(end),
+        posted: n(posted),
+        reference: None,
+        position: Position {
+            book: "test.xlsx".into(),
+            sheet: "Statements".into(),
+            cell: "A2".into(),
+        },
+    };
+    // 1,000.00 at 4.25% on ACT/360 for November to the 15th and 4% after: 1.7708 + 1.6667.
+    b.statements = vec![
+        row("2026-11-01", "2026-11-30", "3.00"),
+        row("2026-11-01", "2026-11-30", "0.40"),
+    ];
+    let r = run_books(&[b.clone()], &settings(), &|| {});
+    assert_eq!(r.reconciliation.len(), 1, "{:?}", r.reconciliation);
+    let line = &r.reconciliation[0];
+    assert_eq!(line.posted, n("3.40"));
+    assert_eq!(line.expected, n("3.44"));
+    assert_eq!(line.status, "under-posted");
+    assert!(!line.likely_cause.is_empty());
+    assert!(r
+        .problems
+        .iter()
+        .any(|p| p.severity == Severity::Note && p.found.contains("2 statement rows")));
+    // Only October on the statement: November is not posted.
+    b.statements = vec![row("2026-10-01", "2026-10-31", "3.66")];
+    let r = run_books(&[b], &settings(), &|| {});
+    let statuses: Vec<&str> = r.reconciliation.iter().map(|l| l.status.as_str()).collect();
+    assert_eq!(statuses, ["agrees", "not posted"]);
+    assert_eq!(r.status_counts.len(), 2);
+}
