@@ -8,4 +8,6 @@
 
 pub mod model;
 
-pub use model::{AccountEntry, Book, GlCodes, Position, Problem, Severity, SettingRow, StatementRow};
+pub use model::{
+    AccountEntry, Book, GlCodes, Position, Problem, SettingRow, Severity, StatementRow,
+};
