@@ -99,7 +99,7 @@ fn stripped(d: Decimal) -> (u128, i32) {
     if m == 0 {
         return (0, 0);
     }
-    while m % 10 == 0 {
+    while m.is_multiple_of(10) {
         m /= 10;
         e = e.saturating_add(1);
     }
@@ -329,14 +329,20 @@ impl<'a> Cells<'a> {
         Ok(())
     }
 
-    /// Header labels from column 0 of the current row. Their widths are left
+    /// Header labels from column 0 of the current row; the columns listed in
+    /// `figures` are right-aligned over their figures. Their widths are left
     /// to [`super::layout::column_width`], which adds room for the filter button.
-    pub fn header(&mut self, labels: &[&str]) -> Result<(), ReportError> {
+    pub fn header(&mut self, labels: &[&str], figures: &[ColNum]) -> Result<(), ReportError> {
         let styles = self.styles;
         let row = self.row;
         for (col, label) in (0..).zip(labels) {
+            let format = if figures.contains(&col) {
+                &styles.header_right
+            } else {
+                &styles.header
+            };
             self.ws
-                .write_string_with_format(row, col, *label, &styles.header)
+                .write_string_with_format(row, col, *label, format)
                 .map_err(at(self.sheet, row))?;
         }
         Ok(())

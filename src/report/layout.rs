@@ -4,7 +4,7 @@
 //! Layout only. Nothing here reads or changes a figure; number formats say how
 //! many decimals a spreadsheet shows, never what the value is.
 
-use rust_xlsxwriter::{Color, Format, FormatAlign, FormatBorder};
+use rust_xlsxwriter::{Color, Format, FormatAlign, FormatBorder, Worksheet, XlsxError};
 
 /// Rows a worksheet holds, header included (the spreadsheet format's limit).
 pub const SHEET_ROW_LIMIT: u32 = 1_048_576;
@@ -76,6 +76,20 @@ pub fn place(index: usize, limits: &Limits) -> (usize, u32) {
     let per = limits.data_rows_per_sheet();
     let row = u32::try_from(index % per).unwrap_or(u32::MAX);
     (index / per, row.saturating_add(1))
+}
+
+/// Print setup: landscape, optionally one page wide, and for a list the
+/// header row repeated on each printed page.
+pub fn print_setup(ws: &mut Worksheet, list: bool, one_page_wide: bool) -> Result<(), XlsxError> {
+    ws.set_landscape();
+    ws.set_paper_size(9); // A4; a letter-size printer scales it
+    if one_page_wide {
+        ws.set_print_fit_to_pages(1, 0);
+    }
+    if list {
+        ws.set_repeat_rows(0, 0)?;
+    }
+    Ok(())
 }
 
 /// A sheet name as a formula reference: quoted when it holds anything but
@@ -191,6 +205,10 @@ pub fn amount_format_code(decimals: u32, blank_zero: bool) -> String {
 pub struct Styles {
     /// Header cells of a list.
     pub header: Format,
+    /// Header cells over figures: right-aligned like the figures.
+    pub header_right: Format,
+    /// Long text that wraps within its column (Problems).
+    pub wrap: Format,
     /// Title of the Summary.
     pub title: Format,
     /// Section headings of Summary and Run.
@@ -239,6 +257,13 @@ impl Styles {
                 .set_background_color(Color::RGB(palette::HEADER))
                 .set_border_bottom(FormatBorder::Thin)
                 .set_border_bottom_color(Color::RGB(palette::RULE)),
+            header_right: Format::new()
+                .set_bold()
+                .set_align(FormatAlign::Right)
+                .set_background_color(Color::RGB(palette::HEADER))
+                .set_border_bottom(FormatBorder::Thin)
+                .set_border_bottom_color(Color::RGB(palette::RULE)),
+            wrap: Format::new().set_text_wrap().set_align(FormatAlign::Top),
             title: Format::new().set_bold().set_font_size(14),
             section: Format::new()
                 .set_bold()
@@ -285,8 +310,12 @@ impl Styles {
                     )
                 })
                 .collect(),
-            error_row: Format::new().set_background_color(Color::RGB(palette::ERROR)),
-            warning_row: Format::new().set_background_color(Color::RGB(palette::WARNING)),
+            error_row: Format::new()
+                .set_align(FormatAlign::Top)
+                .set_background_color(Color::RGB(palette::ERROR)),
+            warning_row: Format::new()
+                .set_align(FormatAlign::Top)
+                .set_background_color(Color::RGB(palette::WARNING)),
         }
     }
 

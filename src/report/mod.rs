@@ -6,13 +6,13 @@
 //! temporary file beside the target and renames it into place only when
 //! complete.
 //!
-//! * [`workbook`]: the sheets of the reconciliation workbook and where each
-//!   figure goes; [`write_report`].
-//! * [`cells`]: the one border where a decimal becomes a spreadsheet number
-//!   (the only module that names `f64`), and the 15-digit rule.
-//! * [`layout`]: formats, palette, column widths, continuation sheets.
-//! * [`template`]: [`write_template`].
-//! * [`output`] (private): temporary file, flush, rename.
+//! * [`workbook`] holds the sheets of the reconciliation workbook and where
+//!   each figure goes ([`write_report`]).
+//! * [`cells`] is the one border where a decimal becomes a spreadsheet number
+//!   (the only module that names `f64`), with the 15-digit rule.
+//! * [`layout`] has the formats, palette, column widths and continuation sheets.
+//! * [`template`] writes the blank input book ([`write_template`]).
+//! * `output` (private) does the temporary file, flush and rename.
 
 pub mod cells;
 mod error;

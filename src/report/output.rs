@@ -45,6 +45,24 @@ pub(crate) fn check_not_input(target: &Path, inputs: &[InputFile]) -> Result<(),
     Ok(())
 }
 
+/// The permissions the output gets: those of the file it replaces, else those
+/// of any new file (0o666 less the umask), not the temporary file's owner-only
+/// default, so that a shared folder's readers can open it.
+fn output_permissions(target: &Path) -> Option<std::fs::Permissions> {
+    if let Ok(meta) = std::fs::metadata(target) {
+        return Some(meta.permissions());
+    }
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        Some(std::fs::Permissions::from_mode(0o666))
+    }
+    #[cfg(not(unix))]
+    {
+        None
+    }
+}
+
 /// Saves `wb` to `target` through a temporary file in `dir`.
 pub(crate) fn save_atomically(
     wb: &mut Workbook,
@@ -59,9 +77,12 @@ pub(crate) fn save_atomically(
             source,
         }
     };
-    let mut tmp = tempfile::Builder::new()
-        .prefix(".ledgerate-")
-        .suffix(".partial")
+    let mut builder = tempfile::Builder::new();
+    builder.prefix(".ledgerate-").suffix(".partial");
+    if let Some(p) = output_permissions(target) {
+        builder.permissions(p);
+    }
+    let mut tmp = builder
         .tempfile_in(dir)
         .map_err(io("create a temporary file in", dir))?;
     {

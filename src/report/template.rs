@@ -398,6 +398,8 @@ fn write_sheet(
 ) -> Result<(), ReportError> {
     let fail = |e| ReportError::sheet(name, e);
     ws.set_freeze_panes(1, 0).map_err(fail)?;
+    // Many columns: printed across pages rather than shrunk to one.
+    layout::print_setup(ws, true, false).map_err(fail)?;
     let mut scratch = TextFigures::default();
     for (c, column) in (0..).zip(columns) {
         ws.set_column_format(c, formats.of(column.kind))
@@ -419,7 +421,7 @@ fn write_sheet(
     }
     let mut cells = Cells::new(ws, name, styles, &mut scratch);
     let labels: Vec<&str> = columns.iter().map(|c| c.name).collect();
-    cells.at(0).header(&labels)?;
+    cells.at(0).header(&labels, &[])?;
     let mut widths: Vec<usize> = Vec::new();
     if name == "Settings" {
         for (row, (setting, example, _, _)) in (1..).zip(SETTING_ROWS) {

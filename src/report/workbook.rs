@@ -307,7 +307,7 @@ fn problems_sheet<'p>() -> ListSheet<&'p Problem> {
     ListSheet {
         name: "Problems",
         header: &PROBLEMS_HEADER,
-        caps: &[10, 40, 16, 10, 40, 50, 90],
+        caps: &[10, 40, 16, 10, 40, 50, 80],
         row: problem_row,
     }
 }
@@ -336,10 +336,12 @@ fn write_list<T>(
         // Sheet-wide settings first: the header row is flushed once row 1 starts.
         ws.set_freeze_panes(1, 0)
             .map_err(|e| ReportError::sheet(&name, e))?;
+        layout::print_setup(ws, true, true).map_err(|e| ReportError::sheet(&name, e))?;
         ws.autofilter(0, 0, last_row, last_col)
             .map_err(|e| ReportError::sheet(&name, e))?;
         let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
-        cells.at(0).header(list.header)?;
+        // Left-aligned: a filter button sits at the right of each header cell.
+        cells.at(0).header(list.header, &[])?;
         for (row, item) in (1..).zip(part.iter()) {
             cells.at(row);
             (list.row)(&mut cells, item)?;
@@ -436,9 +438,10 @@ fn problem_row(c: &mut Cells<'_>, p: &&Problem) -> Result<(), ReportError> {
     c.text(1, &p.position.book)?;
     c.text(2, &p.position.sheet)?;
     c.text(3, &p.position.cell)?;
-    c.text(4, &p.found)?;
-    c.text(5, &p.expected)?;
-    c.text(6, &p.fix)?;
+    // Long explanations wrap inside their capped columns.
+    c.text_as(4, &p.found, &styles.wrap)?;
+    c.text_as(5, &p.expected, &styles.wrap)?;
+    c.text_as(6, &p.fix, &styles.wrap)?;
     Ok(())
 }
 
@@ -596,6 +599,7 @@ fn write_summary(
     texts: &mut TextFigures,
 ) -> Result<SummaryPlaces, ReportError> {
     let facts = &report.facts;
+    layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Summary", e))?;
     let mut c = Cells::new(ws, "Summary", styles, texts);
     c.at(0).text_spilling(
         0,
@@ -653,7 +657,7 @@ fn write_summary(
     row += 2;
     section(&mut c, row, "Totals by currency", SUMMARY_COLS)?;
     row += 1;
-    c.at(row).header(&TOTALS_HEADER)?;
+    c.at(row).header(&TOTALS_HEADER, &[1, 2, 3, 4, 5])?;
     for t in &report.totals {
         row += 1;
         c.at(row).text(0, &t.currency)?;
@@ -668,7 +672,7 @@ fn write_summary(
         row += 2;
         section(&mut c, row, "Counts by status", 2)?;
         row += 1;
-        c.at(row).header(&["Status", "Rows"])?;
+        c.at(row).header(&["Status", "Rows"], &[1])?;
         for s in &report.status_counts {
             row += 1;
             let fill = styles.status(&s.status).unwrap_or(&styles.text);
@@ -693,7 +697,7 @@ fn write_summary(
     // The caution's rows: tall enough for its lines at these widths.
     for r in 1..=4 {
         c.sheet()
-            .set_row_height(r, 22)
+            .set_row_height(r, 18)
             .map_err(|e| ReportError::sheet("Summary", e))?;
     }
 
@@ -775,8 +779,9 @@ fn write_run(
     texts: &mut TextFigures,
 ) -> Result<RowNum, ReportError> {
     let facts = &report.facts;
+    layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Run", e))?;
     let mut c = Cells::new(ws, "Run", styles, texts);
-    c.at(0).header(&["Item", "Value"])?;
+    c.at(0).header(&["Item", "Value"], &[])?;
     c.at(1).text(0, "Program version")?;
     c.text(1, &facts.program)?;
     c.at(2).text(0, "Command line")?;
@@ -785,7 +790,8 @@ fn write_run(
     c.datetime(1, facts.run_time)?;
 
     let mut row: RowNum = 5;
-    c.at(row).header(&["Input", "Size (bytes)", "SHA-256"])?;
+    c.at(row)
+        .header(&["Input", "Size (bytes)", "SHA-256"], &[1])?;
     for input in &facts.inputs {
         row += 1;
         c.at(row).text(0, &input.path)?;
@@ -793,7 +799,7 @@ fn write_run(
         c.text(2, &input.sha256)?;
     }
     row += 2;
-    c.at(row).header(&["Setting", "Value", "Source"])?;
+    c.at(row).header(&["Setting", "Value", "Source"], &[])?;
     for s in &facts.settings {
         row += 1;
         c.at(row).text(0, &s.name)?;
