@@ -114,7 +114,8 @@ pub fn sheet_ref(name: &str) -> String {
 ///
 /// ```
 /// use ledgerate::report::layout::column_width;
-/// assert_eq!(column_width("Date", 10, 60), 13);
+/// assert_eq!(column_width("Date", 10, 60), 12); // the widest value, plus padding
+/// assert_eq!(column_width("Balance at cut-off", 4, 60), 23); // the header and its filter button
 /// assert_eq!(column_width("Memo", 500, 60), 60);
 /// ```
 pub fn column_width(header: &str, content: usize, cap: usize) -> u16 {

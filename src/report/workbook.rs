@@ -220,6 +220,12 @@ pub(crate) fn write_report_with(
         write_summary(ws, report, chart.as_ref(), &styles, &mut ctx.texts)?
     };
 
+    // Run goes last but is built now, so that its figures join the note.
+    let mut run = Worksheet::new();
+    run.set_name("Run")
+        .map_err(|e| ReportError::sheet("Run", e))?;
+    let run_rows = write_run(&mut run, report, &styles, &mut ctx.texts)?;
+
     // Every figure is written by now: say once which ones are text.
     let note = text_figure_problem(&ctx.texts, target);
     let mut problems: Vec<&Problem> = report.problems.iter().collect();
@@ -236,12 +242,7 @@ pub(crate) fn write_report_with(
         s.rows = usize::try_from(summary.rows_used).unwrap_or(usize::MAX);
     }
 
-    let run_rows = {
-        let ws = wb.add_worksheet();
-        ws.set_name("Run")
-            .map_err(|e| ReportError::sheet("Run", e))?;
-        write_run(ws, report, &styles, &mut ctx.texts)?
-    };
+    wb.push_worksheet(run);
     ctx.sheets.push(SheetRows {
         name: "Run".into(),
         rows: usize::try_from(run_rows).unwrap_or(usize::MAX),
