@@ -1,7 +1,31 @@
-//! Writing the output workbook from a [`model::Report`].
+//! Writing the output workbook from a [`model::Report`], and the blank input
+//! book of `ledgerate template`.
 //!
-//! The writer only lays out figures it is given; it computes nothing but
-//! formats. It writes to a temporary file beside the target and renames it
-//! into place only when complete.
+//! The writer only lays out figures it is given: it computes nothing but
+//! layout and formats, reads no clock and no input book. It writes to a
+//! temporary file beside the target and renames it into place only when
+//! complete.
+//!
+//! * [`workbook`] holds the sheets of the reconciliation workbook and where
+//!   each figure goes ([`write_report`]).
+//! * [`cells`] is the one border where a decimal becomes a spreadsheet number
+//!   (the only module that names `f64`), with the 15-digit rule.
+//! * [`layout`] has the formats, palette, column widths and continuation sheets.
+//! * [`template`] writes the blank input book ([`write_template`]).
+//! * `output` (private) does the temporary file, flush and rename.
 
+pub mod cells;
+mod error;
+pub mod layout;
 pub mod model;
+mod output;
+pub mod template;
+pub mod workbook;
+
+#[cfg(test)]
+mod tests;
+
+pub use cells::TextFigure;
+pub use error::ReportError;
+pub use template::write_template;
+pub use workbook::{write_report, SheetRows, WriteOutcome};

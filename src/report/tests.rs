@@ -1,0 +1,327 @@
+//! Writer tests that need the internal limits: continuation sheets with a
+//! small row limit, the chart's references, the text-figure note.
+
+use std::str::FromStr;
+
+use calamine::{open_workbook, Data, Reader, Xlsx};
+use chrono::{NaiveDate, NaiveDateTime};
+use rust_decimal::Decimal;
+
+use super::layout::Limits;
+use super::model::*;
+use super::workbook::{write_report_with, DAILY_HEADER, JOURNAL_HEADER};
+
+fn dec(s: &str) -> Decimal {
+    Decimal::from_str(s).unwrap()
+}
+
+fn day(d: u32) -> NaiveDate {
+    NaiveDate::from_ymd_opt(2024, 3, d).unwrap()
+}
+
+fn facts() -> RunFacts {
+    RunFacts {
+        program: "ledgerate 0.1.0".into(),
+        command_line: "ledgerate run book.xlsx".into(),
+        inputs: vec![],
+        settings: vec![],
+        run_time: NaiveDateTime::parse_from_str("2024-04-01 09:30:00", "%Y-%m-%d %H:%M:%S")
+            .unwrap(),
+        cutoff: day(31),
+        window_start: day(1),
+        accounts_read: 1,
+        accounts_computed: 1,
+        accounts_failed: 0,
+    }
+}
+
+fn daily(n: u32) -> Vec<DailyLine> {
+    (1..=n)
+        .map(|d| DailyLine {
+            account: "A-1".into(),
+            minor_units: 2,
+            date: day(d),
+            balance: dec("1000.00"),
+            base: dec("1000.00"),
+            rate: dec("0.05"),
+            day_fraction: Decimal::ONE / Decimal::from(360),
+            interest: dec("0.1388888888888888888888888889"),
+            accrued: Decimal::from(d) * dec("0.1388888888888888888888888889"),
+        })
+        .collect()
+}
+
+fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
+    ReconciliationLine {
+        account: format!("A-{status}"),
+        currency: "USD".into(),
+        minor_units: 2,
+        period_start: day(1),
+        period_end: day(31),
+        days: 31,
+        balance_years: dec("84.93"),
+        expected: dec("4.25"),
+        posted: dec("4.19"),
+        variance: dec("-0.06"),
+        variance_bp: bp.map(dec),
+        status: status.into(),
+        likely_cause: String::new(),
+    }
+}
+
+fn report() -> Report {
+    Report {
+        facts: facts(),
+        totals: vec![],
+        accruals: vec![],
+        reconciliation: vec![],
+        status_counts: vec![],
+        journal: vec![],
+        daily: None,
+        problems: vec![],
+    }
+}
+
+fn sheet_names(path: &std::path::Path) -> Vec<String> {
+    let wb: Xlsx<_> = open_workbook(path).unwrap();
+    wb.sheet_names()
+}
+
+fn rows(path: &std::path::Path, sheet: &str) -> Vec<Vec<Data>> {
+    let mut wb: Xlsx<_> = open_workbook(path).unwrap();
+    let range = wb.worksheet_range(sheet).unwrap();
+    range.rows().map(|r| r.to_vec()).collect()
+}
+
+fn header(rows: &[Vec<Data>]) -> Vec<String> {
+    rows[0].iter().map(|d| d.to_string()).collect()
+}
+
+#[test]
+fn a_long_list_continues_on_numbered_sheets_with_the_header_repeated() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    r.daily = Some(daily(7));
+    let limits = Limits {
+        rows_per_sheet: 4, // header + 3 rows
+        ..Limits::default()
+    };
+    let outcome = write_report_with(&r, &target, &limits).unwrap();
+    assert_eq!(
+        sheet_names(&target),
+        vec!["Summary", "Accruals", "Journal", "Daily", "Daily 2", "Daily 3", "Problems", "Run"]
+    );
+    let counts: Vec<(String, usize)> = outcome
+        .sheets
+        .iter()
+        .map(|s| (s.name.clone(), s.rows))
+        .collect();
+    assert_eq!(
+        &counts[3..6],
+        &[
+            ("Daily".into(), 3),
+            ("Daily 2".into(), 3),
+            ("Daily 3".into(), 1)
+        ]
+    );
+
+    let mut dates = Vec::new();
+    for sheet in ["Daily", "Daily 2", "Daily 3"] {
+        let rows = rows(&target, sheet);
+        assert_eq!(header(&rows), DAILY_HEADER, "{sheet}");
+        for row in &rows[1..] {
+            match &row[1] {
+                Data::DateTime(d) => dates.push(d.as_datetime().unwrap().date()),
+                other => panic!("{sheet}: date cell is {other:?}"),
+            }
+        }
+    }
+    // Every row once, in order: nothing truncated, nothing repeated.
+    assert_eq!(dates, (1..=7).map(day).collect::<Vec<_>>());
+}
+
+#[test]
+fn an_empty_list_still_gets_its_sheet_and_header() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let limits = Limits {
+        rows_per_sheet: 4,
+        ..Limits::default()
+    };
+    write_report_with(&report(), &target, &limits).unwrap();
+    let journal = rows(&target, "Journal");
+    assert_eq!(journal.len(), 1);
+    assert_eq!(header(&journal), JOURNAL_HEADER);
+}
+
+#[test]
+fn the_chart_takes_the_rows_outside_tolerance_of_the_first_sheet_that_has_them() {
+    let lines = vec![
+        recon("agrees", Some("0")),
+        recon("under-posted", Some("-7.06")),
+        recon("over-posted", Some("3.5")),
+        recon("within tolerance", Some("0.2")),
+        recon("under-posted", Some("-1.25")),
+        recon("unexpected posting", None), // no bp: not charted
+        recon("under-posted", Some("-2")),
+    ];
+    let limits = Limits::default();
+    let plan = super::workbook::chart_plan_for_tests(&lines, &limits).unwrap();
+    assert_eq!(plan.0, "Reconciliation");
+    assert_eq!(
+        plan.1,
+        "=(Reconciliation!$J$3:$J$4,Reconciliation!$J$6,Reconciliation!$J$8)"
+    );
+    assert_eq!((plan.2, plan.3), (4, 4));
+
+    // With three rows a sheet, the first outside row is on the first sheet and
+    // the chart stays there.
+    let small = Limits {
+        rows_per_sheet: 4,
+        chart_points: 40,
+    };
+    let plan = super::workbook::chart_plan_for_tests(&lines, &small).unwrap();
+    assert_eq!(plan.1, "Reconciliation!$J$3:$J$4");
+    assert_eq!((plan.2, plan.3), (2, 4));
+
+    let capped = Limits {
+        chart_points: 1,
+        ..Limits::default()
+    };
+    let plan = super::workbook::chart_plan_for_tests(&lines, &capped).unwrap();
+    assert_eq!(plan.1, "Reconciliation!$J$3");
+    assert_eq!((plan.2, plan.3), (1, 4));
+
+    assert!(super::workbook::chart_plan_for_tests(&lines[..1], &limits).is_none());
+}
+
+#[test]
+fn a_chart_reference_never_passes_the_series_limit() {
+    // Every other row outside tolerance: one run per row.
+    let lines: Vec<ReconciliationLine> = (0..200)
+        .map(|i| {
+            if i % 2 == 0 {
+                recon("under-posted", Some("-1"))
+            } else {
+                recon("agrees", Some("0"))
+            }
+        })
+        .collect();
+    let plan = super::workbook::chart_plan_for_tests(&lines, &Limits::default()).unwrap();
+    assert!(plan.1.len() <= 255, "{}", plan.1.len());
+    assert!(plan.2 > 5 && plan.2 < 100, "{}", plan.2);
+    assert_eq!(plan.3, 100);
+}
+
+#[test]
+fn the_workbook_with_a_chart_is_written_and_its_rows_read_back() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    r.reconciliation = vec![
+        recon("under-posted", Some("-7.06")),
+        recon("agrees", Some("0")),
+        recon("over-posted", Some("3.5")),
+    ];
+    r.status_counts = vec![
+        StatusCount {
+            status: "agrees".into(),
+            rows: 1,
+        },
+        StatusCount {
+            status: "under-posted".into(),
+            rows: 1,
+        },
+        StatusCount {
+            status: "over-posted".into(),
+            rows: 1,
+        },
+    ];
+    let limits = Limits {
+        rows_per_sheet: 3,
+        ..Limits::default()
+    };
+    write_report_with(&r, &target, &limits).unwrap();
+    assert_eq!(
+        sheet_names(&target),
+        vec![
+            "Summary",
+            "Accruals",
+            "Reconciliation",
+            "Reconciliation 2",
+            "Journal",
+            "Problems",
+            "Run"
+        ]
+    );
+    let second = rows(&target, "Reconciliation 2");
+    assert_eq!(second[1][10], Data::String("over-posted".into()));
+    assert_eq!(second[1][9], Data::Float(3.5));
+    // The chart is in the package and points at the first Reconciliation sheet.
+    let bytes = std::fs::read(&target).unwrap();
+    let mut zip = zip_entry(&bytes, "xl/charts/chart1.xml");
+    assert!(zip.contains("Reconciliation!$J$2"), "{zip}");
+    zip.clear();
+}
+
+/// The text of one member of an xlsx package (stored or deflated).
+fn zip_entry(bytes: &[u8], name: &str) -> String {
+    use std::io::Read;
+    let mut archive = zip::ZipArchive::new(std::io::Cursor::new(bytes)).unwrap();
+    let mut s = String::new();
+    archive
+        .by_name(name)
+        .unwrap()
+        .read_to_string(&mut s)
+        .unwrap();
+    s
+}
+
+#[test]
+fn figures_written_as_text_are_noted_once_in_problems_and_counted_in_the_summary() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    let mut lines = daily(2);
+    for l in &mut lines {
+        l.balance = dec("1000000000000000.55");
+    }
+    r.daily = Some(lines);
+    let outcome = write_report_with(&r, &target, &Limits::default()).unwrap();
+    assert!(outcome.text_figure_count >= 2);
+    assert_eq!(outcome.text_figures[0].sheet, "Daily");
+    assert_eq!(outcome.text_figures[0].cell, "C2");
+    assert_eq!(outcome.text_figures[0].text, "1,000,000,000,000,000.55");
+
+    let problems = rows(&target, "Problems");
+    assert_eq!(problems.len(), 2, "one note row");
+    assert_eq!(problems[1][0], Data::String("warning".into()));
+    assert_eq!(problems[1][1], Data::String("out.xlsx".into()));
+    assert_eq!(problems[1][2], Data::String("Daily".into()));
+    assert_eq!(problems[1][3], Data::String("C2".into()));
+    assert_eq!(
+        problems[1][4],
+        Data::String("1,000,000,000,000,000.55".into())
+    );
+    let fix = problems[1][6].to_string();
+    assert!(fix.contains("Daily!C2"), "{fix}");
+    assert_eq!(
+        outcome.text_figure_problem.as_ref().map(|p| p.fix.clone()),
+        Some(fix)
+    );
+
+    let summary = rows(&target, "Summary");
+    let value_of = |label: &str| {
+        summary
+            .iter()
+            .find(|r| r[0] == Data::String(label.into()))
+            .map(|r| r[1].clone())
+            .unwrap()
+    };
+    assert_eq!(value_of("Problems: warnings"), Data::Float(1.0));
+    assert_eq!(
+        value_of("Figures written as text"),
+        Data::Float(outcome.text_figure_count as f64)
+    );
+}

@@ -1,0 +1,826 @@
+//! The reconciliation workbook: which sheets, in which order, with which
+//! columns, and where each figure of a [`Report`] goes.
+//!
+//! Sheets: Summary, Accruals, Reconciliation (when there are reconciliation
+//! rows), Journal, Daily (when asked for), Problems, Run. Every list sheet has
+//! a frozen header row and a filter over its header and data, and continues on
+//! "Name 2", "Name 3"... past the spreadsheet's row limit, never truncated.
+//!
+//! The writer computes nothing but layout: it never adds, rounds or compares
+//! figures (the totals and counts come in the report), reads no clock (the run
+//! time is the report's) and writes its rows in order, so the same report
+//! gives the same bytes.
+
+use std::path::{Path, PathBuf};
+
+use rust_xlsxwriter::{
+    Chart, ChartAxisLabelPosition, ChartFormat, ChartRange, ChartSolidFill, ColNum, Color,
+    DocProperties, RowNum, Workbook, Worksheet,
+};
+
+use super::cells::{Cells, TextFigure, TextFigures, EXACT_DIGITS};
+use super::error::ReportError;
+use super::layout::{
+    self, column_width, outside_tolerance, part_name, place, sheet_ref, Limits, Styles,
+};
+use super::model::{AccrualLine, DailyLine, JournalLine, ReconciliationLine, Report};
+use super::output;
+use crate::book::{Position, Problem, Severity};
+
+/// Header labels of the Accruals sheet.
+pub const ACCRUALS_HEADER: [&str; 11] = [
+    "Account",
+    "Name",
+    "Currency",
+    "Side",
+    "Day count",
+    "Compounding",
+    "Balance at cut-off",
+    "Accrued at cut-off",
+    "Posted in window",
+    "Interest for window",
+    "Effective annual rate",
+];
+
+/// Header labels of the Reconciliation sheet.
+pub const RECONCILIATION_HEADER: [&str; 12] = [
+    "Account",
+    "Currency",
+    "Period start",
+    "Period end",
+    "Days",
+    "Balance-years",
+    "Expected",
+    "Posted",
+    "Variance",
+    "Variance (bp)",
+    "Status",
+    "Likely cause",
+];
+
+/// Header labels of the Journal sheet.
+pub const JOURNAL_HEADER: [&str; 7] = [
+    "Date",
+    "Entity",
+    "Currency",
+    "GL account",
+    "Debit",
+    "Credit",
+    "Memo",
+];
+
+/// Header labels of the Daily sheet.
+pub const DAILY_HEADER: [&str; 8] = [
+    "Account",
+    "Date",
+    "Balance",
+    "Base",
+    "Rate",
+    "Day fraction",
+    "Interest",
+    "Accrued",
+];
+
+/// Header labels of the Problems sheet.
+pub const PROBLEMS_HEADER: [&str; 7] = [
+    "Severity", "Book", "Sheet", "Cell", "Found", "Expected", "Fix",
+];
+
+/// Header labels of the Summary's totals by currency.
+pub const TOTALS_HEADER: [&str; 6] = [
+    "Currency",
+    "Accounts",
+    "Balance at cut-off",
+    "Accrued at cut-off",
+    "Posted in window",
+    "Interest for window",
+];
+
+/// The caution printed at the top of the Summary.
+pub const CAUTION: &str = "Caution: every figure here is worked out from the terms and data \
+    in the input books, as the program read them. Before any of it is booked, posted or sent \
+    to a customer, qualified staff must check it against the terms of each contract and \
+    against the accounting standards and regulations that apply to the institution. The \
+    program helps with that review; it does not replace it, nor the judgement of the people \
+    responsible for the books.";
+
+/// One sheet of the written workbook.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SheetRows {
+    /// The sheet's name, e.g. `Daily 2`.
+    pub name: String,
+    /// List rows below the header (list sheets); rows used (Summary and Run).
+    pub rows: usize,
+}
+
+/// What [`write_report`] wrote.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct WriteOutcome {
+    /// The workbook's path (the target).
+    pub path: PathBuf,
+    /// The sheets, in workbook order.
+    pub sheets: Vec<SheetRows>,
+    /// Figures written as text because a spreadsheet number cannot hold them
+    /// exactly (the first [`super::cells::LISTED_TEXT_FIGURES`]).
+    pub text_figures: Vec<TextFigure>,
+    /// How many figures were written as text in all.
+    pub text_figure_count: usize,
+    /// The warning the writer added as the last row of the Problems sheet
+    /// when some figure was written as text. The sheet already holds it, so
+    /// the run must not add it to the report again; it may print it.
+    pub text_figure_problem: Option<Problem>,
+}
+
+/// Writes the reconciliation workbook of `report` to `target`.
+///
+/// The workbook is written to a temporary file beside `target`, flushed to
+/// disk and renamed into place only when complete: `target` is either left as
+/// it was or replaced whole. The same report gives a byte-identical file.
+///
+/// # Errors
+/// [`ReportError::MissingDirectory`] when the target's folder does not exist,
+/// [`ReportError::TargetIsDirectory`] / [`ReportError::TargetIsInput`] for an
+/// unusable target, and the writer's or the file system's errors, with the
+/// sheet and row where they happened.
+///
+/// # Examples
+/// ```no_run
+/// # fn demo(report: &ledgerate::report::model::Report) -> Result<(), ledgerate::report::ReportError> {
+/// let outcome = ledgerate::report::write_report(report, std::path::Path::new("out/jan.xlsx"))?;
+/// for sheet in &outcome.sheets {
+///     println!("{}: {} rows", sheet.name, sheet.rows);
+/// }
+/// # Ok(()) }
+/// ```
+pub fn write_report(report: &Report, target: &Path) -> Result<WriteOutcome, ReportError> {
+    write_report_with(report, target, &Limits::default())
+}
+
+/// [`write_report`] with other limits (tests use a small row limit).
+pub(crate) fn write_report_with(
+    report: &Report,
+    target: &Path,
+    limits: &Limits,
+) -> Result<WriteOutcome, ReportError> {
+    let dir = output::target_dir(target)?;
+    output::check_not_input(target, &report.facts.inputs)?;
+    let mut wb = Workbook::new();
+    // The big sheets spill to scratch files; keep them on the target's disk.
+    wb.set_tempdir(&dir).map_err(|e| ReportError::Save {
+        path: target.to_path_buf(),
+        source: e,
+    })?;
+    wb.set_zip_compression_level(layout::ZIP_LEVEL);
+    wb.set_properties(
+        &DocProperties::new()
+            .set_title("Interest accrual and reconciliation")
+            .set_author(report.facts.program.as_str())
+            .set_comment(format!("Cut-off {}", report.facts.cutoff))
+            // The run time is the only time in the file: no clock is read.
+            .set_creation_datetime(&report.facts.run_time),
+    );
+
+    let styles = Styles::new();
+    let mut ctx = Ctx {
+        styles: &styles,
+        texts: TextFigures::default(),
+        limits: *limits,
+        sheets: Vec::new(),
+    };
+
+    // Summary comes first but is filled last, once every text figure is known:
+    // it is an ordinary (random-access) sheet; the lists are written strictly
+    // in row order in constant memory.
+    wb.add_worksheet()
+        .set_name("Summary")
+        .map_err(|e| ReportError::sheet("Summary", e))?;
+    ctx.sheets.push(SheetRows {
+        name: "Summary".into(),
+        rows: 0,
+    });
+
+    write_list(&mut wb, &ACCRUALS, &report.accruals, &mut ctx)?;
+    let recon_parts = if report.reconciliation.is_empty() {
+        0
+    } else {
+        write_list(&mut wb, &RECONCILIATION, &report.reconciliation, &mut ctx)?
+    };
+    write_list(&mut wb, &JOURNAL, &report.journal, &mut ctx)?;
+    if let Some(daily) = &report.daily {
+        write_list(&mut wb, &DAILY, daily, &mut ctx)?;
+    }
+
+    let chart = (recon_parts > 0)
+        .then(|| chart_plan(&report.reconciliation, limits))
+        .flatten();
+    let summary = {
+        let ws = wb
+            .worksheet_from_index(0)
+            .map_err(|e| ReportError::sheet("Summary", e))?;
+        write_summary(ws, report, chart.as_ref(), &styles, &mut ctx.texts)?
+    };
+
+    // Run goes last but is built now, so that its figures join the note.
+    let mut run = Worksheet::new();
+    run.set_name("Run")
+        .map_err(|e| ReportError::sheet("Run", e))?;
+    let run_rows = write_run(&mut run, report, &styles, &mut ctx.texts)?;
+
+    // Every figure is written by now: say once which ones are text.
+    let note = text_figure_problem(&ctx.texts, target);
+    let mut problems: Vec<&Problem> = report.problems.iter().collect();
+    problems.extend(note.as_ref());
+    write_list(&mut wb, &problems_sheet(), &problems, &mut ctx)?;
+
+    {
+        let ws = wb
+            .worksheet_from_index(0)
+            .map_err(|e| ReportError::sheet("Summary", e))?;
+        finish_summary(ws, &summary, &problems, &ctx.texts, &styles)?;
+    }
+    if let Some(s) = ctx.sheets.first_mut() {
+        s.rows = usize::try_from(summary.rows_used).unwrap_or(usize::MAX);
+    }
+
+    wb.push_worksheet(run);
+    ctx.sheets.push(SheetRows {
+        name: "Run".into(),
+        rows: usize::try_from(run_rows).unwrap_or(usize::MAX),
+    });
+
+    output::save_atomically(&mut wb, target, &dir)?;
+    Ok(WriteOutcome {
+        path: target.to_path_buf(),
+        sheets: ctx.sheets,
+        text_figures: ctx.texts.listed,
+        text_figure_count: ctx.texts.count,
+        text_figure_problem: note,
+    })
+}
+
+/// State shared by the sheets of one workbook.
+struct Ctx<'s> {
+    styles: &'s Styles,
+    texts: TextFigures,
+    limits: Limits,
+    sheets: Vec<SheetRows>,
+}
+
+/// A list sheet: its name, its columns (label and widest width) and how one
+/// row is written.
+struct ListSheet<T> {
+    name: &'static str,
+    header: &'static [&'static str],
+    caps: &'static [usize],
+    row: fn(&mut Cells<'_>, &T) -> Result<(), ReportError>,
+}
+
+const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
+    name: "Accruals",
+    header: &ACCRUALS_HEADER,
+    caps: &[30, 40, 10, 12, 16, 18, 24, 24, 24, 24, 22],
+    row: accrual_row,
+};
+
+const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
+    name: "Reconciliation",
+    header: &RECONCILIATION_HEADER,
+    caps: &[30, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 80],
+    row: reconciliation_row,
+};
+
+const JOURNAL: ListSheet<JournalLine> = ListSheet {
+    name: "Journal",
+    header: &JOURNAL_HEADER,
+    caps: &[14, 30, 10, 24, 24, 24, 60],
+    row: journal_row,
+};
+
+const DAILY: ListSheet<DailyLine> = ListSheet {
+    name: "Daily",
+    header: &DAILY_HEADER,
+    caps: &[30, 14, 24, 24, 12, 16, 24, 24],
+    row: daily_row,
+};
+
+/// The Problems list (a function: its rows borrow the report).
+fn problems_sheet<'p>() -> ListSheet<&'p Problem> {
+    ListSheet {
+        name: "Problems",
+        header: &PROBLEMS_HEADER,
+        caps: &[10, 40, 16, 10, 40, 50, 80],
+        row: problem_row,
+    }
+}
+
+/// Writes a list over as many sheets as it needs; returns how many.
+fn write_list<T>(
+    wb: &mut Workbook,
+    list: &ListSheet<T>,
+    rows: &[T],
+    ctx: &mut Ctx<'_>,
+) -> Result<usize, ReportError> {
+    let per = ctx.limits.data_rows_per_sheet();
+    let mut parts: Vec<&[T]> = rows.chunks(per).collect();
+    if parts.is_empty() {
+        parts.push(&[]); // an empty list still gets its sheet and header
+    }
+    let last_col = ColNum::try_from(list.header.len().saturating_sub(1)).unwrap_or(0);
+    for (index, part) in parts.iter().enumerate() {
+        let name = part_name(list.name, index);
+        let ws = wb
+            .add_worksheet_with_constant_memory()
+            .map_err(|e| ReportError::sheet(&name, e))?;
+        ws.set_name(&name)
+            .map_err(|e| ReportError::sheet(&name, e))?;
+        let last_row = RowNum::try_from(part.len()).unwrap_or(RowNum::MAX);
+        // Sheet-wide settings first: the header row is flushed once row 1 starts.
+        ws.set_freeze_panes(1, 0)
+            .map_err(|e| ReportError::sheet(&name, e))?;
+        layout::print_setup(ws, true, true).map_err(|e| ReportError::sheet(&name, e))?;
+        ws.autofilter(0, 0, last_row, last_col)
+            .map_err(|e| ReportError::sheet(&name, e))?;
+        let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
+        // Left-aligned: a filter button sits at the right of each header cell.
+        cells.at(0).header(list.header, &[])?;
+        for (row, item) in (1..).zip(part.iter()) {
+            cells.at(row);
+            (list.row)(&mut cells, item)?;
+        }
+        let widths: Vec<u16> = (0..)
+            .zip(list.header.iter().zip(list.caps.iter()))
+            .map(|(col, (label, cap))| column_width(label, cells.width(col), *cap))
+            .collect();
+        for (col, width) in (0..).zip(widths) {
+            cells
+                .sheet()
+                .set_column_width(col, width)
+                .map_err(|e| ReportError::sheet(&name, e))?;
+        }
+        ctx.sheets.push(SheetRows {
+            name,
+            rows: part.len(),
+        });
+    }
+    Ok(parts.len())
+}
+
+fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
+    c.text(0, &a.account)?;
+    c.text(1, &a.name)?;
+    c.text(2, &a.currency)?;
+    c.text(3, &a.side)?;
+    c.text(4, &a.day_count)?;
+    c.text(5, &a.compounding)?;
+    c.amount(6, a.balance_at_cutoff, a.minor_units)?;
+    c.amount(7, a.accrued_at_cutoff, a.minor_units)?;
+    c.amount(8, a.posted_in_window, a.minor_units)?;
+    c.amount(9, a.interest_for_window, a.minor_units)?;
+    if let Some(rate) = a.effective_annual_rate {
+        c.rate(10, rate)?;
+    }
+    Ok(())
+}
+
+fn reconciliation_row(c: &mut Cells<'_>, r: &ReconciliationLine) -> Result<(), ReportError> {
+    let styles = c.styles();
+    c.text(0, &r.account)?;
+    c.text(1, &r.currency)?;
+    c.date(2, r.period_start)?;
+    c.date(3, r.period_end)?;
+    c.count(4, i128::from(r.days))?;
+    c.balance_years(5, r.balance_years, r.minor_units)?;
+    c.amount(6, r.expected, r.minor_units)?;
+    c.amount(7, r.posted, r.minor_units)?;
+    c.amount(8, r.variance, r.minor_units)?;
+    if let Some(bp) = r.variance_bp {
+        c.bp(9, bp)?;
+    }
+    c.text_as(
+        10,
+        &r.status,
+        styles.status(&r.status).unwrap_or(&styles.text),
+    )?;
+    c.text(11, &r.likely_cause)?;
+    Ok(())
+}
+
+fn journal_row(c: &mut Cells<'_>, j: &JournalLine) -> Result<(), ReportError> {
+    c.date(0, j.date)?;
+    c.text(1, &j.entity)?;
+    c.text(2, &j.currency)?;
+    c.text(3, &j.gl_account)?;
+    c.ledger_amount(4, j.debit, j.minor_units)?;
+    c.ledger_amount(5, j.credit, j.minor_units)?;
+    c.text(6, &j.memo)?;
+    Ok(())
+}
+
+fn daily_row(c: &mut Cells<'_>, d: &DailyLine) -> Result<(), ReportError> {
+    c.text(0, &d.account)?;
+    c.date(1, d.date)?;
+    c.amount(2, d.balance, d.minor_units)?;
+    c.unrounded_amount(3, d.base, d.minor_units)?;
+    c.rate(4, d.rate)?;
+    c.day_fraction(5, d.day_fraction)?;
+    c.unrounded_amount(6, d.interest, d.minor_units)?;
+    c.unrounded_amount(7, d.accrued, d.minor_units)?;
+    Ok(())
+}
+
+fn problem_row(c: &mut Cells<'_>, p: &&Problem) -> Result<(), ReportError> {
+    let styles = c.styles();
+    let severity = p.severity.name();
+    c.text_as(
+        0,
+        severity,
+        styles.severity(p.severity).unwrap_or(&styles.text),
+    )?;
+    c.text(1, &p.position.book)?;
+    c.text(2, &p.position.sheet)?;
+    c.text(3, &p.position.cell)?;
+    // Long explanations wrap inside their capped columns.
+    c.text_as(4, &p.found, &styles.wrap)?;
+    c.text_as(5, &p.expected, &styles.wrap)?;
+    c.text_as(6, &p.fix, &styles.wrap)?;
+    Ok(())
+}
+
+/// Cells of the text figures named in the note, at most.
+const NOTE_CELLS: usize = 10;
+
+/// The one Problems row that says which figures are text.
+fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
+    let first = texts.listed.first()?;
+    let mut cells: Vec<String> = texts
+        .listed
+        .iter()
+        .take(NOTE_CELLS)
+        .map(|t| format!("{}!{}", sheet_ref(&t.sheet), t.cell))
+        .collect();
+    if texts.count > cells.len() {
+        cells.push(format!("and {} more", texts.count - cells.len()));
+    }
+    let book = target
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| target.display().to_string());
+    Some(Problem {
+        severity: Severity::Warning,
+        position: Position {
+            book,
+            sheet: first.sheet.clone(),
+            cell: first.cell.clone(),
+        },
+        account: None,
+        found: first.text.clone(),
+        expected: format!(
+            "a figure of at most {EXACT_DIGITS} significant digits, which a spreadsheet number holds exactly"
+        ),
+        fix: format!(
+            "{} figure{} written as text, right-aligned, so that no digit is lost ({}); \
+             spreadsheet sums skip text cells, so add these figures separately",
+            texts.count,
+            if texts.count == 1 { " is" } else { "s are" },
+            cells.join(", ")
+        ),
+    })
+}
+
+/// The bars of the Summary chart: rows outside tolerance with a variance in
+/// basis points, on the first Reconciliation sheet that has any.
+struct ChartPlan {
+    sheet: String,
+    /// Runs of consecutive 0-based sheet rows.
+    runs: Vec<(RowNum, RowNum)>,
+    shown: usize,
+    total: usize,
+}
+
+/// The longest reference a chart series may use (the spreadsheet's limit).
+const MAX_SERIES_REF: usize = 255;
+
+fn chart_plan(rows: &[ReconciliationLine], limits: &Limits) -> Option<ChartPlan> {
+    let outside: Vec<usize> = rows
+        .iter()
+        .enumerate()
+        .filter(|(_, r)| outside_tolerance(&r.status) && r.variance_bp.is_some())
+        .map(|(i, _)| i)
+        .collect();
+    let total = outside.len();
+    let first_part = place(*outside.first()?, limits).0;
+    let sheet = part_name("Reconciliation", first_part);
+    let mut runs: Vec<(RowNum, RowNum)> = Vec::new();
+    let mut shown = 0;
+    for &i in &outside {
+        let (part, row) = place(i, limits);
+        if part != first_part || shown >= limits.chart_points {
+            break;
+        }
+        let mut next = runs.clone();
+        match next.last_mut() {
+            Some((_, last)) if last.saturating_add(1) == row => *last = row,
+            _ => next.push((row, row)),
+        }
+        if series_ref(&sheet, &next, 9).len() > MAX_SERIES_REF {
+            break;
+        }
+        runs = next;
+        shown += 1;
+    }
+    Some(ChartPlan {
+        sheet,
+        runs,
+        shown,
+        total,
+    })
+}
+
+/// The chart plan as (sheet, value reference, bars shown, rows outside tolerance).
+#[cfg(test)]
+pub(crate) fn chart_plan_for_tests(
+    rows: &[ReconciliationLine],
+    limits: &Limits,
+) -> Option<(String, String, usize, usize)> {
+    chart_plan(rows, limits).map(|p| {
+        let reference = series_ref(&p.sheet, &p.runs, 9);
+        (p.sheet, reference, p.shown, p.total)
+    })
+}
+
+/// A series reference over the runs of column `col`: a plain range for one
+/// run, a union `=(A,B,...)` for several.
+fn series_ref(sheet: &str, runs: &[(RowNum, RowNum)], col: ColNum) -> String {
+    let name = sheet_ref(sheet);
+    let column = rust_xlsxwriter::utility::column_number_to_name(col);
+    let parts: Vec<String> = runs
+        .iter()
+        .map(|(a, b)| {
+            if a == b {
+                format!("{name}!${column}${}", a.saturating_add(1))
+            } else {
+                format!(
+                    "{name}!${column}${}:${column}${}",
+                    a.saturating_add(1),
+                    b.saturating_add(1)
+                )
+            }
+        })
+        .collect();
+    if parts.len() == 1 {
+        parts.concat()
+    } else {
+        format!("=({})", parts.join(","))
+    }
+}
+
+fn chart_range(plan: &ChartPlan, col: ColNum) -> ChartRange {
+    match plan.runs.as_slice() {
+        [(a, b)] => ChartRange::new_from_range(&plan.sheet, *a, col, *b, col),
+        runs => ChartRange::new_from_string(&series_ref(&plan.sheet, runs, col)),
+    }
+}
+
+/// Where the Summary's late cells go.
+struct SummaryPlaces {
+    errors: RowNum,
+    warnings: RowNum,
+    notes: RowNum,
+    text_figures: RowNum,
+    rows_used: RowNum,
+}
+
+const SUMMARY_COLS: ColNum = 6;
+
+fn write_summary(
+    ws: &mut Worksheet,
+    report: &Report,
+    chart: Option<&ChartPlan>,
+    styles: &Styles,
+    texts: &mut TextFigures,
+) -> Result<SummaryPlaces, ReportError> {
+    let facts = &report.facts;
+    layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Summary", e))?;
+    let mut c = Cells::new(ws, "Summary", styles, texts);
+    c.at(0).text_spilling(
+        0,
+        "Interest accrual and reconciliation: summary",
+        &styles.title,
+    )?;
+    c.sheet()
+        .merge_range(1, 0, 4, SUMMARY_COLS - 1, CAUTION, &styles.caution)
+        .map_err(|e| ReportError::sheet("Summary", e))?;
+
+    let mut row: RowNum = 6;
+    section(&mut c, row, "Run", SUMMARY_COLS)?;
+    row += 1;
+    let label = |c: &mut Cells<'_>, row: RowNum, text: &str| -> Result<(), ReportError> {
+        c.at(row).text_as(0, text, &styles.label)
+    };
+    label(&mut c, row, "Cut-off")?;
+    c.date(1, facts.cutoff)?;
+    row += 1;
+    label(&mut c, row, "Window from")?;
+    c.date(1, facts.window_start)?;
+    row += 1;
+    label(&mut c, row, "Window to")?;
+    c.date(1, facts.cutoff)?;
+    row += 1;
+    label(&mut c, row, "Books")?;
+    c.count(1, int(facts.inputs.len()))?;
+    for input in &facts.inputs {
+        row += 1;
+        label(&mut c, row, "Book")?;
+        c.text_spilling(1, &input.path, &styles.text)?;
+    }
+    row += 1;
+    label(&mut c, row, "Accounts read")?;
+    c.count(1, int(facts.accounts_read))?;
+    row += 1;
+    label(&mut c, row, "Accounts computed")?;
+    c.count(1, int(facts.accounts_computed))?;
+    row += 1;
+    label(&mut c, row, "Accounts left out by errors")?;
+    c.count(1, int(facts.accounts_failed))?;
+    row += 1;
+    label(&mut c, row, "Problems: errors")?;
+    let errors = row;
+    row += 1;
+    label(&mut c, row, "Problems: warnings")?;
+    let warnings = row;
+    row += 1;
+    label(&mut c, row, "Problems: notes")?;
+    let notes = row;
+    row += 1;
+    label(&mut c, row, "Figures written as text")?;
+    let text_figures = row;
+
+    row += 2;
+    section(&mut c, row, "Totals by currency", SUMMARY_COLS)?;
+    row += 1;
+    c.at(row).header(&TOTALS_HEADER, &[1, 2, 3, 4, 5])?;
+    for t in &report.totals {
+        row += 1;
+        c.at(row).text(0, &t.currency)?;
+        c.count(1, int(t.accounts))?;
+        c.amount(2, t.balance_at_cutoff, t.minor_units)?;
+        c.amount(3, t.accrued_at_cutoff, t.minor_units)?;
+        c.amount(4, t.posted_in_window, t.minor_units)?;
+        c.amount(5, t.interest_for_window, t.minor_units)?;
+    }
+
+    if !report.status_counts.is_empty() {
+        row += 2;
+        section(&mut c, row, "Counts by status", 2)?;
+        row += 1;
+        c.at(row).header(&["Status", "Rows"], &[1])?;
+        for s in &report.status_counts {
+            row += 1;
+            let fill = styles.status(&s.status).unwrap_or(&styles.text);
+            c.at(row).text_as(0, &s.status, fill)?;
+            c.count(1, int(s.rows))?;
+        }
+    }
+
+    // Widths: labels and codes in A, figures in B..F.
+    let widths: Vec<u16> = (0..SUMMARY_COLS)
+        .map(|col| {
+            let header = TOTALS_HEADER.get(usize::from(col)).copied().unwrap_or("");
+            let floor = if col == 0 { 28 } else { 14 };
+            column_width(header, c.width(col).max(floor), 40)
+        })
+        .collect();
+    for (col, width) in (0..).zip(widths) {
+        c.sheet()
+            .set_column_width(col, width)
+            .map_err(|e| ReportError::sheet("Summary", e))?;
+    }
+    // The caution's rows: tall enough for its lines at these widths.
+    for r in 1..=4 {
+        c.sheet()
+            .set_row_height(r, 18)
+            .map_err(|e| ReportError::sheet("Summary", e))?;
+    }
+
+    if let Some(plan) = chart {
+        let mut ch = Chart::new_column();
+        let series = ch.add_series();
+        series
+            .set_categories(&chart_range(plan, 0))
+            .set_values(&chart_range(plan, 9))
+            .set_name("Variance (bp)")
+            .set_format(
+                ChartFormat::new().set_solid_fill(
+                    ChartSolidFill::new().set_color(Color::RGB(layout::palette::BAR)),
+                ),
+            )
+            .set_invert_if_negative()
+            .set_invert_if_negative_color(Color::RGB(layout::palette::BAR_NEGATIVE));
+        let title = if plan.shown == plan.total {
+            "Variance (bp) of the rows outside tolerance".to_string()
+        } else {
+            format!(
+                "Variance (bp): the first {} of {} rows outside tolerance",
+                plan.shown, plan.total
+            )
+        };
+        ch.title().set_name(&title);
+        ch.x_axis()
+            .set_name("Account")
+            .set_label_position(ChartAxisLabelPosition::Low);
+        ch.y_axis().set_name("Basis points").set_num_format("0.00");
+        ch.legend().set_hidden();
+        ch.set_width(640).set_height(320);
+        c.sheet()
+            .insert_chart(6, SUMMARY_COLS + 1, &ch)
+            .map_err(|e| ReportError::sheet("Summary", e))?;
+    }
+
+    Ok(SummaryPlaces {
+        errors,
+        warnings,
+        notes,
+        text_figures,
+        rows_used: row.saturating_add(1),
+    })
+}
+
+/// A section heading underlined over `cols` columns.
+fn section(c: &mut Cells<'_>, row: RowNum, title: &str, cols: ColNum) -> Result<(), ReportError> {
+    let styles = c.styles();
+    c.at(row).text_spilling(0, title, &styles.section)?;
+    for col in 1..cols {
+        c.blank(col, &styles.section)?;
+    }
+    Ok(())
+}
+
+/// The Summary's counts that depend on the Problems sheet.
+fn finish_summary(
+    ws: &mut Worksheet,
+    places: &SummaryPlaces,
+    problems: &[&Problem],
+    texts: &TextFigures,
+    styles: &Styles,
+) -> Result<(), ReportError> {
+    let count = |s: Severity| int(problems.iter().filter(|p| p.severity == s).count());
+    let mut scratch = TextFigures::default();
+    let mut c = Cells::new(ws, "Summary", styles, &mut scratch);
+    c.at(places.errors).count(1, count(Severity::Error))?;
+    c.at(places.warnings).count(1, count(Severity::Warning))?;
+    c.at(places.notes).count(1, count(Severity::Note))?;
+    c.at(places.text_figures).count(1, int(texts.count))?;
+    Ok(())
+}
+
+fn write_run(
+    ws: &mut Worksheet,
+    report: &Report,
+    styles: &Styles,
+    texts: &mut TextFigures,
+) -> Result<RowNum, ReportError> {
+    let facts = &report.facts;
+    layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Run", e))?;
+    let mut c = Cells::new(ws, "Run", styles, texts);
+    c.at(0).header(&["Item", "Value"], &[])?;
+    c.at(1).text(0, "Program version")?;
+    c.text(1, &facts.program)?;
+    c.at(2).text(0, "Command line")?;
+    c.text_spilling(1, &facts.command_line, &styles.text)?;
+    c.at(3).text(0, "Time of the run")?;
+    c.datetime(1, facts.run_time)?;
+
+    let mut row: RowNum = 5;
+    c.at(row)
+        .header(&["Input", "Size (bytes)", "SHA-256"], &[1])?;
+    for input in &facts.inputs {
+        row += 1;
+        c.at(row).text(0, &input.path)?;
+        c.count(1, i128::from(input.size))?;
+        c.text(2, &input.sha256)?;
+    }
+    row += 2;
+    c.at(row).header(&["Setting", "Value", "Source"], &[])?;
+    for s in &facts.settings {
+        row += 1;
+        c.at(row).text(0, &s.name)?;
+        c.text(1, &s.value)?;
+        c.text(2, s.source.name())?;
+    }
+    let widths = [
+        column_width("Time of the run", c.width(0), 60),
+        column_width("Size (bytes)", c.width(1).max(20), 40),
+        column_width("SHA-256", c.width(2), 70),
+    ];
+    for (col, width) in (0..).zip(widths) {
+        c.sheet()
+            .set_column_width(col, width)
+            .map_err(|e| ReportError::sheet("Run", e))?;
+    }
+    Ok(row.saturating_add(1))
+}
+
+/// A count as the border's integer.
+fn int(n: usize) -> i128 {
+    i128::try_from(n).unwrap_or(i128::MAX)
+}
