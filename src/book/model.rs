@@ -80,7 +80,11 @@ impl fmt::Display for Problem {
             "{}: {}: found {}; expected {}; {}",
             self.severity.name(),
             self.position,
-            if self.found.is_empty() { "nothing".to_string() } else { format!("'{}'", self.found) },
+            if self.found.is_empty() {
+                "nothing".to_string()
+            } else {
+                format!("'{}'", self.found)
+            },
             self.expected,
             self.fix
         )
