@@ -3,11 +3,24 @@
 //!
 //! Readers never change an input file, never guess a day/month order, and
 //! never turn a spreadsheet float into a decimal except by its shortest
-//! round-trip text. They know nothing of the engine's arithmetic: they type
-//! terms and report where each came from.
+//! round-trip text (in [`number`], the one border between the two). They
+//! know nothing of the engine's arithmetic: they type terms and report where
+//! each came from.
 
+mod accounts;
+mod cell;
+mod holidays;
 pub mod model;
+mod movements;
+mod number;
+mod rates;
+mod read;
+mod settings;
+mod source;
+mod statements;
+mod table;
 
 pub use model::{
     AccountEntry, Book, GlCodes, Position, Problem, SettingRow, Severity, StatementRow,
 };
+pub use read::{check_unique_ids, read_book, ReadOptions};

@@ -1,0 +1,663 @@
+//! The Accounts sheet: one row per account, typed into the engine's
+//! [`AccountTerms`] with the defaults of books.md, and checked against the
+//! account's own dates, its rate schedules and its calendar.
+//!
+//! An account with any error is kept out (its problems name it); nothing is
+//! approximated: floating-rate terms, which the engine does not compute yet,
+//! are an error rather than a fixed rate.
+
+use std::collections::{BTreeSet, HashMap};
+use std::sync::Arc;
+
+use chrono::NaiveDate;
+use rust_decimal::Decimal;
+
+use super::holidays::{Calendars, Lookup};
+use super::model::{AccountEntry, GlCodes, Problem, Severity};
+use super::rates::Rates;
+use super::source::Sheet;
+use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
+use crate::conventions::calendar::{BusinessDay, Calendar};
+use crate::conventions::compounding::Compounding;
+use crate::conventions::currency;
+use crate::conventions::daycount::Basis;
+use crate::conventions::names::{fold, lookup, UnknownName};
+use crate::conventions::rounding::RoundMode;
+use crate::conventions::schedule::{month_end, AnchorKind, Posting};
+use crate::engine::{AccountTerms, RoundAt, Side, TierMethod};
+
+const COLUMNS: &[Column] = &[
+    required("account"),
+    required("currency"),
+    required("day_count"),
+    required("open_date"),
+    required("opening_balance"),
+    optional("name"),
+    optional("side"),
+    optional("compounding"),
+    optional("posting"),
+    optional("posting_anchor"),
+    optional("anchor_kind"),
+    optional("capitalise"),
+    optional("round_at"),
+    optional("round_mode"),
+    optional("round_places"),
+    optional("maturity"),
+    optional("rate_ref"),
+    optional("debit_rate_ref"),
+    optional("tier_method"),
+    optional("calendar"),
+    optional("business_day"),
+    optional("payment_delay_days"),
+    optional("opening_accrued"),
+    optional("period_start"),
+    optional("rate_method"),
+    optional("lookback_days"),
+    optional("observation_shift"),
+    optional("lockout_days"),
+    optional("spread_compounded"),
+    optional("floor_on"),
+    optional("gl_interest"),
+    optional("gl_accrued"),
+    optional("gl_settlement"),
+];
+const ACCOUNT: usize = 0;
+const CURRENCY: usize = 1;
+const DAY_COUNT: usize = 2;
+const OPEN_DATE: usize = 3;
+const OPENING_BALANCE: usize = 4;
+const NAME: usize = 5;
+const SIDE: usize = 6;
+const COMPOUNDING: usize = 7;
+const POSTING: usize = 8;
+const POSTING_ANCHOR: usize = 9;
+const ANCHOR_KIND: usize = 10;
+const CAPITALISE: usize = 11;
+const ROUND_AT: usize = 12;
+const ROUND_MODE: usize = 13;
+const ROUND_PLACES: usize = 14;
+const MATURITY: usize = 15;
+const RATE_REF: usize = 16;
+const DEBIT_RATE_REF: usize = 17;
+const TIER_METHOD: usize = 18;
+const CALENDAR: usize = 19;
+const BUSINESS_DAY: usize = 20;
+const PAYMENT_DELAY_DAYS: usize = 21;
+const OPENING_ACCRUED: usize = 22;
+const PERIOD_START: usize = 23;
+const RATE_METHOD: usize = 24;
+const LOOKBACK_DAYS: usize = 25;
+const OBSERVATION_SHIFT: usize = 26;
+const LOCKOUT_DAYS: usize = 27;
+const SPREAD_COMPOUNDED: usize = 28;
+const FLOOR_ON: usize = 29;
+const GL_INTEREST: usize = 30;
+const GL_ACCRUED: usize = 31;
+const GL_SETTLEMENT: usize = 32;
+
+/// The most days a day-count column (payment delay, lookback, lockout) may hold.
+const MAX_DAYS: u32 = 3650;
+
+/// The most places daily interest may be rounded to.
+const MAX_ROUND_PLACES: u32 = 12;
+
+/// How a rate is found for each day.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum RateMethod {
+    Fixed,
+    SimpleDaily,
+    CompoundedInArrears,
+}
+
+impl RateMethod {
+    fn parse(s: &str) -> Result<RateMethod, UnknownName> {
+        lookup(
+            "rate method",
+            s,
+            &[
+                ("fixed", RateMethod::Fixed),
+                ("simple-daily", RateMethod::SimpleDaily),
+                ("compounded-in-arrears", RateMethod::CompoundedInArrears),
+            ],
+            &["fixed", "simple-daily", "compounded-in-arrears"],
+        )
+    }
+}
+
+/// An account's dates, for the checks of other sheets' rows.
+#[derive(Debug, Clone)]
+pub(crate) struct Life {
+    /// O, when it could be read.
+    pub open: Option<NaiveDate>,
+    /// M, when given.
+    pub maturity: Option<NaiveDate>,
+}
+
+/// What the Accounts sheet gives.
+#[derive(Debug, Default)]
+pub(crate) struct Accounts {
+    /// Accounts whose row had no error, in sheet order.
+    pub entries: Vec<AccountEntry>,
+    /// Every account id in the sheet (first row of each), with its dates.
+    pub known: HashMap<String, Life>,
+    /// Ids kept out by an error.
+    pub rejected: BTreeSet<String>,
+}
+
+/// What an account's row needs from the rest of the book.
+pub(crate) struct Others<'a> {
+    /// The Rates sheet.
+    pub rates: &'a Rates,
+    /// The Holidays sheet.
+    pub calendars: &'a Calendars,
+}
+
+/// Reads the Accounts sheet.
+pub(crate) fn read(
+    ctx: Ctx<'_>,
+    sheet: &Sheet,
+    others: &Others<'_>,
+    problems: &mut Vec<Problem>,
+) -> Option<Accounts> {
+    let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
+    let mut out = Accounts::default();
+    let mut first_row: HashMap<String, String> = HashMap::new();
+    let weekends = Arc::new(Calendar::weekends_only());
+    for rec in table.records() {
+        let mut f = Fields::new(ctx, &table, &rec, problems);
+        let Some(id) = f.required_text(ACCOUNT) else {
+            continue;
+        };
+        f.account = Some(id.clone());
+        if let Some(first) = first_row.get(&id) {
+            let first = first.clone();
+            f.report(
+                Severity::Error,
+                ACCOUNT,
+                &id,
+                &format!("each account once (it is already in {first})"),
+                "remove the second row or give it its own account id; this row is not used",
+            );
+            continue;
+        }
+        first_row.insert(id.clone(), f.cell_ref(ACCOUNT));
+        let entry = account(&mut f, &id, others, &weekends);
+        out.known.insert(
+            id.clone(),
+            Life {
+                open: entry.as_ref().map(|e| e.terms.open_date).or_else(|| {
+                    f.raw(OPEN_DATE)
+                        .and_then(|c| super::cell::date(c).ok().flatten())
+                }),
+                maturity: entry.as_ref().and_then(|e| e.terms.maturity),
+            },
+        );
+        match entry {
+            Some(e) if !f.failed => out.entries.push(e),
+            _ => {
+                out.rejected.insert(id);
+            }
+        }
+    }
+    Some(out)
+}
+
+/// One account's row; `None` when a required term cannot be read.
+fn account(
+    f: &mut Fields<'_, '_, '_>,
+    id: &str,
+    others: &Others<'_>,
+    weekends: &Arc<Calendar>,
+) -> Option<AccountEntry> {
+    let currency = currency_of(f);
+    let basis = f.required_named(DAY_COUNT, Basis::parse);
+    let open_date = f.required_date(OPEN_DATE);
+    let opening_balance = f.required_decimal(OPENING_BALANCE);
+    let name = f.text(NAME).unwrap_or_default();
+    let side = f.named(SIDE, Side::parse).unwrap_or_default();
+    let compounding = f.named(COMPOUNDING, Compounding::parse);
+    let posting = f.named(POSTING, Posting::parse);
+    let anchor = f.date(POSTING_ANCHOR);
+    let anchor_kind = f.named(ANCHOR_KIND, AnchorKind::parse).unwrap_or_default();
+    let capitalise = f.yes_no(CAPITALISE).unwrap_or(false);
+    let round_at = f.named(ROUND_AT, RoundAt::parse).unwrap_or_default();
+    let round_mode = f.named(ROUND_MODE, RoundMode::parse).unwrap_or_default();
+    let round_places = f.whole(ROUND_PLACES, 0, MAX_ROUND_PLACES);
+    let maturity = f.date(MATURITY);
+    let rate_ref = f.text(RATE_REF).unwrap_or_else(|| id.to_string());
+    let debit_rate_ref = f.text(DEBIT_RATE_REF);
+    let tier_method = f.named(TIER_METHOD, TierMethod::parse).unwrap_or_default();
+    let calendar_name = f.text(CALENDAR);
+    let business_day = f
+        .named(BUSINESS_DAY, BusinessDay::parse)
+        .unwrap_or_default();
+    let payment_delay_days = f.whole(PAYMENT_DELAY_DAYS, 0, MAX_DAYS).unwrap_or(0);
+    let opening_accrued = f.decimal(OPENING_ACCRUED).unwrap_or(Decimal::ZERO);
+    let period_start = f.date(PERIOD_START);
+    let gl = GlCodes {
+        interest: f.text(GL_INTEREST),
+        accrued: f.text(GL_ACCRUED),
+        settlement: f.text(GL_SETTLEMENT),
+    };
+    floating_terms(f);
+
+    let ((code, minor_units), basis, open_date, opening_balance) =
+        (currency?, basis?, open_date?, opening_balance?);
+    let compounding = compounding.unwrap_or_default();
+    let posting = posting.unwrap_or_default();
+
+    let calendar = match calendar_name {
+        Some(n) => calendar_of(f, &n, others.calendars).unwrap_or_else(|| Arc::clone(weekends)),
+        None => {
+            if basis == Basis::Bus252 {
+                f.report(
+                    Severity::Note,
+                    DAY_COUNT,
+                    basis.name(),
+                    "a calendar for BUS/252 (business days / 252)",
+                    "no calendar is named, so only Saturdays and Sundays are non-business days; name a Holidays calendar in calendar if the account has holidays",
+                );
+            }
+            Arc::clone(weekends)
+        }
+    };
+
+    let terms = AccountTerms {
+        id: id.to_string(),
+        currency: code,
+        minor_units,
+        side,
+        basis,
+        compounding,
+        posting,
+        anchor,
+        anchor_kind,
+        capitalise,
+        round_at,
+        round_mode,
+        round_places,
+        maturity,
+        tier_method,
+        calendar,
+        business_day,
+        payment_delay_days,
+        open_date,
+        opening_balance,
+        opening_accrued,
+        period_start,
+    };
+    check_terms(f, &terms);
+    check_rates(
+        f,
+        &terms,
+        &rate_ref,
+        debit_rate_ref.as_deref(),
+        others.rates,
+    );
+    let position = f.position(ACCOUNT);
+    Some(AccountEntry {
+        terms,
+        name,
+        rate_ref,
+        debit_rate_ref,
+        gl,
+        position,
+    })
+}
+
+/// The ISO 4217 code and its minor unit.
+fn currency_of(f: &mut Fields<'_, '_, '_>) -> Option<(String, u32)> {
+    let code = f.required_text(CURRENCY)?;
+    match currency::lookup(&code) {
+        Some(c) => match c.minor_units {
+            Some(m) => Some((c.code.to_string(), m)),
+            None => {
+                f.report(
+                    Severity::Error,
+                    CURRENCY,
+                    &code,
+                    "a currency with a minor unit (ISO 4217 gives none for this code)",
+                    "use the currency the account is kept in; amounts are rounded to its minor unit",
+                );
+                None
+            }
+        },
+        None => {
+            let fix = match currency::suggest(&code) {
+                Some(s) => format!("did you mean {s}? write the ISO 4217 code"),
+                None => "write the ISO 4217 code, for example USD, EUR or JPY".to_string(),
+            };
+            f.report(
+                Severity::Error,
+                CURRENCY,
+                &code,
+                "an ISO 4217 currency code",
+                &fix,
+            );
+            None
+        }
+    }
+}
+
+/// The account's calendar from Holidays; `None` after an error.
+fn calendar_of(
+    f: &mut Fields<'_, '_, '_>,
+    name: &str,
+    calendars: &Calendars,
+) -> Option<Arc<Calendar>> {
+    match calendars.lookup(name) {
+        Lookup::Found(c) => Some(c),
+        Lookup::Broken(cell) => {
+            f.report(
+                Severity::Error,
+                CALENDAR,
+                name,
+                &format!("a calendar whose Holidays rows can be read (see Holidays!{cell})"),
+                "correct the calendar's rows in the Holidays sheet",
+            );
+            None
+        }
+        Lookup::Unknown(near) => {
+            let fix = match (near, calendars.read) {
+                (Some(n), _) => format!("did you mean {n}? name a calendar of the Holidays sheet"),
+                (None, true) => {
+                    "add the calendar's holidays to the Holidays sheet, or correct the name"
+                        .to_string()
+                }
+                (None, false) => {
+                    "add a Holidays sheet (calendar, date, name) with the calendar's holidays"
+                        .to_string()
+                }
+            };
+            f.report(
+                Severity::Error,
+                CALENDAR,
+                name,
+                "a calendar named in the Holidays sheet",
+                &fix,
+            );
+            None
+        }
+    }
+}
+
+/// Floating-rate terms are not computed yet: using one is an error, never
+/// a silent fixed-rate approximation.
+fn floating_terms(f: &mut Fields<'_, '_, '_>) {
+    const EXPECTED: &str = "a fixed-rate account (rate_method fixed; lookback_days, observation_shift, lockout_days, spread_compounded and floor_on left blank)";
+    let unsupported = |what: &str| {
+        format!("floating rates ({what}) are not supported yet: leave the account out of the book or give it fixed rates")
+    };
+    if let Some(m) = f.named(RATE_METHOD, RateMethod::parse) {
+        if m != RateMethod::Fixed {
+            let shown = f.raw(RATE_METHOD).map(|c| c.shown()).unwrap_or_default();
+            let name = match m {
+                RateMethod::SimpleDaily => "simple-daily",
+                _ => "compounded-in-arrears",
+            };
+            f.report(
+                Severity::Error,
+                RATE_METHOD,
+                &shown,
+                EXPECTED,
+                &unsupported(&format!("rate_method {name}")),
+            );
+        }
+    }
+    for (i, name) in [
+        (LOOKBACK_DAYS, "lookback_days"),
+        (LOCKOUT_DAYS, "lockout_days"),
+    ] {
+        if let Some(n) = f.whole(i, 0, MAX_DAYS) {
+            if n > 0 {
+                f.report(
+                    Severity::Error,
+                    i,
+                    &n.to_string(),
+                    EXPECTED,
+                    &unsupported(&format!("{name} {n}")),
+                );
+            }
+        }
+    }
+    for (i, name) in [
+        (OBSERVATION_SHIFT, "observation_shift"),
+        (SPREAD_COMPOUNDED, "spread_compounded"),
+    ] {
+        if f.yes_no(i) == Some(true) {
+            f.report(
+                Severity::Error,
+                i,
+                "yes",
+                EXPECTED,
+                &unsupported(&format!("{name} yes")),
+            );
+        }
+    }
+    if let Some(v) = f.text(FLOOR_ON) {
+        f.report(
+            Severity::Error,
+            FLOOR_ON,
+            &v,
+            EXPECTED,
+            &unsupported(&format!("floor_on {v}")),
+        );
+    }
+}
+
+/// Checks of one account's terms against each other.
+fn check_terms(f: &mut Fields<'_, '_, '_>, t: &AccountTerms) {
+    let open_cell = f.cell_ref(OPEN_DATE);
+    if let Some(m) = t.maturity {
+        if m <= t.open_date {
+            f.report(
+                Severity::Error,
+                MATURITY,
+                &m.to_string(),
+                &format!(
+                    "a maturity after the open_date {} ({open_cell})",
+                    t.open_date
+                ),
+                "correct the maturity or the open_date",
+            );
+        }
+    }
+    if let Some(p) = t.period_start {
+        if p > t.open_date {
+            f.report(
+                Severity::Error,
+                PERIOD_START,
+                &p.to_string(),
+                &format!("a period_start on or before the open_date {} ({open_cell})", t.open_date),
+                "period_start is where the period open on the open_date began: correct it, or leave it blank",
+            );
+        }
+    }
+    if t.posting == Posting::Maturity && t.maturity.is_none() {
+        f.report(
+            Severity::Error,
+            POSTING,
+            t.posting.name(),
+            "a maturity for posting at maturity",
+            "fill in maturity, or choose another posting frequency",
+        );
+    }
+    if t.basis == Basis::ActActIcma && t.posting.per_year().is_none() {
+        f.report(
+            Severity::Error,
+            DAY_COUNT,
+            t.basis.name(),
+            &format!(
+                "a posting frequency for ACT/ACT ICMA (monthly, quarterly, semiannual or annual), not posting {}",
+                t.posting.name()
+            ),
+            "ACT/ACT ICMA measures days against regular periods: give a periodic posting, or use another basis",
+        );
+    }
+    if t.anchor.is_none()
+        && matches!(
+            t.posting,
+            Posting::Quarterly | Posting::Semiannual | Posting::Annual
+        )
+    {
+        let start = t.first_period_start();
+        let anchor = month_end(start).map_or_else(String::new, |d| d.to_string());
+        f.report(
+            Severity::Warning,
+            POSTING,
+            t.posting.name(),
+            &format!("a posting_anchor for a {} posting", t.posting.name()),
+            &format!("without one, periods are counted from the month of {start} (anchor {anchor}); give posting_anchor to fix the schedule"),
+        );
+    }
+    if let (Some(c), Some(p)) = (t.compounding.months(), t.posting.months()) {
+        if c > p {
+            f.report(
+                Severity::Warning,
+                COMPOUNDING,
+                t.compounding.name(),
+                &format!("compounding at least as often as posting ({})", t.posting.name()),
+                "interest is posted before it compounds, so compounding has no effect between postings: check the terms",
+            );
+        }
+    }
+    if let Some(places) = t.round_places {
+        if t.round_at == RoundAt::Posting {
+            f.report(
+                Severity::Note,
+                ROUND_PLACES,
+                &places.to_string(),
+                "round_places with round_at daily",
+                "round_places only applies when round_at is daily; posted amounts use the currency's minor unit",
+            );
+        } else if places < t.minor_units {
+            f.report(
+                Severity::Warning,
+                ROUND_PLACES,
+                &places.to_string(),
+                &format!("at least the {} places of {}", t.minor_units, t.currency),
+                "daily interest is rounded to fewer places than the currency's minor unit: check the terms",
+            );
+        }
+    }
+}
+
+/// Checks of the account's rate schedules.
+fn check_rates(
+    f: &mut Fields<'_, '_, '_>,
+    t: &AccountTerms,
+    rate_ref: &str,
+    debit: Option<&str>,
+    rates: &Rates,
+) {
+    let col = if f.given(RATE_REF) { RATE_REF } else { ACCOUNT };
+    schedule_check(f, t, rate_ref, col, rates, Severity::Error);
+    if let Some(d) = debit {
+        schedule_check(f, t, d, DEBIT_RATE_REF, rates, Severity::Warning);
+    }
+}
+
+/// Whether `rate_ref` names a usable schedule in force on the open date.
+/// A late start is `late` (an error for the account's own rates, a warning
+/// for debit rates, which apply only on overdrawn days).
+fn schedule_check(
+    f: &mut Fields<'_, '_, '_>,
+    t: &AccountTerms,
+    rate_ref: &str,
+    col: usize,
+    rates: &Rates,
+    late: Severity,
+) {
+    let which = if col == DEBIT_RATE_REF {
+        "debit_rate_ref"
+    } else {
+        "rate_ref"
+    };
+    if let Some((what, cell)) = rates.floating.get(rate_ref) {
+        f.report(
+            Severity::Error,
+            col,
+            rate_ref,
+            &format!("a fixed rate schedule (Rates!{cell} has {what})"),
+            &format!("floating rates ({what}) are not supported yet: leave the account out of the book or give it fixed rates"),
+        );
+        return;
+    }
+    if let Some(cell) = rates.broken.get(rate_ref) {
+        f.report(
+            Severity::Error,
+            col,
+            rate_ref,
+            &format!("a rate schedule without errors (see Rates!{cell})"),
+            "correct the schedule's rows in the Rates sheet",
+        );
+        return;
+    }
+    let Some((first, cell)) = rates.first.get(rate_ref) else {
+        let near = rates
+            .first
+            .keys()
+            .find(|k| near_miss(&fold(rate_ref), &fold(k)));
+        let fix = match (near, rates.read) {
+            (Some(n), _) => format!(
+                "did you mean {n}? add rows for {rate_ref} to the Rates sheet, or correct {which}"
+            ),
+            (None, true) => {
+                format!("add rows for {rate_ref} to the Rates sheet, or correct {which}")
+            }
+            (None, false) => "the Rates sheet cannot be used: see its problems".to_string(),
+        };
+        f.report(
+            Severity::Error,
+            col,
+            rate_ref,
+            &format!("a {which} with rows in the Rates sheet"),
+            &fix,
+        );
+        return;
+    };
+    if *first > t.open_date {
+        let open_cell = f.cell_ref(OPEN_DATE);
+        f.report(
+            late,
+            OPEN_DATE,
+            &t.open_date.to_string(),
+            &format!(
+                "a rate of {rate_ref} in force on the open_date ({open_cell}); its first rate takes effect on {first} (Rates!{cell})"
+            ),
+            "a rate that starts after the account opens leaves days without a rate: add an earlier rate row or correct the dates",
+        );
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn column_indices_match_the_column_list() {
+        let names: Vec<&str> = COLUMNS.iter().map(|c| c.name).collect();
+        let at = |i: usize| names.get(i).copied();
+        assert_eq!(at(ACCOUNT), Some("account"));
+        assert_eq!(at(OPENING_BALANCE), Some("opening_balance"));
+        assert_eq!(at(ROUND_PLACES), Some("round_places"));
+        assert_eq!(at(CALENDAR), Some("calendar"));
+        assert_eq!(at(PERIOD_START), Some("period_start"));
+        assert_eq!(at(FLOOR_ON), Some("floor_on"));
+        assert_eq!(at(GL_SETTLEMENT), Some("gl_settlement"));
+        assert_eq!(names.len(), GL_SETTLEMENT + 1);
+    }
+
+    #[test]
+    fn rate_methods_by_name() {
+        assert_eq!(RateMethod::parse("Fixed"), Ok(RateMethod::Fixed));
+        assert_eq!(
+            RateMethod::parse("compounded in arrears"),
+            Ok(RateMethod::CompoundedInArrears)
+        );
+        assert_eq!(
+            RateMethod::parse("simple_daly").unwrap_err().suggestion,
+            Some("simple-daily")
+        );
+    }
+}

@@ -1,0 +1,91 @@
+//! The Movements sheet: balance movements by account (a positive amount
+//! raises the balance), each with its value date and, for a back-valued
+//! movement, the date it was booked.
+//!
+//! A movement row with an error keeps its account out (its balance would be
+//! wrong without it); a row of an unknown account is an error and left out.
+//! Movements are kept in sheet order; nothing here sums or sorts them.
+
+use std::collections::{BTreeMap, HashMap};
+
+use super::accounts::Life;
+use super::model::{Problem, Severity};
+use super::source::Sheet;
+use super::table::{optional, required, Column, Ctx, Fields, Table};
+use crate::engine::Movement;
+
+const COLUMNS: &[Column] = &[
+    required("account"),
+    required("value_date"),
+    required("amount"),
+    optional("booking_date"),
+    optional("reference"),
+];
+const ACCOUNT: usize = 0;
+const VALUE_DATE: usize = 1;
+const AMOUNT: usize = 2;
+const BOOKING_DATE: usize = 3;
+const REFERENCE: usize = 4;
+
+/// What the Movements sheet gives.
+#[derive(Debug, Default)]
+pub(crate) struct Movements {
+    /// Good movements by account, in sheet order.
+    pub by_account: BTreeMap<String, Vec<Movement>>,
+    /// Accounts with a bad movement row.
+    pub spoiled: Vec<String>,
+}
+
+/// Reads the Movements sheet; `None` when the sheet cannot be read as a table.
+pub(crate) fn read(
+    ctx: Ctx<'_>,
+    sheet: &Sheet,
+    accounts: &HashMap<String, Life>,
+    problems: &mut Vec<Problem>,
+) -> Option<Movements> {
+    let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
+    let mut out = Movements::default();
+    for rec in table.records() {
+        let mut f = Fields::new(ctx, &table, &rec, problems);
+        let Some(id) = f.required_text(ACCOUNT) else {
+            continue;
+        };
+        f.account = Some(id.clone());
+        let Some(life) = accounts.get(&id) else {
+            f.report(
+                Severity::Error,
+                ACCOUNT,
+                &id,
+                "an account of the Accounts sheet",
+                "correct the account id, or add the account to the Accounts sheet; the row is not used",
+            );
+            continue;
+        };
+        let value_date = f.required_date(VALUE_DATE);
+        let amount = f.required_decimal(AMOUNT);
+        let booking_date = f.date(BOOKING_DATE);
+        let reference = f.text(REFERENCE);
+        let (Some(value_date), Some(amount), false) = (value_date, amount, f.failed) else {
+            out.spoiled.push(id);
+            continue;
+        };
+        if let Some(open) = life.open {
+            if value_date < open {
+                f.report(
+                    Severity::Warning,
+                    VALUE_DATE,
+                    &value_date.to_string(),
+                    &format!("a value date on or after the account's open_date {open}"),
+                    "the opening balance is taken to include this movement, which is not applied again; remove the row if that is so",
+                );
+            }
+        }
+        out.by_account.entry(id).or_default().push(Movement {
+            value_date,
+            amount,
+            booking_date,
+            reference,
+        });
+    }
+    Some(out)
+}

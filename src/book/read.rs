@@ -1,0 +1,185 @@
+//! Reading one book into a typed [`Book`], and the checks across the books
+//! of one run.
+//!
+//! [`read_book`] never fails: whatever is wrong with the file or its cells
+//! is a [`Problem`] in the book, and an account with an error is kept out of
+//! `accounts` with its rows of other sheets. The input is only read.
+
+use std::collections::{BTreeSet, HashMap};
+use std::path::Path;
+
+use super::accounts::{self, Others};
+use super::cell::NumberStyle;
+use super::holidays::{self, Calendars};
+use super::model::{Book, Position, Problem, Severity};
+use super::rates::{self, Rates};
+use super::settings::{self, Settings};
+use super::source::{self, Sheet, SheetKind};
+use super::table::Ctx;
+use super::{movements, statements};
+
+/// How to read a book.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct ReadOptions {
+    /// Number text uses a decimal comma (`1.234,56`). Without it such text is
+    /// an error that says to use this option.
+    pub decimal_comma: bool,
+}
+
+/// Reads the book at `path`: a workbook (.xlsx, .xlsm, .xlsb, .xls, .ods,
+/// chosen by extension, or by content when the extension is unknown) or a
+/// folder of CSV files named after the sheets.
+///
+/// Never fails: a file that cannot be read gives a book with an error
+/// problem and nothing else.
+///
+/// ```
+/// use std::path::Path;
+/// use ledgerate::book::{read_book, ReadOptions};
+///
+/// let book = read_book(Path::new("tests/fixtures/books/harbourview_good.xlsx"), &ReadOptions::default());
+/// assert!(!book.has_errors());
+/// let saver = book.accounts.iter().find(|a| a.terms.id == "HM-SAV-001").unwrap();
+/// assert_eq!(saver.terms.currency, "USD");
+///
+/// let missing = read_book(Path::new("tests/fixtures/books/no_such_book.xlsx"), &ReadOptions::default());
+/// assert!(missing.has_errors() && missing.accounts.is_empty());
+/// ```
+pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
+    let name = path.display().to_string();
+    let loaded = source::load(path, &name);
+    let mut book = Book {
+        path: path.to_path_buf(),
+        problems: loaded.problems,
+        ..Book::default()
+    };
+    let ctx = Ctx {
+        book: &name,
+        style: NumberStyle {
+            decimal_comma: options.decimal_comma,
+        },
+    };
+    let sheet = |kind: SheetKind| loaded.sheets.iter().find(|s| s.kind == kind);
+    let problems = &mut book.problems;
+
+    let settings = sheet(SheetKind::Settings)
+        .map_or_else(Settings::default, |s| settings::read(ctx, s, problems));
+    let calendars = sheet(SheetKind::Holidays)
+        .map_or_else(Calendars::default, |s| holidays::read(ctx, s, problems));
+    let rates =
+        sheet(SheetKind::Rates).map_or_else(Rates::default, |s| rates::read(ctx, s, problems));
+    let others = Others {
+        rates: &rates,
+        calendars: &calendars,
+    };
+    let Some(found) =
+        sheet(SheetKind::Accounts).and_then(|s| accounts::read(ctx, s, &others, problems))
+    else {
+        book.settings = settings.rows;
+        return book;
+    };
+    let mut rejected: BTreeSet<String> = found.rejected;
+    let mut entries = found.entries;
+
+    if let Some(s) = sheet(SheetKind::Movements) {
+        match movements::read(ctx, s, &found.known, problems) {
+            Some(m) => {
+                rejected.extend(m.spoiled);
+                book.movements = m.by_account;
+            }
+            None => unusable_sheet(s, &entries, problems, &mut rejected),
+        }
+    }
+    if let Some(s) = sheet(SheetKind::Statements) {
+        match statements::read(ctx, s, &found.known, settings.statement_end, problems) {
+            Some(st) => {
+                rejected.extend(st.spoiled);
+                book.statements = st.rows;
+            }
+            None => unusable_sheet(s, &entries, problems, &mut rejected),
+        }
+    }
+
+    entries.retain(|e| !rejected.contains(&e.terms.id));
+    let kept: BTreeSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
+    book.movements.retain(|id, _| kept.contains(id.as_str()));
+    book.statements
+        .retain(|s| kept.contains(s.account.as_str()));
+    book.rates = rates.schedules;
+    book.accounts = entries;
+    book.settings = settings.rows;
+    book
+}
+
+/// A Movements or Statements sheet that cannot be read as a table leaves
+/// every account's balance or postings unknown: each account gets an error.
+fn unusable_sheet(
+    sheet: &Sheet,
+    entries: &[super::model::AccountEntry],
+    problems: &mut Vec<Problem>,
+    rejected: &mut BTreeSet<String>,
+) {
+    for e in entries {
+        problems.push(Problem {
+            severity: Severity::Error,
+            position: e.position.clone(),
+            account: Some(e.terms.id.clone()),
+            found: e.terms.id.clone(),
+            expected: format!("a {} sheet that can be read", sheet.kind.label()),
+            fix: format!(
+                "the {} sheet ({}) cannot be read, so this account cannot be computed: correct that sheet",
+                sheet.kind.label(),
+                sheet.name
+            ),
+        });
+        rejected.insert(e.terms.id.clone());
+    }
+}
+
+/// Makes account ids unique across the books of a run: the second and later
+/// books holding an id get an error on that account, which is dropped from
+/// them with its movements and statements. The first book keeps it.
+///
+/// ```
+/// use std::path::Path;
+/// use ledgerate::book::{check_unique_ids, read_book, ReadOptions};
+///
+/// let path = Path::new("tests/fixtures/books/harbourview_good.xlsx");
+/// let mut books = vec![read_book(path, &ReadOptions::default()), read_book(path, &ReadOptions::default())];
+/// let count = books[0].accounts.len();
+/// check_unique_ids(&mut books);
+/// assert_eq!(books[0].accounts.len(), count);
+/// assert!(books[1].accounts.is_empty());
+/// assert!(books[1].has_errors());
+/// ```
+pub fn check_unique_ids(books: &mut [Book]) {
+    let mut seen: HashMap<String, Position> = HashMap::new();
+    for book in books.iter_mut() {
+        let mut dropped: BTreeSet<String> = BTreeSet::new();
+        for entry in &book.accounts {
+            let id = &entry.terms.id;
+            match seen.get(id) {
+                Some(first) => {
+                    book.problems.push(Problem {
+                        severity: Severity::Error,
+                        position: entry.position.clone(),
+                        account: Some(id.clone()),
+                        found: id.clone(),
+                        expected: format!("account ids unique across the books of a run (it is also in {first})"),
+                        fix: "remove the account from one of the books, or give it its own id; this one is not used".to_string(),
+                    });
+                    dropped.insert(id.clone());
+                }
+                None => {
+                    seen.insert(id.clone(), entry.position.clone());
+                }
+            }
+        }
+        if dropped.is_empty() {
+            continue;
+        }
+        book.accounts.retain(|e| !dropped.contains(&e.terms.id));
+        book.movements.retain(|id, _| !dropped.contains(id));
+        book.statements.retain(|s| !dropped.contains(&s.account));
+    }
+}

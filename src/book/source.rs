@@ -1,0 +1,998 @@
+//! Opening a book and reading its sheets into plain rows of cells: a
+//! workbook (xlsx, xlsm, xlsb, xls, ods) or a folder of CSV files named after
+//! the sheets.
+//!
+//! Files are only ever opened for reading. A file that cannot be read, is
+//! empty, truncated or not a workbook gives a problem, never a panic. xlsx and
+//! xlsb sheets are streamed cell by cell, so a stray cell far down and right
+//! costs one cell, not a dense grid up to it. Nothing here knows what a
+//! column means.
+
+use std::fs::{self, File};
+use std::io::{BufReader, Read};
+use std::panic::{catch_unwind, AssertUnwindSafe};
+use std::path::Path;
+
+use calamine::{
+    open_workbook, Ods, OdsError, Reader, SheetType, Xls, XlsError, Xlsb, XlsbError, Xlsx,
+    XlsxError,
+};
+
+use super::cell::{shown, Cell};
+use super::model::{Position, Problem, Severity};
+use super::table::near_miss;
+use crate::conventions::names::fold;
+
+/// The sheets a book may hold.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub(crate) enum SheetKind {
+    /// One row per account.
+    Accounts,
+    /// Rate tables.
+    Rates,
+    /// Balance movements.
+    Movements,
+    /// Postings as statements show them.
+    Statements,
+    /// Index fixings (floating rates; not read yet).
+    Fixings,
+    /// Holiday calendars.
+    Holidays,
+    /// Run settings.
+    Settings,
+}
+
+impl SheetKind {
+    /// Every sheet, in the order books.md lists them.
+    pub(crate) const ALL: [SheetKind; 7] = [
+        SheetKind::Accounts,
+        SheetKind::Rates,
+        SheetKind::Movements,
+        SheetKind::Statements,
+        SheetKind::Fixings,
+        SheetKind::Holidays,
+        SheetKind::Settings,
+    ];
+
+    /// The sheet's name as written in books.md.
+    pub(crate) fn label(self) -> &'static str {
+        match self {
+            SheetKind::Accounts => "Accounts",
+            SheetKind::Rates => "Rates",
+            SheetKind::Movements => "Movements",
+            SheetKind::Statements => "Statements",
+            SheetKind::Fixings => "Fixings",
+            SheetKind::Holidays => "Holidays",
+            SheetKind::Settings => "Settings",
+        }
+    }
+
+    /// Whether a book must have it.
+    pub(crate) fn required(self) -> bool {
+        matches!(self, SheetKind::Accounts | SheetKind::Rates)
+    }
+
+    /// The sheet a name stands for (case, spaces, `_` and `-` ignored).
+    pub(crate) fn from_name(name: &str) -> Option<SheetKind> {
+        let key = fold(name);
+        SheetKind::ALL.into_iter().find(|k| fold(k.label()) == key)
+    }
+}
+
+/// A row of a sheet: its 0-based index and its non-blank cells by column.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub(crate) struct Row {
+    /// 0-based row index in the sheet (a CSV file: its line number less one).
+    pub index: u32,
+    /// Non-blank cells, by 0-based column, ascending.
+    pub cells: Vec<(u32, Cell)>,
+}
+
+/// One sheet that was read.
+#[derive(Debug, Clone)]
+pub(crate) struct Sheet {
+    /// What the sheet is.
+    pub kind: SheetKind,
+    /// The name to show in positions (a CSV file: its name without `.csv`).
+    pub name: String,
+    /// Rows with at least one non-blank cell, in order.
+    pub rows: Vec<Row>,
+}
+
+/// The sheets of a book and the problems met opening it.
+#[derive(Debug, Default)]
+pub(crate) struct Loaded {
+    /// Sheets of known kinds, at most one of each.
+    pub sheets: Vec<Sheet>,
+    /// Book- and sheet-level problems.
+    pub problems: Vec<Problem>,
+}
+
+impl Loaded {
+    fn problem(
+        &mut self,
+        severity: Severity,
+        position: Position,
+        found: &str,
+        expected: &str,
+        fix: &str,
+    ) {
+        self.problems.push(Problem {
+            severity,
+            position,
+            account: None,
+            found: shown(found),
+            expected: expected.to_string(),
+            fix: fix.to_string(),
+        });
+    }
+}
+
+/// The A1 name of a 0-based cell: `(0, 0)` is `A1`, `(6, 27)` is `AB7`.
+pub(crate) fn a1(row: u32, col: u32) -> String {
+    format!("{}{}", column_letters(col), u64::from(row) + 1)
+}
+
+/// The A1 name of a whole row: `7:7`.
+pub(crate) fn a1_row(row: u32) -> String {
+    let n = u64::from(row) + 1;
+    format!("{n}:{n}")
+}
+
+/// Column letters of a 0-based column: 0 is `A`, 25 `Z`, 26 `AA`.
+pub(crate) fn column_letters(col: u32) -> String {
+    let mut n = u64::from(col) + 1;
+    let mut letters = Vec::new();
+    while n > 0 {
+        let rem = (n - 1) % 26;
+        letters.push(char::from(b'A' + u8::try_from(rem).unwrap_or(0)));
+        n = (n - 1) / 26;
+    }
+    letters.iter().rev().collect()
+}
+
+/// What a file's first bytes say it is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Content {
+    /// A zip archive: xlsx, xlsm, xlsb or ods.
+    Zip,
+    /// An OLE compound file: xls (or an encrypted xlsx).
+    Ole,
+    /// Anything else.
+    Other,
+}
+
+fn sniff(head: &[u8]) -> Content {
+    if head.starts_with(b"PK\x03\x04") {
+        Content::Zip
+    } else if head.starts_with(&[0xD0, 0xCF, 0x11, 0xE0, 0xA1, 0xB1, 0x1A, 0xE1]) {
+        Content::Ole
+    } else {
+        Content::Other
+    }
+}
+
+/// The workbook formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Format {
+    Xlsx,
+    Xlsb,
+    Xls,
+    Ods,
+}
+
+impl Format {
+    fn name(self) -> &'static str {
+        match self {
+            Format::Xlsx => "xlsx",
+            Format::Xlsb => "xlsb",
+            Format::Xls => "xls",
+            Format::Ods => "ods",
+        }
+    }
+
+    fn content(self) -> Content {
+        match self {
+            Format::Xls => Content::Ole,
+            _ => Content::Zip,
+        }
+    }
+}
+
+/// Reads the book at `path` (a workbook file or a CSV folder). `book` is the
+/// name positions carry.
+pub(crate) fn load(path: &Path, book: &str) -> Loaded {
+    let mut loaded = Loaded::default();
+    let at_book = || Position {
+        book: book.to_string(),
+        ..Position::default()
+    };
+    let meta = match fs::metadata(path) {
+        Ok(m) => m,
+        Err(e) => {
+            loaded.problem(
+                Severity::Error,
+                at_book(),
+                &path.display().to_string(),
+                "a readable workbook file or folder of CSV files",
+                &format!(
+                    "check the path and that it may be read ({})",
+                    lower_first(&e.to_string())
+                ),
+            );
+            return loaded;
+        }
+    };
+    if meta.is_dir() {
+        read_csv_folder(path, book, &mut loaded);
+        check_required(book, &mut loaded, true);
+        return loaded;
+    }
+    let head = match read_head(path) {
+        Ok(h) => h,
+        Err(e) => {
+            loaded.problem(
+                Severity::Error,
+                at_book(),
+                &path.display().to_string(),
+                "a readable workbook file",
+                &format!(
+                    "check that the file may be read ({})",
+                    lower_first(&e.to_string())
+                ),
+            );
+            return loaded;
+        }
+    };
+    if head.is_empty() {
+        loaded.problem(
+            Severity::Error,
+            at_book(),
+            "an empty file",
+            "a workbook (.xlsx, .xlsm, .xlsb, .xls, .ods) or a folder of CSV files",
+            "the file has no bytes: save the book again from the spreadsheet program",
+        );
+        return loaded;
+    }
+    let extension = path
+        .extension()
+        .map(|e| e.to_string_lossy().to_ascii_lowercase())
+        .unwrap_or_default();
+    let content = sniff(&head);
+    let by_extension = match extension.as_str() {
+        "xlsx" | "xlsm" | "xltx" | "xltm" | "xlam" => Some(Format::Xlsx),
+        "xlsb" => Some(Format::Xlsb),
+        "xls" | "xla" => Some(Format::Xls),
+        "ods" => Some(Format::Ods),
+        "csv" => {
+            loaded.problem(
+                Severity::Error,
+                at_book(),
+                &path.display().to_string(),
+                "a workbook, or a folder of CSV files named after the sheets (accounts.csv, rates.csv...)",
+                "put the CSV files in a folder and give the folder as the book",
+            );
+            return loaded;
+        }
+        _ => None,
+    };
+    let format = match (by_extension, content) {
+        (Some(f), c) if f.content() == c => f,
+        (Some(f), _) => {
+            loaded.problem(
+                Severity::Error,
+                at_book(),
+                &format!(
+                    "a file named .{extension} that is not an {} workbook",
+                    f.name()
+                ),
+                &format!("an {} workbook", f.name()),
+                "save the book again from the spreadsheet program in the format its name says",
+            );
+            return loaded;
+        }
+        (None, Content::Zip) => zip_kind(path),
+        (None, Content::Ole) => Format::Xls,
+        (None, Content::Other) => {
+            loaded.problem(
+                Severity::Error,
+                at_book(),
+                &path.display().to_string(),
+                "a workbook (.xlsx, .xlsm, .xlsb, .xls, .ods) or a folder of CSV files",
+                "the file is not a workbook: give a workbook or a folder of CSV files",
+            );
+            return loaded;
+        }
+    };
+    // calamine indexes into buffers of a malformed file in places; a panic
+    // there must become a problem about the file, not end the run.
+    let read = catch_unwind(AssertUnwindSafe(|| read_workbook(path, book, format)));
+    match read {
+        Ok(Ok(l)) => loaded = l,
+        Ok(Err(message)) => {
+            loaded.problem(
+                Severity::Error,
+                at_book(),
+                &message,
+                &format!("a complete {} workbook", format.name()),
+                "the file is damaged or truncated: save the book again from the spreadsheet program",
+            );
+            return loaded;
+        }
+        Err(_) => {
+            loaded.problem(
+                Severity::Error,
+                at_book(),
+                "a workbook the reader could not take apart",
+                &format!("a complete {} workbook", format.name()),
+                "the file is damaged: save the book again from the spreadsheet program",
+            );
+            return loaded;
+        }
+    }
+    check_required(book, &mut loaded, false);
+    loaded
+}
+
+/// The first bytes of a file, for sniffing.
+fn read_head(path: &Path) -> std::io::Result<Vec<u8>> {
+    let mut head = Vec::with_capacity(8);
+    File::open(path)?.take(8).read_to_end(&mut head)?;
+    Ok(head)
+}
+
+/// Which zip-based format a file of unknown extension is: an ODS file names
+/// its type first; an xlsb holds `xl/workbook.bin`; anything else is tried as xlsx.
+fn zip_kind(path: &Path) -> Format {
+    let Ok(bytes) = fs::read(path) else {
+        return Format::Xlsx;
+    };
+    let has = |needle: &[u8]| bytes.windows(needle.len()).any(|w| w == needle);
+    let start = bytes.get(..200).unwrap_or(&bytes);
+    if start
+        .windows(46)
+        .any(|w| w == b"application/vnd.oasis.opendocument.spreadsheet")
+    {
+        Format::Ods
+    } else if has(b"xl/workbook.bin") {
+        Format::Xlsb
+    } else {
+        Format::Xlsx
+    }
+}
+
+fn lower_first(s: &str) -> String {
+    let mut c = s.chars();
+    match c.next() {
+        Some(f) => f.to_lowercase().chain(c).collect(),
+        None => String::new(),
+    }
+}
+
+/// The cells of one sheet, as (row, column, cell), blank cells left out.
+type Cells = Vec<(u32, u32, Cell)>;
+
+/// Reads every sheet of a known kind; the `Err` is a message about the file.
+fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, String> {
+    let mut loaded = Loaded::default();
+    match format {
+        Format::Xlsx => {
+            let mut wb: Xlsx<BufReader<File>> =
+                open_workbook(path).map_err(|e: XlsxError| lower_first(&e.to_string()))?;
+            let names = worksheet_names(wb.sheets_metadata());
+            for (kind, name) in pick_sheets(book, &names, &mut loaded) {
+                let cells = read_xlsx_sheet(&mut wb, &name, book, &mut loaded);
+                push_sheet(book, kind, name, cells, &mut loaded);
+            }
+        }
+        Format::Xlsb => {
+            let mut wb: Xlsb<BufReader<File>> =
+                open_workbook(path).map_err(|e: XlsbError| lower_first(&e.to_string()))?;
+            let names = worksheet_names(wb.sheets_metadata());
+            for (kind, name) in pick_sheets(book, &names, &mut loaded) {
+                let cells = read_xlsb_sheet(&mut wb, &name);
+                push_sheet(book, kind, name, cells, &mut loaded);
+            }
+        }
+        Format::Xls => {
+            let mut wb: Xls<BufReader<File>> =
+                open_workbook(path).map_err(|e: XlsError| lower_first(&e.to_string()))?;
+            let names = worksheet_names(wb.sheets_metadata());
+            for (kind, name) in pick_sheets(book, &names, &mut loaded) {
+                let cells = read_range(&mut wb, &name);
+                push_sheet(book, kind, name, cells, &mut loaded);
+            }
+        }
+        Format::Ods => {
+            let mut wb: Ods<BufReader<File>> =
+                open_workbook(path).map_err(|e: OdsError| lower_first(&e.to_string()))?;
+            let names = worksheet_names(wb.sheets_metadata());
+            for (kind, name) in pick_sheets(book, &names, &mut loaded) {
+                let cells = read_range(&mut wb, &name);
+                push_sheet(book, kind, name, cells, &mut loaded);
+            }
+        }
+    }
+    Ok(loaded)
+}
+
+/// Worksheet names in workbook order (chart and macro sheets left out).
+fn worksheet_names(meta: &[calamine::Sheet]) -> Vec<String> {
+    meta.iter()
+        .filter(|s| s.typ == SheetType::WorkSheet)
+        .map(|s| s.name.clone())
+        .collect()
+}
+
+/// The sheets to read: one per known kind. Notes the sheets that are not
+/// read; a second sheet of a kind is an error.
+fn pick_sheets(book: &str, names: &[String], loaded: &mut Loaded) -> Vec<(SheetKind, String)> {
+    let mut picked: Vec<(SheetKind, String)> = Vec::new();
+    for name in names {
+        let at = Position {
+            book: book.to_string(),
+            sheet: name.clone(),
+            cell: String::new(),
+        };
+        match SheetKind::from_name(name) {
+            Some(kind) => {
+                if let Some((_, first)) = picked.iter().find(|(k, _)| *k == kind) {
+                    loaded.problem(
+                        Severity::Error,
+                        at,
+                        name,
+                        &format!("one {} sheet", kind.label()),
+                        &format!(
+                            "sheet '{first}' is already the {} sheet: merge the two or rename one",
+                            kind.label()
+                        ),
+                    );
+                } else {
+                    picked.push((kind, name.clone()));
+                }
+            }
+            None => unused_sheet(name, at, loaded),
+        }
+    }
+    picked
+}
+
+/// A note for a sheet (or CSV file) that is not part of a book, unless it is
+/// a near miss for a missing required sheet (that error names it).
+fn unused_sheet(name: &str, at: Position, loaded: &mut Loaded) {
+    let near = SheetKind::ALL
+        .into_iter()
+        .find(|k| near_miss(&fold(name), &fold(k.label())));
+    let fix = match near {
+        Some(k) => format!(
+            "it is not read; rename it to {} if it is that sheet",
+            k.label()
+        ),
+        None => "it is not read; nothing to do if it is not part of the book".to_string(),
+    };
+    loaded.problem(
+        Severity::Note,
+        at,
+        name,
+        "one of the sheets Accounts, Rates, Movements, Statements, Fixings, Holidays, Settings",
+        &fix,
+    );
+}
+
+/// Adds a sheet that was read, and the note for Fixings.
+fn push_sheet(
+    book: &str,
+    kind: SheetKind,
+    name: String,
+    cells: Option<Cells>,
+    loaded: &mut Loaded,
+) {
+    let Some(cells) = cells.or_else(|| {
+        loaded.problem(
+            Severity::Error,
+            Position {
+                book: book.to_string(),
+                sheet: name.clone(),
+                cell: String::new(),
+            },
+            &name,
+            "a sheet that can be read",
+            "the sheet is damaged: save the book again from the spreadsheet program",
+        );
+        None
+    }) else {
+        return;
+    };
+    if kind == SheetKind::Fixings {
+        loaded.problem(
+            Severity::Note,
+            Position {
+                book: book.to_string(),
+                sheet: name.clone(),
+                cell: String::new(),
+            },
+            &name,
+            "no Fixings sheet: floating rates are not supported yet",
+            "the sheet is not read; nothing to do",
+        );
+        return;
+    }
+    loaded.sheets.push(Sheet {
+        kind,
+        name,
+        rows: group_rows(cells),
+    });
+}
+
+/// Sparse cells grouped into rows, in row and column order.
+fn group_rows(mut cells: Cells) -> Vec<Row> {
+    cells.sort_by_key(|(r, c, _)| (*r, *c));
+    let mut rows: Vec<Row> = Vec::new();
+    for (r, c, cell) in cells {
+        match rows.last_mut() {
+            Some(row) if row.index == r => row.cells.push((c, cell)),
+            _ => rows.push(Row {
+                index: r,
+                cells: vec![(c, cell)],
+            }),
+        }
+    }
+    rows
+}
+
+/// The most error cells of an unknown kind one sheet may hold before the
+/// reader stops: a guard against a stream that makes no progress.
+const MAX_ERROR_CELLS: usize = 100_000;
+
+/// Streams an xlsx sheet. An error cell whose kind calamine does not know
+/// (`#SPILL!`, `#CALC!`...) arrives as an `Err` without a position; it is
+/// counted in stream order and placed by a second pass over the cell
+/// positions, so it becomes an error cell like `#DIV/0!`.
+fn read_xlsx_sheet(
+    wb: &mut Xlsx<BufReader<File>>,
+    name: &str,
+    book: &str,
+    loaded: &mut Loaded,
+) -> Option<Cells> {
+    let mut cells = Cells::new();
+    let mut unknown_errors: Vec<(usize, String)> = Vec::new();
+    {
+        let mut reader = wb.worksheet_cells_reader(name).ok()?;
+        let mut seq = 0usize;
+        loop {
+            match reader.next_cell() {
+                Ok(Some(c)) => {
+                    let (r, col) = c.get_position();
+                    let cell = Cell::from(c.get_value());
+                    if !cell.is_empty() {
+                        cells.push((r, col, cell));
+                    }
+                }
+                Ok(None) => break,
+                Err(XlsxError::CellError(e)) if unknown_errors.len() < MAX_ERROR_CELLS => {
+                    unknown_errors.push((seq, e));
+                }
+                Err(_) => return None,
+            }
+            seq += 1;
+        }
+    }
+    if unknown_errors.is_empty() {
+        return Some(cells);
+    }
+    let mut positions: Vec<(u32, u32)> = Vec::new();
+    if let Ok(mut reader) = wb.worksheet_cells_reader(name) {
+        let wanted: Vec<usize> = unknown_errors.iter().map(|(i, _)| *i).collect();
+        let mut seq = 0usize;
+        let mut next = wanted.iter().peekable();
+        while let (Ok(Some(c)), Some(&&want)) = (reader.next_formula(), next.peek()) {
+            if seq == want {
+                positions.push(c.get_position());
+                next.next();
+            }
+            seq += 1;
+        }
+    }
+    for (k, (_, e)) in unknown_errors.into_iter().enumerate() {
+        match positions.get(k) {
+            Some(&(r, c)) => cells.push((r, c, Cell::Error(e))),
+            None => loaded.problem(
+                Severity::Error,
+                Position {
+                    book: book.to_string(),
+                    sheet: name.to_string(),
+                    cell: String::new(),
+                },
+                &e,
+                "a value, not an error cell",
+                "find the error cell in the sheet and correct its formula or type the value",
+            ),
+        }
+    }
+    Some(cells)
+}
+
+/// Streams an xlsb sheet.
+fn read_xlsb_sheet(wb: &mut Xlsb<BufReader<File>>, name: &str) -> Option<Cells> {
+    let mut cells = Cells::new();
+    let mut reader = wb.worksheet_cells_reader(name).ok()?;
+    while let Some(c) = reader.next_cell().ok()? {
+        let (r, col) = c.get_position();
+        let cell = Cell::from(c.get_value());
+        if !cell.is_empty() {
+            cells.push((r, col, cell));
+        }
+    }
+    Some(cells)
+}
+
+/// Reads an xls or ods sheet: these formats are parsed whole when opened,
+/// so the range costs no more than the file already did.
+fn read_range<R: Reader<BufReader<File>>>(wb: &mut R, name: &str) -> Option<Cells> {
+    let range = wb.worksheet_range(name).ok()?;
+    // The range starts at its first used cell, not at A1.
+    let (r0, c0) = range.start().unwrap_or((0, 0));
+    let mut cells = Cells::new();
+    for (r, c, v) in range.used_cells() {
+        let cell = Cell::from(v);
+        if cell.is_empty() {
+            continue;
+        }
+        let (Ok(r), Ok(c)) = (u32::try_from(r), u32::try_from(c)) else {
+            continue;
+        };
+        cells.push((r0.saturating_add(r), c0.saturating_add(c), cell));
+    }
+    Some(cells)
+}
+
+/// Errors for missing required sheets, naming a near miss when there is one.
+fn check_required(book: &str, loaded: &mut Loaded, csv: bool) {
+    for kind in SheetKind::ALL.into_iter().filter(|k| k.required()) {
+        if loaded.sheets.iter().any(|s| s.kind == kind) {
+            continue;
+        }
+        let wanted = if csv {
+            format!("{}.csv", kind.label().to_lowercase())
+        } else {
+            kind.label().to_string()
+        };
+        let near = loaded
+            .problems
+            .iter()
+            .find(|p| {
+                p.severity == Severity::Note && near_miss(&fold(&p.found), &fold(kind.label()))
+            })
+            .map(|p| p.found.clone());
+        let fix = match near {
+            Some(n) => format!("rename '{n}' to {wanted}"),
+            None if csv => format!("add {wanted} to the folder"),
+            None => format!("add a sheet named {wanted}"),
+        };
+        let found = if csv {
+            "no such file".to_string()
+        } else {
+            "no such sheet".to_string()
+        };
+        loaded.problem(
+            Severity::Error,
+            Position {
+                book: book.to_string(),
+                sheet: kind.label().to_string(),
+                cell: String::new(),
+            },
+            &found,
+            &format!("a {} {}", wanted, if csv { "file" } else { "sheet" }),
+            &fix,
+        );
+    }
+}
+
+/// Reads a folder of CSV files. Each file named after a sheet becomes that
+/// sheet; other CSV files are noted and other files ignored.
+fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
+    let entries = match fs::read_dir(dir) {
+        Ok(e) => e,
+        Err(e) => {
+            loaded.problem(
+                Severity::Error,
+                Position {
+                    book: book.to_string(),
+                    ..Position::default()
+                },
+                &dir.display().to_string(),
+                "a readable folder of CSV files",
+                &format!(
+                    "check that the folder may be read ({})",
+                    lower_first(&e.to_string())
+                ),
+            );
+            return;
+        }
+    };
+    let mut files: Vec<(String, std::path::PathBuf)> = entries
+        .filter_map(Result::ok)
+        .map(|e| e.path())
+        .filter(|p| p.is_file())
+        .filter(|p| p.extension().is_some_and(|x| x.eq_ignore_ascii_case("csv")))
+        .filter_map(|p| Some((p.file_stem()?.to_string_lossy().into_owned(), p)))
+        .collect();
+    // Directory order differs between systems; name order keeps problems stable.
+    files.sort();
+    let mut picked: Vec<(SheetKind, String)> = Vec::new();
+    for (stem, file) in files {
+        let at = Position {
+            book: book.to_string(),
+            sheet: stem.clone(),
+            cell: String::new(),
+        };
+        let Some(kind) = SheetKind::from_name(&stem) else {
+            unused_sheet(&stem, at, loaded);
+            continue;
+        };
+        if let Some((_, first)) = picked.iter().find(|(k, _)| *k == kind) {
+            loaded.problem(
+                Severity::Error,
+                at,
+                &format!("{stem}.csv"),
+                &format!("one {} file", kind.label()),
+                &format!(
+                    "{first}.csv is already the {} sheet: merge the two or rename one",
+                    kind.label()
+                ),
+            );
+            continue;
+        }
+        picked.push((kind, stem.clone()));
+        if kind == SheetKind::Fixings {
+            push_sheet(book, kind, stem, Some(Cells::new()), loaded);
+            continue;
+        }
+        if let Some(rows) = read_csv_file(&file, book, &stem, loaded) {
+            loaded.sheets.push(Sheet {
+                kind,
+                name: stem,
+                rows,
+            });
+        }
+    }
+}
+
+/// The text of a CSV file: UTF-8 with or without a byte-order mark, or
+/// UTF-16 with one. The `Err` is (found, fix).
+fn decode_csv(bytes: &[u8]) -> Result<String, (String, String)> {
+    const SAVE_UTF8: &str = "save the file as CSV UTF-8 (comma delimited)";
+    if let Some(rest) = bytes.strip_prefix(&[0xEF, 0xBB, 0xBF]) {
+        return utf8(rest).map_err(|f| (f, SAVE_UTF8.to_string()));
+    }
+    let utf16 = |rest: &[u8], little: bool| -> Result<String, (String, String)> {
+        let chunks = rest.chunks_exact(2);
+        if !chunks.remainder().is_empty() {
+            return Err((
+                "UTF-16 text with an odd number of bytes".to_string(),
+                SAVE_UTF8.to_string(),
+            ));
+        }
+        let units = chunks.map(|p| match p {
+            [a, b] if little => u16::from_le_bytes([*a, *b]),
+            [a, b] => u16::from_be_bytes([*a, *b]),
+            _ => 0,
+        });
+        char::decode_utf16(units)
+            .collect::<Result<String, _>>()
+            .map_err(|_| {
+                (
+                    "UTF-16 text with a broken character".to_string(),
+                    SAVE_UTF8.to_string(),
+                )
+            })
+    };
+    if let Some(rest) = bytes.strip_prefix(&[0xFF, 0xFE]) {
+        return utf16(rest, true);
+    }
+    if let Some(rest) = bytes.strip_prefix(&[0xFE, 0xFF]) {
+        return utf16(rest, false);
+    }
+    if bytes.contains(&0) {
+        return Err((
+            "text with NUL bytes (UTF-16 without a byte-order mark?)".to_string(),
+            SAVE_UTF8.to_string(),
+        ));
+    }
+    utf8(bytes).map_err(|f| (f, SAVE_UTF8.to_string()))
+}
+
+fn utf8(bytes: &[u8]) -> Result<String, String> {
+    match std::str::from_utf8(bytes) {
+        Ok(s) => Ok(s.to_string()),
+        Err(e) => {
+            let at = e.valid_up_to();
+            let line = bytes
+                .get(..at)
+                .map_or(0, |b| b.iter().filter(|&&c| c == b'\n').count())
+                + 1;
+            let byte = bytes.get(at).copied().unwrap_or(0);
+            Err(format!(
+                "byte 0x{byte:02X} on line {line}, which is not UTF-8"
+            ))
+        }
+    }
+}
+
+/// Reads one CSV file into rows. A row with a different number of fields
+/// than the header is an error naming the file and row, and is left out.
+fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Option<Vec<Row>> {
+    let at = |cell: String| Position {
+        book: book.to_string(),
+        sheet: stem.to_string(),
+        cell,
+    };
+    let bytes = match fs::read(file) {
+        Ok(b) => b,
+        Err(e) => {
+            loaded.problem(
+                Severity::Error,
+                at(String::new()),
+                &format!("{stem}.csv"),
+                "a readable CSV file",
+                &format!(
+                    "check that the file may be read ({})",
+                    lower_first(&e.to_string())
+                ),
+            );
+            return None;
+        }
+    };
+    let text = match decode_csv(&bytes) {
+        Ok(t) => t,
+        Err((found, fix)) => {
+            loaded.problem(
+                Severity::Error,
+                at(String::new()),
+                &found,
+                "UTF-8 text (with or without a byte-order mark) or UTF-16 with a byte-order mark",
+                &fix,
+            );
+            return None;
+        }
+    };
+    let mut reader = csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .from_reader(text.as_bytes());
+    let mut rows = Vec::new();
+    let mut width: Option<usize> = None;
+    for record in reader.records() {
+        let record = match record {
+            Ok(r) => r,
+            Err(e) => {
+                let line = e.position().map_or(0, csv::Position::line);
+                loaded.problem(
+                    Severity::Error,
+                    at(line_ref(line)),
+                    &lower_first(&e.to_string()),
+                    "comma-separated fields",
+                    "check the quotes on this line; the rest of the file is not read",
+                );
+                return None;
+            }
+        };
+        let line = record.position().map_or(0, csv::Position::line);
+        let index = u32::try_from(line.saturating_sub(1)).unwrap_or(u32::MAX);
+        let filled = record
+            .iter()
+            .enumerate()
+            .filter(|(_, f)| !f.trim().is_empty())
+            .last()
+            .map(|(i, _)| i + 1);
+        let Some(filled) = filled else {
+            continue;
+        };
+        match width {
+            None => {
+                if record.len() == 1 {
+                    if let Some(sep) = record
+                        .get(0)
+                        .and_then(|f| [';', '\t', '|'].into_iter().find(|c| f.contains(*c)))
+                    {
+                        loaded.problem(
+                            Severity::Error,
+                            at(line_ref(line)),
+                            record.get(0).unwrap_or(""),
+                            "fields separated by commas",
+                            &format!("the fields are separated by '{}': save the file as CSV with commas", sep.escape_default()),
+                        );
+                        return None;
+                    }
+                }
+                width = Some(record.len());
+            }
+            Some(w) if record.len() != w && (record.len() < w || filled > w) => {
+                loaded.problem(
+                    Severity::Error,
+                    at(line_ref(line)),
+                    &format!("{} fields", record.len()),
+                    &format!("{w} fields, as in the header row"),
+                    "give the row one field per header column (quote any field holding a comma); the row is not read",
+                );
+                continue;
+            }
+            Some(_) => {}
+        }
+        let cells = record
+            .iter()
+            .enumerate()
+            .filter_map(|(c, f)| {
+                let cell = Cell::text(f);
+                let c = u32::try_from(c).ok()?;
+                (!cell.is_empty()).then_some((c, cell))
+            })
+            .collect();
+        rows.push(Row { index, cells });
+    }
+    Some(rows)
+}
+
+/// A 1-based line as an A1 row reference.
+fn line_ref(line: u64) -> String {
+    if line == 0 {
+        String::new()
+    } else {
+        format!("{line}:{line}")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a1_names() {
+        assert_eq!(a1(0, 0), "A1");
+        assert_eq!(a1(6, 27), "AB7");
+        assert_eq!(a1(1_048_575, 16_383), "XFD1048576");
+        assert_eq!(a1_row(6), "7:7");
+    }
+
+    #[test]
+    fn sheet_names_fold() {
+        assert_eq!(
+            SheetKind::from_name(" ACCOUNTS "),
+            Some(SheetKind::Accounts)
+        );
+        assert_eq!(
+            SheetKind::from_name("hol-i_days"),
+            Some(SheetKind::Holidays)
+        );
+        assert_eq!(SheetKind::from_name("Accounts 2"), None);
+    }
+
+    #[test]
+    fn csv_text_in_utf8_utf8_with_bom_and_utf16_with_bom() {
+        assert_eq!(decode_csv(b"a,b\n").unwrap(), "a,b\n");
+        assert_eq!(decode_csv(b"\xEF\xBB\xBFa,b\n").unwrap(), "a,b\n");
+        let le: Vec<u8> = [0xFF, 0xFE]
+            .into_iter()
+            .chain("a,é\n".encode_utf16().flat_map(u16::to_le_bytes))
+            .collect();
+        assert_eq!(decode_csv(&le).unwrap(), "a,é\n");
+        let be: Vec<u8> = [0xFE, 0xFF]
+            .into_iter()
+            .chain("a,é\n".encode_utf16().flat_map(u16::to_be_bytes))
+            .collect();
+        assert_eq!(decode_csv(&be).unwrap(), "a,é\n");
+    }
+
+    #[test]
+    fn csv_text_in_other_encodings_is_refused_with_a_fix() {
+        let (found, fix) = decode_csv(b"account\nHM-SAV-001,Caf\xE9\n").unwrap_err();
+        assert!(found.contains("line 2"), "{found}");
+        assert!(fix.contains("UTF-8"));
+        let no_bom: Vec<u8> = "a,b".encode_utf16().flat_map(u16::to_le_bytes).collect();
+        assert!(decode_csv(&no_bom).unwrap_err().0.contains("UTF-16"));
+        assert!(decode_csv(&[0xFF, 0xFE, 0x41])
+            .unwrap_err()
+            .0
+            .contains("odd"));
+    }
+}

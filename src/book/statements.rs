@@ -1,0 +1,148 @@
+//! The Statements sheet: interest actually posted, one row per account and
+//! period, as the reconciliation compares it with the engine's figures.
+//!
+//! Rows of one account with the same period are kept as separate rows (the
+//! reconciliation sums them); other overlaps are errors. With the
+//! `statement_end` setting `exclusive`, a period_end is the first day after
+//! the period and one day is taken off. Nothing here reconciles.
+
+use std::collections::{BTreeMap, HashMap};
+
+use chrono::NaiveDate;
+
+use super::accounts::Life;
+use super::model::{Problem, Severity, StatementRow};
+use super::settings::StatementEnd;
+use super::source::Sheet;
+use super::table::{optional, required, Column, Ctx, Fields, Table};
+
+const COLUMNS: &[Column] = &[
+    required("account"),
+    required("period_start"),
+    required("period_end"),
+    required("posted_interest"),
+    optional("reference"),
+];
+const ACCOUNT: usize = 0;
+const PERIOD_START: usize = 1;
+const PERIOD_END: usize = 2;
+const POSTED: usize = 3;
+const REFERENCE: usize = 4;
+
+/// What the Statements sheet gives.
+#[derive(Debug, Default)]
+pub(crate) struct Statements {
+    /// Rows to reconcile, in sheet order.
+    pub rows: Vec<StatementRow>,
+    /// Accounts with a bad statement row.
+    pub spoiled: Vec<String>,
+}
+
+/// Reads the Statements sheet; `None` when it cannot be read as a table.
+pub(crate) fn read(
+    ctx: Ctx<'_>,
+    sheet: &Sheet,
+    accounts: &HashMap<String, Life>,
+    end: StatementEnd,
+    problems: &mut Vec<Problem>,
+) -> Option<Statements> {
+    let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
+    let mut out = Statements::default();
+    // Per account: (start, end, row cell of the end) of rows kept so far.
+    let mut periods: BTreeMap<String, Vec<(NaiveDate, NaiveDate, String)>> = BTreeMap::new();
+    for rec in table.records() {
+        let mut f = Fields::new(ctx, &table, &rec, problems);
+        let Some(id) = f.required_text(ACCOUNT) else {
+            continue;
+        };
+        f.account = Some(id.clone());
+        let Some(life) = accounts.get(&id) else {
+            f.report(
+                Severity::Error,
+                ACCOUNT,
+                &id,
+                "an account of the Accounts sheet",
+                "correct the account id, or add the account to the Accounts sheet; the row is not used",
+            );
+            continue;
+        };
+        let start = f.required_date(PERIOD_START);
+        let written_end = f.required_date(PERIOD_END);
+        let posted = f.required_decimal(POSTED);
+        let reference = f.text(REFERENCE);
+        let (Some(start), Some(written_end), Some(posted), false) =
+            (start, written_end, posted, f.failed)
+        else {
+            out.spoiled.push(id);
+            continue;
+        };
+        let period_end = match end {
+            StatementEnd::Inclusive => Some(written_end),
+            StatementEnd::Exclusive => written_end.pred_opt(),
+        };
+        let Some(period_end) = period_end.filter(|e| *e >= start) else {
+            let expected = match end {
+                StatementEnd::Inclusive => format!("a period_end on or after the period_start {start}"),
+                StatementEnd::Exclusive => format!(
+                    "a period_end after the period_start {start} (statement_end is exclusive: period_end is the first day after the period)"
+                ),
+            };
+            f.report(
+                Severity::Error,
+                PERIOD_END,
+                &written_end.to_string(),
+                &expected,
+                "correct the period's dates",
+            );
+            out.spoiled.push(id);
+            continue;
+        };
+        let before_open = life.open.is_some_and(|o| period_end < o);
+        let after_maturity = life.maturity.is_some_and(|m| start >= m);
+        if before_open || after_maturity {
+            let expected = match (life.open, life.maturity) {
+                (Some(o), Some(m)) => {
+                    format!("a period that overlaps the account's life ({o} to {m})")
+                }
+                (Some(o), None) => format!("a period that overlaps the account's life (from {o})"),
+                _ => "a period that overlaps the account's life".to_string(),
+            };
+            f.report(
+                Severity::Warning,
+                PERIOD_START,
+                &format!("{start} to {period_end}"),
+                &expected,
+                "the row is entirely outside the account's life and is not reconciled: check the account or the dates",
+            );
+            continue;
+        }
+        let here = f.cell_ref(PERIOD_START);
+        let kept = periods.entry(id.clone()).or_default();
+        if let Some((s, e, cell)) = kept
+            .iter()
+            .find(|(s, e, _)| (*s, *e) != (start, period_end) && *s <= period_end && start <= *e)
+        {
+            let (s, e, cell) = (*s, *e, cell.clone());
+            f.report(
+                Severity::Error,
+                PERIOD_START,
+                &format!("{start} to {period_end}"),
+                &format!("a period that does not overlap the period {s} to {e} ({cell})"),
+                "rows of one account may repeat a period (they are summed) but not overlap: correct the dates",
+            );
+            out.spoiled.push(id);
+            continue;
+        }
+        kept.push((start, period_end, here));
+        let position = f.position(ACCOUNT);
+        out.rows.push(StatementRow {
+            account: id,
+            period_start: start,
+            period_end,
+            posted,
+            reference,
+            position,
+        });
+    }
+    Some(out)
+}

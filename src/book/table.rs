@@ -1,0 +1,744 @@
+//! A sheet as a table: finding its header row, matching column names, and
+//! reading each row's cells as typed fields with a problem per bad cell.
+//!
+//! Header names match case-insensitively with spaces, `_` and `-` ignored;
+//! columns come in any order. The header must be the first non-blank row.
+//! This module knows column names but not what a sheet means; it never
+//! drops a bad cell silently (each one is a problem naming its cell).
+
+use std::collections::HashMap;
+
+use chrono::NaiveDate;
+use rust_decimal::Decimal;
+
+use super::cell::{self, shown, Cell, Issue, NumberStyle};
+use super::model::{Position, Problem, Severity};
+use super::source::{a1, a1_row, column_letters, Row, Sheet};
+use crate::conventions::names::{fold, UnknownName};
+
+/// A column a sheet may have.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct Column {
+    /// The name as books.md writes it.
+    pub name: &'static str,
+    /// Whether the sheet is unusable without it.
+    pub required: bool,
+}
+
+/// A required column.
+pub(crate) const fn required(name: &'static str) -> Column {
+    Column {
+        name,
+        required: true,
+    }
+}
+
+/// An optional column.
+pub(crate) const fn optional(name: &'static str) -> Column {
+    Column {
+        name,
+        required: false,
+    }
+}
+
+/// What every sheet reader needs: the book's name for positions, and how
+/// it writes numbers.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Ctx<'a> {
+    /// The book as given.
+    pub book: &'a str,
+    /// Decimal point or comma.
+    pub style: NumberStyle,
+}
+
+impl Ctx<'_> {
+    /// A position in this book.
+    pub(crate) fn at(&self, sheet: &str, cell: String) -> Position {
+        Position {
+            book: self.book.to_string(),
+            sheet: sheet.to_string(),
+            cell,
+        }
+    }
+
+    /// A problem in this book.
+    #[allow(clippy::too_many_arguments)]
+    pub(crate) fn problem(
+        &self,
+        severity: Severity,
+        sheet: &str,
+        cell: String,
+        account: Option<&str>,
+        found: &str,
+        expected: &str,
+        fix: &str,
+    ) -> Problem {
+        Problem {
+            severity,
+            position: self.at(sheet, cell),
+            account: account.map(str::to_string),
+            found: found.to_string(),
+            expected: expected.to_string(),
+            fix: fix.to_string(),
+        }
+    }
+}
+
+/// Whether `found` is probably a misspelling of `wanted` (both folded): a
+/// letter or two off, or one name holding the other.
+pub(crate) fn near_miss(found: &str, wanted: &str) -> bool {
+    if found.is_empty() || found == wanted {
+        return false;
+    }
+    let n = wanted.chars().count();
+    let allowed = match n {
+        0..=3 => 0,
+        4..=7 => 1,
+        _ => 2,
+    };
+    strsim::damerau_levenshtein(found, wanted) <= allowed
+        || (found.chars().count() >= 4 && (found.contains(wanted) || wanted.contains(found)))
+}
+
+/// The longest header list shown in a message.
+const SHOWN_HEADER_CHARS: usize = 200;
+
+/// A sheet whose header row was matched to the columns asked for.
+#[derive(Debug)]
+pub(crate) struct Table<'s> {
+    /// The sheet.
+    pub sheet: &'s Sheet,
+    columns: &'static [Column],
+    header_row: u32,
+    /// The sheet column of each asked-for column, when present.
+    at: Vec<Option<u32>>,
+    /// The asked-for column of each sheet column that has one.
+    by_col: HashMap<u32, usize>,
+}
+
+/// One data row, its cells in the order of the columns asked for.
+#[derive(Debug)]
+pub(crate) struct Record<'s> {
+    /// 0-based row index.
+    pub row: u32,
+    cells: Vec<Option<(u32, &'s Cell)>>,
+}
+
+impl Record<'_> {
+    /// The cell of column `i`, if present and not blank.
+    pub(crate) fn get(&self, i: usize) -> Option<&Cell> {
+        self.cells.get(i).copied().flatten().map(|(_, c)| c)
+    }
+}
+
+/// The text a header cell stands for, folded.
+fn header_key(cell: &Cell) -> String {
+    match cell {
+        Cell::Text(s) => fold(s),
+        other => fold(&other.shown()),
+    }
+}
+
+/// Whether the row holds at least `n` of the wanted names.
+fn names_in(row: &Row, wanted: &[String]) -> usize {
+    row.cells
+        .iter()
+        .filter(|(_, c)| wanted.contains(&header_key(c)))
+        .count()
+}
+
+fn joined(names: &[String]) -> String {
+    let all = names.join(", ");
+    if all.chars().count() <= SHOWN_HEADER_CHARS {
+        all
+    } else {
+        let mut s: String = all.chars().take(SHOWN_HEADER_CHARS).collect();
+        s.push('…');
+        s
+    }
+}
+
+impl<'s> Table<'s> {
+    /// Finds the header row of `sheet` and matches it to `columns`. `None`
+    /// (with error problems) when the sheet cannot be read as a table: no
+    /// header, a required column missing, or a column given twice.
+    pub(crate) fn open(
+        ctx: &Ctx<'_>,
+        sheet: &'s Sheet,
+        columns: &'static [Column],
+        problems: &mut Vec<Problem>,
+    ) -> Option<Table<'s>> {
+        let known: Vec<String> = columns.iter().map(|c| fold(c.name)).collect();
+        let all_names: Vec<String> = columns.iter().map(|c| c.name.to_string()).collect();
+        let required_names: Vec<String> = columns
+            .iter()
+            .filter(|c| c.required)
+            .map(|c| c.name.to_string())
+            .collect();
+        let err = |cell: String, found: &str, expected: &str, fix: &str| {
+            ctx.problem(
+                Severity::Error,
+                &sheet.name,
+                cell,
+                None,
+                found,
+                expected,
+                fix,
+            )
+        };
+        let Some(first) = sheet.rows.first() else {
+            problems.push(err(
+                String::new(),
+                "an empty sheet",
+                &format!(
+                    "a header row naming the columns ({})",
+                    joined(&required_names)
+                ),
+                "add a header row and the data below it, or remove the sheet",
+            ));
+            return None;
+        };
+        let first_text: Vec<String> = first.cells.iter().map(|(_, c)| c.shown()).collect();
+        if names_in(first, &known) == 0 {
+            let later = sheet
+                .rows
+                .iter()
+                .skip(1)
+                .find(|r| names_in(r, &known) >= required_names.len().clamp(1, 2));
+            let problem = match later {
+                Some(h) => err(
+                    a1_row(first.index),
+                    &joined(&first_text),
+                    &format!(
+                        "the header row as the first non-blank row (row {})",
+                        u64::from(first.index) + 1
+                    ),
+                    &format!(
+                        "the header is in row {}: delete the rows above it",
+                        u64::from(h.index) + 1
+                    ),
+                ),
+                None => err(
+                    a1_row(first.index),
+                    &joined(&first_text),
+                    &format!(
+                        "a header row naming the columns ({})",
+                        joined(&required_names)
+                    ),
+                    "put the column names in the first row of the sheet",
+                ),
+            };
+            problems.push(problem);
+            return None;
+        }
+
+        let mut at: Vec<Option<u32>> = vec![None; columns.len()];
+        let mut by_col = HashMap::new();
+        let mut unknown: Vec<(u32, String)> = Vec::new();
+        let mut ok = true;
+        for (col, cell) in &first.cells {
+            let key = header_key(cell);
+            match known.iter().position(|k| *k == key) {
+                Some(i) => match at.get(i).copied().flatten() {
+                    Some(earlier) => {
+                        ok = false;
+                        problems.push(err(
+                            a1(first.index, *col),
+                            &cell.shown(),
+                            &format!(
+                                "each column once ({} is column {})",
+                                columns.get(i).map_or("", |c| c.name),
+                                column_letters(earlier)
+                            ),
+                            &format!(
+                                "remove or rename one of the two {} columns ({} and {})",
+                                columns.get(i).map_or("", |c| c.name),
+                                a1(first.index, earlier),
+                                a1(first.index, *col)
+                            ),
+                        ));
+                    }
+                    None => {
+                        if let Some(slot) = at.get_mut(i) {
+                            *slot = Some(*col);
+                        }
+                        by_col.insert(*col, i);
+                    }
+                },
+                None => unknown.push((*col, cell.shown())),
+            }
+        }
+
+        // Unknown headers that are near misses of absent columns.
+        let absent: Vec<usize> = (0..columns.len())
+            .filter(|i| at.get(*i).copied().flatten().is_none())
+            .collect();
+        let near_of = |i: usize| -> Option<&(u32, String)> {
+            let wanted = known.get(i)?;
+            unknown
+                .iter()
+                .filter(|(_, h)| near_miss(&fold(h), wanted))
+                .min_by_key(|(_, h)| strsim::damerau_levenshtein(&fold(h), wanted))
+        };
+        let mut explained: Vec<u32> = Vec::new();
+        for &i in &absent {
+            let Some(column) = columns.get(i) else {
+                continue;
+            };
+            let near = near_of(i);
+            if column.required {
+                ok = false;
+                let fix = match near {
+                    Some((c, h)) => {
+                        explained.push(*c);
+                        format!(
+                            "did you mean '{}' ({})? rename that header to {}",
+                            h,
+                            a1(first.index, *c),
+                            column.name
+                        )
+                    }
+                    None => format!("add a column named {} to the header row", column.name),
+                };
+                problems.push(err(
+                    a1_row(first.index),
+                    &joined(&first_text),
+                    &format!(
+                        "a column named {} (required: {})",
+                        column.name,
+                        joined(&required_names)
+                    ),
+                    &fix,
+                ));
+            } else if let Some((c, h)) = near {
+                explained.push(*c);
+                problems.push(ctx.problem(
+                    Severity::Warning,
+                    &sheet.name,
+                    a1(first.index, *c),
+                    None,
+                    h,
+                    &format!("a column named {}", column.name),
+                    &format!("did you mean {}? rename the header if so; as it is, the column is kept out", column.name),
+                ));
+            }
+        }
+        let rest: Vec<String> = unknown
+            .iter()
+            .filter(|(c, _)| !explained.contains(c))
+            .map(|(_, h)| h.clone())
+            .collect();
+        if !rest.is_empty() {
+            problems.push(ctx.problem(
+                Severity::Note,
+                &sheet.name,
+                a1_row(first.index),
+                None,
+                &joined(&rest),
+                &format!("the columns of the {} sheet ({})", sheet.name, joined(&all_names)),
+                "these columns are kept out of the computation; nothing to do unless one should be a listed column",
+            ));
+        }
+        // Values under no header at all.
+        let headed: Vec<u32> = first.cells.iter().map(|(c, _)| *c).collect();
+        if let Some((r, c)) = sheet
+            .rows
+            .iter()
+            .skip(1)
+            .flat_map(|r| r.cells.iter().map(move |(c, _)| (r.index, *c)))
+            .find(|(_, c)| !headed.contains(c))
+        {
+            problems.push(ctx.problem(
+                Severity::Note,
+                &sheet.name,
+                a1(r, c),
+                None,
+                "values in a column without a header",
+                "a header name above every column that holds values",
+                "those values are kept out; give the column a header if it should be read",
+            ));
+        }
+        if !ok {
+            return None;
+        }
+        Some(Table {
+            sheet,
+            columns,
+            header_row: first.index,
+            at,
+            by_col,
+        })
+    }
+
+    /// Whether column `i` is in the sheet.
+    pub(crate) fn has(&self, i: usize) -> bool {
+        self.at.get(i).copied().flatten().is_some()
+    }
+
+    /// The A1 name of column `i`'s header cell.
+    pub(crate) fn header_cell(&self, i: usize) -> String {
+        match self.at.get(i).copied().flatten() {
+            Some(c) => a1(self.header_row, c),
+            None => a1_row(self.header_row),
+        }
+    }
+
+    /// The A1 name of the header row.
+    pub(crate) fn header_row_ref(&self) -> String {
+        a1_row(self.header_row)
+    }
+
+    /// The name of column `i`.
+    pub(crate) fn name(&self, i: usize) -> &'static str {
+        self.columns.get(i).map_or("", |c| c.name)
+    }
+
+    /// The data rows below the header, blank rows (and rows with values
+    /// only in unknown columns) skipped.
+    pub(crate) fn records(&self) -> impl Iterator<Item = Record<'s>> + '_ {
+        self.sheet
+            .rows
+            .iter()
+            .filter(|r| r.index > self.header_row)
+            .filter_map(|r| {
+                let mut cells: Vec<Option<(u32, &'s Cell)>> = vec![None; self.columns.len()];
+                let mut any = false;
+                for (c, cell) in &r.cells {
+                    if let Some(slot) = self.by_col.get(c).and_then(|i| cells.get_mut(*i)) {
+                        *slot = Some((*c, cell));
+                        any = true;
+                    }
+                }
+                any.then_some(Record {
+                    row: r.index,
+                    cells,
+                })
+            })
+    }
+
+    /// The cell reference of column `i` in `row`; the whole row when the
+    /// column is not in the sheet.
+    pub(crate) fn cell_ref(&self, row: u32, i: usize) -> String {
+        match self.at.get(i).copied().flatten() {
+            Some(c) => a1(row, c),
+            None => a1_row(row),
+        }
+    }
+}
+
+/// Reading one record's fields, collecting a problem for each bad cell.
+/// Every problem names the record's account once it is known.
+pub(crate) struct Fields<'t, 's, 'p> {
+    ctx: Ctx<'t>,
+    table: &'t Table<'s>,
+    rec: &'t Record<'s>,
+    problems: &'p mut Vec<Problem>,
+    /// The account the row belongs to, for the problems' `account`.
+    pub account: Option<String>,
+    /// Whether an error was found in the row.
+    pub failed: bool,
+}
+
+impl<'t, 's, 'p> Fields<'t, 's, 'p> {
+    /// Starts reading `rec`.
+    pub(crate) fn new(
+        ctx: Ctx<'t>,
+        table: &'t Table<'s>,
+        rec: &'t Record<'s>,
+        problems: &'p mut Vec<Problem>,
+    ) -> Self {
+        Fields {
+            ctx,
+            table,
+            rec,
+            problems,
+            account: None,
+            failed: false,
+        }
+    }
+
+    /// The cell reference of column `i` in this row.
+    pub(crate) fn cell_ref(&self, i: usize) -> String {
+        self.table.cell_ref(self.rec.row, i)
+    }
+
+    /// The position of column `i` in this row.
+    pub(crate) fn position(&self, i: usize) -> Position {
+        self.ctx.at(&self.table.sheet.name, self.cell_ref(i))
+    }
+
+    /// The raw cell of column `i`.
+    pub(crate) fn raw(&self, i: usize) -> Option<&Cell> {
+        self.rec.get(i)
+    }
+
+    /// Whether column `i` has a value in this row.
+    pub(crate) fn given(&self, i: usize) -> bool {
+        self.rec.get(i).is_some()
+    }
+
+    /// Records a problem at column `i` of this row.
+    pub(crate) fn report(
+        &mut self,
+        severity: Severity,
+        i: usize,
+        found: &str,
+        expected: &str,
+        fix: &str,
+    ) {
+        if severity == Severity::Error {
+            self.failed = true;
+        }
+        let p = self.ctx.problem(
+            severity,
+            &self.table.sheet.name,
+            self.cell_ref(i),
+            self.account.as_deref(),
+            found,
+            expected,
+            fix,
+        );
+        self.problems.push(p);
+    }
+
+    fn issue(&mut self, i: usize, issue: Issue) {
+        let expected = format!("{} in {}", issue.expected, self.table.name(i));
+        self.report(Severity::Error, i, &issue.found, &expected, &issue.fix);
+    }
+
+    fn missing(&mut self, i: usize) {
+        let name = self.table.name(i);
+        self.report(
+            Severity::Error,
+            i,
+            "",
+            &format!("a value in {name}"),
+            &format!("fill in {name}; it is required"),
+        );
+    }
+
+    fn take<T>(
+        &mut self,
+        i: usize,
+        convert: impl FnOnce(&Cell) -> Result<Option<T>, Issue>,
+    ) -> Option<T> {
+        let cell = self.rec.get(i)?;
+        match convert(cell) {
+            Ok(v) => v,
+            Err(issue) => {
+                self.issue(i, issue);
+                None
+            }
+        }
+    }
+
+    fn need<T>(&mut self, i: usize, v: Option<T>) -> Option<T> {
+        if v.is_none() && !self.given(i) {
+            self.missing(i);
+        }
+        v
+    }
+
+    /// A required convention name.
+    pub(crate) fn required_named<T>(
+        &mut self,
+        i: usize,
+        parse: impl FnOnce(&str) -> Result<T, UnknownName>,
+    ) -> Option<T> {
+        let v = self.named(i, parse);
+        self.need(i, v)
+    }
+
+    /// Optional text.
+    pub(crate) fn text(&mut self, i: usize) -> Option<String> {
+        self.take(i, cell::text)
+    }
+
+    /// Required text.
+    pub(crate) fn required_text(&mut self, i: usize) -> Option<String> {
+        let v = self.text(i);
+        self.need(i, v)
+    }
+
+    /// An optional exact decimal.
+    pub(crate) fn decimal(&mut self, i: usize) -> Option<Decimal> {
+        let style = self.ctx.style;
+        self.take(i, |c| cell::decimal(c, style))
+    }
+
+    /// A required exact decimal.
+    pub(crate) fn required_decimal(&mut self, i: usize) -> Option<Decimal> {
+        let v = self.decimal(i);
+        self.need(i, v)
+    }
+
+    /// An optional date.
+    pub(crate) fn date(&mut self, i: usize) -> Option<NaiveDate> {
+        self.take(i, cell::date)
+    }
+
+    /// A required date.
+    pub(crate) fn required_date(&mut self, i: usize) -> Option<NaiveDate> {
+        let v = self.date(i);
+        self.need(i, v)
+    }
+
+    /// Optional yes/no.
+    pub(crate) fn yes_no(&mut self, i: usize) -> Option<bool> {
+        self.take(i, cell::yes_no)
+    }
+
+    /// An optional whole number in `min..=max`.
+    pub(crate) fn whole(&mut self, i: usize, min: u32, max: u32) -> Option<u32> {
+        let style = self.ctx.style;
+        self.take(i, |c| cell::whole(c, style, min, max))
+    }
+
+    /// An optional convention name, parsed by `parse`; an unknown name is an
+    /// error that suggests the closest valid one.
+    pub(crate) fn named<T>(
+        &mut self,
+        i: usize,
+        parse: impl FnOnce(&str) -> Result<T, UnknownName>,
+    ) -> Option<T> {
+        let text = self.text(i)?;
+        match parse(&text) {
+            Ok(v) => Some(v),
+            Err(e) => {
+                let fix = match e.suggestion {
+                    Some(s) => format!("did you mean '{s}'? write one of the accepted names"),
+                    None => "write one of the accepted names".to_string(),
+                };
+                let expected = format!("a {} ({})", e.kind, e.accepted.join(", "));
+                self.report(Severity::Error, i, &shown(&text), &expected, &fix);
+                None
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::book::source::SheetKind;
+
+    const COLUMNS: &[Column] = &[
+        required("account"),
+        required("open_date"),
+        optional("maturity"),
+        optional("name"),
+    ];
+
+    fn sheet(rows: &[(u32, &[(u32, &str)])]) -> Sheet {
+        Sheet {
+            kind: SheetKind::Accounts,
+            name: "Accounts".into(),
+            rows: rows
+                .iter()
+                .map(|(r, cells)| Row {
+                    index: *r,
+                    cells: cells.iter().map(|(c, s)| (*c, Cell::text(s))).collect(),
+                })
+                .collect(),
+        }
+    }
+
+    fn ctx() -> Ctx<'static> {
+        Ctx {
+            book: "book.xlsx",
+            style: NumberStyle {
+                decimal_comma: false,
+            },
+        }
+    }
+
+    #[test]
+    fn headers_match_whatever_the_case_spaces_and_dashes_in_any_order() {
+        let s = sheet(&[
+            (0, &[(0, "Open Date"), (1, "ACCOUNT"), (2, "na-me")]),
+            (1, &[(0, "2026-01-01"), (1, "HM-SAV-001")]),
+        ]);
+        let mut problems = Vec::new();
+        let t = Table::open(&ctx(), &s, COLUMNS, &mut problems).unwrap();
+        assert!(problems.is_empty(), "{problems:?}");
+        let recs: Vec<_> = t.records().collect();
+        assert_eq!(recs.len(), 1);
+        assert_eq!(recs[0].get(0), Some(&Cell::text("HM-SAV-001")));
+        assert!(t.has(3) && !t.has(2));
+    }
+
+    #[test]
+    fn a_header_below_blank_rows_is_found() {
+        // Blank rows are never stored, so the header is simply the first row held.
+        let s = sheet(&[
+            (4, &[(2, "account"), (3, "open_date")]),
+            (5, &[(2, "HM-SAV-001"), (3, "2026-01-01")]),
+        ]);
+        let mut problems = Vec::new();
+        let t = Table::open(&ctx(), &s, COLUMNS, &mut problems).unwrap();
+        assert_eq!(t.header_cell(0), "C5");
+        assert_eq!(t.cell_ref(5, 1), "D6");
+    }
+
+    #[test]
+    fn a_title_above_the_header_says_where_the_header_was_expected() {
+        let s = sheet(&[
+            (0, &[(0, "Harbourview Mutual accounts")]),
+            (2, &[(0, "account"), (1, "open_date")]),
+        ]);
+        let mut problems = Vec::new();
+        assert!(Table::open(&ctx(), &s, COLUMNS, &mut problems).is_none());
+        assert_eq!(problems.len(), 1);
+        let p = &problems[0];
+        assert_eq!(p.severity, Severity::Error);
+        assert_eq!(p.position.cell, "1:1");
+        assert!(p.expected.contains("row 1"), "{p:?}");
+        assert!(p.fix.contains("row 3"), "{p:?}");
+    }
+
+    #[test]
+    fn a_missing_required_column_suggests_a_near_miss() {
+        let s = sheet(&[(0, &[(0, "account"), (1, "open_dte"), (2, "notes")])]);
+        let mut problems = Vec::new();
+        assert!(Table::open(&ctx(), &s, COLUMNS, &mut problems).is_none());
+        let e = problems
+            .iter()
+            .find(|p| p.severity == Severity::Error)
+            .unwrap();
+        assert_eq!(e.position.cell, "1:1");
+        assert!(e.expected.contains("open_date"));
+        assert!(e.fix.contains("'open_dte' (B1)"), "{}", e.fix);
+        let note = problems
+            .iter()
+            .find(|p| p.severity == Severity::Note)
+            .unwrap();
+        assert_eq!(note.found, "notes");
+    }
+
+    #[test]
+    fn a_duplicate_column_is_an_error() {
+        let s = sheet(&[(0, &[(0, "account"), (1, "open_date"), (2, "Account")])]);
+        let mut problems = Vec::new();
+        assert!(Table::open(&ctx(), &s, COLUMNS, &mut problems).is_none());
+        assert_eq!(problems[0].position.cell, "C1");
+        assert!(problems[0].fix.contains("A1 and C1"), "{}", problems[0].fix);
+    }
+
+    #[test]
+    fn a_near_miss_of_an_optional_column_is_a_warning() {
+        let s = sheet(&[(0, &[(0, "account"), (1, "open_date"), (2, "maturty")])]);
+        let mut problems = Vec::new();
+        assert!(Table::open(&ctx(), &s, COLUMNS, &mut problems).is_some());
+        assert_eq!(problems.len(), 1);
+        assert_eq!(problems[0].severity, Severity::Warning);
+        assert_eq!(problems[0].position.cell, "C1");
+    }
+
+    #[test]
+    fn near_misses() {
+        assert!(near_miss("openingbalnce", "openingbalance"));
+        assert!(near_miss("postedinterst", "postedinterest"));
+        assert!(!near_miss("branch", "maturity"));
+        assert!(!near_miss("side", "name"));
+    }
+}
