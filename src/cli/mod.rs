@@ -9,7 +9,13 @@ use std::process::ExitCode;
 
 use clap::{Parser, Subcommand};
 
+mod check;
 mod daycount;
+mod explain;
+mod inputs;
+mod run;
+mod settings;
+mod template;
 
 /// Exit statuses, declared in one place.
 pub mod exit {
@@ -34,8 +40,41 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 enum Command {
+    /// Month-end run: accrue every account of the books and write the workbook.
+    Run(run::Args),
+    /// Read and validate the books; print every problem, write nothing.
+    Check(check::Args),
+    /// One account day by day: expected against posted, and the likely cause of a variance.
+    Explain(explain::Args),
+    /// Write a blank input book with every sheet and column.
+    Template(template::Args),
     /// Days and year fraction between two dates under a day-count basis.
     Daycount(daycount::Args),
+}
+
+/// The books of a command and how to read them.
+#[derive(Debug, clap::Args)]
+pub struct BookArgs {
+    /// Account books: workbooks (.xlsx, .xlsm, .xlsb, .xls, .ods) or folders of CSV files.
+    #[arg(required = true, value_name = "BOOK")]
+    books: Vec<std::path::PathBuf>,
+    /// Read "1.234,56" as 1234.56 (decimal comma); without it such text is an error.
+    #[arg(long)]
+    decimal_comma: bool,
+}
+
+/// Reads every book and checks that account ids are unique across them.
+fn read_books(args: &BookArgs) -> anyhow::Result<Vec<crate::book::Book>> {
+    let options = crate::book::ReadOptions {
+        decimal_comma: args.decimal_comma,
+    };
+    let mut books: Vec<crate::book::Book> = args
+        .books
+        .iter()
+        .map(|p| crate::book::read_book(p, &options))
+        .collect();
+    crate::book::check_unique_ids(&mut books);
+    Ok(books)
 }
 
 /// An error of the command line layer: what went wrong, in words for the user.
@@ -66,6 +105,10 @@ where
     };
     let mut out = std::io::stdout().lock();
     let result = match cli.command {
+        Command::Run(a) => run::run(&a, &mut out),
+        Command::Check(a) => check::run(&a, &mut out),
+        Command::Explain(a) => explain::run(&a, &mut out),
+        Command::Template(a) => template::run(&a, &mut out),
         Command::Daycount(a) => daycount::run(&a, &mut out),
     };
     match result {

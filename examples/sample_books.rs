@@ -1,0 +1,566 @@
+//! Writes the demo month-end books under `sample-books/`: an invented
+//! credit union, Harbourview Mutual, closing November 2026.
+//!
+//! Run `cargo run --example sample_books` to regenerate them. The same
+//! definitions give the CSV folder and the workbook, so the two always agree.
+//! Every name, account and figure here is invented.
+
+use std::path::Path;
+
+use chrono::NaiveDate;
+use rust_xlsxwriter::{Format, Workbook};
+
+/// A cell of a sample sheet.
+#[derive(Clone)]
+enum Cell {
+    Text(String),
+    Number(String),
+    Date(NaiveDate),
+    Empty,
+}
+
+fn t(s: &str) -> Cell {
+    if s.is_empty() {
+        Cell::Empty
+    } else {
+        Cell::Text(s.to_string())
+    }
+}
+
+fn num(s: &str) -> Cell {
+    Cell::Number(s.to_string())
+}
+
+fn date(s: &str) -> Cell {
+    if s.is_empty() {
+        Cell::Empty
+    } else {
+        Cell::Date(s.parse().expect("sample dates are ISO"))
+    }
+}
+
+struct Sheet {
+    name: &'static str,
+    columns: Vec<&'static str>,
+    rows: Vec<Vec<Cell>>,
+}
+
+const ACCOUNT_COLUMNS: [&str; 22] = [
+    "account",
+    "name",
+    "currency",
+    "side",
+    "day_count",
+    "compounding",
+    "posting",
+    "posting_anchor",
+    "anchor_kind",
+    "capitalise",
+    "open_date",
+    "opening_balance",
+    "opening_accrued",
+    "period_start",
+    "maturity",
+    "rate_ref",
+    "debit_rate_ref",
+    "tier_method",
+    "calendar",
+    "business_day",
+    "gl_interest",
+    "gl_accrued",
+];
+
+/// One account row: the columns of `ACCOUNT_COLUMNS`, by name.
+fn account(fields: &[(&str, Cell)]) -> Vec<Cell> {
+    ACCOUNT_COLUMNS
+        .iter()
+        .map(|c| {
+            fields
+                .iter()
+                .find(|(k, _)| k == c)
+                .map_or(Cell::Empty, |(_, v)| v.clone())
+        })
+        .collect()
+}
+
+fn sheets() -> Vec<Sheet> {
+    let mut accounts = Vec::new();
+    let mut rates: Vec<Vec<Cell>> = Vec::new();
+    let mut movements: Vec<Vec<Cell>> = Vec::new();
+    let rate = |r: &str, eff: &str, pct: &str, tier: &str| {
+        vec![
+            t(r),
+            date(eff),
+            num(pct),
+            if tier.is_empty() {
+                Cell::Empty
+            } else {
+                num(tier)
+            },
+        ]
+    };
+    let mv = |a: &str, value: &str, amount: &str, booked: &str, reference: &str| {
+        vec![t(a), date(value), num(amount), date(booked), t(reference)]
+    };
+
+    // Everyday savers: daily compounding, credited monthly; the saver rate is cut on 16 November.
+    rates.push(rate("SAVER", "2026-01-01", "2.10", ""));
+    rates.push(rate("SAVER", "2026-11-16", "1.95", ""));
+    let savers = [
+        ("HM-SAV-001", "Marram Point household saver", "18250.00"),
+        ("HM-SAV-002", "Gull Street youth saver", "2405.17"),
+        ("HM-SAV-003", "Quayside bakery reserve", "64000.00"),
+        ("HM-SAV-004", "Lantern Row holiday fund", "9120.55"),
+        ("HM-SAV-005", "Tidewater school PTA", "33780.00"),
+        ("HM-SAV-006", "Breakwater rowing club", "5210.40"),
+    ];
+    for (id, name, bal) in savers {
+        accounts.push(account(&[
+            ("account", t(id)),
+            ("name", t(name)),
+            ("currency", t("GBP")),
+            ("side", t("liability")),
+            ("day_count", t("ACT/365F")),
+            ("compounding", t("daily")),
+            ("posting", t("monthly")),
+            ("capitalise", t("yes")),
+            ("open_date", date("2026-10-01")),
+            ("opening_balance", num(bal)),
+            ("rate_ref", t("SAVER")),
+            ("gl_interest", t("5110")),
+            ("gl_accrued", t("2210")),
+        ]));
+    }
+    movements.push(mv("HM-SAV-001", "2026-11-09", "1500.00", "", "DEP-1109"));
+    movements.push(mv("HM-SAV-001", "2026-11-23", "-750.00", "", "WDL-1123"));
+    movements.push(mv(
+        "HM-SAV-003",
+        "2026-10-28",
+        "12000.00",
+        "2026-11-03",
+        "DEP-1028-LATE",
+    ));
+    movements.push(mv("HM-SAV-004", "2026-11-20", "-9000.00", "", "WDL-1120"));
+    movements.push(mv("HM-SAV-005", "2026-10-15", "2200.00", "", "DEP-1015"));
+
+    // Tiered savers: whole-balance and banded tiers on one table.
+    for r in ["TIER-W", "TIER-B"] {
+        rates.push(rate(r, "2026-01-01", "0.50", "0"));
+        rates.push(rate(r, "2026-01-01", "1.25", "10000"));
+        rates.push(rate(r, "2026-01-01", "2.00", "50000"));
+    }
+    let tiered = [
+        ("HM-TW-001", "whole", "TIER-W", "8500.00"),
+        ("HM-TW-002", "whole", "TIER-W", "27500.00"),
+        ("HM-TW-003", "whole", "TIER-W", "120000.00"),
+        ("HM-TB-001", "banded", "TIER-B", "8500.00"),
+        ("HM-TB-002", "banded", "TIER-B", "27500.00"),
+        ("HM-TB-003", "banded", "TIER-B", "120000.00"),
+    ];
+    for (id, method, r, bal) in tiered {
+        accounts.push(account(&[
+            ("account", t(id)),
+            ("name", t(&format!("Harbour tiered saver ({method})"))),
+            ("currency", t("GBP")),
+            ("day_count", t("ACT/365F")),
+            ("compounding", t("simple")),
+            ("posting", t("monthly")),
+            ("capitalise", t("yes")),
+            ("open_date", date("2026-10-01")),
+            ("opening_balance", num(bal)),
+            ("rate_ref", t(r)),
+            ("tier_method", t(method)),
+            ("gl_interest", t("5120")),
+            ("gl_accrued", t("2210")),
+        ]));
+    }
+    movements.push(mv("HM-TW-001", "2026-11-12", "2500.00", "", "DEP-1112"));
+    movements.push(mv("HM-TB-001", "2026-11-12", "2500.00", "", "DEP-1112"));
+
+    // Term deposits: interest paid once, at maturity.
+    let deposits = [
+        ("HM-TD-001", "2026-08-20", "2026-11-20", "500000.00", "4.10"),
+        ("HM-TD-002", "2026-09-01", "2027-03-01", "250000.00", "4.35"),
+        ("HM-TD-003", "2026-06-15", "2027-06-15", "100000.00", "4.50"),
+        ("HM-TD-004", "2026-11-10", "2027-02-10", "75000.00", "4.05"),
+        (
+            "HM-TD-005",
+            "2026-05-04",
+            "2026-12-04",
+            "1200000.00",
+            "4.25",
+        ),
+    ];
+    for (id, open, maturity, bal, pct) in deposits {
+        accounts.push(account(&[
+            ("account", t(id)),
+            ("name", t("Harbourview fixed-term deposit")),
+            ("currency", t("USD")),
+            ("day_count", t("ACT/365F")),
+            ("posting", t("maturity")),
+            ("open_date", date(open)),
+            ("opening_balance", num(bal)),
+            ("maturity", date(maturity)),
+            ("gl_interest", t("5130")),
+            ("gl_accrued", t("2220")),
+        ]));
+        rates.push(rate(id, "2026-01-01", pct, ""));
+    }
+
+    // Member loans on ACT/360, paying on the 15th; the lending rate falls on 5 November.
+    rates.push(rate("LOAN-BASE", "2026-01-01", "6.25", ""));
+    rates.push(rate("LOAN-BASE", "2026-11-05", "6.00", ""));
+    let loans = [
+        ("HM-LN-001", "Pier Lane car loan", "18400.00"),
+        ("HM-LN-002", "Saltmarsh boatyard equipment", "142000.00"),
+        ("HM-LN-003", "Crabapple Court home improvement", "26350.00"),
+        ("HM-LN-004", "Lighthouse cafe refit", "61000.00"),
+        ("HM-LN-005", "Netmenders co-op working capital", "88000.00"),
+        ("HM-LN-006", "Dune Road solar panels", "12750.00"),
+    ];
+    for (id, name, bal) in loans {
+        accounts.push(account(&[
+            ("account", t(id)),
+            ("name", t(name)),
+            ("currency", t("USD")),
+            ("side", t("asset")),
+            ("day_count", t("ACT/360")),
+            ("posting", t("monthly")),
+            ("posting_anchor", date("2026-01-15")),
+            ("anchor_kind", t("payment")),
+            ("business_day", t("modified-following")),
+            ("calendar", t("HARBOUR")),
+            ("open_date", date("2026-10-15")),
+            ("opening_balance", num(bal)),
+            ("rate_ref", t("LOAN-BASE")),
+            ("gl_interest", t("4110")),
+            ("gl_accrued", t("1310")),
+        ]));
+    }
+    movements.push(mv("HM-LN-001", "2026-11-16", "-650.00", "", "REPAY-1116"));
+    movements.push(mv("HM-LN-002", "2026-11-16", "-4200.00", "", "REPAY-1116"));
+    movements.push(mv("HM-LN-004", "2026-11-03", "9000.00", "", "DRAW-1103"));
+
+    // Intercompany: a loan to the group's services company and a borrowing
+    // from the group holding, both on 30/360, interest paid quarterly.
+    accounts.push(account(&[
+        ("account", t("HM-IC-001")),
+        ("name", t("Loan to Harbourview Services Ltd")),
+        ("currency", t("USD")),
+        ("side", t("asset")),
+        ("day_count", t("30/360")),
+        ("posting", t("quarterly")),
+        ("posting_anchor", date("2026-12-31")),
+        ("open_date", date("2026-10-01")),
+        ("opening_balance", num("2000000.00")),
+        ("rate_ref", t("IC-LEND")),
+        ("gl_interest", t("4210")),
+        ("gl_accrued", t("1320")),
+    ]));
+    rates.push(rate("IC-LEND", "2026-01-01", "5.10", ""));
+    accounts.push(account(&[
+        ("account", t("HM-IC-002")),
+        ("name", t("Borrowing from Harbourview Group Holdings")),
+        ("currency", t("USD")),
+        ("day_count", t("30/360")),
+        ("posting", t("quarterly")),
+        ("posting_anchor", date("2026-11-30")),
+        ("open_date", date("2026-09-01")),
+        ("opening_balance", num("5000000.00")),
+        ("rate_ref", t("IC-BORROW")),
+        ("gl_interest", t("5210")),
+        ("gl_accrued", t("2310")),
+    ]));
+    rates.push(rate("IC-BORROW", "2026-01-01", "4.80", ""));
+
+    // Currencies without two minor units.
+    accounts.push(account(&[
+        ("account", t("HM-JPY-001")),
+        ("name", t("Yen settlement deposit")),
+        ("currency", t("JPY")),
+        ("day_count", t("ACT/365F")),
+        ("open_date", date("2026-11-01")),
+        ("opening_balance", num("12345678")),
+        ("rate_ref", t("JPY-DEP")),
+    ]));
+    rates.push(rate("JPY-DEP", "2026-01-01", "0.30", ""));
+    accounts.push(account(&[
+        ("account", t("HM-KWD-001")),
+        ("name", t("Dinar call deposit")),
+        ("currency", t("KWD")),
+        ("day_count", t("ACT/360")),
+        ("open_date", date("2026-11-01")),
+        ("opening_balance", num("45678.123")),
+        ("rate_ref", t("KWD-DEP")),
+    ]));
+    rates.push(rate("KWD-DEP", "2026-01-01", "4.125", ""));
+
+    // One account per remaining basis, each on its own rate.
+    let others = [
+        (
+            "HM-EUR-001",
+            "Euro treasury placement",
+            "EUR",
+            "asset",
+            "30E/360",
+            "3500000.00",
+            "2.85",
+        ),
+        (
+            "HM-EUR-002",
+            "Euro correspondent deposit",
+            "EUR",
+            "liability",
+            "30E/360 ISDA",
+            "820000.00",
+            "2.40",
+        ),
+        (
+            "HM-ISDA-001",
+            "Dollar interbank placement",
+            "USD",
+            "asset",
+            "ACT/ACT ISDA",
+            "1000000.00",
+            "4.60",
+        ),
+        (
+            "HM-NL-001",
+            "No-leap club deposit",
+            "USD",
+            "liability",
+            "NL/365",
+            "40000.00",
+            "3.00",
+        ),
+        (
+            "HM-US-001",
+            "Municipal note holding",
+            "USD",
+            "asset",
+            "30/360 US",
+            "250000.00",
+            "4.00",
+        ),
+        (
+            "HM-L-001",
+            "Sterling notice account",
+            "GBP",
+            "liability",
+            "ACT/365L",
+            "150000.00",
+            "3.65",
+        ),
+    ];
+    for (id, name, ccy, side, basis, bal, pct) in others {
+        accounts.push(account(&[
+            ("account", t(id)),
+            ("name", t(name)),
+            ("currency", t(ccy)),
+            ("side", t(side)),
+            ("day_count", t(basis)),
+            ("open_date", date("2026-10-01")),
+            ("opening_balance", num(bal)),
+            ("rate_ref", t(id)),
+        ]));
+        rates.push(rate(id, "2026-01-01", pct, ""));
+    }
+    accounts.push(account(&[
+        ("account", t("HM-ICMA-001")),
+        ("name", t("Harbour bond holding (semiannual)")),
+        ("currency", t("USD")),
+        ("side", t("asset")),
+        ("day_count", t("ACT/ACT ICMA")),
+        ("posting", t("semiannual")),
+        ("posting_anchor", date("2026-06-30")),
+        ("open_date", date("2026-07-01")),
+        ("opening_balance", num("500000.00")),
+        ("rate_ref", t("HM-ICMA-001")),
+    ]));
+    rates.push(rate("HM-ICMA-001", "2026-01-01", "4.75", ""));
+    accounts.push(account(&[
+        ("account", t("HM-CONT-001")),
+        ("name", t("Continuously compounded reserve")),
+        ("currency", t("USD")),
+        ("day_count", t("ACT/365F")),
+        ("compounding", t("continuous")),
+        ("posting", t("annual")),
+        ("posting_anchor", date("2026-12-31")),
+        ("open_date", date("2026-01-01")),
+        ("opening_balance", num("300000.00")),
+        ("rate_ref", t("HM-CONT-001")),
+    ]));
+    rates.push(rate("HM-CONT-001", "2025-01-01", "3.90", ""));
+    accounts.push(account(&[
+        ("account", t("HM-MQ-001")),
+        ("name", t("Quarterly bonus saver")),
+        ("currency", t("GBP")),
+        ("day_count", t("ACT/365F")),
+        ("compounding", t("monthly")),
+        ("posting", t("quarterly")),
+        ("posting_anchor", date("2026-03-31")),
+        ("capitalise", t("yes")),
+        ("open_date", date("2026-10-01")),
+        ("opening_balance", num("80000.00")),
+        ("rate_ref", t("HM-MQ-001")),
+    ]));
+    rates.push(rate("HM-MQ-001", "2026-01-01", "4.80", ""));
+    accounts.push(account(&[
+        ("account", t("HM-BRL-001")),
+        ("name", t("Real-denominated placement")),
+        ("currency", t("BRL")),
+        ("side", t("asset")),
+        ("day_count", t("BUS/252")),
+        ("compounding", t("annual-effective")),
+        ("calendar", t("BR-2026")),
+        ("open_date", date("2026-11-01")),
+        ("opening_balance", num("2500000.00")),
+        ("rate_ref", t("HM-BRL-001")),
+    ]));
+    rates.push(rate("HM-BRL-001", "2026-01-01", "13.65", ""));
+    accounts.push(account(&[
+        ("account", t("HM-CHK-001")),
+        ("name", t("Harbour cafe current account")),
+        ("currency", t("USD")),
+        ("day_count", t("ACT/365F")),
+        ("open_date", date("2026-11-01")),
+        ("opening_balance", num("4200.00")),
+        ("rate_ref", t("CHK-CREDIT")),
+        ("debit_rate_ref", t("OVERDRAFT")),
+    ]));
+    rates.push(rate("CHK-CREDIT", "2026-01-01", "0.10", ""));
+    rates.push(rate("OVERDRAFT", "2026-01-01", "18.00", ""));
+    movements.push(mv("HM-CHK-001", "2026-11-10", "-7500.00", "", "CHQ-4471"));
+    movements.push(mv("HM-CHK-001", "2026-11-25", "6000.00", "", "DEP-1125"));
+    accounts.push(account(&[
+        ("account", t("HM-BF-001")),
+        ("name", t("Migrated member saver")),
+        ("currency", t("USD")),
+        ("day_count", t("ACT/360")),
+        ("open_date", date("2026-11-16")),
+        ("opening_balance", num("300000.00")),
+        ("opening_accrued", num("246.67")),
+        ("period_start", date("2026-11-01")),
+        ("rate_ref", t("HM-BF-001")),
+    ]));
+    rates.push(rate("HM-BF-001", "2026-01-01", "2.00", ""));
+
+    let holidays = vec![
+        vec![t("HARBOUR"), date("2026-11-26"), t("Harvest Thanksgiving")],
+        vec![t("HARBOUR"), date("2026-12-25"), t("Christmas Day")],
+        vec![t("HARBOUR"), date("2027-01-01"), t("New Year's Day")],
+        vec![t("BR-2026"), date("2026-11-02"), t("All Souls' Day")],
+        vec![t("BR-2026"), date("2026-11-20"), t("Black Awareness Day")],
+        vec![t("BR-2026"), date("2026-12-25"), t("Christmas Day")],
+    ];
+    let settings = vec![
+        vec![t("cutoff"), date("2026-11-30")],
+        vec![t("entity"), t("HARBOURVIEW-MUTUAL")],
+    ];
+    vec![
+        Sheet {
+            name: "Accounts",
+            columns: ACCOUNT_COLUMNS.to_vec(),
+            rows: accounts,
+        },
+        Sheet {
+            name: "Rates",
+            columns: vec!["rate_ref", "effective", "rate_percent", "tier_from"],
+            rows: rates,
+        },
+        Sheet {
+            name: "Movements",
+            columns: vec![
+                "account",
+                "value_date",
+                "amount",
+                "booking_date",
+                "reference",
+            ],
+            rows: movements,
+        },
+        Sheet {
+            name: "Holidays",
+            columns: vec!["calendar", "date", "name"],
+            rows: holidays,
+        },
+        Sheet {
+            name: "Settings",
+            columns: vec!["setting", "value"],
+            rows: settings,
+        },
+    ]
+}
+
+fn write_xlsx(sheets: &[Sheet], path: &Path) -> Result<(), rust_xlsxwriter::XlsxError> {
+    let mut wb = Workbook::new();
+    let bold = Format::new().set_bold();
+    let day = Format::new().set_num_format("yyyy-mm-dd");
+    wb.set_properties(
+        &rust_xlsxwriter::DocProperties::new()
+            .set_title("Harbourview Mutual month-end books, November 2026 (invented)")
+            .set_creation_datetime(&rust_xlsxwriter::ExcelDateTime::from_ymd(2026, 12, 1)?),
+    );
+    for s in sheets {
+        let ws = wb.add_worksheet();
+        ws.set_name(s.name)?;
+        for (c, h) in s.columns.iter().enumerate() {
+            ws.write_string_with_format(0, c as u16, *h, &bold)?;
+            ws.set_column_width(c as u16, (h.len().max(12) + 2) as f64)?;
+        }
+        for (r, row) in s.rows.iter().enumerate() {
+            let r = r as u32 + 1;
+            for (c, cell) in row.iter().enumerate() {
+                let c = c as u16;
+                match cell {
+                    Cell::Text(v) => {
+                        ws.write_string(r, c, v)?;
+                    }
+                    Cell::Number(v) => {
+                        ws.write_number(r, c, v.parse::<f64>().expect("sample numbers parse"))?;
+                    }
+                    Cell::Date(d) => {
+                        ws.write_datetime_with_format(r, c, d, &day)?;
+                    }
+                    Cell::Empty => {}
+                }
+            }
+        }
+        ws.set_freeze_panes(1, 0)?;
+    }
+    wb.save(path)
+}
+
+fn write_csv(sheets: &[Sheet], dir: &Path) -> std::io::Result<()> {
+    std::fs::create_dir_all(dir)?;
+    for s in sheets {
+        let mut w = csv::Writer::from_path(dir.join(format!("{}.csv", s.name.to_lowercase())))?;
+        w.write_record(&s.columns)?;
+        for row in &s.rows {
+            let fields: Vec<String> = row
+                .iter()
+                .map(|c| match c {
+                    Cell::Text(v) | Cell::Number(v) => v.clone(),
+                    Cell::Date(d) => d.to_string(),
+                    Cell::Empty => String::new(),
+                })
+                .collect();
+            w.write_record(&fields)?;
+        }
+        w.flush()?;
+    }
+    Ok(())
+}
+
+fn main() -> Result<(), Box<dyn std::error::Error>> {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books");
+    let sheets = sheets();
+    write_xlsx(&sheets, &root.join("harbourview-2026-11.xlsx"))?;
+    write_csv(&sheets, &root.join("harbourview-2026-11-csv"))?;
+    let accounts = sheets.first().map_or(0, |s| s.rows.len());
+    println!(
+        "sample books written under {} ({accounts} accounts)",
+        root.display()
+    );
+    Ok(())
+}

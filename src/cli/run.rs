@@ -1,0 +1,409 @@
+//! `ledgerate run BOOK... --cutoff DATE`: the month-end accrual run. Reads
+//! the books, accrues every account in parallel, writes the workbook and
+//! prints a short summary.
+
+use std::io::{IsTerminal, Write};
+use std::path::PathBuf;
+
+use anyhow::{anyhow, bail, Context, Result};
+use chrono::NaiveDateTime;
+
+use super::inputs::{check_books_exist, check_output_is_not_an_input, fingerprint};
+use super::settings::{self, month_start, Settings};
+use super::{exit, read_books, BookArgs};
+use crate::batch::journal::JournalStyle;
+use crate::batch::{run_books, BatchSettings};
+use crate::book::{Problem, Severity};
+use crate::engine::reconcile::Tolerance;
+use crate::report::model::{Report, RunFacts};
+use rust_decimal::Decimal;
+
+/// Arguments of `run`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    #[command(flatten)]
+    books: BookArgs,
+    /// C, the cut-off: the last day computed (else the Settings sheet's cutoff).
+    #[arg(long, value_name = "DATE")]
+    cutoff: Option<String>,
+    /// F, the first day of the window (default: the first day of the cut-off's month).
+    #[arg(long, value_name = "DATE")]
+    window_start: Option<String>,
+    /// Where to write the workbook (default: accruals-CUTOFF.xlsx here).
+    #[arg(long, value_name = "FILE")]
+    out: Option<PathBuf>,
+    /// Add the Daily sheet: one row per account and day.
+    #[arg(long)]
+    daily: bool,
+    /// Pin the run time written in the workbook (YYYY-MM-DDTHH:MM:SS), for audits and tests.
+    #[arg(long, value_name = "TIMESTAMP")]
+    fixed_time: Option<String>,
+    /// Worker threads (default: one per core). Does not change any figure.
+    #[arg(long, value_name = "N")]
+    threads: Option<usize>,
+    /// The entity booking the journal (else the Settings sheet's entity, else "default").
+    #[arg(long, value_name = "NAME")]
+    entity: Option<String>,
+    /// How the journal books accruals: incremental or reversing.
+    #[arg(long, value_name = "STYLE")]
+    journal_style: Option<String>,
+    #[command(flatten)]
+    tolerance: ToleranceArgs,
+    /// Exit with status 3 when any statement row is outside tolerance (for scheduled runs).
+    #[arg(long)]
+    fail_on_variance: bool,
+}
+
+/// Reconciliation tolerances.
+#[derive(Debug, clap::Args)]
+pub struct ToleranceArgs {
+    /// Variance accepted, in units of each row's currency (default: one minor unit).
+    #[arg(long, value_name = "AMOUNT")]
+    pub tolerance_amount: Option<String>,
+    /// Variance accepted as an annual rate gap in basis points (default: 0).
+    #[arg(long, value_name = "BP")]
+    pub tolerance_bp: Option<String>,
+}
+
+/// The tolerances in force, recorded for the Run sheet.
+pub(crate) fn tolerance(
+    books: &[crate::book::Book],
+    args: &ToleranceArgs,
+    listed: &mut Settings,
+) -> Result<Tolerance> {
+    let parse = |what: &str, v: &str| -> Result<Decimal> {
+        let d: Decimal = v
+            .trim()
+            .parse()
+            .map_err(|_| anyhow!("{what} '{v}' is not a decimal number: write it like 0.05"))?;
+        if d.is_sign_negative() {
+            bail!("{what} '{v}' is negative: a tolerance is a size, write it without a sign");
+        }
+        Ok(d)
+    };
+    let amount = settings::text(
+        books,
+        "tolerance_amount",
+        args.tolerance_amount.as_deref(),
+        "",
+    )?;
+    let bp = settings::text(books, "tolerance_bp", args.tolerance_bp.as_deref(), "0")?;
+    let tol = Tolerance {
+        amount: if amount.value.is_empty() {
+            None
+        } else {
+            Some(parse("the tolerance amount", &amount.value)?)
+        },
+        bp: parse("the tolerance in basis points", &bp.value)?,
+    };
+    let shown = settings::Resolved {
+        value: if amount.value.is_empty() {
+            "one minor unit of each row's currency".to_string()
+        } else {
+            amount.value.clone()
+        },
+        source: amount.source,
+    };
+    listed.record("tolerance_amount", &shown);
+    listed.record("tolerance_bp", &bp);
+    Ok(tol)
+}
+
+/// The command line as the Run sheet shows it: without the options that
+/// cannot change a figure (threads, output path).
+fn audited_command_line() -> String {
+    let mut out = Vec::new();
+    let mut skip_next = false;
+    for a in std::env::args().skip(1) {
+        if skip_next {
+            skip_next = false;
+            continue;
+        }
+        if a == "--threads" || a == "--out" {
+            skip_next = true;
+            continue;
+        }
+        if a.starts_with("--threads=") || a.starts_with("--out=") {
+            continue;
+        }
+        out.push(if a.contains(' ') {
+            format!("\"{a}\"")
+        } else {
+            a
+        });
+    }
+    format!("ledgerate {}", out.join(" "))
+}
+
+fn run_time(fixed: Option<&str>) -> Result<NaiveDateTime> {
+    match fixed {
+        Some(t) => NaiveDateTime::parse_from_str(t, "%Y-%m-%dT%H:%M:%S")
+            .or_else(|_| NaiveDateTime::parse_from_str(&format!("{t}T00:00:00"), "%Y-%m-%dT%H:%M:%S"))
+            .map_err(|_| anyhow!("--fixed-time '{t}' is not a timestamp: write it as YYYY-MM-DDTHH:MM:SS, for example 2026-12-01T09:00:00")),
+        // Whole seconds: the workbook has no finer time.
+        None => Ok(chrono::Local::now().naive_local().with_nanosecond_zero()),
+    }
+}
+
+trait NoNanos {
+    fn with_nanosecond_zero(self) -> Self;
+}
+
+impl NoNanos for NaiveDateTime {
+    fn with_nanosecond_zero(self) -> Self {
+        use chrono::Timelike;
+        self.with_nanosecond(0).unwrap_or(self)
+    }
+}
+
+/// Runs the command.
+pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
+    check_books_exist(&args.books.books)?;
+    let books = read_books(&args.books)?;
+    let cutoff =
+        settings::date(&books, "cutoff", args.cutoff.as_deref(), None)?.ok_or_else(|| {
+            anyhow!(
+                "no cut-off: give --cutoff YYYY-MM-DD (or a cutoff row on a book's Settings sheet)"
+            )
+        })?;
+    let window = settings::date(
+        &books,
+        "window_start",
+        args.window_start.as_deref(),
+        Some(month_start(cutoff.value)),
+    )?
+    .ok_or_else(|| anyhow!("no window start"))?;
+    if window.value > cutoff.value {
+        bail!(
+            "the window starts on {} after the cut-off {}: the window must end on the cut-off",
+            window.value,
+            cutoff.value
+        );
+    }
+    let style = settings::text(
+        &books,
+        "journal_style",
+        args.journal_style.as_deref(),
+        "incremental",
+    )?;
+    let journal_style = JournalStyle::parse(&style.value).map_err(|e| anyhow!("{e}"))?;
+    let entity = settings::text(&books, "entity", args.entity.as_deref(), "default")?;
+    let mut listed = Settings::default();
+    listed.record("cutoff", &cutoff);
+    listed.record("window_start", &window);
+    listed.record("entity", &entity);
+    listed.record("journal_style", &style);
+    listed.record(
+        "daily",
+        &settings::Resolved {
+            value: args.daily,
+            source: if args.daily {
+                crate::report::model::SettingSource::Option
+            } else {
+                crate::report::model::SettingSource::Default
+            },
+        },
+    );
+    listed.record(
+        "decimal_comma",
+        &settings::Resolved {
+            value: args.books.decimal_comma,
+            source: if args.books.decimal_comma {
+                crate::report::model::SettingSource::Option
+            } else {
+                crate::report::model::SettingSource::Default
+            },
+        },
+    );
+
+    let tolerance = tolerance(&books, &args.tolerance, &mut listed)?;
+    let target = args
+        .out
+        .clone()
+        .unwrap_or_else(|| PathBuf::from(format!("accruals-{}.xlsx", cutoff.value)));
+    check_output_is_not_an_input(&target, &args.books.books)?;
+    let run_time = run_time(args.fixed_time.as_deref())?;
+    let inputs = args
+        .books
+        .books
+        .iter()
+        .map(|b| fingerprint(b))
+        .collect::<Result<Vec<_>>>()?;
+
+    let batch_settings = BatchSettings {
+        cutoff: cutoff.value,
+        window_start: window.value,
+        daily: args.daily,
+        journal_style,
+        entities: books
+            .iter()
+            .map(|b| {
+                if entity.source == crate::report::model::SettingSource::Option {
+                    entity.value.clone()
+                } else {
+                    b.settings
+                        .iter()
+                        .find(|s| s.name == "entity")
+                        .map_or_else(|| entity.value.clone(), |s| s.value.clone())
+                }
+            })
+            .collect(),
+        tolerance,
+    };
+    let total: usize = books.iter().map(|b| b.accounts.len()).sum();
+    let bar = progress_bar(total);
+    let tick = || bar.inc(1);
+    let batch = match args.threads {
+        Some(n) => {
+            let pool = rayon::ThreadPoolBuilder::new()
+                .num_threads(n.max(1))
+                .build()
+                .context("cannot start the worker threads")?;
+            pool.install(|| run_books(&books, &batch_settings, &tick))
+        }
+        None => run_books(&books, &batch_settings, &tick),
+    };
+    bar.finish_and_clear();
+
+    let mut problems: Vec<Problem> = books
+        .iter()
+        .flat_map(|b| b.problems.iter().cloned())
+        .collect();
+    problems.extend(batch.problems.iter().cloned());
+    let failed = batch.accounts_read.saturating_sub(batch.accounts_computed);
+    let report = Report {
+        facts: RunFacts {
+            program: format!("ledgerate {}", env!("CARGO_PKG_VERSION")),
+            command_line: audited_command_line(),
+            inputs,
+            settings: listed.listed,
+            run_time,
+            cutoff: cutoff.value,
+            window_start: window.value,
+            accounts_read: batch.accounts_read,
+            accounts_computed: batch.accounts_computed,
+            accounts_failed: failed,
+        },
+        totals: batch.totals.clone(),
+        accruals: batch.accruals,
+        reconciliation: batch.reconciliation,
+        status_counts: batch.status_counts,
+        journal: batch.journal,
+        daily: batch.daily,
+        problems,
+    };
+    crate::report::write_report(&report, &target)
+        .with_context(|| format!("cannot write the workbook {}", target.display()))?;
+    print_summary(out, &report, &target)?;
+    let outside = report
+        .reconciliation
+        .iter()
+        .any(|l| !matches!(l.status.as_str(), "agrees" | "within tolerance"));
+    Ok(
+        if report
+            .problems
+            .iter()
+            .any(|p| p.severity == Severity::Error)
+        {
+            exit::ACCOUNT_ERRORS
+        } else if args.fail_on_variance && outside {
+            exit::VARIANCE
+        } else {
+            exit::OK
+        },
+    )
+}
+
+fn progress_bar(total: usize) -> indicatif::ProgressBar {
+    // Only a long run on a terminal earns a bar; indicatif hides itself off a terminal too.
+    if total < 20_000 || !std::io::stderr().is_terminal() {
+        return indicatif::ProgressBar::hidden();
+    }
+    let bar = indicatif::ProgressBar::new(total as u64);
+    if let Ok(style) = indicatif::ProgressStyle::with_template(
+        "accruing {bar:40} {pos}/{len} accounts, {eta} left",
+    ) {
+        bar.set_style(style);
+    }
+    bar
+}
+
+/// The plain-text summary on standard output.
+pub(crate) fn print_summary(
+    out: &mut dyn Write,
+    report: &Report,
+    target: &std::path::Path,
+) -> Result<()> {
+    let f = &report.facts;
+    let count = |s: Severity| report.problems.iter().filter(|p| p.severity == s).count();
+    writeln!(
+        out,
+        "cut-off {}, window {}..{}",
+        f.cutoff, f.window_start, f.cutoff
+    )?;
+    writeln!(
+        out,
+        "accounts: {} read, {} computed, {} left out by errors",
+        f.accounts_read, f.accounts_computed, f.accounts_failed
+    )?;
+    if !report.totals.is_empty() {
+        writeln!(
+            out,
+            "{:<8} {:>8} {:>22} {:>18} {:>18} {:>20}",
+            "currency",
+            "accounts",
+            "balance at cut-off",
+            "accrued at cut-off",
+            "posted in window",
+            "interest for window"
+        )?;
+        for t in &report.totals {
+            let m = |x: Decimal| {
+                let mut r = x;
+                if r.scale() < t.minor_units {
+                    r.rescale(t.minor_units);
+                }
+                r
+            };
+            writeln!(
+                out,
+                "{:<8} {:>8} {:>22} {:>18} {:>18} {:>20}",
+                t.currency,
+                t.accounts,
+                m(t.balance_at_cutoff),
+                m(t.accrued_at_cutoff),
+                m(t.posted_in_window),
+                m(t.interest_for_window)
+            )?;
+        }
+    }
+    if !report.status_counts.is_empty() {
+        let counts: Vec<String> = report
+            .status_counts
+            .iter()
+            .map(|c| format!("{} {}", c.rows, c.status))
+            .collect();
+        writeln!(out, "statement rows: {}", counts.join(", "))?;
+    }
+    writeln!(
+        out,
+        "problems: {} errors, {} warnings, {} notes (all listed on the Problems sheet)",
+        count(Severity::Error),
+        count(Severity::Warning),
+        count(Severity::Note)
+    )?;
+    for p in report
+        .problems
+        .iter()
+        .filter(|p| p.severity == Severity::Error)
+        .take(10)
+    {
+        writeln!(out, "  {p}")?;
+    }
+    if count(Severity::Error) > 10 {
+        writeln!(out, "  ... and {} more errors", count(Severity::Error) - 10)?;
+    }
+    writeln!(out, "workbook: {}", target.display())?;
+    writeln!(out, "review these figures against the contract terms and the applicable standards before booking them")?;
+    Ok(())
+}

@@ -1,0 +1,285 @@
+//! `ledgerate run`, `check` and `template` as a user runs them: the real
+//! binary on the shipped sample books, the workbook read back with calamine,
+//! and figures worked out by hand beside each check.
+
+use std::path::{Path, PathBuf};
+
+use assert_cmd::Command;
+use calamine::{open_workbook_auto, Data, Reader};
+use predicates::prelude::*;
+
+fn ledgerate() -> Command {
+    Command::cargo_bin("ledgerate").unwrap()
+}
+
+fn sample() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books/harbourview-2026-11.xlsx")
+}
+
+fn sample_csv() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books/harbourview-2026-11-csv")
+}
+
+fn run_to(out: &Path, extra: &[&str]) -> assert_cmd::assert::Assert {
+    ledgerate()
+        .arg("run")
+        .arg(sample())
+        .args([
+            "--cutoff",
+            "2026-11-30",
+            "--fixed-time",
+            "2026-12-01T08:00:00",
+            "--out",
+        ])
+        .arg(out)
+        .args(extra)
+        .assert()
+}
+
+/// A sheet as rows of cells.
+fn sheet(path: &Path, name: &str) -> Vec<Vec<Data>> {
+    let mut wb = open_workbook_auto(path).unwrap();
+    let range = wb.worksheet_range(name).unwrap();
+    range.rows().map(|r| r.to_vec()).collect()
+}
+
+/// The Accruals row of an account, by header label.
+fn accrual(path: &Path, account: &str, column: &str) -> Data {
+    let rows = sheet(path, "Accruals");
+    let header = &rows[0];
+    let col = header
+        .iter()
+        .position(|h| h.to_string() == column)
+        .unwrap_or_else(|| panic!("no column {column}"));
+    let row = rows
+        .iter()
+        .find(|r| r[0].to_string() == account)
+        .unwrap_or_else(|| panic!("no account {account}"));
+    row[col].clone()
+}
+
+fn number(d: &Data) -> String {
+    match d {
+        Data::Float(f) => f.to_string(),
+        other => panic!("not a number: {other:?}"),
+    }
+}
+
+#[test]
+fn the_month_end_run_reproduces_hand_worked_figures() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("nov.xlsx");
+    run_to(&out, &[])
+        .success()
+        .stdout(predicate::str::contains(
+            "accounts: 39 read, 39 computed, 0 left out by errors",
+        ))
+        .stdout(predicate::str::contains("workbook:"));
+    // 30E/360: 3,500,000.00 x 2.85% x 30/360 = 8,312.50.
+    assert_eq!(
+        number(&accrual(&out, "HM-EUR-001", "Interest for window")),
+        "8312.5"
+    );
+    // 30/360, quarterly to 30 Nov: 5,000,000.00 x 4.80% x 90/360 = 60,000.00 posted;
+    // the window's share is 30/360 of a year: 20,000.00.
+    assert_eq!(
+        number(&accrual(&out, "HM-IC-002", "Posted in window")),
+        "60000"
+    );
+    assert_eq!(
+        number(&accrual(&out, "HM-IC-002", "Interest for window")),
+        "20000"
+    );
+    // ACT/365F in yen: 12,345,678 x 0.30% x 30/365 = 3,044.14, posted as 3,044.
+    assert_eq!(
+        number(&accrual(&out, "HM-JPY-001", "Interest for window")),
+        "3044"
+    );
+    // ACT/360 in dinars: 45,678.123 x 4.125% x 30/360 = 157.0186, posted as 157.019.
+    assert_eq!(
+        number(&accrual(&out, "HM-KWD-001", "Interest for window")),
+        "157.019"
+    );
+    // Term deposit maturing 20 Nov: 500,000.00 x 4.10% x 92/365 = 5,167.12 paid;
+    // 4,100.00 of it (73 nights to 31 Oct) was accrued before the window.
+    assert_eq!(
+        number(&accrual(&out, "HM-TD-001", "Posted in window")),
+        "5167.12"
+    );
+    assert_eq!(
+        number(&accrual(&out, "HM-TD-001", "Interest for window")),
+        "1067.12"
+    );
+    // Brought forward on 16 Nov with 246.67 accrued: 300,000.00 x 2% x 15/360 = 250.00 more.
+    assert_eq!(
+        number(&accrual(&out, "HM-BF-001", "Posted in window")),
+        "496.67"
+    );
+    // Overdraft: 4,200 x 0.10% x 9/365 - 3,300 x 18% x 15/365 + 2,700 x 0.10% x 6/365 = -24.26.
+    assert_eq!(
+        number(&accrual(&out, "HM-CHK-001", "Interest for window")),
+        "-24.26"
+    );
+    // Sheets in the order of the output contract.
+    let wb = open_workbook_auto(&out).unwrap();
+    assert_eq!(
+        wb.sheet_names(),
+        ["Summary", "Accruals", "Journal", "Problems", "Run"]
+    );
+}
+
+#[test]
+fn the_journal_balances_per_currency() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("nov.xlsx");
+    run_to(&out, &[]).success();
+    let rows = sheet(&out, "Journal");
+    assert_eq!(
+        rows[0].iter().map(|c| c.to_string()).collect::<Vec<_>>(),
+        [
+            "Date",
+            "Entity",
+            "Currency",
+            "GL account",
+            "Debit",
+            "Credit",
+            "Memo"
+        ]
+    );
+    let mut sums: std::collections::BTreeMap<
+        String,
+        (rust_decimal::Decimal, rust_decimal::Decimal),
+    > = Default::default();
+    for r in &rows[1..] {
+        let dec = |d: &Data| match d {
+            Data::Float(f) => f.to_string().parse::<rust_decimal::Decimal>().unwrap(),
+            Data::Empty => rust_decimal::Decimal::ZERO,
+            other => panic!("{other:?}"),
+        };
+        let e = sums.entry(r[2].to_string()).or_default();
+        e.0 += dec(&r[4]);
+        e.1 += dec(&r[5]);
+    }
+    assert_eq!(sums.len(), 6);
+    for (ccy, (dr, cr)) in sums {
+        assert_eq!(dr, cr, "{ccy}");
+    }
+}
+
+#[test]
+fn the_workbook_is_byte_identical_across_runs_and_thread_counts() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = dir.path().join("a.xlsx");
+    let b = dir.path().join("b.xlsx");
+    let c = dir.path().join("c.xlsx");
+    run_to(&a, &["--threads", "1", "--daily"]).success();
+    run_to(&b, &["--threads", "2", "--daily"]).success();
+    run_to(&c, &["--daily", "--threads=2"]).success();
+    let bytes = |p: &Path| std::fs::read(p).unwrap();
+    assert!(bytes(&a) == bytes(&b), "--threads 1 and --threads 2 differ");
+    assert!(bytes(&a) == bytes(&c), "two runs differ");
+    assert_eq!(
+        open_workbook_auto(&a).unwrap().sheet_names(),
+        ["Summary", "Accruals", "Journal", "Daily", "Problems", "Run"]
+    );
+}
+
+#[test]
+fn a_csv_folder_gives_the_same_figures_as_the_workbook() {
+    let dir = tempfile::tempdir().unwrap();
+    let x = dir.path().join("x.xlsx");
+    let y = dir.path().join("y.xlsx");
+    run_to(&x, &[]).success();
+    ledgerate()
+        .arg("run")
+        .arg(sample_csv())
+        .args(["--fixed-time", "2026-12-01T08:00:00", "--out"])
+        .arg(&y)
+        .assert()
+        .success();
+    assert_eq!(sheet(&x, "Accruals"), sheet(&y, "Accruals"));
+    assert_eq!(sheet(&x, "Journal"), sheet(&y, "Journal"));
+}
+
+#[test]
+fn the_output_may_not_be_an_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = dir.path().join("book.xlsx");
+    std::fs::copy(sample(), &book).unwrap();
+    ledgerate()
+        .arg("run")
+        .arg(&book)
+        .arg("--out")
+        .arg(&book)
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("would overwrite the input"));
+    assert_eq!(
+        std::fs::read(&book).unwrap(),
+        std::fs::read(sample()).unwrap()
+    );
+}
+
+#[test]
+fn a_missing_book_or_cutoff_is_a_usage_error() {
+    ledgerate()
+        .args(["run", "no-such-book.xlsx", "--cutoff", "2026-11-30"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("does not exist"));
+    ledgerate()
+        .args(["run"])
+        .arg(sample())
+        .args(["--cutoff", "30/11/2026"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("write it as YYYY-MM-DD"));
+}
+
+#[test]
+fn check_reads_and_writes_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    ledgerate()
+        .current_dir(dir.path())
+        .arg("check")
+        .arg(sample())
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("39 accounts ready, 0 problems"));
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+}
+
+#[test]
+fn the_template_is_a_book_the_reader_accepts() {
+    let dir = tempfile::tempdir().unwrap();
+    let t = dir.path().join("book.xlsx");
+    ledgerate()
+        .arg("template")
+        .arg("--out")
+        .arg(&t)
+        .assert()
+        .success();
+    let wb = open_workbook_auto(&t).unwrap();
+    for s in [
+        "Accounts",
+        "Rates",
+        "Movements",
+        "Statements",
+        "Holidays",
+        "Settings",
+    ] {
+        assert!(wb.sheet_names().iter().any(|n| n == s), "no sheet {s}");
+    }
+    ledgerate()
+        .arg("template")
+        .arg("--out")
+        .arg(&t)
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("--force"));
+    ledgerate()
+        .arg("check")
+        .arg(&t)
+        .assert()
+        .stdout(predicate::str::contains("accounts ready"));
+}
