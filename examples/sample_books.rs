@@ -8,6 +8,13 @@
 use std::path::Path;
 
 use chrono::NaiveDate;
+use ledgerate::book::{read_book, ReadOptions};
+use ledgerate::conventions::daycount::Basis;
+use ledgerate::engine::rates::{RateSchedule, RateSource, RateTable};
+use ledgerate::engine::reconcile::expected_over;
+use ledgerate::engine::run::{accrue, RunOptions, Sources};
+use ledgerate::engine::{AccountTerms, Movement};
+use rust_decimal::Decimal;
 use rust_xlsxwriter::{Format, Workbook};
 
 /// A cell of a sample sheet.
@@ -552,14 +559,164 @@ fn write_csv(sheets: &[Sheet], dir: &Path) -> std::io::Result<()> {
     Ok(())
 }
 
+/// What a statement row of the sample shows for an account's posting.
+enum Planted {
+    /// Posted as the contract says.
+    Right,
+    /// Posted under other terms, other rates or other movements.
+    Other(Box<dyn Fn(&mut AccountTerms, &mut RateSchedule, &mut Vec<Movement>)>),
+    /// Posted as the contract says plus a fixed amount.
+    Plus(&'static str),
+    /// The interest of a period a day shorter at the start, on a row for the whole period.
+    StartADayLate,
+    /// Not on the statement.
+    Missing,
+    /// October on two rows: the right amount plus a correction, and the correction reversed.
+    CorrectedTwice(&'static str),
+}
+
+/// The planted mistakes of the sample statements (November periods).
+fn planted(account: &str) -> Planted {
+    match account {
+        "HM-LN-003" => Planted::Other(Box::new(|t, _, _| t.basis = Basis::Act365F)),
+        "HM-SAV-004" => Planted::Other(Box::new(|_, _, m| {
+            for x in m
+                .iter_mut()
+                .filter(|x| x.reference.as_deref() == Some("WDL-1120"))
+            {
+                x.value_date = "2026-11-17".parse().expect("date");
+            }
+        })),
+        "HM-SAV-002" => Planted::Other(Box::new(|_, r, _| {
+            let first: Vec<RateTable> = r.tables().iter().take(1).cloned().collect();
+            *r = RateSchedule::from_tables(first);
+        })),
+        "HM-TW-002" => Planted::Plus("0.01"),
+        "HM-LN-005" => Planted::Plus("25.00"),
+        "HM-NL-001" => Planted::StartADayLate,
+        "HM-SAV-006" => Planted::Missing,
+        "HM-SAV-001" => Planted::CorrectedTwice("10.00"),
+        _ => Planted::Right,
+    }
+}
+
+/// Statement rows for the October and November postings of every account,
+/// computed by the engine from the book itself, with the planted mistakes.
+fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Error>> {
+    let book = read_book(book_dir, &ReadOptions::default());
+    if book.has_errors() {
+        return Err(format!("the sample book has problems: {:?}", book.problems).into());
+    }
+    let options = RunOptions {
+        window_start: "2026-10-01".parse()?,
+        cutoff: "2026-11-30".parse()?,
+        keep_days: true,
+        keep_states: false,
+    };
+    let november: NaiveDate = "2026-11-01".parse()?;
+    let mut rows = Vec::new();
+    for entry in &book.accounts {
+        let id = entry.terms.id.as_str();
+        let rates = book.rates.get(&entry.rate_ref).ok_or("rates")?;
+        let debit = entry
+            .debit_rate_ref
+            .as_ref()
+            .and_then(|r| book.rates.get(r))
+            .map(|r| r as &dyn RateSource);
+        let movements = book.movements.get(id).cloned().unwrap_or_default();
+        let run = |t: &AccountTerms, r: &RateSchedule, m: &[Movement]| {
+            let src = Sources {
+                rates: r,
+                debit_rates: debit,
+                movements: m,
+                actual: &[],
+            };
+            accrue(t, src, options)
+        };
+        let right = run(&entry.terms, rates, &movements)?;
+        let mistake = planted(id);
+        for p in right
+            .postings
+            .iter()
+            .filter(|p| p.end >= options.window_start)
+        {
+            let in_november = p.end >= november;
+            let start = p.start.max(entry.terms.open_date);
+            let posted = match (&mistake, in_november) {
+                (Planted::Missing, true) => continue,
+                (Planted::Other(change), true) => {
+                    let (mut t, mut r, mut m) =
+                        (entry.terms.clone(), rates.clone(), movements.clone());
+                    change(&mut t, &mut r, &mut m);
+                    let wrong = run(&t, &r, &m)?;
+                    wrong
+                        .postings
+                        .iter()
+                        .find(|w| w.end == p.end)
+                        .map_or(p.expected, |w| w.expected)
+                }
+                (Planted::Plus(x), true) => p.expected + x.parse::<Decimal>()?,
+                (Planted::StartADayLate, true) => {
+                    let late = start.succ_opt().ok_or("date")?;
+                    expected_over(&entry.terms, &right, late, p.end)?.amount
+                }
+                _ => p.expected,
+            };
+            let row = |amount: Decimal, reference: &str| {
+                vec![
+                    t(id),
+                    date(&start.to_string()),
+                    date(&p.end.to_string()),
+                    num(&amount.to_string()),
+                    t(reference),
+                ]
+            };
+            let reference = format!(
+                "ST-{}-{}",
+                id.trim_start_matches("HM-"),
+                p.end.format("%Y%m")
+            );
+            match (&mistake, in_november) {
+                (Planted::CorrectedTwice(x), false) => {
+                    let fix: Decimal = x.parse()?;
+                    rows.push(row(posted + fix, &reference));
+                    rows.push(row(-fix, &format!("{reference}-REV")));
+                }
+                _ => rows.push(row(posted, &reference)),
+            }
+        }
+    }
+    Ok(rows)
+}
+
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books");
-    let sheets = sheets();
+    let csv_dir = root.join("harbourview-2026-11-csv");
+    let mut sheets = sheets();
+    // First the books without statements, so the engine can work out what should post.
+    let _ = std::fs::remove_file(csv_dir.join("statements.csv"));
+    write_csv(&sheets, &csv_dir)?;
+    let rows = statements(&csv_dir)?;
+    let statement_rows = rows.len();
+    sheets.insert(
+        3,
+        Sheet {
+            name: "Statements",
+            columns: vec![
+                "account",
+                "period_start",
+                "period_end",
+                "posted_interest",
+                "reference",
+            ],
+            rows,
+        },
+    );
     write_xlsx(&sheets, &root.join("harbourview-2026-11.xlsx"))?;
-    write_csv(&sheets, &root.join("harbourview-2026-11-csv"))?;
+    write_csv(&sheets, &csv_dir)?;
     let accounts = sheets.first().map_or(0, |s| s.rows.len());
     println!(
-        "sample books written under {} ({accounts} accounts)",
+        "sample books written under {} ({accounts} accounts, {statement_rows} statement rows)",
         root.display()
     );
     Ok(())
