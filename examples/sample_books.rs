@@ -641,7 +641,7 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
             .filter(|p| p.end >= options.window_start)
         {
             let in_november = p.end >= november;
-            let start = p.start.max(entry.terms.open_date);
+            let start = p.start;
             let posted = match (&mistake, in_november) {
                 (Planted::Missing, true) => continue,
                 (Planted::Other(change), true) => {

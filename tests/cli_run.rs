@@ -5,7 +5,7 @@
 use std::path::{Path, PathBuf};
 
 use assert_cmd::Command;
-use calamine::{open_workbook_auto, Data, Reader};
+use calamine::{open_workbook_auto, Data, DataType, Reader};
 use predicates::prelude::*;
 
 fn ledgerate() -> Command {
@@ -124,7 +124,14 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
     let wb = open_workbook_auto(&out).unwrap();
     assert_eq!(
         wb.sheet_names(),
-        ["Summary", "Accruals", "Journal", "Problems", "Run"]
+        [
+            "Summary",
+            "Accruals",
+            "Reconciliation",
+            "Journal",
+            "Problems",
+            "Run"
+        ]
     );
 }
 
@@ -180,7 +187,15 @@ fn the_workbook_is_byte_identical_across_runs_and_thread_counts() {
     assert!(bytes(&a) == bytes(&c), "two runs differ");
     assert_eq!(
         open_workbook_auto(&a).unwrap().sheet_names(),
-        ["Summary", "Accruals", "Journal", "Daily", "Problems", "Run"]
+        [
+            "Summary",
+            "Accruals",
+            "Reconciliation",
+            "Journal",
+            "Daily",
+            "Problems",
+            "Run"
+        ]
     );
 }
 
@@ -282,4 +297,113 @@ fn the_template_is_a_book_the_reader_accepts() {
         .arg(&t)
         .assert()
         .stdout(predicate::str::contains("accounts ready"));
+}
+
+/// The sample statements carry planted mistakes; each is flagged and its
+/// cause named first.
+#[test]
+fn the_planted_statement_mistakes_are_found_and_explained() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("nov.xlsx");
+    run_to(&out, &[])
+        .success()
+        .stdout(predicate::str::contains("1 not posted"));
+    let rows = sheet(&out, "Reconciliation");
+    let header: Vec<String> = rows[0].iter().map(|c| c.to_string()).collect();
+    assert_eq!(
+        header,
+        [
+            "Account",
+            "Currency",
+            "Period start",
+            "Period end",
+            "Days",
+            "Balance-years",
+            "Expected",
+            "Posted",
+            "Variance",
+            "Variance (bp)",
+            "Status",
+            "Likely cause"
+        ]
+    );
+    let find = |account: &str, end: &str| -> (String, String) {
+        let r = rows
+            .iter()
+            .find(|r| {
+                r[0].to_string() == account
+                    && r[3].as_date().map(|d| d.to_string()).as_deref() == Some(end)
+            })
+            .unwrap_or_else(|| panic!("no row {account} {end}"));
+        (r[10].to_string(), r[11].to_string())
+    };
+    let cases = [
+        (
+            "HM-LN-003",
+            "2026-11-15",
+            "under-posted",
+            "interest on ACT/365F instead of ACT/360",
+        ),
+        (
+            "HM-SAV-004",
+            "2026-11-30",
+            "under-posted",
+            "movement WDL-1120 of -9,000.00 valued 2026-11-20 taken from 2026-11-17 instead",
+        ),
+        (
+            "HM-SAV-002",
+            "2026-11-30",
+            "over-posted",
+            "rate change of 2026-11-16 (2.10% to 1.95%) not applied",
+        ),
+        (
+            "HM-NL-001",
+            "2026-11-30",
+            "under-posted",
+            "period start a day late",
+        ),
+        (
+            "HM-LN-005",
+            "2026-11-15",
+            "over-posted",
+            "no single change reproduces the posted amount; it implies a rate of",
+        ),
+        (
+            "HM-SAV-006",
+            "2026-11-30",
+            "not posted",
+            "no statement row covers this posting period",
+        ),
+        ("HM-TW-002", "2026-11-30", "within tolerance", ""),
+        ("HM-SAV-001", "2026-10-31", "agrees", ""),
+        ("HM-BF-001", "2026-11-30", "agrees", ""),
+    ];
+    for (account, end, status, cause) in cases {
+        let (s, c) = find(account, end);
+        assert_eq!(s, status, "{account}");
+        assert!(c.starts_with(cause), "{account}: {c}");
+    }
+    // ACT/360 posted as ACT/365F: 26,350.00 x 6.25%/6.00% for 32 nights on both bases.
+    let problems = sheet(&out, "Problems");
+    assert!(problems.iter().any(|r| r[4]
+        .to_string()
+        .contains("2 statement rows for 2026-10-01..2026-10-31")));
+}
+
+#[test]
+fn fail_on_variance_makes_a_scheduled_run_exit_3() {
+    let dir = tempfile::tempdir().unwrap();
+    run_to(&dir.path().join("a.xlsx"), &["--fail-on-variance"]).code(3);
+    // A wide tolerance accepts every variance, but a missing posting is never
+    // within tolerance: the run still exits 3, with every other row accepted.
+    run_to(
+        &dir.path().join("b.xlsx"),
+        &["--fail-on-variance", "--tolerance-bp", "500"],
+    )
+    .code(3)
+    .stdout(predicate::str::contains(
+        "statement rows: 42 agrees, 6 within tolerance, 1 not posted",
+    ));
+    // Without the option, variances do not change the exit status.
+    run_to(&dir.path().join("c.xlsx"), &[]).code(0);
 }
