@@ -300,3 +300,180 @@ pub fn reconcile(
     }
     Ok(out)
 }
+
+#[cfg(test)]
+mod tests {
+    use proptest::prelude::*;
+
+    use super::*;
+    use crate::conventions::daycount::Basis;
+    use crate::conventions::schedule::Posting;
+    use crate::engine::rates::RateSchedule;
+    use crate::engine::run::{accrue, RunOptions, Sources};
+    use crate::engine::ActualPosting;
+
+    fn d(s: &str) -> NaiveDate {
+        s.parse().unwrap()
+    }
+
+    fn n(s: &str) -> Decimal {
+        s.parse().unwrap()
+    }
+
+    fn run(
+        terms: &AccountTerms,
+        rate: &str,
+        actual: &[ActualPosting],
+        from: &str,
+        to: &str,
+    ) -> AccountResult {
+        let rates = RateSchedule::from_rows([(d("2000-01-01"), n(rate), Decimal::ZERO)]);
+        let src = Sources {
+            rates: &rates,
+            debit_rates: None,
+            movements: &[],
+            actual,
+        };
+        let o = RunOptions {
+            window_start: d(from),
+            cutoff: d(to),
+            keep_days: true,
+            keep_states: true,
+        };
+        accrue(terms, src, o).unwrap()
+    }
+
+    fn one(
+        terms: &AccountTerms,
+        r: &AccountResult,
+        start: &str,
+        end: &str,
+        posted: Decimal,
+    ) -> Reconciled {
+        let st = [StatementPeriod {
+            start: d(start),
+            end: d(end),
+            posted,
+            rows: 1,
+        }];
+        reconcile(terms, r, &st, d(start), d(end), &Tolerance::default())
+            .unwrap()
+            .remove(0)
+    }
+
+    proptest! {
+        /// An ACT/360 contract posted on ACT/365F at 5% is under-posted by
+        /// 5% x (360/365 - 1) x 10,000 = -6.85 bp, whatever the balance
+        /// (arithmetic of the ISDA 2006 section 4.16(d) and (e) definitions;
+        /// from 1,000,000.00 up the rounding of the posted cents moves it by
+        /// under 0.001 bp).
+        #[test]
+        fn act_360_posted_as_act_365f_is_minus_6_85_bp(cents in 100_000_000i64..100_000_000_000_000) {
+            let t = AccountTerms::new("G-1", "USD", 2, Basis::Act360, d("2026-11-01"), Decimal::new(cents, 2));
+            let r = run(&t, "0.05", &[], "2026-11-01", "2026-11-30");
+            let wrong = AccountTerms { basis: Basis::Act365F, ..t.clone() };
+            let posted = run(&wrong, "0.05", &[], "2026-11-01", "2026-11-30").postings[0].expected;
+            let row = one(&t, &r, "2026-11-01", "2026-11-30", posted);
+            prop_assert_eq!(row.status, Status::UnderPosted);
+            prop_assert_eq!(row.variance_bp.unwrap().round_dp(2), n("-6.85"));
+        }
+    }
+
+    /// A 25 bp rise takes 3.00% to 3.25% (common practice, no source): a year
+    /// posted at 3.25% against a 3.00% contract shows +25.00 bp.
+    #[test]
+    fn a_25_bp_rate_gap_reads_as_25_bp() {
+        let mut t = AccountTerms::new(
+            "G-2",
+            "USD",
+            2,
+            Basis::Act365F,
+            d("2025-01-01"),
+            n("100000.00"),
+        );
+        t.posting = Posting::Annual;
+        t.anchor = Some(d("2025-12-31"));
+        let r = run(&t, "0.03", &[], "2025-12-01", "2025-12-31");
+        let posted = run(&t, "0.0325", &[], "2025-12-01", "2025-12-31").postings[0].expected;
+        let row = one(&t, &r, "2025-01-01", "2025-12-31", posted);
+        assert_eq!(row.expected, n("3000.00"));
+        assert_eq!(row.variance, n("250.00"));
+        assert_eq!(row.variance_bp, Some(n("25")));
+        assert_eq!(row.balance_years, n("100000"));
+    }
+
+    /// Section 6 and 9: a wrong posting feeds the balance as posted, so the
+    /// next period agrees instead of inheriting the error.
+    #[test]
+    fn a_wrong_posting_does_not_turn_the_next_period_red() {
+        let mut t = AccountTerms::new(
+            "G-3",
+            "USD",
+            2,
+            Basis::Act360,
+            d("2026-10-01"),
+            n("360000.00"),
+        );
+        t.capitalise = true;
+        // October expected 360,000 x 3% x 31/360 = 930.00; the bank posted 980.00.
+        let actual = [ActualPosting {
+            start: d("2026-10-01"),
+            end: d("2026-10-31"),
+            amount: n("980.00"),
+        }];
+        let r = run(&t, "0.03", &actual, "2026-11-01", "2026-11-30");
+        let oct = one(&t, &r, "2026-10-01", "2026-10-31", n("980.00"));
+        assert_eq!(
+            (oct.expected, oct.status),
+            (n("930.00"), Status::OverPosted)
+        );
+        // November on 360,980.00 (as posted): 360,980 x 3% x 30/360 = 902.45.
+        let nov = one(&t, &r, "2026-11-01", "2026-11-30", n("902.45"));
+        assert_eq!(nov.status, Status::Agrees);
+    }
+
+    /// Section 9: something posted for a period with no earning base.
+    #[test]
+    fn a_posting_without_any_base_is_unexpected() {
+        let t = AccountTerms::new("G-4", "USD", 2, Basis::Act360, d("2026-11-01"), n("0"));
+        let r = run(&t, "0.03", &[], "2026-11-01", "2026-11-30");
+        let row = one(&t, &r, "2026-11-01", "2026-11-30", n("4.00"));
+        assert_eq!(row.status, Status::UnexpectedPosting);
+        assert_eq!(row.variance_bp, None);
+    }
+
+    /// Section 9: a row may start before the account opened; those days earn nothing.
+    #[test]
+    fn days_before_opening_earn_nothing() {
+        let t = AccountTerms::new(
+            "G-5",
+            "USD",
+            2,
+            Basis::Act360,
+            d("2026-11-16"),
+            n("36000.00"),
+        );
+        let r = run(&t, "0.10", &[], "2026-11-01", "2026-11-30");
+        // 15 nights: 36,000 x 10% x 15/360 = 150.00.
+        let row = one(&t, &r, "2026-11-01", "2026-11-30", n("150.00"));
+        assert_eq!(
+            (row.expected, row.status, row.days),
+            (n("150.00"), Status::Agrees, 30)
+        );
+    }
+
+    /// Tolerances: by amount (one minor unit by default, or as given) or by basis points.
+    #[test]
+    fn tolerance_by_amount_or_basis_points() {
+        let tol = Tolerance::default();
+        assert!(tol.accepts(n("0.01"), None, 2));
+        assert!(!tol.accepts(n("0.011"), None, 2));
+        assert!(tol.accepts(n("-1"), None, 0));
+        let bp = Tolerance {
+            amount: Some(Decimal::ZERO),
+            bp: n("0.5"),
+        };
+        assert!(bp.accepts(n("3"), Some(n("-0.49")), 2));
+        assert!(!bp.accepts(n("3"), Some(n("0.51")), 2));
+    }
+}
