@@ -6,8 +6,9 @@
 //! encodings, a decimal comma, damaged files).
 //!
 //! Run `cargo run --example book_fixtures` from the crate root and commit the
-//! files. Output is deterministic (fixed document times). This program only
-//! writes fixtures; it never reads a book.
+//! files. The xlsx and CSV output is deterministic (fixed document times);
+//! ods and xls files are made only when missing. This program only writes
+//! fixtures; it never reads a book.
 
 use std::fs;
 use std::io::{Read, Write};
@@ -1039,7 +1040,13 @@ fn fresh_dir(dir: &Path) -> Result<()> {
 }
 
 /// Converts with LibreOffice when it is installed; says so when it is not.
+/// LibreOffice stamps each file it saves, so an existing conversion is kept
+/// (delete it to make it again).
 fn convert(file: &Path, to: &str, out_dir: &Path) -> Result<bool> {
+    let target = out_dir.join(file.with_extension(to).file_name().unwrap_or_default());
+    if target.exists() {
+        return Ok(true);
+    }
     let profile = std::env::temp_dir().join("ledgerate-fixtures-office-profile");
     let status = Command::new("soffice")
         .arg(format!(
@@ -1115,6 +1122,34 @@ fn main() -> Result<()> {
         ws.write_string(1_048_575, 16_383, "x")?;
         Ok(())
     })?;
+
+    // Sheet names: a near miss for Accounts, and two sheets that are both Rates.
+    let mut misnamed = small_book(SMALL_ACCOUNTS);
+    if let Some(first) = misnamed.first_mut() {
+        first.name = "Acounts";
+    }
+    misnamed.push(SheetData {
+        name: "Rate-s",
+        origin: (0, 0),
+        above: &[],
+        header: &["rate_ref", "effective", "rate_percent"],
+        rows: SMALL_RATES,
+    });
+    write_xlsx(&root.join("misnamed_sheets.xlsx"), &misnamed, false, |_| {
+        Ok(())
+    })?;
+
+    // A CSV folder saved with semicolons between fields.
+    let semicolon = root.join("semicolon_csv");
+    fresh_dir(&semicolon)?;
+    fs::write(
+        semicolon.join("accounts.csv"),
+        "account;currency;day_count;open_date;opening_balance\r\nHM-SAV-501;EUR;ACT/360;2026-01-01;100,00\r\n",
+    )?;
+    fs::write(
+        semicolon.join("rates.csv"),
+        "rate_ref,effective,rate_percent\r\nHM-SAV-501,2026-01-01,1.00\r\n",
+    )?;
 
     // Damaged files.
     let good_bytes = fs::read(&good_xlsx)?;

@@ -541,6 +541,79 @@ fn the_same_book_as_ods_xls_csv_an_unknown_extension_or_an_upper_case_one_reads_
 }
 
 #[test]
+fn a_workbook_with_an_unknown_extension_is_known_by_its_content() {
+    let dir = tempfile::tempdir().unwrap();
+    for (from, to) in [
+        ("harbourview_good.ods", "book-a.data"),
+        ("harbourview_good.xls", "book-b.data"),
+    ] {
+        let copy = dir.path().join(to);
+        std::fs::copy(fixture(from), &copy).unwrap();
+        let book = read_book(&copy, &ReadOptions::default());
+        assert_eq!(ids(&book), GOOD_IDS, "{from}: {}", all_problems(&book));
+        assert!(!book.has_errors());
+    }
+}
+
+#[test]
+fn a_single_csv_file_is_not_a_book() {
+    let book = read("harbourview_good_csv/accounts.csv");
+    assert!(book.accounts.is_empty());
+    assert_eq!(book.problems.len(), 1);
+    problem(&book, Severity::Error, "", "", &["folder of CSV files"]);
+}
+
+#[test]
+fn sheet_names_fold_and_a_missing_required_sheet_names_its_near_miss() {
+    let book = read("misnamed_sheets.xlsx");
+    assert!(book.accounts.is_empty());
+    problem(
+        &book,
+        Severity::Note,
+        "Acounts",
+        "",
+        &["rename it to Accounts"],
+    );
+    problem(
+        &book,
+        Severity::Error,
+        "Accounts",
+        "",
+        &["no such sheet", "rename 'Acounts' to Accounts"],
+    );
+    problem(
+        &book,
+        Severity::Error,
+        "Rate-s",
+        "",
+        &["one Rates sheet", "'Rates' is already the Rates sheet"],
+    );
+    assert_eq!(book.problems.len(), 3, "{}", all_problems(&book));
+    // The first Rates sheet is still read.
+    assert!(book.rates.contains_key("HM-SAV-201"));
+}
+
+#[test]
+fn a_csv_file_with_semicolons_between_fields_is_refused_with_a_fix() {
+    let book = read("semicolon_csv");
+    problem(
+        &book,
+        Severity::Error,
+        "accounts",
+        "1:1",
+        &["separated by ';'", "save the file as CSV with commas"],
+    );
+    problem(
+        &book,
+        Severity::Error,
+        "Accounts",
+        "",
+        &["no such file", "accounts.csv"],
+    );
+    assert_eq!(book.problems.len(), 2, "{}", all_problems(&book));
+}
+
+#[test]
 fn a_1904_date_system_workbook_reads_its_dates_correctly() {
     let book = read("dates_1904.xlsx");
     assert!(book.problems.is_empty(), "{}", all_problems(&book));

@@ -33,8 +33,9 @@ const EFFECTIVE: usize = 1;
 const PERCENT: usize = 2;
 const DECIMAL: usize = 3;
 const TIER_FROM: usize = 4;
+const INDEX: usize = 5;
 /// Floating-rate columns: index, spread_bp, floor_percent, cap_percent.
-const FLOATING: [usize; 4] = [5, 6, 7, 8];
+const FLOATING: [usize; 4] = [INDEX, 6, 7, 8];
 
 /// A percent column whose every value is below this (in size) may hold decimals.
 const PERCENT_LOOKS_DECIMAL: Decimal = Decimal::from_parts(2, 0, 0, false, 1);
@@ -69,7 +70,7 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
     let Some(table) = Table::open(&ctx, sheet, COLUMNS, problems) else {
         return out;
     };
-    if !table.has(PERCENT) && !table.has(DECIMAL) && !table.has(FLOATING[0]) {
+    if !table.has(PERCENT) && !table.has(DECIMAL) && !table.has(INDEX) {
         problems.push(ctx.problem(
             Severity::Error,
             &sheet.name,
