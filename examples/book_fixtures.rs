@@ -728,6 +728,7 @@ const BROKEN_MOVEMENTS: &[&[V]] = &[
         D("2026-02-01"),
         E("=SEQUENCE(2)", "#GETTING_DATA"),
     ],
+    &[S("hm-sav-127"), D("2026-02-01"), N("10")],
 ];
 
 const BROKEN_STATEMENTS: &[&[V]] = &[

@@ -973,6 +973,12 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
         ),
         (Error, "Movements", "B5", &["#N/A", "not an error cell"]),
         (Error, "Movements", "C6", &["#SPILL!", "not an error cell"]),
+        (
+            Error,
+            "Movements",
+            "A7",
+            &["hm-sav-127", "did you mean HM-SAV-127"],
+        ),
         // Statements: an unknown account, an end before the start, rows outside the account's life, an overlap.
         (Error, "Statements", "A2", &["HM-SAV-998"]),
         (

@@ -133,13 +133,42 @@ pub(crate) struct Life {
     pub maturity: Option<NaiveDate>,
 }
 
+/// Every account id of the Accounts sheet (first row of each), with its
+/// dates, for the rows of other sheets.
+#[derive(Debug, Default)]
+pub(crate) struct Known {
+    by_id: HashMap<String, Life>,
+    /// Ids by folded id, to suggest the id a row probably meant.
+    folded: HashMap<String, String>,
+}
+
+impl Known {
+    fn insert(&mut self, id: String, life: Life) {
+        self.folded.entry(fold(&id)).or_insert_with(|| id.clone());
+        self.by_id.insert(id, life);
+    }
+
+    /// The dates of account `id` (ids match exactly).
+    pub(crate) fn get(&self, id: &str) -> Option<&Life> {
+        self.by_id.get(id)
+    }
+
+    /// The fix for a row naming an account that is not in the sheet.
+    pub(crate) fn unknown_fix(&self, id: &str) -> String {
+        match self.folded.get(&fold(id)) {
+            Some(known) => format!("did you mean {known}? account ids match exactly; the row is not used"),
+            None => "correct the account id, or add the account to the Accounts sheet; the row is not used".to_string(),
+        }
+    }
+}
+
 /// What the Accounts sheet gives.
 #[derive(Debug, Default)]
 pub(crate) struct Accounts {
     /// Accounts whose row had no error, in sheet order.
     pub entries: Vec<AccountEntry>,
-    /// Every account id in the sheet (first row of each), with its dates.
-    pub known: HashMap<String, Life>,
+    /// Every account id in the sheet.
+    pub known: Known,
     /// Ids kept out by an error.
     pub rejected: BTreeSet<String>,
 }
@@ -594,10 +623,13 @@ fn schedule_check(
         return;
     }
     let Some((first, cell)) = rates.first.get(rate_ref) else {
+        // Refs match exactly; one that differs only in case or spacing is
+        // the likeliest meaning.
+        let key = fold(rate_ref);
         let near = rates
             .first
             .keys()
-            .find(|k| near_miss(&fold(rate_ref), &fold(k)));
+            .find(|k| fold(k) == key || near_miss(&key, &fold(k)));
         let fix = match (near, rates.read) {
             (Some(n), _) => format!(
                 "did you mean {n}? add rows for {rate_ref} to the Rates sheet, or correct {which}"
