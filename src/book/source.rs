@@ -392,7 +392,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsxError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_xlsx_sheet(&mut wb, &name, book, &mut loaded);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_xlsx_sheet(&mut wb, &name, book, &mut loaded)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -401,7 +406,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsbError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_xlsb_sheet(&mut wb, &name);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_xlsb_sheet(&mut wb, &name)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -410,7 +420,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_range(&mut wb, &name);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_range(&mut wb, &name)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -419,7 +434,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: OdsError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_range(&mut wb, &name);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_range(&mut wb, &name)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -498,30 +518,25 @@ fn push_sheet(
     cells: Option<Cells>,
     loaded: &mut Loaded,
 ) {
-    let Some(cells) = cells.or_else(|| {
+    let at = Position {
+        book: book.to_string(),
+        sheet: name.clone(),
+        cell: String::new(),
+    };
+    let Some(cells) = cells else {
         loaded.problem(
             Severity::Error,
-            Position {
-                book: book.to_string(),
-                sheet: name.clone(),
-                cell: String::new(),
-            },
+            at,
             &name,
             "a sheet that can be read",
             "the sheet is damaged: save the book again from the spreadsheet program",
         );
-        None
-    }) else {
         return;
     };
     if kind == SheetKind::Fixings {
         loaded.problem(
             Severity::Note,
-            Position {
-                book: book.to_string(),
-                sheet: name.clone(),
-                cell: String::new(),
-            },
+            at,
             &name,
             "the sheets this version reads (Fixings hold index fixings for floating rates, which are not supported yet)",
             "the sheet is not read; nothing to do",
@@ -995,6 +1010,30 @@ fn line_ref(line: u64) -> String {
         String::new()
     } else {
         format!("{line}:{line}")
+    }
+}
+
+/// A sheet of text cells, row by row from A1, for tests.
+#[cfg(test)]
+pub(crate) fn text_sheet(kind: SheetKind, rows: &[&[&str]]) -> Sheet {
+    Sheet {
+        kind,
+        name: kind.label().to_string(),
+        rows: rows
+            .iter()
+            .zip(0u32..)
+            .map(|(cells, r)| Row {
+                index: r,
+                cells: cells
+                    .iter()
+                    .zip(0u32..)
+                    .map(|(s, c)| (c, Cell::text(s)))
+                    .filter(|(_, c)| !c.is_empty())
+                    .collect(),
+                shape: None,
+            })
+            .filter(|r| !r.cells.is_empty())
+            .collect(),
     }
 }
 
