@@ -133,13 +133,42 @@ pub(crate) struct Life {
     pub maturity: Option<NaiveDate>,
 }
 
+/// Every account id of the Accounts sheet (first row of each), with its
+/// dates, for the rows of other sheets.
+#[derive(Debug, Default)]
+pub(crate) struct Known {
+    by_id: HashMap<String, Life>,
+    /// Ids by folded id, to suggest the id a row probably meant.
+    folded: HashMap<String, String>,
+}
+
+impl Known {
+    fn insert(&mut self, id: String, life: Life) {
+        self.folded.entry(fold(&id)).or_insert_with(|| id.clone());
+        self.by_id.insert(id, life);
+    }
+
+    /// The dates of account `id` (ids match exactly).
+    pub(crate) fn get(&self, id: &str) -> Option<&Life> {
+        self.by_id.get(id)
+    }
+
+    /// The fix for a row naming an account that is not in the sheet.
+    pub(crate) fn unknown_fix(&self, id: &str) -> String {
+        match self.folded.get(&fold(id)) {
+            Some(known) => format!("did you mean {known}? account ids match exactly; the row is not used"),
+            None => "correct the account id, or add the account to the Accounts sheet; the row is not used".to_string(),
+        }
+    }
+}
+
 /// What the Accounts sheet gives.
 #[derive(Debug, Default)]
 pub(crate) struct Accounts {
     /// Accounts whose row had no error, in sheet order.
     pub entries: Vec<AccountEntry>,
-    /// Every account id in the sheet (first row of each), with its dates.
-    pub known: HashMap<String, Life>,
+    /// Every account id in the sheet.
+    pub known: Known,
     /// Ids kept out by an error.
     pub rejected: BTreeSet<String>,
 }
@@ -594,10 +623,14 @@ fn schedule_check(
         return;
     }
     let Some((first, cell)) = rates.first.get(rate_ref) else {
+        // Refs match exactly; one that differs only in case or spacing is
+        // the likeliest meaning.
+        let key = fold(rate_ref);
         let near = rates
             .first
             .keys()
-            .find(|k| near_miss(&fold(rate_ref), &fold(k)));
+            .find(|k| fold(k) == key)
+            .or_else(|| rates.first.keys().find(|k| near_miss(&key, &fold(k))));
         let fix = match (near, rates.read) {
             (Some(n), _) => format!(
                 "did you mean {n}? add rows for {rate_ref} to the Rates sheet, or correct {which}"
@@ -633,6 +666,129 @@ fn schedule_check(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::book::cell::NumberStyle;
+    use crate::book::rates;
+    use crate::book::source::{text_sheet, SheetKind};
+
+    fn ctx() -> Ctx<'static> {
+        Ctx {
+            book: "book.xlsx",
+            style: NumberStyle {
+                decimal_comma: false,
+            },
+        }
+    }
+
+    fn read_accounts(rows: &[&[&str]]) -> (Option<Accounts>, Vec<Problem>) {
+        let mut problems = Vec::new();
+        let rate_sheet = text_sheet(
+            SheetKind::Rates,
+            &[
+                &["rate_ref", "effective", "rate_percent"],
+                &["STD", "2026-01-01", "2"],
+                &["std-2", "2026-01-01", "2"],
+            ],
+        );
+        let rates = rates::read(ctx(), &rate_sheet, &mut problems);
+        let calendars = Calendars::default();
+        let others = Others {
+            rates: &rates,
+            calendars: &calendars,
+        };
+        let sheet = text_sheet(SheetKind::Accounts, rows);
+        let found = read(ctx(), &sheet, &others, &mut problems);
+        (found, problems)
+    }
+
+    const HEADER: &[&str] = &[
+        "account",
+        "currency",
+        "day_count",
+        "open_date",
+        "opening_balance",
+        "rate_ref",
+        "calendar",
+    ];
+
+    #[test]
+    fn a_calendar_without_a_holidays_sheet_says_to_add_one() {
+        let (found, problems) = read_accounts(&[
+            HEADER,
+            &[
+                "HM-SAV-601",
+                "USD",
+                "ACT/365F",
+                "2026-01-01",
+                "10",
+                "STD",
+                "HM-HOLIDAYS",
+            ],
+        ]);
+        let found = found.unwrap();
+        assert!(found.entries.is_empty());
+        assert!(found.rejected.contains("HM-SAV-601"));
+        assert_eq!(problems.len(), 1);
+        assert_eq!(problems[0].position.cell, "G2");
+        assert!(
+            problems[0].fix.contains("add a Holidays sheet"),
+            "{}",
+            problems[0].fix
+        );
+    }
+
+    #[test]
+    fn a_rate_ref_in_another_case_is_suggested_not_taken() {
+        let (found, problems) = read_accounts(&[
+            HEADER,
+            &["HM-SAV-602", "USD", "ACT/365F", "2026-01-01", "10", "STD-2"],
+        ]);
+        assert!(found.unwrap().entries.is_empty());
+        assert_eq!(problems.len(), 1);
+        assert_eq!(problems[0].position.cell, "F2");
+        assert!(
+            problems[0].fix.contains("did you mean std-2"),
+            "{}",
+            problems[0].fix
+        );
+    }
+
+    #[test]
+    fn a_missing_required_value_is_an_error_naming_the_column() {
+        let (found, problems) = read_accounts(&[
+            HEADER,
+            &["HM-SAV-603", "USD", "", "2026-01-01", "10", "STD"],
+        ]);
+        assert!(found.unwrap().entries.is_empty());
+        assert_eq!(problems.len(), 1);
+        assert_eq!(problems[0].position.cell, "C2");
+        assert_eq!(problems[0].found, "");
+        assert!(problems[0].expected.contains("day_count"));
+    }
+
+    #[test]
+    fn an_account_with_the_defaults_only() {
+        let (found, problems) = read_accounts(&[
+            HEADER,
+            &["HM-SAV-604", "JPY", "ACT/365F", "2026-01-01", "1000", "STD"],
+        ]);
+        assert!(problems.is_empty(), "{problems:?}");
+        let found = found.unwrap();
+        let t = &found.entries[0].terms;
+        assert_eq!((t.currency.as_str(), t.minor_units), ("JPY", 0));
+        assert_eq!(
+            (t.side, t.posting, t.compounding),
+            (Side::Liability, Posting::Monthly, Compounding::Simple)
+        );
+        assert_eq!(
+            (t.round_at, t.round_mode, t.tier_method),
+            (RoundAt::Posting, RoundMode::HalfUp, TierMethod::Whole)
+        );
+        assert_eq!(
+            (t.business_day, t.anchor_kind, t.capitalise),
+            (BusinessDay::Unadjusted, AnchorKind::End, false)
+        );
+        assert_eq!(found.entries[0].name, "");
+    }
 
     #[test]
     fn column_indices_match_the_column_list() {

@@ -315,15 +315,19 @@ pub(crate) fn date(cell: &Cell) -> Result<Option<NaiveDate>, Issue> {
     }
 }
 
-/// Yes or no: a boolean cell, or yes/no/true/false/y/n as text; `None` for a
-/// blank cell.
+/// Yes or no: a boolean cell, 1 or 0, or yes/no/true/false/y/n as text;
+/// `None` for a blank cell.
 pub(crate) fn yes_no(cell: &Cell) -> Result<Option<bool>, Issue> {
     match cell {
         Cell::Empty => Ok(None),
         Cell::Bool(b) => Ok(Some(*b)),
+        // A spreadsheet boolean is often stored as the number 1 or 0 with a
+        // TRUE/FALSE format (LibreOffice does so), which is unambiguous.
+        Cell::Number(d) if *d == Decimal::ONE => Ok(Some(true)),
+        Cell::Number(d) if d.is_zero() => Ok(Some(false)),
         Cell::Text(s) => match s.trim().to_ascii_lowercase().as_str() {
-            "yes" | "y" | "true" => Ok(Some(true)),
-            "no" | "n" | "false" => Ok(Some(false)),
+            "yes" | "y" | "true" | "1" => Ok(Some(true)),
+            "no" | "n" | "false" | "0" => Ok(Some(false)),
             _ => Err(Issue::new(shown(s.trim()), "yes or no", "write yes or no")),
         },
         Cell::Error(e) => Err(error_cell(e)),
@@ -742,8 +746,10 @@ mod tests {
         assert_eq!(yes_no(&Cell::text("Yes")).unwrap(), Some(true));
         assert_eq!(yes_no(&Cell::text("n")).unwrap(), Some(false));
         assert_eq!(yes_no(&Cell::Bool(true)).unwrap(), Some(true));
+        assert_eq!(yes_no(&Cell::Number(d("1"))).unwrap(), Some(true));
+        assert_eq!(yes_no(&Cell::Number(d("0"))).unwrap(), Some(false));
         assert!(yes_no(&Cell::text("perhaps")).is_err());
-        assert!(yes_no(&Cell::Number(d("1"))).is_err());
+        assert!(yes_no(&Cell::Number(d("2"))).is_err());
     }
 
     #[test]

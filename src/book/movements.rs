@@ -6,9 +6,9 @@
 //! wrong without it); a row of an unknown account is an error and left out.
 //! Movements are kept in sheet order; nothing here sums or sorts them.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::BTreeMap;
 
-use super::accounts::Life;
+use super::accounts::Known;
 use super::model::{Problem, Severity};
 use super::source::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
@@ -40,7 +40,7 @@ pub(crate) struct Movements {
 pub(crate) fn read(
     ctx: Ctx<'_>,
     sheet: &Sheet,
-    accounts: &HashMap<String, Life>,
+    accounts: &Known,
     problems: &mut Vec<Problem>,
 ) -> Option<Movements> {
     let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
@@ -57,7 +57,7 @@ pub(crate) fn read(
                 ACCOUNT,
                 &id,
                 "an account of the Accounts sheet",
-                "correct the account id, or add the account to the Accounts sheet; the row is not used",
+                &accounts.unknown_fix(&id),
             );
             continue;
         };

@@ -55,7 +55,7 @@ mod tests {
     #[test]
     fn every_shown_digit_is_kept() {
         assert_eq!(
-            decimal_from_float(1234.567_890_123_456_7)
+            decimal_from_float(1_234.567_890_123_456_7)
                 .unwrap()
                 .to_string(),
             "1234.5678901234567"

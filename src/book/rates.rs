@@ -33,8 +33,9 @@ const EFFECTIVE: usize = 1;
 const PERCENT: usize = 2;
 const DECIMAL: usize = 3;
 const TIER_FROM: usize = 4;
+const INDEX: usize = 5;
 /// Floating-rate columns: index, spread_bp, floor_percent, cap_percent.
-const FLOATING: [usize; 4] = [5, 6, 7, 8];
+const FLOATING: [usize; 4] = [INDEX, 6, 7, 8];
 
 /// A percent column whose every value is below this (in size) may hold decimals.
 const PERCENT_LOOKS_DECIMAL: Decimal = Decimal::from_parts(2, 0, 0, false, 1);
@@ -69,7 +70,7 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
     let Some(table) = Table::open(&ctx, sheet, COLUMNS, problems) else {
         return out;
     };
-    if !table.has(PERCENT) && !table.has(DECIMAL) && !table.has(FLOATING[0]) {
+    if !table.has(PERCENT) && !table.has(DECIMAL) && !table.has(INDEX) {
         problems.push(ctx.problem(
             Severity::Error,
             &sheet.name,
@@ -289,6 +290,71 @@ fn unit_warnings(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::book::cell::NumberStyle;
+    use crate::book::source::{text_sheet, SheetKind};
+
+    fn ctx() -> Ctx<'static> {
+        Ctx {
+            book: "book.xlsx",
+            style: NumberStyle {
+                decimal_comma: false,
+            },
+        }
+    }
+
+    #[test]
+    fn a_rates_sheet_needs_a_rate_column() {
+        let sheet = text_sheet(
+            SheetKind::Rates,
+            &[&["rate_ref", "effective"], &["STD", "2026-01-01"]],
+        );
+        let mut problems = Vec::new();
+        let rates = read(ctx(), &sheet, &mut problems);
+        assert!(!rates.read && rates.schedules.is_empty());
+        assert_eq!(problems.len(), 1);
+        assert_eq!(problems[0].position.cell, "1:1");
+        assert!(problems[0].expected.contains("rate_percent"));
+    }
+
+    #[test]
+    fn a_row_with_both_units_or_no_rate_spoils_its_schedule() {
+        let sheet = text_sheet(
+            SheetKind::Rates,
+            &[
+                &["rate_ref", "effective", "rate_percent", "rate_decimal"],
+                &["BOTH", "2026-01-01", "2.5", "0.025"],
+                &["NONE", "2026-01-01", "", ""],
+                &["GOOD", "2026-01-01", "", "0.025"],
+            ],
+        );
+        let mut problems = Vec::new();
+        let rates = read(ctx(), &sheet, &mut problems);
+        assert_eq!(rates.broken.get("BOTH").map(String::as_str), Some("A2"));
+        assert_eq!(rates.broken.get("NONE").map(String::as_str), Some("A3"));
+        assert_eq!(rates.schedules.keys().collect::<Vec<_>>(), ["GOOD"]);
+        let cells: Vec<&str> = problems.iter().map(|p| p.position.cell.as_str()).collect();
+        assert_eq!(cells, ["D2", "C3"]);
+    }
+
+    #[test]
+    fn a_decimal_column_holding_percents_is_a_warning() {
+        let sheet = text_sheet(
+            SheetKind::Rates,
+            &[
+                &["rate_ref", "effective", "rate_decimal"],
+                &["STD", "2026-01-01", "4.25"],
+            ],
+        );
+        let mut problems = Vec::new();
+        let rates = read(ctx(), &sheet, &mut problems);
+        assert_eq!(rates.schedules.len(), 1);
+        assert_eq!(problems.len(), 1);
+        assert_eq!(
+            (problems[0].severity, problems[0].position.cell.as_str()),
+            (Severity::Warning, "C1")
+        );
+        assert!(problems[0].fix.contains("rate_percent"));
+    }
 
     #[test]
     fn a_percent_becomes_a_decimal_exactly() {

@@ -19,6 +19,18 @@ use super::table::Ctx;
 use super::{movements, statements};
 
 /// How to read a book.
+///
+/// ```
+/// use std::path::Path;
+/// use ledgerate::book::{read_book, ReadOptions};
+///
+/// // "1.234,56" is 1234.56 only when the book is read with a decimal comma.
+/// let path = Path::new("tests/fixtures/books/decimal_comma_csv");
+/// let with = read_book(path, &ReadOptions { decimal_comma: true });
+/// assert_eq!(with.accounts[0].terms.opening_balance.to_string(), "1234.56");
+/// let without = read_book(path, &ReadOptions::default());
+/// assert!(without.accounts.is_empty() && without.has_errors());
+/// ```
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct ReadOptions {
     /// Number text uses a decimal comma (`1.234,56`). Without it such text is
@@ -75,6 +87,7 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     let Some(found) =
         sheet(SheetKind::Accounts).and_then(|s| accounts::read(ctx, s, &others, problems))
     else {
+        book.rates = rates.schedules;
         book.settings = settings.rows;
         return book;
     };

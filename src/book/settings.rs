@@ -130,6 +130,7 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
             continue;
         }
         seen.push((folded.clone(), f.cell_ref(SETTING)));
+        f.subject = Some(name);
         let value = match kind {
             Kind::Date => f.date(VALUE).map(|d| d.to_string()),
             Kind::NonNegative => match f.decimal(VALUE) {

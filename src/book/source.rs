@@ -86,6 +86,17 @@ pub(crate) struct Row {
     pub index: u32,
     /// Non-blank cells, by 0-based column, ascending.
     pub cells: Vec<(u32, Cell)>,
+    /// A CSV record's fields (a workbook row has none).
+    pub shape: Option<Shape>,
+}
+
+/// How many fields a CSV record has, for the ragged-row check.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) struct Shape {
+    /// All fields.
+    pub fields: u32,
+    /// Fields up to the last non-blank one.
+    pub filled: u32,
 }
 
 /// One sheet that was read.
@@ -381,7 +392,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsxError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_xlsx_sheet(&mut wb, &name, book, &mut loaded);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_xlsx_sheet(&mut wb, &name, book, &mut loaded)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -390,7 +406,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsbError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_xlsb_sheet(&mut wb, &name);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_xlsb_sheet(&mut wb, &name)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -399,7 +420,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_range(&mut wb, &name);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_range(&mut wb, &name)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -408,7 +434,12 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: OdsError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_range(&mut wb, &name);
+                // Fixings are not used yet: the sheet is noted, not read.
+                let cells = if kind == SheetKind::Fixings {
+                    Some(Cells::new())
+                } else {
+                    read_range(&mut wb, &name)
+                };
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -487,32 +518,27 @@ fn push_sheet(
     cells: Option<Cells>,
     loaded: &mut Loaded,
 ) {
-    let Some(cells) = cells.or_else(|| {
+    let at = Position {
+        book: book.to_string(),
+        sheet: name.clone(),
+        cell: String::new(),
+    };
+    let Some(cells) = cells else {
         loaded.problem(
             Severity::Error,
-            Position {
-                book: book.to_string(),
-                sheet: name.clone(),
-                cell: String::new(),
-            },
+            at,
             &name,
             "a sheet that can be read",
             "the sheet is damaged: save the book again from the spreadsheet program",
         );
-        None
-    }) else {
         return;
     };
     if kind == SheetKind::Fixings {
         loaded.problem(
             Severity::Note,
-            Position {
-                book: book.to_string(),
-                sheet: name.clone(),
-                cell: String::new(),
-            },
+            at,
             &name,
-            "no Fixings sheet: floating rates are not supported yet",
+            "the sheets this version reads (Fixings hold index fixings for floating rates, which are not supported yet)",
             "the sheet is not read; nothing to do",
         );
         return;
@@ -534,6 +560,7 @@ fn group_rows(mut cells: Cells) -> Vec<Row> {
             _ => rows.push(Row {
                 index: r,
                 cells: vec![(c, cell)],
+                shape: None,
             }),
         }
     }
@@ -803,6 +830,11 @@ fn decode_csv(bytes: &[u8]) -> Result<String, (String, String)> {
 }
 
 fn utf8(bytes: &[u8]) -> Result<String, String> {
+    utf8_at(bytes).map_err(|(_, found)| found)
+}
+
+/// UTF-8 text, or the line and a description of the first bad byte.
+fn utf8_at(bytes: &[u8]) -> Result<String, (u64, String)> {
     match std::str::from_utf8(bytes) {
         Ok(s) => Ok(s.to_string()),
         Err(e) => {
@@ -812,15 +844,16 @@ fn utf8(bytes: &[u8]) -> Result<String, String> {
                 .map_or(0, |b| b.iter().filter(|&&c| c == b'\n').count())
                 + 1;
             let byte = bytes.get(at).copied().unwrap_or(0);
-            Err(format!(
-                "byte 0x{byte:02X} on line {line}, which is not UTF-8"
+            Err((
+                u64::try_from(line).unwrap_or(0),
+                format!("byte 0x{byte:02X} on line {line}, which is not UTF-8"),
             ))
         }
     }
 }
 
-/// Reads one CSV file into rows. A row with a different number of fields
-/// than the header is an error naming the file and row, and is left out.
+/// Reads one CSV file into rows, each with its number of fields (the
+/// table checks them against the header).
 fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Option<Vec<Row>> {
     let at = |cell: String| Position {
         book: book.to_string(),
@@ -846,9 +879,12 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
     let text = match decode_csv(&bytes) {
         Ok(t) => t,
         Err((found, fix)) => {
+            let line = utf8_at(bytes.strip_prefix(&[0xEF, 0xBB, 0xBF]).unwrap_or(&bytes))
+                .err()
+                .map_or(0, |(l, _)| l);
             loaded.problem(
                 Severity::Error,
-                at(String::new()),
+                at(line_ref(line)),
                 &found,
                 "UTF-8 text (with or without a byte-order mark) or UTF-16 with a byte-order mark",
                 &fix,
@@ -861,12 +897,13 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
         .flexible(true)
         .from_reader(text.as_bytes());
     let mut rows = Vec::new();
-    let mut width: Option<usize> = None;
+    let mut first = true;
+    let mut lines = LineCounter::new(text.as_bytes());
     for record in reader.records() {
         let record = match record {
             Ok(r) => r,
             Err(e) => {
-                let line = e.position().map_or(0, csv::Position::line);
+                let line = e.position().map_or(0, |p| lines.line_at(p.byte()));
                 loaded.problem(
                     Severity::Error,
                     at(line_ref(line)),
@@ -877,7 +914,7 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
                 return None;
             }
         };
-        let line = record.position().map_or(0, csv::Position::line);
+        let line = lines.line_at(record.position().map_or(0, csv::Position::byte));
         let index = u32::try_from(line.saturating_sub(1)).unwrap_or(u32::MAX);
         let filled = record
             .iter()
@@ -888,37 +925,33 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
         let Some(filled) = filled else {
             continue;
         };
-        match width {
-            None => {
-                if record.len() == 1 {
-                    if let Some(sep) = record
+        if first {
+            first = false;
+            let sep = (record.len() == 1)
+                .then(|| {
+                    record
                         .get(0)
                         .and_then(|f| [';', '\t', '|'].into_iter().find(|c| f.contains(*c)))
-                    {
-                        loaded.problem(
-                            Severity::Error,
-                            at(line_ref(line)),
-                            record.get(0).unwrap_or(""),
-                            "fields separated by commas",
-                            &format!("the fields are separated by '{}': save the file as CSV with commas", sep.escape_default()),
-                        );
-                        return None;
-                    }
-                }
-                width = Some(record.len());
-            }
-            Some(w) if record.len() != w && (record.len() < w || filled > w) => {
+                })
+                .flatten();
+            if let Some(sep) = sep {
                 loaded.problem(
                     Severity::Error,
                     at(line_ref(line)),
-                    &format!("{} fields", record.len()),
-                    &format!("{w} fields, as in the header row"),
-                    "give the row one field per header column (quote any field holding a comma); the row is not read",
+                    record.get(0).unwrap_or(""),
+                    "fields separated by commas",
+                    &format!(
+                        "the fields are separated by '{}': save the file as CSV with commas",
+                        sep.escape_default()
+                    ),
                 );
-                continue;
+                return None;
             }
-            Some(_) => {}
         }
+        let shape = Some(Shape {
+            fields: u32::try_from(record.len()).unwrap_or(u32::MAX),
+            filled: u32::try_from(filled).unwrap_or(u32::MAX),
+        });
         let cells = record
             .iter()
             .enumerate()
@@ -928,9 +961,47 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
                 (!cell.is_empty()).then_some((c, cell))
             })
             .collect();
-        rows.push(Row { index, cells });
+        rows.push(Row {
+            index,
+            cells,
+            shape,
+        });
     }
     Some(rows)
+}
+
+/// The file line a CSV record starts on. The csv crate's own line numbers
+/// drift on CRLF files and blank lines, and its byte offsets can point at
+/// the line break before a record; so lines are counted here from the
+/// offsets, skipping the breaks.
+struct LineCounter<'a> {
+    text: &'a [u8],
+    pos: usize,
+    line: u64,
+}
+
+impl<'a> LineCounter<'a> {
+    fn new(text: &'a [u8]) -> Self {
+        LineCounter {
+            text,
+            pos: 0,
+            line: 1,
+        }
+    }
+
+    /// The 1-based line of a record whose reported start is `byte` (offsets
+    /// must not decrease between calls).
+    fn line_at(&mut self, byte: u64) -> u64 {
+        let mut start = usize::try_from(byte).unwrap_or(usize::MAX).max(self.pos);
+        while matches!(self.text.get(start), Some(b'\r' | b'\n')) {
+            start += 1;
+        }
+        let end = start.min(self.text.len());
+        let skipped = self.text.get(self.pos..end).unwrap_or_default();
+        self.line += u64::try_from(skipped.iter().filter(|&&b| b == b'\n').count()).unwrap_or(0);
+        self.pos = end;
+        self.line
+    }
 }
 
 /// A 1-based line as an A1 row reference.
@@ -939,6 +1010,30 @@ fn line_ref(line: u64) -> String {
         String::new()
     } else {
         format!("{line}:{line}")
+    }
+}
+
+/// A sheet of text cells, row by row from A1, for tests.
+#[cfg(test)]
+pub(crate) fn text_sheet(kind: SheetKind, rows: &[&[&str]]) -> Sheet {
+    Sheet {
+        kind,
+        name: kind.label().to_string(),
+        rows: rows
+            .iter()
+            .zip(0u32..)
+            .map(|(cells, r)| Row {
+                index: r,
+                cells: cells
+                    .iter()
+                    .zip(0u32..)
+                    .map(|(s, c)| (c, Cell::text(s)))
+                    .filter(|(_, c)| !c.is_empty())
+                    .collect(),
+                shape: None,
+            })
+            .filter(|r| !r.cells.is_empty())
+            .collect(),
     }
 }
 
@@ -981,6 +1076,21 @@ mod tests {
             .chain("a,é\n".encode_utf16().flat_map(u16::to_be_bytes))
             .collect();
         assert_eq!(decode_csv(&be).unwrap(), "a,é\n");
+    }
+
+    #[test]
+    fn csv_lines_are_counted_across_crlf_blank_lines_and_quoted_breaks() {
+        let text = "a,b\r\nHM,1\r\n\r\n\"X\ny\",2\nZ,3\r\n";
+        let mut reader = csv::ReaderBuilder::new()
+            .has_headers(false)
+            .flexible(true)
+            .from_reader(text.as_bytes());
+        let mut lines = LineCounter::new(text.as_bytes());
+        let got: Vec<u64> = reader
+            .records()
+            .map(|r| lines.line_at(r.unwrap().position().unwrap().byte()))
+            .collect();
+        assert_eq!(got, vec![1, 2, 4, 6]);
     }
 
     #[test]

@@ -6,11 +6,11 @@
 //! `statement_end` setting `exclusive`, a period_end is the first day after
 //! the period and one day is taken off. Nothing here reconciles.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::BTreeMap;
 
 use chrono::NaiveDate;
 
-use super::accounts::Life;
+use super::accounts::Known;
 use super::model::{Problem, Severity, StatementRow};
 use super::settings::StatementEnd;
 use super::source::Sheet;
@@ -42,7 +42,7 @@ pub(crate) struct Statements {
 pub(crate) fn read(
     ctx: Ctx<'_>,
     sheet: &Sheet,
-    accounts: &HashMap<String, Life>,
+    accounts: &Known,
     end: StatementEnd,
     problems: &mut Vec<Problem>,
 ) -> Option<Statements> {
@@ -62,7 +62,7 @@ pub(crate) fn read(
                 ACCOUNT,
                 &id,
                 "an account of the Accounts sheet",
-                "correct the account id, or add the account to the Accounts sheet; the row is not used",
+                &accounts.unknown_fix(&id),
             );
             continue;
         };

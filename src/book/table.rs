@@ -114,6 +114,8 @@ pub(crate) struct Table<'s> {
     at: Vec<Option<u32>>,
     /// The asked-for column of each sheet column that has one.
     by_col: HashMap<u32, usize>,
+    /// Rows left out (a ragged CSV record), by row index.
+    skipped: Vec<u32>,
 }
 
 /// One data row, its cells in the order of the columns asked for.
@@ -339,12 +341,17 @@ impl<'s> Table<'s> {
                 "these columns are kept out of the computation; nothing to do unless one should be a listed column",
             ));
         }
+        if !ok {
+            return None;
+        }
+        let skipped = ragged_rows(ctx, sheet, first, columns, &at, problems);
         // Values under no header at all.
         let headed: Vec<u32> = first.cells.iter().map(|(c, _)| *c).collect();
         if let Some((r, c)) = sheet
             .rows
             .iter()
             .skip(1)
+            .filter(|r| !skipped.contains(&r.index))
             .flat_map(|r| r.cells.iter().map(move |(c, _)| (r.index, *c)))
             .find(|(_, c)| !headed.contains(c))
         {
@@ -358,15 +365,13 @@ impl<'s> Table<'s> {
                 "those values are kept out; give the column a header if it should be read",
             ));
         }
-        if !ok {
-            return None;
-        }
         Some(Table {
             sheet,
             columns,
             header_row: first.index,
             at,
             by_col,
+            skipped,
         })
     }
 
@@ -399,7 +404,7 @@ impl<'s> Table<'s> {
         self.sheet
             .rows
             .iter()
-            .filter(|r| r.index > self.header_row)
+            .filter(|r| r.index > self.header_row && !self.skipped.contains(&r.index))
             .filter_map(|r| {
                 let mut cells: Vec<Option<(u32, &'s Cell)>> = vec![None; self.columns.len()];
                 let mut any = false;
@@ -426,6 +431,47 @@ impl<'s> Table<'s> {
     }
 }
 
+/// CSV records with fewer fields than the header names, or values beyond
+/// its last field: each is an error naming the file and row, and is left
+/// out (its values cannot be put in their columns with certainty).
+fn ragged_rows(
+    ctx: &Ctx<'_>,
+    sheet: &Sheet,
+    header: &Row,
+    columns: &[Column],
+    at: &[Option<u32>],
+    problems: &mut Vec<Problem>,
+) -> Vec<u32> {
+    let Some(head) = header.shape else {
+        return Vec::new();
+    };
+    let account_col = match columns.first() {
+        Some(c) if c.name == "account" => at.first().copied().flatten(),
+        _ => None,
+    };
+    let mut skipped = Vec::new();
+    for row in sheet.rows.iter().filter(|r| r.index > header.index) {
+        let Some(shape) = row.shape else { continue };
+        if shape.fields >= head.filled && shape.filled <= head.fields {
+            continue;
+        }
+        let account = account_col
+            .and_then(|c| row.cells.iter().find(|(col, _)| *col == c))
+            .and_then(|(_, cell)| cell::text(cell).ok().flatten());
+        problems.push(ctx.problem(
+            Severity::Error,
+            &sheet.name,
+            a1_row(row.index),
+            account.as_deref(),
+            &format!("{} fields", shape.fields),
+            &format!("{} fields, as in the header row", head.fields),
+            "give the row one field per header column (quote a field that holds a comma); the row is not read",
+        ));
+        skipped.push(row.index);
+    }
+    skipped
+}
+
 /// Reading one record's fields, collecting a problem for each bad cell.
 /// Every problem names the record's account once it is known.
 pub(crate) struct Fields<'t, 's, 'p> {
@@ -437,6 +483,9 @@ pub(crate) struct Fields<'t, 's, 'p> {
     pub account: Option<String>,
     /// Whether an error was found in the row.
     pub failed: bool,
+    /// What the row's values are named by in messages, when not the
+    /// column's name (a setting's value is named by the setting).
+    pub subject: Option<&'static str>,
 }
 
 impl<'t, 's, 'p> Fields<'t, 's, 'p> {
@@ -454,6 +503,7 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
             problems,
             account: None,
             failed: false,
+            subject: None,
         }
     }
 
@@ -502,7 +552,8 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
     }
 
     fn issue(&mut self, i: usize, issue: Issue) {
-        let expected = format!("{} in {}", issue.expected, self.table.name(i));
+        let name = self.subject.unwrap_or_else(|| self.table.name(i));
+        let expected = format!("{name} as {}", issue.expected);
         self.report(Severity::Error, i, &issue.found, &expected, &issue.fix);
     }
 
@@ -638,6 +689,7 @@ mod tests {
                 .map(|(r, cells)| Row {
                     index: *r,
                     cells: cells.iter().map(|(c, s)| (*c, Cell::text(s))).collect(),
+                    shape: None,
                 })
                 .collect(),
         }
