@@ -49,11 +49,11 @@ fn accrual(path: &Path, account: &str, column: &str) -> Data {
     let header = &rows[0];
     let col = header
         .iter()
-        .position(|h| h.to_string() == column)
+        .position(|h| *h == column)
         .unwrap_or_else(|| panic!("no column {column}"));
     let row = rows
         .iter()
-        .find(|r| r[0].to_string() == account)
+        .find(|r| r[0] == account)
         .unwrap_or_else(|| panic!("no account {account}"));
     row[col].clone()
 }
@@ -331,8 +331,7 @@ fn the_planted_statement_mistakes_are_found_and_explained() {
         let r = rows
             .iter()
             .find(|r| {
-                r[0].to_string() == account
-                    && r[3].as_date().map(|d| d.to_string()).as_deref() == Some(end)
+                r[0] == account && r[3].as_date().map(|d| d.to_string()).as_deref() == Some(end)
             })
             .unwrap_or_else(|| panic!("no row {account} {end}"));
         (r[10].to_string(), r[11].to_string())
