@@ -559,12 +559,15 @@ fn write_csv(sheets: &[Sheet], dir: &Path) -> std::io::Result<()> {
     Ok(())
 }
 
+/// A change to an account's terms, rates or movements.
+type Change = Box<dyn Fn(&mut AccountTerms, &mut RateSchedule, &mut Vec<Movement>)>;
+
 /// What a statement row of the sample shows for an account's posting.
 enum Planted {
     /// Posted as the contract says.
     Right,
     /// Posted under other terms, other rates or other movements.
-    Other(Box<dyn Fn(&mut AccountTerms, &mut RateSchedule, &mut Vec<Movement>)>),
+    Other(Change),
     /// Posted as the contract says plus a fixed amount.
     Plus(&'static str),
     /// The interest of a period a day shorter at the start, on a row for the whole period.
