@@ -615,6 +615,7 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
         cutoff: "2026-11-30".parse()?,
         keep_days: true,
         keep_states: false,
+        fast_path: true,
     };
     let november: NaiveDate = "2026-11-01".parse()?;
     let mut rows = Vec::new();

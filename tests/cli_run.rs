@@ -406,3 +406,15 @@ fn fail_on_variance_makes_a_scheduled_run_exit_3() {
     // Without the option, variances do not change the exit status.
     run_to(&dir.path().join("c.xlsx"), &[]).code(0);
 }
+
+/// The one-step accrual of unchanging days gives the same workbook, byte for
+/// byte, as the plain day loop that `--no-fast-path` keeps for audits.
+#[test]
+fn no_fast_path_gives_the_same_workbook() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = dir.path().join("fast.xlsx");
+    let b = dir.path().join("plain.xlsx");
+    run_to(&a, &[]).success();
+    run_to(&b, &["--no-fast-path"]).success();
+    assert!(std::fs::read(&a).unwrap() == std::fs::read(&b).unwrap());
+}

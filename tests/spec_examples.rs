@@ -127,6 +127,7 @@ fn run(ex: &Value) -> AccountResult {
         cutoff: date(&ex["cutoff"]),
         keep_days: true,
         keep_states: false,
+        fast_path: true,
     };
     let sources = Sources {
         rates: &rates,

@@ -40,6 +40,8 @@ pub struct BatchSettings {
     pub entities: Vec<String>,
     /// Reconciliation tolerances.
     pub tolerance: Tolerance,
+    /// Accrue unchanging runs of days in one step (identical figures); off for audits.
+    pub fast_path: bool,
 }
 
 /// The batch's figures, ready for the report.
@@ -87,6 +89,7 @@ pub fn run_books(
         cutoff: settings.cutoff,
         keep_days: settings.daily,
         keep_states: false,
+        fast_path: settings.fast_path,
     };
     // Amounts actually posted, summed per account and period (rows for the
     // same period are one posting: a correction and its reversal, say).

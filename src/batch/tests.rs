@@ -82,6 +82,7 @@ fn settings() -> BatchSettings {
         journal_style: JournalStyle::Incremental,
         entities: vec!["HM".into()],
         tolerance: Tolerance::default(),
+        fast_path: true,
     }
 }
 

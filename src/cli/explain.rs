@@ -150,6 +150,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         cutoff,
         keep_days: true,
         keep_states: true,
+        fast_path: true,
     };
     let r = accrue(t, sources, options).map_err(|e| anyhow!("account {}: {e}", t.id))?;
     let shown = period.unwrap_or_else(|| {

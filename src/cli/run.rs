@@ -52,6 +52,9 @@ pub struct Args {
     /// Exit with status 3 when any statement row is outside tolerance (for scheduled runs).
     #[arg(long)]
     fail_on_variance: bool,
+    /// Accrue every day one by one (the same figures, slower), for audits.
+    #[arg(long)]
+    no_fast_path: bool,
 }
 
 /// Reconciliation tolerances.
@@ -117,6 +120,10 @@ fn audited_command_line() -> String {
     for a in std::env::args().skip(1) {
         if skip_next {
             skip_next = false;
+            continue;
+        }
+        // Options that cannot change a figure stay out of the audit trail.
+        if a == "--no-fast-path" {
             continue;
         }
         if a == "--threads" || a == "--out" {
@@ -249,6 +256,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             })
             .collect(),
         tolerance,
+        fast_path: !args.no_fast_path,
     };
     let total: usize = books.iter().map(|b| b.accounts.len()).sum();
     let bar = progress_bar(total);

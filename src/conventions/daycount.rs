@@ -508,6 +508,92 @@ impl PeriodBasis<'_> {
         )
     }
 
+    /// The last day from `d` on over which every day's fraction has the same
+    /// denominator, so that [`PeriodBasis::span`] can sum them: the year end
+    /// for ACT/ACT ISDA (and ACT/365L without a period end), the reference
+    /// period's last day for ACT/ACT ICMA; `None` when it does not end.
+    pub fn same_denominator_until(&self, d: NaiveDate) -> Option<NaiveDate> {
+        let year_end = || NaiveDate::from_ymd_opt(d.year(), 12, 31);
+        match self.basis {
+            Basis::ActActIsda => year_end(),
+            Basis::Act365L if self.end.is_none() => year_end(),
+            Basis::ActActIcma => self
+                .references
+                .iter()
+                .find(|(s, e)| *s <= d && d < *e)
+                .and_then(|(_, e)| e.pred_opt()),
+            _ => None,
+        }
+    }
+
+    /// The sum of the fractions of the days `a..b` (b exclusive), in one
+    /// step: the same numerators the day-by-day fractions add up to, over
+    /// their common denominator. The caller keeps `a..b` inside one period
+    /// and within [`PeriodBasis::same_denominator_until`].
+    ///
+    /// # Errors
+    /// [`DayCountError`] when the basis lacks a term.
+    ///
+    /// ```
+    /// use chrono::NaiveDate;
+    /// use ledgerate::conventions::calendar::Calendar;
+    /// use ledgerate::conventions::daycount::{Basis, PeriodBasis};
+    /// let d = |s: &str| s.parse::<NaiveDate>().unwrap();
+    /// let cal = Calendar::weekends_only();
+    /// let jan = PeriodBasis { basis: Basis::Thirty360, start: d("2026-01-01"), end: Some(d("2026-02-01")),
+    ///     maturity: None, frequency: Some(12), references: &[], calendar: &cal };
+    /// // 30/360: the 31st earns nothing, so 1..31 January sum to 30/360.
+    /// assert_eq!(jan.span(d("2026-01-01"), d("2026-02-01")).unwrap().num, 30);
+    /// let by_day: i64 = d("2026-01-01").iter_days().take(31).map(|x| jan.day(x).unwrap().num).sum();
+    /// assert_eq!(by_day, 30);
+    /// ```
+    pub fn span(&self, a: NaiveDate, b: NaiveDate) -> Result<DayFraction, DayCountError> {
+        let days = (b - a).num_days();
+        let den = |n: i64| n as u32;
+        Ok(match self.basis {
+            Basis::Act360 => DayFraction {
+                num: days,
+                den: 360,
+            },
+            Basis::Act365F => DayFraction {
+                num: days,
+                den: 365,
+            },
+            Basis::ActActIsda => DayFraction {
+                num: days,
+                den: den(days_in_year(a.year())),
+            },
+            Basis::Act365L => {
+                let year = self.end.map_or(a.year(), |e| e.year());
+                DayFraction {
+                    num: days,
+                    den: den(days_in_year(year)),
+                }
+            }
+            Basis::Nl365 => DayFraction {
+                num: days - leap_days_in(a, b),
+                den: 365,
+            },
+            Basis::Bus252 => DayFraction {
+                num: self.calendar.business_days_between(a, b),
+                den: 252,
+            },
+            Basis::ActActIcma => {
+                let first = self.day(a)?;
+                DayFraction {
+                    num: days,
+                    den: first.den,
+                }
+            }
+            other => {
+                let kind = other.thirty().ok_or(DayCountError::Overflow)?;
+                let at_end = self.end == Some(b);
+                let num = self.thirty_cum(kind, b, at_end) - self.thirty_cum(kind, a, false);
+                DayFraction { num, den: 360 }
+            }
+        })
+    }
+
     /// The fraction day `d` earns (`d` inside the period).
     ///
     /// # Errors

@@ -306,6 +306,7 @@ pub fn likely_cause(a: &Account, row: &Reconciled, tolerance: &Tolerance) -> Str
             cutoff: pe.max(row.end),
             keep_days: true,
             keep_states: false,
+            fast_path: true,
         };
         let Ok(result) = resume(terms, sources, options, &state) else {
             continue;

@@ -78,6 +78,13 @@ pub trait RateSource: Sync {
 
     /// The first effective date, for messages.
     fn first_effective(&self) -> Option<NaiveDate>;
+
+    /// The first day after `day` whose table may differ from `day`'s;
+    /// `None` when no later change is known. The engine accrues the days in
+    /// between in one step. A source that cannot tell says the next day.
+    fn next_change_after(&self, day: NaiveDate) -> Option<NaiveDate> {
+        day.succ_opt()
+    }
 }
 
 /// A fixed schedule: tables by effective date; the table for a day is the one
@@ -143,6 +150,11 @@ impl RateSource for RateSchedule {
 
     fn first_effective(&self) -> Option<NaiveDate> {
         self.tables.first().map(|t| t.effective)
+    }
+
+    fn next_change_after(&self, day: NaiveDate) -> Option<NaiveDate> {
+        let i = self.tables.partition_point(|t| t.effective <= day);
+        self.tables.get(i).map(|t| t.effective)
     }
 }
 

@@ -339,6 +339,7 @@ mod tests {
             cutoff: d(to),
             keep_days: true,
             keep_states: true,
+            fast_path: true,
         };
         accrue(terms, src, o).unwrap()
     }

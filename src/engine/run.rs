@@ -29,6 +29,9 @@ pub struct RunOptions {
     pub keep_days: bool,
     /// Keep an [`AccrualState`] at the start of every posting period.
     pub keep_states: bool,
+    /// Accrue runs of days over which nothing changes in one step (the same
+    /// exact numerators, summed at once). Off: the plain day loop, for audits.
+    pub fast_path: bool,
 }
 
 impl RunOptions {
@@ -39,6 +42,7 @@ impl RunOptions {
             cutoff,
             keep_days: false,
             keep_states: false,
+            fast_path: true,
         }
     }
 }
@@ -362,6 +366,12 @@ impl<'a> Loop<'a> {
         let mut basis = None;
         let mut period_end: Option<NaiveDate> = None;
 
+        // The one-step path needs a base that stays put between events: no
+        // daily compounding, no daily rounding, no day rows to keep.
+        let fast = opts.fast_path
+            && !opts.keep_days
+            && !terms.compounding.joins_daily()
+            && terms.round_at == RoundAt::Posting;
         let mut d = resume_day;
         while d <= self.last_day {
             // A new posting period: fix its day-fraction terms and which
@@ -424,11 +434,37 @@ impl<'a> Loop<'a> {
                 "the base",
                 d,
             )?;
-            let fraction = pb.day(d)?;
+            // Days over which nothing changes are accrued in one step: the
+            // numerators the day loop would add, summed at once.
+            let table = self.table_for(base, d)?;
+            // Compounded interest makes the base a 28-digit quotient whose
+            // running sums round; such days stay single.
+            let mut last = if fast && self.state.compounded.is_zero() {
+                self.run_end(d, period, ci, mi, base, &pb)
+            } else {
+                d
+            };
+            let mut run_fraction = None;
+            if let Some(after) = last.succ_opt().filter(|_| last > d) {
+                let f = pb.span(d, after)?;
+                // One product must equal the day loop's sum to the last
+                // digit: only when it needs no rounding (a 28-digit
+                // compounded base falls back to single days).
+                if self.exact_product(base, table, f.num, &mut pieces) {
+                    run_fraction = Some(f);
+                }
+            }
+            if run_fraction.is_none() {
+                last = d;
+            }
+            let fraction = match run_fraction {
+                Some(f) => f,
+                None => pb.day(d)?,
+            };
 
             // Today's interest on the base.
-            let table = self.table_for(base, d)?;
             let day_interest = self.interest(base, table, fraction, d, &mut pieces)?;
+            d = last;
             let rate = blended_rate(base, &pieces, table, terms.tier_method);
             day_interest
                 .add_to(&mut self.period_acc)
@@ -615,6 +651,75 @@ impl<'a> Loop<'a> {
             days,
             states,
         })
+    }
+
+    /// The last day of the run from `d` over which base, rate table and
+    /// day-fraction denominator stay the same and no posting, compounding,
+    /// movement or reported figure falls inside.
+    fn run_end(
+        &self,
+        d: NaiveDate,
+        period: Option<Period>,
+        ci: usize,
+        mi: usize,
+        base: Decimal,
+        pb: &PeriodBasis,
+    ) -> NaiveDate {
+        let mut stop = self.last_day;
+        let mut before = |x: Option<NaiveDate>| {
+            if let Some(x) = x {
+                stop = stop.min(x);
+            }
+        };
+        before(period.map(|p| p.end));
+        before(self.compounding_ends.get(ci).copied());
+        before(
+            self.order
+                .get(mi)
+                .and_then(|&i| self.movement(i))
+                .and_then(|m| m.value_date.pred_opt()),
+        );
+        let source = if base.is_sign_negative() && !base.is_zero() {
+            self.sources.debit_rates
+        } else {
+            Some(self.sources.rates)
+        };
+        before(
+            source
+                .and_then(|s| s.next_change_after(d))
+                .and_then(|n| n.pred_opt()),
+        );
+        before(self.options.window_start.pred_opt().filter(|eve| d <= *eve));
+        before(Some(self.options.cutoff));
+        before(pb.same_denominator_until(d));
+        stop.max(d)
+    }
+
+    /// Whether base x rate x `num` is exact in a decimal, far enough from
+    /// the 96-bit limit that the accumulator's sums stay exact too, so that
+    /// one product equals the day loop's `num` additions to the last digit.
+    /// A 28-digit compounded base fails it and falls back to single days.
+    fn exact_product(
+        &self,
+        base: Decimal,
+        table: Option<&RateTable>,
+        num: i64,
+        pieces: &mut Vec<(Decimal, Decimal)>,
+    ) -> bool {
+        let Some(table) = table else { return true };
+        table.pieces(base, self.terms.tier_method, pieces);
+        let mut br = Decimal::ZERO;
+        for &(slice, rate) in pieces.iter() {
+            match slice.checked_mul(rate).and_then(|x| br.checked_add(x)) {
+                Some(sum) => br = sum,
+                None => return false,
+            }
+        }
+        const LIMIT: u128 = 1 << 95;
+        br.mantissa()
+            .unsigned_abs()
+            .checked_mul(u128::from(num.unsigned_abs()))
+            .is_some_and(|m| m < LIMIT)
     }
 
     /// The table that applies to `base` on `d`: the account's rates, or the

@@ -51,6 +51,7 @@ fn options() -> RunOptions {
         cutoff: d("2026-11-30"),
         keep_days: true,
         keep_states: true,
+        fast_path: true,
     }
 }
 

@@ -34,6 +34,7 @@ fn opts(window: &str, cutoff: &str) -> RunOptions {
         cutoff: d(cutoff),
         keep_days: true,
         keep_states: true,
+        fast_path: true,
     }
 }
 
@@ -503,5 +504,121 @@ proptest! {
         let q = run_with(&quarterly, &rates, &moves, opts("2027-12-01", "2027-12-31"));
         let split: Decimal = m.postings.iter().map(|p| p.interest).sum();
         prop_assert!((split - q.postings[0].interest).abs() < n("1e-20"), "{} vs {}", split, q.postings[0].interest);
+    }
+}
+
+/// A random account of any convention, for the fast-path law.
+#[allow(clippy::type_complexity)]
+fn any_account() -> impl Strategy<Value = (AccountTerms, RateSchedule, Vec<Movement>, NaiveDate)> {
+    let basis = every_basis();
+    let compounding = prop::sample::select(vec![
+        crate::conventions::compounding::Compounding::Simple,
+        crate::conventions::compounding::Compounding::Monthly,
+        crate::conventions::compounding::Compounding::Quarterly,
+        crate::conventions::compounding::Compounding::Daily,
+    ]);
+    let posting = prop::sample::select(vec![
+        Posting::Monthly,
+        Posting::Quarterly,
+        Posting::Semiannual,
+        Posting::None,
+        Posting::Maturity,
+    ]);
+    (
+        basis,
+        compounding,
+        posting,
+        (0i64..400, 1i64..200_000_000, 0u8..2, 0u8..2),
+        prop::collection::vec(
+            (
+                0i64..200,
+                -5_000_000i64..5_000_000,
+                prop::option::of(0i64..40),
+            ),
+            0..7,
+        ),
+        prop::collection::vec((0i64..200, 0i64..900), 0..3),
+        (30i64..200, 0i64..3),
+    )
+        .prop_map(
+            |(
+                basis,
+                compounding,
+                posting,
+                (open, cents, banded, cap),
+                moves,
+                changes,
+                (span, tiers),
+            )| {
+                let open_date = d("2027-09-01") + chrono::Days::new(open as u64);
+                let mut t =
+                    AccountTerms::new("F-1", "USD", 2, basis, open_date, Decimal::new(cents, 2));
+                t.compounding = compounding;
+                t.posting = if basis == Basis::ActActIcma
+                    && matches!(posting, Posting::None | Posting::Maturity)
+                {
+                    Posting::Quarterly
+                } else {
+                    posting
+                };
+                t.maturity = (t.posting == Posting::Maturity)
+                    .then(|| open_date + chrono::Days::new(span as u64 + 40));
+                t.tier_method = if banded == 1 {
+                    crate::engine::TierMethod::Banded
+                } else {
+                    crate::engine::TierMethod::Whole
+                };
+                t.capitalise = cap == 1;
+                t.calendar = Arc::new(Calendar::new(
+                    "X",
+                    [d("2027-12-24"), d("2028-01-03"), d("2028-02-29")],
+                ));
+                let mut rows = vec![(d("2020-01-01"), n("0.0325"), Decimal::ZERO)];
+                for k in 1..=tiers {
+                    rows.push((
+                        d("2020-01-01"),
+                        n("0.0325") + Decimal::new(k * 50, 4),
+                        Decimal::from(k * 10_000),
+                    ));
+                }
+                for (day, bp) in changes {
+                    rows.push((
+                        open_date + chrono::Days::new(day as u64),
+                        Decimal::new(bp, 4),
+                        Decimal::ZERO,
+                    ));
+                }
+                let movements = moves
+                    .into_iter()
+                    .map(|(day, cents, late)| {
+                        let v = open_date + chrono::Days::new(day as u64);
+                        Movement {
+                            value_date: v,
+                            amount: Decimal::new(cents, 2),
+                            booking_date: late.map(|l| v + chrono::Days::new(l as u64)),
+                            reference: None,
+                        }
+                    })
+                    .collect();
+                let cutoff = open_date + chrono::Days::new(span as u64);
+                (t, RateSchedule::from_rows(rows), movements, cutoff)
+            },
+        )
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(400))]
+
+    /// The one-step path gives the day loop's figures to the last digit,
+    /// on random accounts of every convention.
+    #[test]
+    fn the_fast_path_equals_the_day_loop((t, rates, movements, cutoff) in any_account()) {
+        let run = |fast: bool| {
+            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[] };
+            let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, fast_path: fast };
+            accrue(&t, src, o)
+        };
+        let (fast, plain) = (run(true), run(false));
+        prop_assert_eq!(fast, plain);
     }
 }
