@@ -113,7 +113,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         bail!("BUS/252 counts business days and needs a calendar: give --calendar FILE (one ISO date a line; an empty file means weekends only)");
     }
     if basis == Basis::ActActIcma && args.frequency.is_none() {
-        bail!("ACT/ACT ICMA needs --frequency N (periods a year: 1, 2, 4 or 12) and usually --reference-start/--reference-end");
+        bail!("ACT/ACT ICMA needs --frequency N (periods a year: 1, 2, 3, 4, 6 or 12) and usually --reference-start/--reference-end");
     }
     let terms = Terms {
         termination: maturity,

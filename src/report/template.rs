@@ -151,7 +151,7 @@ const ACCOUNTS: &[Column] = &[
     col("capitalise", Kind::Choice(Choice::YesNo), "yes: posted interest is added to the balance. no: it is paid out (default).", Text("yes")),
     col("round_at", Kind::Choice(Choice::RoundAt), "posting: only posted amounts are rounded (default). daily: each day's interest is rounded first.", Text("posting")),
     col("round_mode", Kind::Choice(Choice::RoundMode), "How amounts are rounded to the currency's minor unit. Default half-up.", Text("half-even")),
-    col("round_places", Whole, "Decimals of the daily rounding when round_at is daily. Default: the currency's minor unit.", Number(2, 0)),
+    col("round_places", Whole, "Decimals of the daily rounding when round_at is daily. Default: the currency's minor unit.", Blank),
     col("maturity", Kind::Date, "Maturity date. The night before it is the last that earns.", Blank),
     col("rate_ref", Id, "The Rates schedule the account earns. Default: the account id.", Text("HM-SAVER")),
     col("debit_rate_ref", Id, "Rates schedule for a balance of the opposite sign, such as an overdrawn deposit. Blank: it earns nothing.", Blank),
