@@ -1,19 +1,28 @@
 //! `ledgerate check BOOK...`: reads and validates the books and prints every
-//! problem, writing nothing.
+//! problem, writing nothing. With a cut-off (option or Settings sheet) it
+//! also accrues every account, so problems only the engine meets (a day
+//! without a rate, a statement after the cut-off) are listed too.
 
 use std::io::Write;
 
 use anyhow::Result;
 
 use super::inputs::check_books_exist;
+use super::settings::{self, month_start};
 use super::{exit, read_books, BookArgs};
-use crate::book::Severity;
+use crate::batch::journal::JournalStyle;
+use crate::batch::{run_books, BatchSettings};
+use crate::book::{Problem, Severity};
+use crate::engine::reconcile::Tolerance;
 
 /// Arguments of `check`.
 #[derive(Debug, clap::Args)]
 pub struct Args {
     #[command(flatten)]
     books: BookArgs,
+    /// Also accrue every account to this cut-off (else the Settings sheet's cutoff, if any).
+    #[arg(long, value_name = "DATE")]
+    cutoff: Option<String>,
 }
 
 /// Runs the command.
@@ -22,6 +31,14 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let books = read_books(&args.books)?;
     let mut errors = 0;
     let mut total = 0;
+    let mut print = |p: &Problem, out: &mut dyn Write| -> Result<()> {
+        writeln!(out, "  {p}")?;
+        total += 1;
+        if p.severity == Severity::Error {
+            errors += 1;
+        }
+        Ok(())
+    };
     for b in &books {
         writeln!(
             out,
@@ -31,11 +48,29 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             b.problems.len()
         )?;
         for p in &b.problems {
-            writeln!(out, "  {p}")?;
-            total += 1;
-            if p.severity == Severity::Error {
-                errors += 1;
-            }
+            print(p, out)?;
+        }
+    }
+    if let Some(cutoff) = settings::date(&books, "cutoff", args.cutoff.as_deref(), None)? {
+        let batch = BatchSettings {
+            cutoff: cutoff.value,
+            window_start: month_start(cutoff.value),
+            daily: false,
+            journal_style: JournalStyle::Incremental,
+            entities: Vec::new(),
+            tolerance: Tolerance::default(),
+            fast_path: true,
+        };
+        let result = run_books(&books, &batch, &|| {});
+        writeln!(
+            out,
+            "accrued to {}: {} accounts computed, {} problems",
+            cutoff.value,
+            result.accounts_computed,
+            result.problems.len()
+        )?;
+        for p in &result.problems {
+            print(p, out)?;
         }
     }
     writeln!(out, "{total} problems, {errors} of them errors")?;

@@ -32,6 +32,9 @@ pub struct Args {
     /// C, the cut-off (else the Settings sheet's cutoff, else the period's end).
     #[arg(long, value_name = "DATE")]
     cutoff: Option<String>,
+    /// F, the first day of the window (else the Settings sheet's window_start, else the cut-off's month).
+    #[arg(long, value_name = "DATE")]
+    window_start: Option<String>,
     #[command(flatten)]
     tolerance: ToleranceArgs,
 }
@@ -96,7 +99,13 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     )?
     .ok_or_else(|| anyhow!("no cut-off: give --cutoff YYYY-MM-DD or --period START..END"))?
     .value;
-    let window_start = month_start(cutoff);
+    let window_start = settings::date(
+        &books,
+        "window_start",
+        args.window_start.as_deref(),
+        Some(month_start(cutoff)),
+    )?
+    .map_or(month_start(cutoff), |w| w.value);
     let mut listed = Settings::default();
     let tol = tolerance(&books, &args.tolerance, &mut listed)?;
     let t = &entry.terms;

@@ -15,7 +15,7 @@ use crate::batch::journal::JournalStyle;
 use crate::batch::{run_books, BatchSettings};
 use crate::book::{Problem, Severity};
 use crate::engine::reconcile::Tolerance;
-use crate::report::model::{Report, RunFacts};
+use crate::report::model::{Report, RunFacts, SettingSource};
 use rust_decimal::Decimal;
 
 /// Arguments of `run`.
@@ -61,10 +61,10 @@ pub struct Args {
 #[derive(Debug, clap::Args)]
 pub struct ToleranceArgs {
     /// Variance accepted, in units of each row's currency (default: one minor unit).
-    #[arg(long, value_name = "AMOUNT")]
+    #[arg(long, value_name = "AMOUNT", allow_hyphen_values = true)]
     pub tolerance_amount: Option<String>,
     /// Variance accepted as an annual rate gap in basis points (default: 0).
-    #[arg(long, value_name = "BP")]
+    #[arg(long, value_name = "BP", allow_hyphen_values = true)]
     pub tolerance_bp: Option<String>,
 }
 
@@ -194,11 +194,37 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         "incremental",
     )?;
     let journal_style = JournalStyle::parse(&style.value).map_err(|e| anyhow!("{e}"))?;
-    let entity = settings::text(&books, "entity", args.entity.as_deref(), "default")?;
+    // Each book books its own entity (its Settings sheet), unless --entity names one for all.
+    let entities: Vec<settings::Resolved<String>> = books
+        .iter()
+        .map(
+            |b| match (&args.entity, b.settings.iter().find(|s| s.name == "entity")) {
+                (Some(e), _) => settings::Resolved {
+                    value: e.clone(),
+                    source: SettingSource::Option,
+                },
+                (None, Some(s)) => settings::Resolved {
+                    value: s.value.clone(),
+                    source: SettingSource::Book,
+                },
+                (None, None) => settings::Resolved {
+                    value: "default".to_string(),
+                    source: SettingSource::Default,
+                },
+            },
+        )
+        .collect();
     let mut listed = Settings::default();
     listed.record("cutoff", &cutoff);
     listed.record("window_start", &window);
-    listed.record("entity", &entity);
+    for (b, e) in books.iter().zip(&entities) {
+        let name = if books.len() == 1 {
+            "entity".to_string()
+        } else {
+            format!("entity of {}", b.path.display())
+        };
+        listed.record(&name, e);
+    }
     listed.record("journal_style", &style);
     listed.record(
         "daily",
@@ -242,19 +268,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         window_start: window.value,
         daily: args.daily,
         journal_style,
-        entities: books
-            .iter()
-            .map(|b| {
-                if entity.source == crate::report::model::SettingSource::Option {
-                    entity.value.clone()
-                } else {
-                    b.settings
-                        .iter()
-                        .find(|s| s.name == "entity")
-                        .map_or_else(|| entity.value.clone(), |s| s.value.clone())
-                }
-            })
-            .collect(),
+        entities: entities.into_iter().map(|e| e.value).collect(),
         tolerance,
         fast_path: !args.no_fast_path,
     };
