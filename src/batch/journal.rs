@@ -86,6 +86,17 @@ pub struct AccountEntries<'a> {
     pub postings: Vec<(NaiveDate, Decimal)>,
 }
 
+/// Where a line sorts within its date: accruals, then postings, then reversals.
+fn purpose(memo: &str) -> u8 {
+    if memo.starts_with("interest accrued") {
+        0
+    } else if memo.starts_with("reversal") {
+        2
+    } else {
+        1
+    }
+}
+
 #[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord)]
 struct LineKey {
     date: NaiveDate,
@@ -118,7 +129,6 @@ impl Journal {
         entity: &str,
         currency: &str,
         minor_units: u32,
-        order: u8,
         debit_gl: &str,
         credit_gl: &str,
         memo: &str,
@@ -132,7 +142,7 @@ impl Journal {
                 date,
                 entity: entity.to_string(),
                 currency: currency.to_string(),
-                order,
+                order: purpose(memo),
                 gl: gl.to_string(),
                 memo: memo.to_string(),
             };
@@ -143,6 +153,24 @@ impl Journal {
             // Amounts are rounded to minor units, so these sums are exact in any order.
             slot.1 += signed;
         }
+    }
+
+    /// Adds a line already summed elsewhere (a shard's journal), netting it
+    /// with the lines of the same date, entity, currency, GL account and memo.
+    pub fn add_line(&mut self, line: &JournalLine) {
+        let key = LineKey {
+            date: line.date,
+            entity: line.entity.clone(),
+            currency: line.currency.clone(),
+            order: purpose(&line.memo),
+            gl: line.gl_account.clone(),
+            memo: line.memo.clone(),
+        };
+        let slot = self
+            .lines
+            .entry(key)
+            .or_insert((line.minor_units, Decimal::ZERO));
+        slot.1 += line.debit - line.credit;
     }
 
     /// Adds one account's entries for the window `from..=to`.
@@ -188,7 +216,6 @@ impl Journal {
                     a.entity,
                     a.currency,
                     a.minor_units,
-                    0,
                     accrue_dr,
                     accrue_cr,
                     &format!("interest accrued {window}"),
@@ -206,7 +233,6 @@ impl Journal {
                         a.entity,
                         a.currency,
                         a.minor_units,
-                        1,
                         dr,
                         cr,
                         "interest posted",
@@ -220,7 +246,6 @@ impl Journal {
                     a.entity,
                     a.currency,
                     a.minor_units,
-                    0,
                     accrue_dr,
                     accrue_cr,
                     &format!("interest accrued at {to}"),
@@ -232,7 +257,6 @@ impl Journal {
                         a.entity,
                         a.currency,
                         a.minor_units,
-                        2,
                         accrue_cr,
                         accrue_dr,
                         &format!("reversal of interest accrued at {to}"),
@@ -250,7 +274,6 @@ impl Journal {
                         a.entity,
                         a.currency,
                         a.minor_units,
-                        1,
                         dr,
                         cr,
                         "interest posted",

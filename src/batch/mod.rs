@@ -42,6 +42,73 @@ pub struct BatchSettings {
     pub tolerance: Tolerance,
     /// Accrue unchanging runs of days in one step (identical figures); off for audits.
     pub fast_path: bool,
+    /// Only the accounts of shard K of N (`(K, N)`, K from 1), for runs split across machines.
+    pub shard: Option<(u32, u32)>,
+}
+
+/// The shard (1..=N) an account id belongs to: a stable hash of the id, the
+/// same on every machine, so shards split any set of books the same way.
+///
+/// ```
+/// use ledgerate::batch::shard_of;
+/// assert_eq!(shard_of("HM-SAV-001", 1), 1);
+/// assert!((1..=4).contains(&shard_of("HM-SAV-001", 4)));
+/// assert_eq!(shard_of("HM-SAV-001", 4), shard_of("HM-SAV-001", 4));
+/// ```
+pub fn shard_of(account: &str, shards: u32) -> u32 {
+    use sha2::{Digest, Sha256};
+    let digest = Sha256::digest(account.as_bytes());
+    let mut first = [0u8; 8];
+    for (slot, byte) in first.iter_mut().zip(digest.iter()) {
+        *slot = *byte;
+    }
+    let n = u64::from_be_bytes(first) % u64::from(shards.max(1));
+    u32::try_from(n).unwrap_or(0) + 1
+}
+
+fn in_shard(id: &str, shard: Option<(u32, u32)>) -> bool {
+    shard.is_none_or(|(k, n)| shard_of(id, n) == k)
+}
+
+/// Sorts problems into the order every report lists them: by book (in the
+/// order given), sheet (in the order of the book format), row and column,
+/// keeping the order found among problems of one cell. A shard run and a
+/// merge of shards list them the same way as one run.
+pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
+    const SHEETS: [&str; 7] = [
+        "accounts",
+        "rates",
+        "movements",
+        "statements",
+        "fixings",
+        "holidays",
+        "settings",
+    ];
+    let key = |p: &Problem| {
+        let book = books
+            .iter()
+            .position(|b| *b == p.position.book)
+            .unwrap_or(books.len());
+        let sheet = p.position.sheet.to_lowercase();
+        let rank = SHEETS
+            .iter()
+            .position(|s| sheet.starts_with(s))
+            .unwrap_or(SHEETS.len());
+        let (row, col) = cell_order(&p.position.cell);
+        (book, rank, sheet, row, col)
+    };
+    problems.sort_by_cached_key(key);
+}
+
+/// (row, column) of an A1 cell ("F12"), a row reference ("1:1") or nothing.
+fn cell_order(cell: &str) -> (u64, u64) {
+    let letters: String = cell.chars().take_while(char::is_ascii_alphabetic).collect();
+    let rest = cell.get(letters.len()..).unwrap_or_default();
+    let digits: String = rest.chars().take_while(char::is_ascii_digit).collect();
+    let col = letters.chars().fold(0u64, |acc, c| {
+        acc * 26 + u64::from(c.to_ascii_uppercase() as u8 - b'A' + 1)
+    });
+    (digits.parse().unwrap_or(0), col)
 }
 
 /// The batch's figures, ready for the report.
@@ -99,6 +166,7 @@ pub fn run_books(
         .iter()
         .enumerate()
         .flat_map(|(bi, b)| b.accounts.iter().map(move |a| (bi, a)))
+        .filter(|(_, a)| in_shard(&a.terms.id, settings.shard))
         .collect();
     let outcomes: Vec<Result<Outcome, Box<Problem>>> = work
         .par_iter()
@@ -117,10 +185,11 @@ pub fn run_books(
         .collect();
 
     let mut result = BatchResult {
-        accounts_read: books
-            .iter()
-            .map(|b| b.accounts.len() + left_out_accounts(b))
-            .sum(),
+        accounts_read: work.len()
+            + books
+                .iter()
+                .map(|b| left_out_accounts(b, settings.shard))
+                .sum::<usize>(),
         ..BatchResult::default()
     };
     let mut journal = Journal::new();
@@ -190,7 +259,7 @@ pub fn run_books(
 }
 
 /// Accounts the reader kept out because of errors (each error names its account).
-fn left_out_accounts(book: &Book) -> usize {
+fn left_out_accounts(book: &Book, shard: Option<(u32, u32)>) -> usize {
     let mut ids: Vec<&str> = book
         .problems
         .iter()
@@ -201,7 +270,7 @@ fn left_out_accounts(book: &Book) -> usize {
         .collect();
     ids.sort_unstable();
     ids.dedup();
-    ids.retain(|id| !book.accounts.iter().any(|a| a.terms.id == *id));
+    ids.retain(|id| in_shard(id, shard) && !book.accounts.iter().any(|a| a.terms.id == *id));
     ids.len()
 }
 

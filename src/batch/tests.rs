@@ -83,6 +83,7 @@ fn settings() -> BatchSettings {
         entities: vec!["HM".into()],
         tolerance: Tolerance::default(),
         fast_path: true,
+        shard: None,
     }
 }
 

@@ -60,6 +60,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             entities: Vec::new(),
             tolerance: Tolerance::default(),
             fast_path: true,
+            shard: None,
         };
         let result = run_books(&books, &batch, &|| {});
         writeln!(

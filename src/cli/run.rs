@@ -55,6 +55,25 @@ pub struct Args {
     /// Accrue every day one by one (the same figures, slower), for audits.
     #[arg(long)]
     no_fast_path: bool,
+    /// Only the accounts of shard K of N (K from 1), for a run split across
+    /// machines; combine the shard workbooks with `ledgerate merge`.
+    #[arg(long, value_name = "K/N")]
+    shard: Option<String>,
+}
+
+/// Parses `K/N` with 1 <= K <= N.
+fn parse_shard(s: &str) -> Result<(u32, u32)> {
+    let bad =
+        || anyhow!("--shard '{s}' is not K/N: write it like 2/8 (shard 2 of 8, counting from 1)");
+    let (k, n) = s.split_once('/').ok_or_else(bad)?;
+    let (k, n): (u32, u32) = (
+        k.trim().parse().map_err(|_| bad())?,
+        n.trim().parse().map_err(|_| bad())?,
+    );
+    if k == 0 || n == 0 || k > n {
+        return Err(bad());
+    }
+    Ok((k, n))
 }
 
 /// Reconciliation tolerances.
@@ -250,6 +269,16 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     );
 
     let tolerance = tolerance(&books, &args.tolerance, &mut listed)?;
+    let shard = args.shard.as_deref().map(parse_shard).transpose()?;
+    if let Some((k, n)) = shard {
+        listed.record(
+            "shard",
+            &settings::Resolved {
+                value: format!("{k}/{n}"),
+                source: SettingSource::Option,
+            },
+        );
+    }
     let target = args
         .out
         .clone()
@@ -271,6 +300,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         entities: entities.into_iter().map(|e| e.value).collect(),
         tolerance,
         fast_path: !args.no_fast_path,
+        shard,
     };
     let total: usize = books.iter().map(|b| b.accounts.len()).sum();
     let bar = progress_bar(total);
@@ -292,6 +322,8 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         .flat_map(|b| b.problems.iter().cloned())
         .collect();
     problems.extend(batch.problems.iter().cloned());
+    let book_names: Vec<String> = books.iter().map(|b| b.path.display().to_string()).collect();
+    crate::batch::sort_problems(&mut problems, &book_names);
     let failed = batch.accounts_read.saturating_sub(batch.accounts_computed);
     let report = Report {
         facts: RunFacts {
