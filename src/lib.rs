@@ -6,4 +6,5 @@ pub mod book;
 pub mod cli;
 pub mod conventions;
 pub mod engine;
+pub mod merge;
 pub mod report;

@@ -12,7 +12,7 @@ mod cell;
 mod holidays;
 pub mod model;
 mod movements;
-mod number;
+pub(crate) mod number;
 mod rates;
 mod read;
 mod settings;

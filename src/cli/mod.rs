@@ -13,6 +13,7 @@ mod check;
 mod daycount;
 mod explain;
 mod inputs;
+mod merge;
 mod run;
 mod settings;
 mod template;
@@ -44,6 +45,8 @@ enum Command {
     Run(run::Args),
     /// Read and validate the books; print every problem, write nothing.
     Check(check::Args),
+    /// Combine the workbooks of shard runs (run --shard K/N) into one.
+    Merge(merge::Args),
     /// One account day by day: expected against posted, and the likely cause of a variance.
     Explain(explain::Args),
     /// Write a blank input book with every sheet and column.
@@ -107,6 +110,7 @@ where
     let result = match cli.command {
         Command::Run(a) => run::run(&a, &mut out),
         Command::Check(a) => check::run(&a, &mut out),
+        Command::Merge(a) => merge::run(&a, &mut out),
         Command::Explain(a) => explain::run(&a, &mut out),
         Command::Template(a) => template::run(&a, &mut out),
         Command::Daycount(a) => daycount::run(&a, &mut out),

@@ -161,7 +161,7 @@ fn audited_command_line() -> String {
     format!("ledgerate {}", out.join(" "))
 }
 
-fn run_time(fixed: Option<&str>) -> Result<NaiveDateTime> {
+pub(crate) fn run_time(fixed: Option<&str>) -> Result<NaiveDateTime> {
     match fixed {
         Some(t) => NaiveDateTime::parse_from_str(t, "%Y-%m-%dT%H:%M:%S")
             .or_else(|_| NaiveDateTime::parse_from_str(&format!("{t}T00:00:00"), "%Y-%m-%dT%H:%M:%S"))

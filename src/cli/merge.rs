@@ -1,0 +1,107 @@
+//! `ledgerate merge SHARD... --out FILE`: one workbook from the workbooks of
+//! shard runs (`run --shard K/N`), equal in every figure to one run over all
+//! the accounts. The input books must still be where the shards read them
+//! (on shared storage, say): merge re-reads them for the order of accounts
+//! and checks their SHA-256 against the shards' Run sheets.
+
+use std::collections::HashMap;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use anyhow::{anyhow, bail, Context, Result};
+
+use super::exit;
+use super::inputs::{check_output_is_not_an_input, fingerprint};
+use super::run::{print_summary, run_time};
+use crate::book::{read_book, ReadOptions, Severity};
+use crate::merge::{merge, read_workbook};
+
+/// Arguments of `merge`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// The shard workbooks, in any order.
+    #[arg(required = true, value_name = "SHARD")]
+    shards: Vec<PathBuf>,
+    /// Where to write the merged workbook.
+    #[arg(long, value_name = "FILE")]
+    out: PathBuf,
+    /// Pin the run time written in the workbook (YYYY-MM-DDTHH:MM:SS).
+    #[arg(long, value_name = "TIMESTAMP")]
+    fixed_time: Option<String>,
+}
+
+/// Runs the command.
+pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
+    check_output_is_not_an_input(&args.out, &args.shards)?;
+    let mut parts = Vec::new();
+    for s in &args.shards {
+        if !s.exists() {
+            bail!("the shard workbook {} does not exist", s.display());
+        }
+        parts.push(read_workbook(s).map_err(|e| anyhow!("{e}"))?);
+    }
+    let first = parts
+        .first()
+        .ok_or_else(|| anyhow!("no shard workbooks given"))?;
+    let decimal_comma = first
+        .facts
+        .settings
+        .iter()
+        .any(|s| s.name == "decimal_comma" && s.value == "true");
+    let books: Vec<PathBuf> = first
+        .facts
+        .inputs
+        .iter()
+        .map(|i| PathBuf::from(&i.path))
+        .collect();
+    check_output_is_not_an_input(&args.out, &books)?;
+    let mut order: HashMap<String, usize> = HashMap::new();
+    for input in &first.facts.inputs {
+        let path = Path::new(&input.path);
+        let now = fingerprint(path).with_context(|| {
+            format!(
+                "merge re-reads the input books for the order of the accounts: {} is not there",
+                input.path
+            )
+        })?;
+        if now.sha256 != input.sha256 {
+            bail!(
+                "the book {} changed since the shards read it (SHA-256 {} on the Run sheets, {} now): run the shards again",
+                input.path,
+                input.sha256,
+                now.sha256
+            );
+        }
+        let book = read_book(path, &ReadOptions { decimal_comma });
+        for a in &book.accounts {
+            let next = order.len();
+            order.entry(a.terms.id.clone()).or_insert(next);
+        }
+    }
+    let shards: Vec<String> = args
+        .shards
+        .iter()
+        .map(|s| s.display().to_string())
+        .collect();
+    let report = merge(
+        parts,
+        &order,
+        run_time(args.fixed_time.as_deref())?,
+        format!("ledgerate merge {}", shards.join(" ")),
+    )
+    .map_err(|e| anyhow!("{e}"))?;
+    crate::report::write_report(&report, &args.out)
+        .with_context(|| format!("cannot write the workbook {}", args.out.display()))?;
+    print_summary(out, &report, &args.out)?;
+    Ok(
+        if report
+            .problems
+            .iter()
+            .any(|p| p.severity == Severity::Error)
+        {
+            exit::ACCOUNT_ERRORS
+        } else {
+            exit::OK
+        },
+    )
+}
