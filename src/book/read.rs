@@ -84,13 +84,15 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
         rates: &rates,
         calendars: &calendars,
     };
-    let Some(found) =
-        sheet(SheetKind::Accounts).and_then(|s| accounts::read(ctx, s, &others, problems))
-    else {
+    let accounts_sheet = sheet(SheetKind::Accounts);
+    let Some(found) = accounts_sheet.and_then(|s| accounts::read(ctx, s, &others, problems)) else {
         book.rates = rates.schedules;
         book.settings = settings.rows;
         return book;
     };
+    if let Some(s) = accounts_sheet.filter(|s| s.rows.len() == 1) {
+        no_account_rows(&name, s, problems);
+    }
     let mut rejected: BTreeSet<String> = found.rejected;
     let mut entries = found.entries;
 
@@ -122,6 +124,24 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     book.accounts = entries;
     book.settings = settings.rows;
     book
+}
+
+/// An Accounts sheet with a header and nothing under it: the book computes
+/// nothing, which is worth a warning (a filter or a wrong sheet saved?).
+fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
+    let below = sheet.rows.first().map_or(1, |h| h.index.saturating_add(1));
+    problems.push(Problem {
+        severity: Severity::Warning,
+        position: Position {
+            book: book.to_string(),
+            sheet: sheet.name.clone(),
+            cell: source::a1_row(below),
+        },
+        account: None,
+        found: "a header row and no account rows".to_string(),
+        expected: "one row per account under the header".to_string(),
+        fix: "add the accounts (check the sheet was not saved filtered), or leave this book out of the run".to_string(),
+    });
 }
 
 /// A Movements or Statements sheet that cannot be read as a table leaves

@@ -1,5 +1,6 @@
 //! Writes the account-book fixtures of `tests/book_reader.rs` under
-//! `tests/fixtures/books/`: the Harbourview Mutual books (an invented credit
+//! `tests/fixtures/books/`, and the bad-books corpus of `tests/bad_books.rs`
+//! under `tests/bad-books/` (see [`bad_books`]): the Harbourview Mutual books (an invented credit
 //! union) as xlsx, as a folder of CSV files, and (when LibreOffice is
 //! installed) as ods and xls; a broken book with planted faults; and small
 //! books for single cases (1904 dates, a #SPILL! cell, a stray far cell,
@@ -21,6 +22,8 @@ use rust_decimal::Decimal;
 use rust_xlsxwriter::{
     DocProperties, ExcelDateTime, Format, Formula, Workbook, Worksheet, XlsxError,
 };
+
+mod bad_books;
 
 type Result<T> = std::result::Result<T, Box<dyn std::error::Error>>;
 
@@ -1198,6 +1201,8 @@ fn main() -> Result<()> {
         comma.join("rates.csv"),
         "rate_ref,effective,rate_percent\r\nHM-SAV-301,2026-01-01,\"2,50\"\r\n",
     )?;
+
+    bad_books::write(Path::new("tests/bad-books"))?;
     Ok(())
 }
 
