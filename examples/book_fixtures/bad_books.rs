@@ -416,6 +416,13 @@ pub(crate) fn write(root: &Path) -> Result<()> {
         })?,
     )?;
     x(
+        "empty_accounts_sheet.xlsx",
+        with(|b| {
+            find(b, "Accounts")?.rows.clear();
+            Ok(())
+        })?,
+    )?;
+    x(
         "duplicate_account_id.xlsx",
         with(|b| {
             add_row(
@@ -567,6 +574,11 @@ pub(crate) fn write(root: &Path) -> Result<()> {
     x(
         "date_serial_out_of_range.xlsx",
         with(|b| set(b, "Accounts", 2, "open_date", Serial(3_000_000.0)))?,
+    )?;
+    // So far before 1900 that the calendar arithmetic itself would overflow.
+    x(
+        "date_serial_negative.xlsx",
+        with(|b| set(b, "Movements", 1, "value_date", Serial(-1e300)))?,
     )?;
     x(
         "date_with_time_of_day.xlsx",
