@@ -319,7 +319,7 @@ pub(crate) fn date(cell: &Cell) -> Result<Option<NaiveDate>, Issue> {
             "remove the time of day, or write the date as YYYY-MM-DD",
         )),
         Cell::BadDate(serial) => Err(Issue::new(
-            format!("date serial {serial}"),
+            format!("date serial {}", shown(serial)),
             "a date from 1900-01-01 to 9999-12-31",
             "the cell's date number is outside the spreadsheet calendar, so it is no date: type the date again, or write it as YYYY-MM-DD",
         )),
