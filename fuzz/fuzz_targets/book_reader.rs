@@ -17,5 +17,5 @@ fuzz_target!(|data: &[u8]| {
         return;
     }
     let book = read_book(&path, &ReadOptions::default());
-    common::check_contract(&book, &path);
+    common::check_contract(&book);
 });

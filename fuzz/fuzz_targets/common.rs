@@ -41,40 +41,8 @@ pub fn install_panic_rule() {
     });
 }
 
-/// The row number of an A1 cell (`F12`) or row (`12:12`); `None` for a sheet.
-fn row_of(cell: &str) -> Option<&str> {
-    let row = cell.split(':').next()?.trim_start_matches(|c: char| c.is_ascii_uppercase());
-    (!row.is_empty()).then_some(row)
-}
-
-/// The reader's contract on any input (model.rs, docs/reading-books.md):
-/// every problem names the book it was given; an account that an error
-/// names is not in `accounts`, except for the error on a second row with
-/// its id (the first row stands); movements and statement rows belong to
-/// accounts that are kept.
-pub fn check_contract(book: &ledgerate::book::Book, path: &std::path::Path) {
-    use ledgerate::book::Severity;
-    let name = path.display().to_string();
-    for p in &book.problems {
-        assert_eq!(p.position.book, name, "a problem names another book: {p}");
-    }
-    let kept: std::collections::BTreeMap<&str, &ledgerate::book::Position> = book
-        .accounts
-        .iter()
-        .map(|a| (a.terms.id.as_str(), &a.position))
-        .collect();
-    for p in book.problems.iter().filter(|p| p.severity == Severity::Error) {
-        let Some(at) = p.account.as_deref().and_then(|id| kept.get(id)) else {
-            continue;
-        };
-        let other_row_of_accounts =
-            p.position.sheet == at.sheet && row_of(&p.position.cell) != row_of(&at.cell);
-        assert!(other_row_of_accounts, "account kept despite: {p}");
-    }
-    for id in book.movements.keys() {
-        assert!(kept.contains_key(id.as_str()), "movements of an account left out: {id}");
-    }
-    for s in &book.statements {
-        assert!(kept.contains_key(s.account.as_str()), "statement of an account left out: {}", s.account);
-    }
+/// The reader's contract on any input ([`ledgerate::book::contract_violations`]).
+pub fn check_contract(book: &ledgerate::book::Book) {
+    let broken = ledgerate::book::contract_violations(book);
+    assert!(broken.is_empty(), "{}", broken.join("\n"));
 }

@@ -34,6 +34,6 @@ fuzz_target!(|data: &[u8]| {
     }
     for decimal_comma in [false, true] {
         let book = read_book(&dir, &ReadOptions { decimal_comma });
-        common::check_contract(&book, &dir);
+        common::check_contract(&book);
     }
 });

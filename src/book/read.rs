@@ -169,6 +169,76 @@ fn unusable_sheet(
     }
 }
 
+/// The row number of an A1 cell (`F12`) or row (`12:12`); `None` for a
+/// whole sheet or file.
+fn row_of(cell: &str) -> Option<&str> {
+    let row = cell
+        .split(':')
+        .next()?
+        .trim_start_matches(|c: char| c.is_ascii_uppercase());
+    (!row.is_empty()).then_some(row)
+}
+
+/// What [`read_book`] promises about any book it returns, checked: every
+/// problem names the book it was given; an account that an error names is
+/// not in `accounts`, except for the error on a second row with its id (the
+/// first row stands); movements and statement rows belong to kept accounts.
+/// Returns one line per broken promise, so fuzzing and tests can assert
+/// the list is empty.
+///
+/// ```
+/// use std::path::Path;
+/// use ledgerate::book::{contract_violations, read_book, ReadOptions};
+///
+/// let book = read_book(Path::new("tests/fixtures/books/harbourview_broken.xlsx"), &ReadOptions::default());
+/// assert!(book.has_errors());
+/// assert_eq!(contract_violations(&book), Vec::<String>::new());
+/// ```
+pub fn contract_violations(book: &Book) -> Vec<String> {
+    let mut out = Vec::new();
+    let name = book.path.display().to_string();
+    for p in book.problems.iter().filter(|p| p.position.book != name) {
+        out.push(format!("a problem names another book: {p}"));
+    }
+    let kept: HashMap<&str, &Position> = book
+        .accounts
+        .iter()
+        .map(|a| (a.terms.id.as_str(), &a.position))
+        .collect();
+    for p in book
+        .problems
+        .iter()
+        .filter(|p| p.severity == Severity::Error)
+    {
+        let Some(at) = p.account.as_deref().and_then(|id| kept.get(id)) else {
+            continue;
+        };
+        let duplicate_row =
+            p.position.sheet == at.sheet && row_of(&p.position.cell) != row_of(&at.cell);
+        if !duplicate_row {
+            out.push(format!("an account is kept despite: {p}"));
+        }
+    }
+    for id in book
+        .movements
+        .keys()
+        .filter(|id| !kept.contains_key(id.as_str()))
+    {
+        out.push(format!("movements of an account left out: {id}"));
+    }
+    for s in book
+        .statements
+        .iter()
+        .filter(|s| !kept.contains_key(s.account.as_str()))
+    {
+        out.push(format!(
+            "a statement row of an account left out: {}",
+            s.account
+        ));
+    }
+    out
+}
+
 /// Makes account ids unique across the books of a run: the second and later
 /// books holding an id get an error on that account, which is dropped from
 /// them with its movements and statements. The first book keeps it.
