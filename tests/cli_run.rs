@@ -436,13 +436,16 @@ fn a_csv_book_gives_a_byte_identical_workbook_across_runs_and_thread_counts() {
     assert!(b == c, "two runs differ");
 }
 
-/// The Run sheet as (item, value) pairs and the settings as name -> (value, source).
-fn run_sheet(path: &Path) -> (Vec<(String, String)>, Vec<Vec<String>>, Vec<Vec<String>>) {
-    let rows: Vec<Vec<String>> = sheet(path, "Run")
+/// Rows of cells as text.
+type Table = Vec<Vec<String>>;
+
+/// The Run sheet: its (item, value) facts, its Input rows and its Setting rows.
+fn run_sheet(path: &Path) -> (Vec<(String, String)>, Table, Table) {
+    let rows: Table = sheet(path, "Run")
         .iter()
         .map(|r| r.iter().map(|c| c.to_string()).collect())
         .collect();
-    let block = |title: &str| -> Vec<Vec<String>> {
+    let block = |title: &str| -> Table {
         rows.iter()
             .skip_while(|r| r.first().map(String::as_str) != Some(title))
             .skip(1)
