@@ -15,7 +15,7 @@ use rust_decimal::prelude::ToPrimitive;
 use rust_decimal::Decimal;
 use rust_xlsxwriter::{DocProperties, ExcelDateTime, Format, Formula, Workbook};
 
-use super::{csv_field, date, fresh_dir, patch_zip, serial_1904, Result};
+use super::{csv_field, date, fresh_dir, patch_zip, serial_1904, utf16_bytes, Result};
 
 /// A cell of a corpus book.
 #[derive(Debug, Clone)]
@@ -306,22 +306,6 @@ fn csv_folder(dir: &Path, book: &Book, encode: impl Fn(&str, String) -> Vec<u8>)
 
 fn plain(_: &str, text: String) -> Vec<u8> {
     text.into_bytes()
-}
-
-fn utf16(text: &str, little: bool) -> Vec<u8> {
-    let mut bytes = if little {
-        vec![0xFF, 0xFE]
-    } else {
-        vec![0xFE, 0xFF]
-    };
-    for unit in text.encode_utf16() {
-        bytes.extend_from_slice(&if little {
-            unit.to_le_bytes()
-        } else {
-            unit.to_be_bytes()
-        });
-    }
-    bytes
 }
 
 /// Text of `n` characters: a member note repeated.
@@ -788,7 +772,7 @@ pub(crate) fn write(root: &Path) -> Result<()> {
         },
     )?;
     csv_folder(&root.join("utf16_csv"), &base(), |file, text| {
-        utf16(&text, file != "rates.csv")
+        utf16_bytes(&text, file != "rates.csv")
     })?;
     csv_folder(&root.join("utf8_bom_csv"), &base(), |_, text| {
         [&[0xEF, 0xBB, 0xBF][..], text.as_bytes()].concat()

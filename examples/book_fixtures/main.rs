@@ -963,6 +963,23 @@ fn patch_zip(path: &Path, patch: impl Fn(&str, String) -> String) -> Result<()> 
     Ok(())
 }
 
+/// Text as UTF-16 with a byte-order mark, little- or big-endian.
+fn utf16_bytes(text: &str, little: bool) -> Vec<u8> {
+    let mut bytes: Vec<u8> = if little {
+        vec![0xFF, 0xFE]
+    } else {
+        vec![0xFE, 0xFF]
+    };
+    for unit in text.encode_utf16() {
+        bytes.extend_from_slice(&if little {
+            unit.to_le_bytes()
+        } else {
+            unit.to_be_bytes()
+        });
+    }
+    bytes
+}
+
 /// A CSV field, quoted when it must be.
 fn csv_field(s: &str) -> String {
     if s.contains([',', '"', '\n', '\r']) {
@@ -1173,18 +1190,7 @@ fn main() -> Result<()> {
     let small = small_book(SMALL_ACCOUNTS);
     for (sheet, little) in small.iter().zip([true, false]) {
         let text = csv_lines(sheet).join("\r\n") + "\r\n";
-        let mut bytes: Vec<u8> = if little {
-            vec![0xFF, 0xFE]
-        } else {
-            vec![0xFE, 0xFF]
-        };
-        for unit in text.encode_utf16() {
-            bytes.extend_from_slice(&if little {
-                unit.to_le_bytes()
-            } else {
-                unit.to_be_bytes()
-            });
-        }
+        let bytes = utf16_bytes(&text, little);
         fs::write(
             utf16.join(format!("{}.csv", sheet.name.to_lowercase())),
             bytes,

@@ -109,6 +109,18 @@ pub(crate) fn tolerance(
     Ok(tol)
 }
 
+/// A yes/no option: on only from the command line.
+fn switch(on: bool) -> settings::Resolved<bool> {
+    settings::Resolved {
+        value: on,
+        source: if on {
+            crate::report::model::SettingSource::Option
+        } else {
+            crate::report::model::SettingSource::Default
+        },
+    }
+}
+
 /// How the books' Statements sheets write a period's end, as the reader
 /// applied it. Each book has its own setting, so books may differ; the Run
 /// sheet then names each book's.
@@ -227,41 +239,11 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     listed.record("window_start", &window);
     listed.record("entity", &entity);
     listed.record("journal_style", &style);
-    listed.record(
-        "daily",
-        &settings::Resolved {
-            value: args.daily,
-            source: if args.daily {
-                crate::report::model::SettingSource::Option
-            } else {
-                crate::report::model::SettingSource::Default
-            },
-        },
-    );
-    listed.record(
-        "decimal_comma",
-        &settings::Resolved {
-            value: args.books.decimal_comma,
-            source: if args.books.decimal_comma {
-                crate::report::model::SettingSource::Option
-            } else {
-                crate::report::model::SettingSource::Default
-            },
-        },
-    );
+    listed.record("daily", &switch(args.daily));
+    listed.record("decimal_comma", &switch(args.books.decimal_comma));
 
     listed.record("statement_end", &statement_end(&books));
-    listed.record(
-        "fail_on_variance",
-        &settings::Resolved {
-            value: args.fail_on_variance,
-            source: if args.fail_on_variance {
-                crate::report::model::SettingSource::Option
-            } else {
-                crate::report::model::SettingSource::Default
-            },
-        },
-    );
+    listed.record("fail_on_variance", &switch(args.fail_on_variance));
 
     let tolerance = tolerance(&books, &args.tolerance, &mut listed)?;
     let target = args

@@ -460,15 +460,7 @@ const NOTE_CELLS: usize = 10;
 /// The one Problems row that says which figures are text.
 fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
     let first = texts.listed.first()?;
-    let mut cells: Vec<String> = texts
-        .listed
-        .iter()
-        .take(NOTE_CELLS)
-        .map(|t| format!("{}!{}", sheet_ref(&t.sheet), t.cell))
-        .collect();
-    if texts.count > cells.len() {
-        cells.push(format!("and {} more", texts.count - cells.len()));
-    }
+    let cells = named_cells(&texts.listed, texts.count);
     Some(Problem {
         severity: Severity::Warning,
         position: Position {
@@ -495,15 +487,7 @@ fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
 /// of the Problems sheet itself are written after it and are not listed.
 fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
     let first = texts.cut.first()?;
-    let mut cells: Vec<String> = texts
-        .cut
-        .iter()
-        .take(NOTE_CELLS)
-        .map(|t| format!("{}!{}", sheet_ref(&t.sheet), t.cell))
-        .collect();
-    if texts.cut_count > cells.len() {
-        cells.push(format!("and {} more", texts.cut_count - cells.len()));
-    }
+    let cells = named_cells(&texts.cut, texts.cut_count);
     Some(Problem {
         severity: Severity::Warning,
         position: Position {
@@ -524,6 +508,19 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             cells.join(", ")
         ),
     })
+}
+
+/// The first cells of `listed` as `Sheet!A1`, and how many more of `count`.
+fn named_cells(listed: &[TextFigure], count: usize) -> Vec<String> {
+    let mut cells: Vec<String> = listed
+        .iter()
+        .take(NOTE_CELLS)
+        .map(|t| format!("{}!{}", sheet_ref(&t.sheet), t.cell))
+        .collect();
+    if count > cells.len() {
+        cells.push(format!("and {} more", count - cells.len()));
+    }
+    cells
 }
 
 /// The output's file name, as the Problems sheet's Book column shows it.
