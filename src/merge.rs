@@ -586,11 +586,13 @@ pub fn merge(
             .collect::<Vec<_>>()
     };
     let settings = without_shard(&first.facts.settings);
+    let facts = first.facts.clone();
     let mut all = vec![first];
     for p in parts {
-        let f = &all[0].facts;
-        if p.facts.inputs != f.inputs {
-            return Err(MergeError::Mismatch("the shards were run on different books (paths or SHA-256 differ on their Run sheets)".into()));
+        if p.facts.inputs != facts.inputs {
+            return Err(MergeError::Mismatch(
+                "the shards were run on different books (paths or SHA-256 differ on their Run sheets)".into(),
+            ));
         }
         if without_shard(&p.facts.settings) != settings {
             return Err(MergeError::Mismatch(
@@ -607,7 +609,6 @@ pub fn merge(
     let mut problems: Vec<Problem> = Vec::new();
     let mut read = 0;
     let mut failed = 0;
-    let facts = all[0].facts.clone();
     for p in all {
         read += p.facts.accounts_read;
         failed += p.facts.accounts_failed;

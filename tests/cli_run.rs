@@ -418,3 +418,188 @@ fn no_fast_path_gives_the_same_workbook() {
     run_to(&b, &["--no-fast-path"]).success();
     assert!(std::fs::read(&a).unwrap() == std::fs::read(&b).unwrap());
 }
+
+#[test]
+fn a_csv_book_gives_a_byte_identical_workbook_across_runs_and_thread_counts() {
+    let dir = tempfile::tempdir().unwrap();
+    let run = |out: &Path, threads: &str| {
+        ledgerate()
+            .arg("run")
+            .arg(sample_csv())
+            .args([
+                "--cutoff",
+                "2026-11-30",
+                "--daily",
+                "--fixed-time",
+                "2026-12-01T08:00:00",
+                "--threads",
+                threads,
+                "--out",
+            ])
+            .arg(out)
+            .assert()
+            .success();
+        std::fs::read(out).unwrap()
+    };
+    let a = run(&dir.path().join("a.xlsx"), "1");
+    let b = run(&dir.path().join("b.xlsx"), "2");
+    let c = run(&dir.path().join("c.xlsx"), "2");
+    assert!(a == b, "--threads 1 and --threads 2 differ");
+    assert!(b == c, "two runs differ");
+}
+
+/// Rows of cells as text.
+type Table = Vec<Vec<String>>;
+
+/// The Run sheet: its (item, value) facts, its Input rows and its Setting rows.
+fn run_sheet(path: &Path) -> (Vec<(String, String)>, Table, Table) {
+    let rows: Table = sheet(path, "Run")
+        .iter()
+        .map(|r| r.iter().map(|c| c.to_string()).collect())
+        .collect();
+    let block = |title: &str| -> Table {
+        rows.iter()
+            .skip_while(|r| r.first().map(String::as_str) != Some(title))
+            .skip(1)
+            .take_while(|r| r.first().is_some_and(|c| !c.is_empty()))
+            .cloned()
+            .collect()
+    };
+    let facts = rows
+        .iter()
+        .skip(1)
+        .take_while(|r| r.first().is_some_and(|c| !c.is_empty()))
+        .map(|r| (r[0].clone(), r.get(1).cloned().unwrap_or_default()))
+        .collect();
+    (facts, block("Input"), block("Setting"))
+}
+
+#[test]
+fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time() {
+    use sha2::{Digest, Sha256};
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("nov.xlsx");
+    run_to(
+        &out,
+        &[
+            "--threads",
+            "2",
+            "--tolerance-bp",
+            "0.5",
+            "--entity=Harbourview Mutual",
+        ],
+    )
+    .success();
+    let (facts, inputs, settings) = run_sheet(&out);
+    let fact = |name: &str| {
+        facts
+            .iter()
+            .find(|(n, _)| n == name)
+            .map(|(_, v)| v.clone())
+            .unwrap_or_else(|| panic!("no {name} in {facts:?}"))
+    };
+    assert_eq!(
+        fact("Program version"),
+        format!("ledgerate {}", env!("CARGO_PKG_VERSION"))
+    );
+    // Every option that can change a figure, none of those that cannot.
+    let command = fact("Command line");
+    assert!(command.starts_with("ledgerate run "), "{command}");
+    for part in [
+        "--cutoff 2026-11-30",
+        "--fixed-time 2026-12-01T08:00:00",
+        "--tolerance-bp 0.5",
+        "\"--entity=Harbourview Mutual\"",
+        "harbourview-2026-11.xlsx",
+    ] {
+        assert!(command.contains(part), "{part} missing from {command}");
+    }
+    for absent in ["--threads", "--out", "nov.xlsx"] {
+        assert!(!command.contains(absent), "{absent} in {command}");
+    }
+    let time = sheet(&out, "Run")
+        .iter()
+        .find(|r| r[0] == "Time of the run")
+        .and_then(|r| r[1].as_datetime())
+        .map(|t| t.to_string());
+    assert_eq!(time.as_deref(), Some("2026-12-01 08:00:00"));
+
+    // Each input: path, size and SHA-256 as computed here.
+    let bytes = std::fs::read(sample()).unwrap();
+    let sha: String = Sha256::digest(&bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect();
+    assert_eq!(
+        inputs,
+        [vec![
+            sample().display().to_string(),
+            bytes.len().to_string(),
+            sha
+        ]]
+    );
+
+    // Every setting in force, with where it came from.
+    let got: std::collections::BTreeMap<&str, (&str, &str)> = settings
+        .iter()
+        .map(|r| (r[0].as_str(), (r[1].as_str(), r[2].as_str())))
+        .collect();
+    let want = [
+        ("cutoff", "2026-11-30", "command line"),
+        ("window_start", "2026-11-01", "default"),
+        ("entity", "Harbourview Mutual", "command line"),
+        ("journal_style", "incremental", "default"),
+        ("daily", "false", "default"),
+        ("decimal_comma", "false", "default"),
+        ("statement_end", "inclusive", "default"),
+        ("fail_on_variance", "false", "default"),
+        (
+            "tolerance_amount",
+            "one minor unit of each row's currency",
+            "default",
+        ),
+        ("tolerance_bp", "0.5", "command line"),
+    ];
+    for (name, value, source) in want {
+        assert_eq!(
+            got.get(name),
+            Some(&(value, source)),
+            "setting {name}: {got:?}"
+        );
+    }
+    assert_eq!(got.len(), want.len(), "{got:?}");
+}
+
+#[test]
+fn settings_from_a_books_settings_sheet_are_recorded_as_such() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("good.xlsx");
+    let book =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/books/harbourview_good.xlsx");
+    ledgerate()
+        .arg("run")
+        .arg(&book)
+        .args(["--fixed-time", "2026-12-01T08:00:00", "--out"])
+        .arg(&out)
+        .assert()
+        .code(predicate::in_iter([0, 1]));
+    let (_, _, settings) = run_sheet(&out);
+    let got: std::collections::BTreeMap<&str, (&str, &str)> = settings
+        .iter()
+        .map(|r| (r[0].as_str(), (r[1].as_str(), r[2].as_str())))
+        .collect();
+    for (name, value) in [
+        ("cutoff", "2026-11-30"),
+        ("window_start", "2026-11-01"),
+        ("tolerance_amount", "0.01"),
+        ("tolerance_bp", "0.5"),
+        ("entity", "Harbourview Mutual"),
+        ("statement_end", "exclusive"),
+    ] {
+        assert_eq!(
+            got.get(name),
+            Some(&(value, "Settings sheet")),
+            "setting {name}: {got:?}"
+        );
+    }
+}

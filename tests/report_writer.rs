@@ -6,7 +6,7 @@ use std::io::Read;
 use std::path::Path;
 use std::str::FromStr;
 
-use calamine::{open_workbook, Data, HorizontalAlignment, Reader, Xlsx};
+use calamine::{open_workbook, open_workbook_auto, Data, HorizontalAlignment, Reader, Xlsx};
 use chrono::{NaiveDate, NaiveDateTime};
 use ledgerate::book::{Position, Problem, Severity};
 use ledgerate::report::model::*;
@@ -832,23 +832,33 @@ fn the_template_has_every_sheet_and_column_of_an_account_book() {
 }
 
 #[test]
-fn a_failed_write_names_the_sheet_and_row_and_leaves_nothing_behind() {
+fn a_text_longer_than_a_cell_is_cut_with_one_warning_not_a_failed_write() {
     let dir = tempfile::tempdir().unwrap();
     let target = dir.path().join("reconciliation.xlsx");
     let mut r = report();
-    // Longer than a spreadsheet cell holds.
-    r.journal[1].memo = "x".repeat(40_000);
-    let e = write_report(&r, &target).unwrap_err();
-    assert!(
-        matches!(&e, ReportError::Sheet { sheet, row: Some(3), .. } if sheet == "Journal"),
-        "{e}"
+    // Longer than a spreadsheet cell holds (32,767 characters).
+    r.journal[1].memo = "Harbourview Mutual memo ".repeat(2_000);
+    let outcome = write_report(&r, &target).unwrap();
+    let note = outcome
+        .cut_text_problem
+        .expect("a warning for the cut text");
+    assert_eq!(note.severity, Severity::Warning);
+    assert_eq!(
+        (note.position.sheet.as_str(), note.position.cell.as_str()),
+        ("Journal", "G3")
     );
-    assert!(
-        e.to_string()
-            .starts_with("could not write sheet Journal row 3: "),
-        "{e}"
-    );
-    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+    assert!(note.fix.starts_with("1 text is cut to fit"), "{}", note.fix);
+    let mut wb = open_workbook_auto(&target).unwrap();
+    let journal = wb.worksheet_range("Journal").unwrap();
+    let memo = journal.get_value((2, 6)).unwrap().to_string();
+    assert_eq!(memo.chars().count(), 32_767);
+    assert!(memo.ends_with('…') && memo.starts_with("Harbourview Mutual memo "));
+    let problems = wb.worksheet_range("Problems").unwrap();
+    assert!(problems
+        .rows()
+        .any(|row| row[2] == "Journal" && row[3] == "G3"));
+    // Only the workbook: no temporary file is left beside it.
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
 }
 
 #[cfg(unix)]

@@ -162,20 +162,27 @@ pub fn run_books(
     // same period are one posting: a correction and its reversal, say).
     let actual: Vec<HashMap<&str, Vec<ActualPosting>>> =
         books.iter().map(actual_postings).collect();
-    let work: Vec<(usize, &AccountEntry)> = books
+    type Work<'b> = (
+        usize,
+        &'b Book,
+        &'b HashMap<&'b str, Vec<ActualPosting>>,
+        &'b AccountEntry,
+    );
+    let work: Vec<Work<'_>> = books
         .iter()
+        .zip(&actual)
         .enumerate()
-        .flat_map(|(bi, b)| b.accounts.iter().map(move |a| (bi, a)))
-        .filter(|(_, a)| in_shard(&a.terms.id, settings.shard))
+        .flat_map(|(bi, (b, posted))| b.accounts.iter().map(move |a| (bi, b, posted, a)))
+        .filter(|(_, _, _, a)| in_shard(&a.terms.id, settings.shard))
         .collect();
     let outcomes: Vec<Result<Outcome, Box<Problem>>> = work
         .par_iter()
         .with_min_len(64)
-        .map(|&(bi, entry)| {
+        .map(|&(_, book, posted, entry)| {
             let r = accrue_one(
-                &books[bi],
+                book,
                 entry,
-                actual[bi].get(entry.terms.id.as_str()),
+                posted.get(entry.terms.id.as_str()),
                 options,
                 &settings.tolerance,
             );
@@ -196,7 +203,7 @@ pub fn run_books(
     let mut totals: BTreeMap<String, CurrencyTotal> = BTreeMap::new();
     let mut daily = Vec::new();
     let mut counts: BTreeMap<Status, usize> = BTreeMap::new();
-    for ((bi, entry), outcome) in work.iter().zip(outcomes) {
+    for (&(bi, _, _, entry), outcome) in work.iter().zip(outcomes) {
         match outcome {
             Ok(o) => {
                 let t = totals
@@ -215,7 +222,7 @@ pub fn run_books(
                 t.accrued_at_cutoff += o.line.accrued_at_cutoff;
                 t.posted_in_window += o.line.posted_in_window;
                 t.interest_for_window += o.line.interest_for_window;
-                let entity = settings.entities.get(*bi).map_or("default", String::as_str);
+                let entity = settings.entities.get(bi).map_or("default", String::as_str);
                 journal.add_account(
                     &AccountEntries {
                         entity,

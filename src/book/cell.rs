@@ -9,11 +9,11 @@
 //! exists.
 
 use calamine::{Data, DataRef, ExcelDateTime};
-use chrono::{NaiveDate, NaiveDateTime, NaiveTime};
+use chrono::{Datelike, NaiveDate, NaiveDateTime, NaiveTime};
 use rust_decimal::prelude::ToPrimitive;
 use rust_decimal::Decimal;
 
-use super::number::decimal_from_float;
+use super::number::{date_serial_plausible, decimal_from_float};
 
 /// The longest found value shown in a message, in characters.
 const SHOWN_CHARS: usize = 60;
@@ -33,6 +33,9 @@ pub(crate) enum Cell {
     Date(NaiveDate),
     /// A real date cell with a time of day.
     DateTime(NaiveDateTime),
+    /// A date cell whose serial number is no calendar date (negative, or
+    /// past 9999-12-31); the serial as stored is kept.
+    BadDate(String),
     /// A duration cell (`[h]:mm:ss`).
     Duration(String),
     /// A boolean cell.
@@ -128,7 +131,7 @@ impl Cell {
             Cell::Empty => String::new(),
             Cell::Text(s) => shown(s.trim()),
             Cell::Number(d) => d.to_string(),
-            Cell::BadNumber(s) | Cell::Duration(s) | Cell::Error(s) => shown(s),
+            Cell::BadNumber(s) | Cell::BadDate(s) | Cell::Duration(s) | Cell::Error(s) => shown(s),
             Cell::Date(d) => d.to_string(),
             Cell::DateTime(d) => d.format("%Y-%m-%d %H:%M:%S").to_string(),
             Cell::Bool(true) => "TRUE".to_string(),
@@ -150,9 +153,14 @@ fn date_cell(dt: NaiveDateTime) -> Cell {
 /// duration is not. The workbook's 1900 or 1904 system is inside the value.
 fn excel_date_cell(d: &ExcelDateTime) -> Cell {
     if d.is_datetime() {
+        // The calendar arithmetic is only asked about serials that can be
+        // dates: a huge one would overflow it.
+        if !date_serial_plausible(d.as_f64()) {
+            return Cell::BadDate(d.to_string());
+        }
         match d.as_datetime() {
-            Some(dt) => date_cell(dt),
-            None => Cell::BadNumber(d.to_string()),
+            Some(dt) if (1900..=9999).contains(&dt.year()) => date_cell(dt),
+            _ => Cell::BadDate(d.to_string()),
         }
     } else {
         Cell::Duration(d.to_string())
@@ -248,7 +256,7 @@ pub(crate) fn decimal(cell: &Cell, style: NumberStyle) -> Result<Option<Decimal>
             "a number of at most 28 significant digits",
             "check the value; it is too large, too small or not a number",
         )),
-        Cell::Date(_) | Cell::DateTime(_) => Err(Issue::new(
+        Cell::Date(_) | Cell::DateTime(_) | Cell::BadDate(_) => Err(Issue::new(
             cell.shown(),
             "a number, not a date",
             "format the cell as a number (it holds a date format)",
@@ -309,6 +317,11 @@ pub(crate) fn date(cell: &Cell) -> Result<Option<NaiveDate>, Issue> {
             cell.shown(),
             "a date without a time of day",
             "remove the time of day, or write the date as YYYY-MM-DD",
+        )),
+        Cell::BadDate(serial) => Err(Issue::new(
+            format!("date serial {}", shown(serial)),
+            "a date from 1900-01-01 to 9999-12-31",
+            "the cell's date number is outside the spreadsheet calendar, so it is no date: type the date again, or write it as YYYY-MM-DD",
         )),
         Cell::Error(e) => Err(error_cell(e)),
         other => Err(Issue::new(other.shown(), EXPECTED, "write the date as YYYY-MM-DD, for example 2026-01-31")),

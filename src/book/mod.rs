@@ -23,4 +23,4 @@ mod table;
 pub use model::{
     AccountEntry, Book, GlCodes, Position, Problem, SettingRow, Severity, StatementRow,
 };
-pub use read::{check_unique_ids, read_book, ReadOptions};
+pub use read::{check_unique_ids, contract_violations, read_book, ReadOptions};

@@ -173,4 +173,12 @@ impl Book {
     pub fn has_errors(&self) -> bool {
         self.problems.iter().any(|p| p.severity == Severity::Error)
     }
+
+    /// Whether the file itself could not be read as a book (not a workbook,
+    /// empty, truncated, unreadable): an error that names no sheet.
+    pub fn unreadable(&self) -> bool {
+        self.problems
+            .iter()
+            .any(|p| p.severity == Severity::Error && p.position.sheet.is_empty())
+    }
 }

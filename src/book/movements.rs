@@ -45,6 +45,8 @@ pub(crate) fn read(
 ) -> Option<Movements> {
     let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
     let mut out = Movements::default();
+    // A ragged row of an account is missing from its figures.
+    out.spoiled.extend(table.skipped_accounts().iter().cloned());
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some(id) = f.required_text(ACCOUNT) else {

@@ -37,6 +37,19 @@ pub(crate) fn decimal_from_float(value: f64) -> Option<Decimal> {
     })
 }
 
+/// The largest date serial of a workbook: 9999-12-31 in the 1900 system
+/// (the 1904 system's last serial is smaller, and the date check after the
+/// conversion catches the days between).
+const LAST_SERIAL: f64 = 2_958_465.0;
+
+/// Whether a date cell's serial number can be a calendar date at all: from
+/// 0 up to 9999-12-31's serial plus its last second. Anything else (negative,
+/// millions of days, NaN) is no date, and is refused before any calendar
+/// arithmetic sees it.
+pub(crate) fn date_serial_plausible(value: f64) -> bool {
+    value.is_finite() && (0.0..LAST_SERIAL + 1.0).contains(&value)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -44,6 +57,17 @@ mod tests {
 
     fn d(s: &str) -> Decimal {
         Decimal::from_str(s).unwrap()
+    }
+
+    #[test]
+    fn date_serials_past_the_calendar_are_not_plausible() {
+        assert!(date_serial_plausible(46_022.0)); // 2025-12-31
+        assert!(date_serial_plausible(2_958_465.5));
+        assert!(!date_serial_plausible(2_958_466.0));
+        assert!(!date_serial_plausible(3_000_000.0));
+        assert!(!date_serial_plausible(-1.0));
+        assert!(!date_serial_plausible(-1e300));
+        assert!(!date_serial_plausible(f64::NAN));
     }
 
     #[test]

@@ -84,13 +84,15 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
         rates: &rates,
         calendars: &calendars,
     };
-    let Some(found) =
-        sheet(SheetKind::Accounts).and_then(|s| accounts::read(ctx, s, &others, problems))
-    else {
+    let accounts_sheet = sheet(SheetKind::Accounts);
+    let Some(found) = accounts_sheet.and_then(|s| accounts::read(ctx, s, &others, problems)) else {
         book.rates = rates.schedules;
         book.settings = settings.rows;
         return book;
     };
+    if let Some(s) = accounts_sheet.filter(|s| s.rows.len() == 1) {
+        no_account_rows(&name, s, problems);
+    }
     let mut rejected: BTreeSet<String> = found.rejected;
     let mut entries = found.entries;
 
@@ -124,6 +126,24 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     book
 }
 
+/// An Accounts sheet with a header and nothing under it: the book computes
+/// nothing, which is worth a warning (a filter or a wrong sheet saved?).
+fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
+    let below = sheet.rows.first().map_or(1, |h| h.index.saturating_add(1));
+    problems.push(Problem {
+        severity: Severity::Warning,
+        position: Position {
+            book: book.to_string(),
+            sheet: sheet.name.clone(),
+            cell: source::a1_row(below),
+        },
+        account: None,
+        found: "a header row and no account rows".to_string(),
+        expected: "one row per account under the header".to_string(),
+        fix: "add the accounts (check the sheet was not saved filtered), or leave this book out of the run".to_string(),
+    });
+}
+
 /// A Movements or Statements sheet that cannot be read as a table leaves
 /// every account's balance or postings unknown: each account gets an error.
 fn unusable_sheet(
@@ -147,6 +167,76 @@ fn unusable_sheet(
         });
         rejected.insert(e.terms.id.clone());
     }
+}
+
+/// The row number of an A1 cell (`F12`) or row (`12:12`); `None` for a
+/// whole sheet or file.
+fn row_of(cell: &str) -> Option<&str> {
+    let row = cell
+        .split(':')
+        .next()?
+        .trim_start_matches(|c: char| c.is_ascii_uppercase());
+    (!row.is_empty()).then_some(row)
+}
+
+/// What [`read_book`] promises about any book it returns, checked: every
+/// problem names the book it was given; an account that an error names is
+/// not in `accounts`, except for the error on a second row with its id (the
+/// first row stands); movements and statement rows belong to kept accounts.
+/// Returns one line per broken promise, so fuzzing and tests can assert
+/// the list is empty.
+///
+/// ```
+/// use std::path::Path;
+/// use ledgerate::book::{contract_violations, read_book, ReadOptions};
+///
+/// let book = read_book(Path::new("tests/fixtures/books/harbourview_broken.xlsx"), &ReadOptions::default());
+/// assert!(book.has_errors());
+/// assert_eq!(contract_violations(&book), Vec::<String>::new());
+/// ```
+pub fn contract_violations(book: &Book) -> Vec<String> {
+    let mut out = Vec::new();
+    let name = book.path.display().to_string();
+    for p in book.problems.iter().filter(|p| p.position.book != name) {
+        out.push(format!("a problem names another book: {p}"));
+    }
+    let kept: HashMap<&str, &Position> = book
+        .accounts
+        .iter()
+        .map(|a| (a.terms.id.as_str(), &a.position))
+        .collect();
+    for p in book
+        .problems
+        .iter()
+        .filter(|p| p.severity == Severity::Error)
+    {
+        let Some(at) = p.account.as_deref().and_then(|id| kept.get(id)) else {
+            continue;
+        };
+        let duplicate_row =
+            p.position.sheet == at.sheet && row_of(&p.position.cell) != row_of(&at.cell);
+        if !duplicate_row {
+            out.push(format!("an account is kept despite: {p}"));
+        }
+    }
+    for id in book
+        .movements
+        .keys()
+        .filter(|id| !kept.contains_key(id.as_str()))
+    {
+        out.push(format!("movements of an account left out: {id}"));
+    }
+    for s in book
+        .statements
+        .iter()
+        .filter(|s| !kept.contains_key(s.account.as_str()))
+    {
+        out.push(format!(
+            "a statement row of an account left out: {}",
+            s.account
+        ));
+    }
+    out
 }
 
 /// Makes account ids unique across the books of a run: the second and later

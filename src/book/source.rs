@@ -679,6 +679,14 @@ fn check_required(book: &str, loaded: &mut Loaded, csv: bool) {
         if loaded.sheets.iter().any(|s| s.kind == kind) {
             continue;
         }
+        // A sheet or file that is there but could not be read already has
+        // its error; "no such sheet" would send the user looking for it.
+        let unreadable = loaded.problems.iter().any(|p| {
+            p.severity == Severity::Error && SheetKind::from_name(&p.position.sheet) == Some(kind)
+        });
+        if unreadable {
+            continue;
+        }
         let wanted = if csv {
             format!("{}.csv", kind.label().to_lowercase())
         } else {
@@ -709,7 +717,16 @@ fn check_required(book: &str, loaded: &mut Loaded, csv: bool) {
                 cell: String::new(),
             },
             &found,
-            &format!("a {} {}", wanted, if csv { "file" } else { "sheet" }),
+            &format!(
+                "{} {} {}",
+                if wanted.starts_with(['A', 'a']) {
+                    "an"
+                } else {
+                    "a"
+                },
+                wanted,
+                if csv { "file" } else { "sheet" }
+            ),
             &fix,
         );
     }

@@ -48,6 +48,8 @@ pub(crate) fn read(
 ) -> Option<Statements> {
     let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
     let mut out = Statements::default();
+    // A ragged row of an account is missing from its figures.
+    out.spoiled.extend(table.skipped_accounts().iter().cloned());
     // Per account: (start, end, row cell of the end) of rows kept so far.
     let mut periods: BTreeMap<String, Vec<(NaiveDate, NaiveDate, String)>> = BTreeMap::new();
     for rec in table.records() {

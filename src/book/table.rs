@@ -116,6 +116,8 @@ pub(crate) struct Table<'s> {
     by_col: HashMap<u32, usize>,
     /// Rows left out (a ragged CSV record), by row index.
     skipped: Vec<u32>,
+    /// The accounts those rows name, when their account field could be read.
+    skipped_accounts: Vec<String>,
 }
 
 /// One data row, its cells in the order of the columns asked for.
@@ -344,7 +346,7 @@ impl<'s> Table<'s> {
         if !ok {
             return None;
         }
-        let skipped = ragged_rows(ctx, sheet, first, columns, &at, problems);
+        let (skipped, skipped_accounts) = ragged_rows(ctx, sheet, first, columns, &at, problems);
         // Values under no header at all.
         let headed: Vec<u32> = first.cells.iter().map(|(c, _)| *c).collect();
         if let Some((r, c)) = sheet
@@ -372,7 +374,14 @@ impl<'s> Table<'s> {
             at,
             by_col,
             skipped,
+            skipped_accounts,
         })
+    }
+
+    /// The accounts named by rows that were left out as ragged: a movement
+    /// or statement row of theirs is missing, so they cannot be computed.
+    pub(crate) fn skipped_accounts(&self) -> &[String] {
+        &self.skipped_accounts
     }
 
     /// Whether column `i` is in the sheet.
@@ -433,7 +442,8 @@ impl<'s> Table<'s> {
 
 /// CSV records with fewer fields than the header names, or values beyond
 /// its last field: each is an error naming the file and row, and is left
-/// out (its values cannot be put in their columns with certainty).
+/// out (its values cannot be put in their columns with certainty). Returns
+/// their row indexes and the accounts they name.
 fn ragged_rows(
     ctx: &Ctx<'_>,
     sheet: &Sheet,
@@ -441,15 +451,16 @@ fn ragged_rows(
     columns: &[Column],
     at: &[Option<u32>],
     problems: &mut Vec<Problem>,
-) -> Vec<u32> {
+) -> (Vec<u32>, Vec<String>) {
     let Some(head) = header.shape else {
-        return Vec::new();
+        return (Vec::new(), Vec::new());
     };
     let account_col = match columns.first() {
         Some(c) if c.name == "account" => at.first().copied().flatten(),
         _ => None,
     };
     let mut skipped = Vec::new();
+    let mut accounts = Vec::new();
     for row in sheet.rows.iter().filter(|r| r.index > header.index) {
         let Some(shape) = row.shape else { continue };
         if shape.fields >= head.filled && shape.filled <= head.fields {
@@ -468,8 +479,9 @@ fn ragged_rows(
             "give the row one field per header column (quote a field that holds a comma); the row is not read",
         ));
         skipped.push(row.index);
+        accounts.extend(account);
     }
-    skipped
+    (skipped, accounts)
 }
 
 /// Reading one record's fields, collecting a problem for each bad cell.

@@ -75,7 +75,10 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         }
     }
     writeln!(out, "{total} problems, {errors} of them errors")?;
-    Ok(if errors > 0 {
+    // A file that is no book at all is a file error, not an account's.
+    Ok(if books.iter().any(crate::book::Book::unreadable) {
+        exit::USAGE
+    } else if errors > 0 {
         exit::ACCOUNT_ERRORS
     } else {
         exit::OK

@@ -58,7 +58,7 @@ fn date(what: &str, s: &str) -> Result<NaiveDate> {
 pub(crate) fn parse_iso_date(s: &str) -> Option<NaiveDate> {
     let t = s.trim();
     let b = t.as_bytes();
-    if b.len() != 10 || b[4] != b'-' || b[7] != b'-' {
+    if b.len() != 10 || b.get(4) != Some(&b'-') || b.get(7) != Some(&b'-') {
         return None;
     }
     NaiveDate::parse_from_str(t, "%Y-%m-%d").ok()

@@ -11,7 +11,7 @@ use super::daycount::parse_iso_date;
 use super::inputs::check_books_exist;
 use super::run::{tolerance, ToleranceArgs};
 use super::settings::{self, month_start, Settings};
-use super::{exit, read_books, BookArgs};
+use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::engine::causes::{likely_cause, Account};
 use crate::engine::rates::RateSource;
 use crate::engine::reconcile::{reconcile, StatementPeriod, Status};
@@ -62,6 +62,7 @@ fn fmt_amount(x: Decimal, places: u32) -> String {
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_books_exist(&args.books.books)?;
     let books = read_books(&args.books)?;
+    refuse_unreadable(&books)?;
     let (book, entry) = books
         .iter()
         .find_map(|b| {

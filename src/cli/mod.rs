@@ -66,6 +66,30 @@ pub struct BookArgs {
     decimal_comma: bool,
 }
 
+/// Refuses books whose file could not be read at all (not a workbook,
+/// empty, truncated): a run on them would compute nothing from that file,
+/// so it stops with their problems instead of writing a workbook.
+fn refuse_unreadable(books: &[crate::book::Book]) -> anyhow::Result<()> {
+    let lines: Vec<String> = books
+        .iter()
+        .filter(|b| b.unreadable())
+        .flat_map(|b| b.problems.iter().filter(|p| p.position.sheet.is_empty()))
+        .map(|p| format!("  {p}"))
+        .collect();
+    if lines.is_empty() {
+        return Ok(());
+    }
+    anyhow::bail!(
+        "cannot read {} as a book, so nothing was written:\n{}",
+        if lines.len() == 1 {
+            "this file"
+        } else {
+            "these files"
+        },
+        lines.join("\n")
+    )
+}
+
 /// Reads every book and checks that account ids are unique across them.
 fn read_books(args: &BookArgs) -> anyhow::Result<Vec<crate::book::Book>> {
     let options = crate::book::ReadOptions {

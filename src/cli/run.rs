@@ -10,7 +10,7 @@ use chrono::NaiveDateTime;
 
 use super::inputs::{check_books_exist, check_output_is_not_an_input, fingerprint};
 use super::settings::{self, month_start, Settings};
-use super::{exit, read_books, BookArgs};
+use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::batch::journal::JournalStyle;
 use crate::batch::{run_books, BatchSettings};
 use crate::book::{Problem, Severity};
@@ -131,6 +131,51 @@ pub(crate) fn tolerance(
     Ok(tol)
 }
 
+/// A yes/no option: on only from the command line.
+fn switch(on: bool) -> settings::Resolved<bool> {
+    settings::Resolved {
+        value: on,
+        source: if on {
+            crate::report::model::SettingSource::Option
+        } else {
+            crate::report::model::SettingSource::Default
+        },
+    }
+}
+
+/// How the books' Statements sheets write a period's end, as the reader
+/// applied it. Each book has its own setting, so books may differ; the Run
+/// sheet then names each book's.
+fn statement_end(books: &[crate::book::Book]) -> settings::Resolved<String> {
+    let of = |b: &crate::book::Book| {
+        b.settings
+            .iter()
+            .find(|s| s.name == "statementend")
+            .map(|s| s.value.to_ascii_lowercase())
+    };
+    let given: Vec<Option<String>> = books.iter().map(of).collect();
+    let source = if given.iter().any(Option::is_some) {
+        crate::report::model::SettingSource::Book
+    } else {
+        crate::report::model::SettingSource::Default
+    };
+    let values: Vec<String> = given
+        .into_iter()
+        .map(|v| v.unwrap_or_else(|| "inclusive".to_string()))
+        .collect();
+    let value = match values.first() {
+        Some(first) if values.iter().all(|v| v == first) => first.clone(),
+        None => "inclusive".to_string(),
+        Some(_) => books
+            .iter()
+            .zip(&values)
+            .map(|(b, v)| format!("{}: {v}", b.path.display()))
+            .collect::<Vec<_>>()
+            .join("; "),
+    };
+    settings::Resolved { value, source }
+}
+
 /// The command line as the Run sheet shows it: without the options that
 /// cannot change a figure (threads, output path).
 fn audited_command_line() -> String {
@@ -186,6 +231,7 @@ impl NoNanos for NaiveDateTime {
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_books_exist(&args.books.books)?;
     let books = read_books(&args.books)?;
+    refuse_unreadable(&books)?;
     let cutoff =
         settings::date(&books, "cutoff", args.cutoff.as_deref(), None)?.ok_or_else(|| {
             anyhow!(
@@ -245,28 +291,11 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         listed.record(&name, e);
     }
     listed.record("journal_style", &style);
-    listed.record(
-        "daily",
-        &settings::Resolved {
-            value: args.daily,
-            source: if args.daily {
-                crate::report::model::SettingSource::Option
-            } else {
-                crate::report::model::SettingSource::Default
-            },
-        },
-    );
-    listed.record(
-        "decimal_comma",
-        &settings::Resolved {
-            value: args.books.decimal_comma,
-            source: if args.books.decimal_comma {
-                crate::report::model::SettingSource::Option
-            } else {
-                crate::report::model::SettingSource::Default
-            },
-        },
-    );
+    listed.record("daily", &switch(args.daily));
+    listed.record("decimal_comma", &switch(args.books.decimal_comma));
+
+    listed.record("statement_end", &statement_end(&books));
+    listed.record("fail_on_variance", &switch(args.fail_on_variance));
 
     let tolerance = tolerance(&books, &args.tolerance, &mut listed)?;
     let shard = args.shard.as_deref().map(parse_shard).transpose()?;

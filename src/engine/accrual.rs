@@ -65,8 +65,8 @@ impl Accrual {
                 return Ok(());
             }
         }
-        if self.used < SLOTS {
-            self.parts[self.used] = (den, num);
+        if let Some(slot) = self.parts.get_mut(self.used) {
+            *slot = (den, num);
             self.used += 1;
             return Ok(());
         }
@@ -98,7 +98,7 @@ impl Accrual {
     /// # Errors
     /// [`Overflow`] past the decimal range.
     pub fn value(&self) -> Result<Decimal, Overflow> {
-        let parts = &self.parts[..self.used];
+        let parts = self.parts.get(..self.used).unwrap_or(&self.parts);
         match parts {
             [] => Ok(self.plain),
             [(den, num)] => self

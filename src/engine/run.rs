@@ -389,8 +389,10 @@ impl<'a> Loop<'a> {
                     s.day = d;
                     states.push(s);
                 }
-                unbooked = self.order[..mi]
+                unbooked = self
+                    .order
                     .iter()
+                    .take(mi)
                     .copied()
                     .filter(|&i| self.unbooked(i, period_end))
                     .collect();

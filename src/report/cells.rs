@@ -45,13 +45,21 @@ pub struct TextFigure {
     pub text: String,
 }
 
-/// The figures written as text so far.
+/// The most characters a spreadsheet cell holds; a longer text is cut.
+pub const MAX_CELL_CHARS: usize = 32_767;
+
+/// The figures written as text so far, and the texts cut to fit a cell.
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
 pub struct TextFigures {
     /// The first [`LISTED_TEXT_FIGURES`] of them, in writing order.
     pub listed: Vec<TextFigure>,
     /// How many there are in all.
     pub count: usize,
+    /// Texts longer than [`MAX_CELL_CHARS`], cut to fit: the first
+    /// [`LISTED_TEXT_FIGURES`], each with the start of its text.
+    pub cut: Vec<TextFigure>,
+    /// How many texts were cut in all.
+    pub cut_count: usize,
 }
 
 impl TextFigures {
@@ -65,6 +73,27 @@ impl TextFigures {
             });
         }
     }
+
+    fn record_cut(&mut self, sheet: &str, row: RowNum, col: ColNum, text: &str) {
+        self.cut_count = self.cut_count.saturating_add(1);
+        if self.cut.len() < LISTED_TEXT_FIGURES {
+            self.cut.push(TextFigure {
+                sheet: sheet.to_string(),
+                cell: rust_xlsxwriter::utility::row_col_to_cell(row, col),
+                text: text.chars().take(60).collect(),
+            });
+        }
+    }
+}
+
+/// `text` as a cell can hold it: unchanged, or cut to [`MAX_CELL_CHARS`]
+/// with an ellipsis as its last character so that the cut shows.
+fn fitted(text: &str) -> Option<String> {
+    // Counting stops one past the limit: a huge text is not walked twice.
+    text.chars().nth(MAX_CELL_CHARS)?;
+    let mut cut: String = text.chars().take(MAX_CELL_CHARS - 1).collect();
+    cut.push('…');
+    Some(cut)
 }
 
 /// How one decimal goes into a cell.
@@ -321,8 +350,13 @@ impl<'a> Cells<'a> {
         if text.is_empty() {
             return Ok(());
         }
-        self.seen(col, text.chars().count());
         let row = self.row;
+        let cut = fitted(text);
+        if cut.is_some() {
+            self.texts.record_cut(self.sheet, row, col, text);
+        }
+        let text = cut.as_deref().unwrap_or(text);
+        self.seen(col, text.chars().count());
         self.ws
             .write_string_with_format(row, col, text, format)
             .map_err(at(self.sheet, row))?;
@@ -360,6 +394,11 @@ impl<'a> Cells<'a> {
             return Ok(());
         }
         let row = self.row;
+        let cut = fitted(text);
+        if cut.is_some() {
+            self.texts.record_cut(self.sheet, row, col, text);
+        }
+        let text = cut.as_deref().unwrap_or(text);
         self.ws
             .write_string_with_format(row, col, text, format)
             .map_err(at(self.sheet, row))?;

@@ -77,8 +77,17 @@ pub(crate) fn save_atomically(
             source,
         }
     };
+    // A run killed mid-write leaves this file, never a partial target: its
+    // name says which output it was and that it is unfinished.
+    let prefix = format!(
+        ".{}.ledgerate-",
+        target
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default()
+    );
     let mut builder = tempfile::Builder::new();
-    builder.prefix(".ledgerate-").suffix(".partial");
+    builder.prefix(&prefix).suffix(".partial");
     if let Some(p) = output_permissions(target) {
         builder.permissions(p);
     }

@@ -129,6 +129,10 @@ pub struct WriteOutcome {
     /// when some figure was written as text. The sheet already holds it, so
     /// the run must not add it to the report again; it may print it.
     pub text_figure_problem: Option<Problem>,
+    /// The warning the writer added when some text (a name, a reference) was
+    /// longer than a cell holds and was cut; like the one above, already on
+    /// the Problems sheet.
+    pub cut_text_problem: Option<Problem>,
 }
 
 /// Writes the reconciliation workbook of `report` to `target`.
@@ -226,10 +230,13 @@ pub(crate) fn write_report_with(
         .map_err(|e| ReportError::sheet("Run", e))?;
     let run_rows = write_run(&mut run, report, &styles, &mut ctx.texts)?;
 
-    // Every figure is written by now: say once which ones are text.
+    // Every figure is written by now: say once which ones are text, and
+    // which texts were too long for a cell.
     let note = text_figure_problem(&ctx.texts, target);
+    let cut_note = cut_text_problem(&ctx.texts, target);
     let mut problems: Vec<&Problem> = report.problems.iter().collect();
     problems.extend(note.as_ref());
+    problems.extend(cut_note.as_ref());
     write_list(&mut wb, &problems_sheet(), &problems, &mut ctx)?;
 
     {
@@ -255,6 +262,7 @@ pub(crate) fn write_report_with(
         text_figures: ctx.texts.listed,
         text_figure_count: ctx.texts.count,
         text_figure_problem: note,
+        cut_text_problem: cut_note,
     })
 }
 
@@ -452,23 +460,11 @@ const NOTE_CELLS: usize = 10;
 /// The one Problems row that says which figures are text.
 fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
     let first = texts.listed.first()?;
-    let mut cells: Vec<String> = texts
-        .listed
-        .iter()
-        .take(NOTE_CELLS)
-        .map(|t| format!("{}!{}", sheet_ref(&t.sheet), t.cell))
-        .collect();
-    if texts.count > cells.len() {
-        cells.push(format!("and {} more", texts.count - cells.len()));
-    }
-    let book = target
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| target.display().to_string());
+    let cells = named_cells(&texts.listed, texts.count);
     Some(Problem {
         severity: Severity::Warning,
         position: Position {
-            book,
+            book: output_name(target),
             sheet: first.sheet.clone(),
             cell: first.cell.clone(),
         },
@@ -485,6 +481,54 @@ fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             cells.join(", ")
         ),
     })
+}
+
+/// The one Problems row that says which texts were cut to fit a cell. Texts
+/// of the Problems sheet itself are written after it and are not listed.
+fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
+    let first = texts.cut.first()?;
+    let cells = named_cells(&texts.cut, texts.cut_count);
+    Some(Problem {
+        severity: Severity::Warning,
+        position: Position {
+            book: output_name(target),
+            sheet: first.sheet.clone(),
+            cell: first.cell.clone(),
+        },
+        account: None,
+        found: format!("{}…", first.text),
+        expected: format!(
+            "a text of at most {} characters, which a spreadsheet cell holds",
+            super::cells::MAX_CELL_CHARS
+        ),
+        fix: format!(
+            "{} text{} cut to fit, ending in … ({}); the input keeps the whole text, so shorten it there if the cut matters",
+            texts.cut_count,
+            if texts.cut_count == 1 { " is" } else { "s are" },
+            cells.join(", ")
+        ),
+    })
+}
+
+/// The first cells of `listed` as `Sheet!A1`, and how many more of `count`.
+fn named_cells(listed: &[TextFigure], count: usize) -> Vec<String> {
+    let mut cells: Vec<String> = listed
+        .iter()
+        .take(NOTE_CELLS)
+        .map(|t| format!("{}!{}", sheet_ref(&t.sheet), t.cell))
+        .collect();
+    if count > cells.len() {
+        cells.push(format!("and {} more", count - cells.len()));
+    }
+    cells
+}
+
+/// The output's file name, as the Problems sheet's Book column shows it.
+fn output_name(target: &Path) -> String {
+    target
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| target.display().to_string())
 }
 
 /// The bars of the Summary chart: rows outside tolerance with a variance in

@@ -1,5 +1,6 @@
 //! Writes the account-book fixtures of `tests/book_reader.rs` under
-//! `tests/fixtures/books/`: the Harbourview Mutual books (an invented credit
+//! `tests/fixtures/books/`, and the bad-books corpus of `tests/bad_books.rs`
+//! under `tests/bad-books/` (see [`bad_books`]): the Harbourview Mutual books (an invented credit
 //! union) as xlsx, as a folder of CSV files, and (when LibreOffice is
 //! installed) as ods and xls; a broken book with planted faults; and small
 //! books for single cases (1904 dates, a #SPILL! cell, a stray far cell,
@@ -21,6 +22,8 @@ use rust_decimal::Decimal;
 use rust_xlsxwriter::{
     DocProperties, ExcelDateTime, Format, Formula, Workbook, Worksheet, XlsxError,
 };
+
+mod bad_books;
 
 type Result<T> = std::result::Result<T, Box<dyn std::error::Error>>;
 
@@ -960,6 +963,23 @@ fn patch_zip(path: &Path, patch: impl Fn(&str, String) -> String) -> Result<()> 
     Ok(())
 }
 
+/// Text as UTF-16 with a byte-order mark, little- or big-endian.
+fn utf16_bytes(text: &str, little: bool) -> Vec<u8> {
+    let mut bytes: Vec<u8> = if little {
+        vec![0xFF, 0xFE]
+    } else {
+        vec![0xFE, 0xFF]
+    };
+    for unit in text.encode_utf16() {
+        bytes.extend_from_slice(&if little {
+            unit.to_le_bytes()
+        } else {
+            unit.to_be_bytes()
+        });
+    }
+    bytes
+}
+
 /// A CSV field, quoted when it must be.
 fn csv_field(s: &str) -> String {
     if s.contains([',', '"', '\n', '\r']) {
@@ -1170,18 +1190,7 @@ fn main() -> Result<()> {
     let small = small_book(SMALL_ACCOUNTS);
     for (sheet, little) in small.iter().zip([true, false]) {
         let text = csv_lines(sheet).join("\r\n") + "\r\n";
-        let mut bytes: Vec<u8> = if little {
-            vec![0xFF, 0xFE]
-        } else {
-            vec![0xFE, 0xFF]
-        };
-        for unit in text.encode_utf16() {
-            bytes.extend_from_slice(&if little {
-                unit.to_le_bytes()
-            } else {
-                unit.to_be_bytes()
-            });
-        }
+        let bytes = utf16_bytes(&text, little);
         fs::write(
             utf16.join(format!("{}.csv", sheet.name.to_lowercase())),
             bytes,
@@ -1198,6 +1207,8 @@ fn main() -> Result<()> {
         comma.join("rates.csv"),
         "rate_ref,effective,rate_percent\r\nHM-SAV-301,2026-01-01,\"2,50\"\r\n",
     )?;
+
+    bad_books::write(Path::new("tests/bad-books"))?;
     Ok(())
 }
 
