@@ -258,6 +258,7 @@ fn accrue_one(
         debit_rates: debit,
         movements,
         actual: actual.map_or(&[][..], Vec::as_slice),
+        floating: None,
     };
     let r: AccountResult = accrue(t, sources, options).map_err(|e| problem(&e))?;
     let rows = reconcile(
@@ -279,6 +280,7 @@ fn accrue_one(
         movements,
         actual: sources.actual,
         states: &r.states,
+        floating: None,
     };
     let reconciliation = rows
         .iter()
@@ -438,6 +440,10 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Box<Problem> {
         EngineError::Unsupported(_) => (
             "terms the engine supports".to_string(),
             "change the account's terms; see docs/user-guide.md for the supported combinations".to_string(),
+        ),
+        EngineError::MissingFixing { index, date } => (
+            format!("a {index} fixing for {date} on the Fixings sheet"),
+            format!("add the {index} fixing for {date} to the Fixings sheet, or run with --fixing-fallback last to use the last one published"),
         ),
         EngineError::DayCount(_) | EngineError::Schedule(_) => (
             "terms the basis and schedule need".to_string(),

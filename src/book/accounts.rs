@@ -292,6 +292,7 @@ fn account(
     };
 
     let terms = AccountTerms {
+        floating: crate::engine::FloatingTerms::default(),
         id: id.to_string(),
         currency: code,
         minor_units,

@@ -144,6 +144,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         debit_rates: debit.map(|d| d as &dyn RateSource),
         movements,
         actual: &actual,
+        floating: None,
     };
     let options = RunOptions {
         window_start,
@@ -246,6 +247,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         movements,
         actual: &actual,
         states: &r.states,
+        floating: None,
     };
     for row in rows
         .iter()

@@ -32,6 +32,8 @@ pub struct Account<'a> {
     pub actual: &'a [ActualPosting],
     /// States saved at each period start by the original run.
     pub states: &'a [AccrualState],
+    /// A floating account's tables and fixings (then `rates` is not used).
+    pub floating: Option<super::floating::FloatingRates<'a>>,
 }
 
 /// One change tried.
@@ -300,6 +302,7 @@ pub fn likely_cause(a: &Account, row: &Reconciled, tolerance: &Tolerance) -> Str
             debit_rates: a.debit_rates.map(|r| r as &dyn super::rates::RateSource),
             movements,
             actual: a.actual,
+            floating: a.floating,
         };
         let options = RunOptions {
             window_start: ps,

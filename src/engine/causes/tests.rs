@@ -68,6 +68,7 @@ fn posted_with(
         debit_rates: None,
         movements,
         actual: &[],
+        floating: None,
     };
     let r = accrue(terms, src, options()).unwrap();
     match period {
@@ -90,6 +91,7 @@ fn explain(c: &Case, posted: Decimal, tolerance: Tolerance) -> (Status, String) 
         debit_rates: None,
         movements: &c.movements,
         actual: &[],
+        floating: None,
     };
     let r = accrue(&c.terms, src, options()).unwrap();
     let st = [StatementPeriod {
@@ -115,6 +117,7 @@ fn explain(c: &Case, posted: Decimal, tolerance: Tolerance) -> (Status, String) 
         movements: &c.movements,
         actual: &[],
         states: &r.states,
+        floating: None,
     };
     (row.status, likely_cause(&a, row, &tolerance))
 }

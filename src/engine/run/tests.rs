@@ -49,6 +49,7 @@ fn run_with(
         debit_rates: None,
         movements,
         actual: &[],
+        floating: None,
     };
     accrue(t, src, o).unwrap()
 }
@@ -182,6 +183,7 @@ fn section_3_act_act_icma_regular_and_stub() {
         debit_rates: None,
         movements: &[],
         actual: &[],
+        floating: None,
     };
     assert!(matches!(
         accrue(&none, src, opts("2026-12-01", "2026-12-31")),
@@ -209,6 +211,7 @@ fn section_4_a_day_without_rates_is_an_error() {
         debit_rates: None,
         movements: &[],
         actual: &[],
+        floating: None,
     };
     let e = accrue(&t, src, opts("2026-11-01", "2026-11-30")).unwrap_err();
     assert_eq!(
@@ -235,6 +238,7 @@ fn section_4_a_debit_rate_applies_to_an_overdrawn_base() {
         debit_rates: Some(&debit),
         movements: &[],
         actual: &[],
+        floating: None,
     };
     let r = accrue(&t, src, opts("2026-11-01", "2026-11-30")).unwrap();
     assert_eq!(r.postings[0].posted, n("-360.00"));
@@ -284,6 +288,7 @@ fn section_6_the_actual_posting_feeds_capitalisation() {
         debit_rates: None,
         movements: &[],
         actual: &actual,
+        floating: None,
     };
     let r = accrue(&t, src, opts("2026-11-01", "2026-11-30")).unwrap();
     assert_eq!(r.postings[0].expected, n("310.00"));
@@ -376,6 +381,7 @@ fn a_saved_state_resumes_to_the_same_figures() {
         debit_rates: None,
         movements: &moves,
         actual: &[],
+        floating: None,
     };
     let again = resume(&t, src, opts("2026-11-01", "2026-11-30"), sep).unwrap();
     assert_eq!(again.postings[..], full.postings[2..]);
@@ -399,6 +405,7 @@ fn overflow_is_an_error() {
         debit_rates: None,
         movements: &[mv("2026-11-02", "1", None)],
         actual: &[],
+        floating: None,
     };
     assert!(matches!(
         accrue(&t, src, opts("2026-11-01", "2026-11-30")),
@@ -614,7 +621,7 @@ proptest! {
     #[test]
     fn the_fast_path_equals_the_day_loop((t, rates, movements, cutoff) in any_account()) {
         let run = |fast: bool| {
-            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[] };
+            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[], floating: None };
             let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, fast_path: fast };
             accrue(&t, src, o)
         };
