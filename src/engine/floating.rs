@@ -4,10 +4,11 @@
 //!
 //! A floating account's rates depend on its calendar, its posting periods
 //! and its lookback, shift and lockout terms, so they are resolved once per
-//! run ([`resolve`]) into an ordinary [`RateSchedule`] with one table per
-//! change: the day loop, the exact accumulator and the one-step fast path
-//! then treat them like any fixed schedule, and a run of days whose rate does
-//! not change is still one step.
+//! run ([`resolve`]) into an ordinary [`RateSchedule`]: the day loop, the
+//! exact accumulator and the one-step fast path then treat them like any
+//! fixed schedule. Simple-daily rates get one table per change, so a weekend
+//! is still one step; compounded rates one table per day, so the fast path
+//! takes their days singly (see `Resolver::push`).
 //!
 //! Simple-daily: day D earns the fixing of the business day on or before D,
 //! looked back, bounded by any floor and cap, plus the spread.
@@ -566,15 +567,22 @@ impl Resolver<'_> {
         }
     }
 
-    /// Adds the day's table, merged with the previous one when equal.
+    /// Adds the day's table. Simple-daily rates (a fixing plus a spread, as
+    /// short as a fixed rate) merge with the previous day's when equal, so a
+    /// run of equal days is one step of the fast path. Compounded rates carry
+    /// the factor's 28 digits, and summing several days of them at once would
+    /// round differently from the day loop: each day keeps its own table, and
+    /// the fast path takes them one day at a time.
     fn push(&mut self, day: NaiveDate, tiers: Vec<Tier>, used: Option<FixingUsed>) {
         if let Some(u) = used {
             self.used.insert(day, u);
         }
-        let same = self
-            .tables
-            .last()
-            .is_some_and(|t| t.tiers == tiers && t.effective < day);
+        let merge = self.terms.floating.method == RateMethod::SimpleDaily;
+        let same = merge
+            && self
+                .tables
+                .last()
+                .is_some_and(|t| t.tiers == tiers && t.effective < day);
         if !same {
             self.tables.push(RateTable {
                 effective: day,
@@ -750,7 +758,7 @@ impl Resolver<'_> {
         let obs_days = (obs_end - obs_start).num_days();
         if obs_days <= 0 {
             return Err(EngineError::Unsupported(format!(
-                "an observation period {obs_start}..{obs_end} without days"
+                "observation_shift on the period from {start} to the day before {end}: it holds no business day, so its observation period ({obs_start} to {obs_end}) has no days"
             )));
         }
         for (s, e) in self.intervals(obs_start, Some(obs_end), last)? {

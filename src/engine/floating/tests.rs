@@ -389,3 +389,330 @@ fn the_daily_factor_table_of_the_first_case() {
     // Final factor 1.000085003386735: the period's interest is 0.85003387 to 8 places.
     assert_close(r.postings[0].interest, "0.8500338673", "1e-10");
 }
+
+/// Harbourview Mutual's invented overnight index "HVM-ON" over November
+/// 2026, in percent: weekdays only (the account's calendar has weekends only
+/// plus 26 November), with negative prints in the first week.
+fn harbourview_fixings() -> Fixings {
+    let rows: &[(&str, &str)] = &[
+        ("2026-10-29", "-0.12"),
+        ("2026-10-30", "-0.10"),
+        ("2026-11-02", "-0.05"),
+        ("2026-11-03", "-0.02"),
+        ("2026-11-04", "0.01"),
+        ("2026-11-05", "0.15"),
+        ("2026-11-06", "0.40"),
+        ("2026-11-09", "4.95"),
+        ("2026-11-10", "5.05"),
+        ("2026-11-11", "5.31"),
+        ("2026-11-12", "5.12"),
+        ("2026-11-13", "4.98"),
+        ("2026-11-16", "4.90"),
+    ];
+    let series = rows
+        .iter()
+        .map(|(day, pct)| (d(day), n(pct) / Decimal::ONE_HUNDRED))
+        .collect();
+    BTreeMap::from([("HVM-ON".to_string(), series)])
+}
+
+fn harbourview_rate(spread_bp: &str, floor: Option<&str>, cap: Option<&str>) -> FloatingSchedule {
+    let pct = |s: &str| n(s) / Decimal::ONE_HUNDRED;
+    schedule(TierRate::Index(IndexRate {
+        index: "HVM-ON".into(),
+        spread: n(spread_bp) / Decimal::from(10_000),
+        floor: floor.map(pct),
+        cap: cap.map(pct),
+    }))
+}
+
+fn harbourview_loan(method: RateMethod) -> AccountTerms {
+    let mut t = AccountTerms::new(
+        "HVM-L7",
+        "USD",
+        2,
+        Basis::Act360,
+        d("2026-11-02"),
+        n("250000"),
+    );
+    t.calendar = Arc::new(Calendar::new("HVM", [d("2026-11-26")]));
+    t.floating.method = method;
+    t
+}
+
+fn day_rate(r: &AccountResult, day: &str) -> Decimal {
+    r.days.iter().find(|x| x.date == d(day)).unwrap().rate
+}
+
+/// Section 10: a floor bounds each looked-back fixing before the spread: a
+/// negative fixing floored at zero earns the spread alone.
+#[test]
+fn a_floor_at_zero_on_a_negative_fixing() {
+    let t = harbourview_loan(RateMethod::SimpleDaily);
+    let fx = harbourview_fixings();
+    let floored = run(
+        &t,
+        &harbourview_rate("150", Some("0"), None),
+        &fx,
+        "2026-11-06",
+    );
+    assert_eq!(day_rate(&floored, "2026-11-02"), n("0.015"));
+    assert_eq!(day_rate(&floored, "2026-11-04"), n("0.0151"));
+    let bare = run(&t, &harbourview_rate("150", None, None), &fx, "2026-11-06");
+    assert_eq!(day_rate(&bare, "2026-11-02"), n("0.0145"));
+    // 250,000 x 1.50% x 1/360 on 2 November, exactly.
+    let first = floored.days.first().unwrap();
+    assert_eq!(
+        (first.interest_num, first.interest_den),
+        (n("3750.000"), 360)
+    );
+    // floor_on all-in bounds index plus spread: -0.05% + 0.03% is floored to 0.
+    let mut all_in = t.clone();
+    all_in.floating.floor_on = FloorOn::AllIn;
+    let r = run(
+        &all_in,
+        &harbourview_rate("3", Some("0"), None),
+        &fx,
+        "2026-11-06",
+    );
+    assert_eq!(day_rate(&r, "2026-11-02"), Decimal::ZERO);
+    assert_eq!(day_rate(&r, "2026-11-05"), n("0.0018"));
+}
+
+/// Section 10: a cap bounds the fixing before the spread.
+#[test]
+fn a_cap_bounds_the_fixing() {
+    let t = harbourview_loan(RateMethod::SimpleDaily);
+    let r = run(
+        &t,
+        &harbourview_rate("25", None, Some("5")),
+        &harbourview_fixings(),
+        "2026-11-13",
+    );
+    assert_eq!(day_rate(&r, "2026-11-09"), n("0.052"));
+    assert_eq!(day_rate(&r, "2026-11-11"), n("0.0525"));
+    assert_eq!(day_rate(&r, "2026-11-13"), n("0.0523"));
+}
+
+/// Section 10: a floor under compounding bounds each fixing before it
+/// compounds: the period equals the same period on the floored fixings.
+#[test]
+fn a_floor_under_compounding_bounds_each_fixing() {
+    let t = harbourview_loan(RateMethod::CompoundedInArrears);
+    let fx = harbourview_fixings();
+    let floored = run(
+        &t,
+        &harbourview_rate("0", Some("0"), None),
+        &fx,
+        "2026-11-13",
+    );
+    let mut by_hand = fx.clone();
+    for r in by_hand.values_mut().flat_map(|s| s.values_mut()) {
+        *r = (*r).max(Decimal::ZERO);
+    }
+    let plain = run(
+        &t,
+        &harbourview_rate("0", None, None),
+        &by_hand,
+        "2026-11-13",
+    );
+    assert_eq!(floored.accrued_at_cutoff, plain.accrued_at_cutoff);
+    let figures = |r: &AccountResult| -> Vec<(NaiveDate, Decimal, Decimal)> {
+        r.days.iter().map(|x| (x.date, x.rate, x.accrued)).collect()
+    };
+    assert_eq!(figures(&floored), figures(&plain));
+    // The day shows the fixing as published, before the floor.
+    assert_eq!(floored.days[0].fixing.as_ref().unwrap().rate, n("-0.0005"));
+}
+
+/// Section 10, simple-daily: a weekend day earns the Friday fixing, looked
+/// back two business days.
+#[test]
+fn simple_daily_lookback_over_a_weekend() {
+    let mut t = harbourview_loan(RateMethod::SimpleDaily);
+    t.floating.lookback_days = 2;
+    let r = run(
+        &t,
+        &harbourview_rate("0", None, None),
+        &harbourview_fixings(),
+        "2026-11-09",
+    );
+    let used = |day: &str| {
+        let x = r.days.iter().find(|x| x.date == d(day)).unwrap();
+        (x.fixing.as_ref().unwrap().date, x.rate)
+    };
+    assert_eq!(used("2026-11-02"), (d("2026-10-29"), n("-0.0012")));
+    assert_eq!(used("2026-11-07"), (d("2026-11-04"), n("0.0001")));
+    assert_eq!(used("2026-11-08"), (d("2026-11-04"), n("0.0001")));
+    assert_eq!(used("2026-11-09"), (d("2026-11-05"), n("0.0015")));
+}
+
+/// Section 10: a missing fixing is an error naming the index and the date;
+/// with the `last` fallback the last published fixing stands in, and the
+/// substitution is reported.
+#[test]
+fn a_missing_fixing_names_the_index_and_date() {
+    let t = harbourview_loan(RateMethod::SimpleDaily);
+    let s = harbourview_rate("0", None, None);
+    let fx = harbourview_fixings();
+    let empty = RateSchedule::default();
+    let go = |fallback| {
+        let src = Sources {
+            rates: &empty,
+            debit_rates: None,
+            movements: &[],
+            actual: &[],
+            floating: Some(FloatingRates {
+                schedule: &s,
+                fixings: &fx,
+                fallback,
+            }),
+        };
+        let mut o = RunOptions::month_end(d("2026-11-18"));
+        o.keep_days = true;
+        accrue(&t, src, o)
+    };
+    let e = go(FixingFallback::None).unwrap_err();
+    assert_eq!(
+        e,
+        EngineError::MissingFixing {
+            index: "HVM-ON".into(),
+            date: d("2026-11-17")
+        }
+    );
+    assert_eq!(e.to_string(), "no HVM-ON fixing for 2026-11-17");
+    let r = go(FixingFallback::Last).unwrap();
+    let want: Vec<FixingWarning> = ["2026-11-17", "2026-11-18"]
+        .iter()
+        .map(|x| FixingWarning {
+            index: "HVM-ON".into(),
+            date: d(x),
+            used: d("2026-11-16"),
+        })
+        .collect();
+    assert_eq!(r.fixing_warnings, want);
+    let last = r.days.last().unwrap();
+    assert_eq!(last.rate, n("0.049"));
+    assert_eq!(
+        last.fixing.as_ref().unwrap().stand_in,
+        Some(d("2026-11-16"))
+    );
+}
+
+/// Section 10: compounded-in-arrears is computed on ACT/360 and ACT/365F
+/// only; any other basis is an error that names it.
+#[test]
+fn compounding_on_another_basis_is_an_error_naming_it() {
+    let mut t = harbourview_loan(RateMethod::CompoundedInArrears);
+    t.basis = Basis::Thirty360;
+    let s = harbourview_rate("0", None, None);
+    let fx = harbourview_fixings();
+    let empty = RateSchedule::default();
+    let src = Sources {
+        rates: &empty,
+        debit_rates: None,
+        movements: &[],
+        actual: &[],
+        floating: Some(FloatingRates {
+            schedule: &s,
+            fixings: &fx,
+            fallback: FixingFallback::None,
+        }),
+    };
+    let e = accrue(&t, src, RunOptions::month_end(d("2026-11-13"))).unwrap_err();
+    let words = e.to_string();
+    assert!(matches!(e, EngineError::Unsupported(_)), "{words}");
+    assert!(
+        words.contains("30/360") && words.contains("ACT/360"),
+        "{words}"
+    );
+}
+
+/// The factors of a period compound to the ratio of an index built from
+/// them: with I(t) the product of (1 + r_i n_i / 360) from 18 October 2021,
+/// a coupon from 25 October to 15 November earns 10,000 x (I(15 Nov) /
+/// I(25 Oct) - 1) (computed, no source).
+#[test]
+fn compounding_a_period_equals_the_ratio_of_an_index() {
+    let fx = reference_fixings();
+    let series = &fx["SOFR"];
+    let cal = overnight_calendar();
+    let mut level = BTreeMap::new();
+    let mut i = Decimal::ONE;
+    let mut day = d("2021-10-18");
+    level.insert(day, i);
+    while day < d("2021-11-18") {
+        let next = cal.add_business_days(day, 1).unwrap();
+        let days = Decimal::from((next - day).num_days());
+        i *= Decimal::ONE + series[&day] * days / Decimal::from(360);
+        level.insert(next, i);
+        day = next;
+    }
+    let t = coupon("2021-10-25", "2021-11-15", FloatingTerms::default());
+    let r = run(&t, &schedule(index("0")), &fx, "2021-11-14");
+    let from_index =
+        n("10000") * (level[&d("2021-11-15")] / level[&d("2021-10-25")] - Decimal::ONE);
+    assert_close(r.postings[0].interest, &from_index.to_string(), "1e-22");
+}
+
+/// Section 10: when the base changes inside the period each day earns its
+/// own base times the factor's increase over the day, so a deposit on a
+/// business day splits the period's interest at that day's factor.
+#[test]
+fn a_base_change_inside_the_period_splits_at_the_factor() {
+    let fx = reference_fixings();
+    let t = coupon("2021-10-18", "2021-11-18", FloatingTerms::default());
+    let s = schedule(index("0"));
+    let empty = RateSchedule::default();
+    let moves = [crate::engine::Movement {
+        value_date: d("2021-11-01"),
+        amount: n("5000"),
+        booking_date: None,
+        reference: None,
+    }];
+    let src = Sources {
+        rates: &empty,
+        debit_rates: None,
+        movements: &moves,
+        actual: &[],
+        floating: Some(FloatingRates {
+            schedule: &s,
+            fixings: &fx,
+            fallback: FixingFallback::None,
+        }),
+    };
+    let r = accrue(&t, src, RunOptions::month_end(d("2021-11-17"))).unwrap();
+    // Factors after 29 October and after 17 November, from the table of the
+    // conventions reference section 4.3 (12 digits).
+    let (cf_oct, cf_end) = (n("1.000039722905"), n("1.000085003387"));
+    let want = n("10000") * (cf_end - Decimal::ONE) + n("5000") * (cf_end - cf_oct);
+    assert_close(r.postings[0].interest, &want.to_string(), "1e-8");
+}
+
+/// Section 10: a period that starts on a non-business day takes the
+/// preceding business day's fixing up to the first business day.
+#[test]
+fn a_period_starting_on_a_holiday_uses_the_preceding_fixing() {
+    let t = coupon("2021-10-23", "2021-10-27", FloatingTerms::default());
+    let r = run(
+        &t,
+        &schedule(index("0")),
+        &reference_fixings(),
+        "2021-10-26",
+    );
+    let fixing_dates: Vec<NaiveDate> = r
+        .days
+        .iter()
+        .map(|x| x.fixing.as_ref().unwrap().date)
+        .collect();
+    assert_eq!(
+        fixing_dates,
+        ["2021-10-22", "2021-10-22", "2021-10-25", "2021-10-26"].map(d)
+    );
+    // 10,000 x ((1 + 0.12% x 2/360)(1 + 0.11%/360)(1 + 0.13%/360) - 1).
+    let f = |pct: &str, days: i64| {
+        Decimal::ONE + n(pct) / Decimal::ONE_HUNDRED * Decimal::from(days) / Decimal::from(360)
+    };
+    let want = n("10000") * (f("0.12", 2) * f("0.11", 1) * f("0.13", 1) - Decimal::ONE);
+    assert_close(r.postings[0].interest, &want.to_string(), "1e-22");
+}
