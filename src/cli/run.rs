@@ -14,6 +14,7 @@ use super::{exit, read_books, BookArgs};
 use crate::batch::journal::JournalStyle;
 use crate::batch::{run_books, BatchSettings};
 use crate::book::{Problem, Severity};
+use crate::engine::floating::FixingFallback;
 use crate::engine::reconcile::Tolerance;
 use crate::report::model::{Report, RunFacts};
 use rust_decimal::Decimal;
@@ -55,6 +56,33 @@ pub struct Args {
     /// Accrue every day one by one (the same figures, slower), for audits.
     #[arg(long)]
     no_fast_path: bool,
+    /// A missing index fixing: none (an error on the account, the default) or
+    /// last (use the last published fixing, with a warning).
+    #[arg(long, value_name = "FALLBACK")]
+    fixing_fallback: Option<String>,
+}
+
+/// The `--fixing-fallback` in force, recorded for the Run sheet.
+pub(crate) fn fixing_fallback(
+    given: Option<&str>,
+    listed: &mut Settings,
+) -> Result<FixingFallback> {
+    let fallback = match given {
+        Some(v) => FixingFallback::parse(v).map_err(|e| anyhow!("--fixing-fallback: {e}"))?,
+        None => FixingFallback::None,
+    };
+    listed.record(
+        "fixing_fallback",
+        &settings::Resolved {
+            value: fallback.name(),
+            source: if given.is_some() {
+                crate::report::model::SettingSource::Option
+            } else {
+                crate::report::model::SettingSource::Default
+            },
+        },
+    );
+    Ok(fallback)
 }
 
 /// Reconciliation tolerances.
@@ -224,6 +252,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     );
 
     let tolerance = tolerance(&books, &args.tolerance, &mut listed)?;
+    let fixing_fallback = fixing_fallback(args.fixing_fallback.as_deref(), &mut listed)?;
     let target = args
         .out
         .clone()
@@ -257,6 +286,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             .collect(),
         tolerance,
         fast_path: !args.no_fast_path,
+        fixing_fallback,
     };
     let total: usize = books.iter().map(|b| b.accounts.len()).sum();
     let bar = progress_bar(total);

@@ -40,6 +40,7 @@ use super::terms::{AccountTerms, FloorOn, RateMethod};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
+use crate::conventions::names::{lookup, UnknownName};
 use crate::conventions::schedule::Period;
 
 /// Index fixings: index name, then the business day a fixing applies to,
@@ -195,6 +196,28 @@ impl FixingFallback {
             FixingFallback::None => "none",
             FixingFallback::Last => "last",
         }
+    }
+
+    /// Parses `none` or `last`.
+    ///
+    /// ```
+    /// use ledgerate::engine::floating::FixingFallback;
+    /// assert_eq!(FixingFallback::parse("Last"), Ok(FixingFallback::Last));
+    /// assert!(FixingFallback::parse("previous").is_err());
+    /// ```
+    ///
+    /// # Errors
+    /// [`UnknownName`] with the closest name.
+    pub fn parse(s: &str) -> Result<FixingFallback, UnknownName> {
+        lookup(
+            "fixing fallback",
+            s,
+            &[
+                ("none", FixingFallback::None),
+                ("last", FixingFallback::Last),
+            ],
+            &["none", "last"],
+        )
     }
 }
 
