@@ -634,6 +634,7 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
                 debit_rates: debit,
                 movements: m,
                 actual: &[],
+                floating: None,
             };
             accrue(t, src, options)
         };

@@ -104,14 +104,14 @@ fn a_good_book_has_every_account_in_sheet_order_and_only_notes() {
     let book = read("harbourview_good.xlsx");
     assert_eq!(ids(&book), GOOD_IDS);
     assert!(!book.has_errors(), "{}", all_problems(&book));
-    assert_eq!(book.problems.len(), 4, "{}", all_problems(&book));
+    assert_eq!(book.problems.len(), 3, "{}", all_problems(&book));
     problem(&book, Severity::Note, "Notes", "", &["Notes", "not read"]);
-    problem(
-        &book,
-        Severity::Note,
-        "Fixings",
-        "",
-        &["floating rates", "not supported yet"],
+    // The Fixings sheet is read: its one index and fixing are in the book.
+    assert_eq!(
+        book.fixings.keys().collect::<Vec<_>>(),
+        ["HM-BASE"],
+        "{:?}",
+        book.fixings
     );
     let unknown = problem(&book, Severity::Note, "Accounts", "1:1", &["kept out"]);
     assert_eq!(unknown.found, "Branch");
@@ -863,7 +863,11 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
             Error,
             "Accounts",
             "P14",
-            &["floating rates (rate_method compounded-in-arrears) are not supported yet"],
+            &[
+                "compounded-in-arrears",
+                "Rates rows name an index",
+                "gives fixed rates only",
+            ],
         ),
         (
             Error,
@@ -938,10 +942,10 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
         (
             Error,
             "Accounts",
-            "J27",
+            "P27",
             &[
                 "FLOAT-IDX",
-                "floating rates (index SOFR) are not supported yet",
+                "rate_method simple-daily or compounded-in-arrears",
                 "Rates!E9",
             ],
         ),
@@ -1050,8 +1054,13 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
         kept,
         vec![("HM-SAV-127", dec("2.00")), ("HM-SAV-127", dec("-2.00"))]
     );
-    // Schedules with an error or an index are kept out of the book's rates.
+    // Schedules with an error are kept out; one that names an index is a
+    // floating schedule.
     assert_eq!(book.rates.keys().collect::<Vec<_>>(), ["LATE-RATE", "STD"]);
+    assert_eq!(
+        book.floating_rates.keys().collect::<Vec<_>>(),
+        ["FLOAT-IDX"]
+    );
     assert_eq!(book.settings.len(), 1);
 }
 
@@ -1092,10 +1101,9 @@ fn the_broken_book_as_ods_reports_the_same_faults_with_error_cells_held_as_text(
 
 #[test]
 fn a_broken_csv_folder_reports_file_and_sheet_faults() {
-    use Severity::{Error, Note};
+    use Severity::Error;
     let book = read("harbourview_broken_csv");
     let expected: &[(Severity, &str, &str, &[&str])] = &[
-        (Note, "fixings", "", &["not supported yet"]),
         (
             Error,
             "holidays",

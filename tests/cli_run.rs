@@ -559,6 +559,7 @@ fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time()
             "default",
         ),
         ("tolerance_bp", "0.5", "command line"),
+        ("fixing_fallback", "none", "default"),
     ];
     for (name, value, source) in want {
         assert_eq!(

@@ -134,6 +134,7 @@ fn run(ex: &Value) -> AccountResult {
         debit_rates: None,
         movements: &movements,
         actual: &actual,
+        floating: None,
     };
     accrue(&t, sources, options).unwrap_or_else(|e| panic!("{}: {e}", ex["name"]))
 }

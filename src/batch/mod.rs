@@ -16,6 +16,7 @@ use rust_decimal::Decimal;
 
 use crate::book::{AccountEntry, Book, Position, Problem, Severity, StatementRow};
 use crate::engine::causes::{likely_cause, Account};
+use crate::engine::floating::{FixingFallback, FixingWarning, FloatingRates};
 use crate::engine::rates::RateSource;
 use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, Tolerance};
 use crate::engine::run::{accrue, AccountResult, RunOptions, Sources};
@@ -44,6 +45,8 @@ pub struct BatchSettings {
     pub fast_path: bool,
     /// Only the accounts of shard K of N (`(K, N)`, K from 1), for runs split across machines.
     pub shard: Option<(u32, u32)>,
+    /// What a floating account does about a missing fixing.
+    pub fixing_fallback: FixingFallback,
 }
 
 /// The shard (1..=N) an account id belongs to: a stable hash of the id, the
@@ -185,6 +188,7 @@ pub fn run_books(
                 posted.get(entry.terms.id.as_str()),
                 options,
                 &settings.tolerance,
+                settings.fixing_fallback,
             );
             tick();
             r
@@ -303,6 +307,7 @@ fn accrue_one(
     actual: Option<&Vec<ActualPosting>>,
     options: RunOptions,
     tolerance: &Tolerance,
+    fallback: FixingFallback,
 ) -> Result<Outcome, Box<Problem>> {
     let t = &entry.terms;
     let (periods, notes) = statement_periods(book, entry, options.cutoff);
@@ -314,12 +319,23 @@ fn accrue_one(
         ..options
     };
     let problem = |e: &EngineError| engine_problem(entry, e);
-    let rates = book.rates.get(&entry.rate_ref).ok_or_else(|| {
-        problem(&EngineError::Unsupported(format!(
-            "no Rates rows for rate_ref '{}'",
-            entry.rate_ref
-        )))
-    })?;
+    let floating_schedule = book.floating_rates.get(&entry.rate_ref);
+    let empty = crate::engine::rates::RateSchedule::default();
+    let rates = match (book.rates.get(&entry.rate_ref), &floating_schedule) {
+        (_, Some(_)) => &empty,
+        (Some(r), None) => r,
+        (None, None) => {
+            return Err(problem(&EngineError::Unsupported(format!(
+                "no Rates rows for rate_ref '{}'",
+                entry.rate_ref
+            ))))
+        }
+    };
+    let floating = floating_schedule.as_ref().map(|s| FloatingRates {
+        schedule: s,
+        fixings: &book.fixings,
+        fallback,
+    });
     let debit = match &entry.debit_rate_ref {
         Some(r) => Some(book.rates.get(r).ok_or_else(|| {
             problem(&EngineError::Unsupported(format!(
@@ -334,6 +350,7 @@ fn accrue_one(
         debit_rates: debit,
         movements,
         actual: actual.map_or(&[][..], Vec::as_slice),
+        floating,
     };
     let r: AccountResult = accrue(t, sources, options).map_err(|e| problem(&e))?;
     let rows = reconcile(
@@ -355,6 +372,7 @@ fn accrue_one(
         movements,
         actual: sources.actual,
         states: &r.states,
+        floating,
     };
     let reconciliation = rows
         .iter()
@@ -387,6 +405,8 @@ fn accrue_one(
             accrued: d.accrued,
         })
         .collect();
+    let mut notes = notes;
+    notes.extend(fixing_warnings(entry, &r.fixing_warnings));
     Ok(Outcome {
         line: AccrualLine {
             account: t.id.clone(),
@@ -407,6 +427,38 @@ fn accrue_one(
         reconciliation,
         notes,
     })
+}
+
+/// One warning per index for the missing fixings the `last` fallback
+/// replaced, naming the dates and the fixings used.
+fn fixing_warnings(entry: &AccountEntry, warnings: &[FixingWarning]) -> Vec<Problem> {
+    let mut by_index: BTreeMap<&str, Vec<&FixingWarning>> = BTreeMap::new();
+    for w in warnings {
+        by_index.entry(w.index.as_str()).or_default().push(w);
+    }
+    by_index
+        .into_iter()
+        .map(|(index, ws)| {
+            let dates: Vec<String> = ws
+                .iter()
+                .map(|w| format!("{} (used {})", w.date, w.used))
+                .collect();
+            Problem {
+                severity: Severity::Warning,
+                position: entry.position.clone(),
+                account: Some(entry.terms.id.clone()),
+                found: format!(
+                    "account {}: {} missing {index} fixing{}: {}",
+                    entry.terms.id,
+                    ws.len(),
+                    if ws.len() == 1 { "" } else { "s" },
+                    dates.join(", ")
+                ),
+                expected: format!("a {index} fixing for every business day the account needs"),
+                fix: format!("the last published {index} fixing stood in (--fixing-fallback last): add the fixings to the Fixings sheet and run again for final figures"),
+            }
+        })
+        .collect()
 }
 
 /// The account's statement rows grouped by period (rows with the same
@@ -514,6 +566,10 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Box<Problem> {
         EngineError::Unsupported(_) => (
             "terms the engine supports".to_string(),
             "change the account's terms; see docs/user-guide.md for the supported combinations".to_string(),
+        ),
+        EngineError::MissingFixing { index, date } => (
+            format!("a {index} fixing for {date} on the Fixings sheet"),
+            format!("add the {index} fixing for {date} to the Fixings sheet, or run with --fixing-fallback last to use the last one published"),
         ),
         EngineError::DayCount(_) | EngineError::Schedule(_) => (
             "terms the basis and schedule need".to_string(),

@@ -76,6 +76,7 @@ fn book(count: usize) -> Book {
 
 fn settings() -> BatchSettings {
     BatchSettings {
+        fixing_fallback: crate::engine::floating::FixingFallback::None,
         cutoff: d("2026-11-30"),
         window_start: d("2026-11-01"),
         daily: false,

@@ -3,8 +3,8 @@
 //! account's own dates, its rate schedules and its calendar.
 //!
 //! An account with any error is kept out (its problems name it); nothing is
-//! approximated: floating-rate terms, which the engine does not compute yet,
-//! are an error rather than a fixed rate.
+//! approximated: floating-rate terms that do not go together, or a floating
+//! rate whose index has no fixings, are errors rather than a guessed rate.
 
 use std::collections::{BTreeSet, HashMap};
 use std::sync::Arc;
@@ -12,6 +12,7 @@ use std::sync::Arc;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
+use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes, Problem, Severity};
 use super::rates::Rates;
@@ -21,10 +22,10 @@ use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::currency;
 use crate::conventions::daycount::Basis;
-use crate::conventions::names::{fold, lookup, UnknownName};
+use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
-use crate::engine::{AccountTerms, RoundAt, Side, TierMethod};
+use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
 
 const COLUMNS: &[Column] = &[
     required("account"),
@@ -101,29 +102,6 @@ const MAX_DAYS: u32 = 3650;
 /// The most places daily interest may be rounded to.
 const MAX_ROUND_PLACES: u32 = 12;
 
-/// How a rate is found for each day.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum RateMethod {
-    Fixed,
-    SimpleDaily,
-    CompoundedInArrears,
-}
-
-impl RateMethod {
-    fn parse(s: &str) -> Result<RateMethod, UnknownName> {
-        lookup(
-            "rate method",
-            s,
-            &[
-                ("fixed", RateMethod::Fixed),
-                ("simple-daily", RateMethod::SimpleDaily),
-                ("compounded-in-arrears", RateMethod::CompoundedInArrears),
-            ],
-            &["fixed", "simple-daily", "compounded-in-arrears"],
-        )
-    }
-}
-
 /// An account's dates, for the checks of other sheets' rows.
 #[derive(Debug, Clone)]
 pub(crate) struct Life {
@@ -179,6 +157,8 @@ pub(crate) struct Others<'a> {
     pub rates: &'a Rates,
     /// The Holidays sheet.
     pub calendars: &'a Calendars,
+    /// The Fixings sheet.
+    pub fixings: &'a FixingsSheet,
 }
 
 /// Reads the Accounts sheet.
@@ -268,7 +248,7 @@ fn account(
         accrued: f.text(GL_ACCRUED),
         settlement: f.text(GL_SETTLEMENT),
     };
-    floating_terms(f);
+    let floating = floating_terms(f);
 
     let ((code, minor_units), basis, open_date, opening_balance) =
         (currency?, basis?, open_date?, opening_balance?);
@@ -292,6 +272,7 @@ fn account(
     };
 
     let terms = AccountTerms {
+        floating,
         id: id.to_string(),
         currency: code,
         minor_units,
@@ -316,13 +297,8 @@ fn account(
         period_start,
     };
     check_terms(f, &terms);
-    check_rates(
-        f,
-        &terms,
-        &rate_ref,
-        debit_rate_ref.as_deref(),
-        others.rates,
-    );
+    check_floating(f, &terms);
+    check_rates(f, &terms, &rate_ref, debit_rate_ref.as_deref(), others);
     let position = f.position(ACCOUNT);
     Some(AccountEntry {
         terms,
@@ -410,66 +386,109 @@ fn calendar_of(
     }
 }
 
-/// Floating-rate terms are not computed yet: using one is an error, never
-/// a silent fixed-rate approximation.
-fn floating_terms(f: &mut Fields<'_, '_, '_>) {
-    const EXPECTED: &str = "a fixed-rate account (rate_method fixed; lookback_days, observation_shift, lockout_days, spread_compounded and floor_on left blank)";
-    let unsupported = |what: &str| {
-        format!("floating rates ({what}) are not supported yet: leave the account out of the book or give it fixed rates")
-    };
-    if let Some(m) = f.named(RATE_METHOD, RateMethod::parse) {
-        if m != RateMethod::Fixed {
-            let shown = f.raw(RATE_METHOD).map(|c| c.shown()).unwrap_or_default();
-            let name = match m {
-                RateMethod::SimpleDaily => "simple-daily",
-                _ => "compounded-in-arrears",
-            };
-            f.report(
-                Severity::Error,
-                RATE_METHOD,
-                &shown,
-                EXPECTED,
-                &unsupported(&format!("rate_method {name}")),
-            );
-        }
+/// The floating-rate columns (semantics section 10); blank ones take the
+/// defaults of a fixed-rate account.
+fn floating_terms(f: &mut Fields<'_, '_, '_>) -> FloatingTerms {
+    FloatingTerms {
+        method: f.named(RATE_METHOD, RateMethod::parse).unwrap_or_default(),
+        lookback_days: f.whole(LOOKBACK_DAYS, 0, MAX_DAYS).unwrap_or(0),
+        observation_shift: f.yes_no(OBSERVATION_SHIFT).unwrap_or(false),
+        lockout_days: f.whole(LOCKOUT_DAYS, 0, MAX_DAYS).unwrap_or(0),
+        spread_compounded: f.yes_no(SPREAD_COMPOUNDED).unwrap_or(false),
+        floor_on: f.named(FLOOR_ON, FloorOn::parse).unwrap_or_default(),
     }
-    for (i, name) in [
-        (LOOKBACK_DAYS, "lookback_days"),
-        (LOCKOUT_DAYS, "lockout_days"),
-    ] {
-        if let Some(n) = f.whole(i, 0, MAX_DAYS) {
-            if n > 0 {
+}
+
+/// Floating-rate terms that do not go together are errors on the cell that
+/// makes the combination; terms a fixed-rate account ignores are warnings.
+fn check_floating(f: &mut Fields<'_, '_, '_>, t: &AccountTerms) {
+    let fl = t.floating;
+    let given = |f: &Fields<'_, '_, '_>, i: usize| f.given(i);
+    if !fl.method.is_floating() {
+        for (i, name) in [
+            (LOOKBACK_DAYS, "lookback_days"),
+            (OBSERVATION_SHIFT, "observation_shift"),
+            (LOCKOUT_DAYS, "lockout_days"),
+            (SPREAD_COMPOUNDED, "spread_compounded"),
+            (FLOOR_ON, "floor_on"),
+        ] {
+            if given(f, i) {
+                let shown = f.raw(i).map(|c| c.shown()).unwrap_or_default();
                 f.report(
-                    Severity::Error,
+                    Severity::Warning,
                     i,
-                    &n.to_string(),
-                    EXPECTED,
-                    &unsupported(&format!("{name} {n}")),
+                    &shown,
+                    &format!("{name} only with rate_method simple-daily or compounded-in-arrears"),
+                    "the account has fixed rates, so the term has no effect: clear it, or set rate_method",
                 );
             }
         }
+        return;
     }
-    for (i, name) in [
-        (OBSERVATION_SHIFT, "observation_shift"),
-        (SPREAD_COMPOUNDED, "spread_compounded"),
-    ] {
-        if f.yes_no(i) == Some(true) {
-            f.report(
-                Severity::Error,
-                i,
-                "yes",
-                EXPECTED,
-                &unsupported(&format!("{name} yes")),
-            );
+    let method = fl.method.name();
+    let error = |f: &mut Fields<'_, '_, '_>, i: usize, expected: String, fix: &str| {
+        let shown = f.raw(i).map(|c| c.shown()).unwrap_or_default();
+        f.report(Severity::Error, i, &shown, &expected, fix);
+    };
+    match fl.method {
+        RateMethod::CompoundedInArrears => {
+            if !matches!(t.basis, Basis::Act360 | Basis::Act365F) {
+                error(
+                    f,
+                    DAY_COUNT,
+                    format!("ACT/360 or ACT/365F for rate_method {method}"),
+                    "compounded-in-arrears is computed on ACT/360 or ACT/365F only: correct the day_count or the rate_method",
+                );
+            }
+            if t.compounding != Compounding::Simple {
+                error(
+                    f,
+                    COMPOUNDING,
+                    format!(
+                        "compounding simple for rate_method {method} (the rate itself compounds)"
+                    ),
+                    "clear compounding or set it to simple",
+                );
+            }
+            if fl.floor_on == FloorOn::AllIn && !fl.spread_compounded {
+                error(
+                    f,
+                    FLOOR_ON,
+                    "floor_on index when the spread is added after compounding".to_string(),
+                    "set spread_compounded yes to bound each day's index plus spread, or floor_on index",
+                );
+            }
+            if fl.observation_shift && t.posting == Posting::None {
+                error(
+                    f,
+                    OBSERVATION_SHIFT,
+                    "a posting period for an observation shift".to_string(),
+                    "an observation period is moved back from the period's end: give a posting frequency or clear observation_shift",
+                );
+            }
+        }
+        _ => {
+            for (i, name) in [
+                (OBSERVATION_SHIFT, "observation_shift"),
+                (SPREAD_COMPOUNDED, "spread_compounded"),
+            ] {
+                if f.yes_no(i) == Some(true) {
+                    error(
+                        f,
+                        i,
+                        format!("{name} only with rate_method compounded-in-arrears"),
+                        "nothing compounds under simple-daily: clear the term, or set rate_method compounded-in-arrears",
+                    );
+                }
+            }
         }
     }
-    if let Some(v) = f.text(FLOOR_ON) {
-        f.report(
-            Severity::Error,
-            FLOOR_ON,
-            &v,
-            EXPECTED,
-            &unsupported(&format!("floor_on {v}")),
+    if fl.lockout_days > 0 && t.posting == Posting::None {
+        error(
+            f,
+            LOCKOUT_DAYS,
+            "a posting period for a lockout".to_string(),
+            "a lockout counts back from the period's end: give a posting frequency or clear lockout_days",
         );
     }
 }
@@ -577,12 +596,12 @@ fn check_rates(
     t: &AccountTerms,
     rate_ref: &str,
     debit: Option<&str>,
-    rates: &Rates,
+    others: &Others<'_>,
 ) {
     let col = if f.given(RATE_REF) { RATE_REF } else { ACCOUNT };
-    schedule_check(f, t, rate_ref, col, rates, Severity::Error);
+    schedule_check(f, t, rate_ref, col, others, Severity::Error);
     if let Some(d) = debit {
-        schedule_check(f, t, d, DEBIT_RATE_REF, rates, Severity::Warning);
+        schedule_check(f, t, d, DEBIT_RATE_REF, others, Severity::Warning);
     }
 }
 
@@ -594,21 +613,78 @@ fn schedule_check(
     t: &AccountTerms,
     rate_ref: &str,
     col: usize,
-    rates: &Rates,
+    others: &Others<'_>,
     late: Severity,
 ) {
+    let rates = others.rates;
     let which = if col == DEBIT_RATE_REF {
         "debit_rate_ref"
     } else {
         "rate_ref"
     };
-    if let Some((what, cell)) = rates.floating.get(rate_ref) {
+    if let Some(schedule) = rates.floating.get(rate_ref) {
+        let cell = rates
+            .floating_cell
+            .get(rate_ref)
+            .cloned()
+            .unwrap_or_default();
+        if col == DEBIT_RATE_REF {
+            f.report(
+                Severity::Error,
+                col,
+                rate_ref,
+                &format!("a fixed debit rate schedule (Rates!{cell} names an index)"),
+                "debit rates that follow an index are not computed: give the debit_rate_ref fixed rates",
+            );
+            return;
+        }
+        if !t.floating.method.is_floating() {
+            let shown = f.raw(RATE_METHOD).map(|c| c.shown()).unwrap_or_default();
+            f.report(
+                Severity::Error,
+                RATE_METHOD,
+                &shown,
+                &format!("rate_method simple-daily or compounded-in-arrears for {rate_ref}, whose Rates!{cell} names an index"),
+                "set rate_method to how the index accrues, or give the rate_ref fixed rates",
+            );
+            return;
+        }
+        for index in schedule.indices() {
+            let fix = match others.fixings.lookup(index) {
+                IndexLookup::Found => continue,
+                IndexLookup::Broken(at) => {
+                    format!("correct the {index} rows of the Fixings sheet (see Fixings!{at})")
+                }
+                IndexLookup::Unknown(Some(near)) => format!(
+                    "did you mean {near}? index names match exactly: correct Rates!{cell} or add {index} fixings to the Fixings sheet"
+                ),
+                IndexLookup::Unknown(None) if others.fixings.read => {
+                    format!("add the {index} fixings to the Fixings sheet (index, date, rate_percent)")
+                }
+                IndexLookup::Unknown(None) => format!(
+                    "add a Fixings sheet (index, date, rate_percent) with the {index} fixings"
+                ),
+            };
+            f.report(
+                Severity::Error,
+                col,
+                rate_ref,
+                &format!("a rate_ref whose index {index} (Rates!{cell}) has fixings on the Fixings sheet"),
+                &fix,
+            );
+        }
+    }
+    if col != DEBIT_RATE_REF
+        && t.floating.method.is_floating()
+        && rates.schedules.contains_key(rate_ref)
+    {
+        let shown = f.raw(RATE_METHOD).map(|c| c.shown()).unwrap_or_default();
         f.report(
             Severity::Error,
-            col,
-            rate_ref,
-            &format!("a fixed rate schedule (Rates!{cell} has {what})"),
-            &format!("floating rates ({what}) are not supported yet: leave the account out of the book or give it fixed rates"),
+            RATE_METHOD,
+            &shown,
+            &format!("a rate_ref whose Rates rows name an index for rate_method {} ({rate_ref} gives fixed rates only)", t.floating.method.name()),
+            "name the index (with spread_bp, floor_percent, cap_percent) in the Rates rows, or set rate_method fixed",
         );
         return;
     }
@@ -684,16 +760,33 @@ mod tests {
         let rate_sheet = text_sheet(
             SheetKind::Rates,
             &[
-                &["rate_ref", "effective", "rate_percent"],
-                &["STD", "2026-01-01", "2"],
-                &["std-2", "2026-01-01", "2"],
+                &[
+                    "rate_ref",
+                    "effective",
+                    "rate_percent",
+                    "index",
+                    "spread_bp",
+                ],
+                &["STD", "2026-01-01", "2", "", ""],
+                &["std-2", "2026-01-01", "2", "", ""],
+                &["FLT", "2026-01-01", "", "HVM-ON", "150"],
+                &["FLT-X", "2026-01-01", "", "HVM-0N", "150"],
             ],
         );
         let rates = rates::read(ctx(), &rate_sheet, &mut problems);
         let calendars = Calendars::default();
+        let fixing_sheet = text_sheet(
+            SheetKind::Fixings,
+            &[
+                &["index", "date", "rate_percent"],
+                &["HVM-ON", "2026-11-02", "4.31"],
+            ],
+        );
+        let fixings = crate::book::fixings::read(ctx(), &fixing_sheet, &mut problems);
         let others = Others {
             rates: &rates,
             calendars: &calendars,
+            fixings: &fixings,
         };
         let sheet = text_sheet(SheetKind::Accounts, rows);
         let found = read(ctx(), &sheet, &others, &mut problems);
@@ -815,5 +908,103 @@ mod tests {
             RateMethod::parse("simple_daly").unwrap_err().suggestion,
             Some("simple-daily")
         );
+    }
+
+    const FLOATING_HEADER: &[&str] = &[
+        "account",
+        "currency",
+        "day_count",
+        "open_date",
+        "opening_balance",
+        "rate_ref",
+        "rate_method",
+        "lookback_days",
+        "observation_shift",
+    ];
+
+    /// Section 10: a floating account reads its method, lookback and shift.
+    #[test]
+    fn a_floating_account_reads_its_terms() {
+        let (found, problems) = read_accounts(&[
+            FLOATING_HEADER,
+            &[
+                "HVM-L1",
+                "USD",
+                "ACT/360",
+                "2026-11-02",
+                "1000000",
+                "FLT",
+                "compounded-in-arrears",
+                "5",
+                "yes",
+            ],
+        ]);
+        assert!(problems.is_empty(), "{problems:?}");
+        let fl = found.unwrap().entries[0].terms.floating;
+        assert_eq!(fl.method, RateMethod::CompoundedInArrears);
+        assert_eq!((fl.lookback_days, fl.observation_shift), (5, true));
+    }
+
+    /// Section 10: an index without fixings is an error on the account, with
+    /// the near miss suggested; rates naming an index need a floating method;
+    /// compounding in arrears needs ACT/360 or ACT/365F.
+    #[test]
+    fn floating_terms_that_cannot_be_computed_are_errors() {
+        let (found, problems) = read_accounts(&[
+            FLOATING_HEADER,
+            &[
+                "HVM-L2",
+                "USD",
+                "ACT/360",
+                "2026-11-02",
+                "1",
+                "FLT-X",
+                "simple-daily",
+                "",
+                "",
+            ],
+            &[
+                "HVM-L3",
+                "USD",
+                "ACT/360",
+                "2026-11-02",
+                "1",
+                "FLT",
+                "fixed",
+                "",
+                "",
+            ],
+            &[
+                "HVM-L4",
+                "USD",
+                "30/360",
+                "2026-11-02",
+                "1",
+                "FLT",
+                "compounded-in-arrears",
+                "",
+                "",
+            ],
+            &[
+                "HVM-L5",
+                "USD",
+                "ACT/360",
+                "2026-11-02",
+                "1",
+                "FLT",
+                "simple-daily",
+                "",
+                "yes",
+            ],
+        ]);
+        assert!(found.unwrap().entries.is_empty());
+        let cells: Vec<&str> = problems.iter().map(|p| p.position.cell.as_str()).collect();
+        assert_eq!(cells, ["F2", "G3", "C4", "I5"]);
+        assert!(
+            problems[0].fix.contains("did you mean HVM-ON"),
+            "{}",
+            problems[0].fix
+        );
+        assert!(problems[2].expected.contains("ACT/360 or ACT/365F"));
     }
 }

@@ -9,6 +9,7 @@
 
 mod accounts;
 mod cell;
+mod fixings;
 mod holidays;
 pub mod model;
 mod movements;

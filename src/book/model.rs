@@ -10,6 +10,7 @@ use std::path::PathBuf;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
+use crate::engine::floating::{Fixings, FloatingSchedule};
 use crate::engine::rates::RateSchedule;
 use crate::engine::{AccountTerms, Movement};
 
@@ -156,8 +157,12 @@ pub struct Book {
     pub path: PathBuf,
     /// Accounts in sheet order.
     pub accounts: Vec<AccountEntry>,
-    /// Rate schedules by rate_ref.
+    /// Fixed rate schedules by rate_ref.
     pub rates: BTreeMap<String, RateSchedule>,
+    /// Floating rate schedules (a row names an index) by rate_ref.
+    pub floating_rates: BTreeMap<String, FloatingSchedule>,
+    /// Index fixings from the Fixings sheet: index, date, rate as a decimal.
+    pub fixings: Fixings,
     /// Movements by account id, in sheet order.
     pub movements: BTreeMap<String, Vec<Movement>>,
     /// Statement rows in sheet order.

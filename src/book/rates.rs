@@ -2,10 +2,12 @@
 //! tables by effective date, with tiers.
 //!
 //! A rate in `rate_percent` is divided by 100 exactly (a shift of the
-//! decimal point, never a rounding). A schedule with a bad row, or one that
-//! names an index (a floating rate, not supported yet), is kept out of the
-//! book; the accounts that use it get an error. Nothing here decides which
-//! table applies on a day; that is the engine's.
+//! decimal point, never a rounding). A row may name an `index` instead of a
+//! rate (a floating rate: the index's fixing plus `spread_bp`, within
+//! `floor_percent` and `cap_percent`); a schedule with such a row is a
+//! floating schedule, its other rows fixed tiers of it. A schedule with a bad
+//! row is kept out of the book; the accounts that use it get an error.
+//! Nothing here decides which table applies on a day; that is the engine's.
 
 use std::collections::BTreeMap;
 
@@ -15,6 +17,7 @@ use rust_decimal::Decimal;
 use super::model::{Problem, Severity};
 use super::source::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
+use crate::engine::floating::{FloatingSchedule, IndexRate, TierRate};
 use crate::engine::rates::RateSchedule;
 
 const COLUMNS: &[Column] = &[
@@ -34,8 +37,9 @@ const PERCENT: usize = 2;
 const DECIMAL: usize = 3;
 const TIER_FROM: usize = 4;
 const INDEX: usize = 5;
-/// Floating-rate columns: index, spread_bp, floor_percent, cap_percent.
-const FLOATING: [usize; 4] = [INDEX, 6, 7, 8];
+const SPREAD_BP: usize = 6;
+const FLOOR_PERCENT: usize = 7;
+const CAP_PERCENT: usize = 8;
 
 /// A percent column whose every value is below this (in size) may hold decimals.
 const PERCENT_LOOKS_DECIMAL: Decimal = Decimal::from_parts(2, 0, 0, false, 1);
@@ -49,8 +53,10 @@ pub(crate) struct Rates {
     pub first: BTreeMap<String, (NaiveDate, String)>,
     /// Schedules with a bad row: the cell of the first one.
     pub broken: BTreeMap<String, String>,
-    /// Schedules that name an index: what was found and where.
-    pub floating: BTreeMap<String, (String, String)>,
+    /// Floating schedules (a row names an index), by rate_ref.
+    pub floating: BTreeMap<String, FloatingSchedule>,
+    /// The cell of the first index of each floating schedule.
+    pub floating_cell: BTreeMap<String, String>,
     /// Whether the sheet was read as a table.
     pub read: bool,
 }
@@ -58,7 +64,7 @@ pub(crate) struct Rates {
 /// One good row, kept for the tier checks.
 struct RateRow {
     effective: NaiveDate,
-    rate: Decimal,
+    rate: TierRate,
     tier_from: Decimal,
     tier_cell: String,
     effective_cell: String,
@@ -77,8 +83,8 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
             table.header_row_ref(),
             None,
             "no rate column",
-            "a column named rate_percent (4.25 means 4.25%) or rate_decimal (0.0425)",
-            "add a rate_percent or rate_decimal column to the header row",
+            "a column named rate_percent (4.25 means 4.25%), rate_decimal (0.0425) or index",
+            "add a rate_percent or rate_decimal column (or an index column for floating rates) to the header row",
         ));
         return out;
     }
@@ -92,62 +98,38 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
             continue;
         };
         let effective = f.required_date(EFFECTIVE);
-        if let Some(&col) = FLOATING.iter().find(|&&i| f.given(i)) {
-            let found = format!(
-                "{} {}",
-                table.name(col),
-                f.raw(col).map(|c| c.shown()).unwrap_or_default()
-            );
-            out.floating
-                .entry(rate_ref)
-                .or_insert((found, f.cell_ref(col)));
-            continue;
-        }
+        let index = f.text(INDEX);
         let percent = f.decimal(PERCENT);
         let decimal = f.decimal(DECIMAL);
-        let rate = match (percent, decimal, f.given(PERCENT), f.given(DECIMAL)) {
-            (_, _, true, true) => {
+        let rate = if let Some(index) = index {
+            if let Some(col) = [PERCENT, DECIMAL].into_iter().find(|&i| f.given(i)) {
+                let shown = f.raw(col).map(|c| c.shown()).unwrap_or_default();
                 f.report(
                     Severity::Error,
-                    DECIMAL,
-                    &format!(
-                        "{} and {}",
-                        f.raw(PERCENT).map(|c| c.shown()).unwrap_or_default(),
-                        f.raw(DECIMAL).map(|c| c.shown()).unwrap_or_default()
-                    ),
-                    "one rate per row, in rate_percent or in rate_decimal",
-                    "clear one of the two cells",
+                    col,
+                    &shown,
+                    &format!("a rate or an index, not both (the row names the index {index})"),
+                    "clear the rate for a floating rate, or the index for a fixed one",
                 );
-                None
             }
-            (Some(p), _, _, _) => {
-                percents.push(p);
-                percent_to_decimal(p).or_else(|| {
+            out.floating_cell
+                .entry(rate_ref.clone())
+                .or_insert_with(|| f.cell_ref(INDEX));
+            index_rate(&mut f, index)
+        } else {
+            for col in [SPREAD_BP, FLOOR_PERCENT, CAP_PERCENT] {
+                if f.given(col) {
+                    let shown = f.raw(col).map(|c| c.shown()).unwrap_or_default();
                     f.report(
                         Severity::Error,
-                        PERCENT,
-                        &p.to_string(),
-                        "a percent rate with at most 26 decimal places",
-                        "shorten the rate",
+                        col,
+                        &shown,
+                        &format!("{} only on a row that names an index", table.name(col)),
+                        "name the index in the index column, or clear the cell",
                     );
-                    None
-                })
+                }
             }
-            (_, Some(d), _, _) => {
-                decimals.push(d);
-                Some(d)
-            }
-            (None, None, false, false) => {
-                f.report(
-                    Severity::Error,
-                    PERCENT,
-                    "",
-                    "a rate in rate_percent or rate_decimal",
-                    "fill in the row's rate",
-                );
-                None
-            }
-            _ => None,
+            fixed_rate(&mut f, percent, decimal, &mut percents, &mut decimals).map(TierRate::Fixed)
         };
         let tier_from = f.decimal(TIER_FROM).unwrap_or(Decimal::ZERO);
         if tier_from.is_sign_negative() && !tier_from.is_zero() {
@@ -177,9 +159,6 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
     }
     unit_warnings(ctx, &table, &percents, &decimals, problems);
     for (rate_ref, rows) in rows {
-        if out.floating.contains_key(&rate_ref) {
-            continue;
-        }
         if let Some(cell) = check_tiers(ctx, &sheet.name, &rate_ref, &rows, problems) {
             out.broken.entry(rate_ref).or_insert(cell);
             continue;
@@ -193,17 +172,139 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
                 (first.effective, first.effective_cell.clone()),
             );
         }
-        let schedule =
-            RateSchedule::from_rows(rows.iter().map(|r| (r.effective, r.rate, r.tier_from)));
+        if out.floating_cell.contains_key(&rate_ref) {
+            let schedule = FloatingSchedule::from_rows(
+                rows.into_iter().map(|r| (r.effective, r.rate, r.tier_from)),
+            );
+            out.floating.insert(rate_ref, schedule);
+            continue;
+        }
+        let schedule = RateSchedule::from_rows(rows.iter().filter_map(|r| match r.rate {
+            TierRate::Fixed(rate) => Some((r.effective, rate, r.tier_from)),
+            TierRate::Index(_) => None,
+        }));
         out.schedules.insert(rate_ref, schedule);
     }
     out
 }
 
+/// A row's index rate: the spread in basis points, the floor and cap in percent.
+fn index_rate(f: &mut Fields<'_, '_, '_>, index: String) -> Option<TierRate> {
+    let spread_bp = f.decimal(SPREAD_BP).unwrap_or(Decimal::ZERO);
+    let spread = basis_points_to_decimal(spread_bp).or_else(|| {
+        f.report(
+            Severity::Error,
+            SPREAD_BP,
+            &spread_bp.to_string(),
+            "a spread in basis points with at most 24 decimal places",
+            "shorten the spread",
+        );
+        None
+    })?;
+    let mut bound = |col: usize| {
+        let p = f.decimal(col)?;
+        percent_to_decimal(p).or_else(|| {
+            f.report(
+                Severity::Error,
+                col,
+                &p.to_string(),
+                "a percent rate with at most 26 decimal places",
+                "shorten the rate",
+            );
+            None
+        })
+    };
+    let floor = bound(FLOOR_PERCENT);
+    let cap = bound(CAP_PERCENT);
+    if let (Some(lo), Some(hi)) = (floor, cap) {
+        if lo > hi {
+            let shown = f.raw(FLOOR_PERCENT).map(|c| c.shown()).unwrap_or_default();
+            let cap_shown = f.raw(CAP_PERCENT).map(|c| c.shown()).unwrap_or_default();
+            f.report(
+                Severity::Error,
+                FLOOR_PERCENT,
+                &shown,
+                &format!(
+                    "a floor at or below the cap of {cap_shown}% ({})",
+                    f.cell_ref(CAP_PERCENT)
+                ),
+                "correct the floor or the cap: a floor above the cap leaves no rate",
+            );
+        }
+    }
+    Some(TierRate::Index(IndexRate {
+        index,
+        spread,
+        floor,
+        cap,
+    }))
+}
+
+/// A fixed row's rate, from rate_percent or rate_decimal.
+fn fixed_rate(
+    f: &mut Fields<'_, '_, '_>,
+    percent: Option<Decimal>,
+    decimal: Option<Decimal>,
+    percents: &mut Vec<Decimal>,
+    decimals: &mut Vec<Decimal>,
+) -> Option<Decimal> {
+    match (percent, decimal, f.given(PERCENT), f.given(DECIMAL)) {
+        (_, _, true, true) => {
+            f.report(
+                Severity::Error,
+                DECIMAL,
+                &format!(
+                    "{} and {}",
+                    f.raw(PERCENT).map(|c| c.shown()).unwrap_or_default(),
+                    f.raw(DECIMAL).map(|c| c.shown()).unwrap_or_default()
+                ),
+                "one rate per row, in rate_percent or in rate_decimal",
+                "clear one of the two cells",
+            );
+            None
+        }
+        (Some(p), _, _, _) => {
+            percents.push(p);
+            percent_to_decimal(p).or_else(|| {
+                f.report(
+                    Severity::Error,
+                    PERCENT,
+                    &p.to_string(),
+                    "a percent rate with at most 26 decimal places",
+                    "shorten the rate",
+                );
+                None
+            })
+        }
+        (_, Some(d), _, _) => {
+            decimals.push(d);
+            Some(d)
+        }
+        (None, None, false, false) => {
+            f.report(
+                Severity::Error,
+                PERCENT,
+                "",
+                "a rate in rate_percent or rate_decimal, or an index",
+                "fill in the row's rate",
+            );
+            None
+        }
+        _ => None,
+    }
+}
+
 /// 4.25 (percent) as 0.0425: the decimal point moves two places, exactly.
-fn percent_to_decimal(p: Decimal) -> Option<Decimal> {
+pub(crate) fn percent_to_decimal(p: Decimal) -> Option<Decimal> {
     let mut d = p;
     d.set_scale(p.scale().checked_add(2)?).ok()?;
+    Some(d)
+}
+
+/// 125 (basis points) as 0.0125: the decimal point moves four places, exactly.
+fn basis_points_to_decimal(bp: Decimal) -> Option<Decimal> {
+    let mut d = bp;
+    d.set_scale(bp.scale().checked_add(4)?).ok()?;
     Some(d)
 }
 
@@ -369,5 +470,82 @@ mod tests {
     #[test]
     fn the_decimal_threshold_is_point_two() {
         assert_eq!(PERCENT_LOOKS_DECIMAL.to_string(), "0.2");
+    }
+
+    /// books.md, Rates: a row may name an index with a spread in basis
+    /// points, a floor and a cap in percent; fixed rows of the same rate_ref
+    /// become fixed tiers of its floating schedule.
+    #[test]
+    fn an_index_row_makes_a_floating_schedule() {
+        let sheet = text_sheet(
+            SheetKind::Rates,
+            &[
+                &[
+                    "rate_ref",
+                    "effective",
+                    "rate_percent",
+                    "index",
+                    "spread_bp",
+                    "floor_percent",
+                    "cap_percent",
+                ],
+                &["HVM-FLT", "2026-01-01", "4.5", "", "", "", ""],
+                &["HVM-FLT", "2026-07-01", "", "HVM-ON", "125", "0", "8"],
+            ],
+        );
+        let mut problems = Vec::new();
+        let rates = read(ctx(), &sheet, &mut problems);
+        assert!(problems.is_empty(), "{problems:?}");
+        assert!(rates.schedules.is_empty());
+        let s = &rates.floating["HVM-FLT"];
+        assert_eq!(s.indices(), ["HVM-ON"]);
+        let tiers = |day: &str| {
+            s.table_on(day.parse().unwrap()).unwrap().tiers[0]
+                .rate
+                .clone()
+        };
+        assert_eq!(
+            tiers("2026-03-01"),
+            TierRate::Fixed("0.045".parse().unwrap())
+        );
+        assert_eq!(
+            tiers("2026-07-01"),
+            TierRate::Index(IndexRate {
+                index: "HVM-ON".into(),
+                spread: "0.0125".parse().unwrap(),
+                floor: Some("0.00".parse().unwrap()),
+                cap: Some("0.08".parse().unwrap()),
+            })
+        );
+    }
+
+    /// Section 10: a floor above the cap, a rate and an index on one row,
+    /// or a spread without an index are errors that spoil the schedule.
+    #[test]
+    fn floating_rows_that_cannot_be_used() {
+        let sheet = text_sheet(
+            SheetKind::Rates,
+            &[
+                &[
+                    "rate_ref",
+                    "effective",
+                    "rate_percent",
+                    "index",
+                    "spread_bp",
+                    "floor_percent",
+                    "cap_percent",
+                ],
+                &["A", "2026-01-01", "", "HVM-ON", "0", "3", "2"],
+                &["B", "2026-01-01", "4", "HVM-ON", "", "", ""],
+                &["C", "2026-01-01", "4", "", "25", "", ""],
+            ],
+        );
+        let mut problems = Vec::new();
+        let rates = read(ctx(), &sheet, &mut problems);
+        let cells: Vec<&str> = problems.iter().map(|p| p.position.cell.as_str()).collect();
+        assert_eq!(cells, ["F2", "C3", "E4"]);
+        assert!(problems[0].expected.contains("at or below the cap"));
+        assert!(rates.floating.is_empty() && rates.schedules.is_empty());
+        assert_eq!(rates.broken.len(), 3);
     }
 }

@@ -10,6 +10,7 @@ use std::path::Path;
 
 use super::accounts::{self, Others};
 use super::cell::NumberStyle;
+use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
 use super::model::{Book, Position, Problem, Severity};
 use super::rates::{self, Rates};
@@ -80,13 +81,18 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
         .map_or_else(Calendars::default, |s| holidays::read(ctx, s, problems));
     let rates =
         sheet(SheetKind::Rates).map_or_else(Rates::default, |s| rates::read(ctx, s, problems));
+    let fixings = sheet(SheetKind::Fixings)
+        .map_or_else(FixingsSheet::default, |s| fixings::read(ctx, s, problems));
     let others = Others {
         rates: &rates,
         calendars: &calendars,
+        fixings: &fixings,
     };
     let accounts_sheet = sheet(SheetKind::Accounts);
     let Some(found) = accounts_sheet.and_then(|s| accounts::read(ctx, s, &others, problems)) else {
         book.rates = rates.schedules;
+        book.floating_rates = rates.floating;
+        book.fixings = fixings.fixings;
         book.settings = settings.rows;
         return book;
     };
@@ -120,7 +126,26 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     book.movements.retain(|id, _| kept.contains(id.as_str()));
     book.statements
         .retain(|s| kept.contains(s.account.as_str()));
+    // A fixing dated on a day that is not a business day of an account's
+    // calendar is never used for it: a warning, once per calendar.
+    let mut seen = BTreeSet::new();
+    for e in &entries {
+        if let Some(schedule) = rates.floating.get(&e.rate_ref) {
+            for index in schedule.indices() {
+                fixings.holiday_warnings(
+                    ctx,
+                    index,
+                    &e.terms.calendar,
+                    &e.terms.id,
+                    &mut seen,
+                    problems,
+                );
+            }
+        }
+    }
     book.rates = rates.schedules;
+    book.floating_rates = rates.floating;
+    book.fixings = fixings.fixings;
     book.accounts = entries;
     book.settings = settings.rows;
     book

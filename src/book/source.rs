@@ -34,7 +34,7 @@ pub(crate) enum SheetKind {
     Movements,
     /// Postings as statements show them.
     Statements,
-    /// Index fixings (floating rates; not read yet).
+    /// Index fixings (floating rates).
     Fixings,
     /// Holiday calendars.
     Holidays,
@@ -392,12 +392,7 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsxError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                // Fixings are not used yet: the sheet is noted, not read.
-                let cells = if kind == SheetKind::Fixings {
-                    Some(Cells::new())
-                } else {
-                    read_xlsx_sheet(&mut wb, &name, book, &mut loaded)
-                };
+                let cells = read_xlsx_sheet(&mut wb, &name, book, &mut loaded);
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -406,12 +401,7 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsbError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                // Fixings are not used yet: the sheet is noted, not read.
-                let cells = if kind == SheetKind::Fixings {
-                    Some(Cells::new())
-                } else {
-                    read_xlsb_sheet(&mut wb, &name)
-                };
+                let cells = read_xlsb_sheet(&mut wb, &name);
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -420,12 +410,7 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: XlsError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                // Fixings are not used yet: the sheet is noted, not read.
-                let cells = if kind == SheetKind::Fixings {
-                    Some(Cells::new())
-                } else {
-                    read_range(&mut wb, &name)
-                };
+                let cells = read_range(&mut wb, &name);
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -434,12 +419,7 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
                 open_workbook(path).map_err(|e: OdsError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
             for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                // Fixings are not used yet: the sheet is noted, not read.
-                let cells = if kind == SheetKind::Fixings {
-                    Some(Cells::new())
-                } else {
-                    read_range(&mut wb, &name)
-                };
+                let cells = read_range(&mut wb, &name);
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
@@ -510,7 +490,7 @@ fn unused_sheet(name: &str, at: Position, loaded: &mut Loaded) {
     );
 }
 
-/// Adds a sheet that was read, and the note for Fixings.
+/// Adds a sheet that was read.
 fn push_sheet(
     book: &str,
     kind: SheetKind,
@@ -533,16 +513,6 @@ fn push_sheet(
         );
         return;
     };
-    if kind == SheetKind::Fixings {
-        loaded.problem(
-            Severity::Note,
-            at,
-            &name,
-            "the sheets this version reads (Fixings hold index fixings for floating rates, which are not supported yet)",
-            "the sheet is not read; nothing to do",
-        );
-        return;
-    }
     loaded.sheets.push(Sheet {
         kind,
         name,
@@ -788,10 +758,6 @@ fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
             continue;
         }
         picked.push((kind, stem.clone()));
-        if kind == SheetKind::Fixings {
-            push_sheet(book, kind, stem, Some(Cells::new()), loaded);
-            continue;
-        }
         if let Some(rows) = read_csv_file(&file, book, &stem, loaded) {
             loaded.sheets.push(Sheet {
                 kind,

@@ -61,6 +61,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             tolerance: Tolerance::default(),
             fast_path: true,
             shard: None,
+            fixing_fallback: crate::engine::floating::FixingFallback::None,
         };
         let result = run_books(&books, &batch, &|| {});
         writeln!(

@@ -9,10 +9,11 @@ use rust_decimal::Decimal;
 
 use super::daycount::parse_iso_date;
 use super::inputs::check_books_exist;
-use super::run::{tolerance, ToleranceArgs};
+use super::run::{fixing_fallback, tolerance, ToleranceArgs};
 use super::settings::{self, month_start, Settings};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::engine::causes::{likely_cause, Account};
+use crate::engine::floating::{FixingUsed, FloatingRates};
 use crate::engine::rates::RateSource;
 use crate::engine::reconcile::{reconcile, StatementPeriod, Status};
 use crate::engine::run::{accrue, RunOptions, Sources};
@@ -37,6 +38,10 @@ pub struct Args {
     window_start: Option<String>,
     #[command(flatten)]
     tolerance: ToleranceArgs,
+    /// A missing index fixing: none (an error, the default) or last (use the
+    /// last published fixing, with a warning).
+    #[arg(long, value_name = "FALLBACK")]
+    fixing_fallback: Option<String>,
 }
 
 fn parse_period(s: &str) -> Result<(NaiveDate, NaiveDate)> {
@@ -110,10 +115,19 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let mut listed = Settings::default();
     let tol = tolerance(&books, &args.tolerance, &mut listed)?;
     let t = &entry.terms;
-    let rates = book
-        .rates
-        .get(&entry.rate_ref)
-        .ok_or_else(|| anyhow!("no Rates rows for rate_ref '{}'", entry.rate_ref))?;
+    let fallback = fixing_fallback(args.fixing_fallback.as_deref(), &mut listed)?;
+    let floating_schedule = book.floating_rates.get(&entry.rate_ref);
+    let floating = floating_schedule.map(|s| FloatingRates {
+        schedule: s,
+        fixings: &book.fixings,
+        fallback,
+    });
+    let empty = crate::engine::rates::RateSchedule::default();
+    let rates = match (book.rates.get(&entry.rate_ref), floating) {
+        (_, Some(_)) => &empty,
+        (Some(r), None) => r,
+        (None, None) => bail!("no Rates rows for rate_ref '{}'", entry.rate_ref),
+    };
     let debit = entry
         .debit_rate_ref
         .as_ref()
@@ -154,6 +168,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         debit_rates: debit.map(|d| d as &dyn RateSource),
         movements,
         actual: &actual,
+        floating,
     };
     let options = RunOptions {
         window_start,
@@ -191,11 +206,52 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         t.posting.name(),
         if t.capitalise { ", capitalised" } else { "" }
     )?;
+    if let Some(s) = floating_schedule {
+        let fl = t.floating;
+        writeln!(
+            out,
+            "floating: {} on {}, lookback {} business days{}{}, spread {}{}",
+            fl.method.name(),
+            s.indices().join(", "),
+            fl.lookback_days,
+            if fl.observation_shift {
+                " with observation shift"
+            } else {
+                ""
+            },
+            if fl.lockout_days > 0 {
+                format!(", lockout {} business days", fl.lockout_days)
+            } else {
+                String::new()
+            },
+            if fl.spread_compounded {
+                "compounded"
+            } else {
+                "added"
+            },
+            if fl.floor_on == crate::engine::FloorOn::AllIn {
+                ", floor and cap on the all-in rate"
+            } else {
+                ""
+            },
+        )?;
+    }
     writeln!(out, "days {}..{} (cut-off {cutoff})", shown.0, shown.1)?;
     writeln!(
         out,
-        "{:<10} {:>18} {:>18} {:>9} {:>9} {:>16} {:>16}",
-        "date", "balance", "base", "rate", "fraction", "interest", "accrued"
+        "{:<10} {:>18} {:>18} {:>9} {:>9} {:>16} {:>16}{}",
+        "date",
+        "balance",
+        "base",
+        "rate",
+        "fraction",
+        "interest",
+        "accrued",
+        if floating.is_some() {
+            "  fixing used"
+        } else {
+            ""
+        }
     )?;
     for d in r
         .days
@@ -206,7 +262,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         rate.rescale(4);
         writeln!(
             out,
-            "{:<10} {:>18} {:>18} {:>8}% {:>9} {:>16} {:>16}{}",
+            "{:<10} {:>18} {:>18} {:>8}% {:>9} {:>16} {:>16}{}{}",
             d.date,
             fmt_amount(d.balance, places),
             fmt_amount(d.base, places),
@@ -214,6 +270,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             format!("{}/{}", d.fraction.num, d.fraction.den),
             fmt_amount(d.interest, places + 6),
             fmt_amount(d.accrued, places + 6),
+            d.fixing.as_ref().map(fixing_words).unwrap_or_default(),
             d.posted
                 .map(|p| format!("  posted {}", fmt_amount(p, places)))
                 .unwrap_or_default()
@@ -256,6 +313,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         movements,
         actual: &actual,
         states: &r.states,
+        floating,
     };
     for row in rows
         .iter()
@@ -281,10 +339,34 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     if periods.is_empty() {
         writeln!(out, "no statement rows for this account")?;
     }
+    for w in &r.fixing_warnings {
+        writeln!(
+            out,
+            "warning: no {} fixing for {}: the {} fixing stood in (--fixing-fallback last)",
+            w.index, w.date, w.used
+        )?;
+    }
     writeln!(
         out,
         "accrued at cut-off {}",
         fmt_amount(r.accrued_at_cutoff, places)
     )?;
     Ok(exit::OK)
+}
+
+/// A day's fixing as explain shows it: index, the fixing's own date (after
+/// lookback and lockout) and rate in percent, and any stand-in.
+fn fixing_words(f: &FixingUsed) -> String {
+    let mut pct = (f.rate * Decimal::ONE_HUNDRED).normalize();
+    if pct.scale() < 4 {
+        pct.rescale(4);
+    }
+    format!(
+        "  {} {} {pct}%{}",
+        f.index,
+        f.date,
+        f.stand_in
+            .map(|s| format!(" (not published: the {s} fixing stood in)"))
+            .unwrap_or_default()
+    )
 }

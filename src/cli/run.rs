@@ -14,6 +14,7 @@ use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::batch::journal::JournalStyle;
 use crate::batch::{run_books, BatchSettings};
 use crate::book::{Problem, Severity};
+use crate::engine::floating::FixingFallback;
 use crate::engine::reconcile::Tolerance;
 use crate::report::model::{Report, RunFacts, SettingSource};
 use rust_decimal::Decimal;
@@ -59,6 +60,10 @@ pub struct Args {
     /// machines; combine the shard workbooks with `ledgerate merge`.
     #[arg(long, value_name = "K/N")]
     shard: Option<String>,
+    /// A missing index fixing: none (an error on the account, the default) or
+    /// last (use the last published fixing, with a warning).
+    #[arg(long, value_name = "FALLBACK")]
+    fixing_fallback: Option<String>,
 }
 
 /// Parses `K/N` with 1 <= K <= N.
@@ -74,6 +79,29 @@ fn parse_shard(s: &str) -> Result<(u32, u32)> {
         return Err(bad());
     }
     Ok((k, n))
+}
+
+/// The `--fixing-fallback` in force, recorded for the Run sheet.
+pub(crate) fn fixing_fallback(
+    given: Option<&str>,
+    listed: &mut Settings,
+) -> Result<FixingFallback> {
+    let fallback = match given {
+        Some(v) => FixingFallback::parse(v).map_err(|e| anyhow!("--fixing-fallback: {e}"))?,
+        None => FixingFallback::None,
+    };
+    listed.record(
+        "fixing_fallback",
+        &settings::Resolved {
+            value: fallback.name(),
+            source: if given.is_some() {
+                crate::report::model::SettingSource::Option
+            } else {
+                crate::report::model::SettingSource::Default
+            },
+        },
+    );
+    Ok(fallback)
 }
 
 /// Reconciliation tolerances.
@@ -308,6 +336,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             },
         );
     }
+    let fixing_fallback = fixing_fallback(args.fixing_fallback.as_deref(), &mut listed)?;
     let target = args
         .out
         .clone()
@@ -330,6 +359,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         tolerance,
         fast_path: !args.no_fast_path,
         shard,
+        fixing_fallback,
     };
     let total: usize = books.iter().map(|b| b.accounts.len()).sum();
     let bar = progress_bar(total);

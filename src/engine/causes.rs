@@ -2,6 +2,10 @@
 //! with one change at a time, from the state at the start of the period, and
 //! keep the changes that reproduce the posted amount within tolerance.
 //!
+//! Floating accounts (semantics section 10) also try the lookback mis-set by
+//! up to two business days, the observation shift and the spread's
+//! compounding the other way, and a floor or cap not applied.
+//!
 //! Pure. The words it returns name what changed (the basis by its standard
 //! name, the dates moved from and to, the movement's reference and amount)
 //! so that a reviewer can check them against the contract.
@@ -9,10 +13,13 @@
 use chrono::{Days, NaiveDate};
 use rust_decimal::Decimal;
 
+use super::floating::{FloatingRates, FloatingSchedule, IndexRate, TierRate};
 use super::rates::{RateSchedule, RateTable};
 use super::reconcile::{expected_over, Reconciled, Tolerance};
 use super::run::{resume, AccrualState, RunOptions, Sources};
-use super::terms::{AccountTerms, ActualPosting, Movement, RoundAt};
+use super::terms::{
+    AccountTerms, ActualPosting, FloatingTerms, FloorOn, Movement, RateMethod, RoundAt,
+};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
 use crate::conventions::rounding::RoundMode;
@@ -32,6 +39,8 @@ pub struct Account<'a> {
     pub actual: &'a [ActualPosting],
     /// States saved at each period start by the original run.
     pub states: &'a [AccrualState],
+    /// A floating account's tables and fixings (then `rates` is not used).
+    pub floating: Option<FloatingRates<'a>>,
 }
 
 /// One change tried.
@@ -41,6 +50,7 @@ struct Change {
     terms: Option<AccountTerms>,
     rates: Option<RateSchedule>,
     movements: Option<Vec<Movement>>,
+    floating: Option<FloatingSchedule>,
     period: Option<(NaiveDate, NaiveDate)>,
     /// The earliest date the change touches (where the re-run must start).
     from: NaiveDate,
@@ -99,6 +109,7 @@ fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
         terms: None,
         rates: None,
         movements: None,
+        floating: None,
         period: None,
         from: s,
     };
@@ -261,6 +272,103 @@ fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
         c.from = m.value_date.min(s);
         out.push(c);
     }
+    if let Some(f) = a.floating {
+        out.extend(floating_changes(t, f.schedule, &base));
+    }
+    out
+}
+
+/// The floating-rate changes: the lookback mis-set by up to two business
+/// days, the observation shift and the compounding of the spread the other
+/// way, and any floor or cap not applied.
+fn floating_changes(
+    t: &AccountTerms,
+    schedule: &FloatingSchedule,
+    base: &dyn Fn(String) -> Change,
+) -> Vec<Change> {
+    let mut out = Vec::new();
+    let fl = t.floating;
+    let with = |floating: FloatingTerms| AccountTerms {
+        floating,
+        ..t.clone()
+    };
+    for k in fl.lookback_days.saturating_sub(2)..=fl.lookback_days + 2 {
+        if k == fl.lookback_days {
+            continue;
+        }
+        let mut c = base(format!(
+            "a lookback of {k} business days instead of {}",
+            fl.lookback_days
+        ));
+        c.terms = Some(with(FloatingTerms {
+            lookback_days: k,
+            ..fl
+        }));
+        out.push(c);
+    }
+    if fl.method == RateMethod::CompoundedInArrears {
+        let mut c = base(if fl.observation_shift {
+            "no observation shift (the lookback moves only the fixings)".to_string()
+        } else {
+            "an observation shift (the lookback moves the weights too)".to_string()
+        });
+        c.terms = Some(with(FloatingTerms {
+            observation_shift: !fl.observation_shift,
+            ..fl
+        }));
+        out.push(c);
+        let spreads = schedule
+            .tables()
+            .iter()
+            .flat_map(|x| x.tiers.iter())
+            .any(|x| matches!(&x.rate, TierRate::Index(i) if !i.spread.is_zero()));
+        if spreads && fl.floor_on == FloorOn::Index {
+            let mut c = base(if fl.spread_compounded {
+                "the spread added after compounding instead of compounded".to_string()
+            } else {
+                "the spread compounded with the fixings instead of added after".to_string()
+            });
+            c.terms = Some(with(FloatingTerms {
+                spread_compounded: !fl.spread_compounded,
+                ..fl
+            }));
+            out.push(c);
+        }
+    }
+    for (words, drop_floor) in [("floor", true), ("cap", false)] {
+        let mut found = false;
+        let tables = schedule
+            .tables()
+            .iter()
+            .flat_map(|x| {
+                x.tiers.iter().map(move |tier| {
+                    let rate = match &tier.rate {
+                        TierRate::Index(i) => TierRate::Index(IndexRate {
+                            floor: if drop_floor { None } else { i.floor },
+                            cap: if drop_floor { i.cap } else { None },
+                            ..i.clone()
+                        }),
+                        fixed => fixed.clone(),
+                    };
+                    (x.effective, rate, tier.from)
+                })
+            })
+            .collect::<Vec<_>>();
+        for tier in schedule.tables().iter().flat_map(|x| x.tiers.iter()) {
+            if let TierRate::Index(i) = &tier.rate {
+                found |= if drop_floor {
+                    i.floor.is_some()
+                } else {
+                    i.cap.is_some()
+                };
+            }
+        }
+        if found {
+            let mut c = base(format!("the {words} not applied"));
+            c.floating = Some(FloatingSchedule::from_rows(tables));
+            out.push(c);
+        }
+    }
     out
 }
 
@@ -295,11 +403,16 @@ pub fn likely_cause(a: &Account, row: &Reconciled, tolerance: &Tolerance) -> Str
         let movements = change.movements.as_deref().unwrap_or(a.movements);
         let (ps, pe) = change.period.unwrap_or((row.start, row.end));
         let state = state_for(a, terms, change.from);
+        let floating = a.floating.map(|f| FloatingRates {
+            schedule: change.floating.as_ref().unwrap_or(f.schedule),
+            ..f
+        });
         let sources = Sources {
             rates,
             debit_rates: a.debit_rates.map(|r| r as &dyn super::rates::RateSource),
             movements,
             actual: a.actual,
+            floating,
         };
         let options = RunOptions {
             window_start: ps,

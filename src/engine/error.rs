@@ -31,6 +31,14 @@ pub enum EngineError {
     /// A combination of terms the engine does not support.
     #[error("unsupported terms: {0}")]
     Unsupported(String),
+    /// A floating rate needs a fixing the fixings do not hold.
+    #[error("no {index} fixing for {date}")]
+    MissingFixing {
+        /// The index.
+        index: String,
+        /// The business day whose fixing is missing.
+        date: NaiveDate,
+    },
     /// A day-count basis lacks a term it needs.
     #[error("{0}")]
     DayCount(#[from] DayCountError),

@@ -12,6 +12,7 @@
 pub mod accrual;
 pub mod causes;
 pub mod error;
+pub mod floating;
 pub mod rates;
 pub mod reconcile;
 pub mod run;
@@ -19,4 +20,7 @@ pub mod terms;
 
 pub use error::EngineError;
 pub use run::{accrue, resume, AccountResult, AccrualState, DayRow, PostingRow, RunOptions};
-pub use terms::{AccountTerms, ActualPosting, Movement, RoundAt, Side, TierMethod};
+pub use terms::{
+    AccountTerms, ActualPosting, FloatingTerms, FloorOn, Movement, RateMethod, RoundAt, Side,
+    TierMethod,
+};

@@ -333,6 +333,7 @@ mod tests {
             debit_rates: None,
             movements: &[],
             actual,
+            floating: None,
         };
         let o = RunOptions {
             window_start: d(from),

@@ -11,6 +11,7 @@ use rust_decimal::Decimal;
 
 use super::accrual::{Accrual, Overflow};
 use super::error::EngineError;
+use super::floating::{resolve, FixingUsed, FixingWarning, FloatingRates, Resolved};
 use super::rates::{RateSource, RateTable};
 use super::terms::{AccountTerms, ActualPosting, Movement, RoundAt, TierMethod};
 use crate::conventions::compounding::Compounding;
@@ -74,6 +75,8 @@ pub struct DayRow {
     pub accrued: Decimal,
     /// The amount posted at the end of D, if a period ends on D.
     pub posted: Option<Decimal>,
+    /// The index fixing behind D's rate (floating rates; after lookback and lockout).
+    pub fixing: Option<FixingUsed>,
 }
 
 /// One posting period's result.
@@ -163,6 +166,8 @@ pub struct AccountResult {
     pub days: Vec<DayRow>,
     /// The state at the start of each posting period, when asked for.
     pub states: Vec<AccrualState>,
+    /// Missing fixings replaced by the last published one (`last` fallback).
+    pub fixing_warnings: Vec<FixingWarning>,
 }
 
 /// The inputs of one account besides its terms.
@@ -176,6 +181,10 @@ pub struct Sources<'a> {
     pub movements: &'a [Movement],
     /// Amounts actually posted, from statements.
     pub actual: &'a [ActualPosting],
+    /// A floating account's tables and fixings (semantics section 10). When
+    /// given, the account's rates are resolved from them for each day of the
+    /// run and `rates` is not consulted; a fixed-rate account leaves it `None`.
+    pub floating: Option<FloatingRates<'a>>,
 }
 
 /// Accrues `terms` from its opening to the cut-off.
@@ -194,7 +203,7 @@ pub struct Sources<'a> {
 /// // 1,000.00 at 2.25% over a regular 30/360 month is exactly 1.875: it posts 1.88.
 /// let terms = AccountTerms::new("EX-01", "USD", 2, Basis::Thirty360, d("2026-11-01"), n("1000.00"));
 /// let rates = RateSchedule::from_rows([(d("2026-01-01"), n("0.0225"), Decimal::ZERO)]);
-/// let src = Sources { rates: &rates, debit_rates: None, movements: &[], actual: &[] };
+/// let src = Sources { rates: &rates, debit_rates: None, movements: &[], actual: &[], floating: None };
 /// let r = accrue(&terms, src, RunOptions::month_end(d("2026-11-30"))).unwrap();
 /// assert_eq!(r.postings[0].interest.to_string(), "1.875");
 /// assert_eq!(r.postings[0].posted.to_string(), "1.88");
@@ -219,46 +228,43 @@ pub fn resume(
     options: RunOptions,
     state: &AccrualState,
 ) -> Result<AccountResult, EngineError> {
-    Loop::new(terms, sources, options, state)?.run()
+    let plan = Plan::new(terms, &options)?;
+    let resolved: Option<Resolved> = match (sources.floating, terms.floating.method.is_floating()) {
+        (Some(f), _) => Some(resolve(terms, &f, &plan.periods, state.day, plan.last_day)?),
+        (None, true) => {
+            return Err(EngineError::Unsupported(format!(
+                "rate_method {} without floating rates and fixings",
+                terms.floating.method.name()
+            )))
+        }
+        (None, false) => None,
+    };
+    let sources = match &resolved {
+        Some(r) => Sources {
+            rates: r,
+            floating: None,
+            ..sources
+        },
+        None => sources,
+    };
+    let mut result = Loop::new(terms, sources, options, state, plan, resolved.as_ref())?.run()?;
+    if let Some(r) = resolved {
+        result.fixing_warnings = r.warnings;
+    }
+    Ok(result)
 }
 
-fn overflow(what: &'static str, date: NaiveDate) -> impl Fn(Overflow) -> EngineError {
-    move |_| EngineError::Overflow { what, date }
-}
-
-fn checked(
-    x: Option<Decimal>,
-    what: &'static str,
-    date: NaiveDate,
-) -> Result<Decimal, EngineError> {
-    x.ok_or(EngineError::Overflow { what, date })
-}
-
-/// The working state of one run.
-struct Loop<'a> {
-    terms: &'a AccountTerms,
-    sources: Sources<'a>,
-    options: RunOptions,
-    /// Posting periods; empty when the account never posts.
+/// The schedule of one run: posting periods, compounding ends, reference
+/// periods and the last earning day.
+struct Plan {
     periods: Vec<Period>,
     compounding_ends: Vec<NaiveDate>,
     references: Vec<(NaiveDate, NaiveDate)>,
-    /// Movement indices by value date.
-    order: Vec<usize>,
-    /// The last day that earns.
     last_day: NaiveDate,
-    state: AccrualState,
-    period_acc: Accrual,
-    since_compounding: Accrual,
 }
 
-impl<'a> Loop<'a> {
-    fn new(
-        terms: &'a AccountTerms,
-        sources: Sources<'a>,
-        options: RunOptions,
-        state: &AccrualState,
-    ) -> Result<Loop<'a>, EngineError> {
+impl Plan {
+    fn new(terms: &AccountTerms, options: &RunOptions) -> Result<Plan, EngineError> {
         let open = terms.open_date;
         let start = terms.first_period_start();
         let anchor = match terms.anchor {
@@ -298,6 +304,62 @@ impl<'a> Loop<'a> {
         } else {
             Vec::new()
         };
+        Ok(Plan {
+            periods,
+            compounding_ends,
+            references,
+            last_day,
+        })
+    }
+}
+
+fn overflow(what: &'static str, date: NaiveDate) -> impl Fn(Overflow) -> EngineError {
+    move |_| EngineError::Overflow { what, date }
+}
+
+fn checked(
+    x: Option<Decimal>,
+    what: &'static str,
+    date: NaiveDate,
+) -> Result<Decimal, EngineError> {
+    x.ok_or(EngineError::Overflow { what, date })
+}
+
+/// The working state of one run.
+struct Loop<'a> {
+    terms: &'a AccountTerms,
+    sources: Sources<'a>,
+    options: RunOptions,
+    /// Posting periods; empty when the account never posts.
+    periods: Vec<Period>,
+    compounding_ends: Vec<NaiveDate>,
+    references: Vec<(NaiveDate, NaiveDate)>,
+    /// Movement indices by value date.
+    order: Vec<usize>,
+    /// The last day that earns.
+    last_day: NaiveDate,
+    state: AccrualState,
+    period_acc: Accrual,
+    since_compounding: Accrual,
+    /// The fixing behind each day's rate, for a floating account.
+    fixings: Option<&'a std::collections::BTreeMap<NaiveDate, FixingUsed>>,
+}
+
+impl<'a> Loop<'a> {
+    fn new(
+        terms: &'a AccountTerms,
+        sources: Sources<'a>,
+        options: RunOptions,
+        state: &AccrualState,
+        plan: Plan,
+        resolved: Option<&'a Resolved>,
+    ) -> Result<Loop<'a>, EngineError> {
+        let Plan {
+            periods,
+            compounding_ends,
+            references,
+            last_day,
+        } = plan;
         let mut order: Vec<usize> = (0..sources.movements.len()).collect();
         order.sort_by_key(|&i| sources.movements.get(i).map(|m| m.value_date));
         Ok(Loop {
@@ -312,6 +374,7 @@ impl<'a> Loop<'a> {
             state: state.clone(),
             period_acc: Accrual::new(),
             since_compounding: Accrual::new(),
+            fixings: resolved.map(|r| &r.fixings),
         })
     }
 
@@ -580,6 +643,7 @@ impl<'a> Loop<'a> {
                         back_value: back_value_today,
                         accrued,
                         posted: posted_today,
+                        fixing: self.fixings.and_then(|f| f.get(&d)).cloned(),
                     });
                 }
             }
@@ -652,6 +716,7 @@ impl<'a> Loop<'a> {
             effective_annual_rate,
             days,
             states,
+            fixing_warnings: Vec::new(),
         })
     }
 

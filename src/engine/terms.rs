@@ -114,6 +114,112 @@ impl TierMethod {
     }
 }
 
+/// How an account's rate is found for each day (books.md, Accounts column
+/// `rate_method`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub enum RateMethod {
+    /// The Rates rows give the rate itself.
+    #[default]
+    Fixed,
+    /// Each day earns its looked-back fixing plus the spread, over f(D).
+    SimpleDaily,
+    /// The fixings of a period's business days compound (ACT/360 or ACT/365F).
+    CompoundedInArrears,
+}
+
+impl RateMethod {
+    /// The canonical name.
+    pub fn name(self) -> &'static str {
+        match self {
+            RateMethod::Fixed => "fixed",
+            RateMethod::SimpleDaily => "simple-daily",
+            RateMethod::CompoundedInArrears => "compounded-in-arrears",
+        }
+    }
+
+    /// Parses `fixed`, `simple-daily` or `compounded-in-arrears`.
+    ///
+    /// ```
+    /// use ledgerate::engine::terms::RateMethod;
+    /// assert_eq!(RateMethod::parse("Compounded-In-Arrears"), Ok(RateMethod::CompoundedInArrears));
+    /// assert!(RateMethod::parse("compounded").is_err());
+    /// ```
+    ///
+    /// # Errors
+    /// [`UnknownName`] with the closest name.
+    pub fn parse(s: &str) -> Result<RateMethod, UnknownName> {
+        lookup(
+            "rate method",
+            s,
+            &[
+                ("fixed", RateMethod::Fixed),
+                ("simple-daily", RateMethod::SimpleDaily),
+                ("compounded-in-arrears", RateMethod::CompoundedInArrears),
+            ],
+            &["fixed", "simple-daily", "compounded-in-arrears"],
+        )
+    }
+
+    /// Whether the rate comes from index fixings.
+    pub fn is_floating(self) -> bool {
+        self != RateMethod::Fixed
+    }
+}
+
+/// What a floor and a cap bound (books.md, Accounts column `floor_on`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub enum FloorOn {
+    /// Each looked-back fixing, before the spread is added.
+    #[default]
+    Index,
+    /// The index plus the spread.
+    AllIn,
+}
+
+impl FloorOn {
+    /// The canonical name.
+    pub fn name(self) -> &'static str {
+        match self {
+            FloorOn::Index => "index",
+            FloorOn::AllIn => "all-in",
+        }
+    }
+
+    /// Parses `index` or `all-in`.
+    ///
+    /// # Errors
+    /// [`UnknownName`] with the closest name.
+    pub fn parse(s: &str) -> Result<FloorOn, UnknownName> {
+        lookup(
+            "floor basis",
+            s,
+            &[("index", FloorOn::Index), ("all-in", FloorOn::AllIn)],
+            &["index", "all-in"],
+        )
+    }
+}
+
+/// The floating-rate terms of an account (semantics section 10). The default
+/// is a fixed-rate account.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub struct FloatingTerms {
+    /// How the day's rate is found.
+    pub method: RateMethod,
+    /// Business days each fixing is looked back.
+    pub lookback_days: u32,
+    /// Compounded-in-arrears: take the business days and weights from the
+    /// observation period moved back `lookback_days` business days.
+    pub observation_shift: bool,
+    /// The last business days of a period that use the fixing of the business
+    /// day before them.
+    pub lockout_days: u32,
+    /// Compounded-in-arrears: the spread compounds with the fixings (else it
+    /// is added after compounding).
+    pub spread_compounded: bool,
+    /// What a floor and a cap bound.
+    pub floor_on: FloorOn,
+}
+
 /// The terms of one account (books.md, Accounts sheet).
 #[derive(Debug, Clone)]
 pub struct AccountTerms {
@@ -161,6 +267,8 @@ pub struct AccountTerms {
     pub opening_accrued: Decimal,
     /// Where the period open on `open_date` began, when before it.
     pub period_start: Option<NaiveDate>,
+    /// How the rate of each day is found (semantics section 10); fixed by default.
+    pub floating: FloatingTerms,
 }
 
 impl AccountTerms {
@@ -205,6 +313,7 @@ impl AccountTerms {
             opening_balance,
             opening_accrued: Decimal::ZERO,
             period_start: None,
+            floating: FloatingTerms::default(),
         }
     }
 

@@ -68,6 +68,7 @@ fn posted_with(
         debit_rates: None,
         movements,
         actual: &[],
+        floating: None,
     };
     let r = accrue(terms, src, options()).unwrap();
     match period {
@@ -90,6 +91,7 @@ fn explain(c: &Case, posted: Decimal, tolerance: Tolerance) -> (Status, String) 
         debit_rates: None,
         movements: &c.movements,
         actual: &[],
+        floating: None,
     };
     let r = accrue(&c.terms, src, options()).unwrap();
     let st = [StatementPeriod {
@@ -115,6 +117,7 @@ fn explain(c: &Case, posted: Decimal, tolerance: Tolerance) -> (Status, String) 
         movements: &c.movements,
         actual: &[],
         states: &r.states,
+        floating: None,
     };
     (row.status, likely_cause(&a, row, &tolerance))
 }
@@ -370,4 +373,175 @@ fn nothing_reproduces_it_so_the_implied_rate_is_given() {
         cause,
         "no single change reproduces the posted amount; it implies a rate of 3.06% a year against the contract's 3.00% (6.00 bp)"
     );
+}
+
+/// A Harbourview Mutual floating note: 10,000,000 compounded in arrears on
+/// the invented index HVM-ON, lookback 2, spread 150 bp added after
+/// compounding, floored at zero; invented fixings from -0.20% to 0.69%.
+struct FloatingCase {
+    terms: AccountTerms,
+    schedule: FloatingSchedule,
+    fixings: crate::engine::floating::Fixings,
+}
+
+fn floating_case() -> FloatingCase {
+    let mut terms = AccountTerms::new(
+        "HVM-FRN-09",
+        "USD",
+        2,
+        Basis::Act360,
+        d("2026-10-01"),
+        n("10000000.00"),
+    );
+    terms.floating = FloatingTerms {
+        method: RateMethod::CompoundedInArrears,
+        lookback_days: 2,
+        ..FloatingTerms::default()
+    };
+    let schedule = FloatingSchedule::from_rows([(
+        d("2026-01-01"),
+        TierRate::Index(IndexRate {
+            index: "HVM-ON".into(),
+            spread: n("0.015"),
+            floor: Some(Decimal::ZERO),
+            cap: None,
+        }),
+        Decimal::ZERO,
+    )]);
+    let mut series = std::collections::BTreeMap::new();
+    let mut day = d("2026-09-15");
+    let mut k = 0i64;
+    while day <= d("2026-12-10") {
+        if terms.calendar.is_business_day(day) {
+            series.insert(day, Decimal::new((k * 37) % 90 - 20, 4));
+            k += 1;
+        }
+        day = day.succ_opt().unwrap();
+    }
+    FloatingCase {
+        terms,
+        schedule,
+        fixings: std::collections::BTreeMap::from([("HVM-ON".to_string(), series)]),
+    }
+}
+
+fn floating_sources<'a>(
+    c: &'a FloatingCase,
+    schedule: &'a FloatingSchedule,
+    empty: &'a RateSchedule,
+) -> Sources<'a> {
+    Sources {
+        rates: empty,
+        debit_rates: None,
+        movements: &[],
+        actual: &[],
+        floating: Some(FloatingRates {
+            schedule,
+            fixings: &c.fixings,
+            fallback: crate::engine::floating::FixingFallback::None,
+        }),
+    }
+}
+
+/// The November posting under `terms` and `schedule`, and the cause the
+/// search gives for it against the contract.
+fn floating_cause(c: &FloatingCase, terms: &AccountTerms, schedule: &FloatingSchedule) -> String {
+    let empty = RateSchedule::default();
+    let wrong = accrue(terms, floating_sources(c, schedule, &empty), options()).unwrap();
+    let posted = wrong
+        .postings
+        .iter()
+        .find(|p| p.end == d("2026-11-30"))
+        .unwrap()
+        .expected;
+    let sources = floating_sources(c, &c.schedule, &empty);
+    let r = accrue(&c.terms, sources, options()).unwrap();
+    let st = [StatementPeriod {
+        start: d("2026-11-01"),
+        end: d("2026-11-30"),
+        posted,
+        rows: 1,
+    }];
+    let tolerance = Tolerance::default();
+    let rows = reconcile(
+        &c.terms,
+        &r,
+        &st,
+        d("2026-11-01"),
+        d("2026-11-30"),
+        &tolerance,
+    )
+    .unwrap();
+    assert!(
+        matches!(rows[0].status, Status::OverPosted | Status::UnderPosted),
+        "{:?}",
+        rows[0]
+    );
+    let a = Account {
+        terms: &c.terms,
+        rates: &empty,
+        debit_rates: None,
+        movements: &[],
+        actual: &[],
+        states: &r.states,
+        floating: sources.floating,
+    };
+    likely_cause(&a, &rows[0], &tolerance)
+}
+
+/// Section 9 with section 10: a lookback mis-set by a business day is found.
+#[test]
+fn a_floating_lookback_mis_set_is_found() {
+    let c = floating_case();
+    let mut wrong = c.terms.clone();
+    wrong.floating.lookback_days = 3;
+    let cause = floating_cause(&c, &wrong, &c.schedule);
+    assert_first(
+        &cause,
+        "a lookback of 3 business days instead of 2 (reproduces",
+    );
+}
+
+/// Section 9 with section 10: an observation shift applied by mistake is found.
+#[test]
+fn a_floating_observation_shift_is_found() {
+    let c = floating_case();
+    let mut wrong = c.terms.clone();
+    wrong.floating.observation_shift = true;
+    let cause = floating_cause(&c, &wrong, &c.schedule);
+    assert_first(
+        &cause,
+        "an observation shift (the lookback moves the weights too) (reproduces",
+    );
+}
+
+/// Section 9 with section 10: the spread compounded instead of added after is found.
+#[test]
+fn a_floating_spread_compounded_is_found() {
+    let c = floating_case();
+    let mut wrong = c.terms.clone();
+    wrong.floating.spread_compounded = true;
+    let cause = floating_cause(&c, &wrong, &c.schedule);
+    assert_first(
+        &cause,
+        "the spread compounded with the fixings instead of added after",
+    );
+}
+
+/// Section 9 with section 10: a floor left out is found.
+#[test]
+fn a_floating_floor_not_applied_is_found() {
+    let c = floating_case();
+    let unfloored = FloatingSchedule::from_rows([(
+        d("2026-01-01"),
+        TierRate::Index(IndexRate {
+            index: "HVM-ON".into(),
+            spread: n("0.015"),
+            floor: None,
+            cap: None,
+        }),
+        Decimal::ZERO,
+    )]);
+    let cause = floating_cause(&c, &c.terms, &unfloored);
+    assert_first(&cause, "the floor not applied (reproduces");
 }
