@@ -7,9 +7,10 @@
 
 use std::path::Path;
 
-use chrono::NaiveDate;
+use chrono::{Datelike, NaiveDate};
 use ledgerate::book::{read_book, ReadOptions};
 use ledgerate::conventions::daycount::Basis;
+use ledgerate::engine::floating::{FixingFallback, FloatingRates};
 use ledgerate::engine::rates::{RateSchedule, RateSource, RateTable};
 use ledgerate::engine::reconcile::expected_over;
 use ledgerate::engine::run::{accrue, RunOptions, Sources};
@@ -52,7 +53,7 @@ struct Sheet {
     rows: Vec<Vec<Cell>>,
 }
 
-const ACCOUNT_COLUMNS: [&str; 22] = [
+const ACCOUNT_COLUMNS: [&str; 25] = [
     "account",
     "name",
     "currency",
@@ -75,6 +76,9 @@ const ACCOUNT_COLUMNS: [&str; 22] = [
     "business_day",
     "gl_interest",
     "gl_accrued",
+    "rate_method",
+    "lookback_days",
+    "observation_shift",
 ];
 
 /// One account row: the columns of `ACCOUNT_COLUMNS`, by name.
@@ -452,6 +456,52 @@ fn sheets() -> Vec<Sheet> {
     ]));
     rates.push(rate("HM-BF-001", "2026-01-01", "2.00", ""));
 
+    // Two loans on an invented overnight index, compounded in arrears: one
+    // looks each fixing back five business days, one shifts the whole
+    // observation period back five business days.
+    let floating = [
+        (
+            "HM-FLN-001",
+            "Marina development loan (index, 5-day lookback)",
+            "1500000.00",
+            "no",
+        ),
+        (
+            "HM-FLN-002",
+            "Ferry terminal facility (index, observation shift)",
+            "2250000.00",
+            "yes",
+        ),
+    ];
+    for (id, name, bal, shift) in floating {
+        accounts.push(account(&[
+            ("account", t(id)),
+            ("name", t(name)),
+            ("currency", t("USD")),
+            ("side", t("asset")),
+            ("day_count", t("ACT/360")),
+            ("posting", t("monthly")),
+            ("calendar", t("HARBOUR")),
+            ("open_date", date("2026-10-01")),
+            ("opening_balance", num(bal)),
+            ("rate_ref", t("HBR-ON-175")),
+            ("gl_interest", t("4120")),
+            ("gl_accrued", t("1310")),
+            ("rate_method", t("compounded-in-arrears")),
+            ("lookback_days", num("5")),
+            ("observation_shift", t(shift)),
+        ]));
+    }
+    rates.push(vec![
+        t("HBR-ON-175"),
+        date("2026-01-01"),
+        Cell::Empty,
+        Cell::Empty,
+        t("HBR-ON"),
+        num("175"),
+        num("0"),
+    ]);
+    let fixings = harbour_overnight_fixings();
     let holidays = vec![
         vec![t("HARBOUR"), date("2026-11-26"), t("Harvest Thanksgiving")],
         vec![t("HARBOUR"), date("2026-12-25"), t("Christmas Day")],
@@ -472,8 +522,21 @@ fn sheets() -> Vec<Sheet> {
         },
         Sheet {
             name: "Rates",
-            columns: vec!["rate_ref", "effective", "rate_percent", "tier_from"],
+            columns: vec![
+                "rate_ref",
+                "effective",
+                "rate_percent",
+                "tier_from",
+                "index",
+                "spread_bp",
+                "floor_percent",
+            ],
             rows: rates,
+        },
+        Sheet {
+            name: "Fixings",
+            columns: vec!["index", "date", "rate_percent"],
+            rows: fixings,
         },
         Sheet {
             name: "Movements",
@@ -497,6 +560,30 @@ fn sheets() -> Vec<Sheet> {
             rows: settings,
         },
     ]
+}
+
+/// Invented fixings of the invented "HBR-ON" overnight index: every Harbour
+/// business day from September to November 2026, near 3.80% and 25 bp lower
+/// from 6 November.
+fn harbour_overnight_fixings() -> Vec<Vec<Cell>> {
+    let start: NaiveDate = "2026-09-01".parse().expect("date");
+    let end: NaiveDate = "2026-11-30".parse().expect("date");
+    let holiday: NaiveDate = "2026-11-26".parse().expect("date");
+    let cut: NaiveDate = "2026-11-06".parse().expect("date");
+    start
+        .iter_days()
+        .take_while(|d| *d <= end)
+        .filter(|d| d.weekday().number_from_monday() <= 5 && *d != holiday)
+        .map(|d| {
+            let wobble = i64::from(d.ordinal() * 7 % 9) - 4;
+            let bp = 380 + wobble - if d >= cut { 25 } else { 0 };
+            vec![
+                t("HBR-ON"),
+                Cell::Date(d),
+                num(&format!("{}.{:02}", bp / 100, bp % 100)),
+            ]
+        })
+        .collect()
 }
 
 fn write_xlsx(sheets: &[Sheet], path: &Path) -> Result<(), rust_xlsxwriter::XlsxError> {
@@ -544,8 +631,11 @@ fn write_csv(sheets: &[Sheet], dir: &Path) -> std::io::Result<()> {
         let mut w = csv::Writer::from_path(dir.join(format!("{}.csv", s.name.to_lowercase())))?;
         w.write_record(&s.columns)?;
         for row in &s.rows {
+            // Rows shorter than the header are padded: a CSV row must have every field.
             let fields: Vec<String> = row
                 .iter()
+                .chain(std::iter::repeat(&Cell::Empty))
+                .take(s.columns.len())
                 .map(|c| match c {
                     Cell::Text(v) | Cell::Number(v) => v.clone(),
                     Cell::Date(d) => d.to_string(),
@@ -621,7 +711,20 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
     let mut rows = Vec::new();
     for entry in &book.accounts {
         let id = entry.terms.id.as_str();
-        let rates = book.rates.get(&entry.rate_ref).ok_or("rates")?;
+        let empty = RateSchedule::default();
+        let floating = book
+            .floating_rates
+            .get(&entry.rate_ref)
+            .map(|schedule| FloatingRates {
+                schedule,
+                fixings: &book.fixings,
+                fallback: FixingFallback::None,
+            });
+        let rates = match (&floating, book.rates.get(&entry.rate_ref)) {
+            (Some(_), _) => &empty,
+            (None, Some(r)) => r,
+            (None, None) => return Err(format!("no rates for {id}").into()),
+        };
         let debit = entry
             .debit_rate_ref
             .as_ref()
@@ -634,7 +737,7 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
                 debit_rates: debit,
                 movements: m,
                 actual: &[],
-                floating: None,
+                floating,
             };
             accrue(t, src, options)
         };

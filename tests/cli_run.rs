@@ -72,7 +72,7 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
     run_to(&out, &[])
         .success()
         .stdout(predicate::str::contains(
-            "accounts: 39 read, 39 computed, 0 left out by errors",
+            "accounts: 41 read, 41 computed, 0 left out by errors",
         ))
         .stdout(predicate::str::contains("workbook:"));
     // 30E/360: 3,500,000.00 x 2.85% x 30/360 = 8,312.50.
@@ -260,7 +260,7 @@ fn check_reads_and_writes_nothing() {
         .arg(sample())
         .assert()
         .success()
-        .stdout(predicate::str::contains("39 accounts ready, 0 problems"));
+        .stdout(predicate::str::contains("41 accounts ready, 0 problems"));
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
 }
 
@@ -376,6 +376,9 @@ fn the_planted_statement_mistakes_are_found_and_explained() {
         ("HM-TW-002", "2026-11-30", "within tolerance", ""),
         ("HM-SAV-001", "2026-10-31", "agrees", ""),
         ("HM-BF-001", "2026-11-30", "agrees", ""),
+        // Floating-rate loans compounded in arrears, 5-day lookback and 5-day shift.
+        ("HM-FLN-001", "2026-11-30", "agrees", ""),
+        ("HM-FLN-002", "2026-11-30", "agrees", ""),
     ];
     for (account, end, status, cause) in cases {
         let (s, c) = find(account, end);
@@ -401,7 +404,7 @@ fn fail_on_variance_makes_a_scheduled_run_exit_3() {
     )
     .code(3)
     .stdout(predicate::str::contains(
-        "statement rows: 42 agrees, 6 within tolerance, 1 not posted",
+        "statement rows: 46 agrees, 6 within tolerance, 1 not posted",
     ));
     // Without the option, variances do not change the exit status.
     run_to(&dir.path().join("c.xlsx"), &[]).code(0);
