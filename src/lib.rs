@@ -7,3 +7,4 @@ pub mod cli;
 pub mod conventions;
 pub mod engine;
 pub mod report;
+pub mod sample;

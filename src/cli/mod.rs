@@ -14,6 +14,7 @@ mod daycount;
 mod explain;
 mod inputs;
 mod run;
+mod sample;
 mod settings;
 mod template;
 
@@ -48,6 +49,8 @@ enum Command {
     Explain(explain::Args),
     /// Write a blank input book with every sheet and column.
     Template(template::Args),
+    /// Write a synthetic book of any size (invented accounts, planted statement mistakes).
+    Sample(sample::Args),
     /// Days and year fraction between two dates under a day-count basis.
     Daycount(daycount::Args),
 }
@@ -109,6 +112,7 @@ where
         Command::Check(a) => check::run(&a, &mut out),
         Command::Explain(a) => explain::run(&a, &mut out),
         Command::Template(a) => template::run(&a, &mut out),
+        Command::Sample(a) => sample::run(&a, &mut out),
         Command::Daycount(a) => daycount::run(&a, &mut out),
     };
     match result {
