@@ -33,8 +33,7 @@ pub(crate) struct Draft {
     pub plant: Option<u64>,
 }
 
-/// The kinds of account of the sample institution, with their share of the
-/// book in accounts per thousand.
+/// The kinds of account of the sample institution.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Family {
     Saver,
@@ -51,59 +50,370 @@ enum Family {
     Long,
     Real,
     Current,
-    Minor,
+    Yen,
+    Dinar,
 }
 
-const FAMILIES: [(Family, u64); 15] = [
-    (Family::Saver, 300),
-    (Family::Tiered, 150),
-    (Family::Loan, 150),
-    (Family::Term, 100),
-    (Family::Intercompany, 40),
-    (Family::Euro, 60),
-    (Family::Isda, 25),
-    (Family::Icma, 25),
-    (Family::NoLeap, 20),
-    (Family::Act365L, 20),
-    (Family::Continuous, 20),
-    (Family::Long, 15),
-    (Family::Real, 20),
-    (Family::Current, 40),
-    (Family::Minor, 15),
+/// When an account of a family opened.
+#[derive(Debug, Clone, Copy)]
+enum Open {
+    /// On 1 November, or for a new account later in the month.
+    Month,
+    /// On this day (accounts posting quarterly, half-yearly or yearly, brought
+    /// in at the start of the period that ends in November).
+    On(NaiveDate),
+    /// On 15 October, the last payment day, or for a new loan a day later.
+    Loan,
+    /// A term before its maturity in November.
+    Term,
+}
+
+/// What an account of a family looks like; draws pick among the choices.
+struct Spec {
+    family: Family,
+    code: &'static str,
+    /// Accounts per thousand of the book.
+    per_mille: u64,
+    currency: &'static str,
+    minor_units: u32,
+    bases: &'static [Basis],
+    compounding: &'static [Compounding],
+    posting: Posting,
+    anchor: Option<NaiveDate>,
+    open: Open,
+    /// Whole currency units, spread over orders of magnitude.
+    balance: (i64, i64),
+    /// Chance of the asset side, per thousand.
+    asset: u64,
+    capitalise: bool,
+    /// The rate products it earns; `None`: a rate of its own.
+    shelf: Option<Shelf>,
+    flow: Flow,
+    /// The account's name; `{}` stands for a place of the town.
+    name: &'static str,
+    gl: (&'static str, &'static str),
+}
+
+const SIMPLE: &[Compounding] = &[Compounding::Simple];
+const NOV_30: Option<NaiveDate> = Some(date(2026, 11, 30));
+
+const SPECS: [Spec; 16] = [
+    Spec {
+        family: Family::Saver,
+        code: "SAV",
+        per_mille: 300,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Daily],
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (100, 250_000),
+        asset: 0,
+        capitalise: true,
+        shelf: Some(Shelf::Saver),
+        flow: Flow::Savings,
+        name: "{} saver",
+        gl: ("5110", "2210"),
+    },
+    Spec {
+        family: Family::Tiered,
+        code: "TSV",
+        per_mille: 150,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Simple, Compounding::Monthly],
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (1_000, 400_000),
+        asset: 0,
+        capitalise: true,
+        shelf: Some(Shelf::TierWhole),
+        flow: Flow::Savings,
+        name: "{} tiered saver",
+        gl: ("5120", "2210"),
+    },
+    Spec {
+        family: Family::Loan,
+        code: "LN",
+        per_mille: 150,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act360],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: Some(date(2026, 1, 15)),
+        open: Open::Loan,
+        balance: (2_000, 600_000),
+        asset: 1000,
+        capitalise: false,
+        shelf: Some(Shelf::Loan),
+        flow: Flow::Lending,
+        name: "{} member loan",
+        gl: ("4110", "1310"),
+    },
+    Spec {
+        family: Family::Term,
+        code: "TD",
+        per_mille: 100,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: SIMPLE,
+        posting: Posting::Maturity,
+        anchor: None,
+        open: Open::Term,
+        balance: (5_000, 2_000_000),
+        asset: 0,
+        capitalise: false,
+        shelf: None,
+        flow: Flow::Fixed,
+        name: "Harbourview fixed-term deposit",
+        gl: ("5130", "2220"),
+    },
+    Spec {
+        family: Family::Intercompany,
+        code: "IC",
+        per_mille: 40,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Thirty360, Basis::Thirty360Us],
+        compounding: SIMPLE,
+        posting: Posting::Quarterly,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 9, 1)),
+        balance: (500_000, 20_000_000),
+        asset: 500,
+        capitalise: false,
+        shelf: Some(Shelf::Intercompany),
+        flow: Flow::Treasury,
+        name: "Borrowing from Harbourview Group Holdings",
+        gl: ("5210", "2310"),
+    },
+    Spec {
+        family: Family::Euro,
+        code: "EUR",
+        per_mille: 60,
+        currency: "EUR",
+        minor_units: 2,
+        bases: &[Basis::Thirty360E, Basis::Thirty360EIsda],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (1_000, 5_000_000),
+        asset: 500,
+        capitalise: false,
+        shelf: Some(Shelf::Euro),
+        flow: Flow::Savings,
+        name: "{} euro deposit",
+        gl: ("5140", "2230"),
+    },
+    Spec {
+        family: Family::Isda,
+        code: "ISDA",
+        per_mille: 25,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::ActActIsda],
+        compounding: &[Compounding::Quarterly],
+        posting: Posting::Semiannual,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 6, 1)),
+        balance: (50_000, 5_000_000),
+        asset: 1000,
+        capitalise: true,
+        shelf: Some(Shelf::Isda),
+        flow: Flow::Treasury,
+        name: "Dollar interbank placement",
+        gl: ("4220", "1330"),
+    },
+    Spec {
+        family: Family::Icma,
+        code: "ICMA",
+        per_mille: 25,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::ActActIcma],
+        compounding: SIMPLE,
+        posting: Posting::Semiannual,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 6, 1)),
+        balance: (10_000, 2_000_000),
+        asset: 1000,
+        capitalise: false,
+        shelf: Some(Shelf::Icma),
+        flow: Flow::Fixed,
+        name: "Harbour bond holding (semiannual)",
+        gl: ("4230", "1340"),
+    },
+    Spec {
+        family: Family::NoLeap,
+        code: "NL",
+        per_mille: 20,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Nl365],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (500, 300_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::NoLeap),
+        flow: Flow::Savings,
+        name: "{} club deposit",
+        gl: ("5150", "2240"),
+    },
+    Spec {
+        family: Family::Act365L,
+        code: "L",
+        per_mille: 20,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365L],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (1_000, 500_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Act365L),
+        flow: Flow::Savings,
+        name: "{} notice account",
+        gl: ("5160", "2210"),
+    },
+    Spec {
+        family: Family::Continuous,
+        code: "CONT",
+        per_mille: 20,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Continuous],
+        posting: Posting::Quarterly,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 9, 1)),
+        balance: (10_000, 3_000_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Continuous),
+        flow: Flow::Fixed,
+        name: "Continuously compounded reserve",
+        gl: ("5170", "2250"),
+    },
+    Spec {
+        family: Family::Long,
+        code: "LTS",
+        per_mille: 15,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Semiannual, Compounding::Annual],
+        posting: Posting::Annual,
+        anchor: NOV_30,
+        open: Open::On(date(2025, 12, 1)),
+        balance: (1_000, 200_000),
+        asset: 0,
+        capitalise: true,
+        shelf: Some(Shelf::Long),
+        flow: Flow::Fixed,
+        name: "{} long-term saver",
+        gl: ("5180", "2210"),
+    },
+    Spec {
+        family: Family::Real,
+        code: "BRL",
+        per_mille: 20,
+        currency: "BRL",
+        minor_units: 2,
+        bases: &[Basis::Bus252],
+        compounding: &[Compounding::AnnualEffective],
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::On(date(2026, 11, 1)),
+        balance: (10_000, 10_000_000),
+        asset: 1000,
+        capitalise: false,
+        shelf: Some(Shelf::Real),
+        flow: Flow::Treasury,
+        name: "Real-denominated placement",
+        gl: ("4240", "1350"),
+    },
+    Spec {
+        family: Family::Current,
+        code: "CHK",
+        per_mille: 40,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (200, 40_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Current),
+        flow: Flow::Current,
+        name: "{} current account",
+        gl: ("5190", "2260"),
+    },
+    Spec {
+        family: Family::Yen,
+        code: "JPY",
+        per_mille: 8,
+        currency: "JPY",
+        minor_units: 0,
+        bases: &[Basis::Act365F],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (100_000, 90_000_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Yen),
+        flow: Flow::Savings,
+        name: "Yen settlement deposit",
+        gl: ("5200", "2270"),
+    },
+    Spec {
+        family: Family::Dinar,
+        code: "KWD",
+        per_mille: 7,
+        currency: "KWD",
+        minor_units: 3,
+        bases: &[Basis::Act360],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (500, 900_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Dinar),
+        flow: Flow::Savings,
+        name: "Dinar call deposit",
+        gl: ("5200", "2270"),
+    },
 ];
 
-impl Family {
-    fn code(self) -> &'static str {
-        match self {
-            Family::Saver => "SAV",
-            Family::Tiered => "TSV",
-            Family::Loan => "LN",
-            Family::Term => "TD",
-            Family::Intercompany => "IC",
-            Family::Euro => "EUR",
-            Family::Isda => "ISDA",
-            Family::Icma => "ICMA",
-            Family::NoLeap => "NL",
-            Family::Act365L => "L",
-            Family::Continuous => "CONT",
-            Family::Long => "LTS",
-            Family::Real => "BRL",
-            Family::Current => "CHK",
-            Family::Minor => "FX",
+fn pick_spec(r: &mut Rng) -> &'static Spec {
+    let total: u64 = SPECS.iter().map(|s| s.per_mille).sum();
+    let mut x = r.below(total);
+    for s in &SPECS {
+        if x < s.per_mille {
+            return s;
         }
+        x -= s.per_mille;
     }
-
-    fn pick(r: &mut Rng) -> Family {
-        let total: u64 = FAMILIES.iter().map(|(_, w)| w).sum();
-        let mut x = r.below(total);
-        for (f, w) in FAMILIES {
-            if x < w {
-                return f;
-            }
-            x -= w;
-        }
-        Family::Saver
-    }
+    &SPECS[0]
 }
 
 /// Invented place names of the institution's town, for account names.
@@ -162,19 +472,6 @@ fn balance(r: &mut Rng, lo: i64, hi: i64, minor_units: u32) -> Decimal {
     }
     let cap = r.pick(&tops).copied().unwrap_or(hi);
     money(r, lo, cap, minor_units)
-}
-
-struct Base {
-    id: String,
-    currency: &'static str,
-    minor_units: u32,
-    basis: Basis,
-    open: NaiveDate,
-    balance: Decimal,
-}
-
-fn terms(b: &Base) -> AccountTerms {
-    AccountTerms::new(&b.id, b.currency, b.minor_units, b.basis, b.open, b.balance)
 }
 
 /// The opening of an account posting at month ends: 1 November, or for a
@@ -281,83 +578,46 @@ fn movements(r: &mut Rng, flow: Flow, t: &AccountTerms, last: NaiveDate) -> Vec<
 /// Draws account `index` of the book of `seed`.
 pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendars) -> Draft {
     let mut r = Rng::stream(seed, index.saturating_add(1));
-    let family = Family::pick(&mut r);
-    let id = format!("HM-{}-{:07}", family.code(), index.saturating_add(1));
+    let spec = pick_spec(&mut r);
+    let id = format!("HM-{}-{:07}", spec.code, index.saturating_add(1));
     let place = r.pick(&PLACES).copied().unwrap_or("Harbour");
-    let product_of = |r: &mut Rng, s: Shelf| r.pick(&shelf(products, s)).copied();
+    let mut name = spec.name.replace("{}", place);
+    let mut gl = spec.gl;
+    let basis = r.pick(spec.bases).copied().unwrap_or(Basis::Act365F);
+    let mut maturity = None;
+    let open = match spec.open {
+        Open::Month => month_open(&mut r),
+        Open::On(d) => d,
+        Open::Loan if r.chance(50) => day_between(&mut r, date(2026, 10, 16), date(2026, 11, 10)),
+        Open::Loan => date(2026, 10, 15),
+        Open::Term => {
+            let months = *r.pick(&[3u32, 6, 6, 12, 12, 24]).unwrap_or(&6);
+            let m = day_between(&mut r, date(2026, 11, 2), date(2026, 12, 1));
+            maturity = Some((m, months));
+            m.checked_sub_months(Months::new(months)).unwrap_or(m)
+        }
+    };
+    let balance = balance(&mut r, spec.balance.0, spec.balance.1, spec.minor_units);
+    let mut t = AccountTerms::new(&id, spec.currency, spec.minor_units, basis, open, balance);
+    t.compounding = r.pick(spec.compounding).copied().unwrap_or_default();
+    t.posting = spec.posting;
+    t.anchor = spec.anchor;
+    t.capitalise = spec.capitalise;
+    t.calendar = Arc::clone(&cals.weekends);
+    if r.chance(spec.asset) {
+        t.side = Side::Asset;
+    }
+    let mut shelf = spec.shelf;
     let mut calendar = None;
     let mut debit_product = None;
     let mut own_rates = Vec::new();
-    let mut flow = Flow::Savings;
     let mut last = CUTOFF;
-    let (mut t, name, product, gl) = match family {
-        Family::Saver => {
-            let mut t = terms(&Base {
-                id,
-                currency: "GBP",
-                minor_units: 2,
-                basis: Basis::Act365F,
-                open: month_open(&mut r),
-                balance: balance(&mut r, 100, 250_000, 2),
-            });
-            t.compounding = Compounding::Daily;
-            t.capitalise = true;
-            (
-                t,
-                format!("{place} saver"),
-                product_of(&mut r, Shelf::Saver),
-                ("5110", "2210"),
-            )
-        }
-        Family::Tiered => {
-            let banded = r.chance(500);
-            let mut t = terms(&Base {
-                id,
-                currency: "GBP",
-                minor_units: 2,
-                basis: Basis::Act365F,
-                open: month_open(&mut r),
-                balance: balance(&mut r, 1_000, 400_000, 2),
-            });
-            t.compounding = if r.chance(500) {
-                Compounding::Monthly
-            } else {
-                Compounding::Simple
-            };
-            t.capitalise = true;
-            t.tier_method = if banded {
-                TierMethod::Banded
-            } else {
-                TierMethod::Whole
-            };
-            let s = if banded {
-                Shelf::TierBanded
-            } else {
-                Shelf::TierWhole
-            };
-            (
-                t,
-                format!("{place} tiered saver"),
-                product_of(&mut r, s),
-                ("5120", "2210"),
-            )
+    match spec.family {
+        Family::Tiered if r.chance(500) => {
+            t.tier_method = TierMethod::Banded;
+            shelf = Some(Shelf::TierBanded);
         }
         Family::Loan => {
-            let open = if r.chance(50) {
-                day_between(&mut r, date(2026, 10, 16), date(2026, 11, 10))
-            } else {
-                date(2026, 10, 15)
-            };
-            let mut t = terms(&Base {
-                id,
-                currency: "USD",
-                minor_units: 2,
-                basis: Basis::Act360,
-                open,
-                balance: balance(&mut r, 2_000, 600_000, 2),
-            });
-            t.side = Side::Asset;
-            t.anchor = Some(date(2026, 1, 15));
             t.anchor_kind = AnchorKind::Payment;
             t.business_day = BusinessDay::ModifiedFollowing;
             t.calendar = Arc::clone(&cals.harbour);
@@ -367,38 +627,18 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
                 t.round_mode = RoundMode::HalfEven;
                 t.round_places = Some(4);
             }
-            flow = Flow::Lending;
-            (
-                t,
-                format!("{place} member loan"),
-                product_of(&mut r, Shelf::Loan),
-                ("4110", "1310"),
-            )
         }
         Family::Term => {
-            let euro = r.chance(300);
-            let months = *r.pick(&[3u32, 6, 6, 12, 12, 24]).unwrap_or(&6);
-            let maturity = day_between(&mut r, date(2026, 11, 2), date(2026, 12, 1));
-            let open = maturity
-                .checked_sub_months(Months::new(months))
-                .unwrap_or(maturity);
-            let (currency, basis) = if euro {
-                ("EUR", Basis::Act360)
-            } else {
-                ("USD", Basis::Act365F)
-            };
-            let mut t = terms(&Base {
-                id,
-                currency,
-                minor_units: 2,
-                basis,
-                open,
-                balance: balance(&mut r, 5_000, 2_000_000, 2),
-            });
-            t.posting = Posting::Maturity;
-            t.maturity = Some(maturity);
-            if months > 12 {
-                t.compounding = Compounding::Annual;
+            if r.chance(300) {
+                t.currency = "EUR".to_string();
+                t.basis = Basis::Act360;
+            }
+            if let Some((m, months)) = maturity {
+                t.maturity = Some(m);
+                last = plus_days(m, -1);
+                if months > 12 {
+                    t.compounding = Compounding::Annual;
+                }
             }
             own_rates.push(RateRow {
                 rate_ref: t.id.clone(),
@@ -406,268 +646,24 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
                 percent: Decimal::new(r.between(250, 500), 2).normalize(),
                 tier_from: None,
             });
-            flow = Flow::Fixed;
-            last = plus_days(maturity, -1);
-            (
-                t,
-                "Harbourview fixed-term deposit".to_string(),
-                None,
-                ("5130", "2220"),
-            )
         }
-        Family::Intercompany => {
-            let lend = r.chance(500);
-            let mut t = terms(&Base {
-                id,
-                currency: "USD",
-                minor_units: 2,
-                basis: if r.chance(500) {
-                    Basis::Thirty360
-                } else {
-                    Basis::Thirty360Us
-                },
-                open: date(2026, 9, 1),
-                balance: balance(&mut r, 500_000, 20_000_000, 2),
-            });
-            t.posting = Posting::Quarterly;
-            t.anchor = Some(date(2026, 11, 30));
-            t.side = if lend { Side::Asset } else { Side::Liability };
-            flow = Flow::Treasury;
-            let (name, gl) = if lend {
-                ("Loan to Harbourview Services Ltd", ("4210", "1320"))
-            } else {
-                (
-                    "Borrowing from Harbourview Group Holdings",
-                    ("5210", "2310"),
-                )
-            };
-            (
-                t,
-                name.to_string(),
-                product_of(&mut r, Shelf::Intercompany),
-                gl,
-            )
+        Family::Intercompany if t.side == Side::Asset => {
+            name = "Loan to Harbourview Services Ltd".to_string();
+            gl = ("4210", "1320");
         }
-        Family::Euro => {
-            let mut t = terms(&Base {
-                id,
-                currency: "EUR",
-                minor_units: 2,
-                basis: if r.chance(500) {
-                    Basis::Thirty360E
-                } else {
-                    Basis::Thirty360EIsda
-                },
-                open: month_open(&mut r),
-                balance: balance(&mut r, 1_000, 5_000_000, 2),
-            });
-            if r.chance(500) {
-                t.side = Side::Asset;
-            }
-            if r.chance(300) {
-                t.round_mode = RoundMode::HalfEven;
-            }
-            (
-                t,
-                format!("{place} euro deposit"),
-                product_of(&mut r, Shelf::Euro),
-                ("5140", "2230"),
-            )
-        }
-        Family::Isda => {
-            let mut t = terms(&Base {
-                id,
-                currency: "USD",
-                minor_units: 2,
-                basis: Basis::ActActIsda,
-                open: date(2026, 6, 1),
-                balance: balance(&mut r, 50_000, 5_000_000, 2),
-            });
-            t.side = Side::Asset;
-            t.compounding = Compounding::Quarterly;
-            t.posting = Posting::Semiannual;
-            t.anchor = Some(date(2026, 11, 30));
-            t.capitalise = true;
-            flow = Flow::Treasury;
-            (
-                t,
-                "Dollar interbank placement".to_string(),
-                product_of(&mut r, Shelf::Isda),
-                ("4220", "1330"),
-            )
-        }
-        Family::Icma => {
-            let mut t = terms(&Base {
-                id,
-                currency: "USD",
-                minor_units: 2,
-                basis: Basis::ActActIcma,
-                open: date(2026, 6, 1),
-                balance: balance(&mut r, 10_000, 2_000_000, 2),
-            });
-            t.side = Side::Asset;
-            t.posting = Posting::Semiannual;
-            t.anchor = Some(date(2026, 11, 30));
-            flow = Flow::Fixed;
-            (
-                t,
-                "Harbour bond holding (semiannual)".to_string(),
-                product_of(&mut r, Shelf::Icma),
-                ("4230", "1340"),
-            )
-        }
-        Family::NoLeap => {
-            let t = terms(&Base {
-                id,
-                currency: "USD",
-                minor_units: 2,
-                basis: Basis::Nl365,
-                open: month_open(&mut r),
-                balance: balance(&mut r, 500, 300_000, 2),
-            });
-            (
-                t,
-                format!("{place} club deposit"),
-                product_of(&mut r, Shelf::NoLeap),
-                ("5150", "2240"),
-            )
-        }
-        Family::Act365L => {
-            let t = terms(&Base {
-                id,
-                currency: "GBP",
-                minor_units: 2,
-                basis: Basis::Act365L,
-                open: month_open(&mut r),
-                balance: balance(&mut r, 1_000, 500_000, 2),
-            });
-            (
-                t,
-                format!("{place} notice account"),
-                product_of(&mut r, Shelf::Act365L),
-                ("5160", "2210"),
-            )
-        }
-        Family::Continuous => {
-            let mut t = terms(&Base {
-                id,
-                currency: "USD",
-                minor_units: 2,
-                basis: Basis::Act365F,
-                open: date(2026, 9, 1),
-                balance: balance(&mut r, 10_000, 3_000_000, 2),
-            });
-            t.compounding = Compounding::Continuous;
-            t.posting = Posting::Quarterly;
-            t.anchor = Some(date(2026, 11, 30));
-            flow = Flow::Fixed;
-            (
-                t,
-                "Continuously compounded reserve".to_string(),
-                product_of(&mut r, Shelf::Continuous),
-                ("5170", "2250"),
-            )
-        }
-        Family::Long => {
-            let mut t = terms(&Base {
-                id,
-                currency: "GBP",
-                minor_units: 2,
-                basis: Basis::Act365F,
-                open: date(2025, 12, 1),
-                balance: balance(&mut r, 1_000, 200_000, 2),
-            });
-            t.compounding = if r.chance(500) {
-                Compounding::Semiannual
-            } else {
-                Compounding::Annual
-            };
-            t.posting = Posting::Annual;
-            t.anchor = Some(date(2026, 11, 30));
-            t.capitalise = true;
-            flow = Flow::Fixed;
-            (
-                t,
-                format!("{place} long-term saver"),
-                product_of(&mut r, Shelf::Long),
-                ("5180", "2210"),
-            )
-        }
+        Family::Euro if r.chance(300) => t.round_mode = RoundMode::HalfEven,
         Family::Real => {
-            let mut t = terms(&Base {
-                id,
-                currency: "BRL",
-                minor_units: 2,
-                basis: Basis::Bus252,
-                open: date(2026, 11, 1),
-                balance: balance(&mut r, 10_000, 10_000_000, 2),
-            });
-            t.side = Side::Asset;
-            t.compounding = Compounding::AnnualEffective;
             t.calendar = Arc::clone(&cals.brazil);
             calendar = Some("BR-2026");
-            flow = Flow::Treasury;
-            (
-                t,
-                "Real-denominated placement".to_string(),
-                product_of(&mut r, Shelf::Real),
-                ("4240", "1350"),
-            )
         }
-        Family::Current => {
-            let t = terms(&Base {
-                id,
-                currency: "USD",
-                minor_units: 2,
-                basis: Basis::Act365F,
-                open: month_open(&mut r),
-                balance: balance(&mut r, 200, 40_000, 2),
-            });
-            debit_product = product_of(&mut r, Shelf::Overdraft);
-            flow = Flow::Current;
-            (
-                t,
-                format!("{place} current account"),
-                product_of(&mut r, Shelf::Current),
-                ("5190", "2260"),
-            )
-        }
-        Family::Minor => {
-            let yen = r.chance(500);
-            let t = if yen {
-                terms(&Base {
-                    id,
-                    currency: "JPY",
-                    minor_units: 0,
-                    basis: Basis::Act365F,
-                    open: month_open(&mut r),
-                    balance: balance(&mut r, 100_000, 90_000_000, 0),
-                })
-            } else {
-                terms(&Base {
-                    id,
-                    currency: "KWD",
-                    minor_units: 3,
-                    basis: Basis::Act360,
-                    open: month_open(&mut r),
-                    balance: balance(&mut r, 500, 900_000, 3),
-                })
-            };
-            let (name, s) = if yen {
-                ("Yen settlement deposit", Shelf::Yen)
-            } else {
-                ("Dinar call deposit", Shelf::Dinar)
-            };
-            (t, name.to_string(), product_of(&mut r, s), ("5200", "2270"))
-        }
-    };
+        Family::Current => debit_product = product_of(&mut r, products, Shelf::Overdraft),
+        _ => {}
+    }
+    let product = shelf.and_then(|s| product_of(&mut r, products, s));
     if t.round_at == RoundAt::Posting && r.chance(100) {
         t.round_mode = RoundMode::HalfEven;
     }
-    if calendar.is_none() {
-        t.calendar = Arc::clone(&cals.weekends);
-    }
-    let moves = movements(&mut r, flow, &t, last);
+    let moves = movements(&mut r, spec.flow, &t, last);
     let rate_ref = product
         .and_then(|p| products.get(p))
         .map_or_else(|| t.id.clone(), |p| p.rate_ref.clone());
@@ -695,4 +691,8 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
         movements: moves,
         plant,
     }
+}
+
+fn product_of(r: &mut Rng, products: &[Product], s: Shelf) -> Option<usize> {
+    r.pick(&shelf(products, s)).copied()
 }
