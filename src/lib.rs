@@ -20,3 +20,4 @@ pub mod conventions;
 pub mod engine;
 pub mod merge;
 pub mod report;
+pub mod sample;

@@ -15,6 +15,7 @@ mod explain;
 mod inputs;
 mod merge;
 mod run;
+mod sample;
 mod settings;
 mod template;
 
@@ -51,6 +52,8 @@ enum Command {
     Explain(explain::Args),
     /// Write a blank input book with every sheet and column.
     Template(template::Args),
+    /// Write a synthetic book of any size (invented accounts, planted statement mistakes).
+    Sample(sample::Args),
     /// Days and year fraction between two dates under a day-count basis.
     Daycount(daycount::Args),
 }
@@ -137,6 +140,7 @@ where
         Command::Merge(a) => merge::run(&a, &mut out),
         Command::Explain(a) => explain::run(&a, &mut out),
         Command::Template(a) => template::run(&a, &mut out),
+        Command::Sample(a) => sample::run(&a, &mut out),
         Command::Daycount(a) => daycount::run(&a, &mut out),
     };
     match result {

@@ -1,5 +1,5 @@
-//! Writing the output workbook from a [`model::Report`], and the blank input
-//! book of `ledgerate template`.
+//! Writing the output workbook from a [`model::Report`], the blank input
+//! book of `ledgerate template`, and the sample books of `ledgerate sample`.
 //!
 //! The writer only lays out figures it is given: it computes nothing but
 //! layout and formats, reads no clock and no input book. It writes to a
@@ -12,8 +12,11 @@
 //!   (the only module that names `f64`), with the 15-digit rule.
 //! * [`layout`] has the formats, palette, column widths and continuation sheets.
 //! * [`template`] writes the blank input book ([`write_template`]).
+//! * [`book_writer`] writes input books row by row, as a workbook or a CSV
+//!   folder (the sample books of `ledgerate sample`).
 //! * `output` (private) does the temporary file, flush and rename.
 
+pub mod book_writer;
 pub mod cells;
 mod error;
 pub mod layout;

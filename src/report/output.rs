@@ -48,7 +48,7 @@ pub(crate) fn check_not_input(target: &Path, inputs: &[InputFile]) -> Result<(),
 /// The permissions the output gets: those of the file it replaces, else those
 /// of any new file (0o666 less the umask), not the temporary file's owner-only
 /// default, so that a shared folder's readers can open it.
-fn output_permissions(target: &Path) -> Option<std::fs::Permissions> {
+pub(crate) fn output_permissions(target: &Path) -> Option<std::fs::Permissions> {
     if let Ok(meta) = std::fs::metadata(target) {
         return Some(meta.permissions());
     }

@@ -1,0 +1,214 @@
+//! `ledgerate sample --accounts N [--seed S] [--format xlsx|csv] --out PATH`:
+//! a synthetic book of any size for trying the program and measuring it.
+//!
+//! Wires the generator ([`crate::sample`]) to the book writer
+//! ([`crate::report::book_writer`]): accounts are generated in parallel in
+//! chunks and written in order, so memory stays flat whatever the size. A
+//! workbook is refused before anything is written when a sheet would pass
+//! the spreadsheet row limit. Holds no accrual rule and plants no mistake of
+//! its own.
+
+use std::collections::BTreeMap;
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::{bail, Context, Result};
+
+use super::exit;
+use crate::report::book_writer::{csv_name, BookWriter, DATA_ROWS_PER_SHEET};
+use crate::sample::{
+    Generator, MistakeKind, SheetCounts, ACCOUNTS, HOLIDAYS, MOVEMENTS, RATES, SETTINGS, SHEETS,
+    STATEMENTS,
+};
+
+/// Accounts generated and written at a time.
+const CHUNK: u64 = 4096;
+
+/// The book's format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Format {
+    /// One workbook (at most 1,048,575 rows on a sheet).
+    Xlsx,
+    /// A folder of CSV files, one per sheet (no row limit).
+    Csv,
+}
+
+/// Arguments of `sample`.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// How many accounts the book holds.
+    #[arg(long, value_name = "N")]
+    accounts: u64,
+    /// The seed: the same seed and size give the same book, byte for byte.
+    #[arg(long, value_name = "S", default_value_t = 2026)]
+    seed: u64,
+    /// A workbook, or a folder of CSV files.
+    #[arg(long, value_enum, default_value_t = Format::Xlsx)]
+    format: Format,
+    /// The workbook file, or the folder for CSV files.
+    #[arg(long, value_name = "PATH")]
+    out: PathBuf,
+    /// Replace an existing book (for a folder: its sheet files).
+    #[arg(long)]
+    force: bool,
+}
+
+/// Why a workbook cannot hold the book: the first sheet past the row limit,
+/// in words with the way out; `None` when every sheet fits.
+fn limit_message(counts: &SheetCounts, accounts: u64) -> Option<String> {
+    let (sheet, rows) = SHEETS
+        .iter()
+        .zip(counts.rows)
+        .find(|(_, rows)| *rows > DATA_ROWS_PER_SHEET)?;
+    Some(format!(
+        "a book of {accounts} accounts needs {rows} rows on its {} sheet, more than the {} a worksheet holds under its header: write it with --format csv (CSV books have no row limit)",
+        sheet.name, DATA_ROWS_PER_SHEET
+    ))
+}
+
+/// Runs the command.
+pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
+    if args.accounts == 0 {
+        bail!("--accounts 0: give the number of accounts the book should hold, 1 or more");
+    }
+    let target = &args.out;
+    if target.exists() && !args.force {
+        bail!(
+            "{} exists already: choose another --out path, or add --force to replace it",
+            target.display()
+        );
+    }
+    match args.format {
+        Format::Xlsx if target.is_dir() => bail!(
+            "{} is a folder: give a workbook file name such as book.xlsx, or use --format csv",
+            target.display()
+        ),
+        Format::Csv if target.is_file() => bail!(
+            "{} is a file: a CSV book is a folder; give a folder path",
+            target.display()
+        ),
+        _ => {}
+    }
+    let generator = Generator::new(args.seed, args.accounts);
+    if args.format == Format::Xlsx {
+        // The Accounts sheet alone tells for the largest books, before any counting.
+        let quick = SheetCounts {
+            rows: [args.accounts, 0, 0, 0, 0, 0],
+        };
+        let refusal = limit_message(&quick, args.accounts)
+            .or_else(|| limit_message(&generator.counts(), args.accounts));
+        if let Some(m) = refusal {
+            bail!("{m}");
+        }
+    }
+    let mut writer = match args.format {
+        Format::Xlsx => BookWriter::xlsx(
+            target,
+            &SHEETS,
+            "Harbourview Mutual month-end books, November 2026 (invented sample)",
+            crate::sample::CUTOFF
+                .succ_opt()
+                .unwrap_or(crate::sample::CUTOFF),
+        ),
+        Format::Csv => BookWriter::csv(target, &SHEETS),
+    }
+    .with_context(|| format!("cannot write the book {}", target.display()))?;
+
+    let mut written = SheetCounts::default();
+    let mut add = |w: &mut BookWriter, sheet: usize, rows: Vec<Vec<crate::sample::Value>>| {
+        for r in rows {
+            w.row(sheet, &r)?;
+            if let Some(n) = written.rows.get_mut(sheet) {
+                *n += 1;
+            }
+        }
+        Ok::<(), crate::report::ReportError>(())
+    };
+    for sheet in [RATES, HOLIDAYS, SETTINGS] {
+        add(&mut writer, sheet, generator.fixed_rows(sheet))?;
+    }
+    let mut planted: BTreeMap<MistakeKind, u64> = BTreeMap::new();
+    let mut start = 0;
+    while start < args.accounts {
+        let end = start.saturating_add(CHUNK).min(args.accounts);
+        for account in generator.accounts_in(start..end) {
+            let a = account?;
+            add(&mut writer, ACCOUNTS, vec![a.account_row()])?;
+            add(&mut writer, RATES, a.rate_rows())?;
+            add(&mut writer, MOVEMENTS, a.movement_rows())?;
+            add(&mut writer, STATEMENTS, a.statement_rows())?;
+            if let Some(m) = &a.mistake {
+                *planted.entry(m.kind()).or_insert(0) += 1;
+            }
+        }
+        start = end;
+    }
+    writer
+        .finish()
+        .with_context(|| format!("cannot write the book {}", target.display()))?;
+
+    let shown = match args.format {
+        Format::Xlsx => target.display().to_string(),
+        Format::Csv => format!(
+            "{} ({})",
+            target.display(),
+            SHEETS
+                .iter()
+                .map(|s| csv_name(s.name))
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+    };
+    writeln!(out, "sample book written: {shown}")?;
+    let n = |sheet: usize| written.rows.get(sheet).copied().unwrap_or(0);
+    writeln!(
+        out,
+        "{} accounts, {} rates rows, {} movements, {} statement rows (seed {}, cut-off {})",
+        n(ACCOUNTS),
+        n(RATES),
+        n(MOVEMENTS),
+        n(STATEMENTS),
+        args.seed,
+        crate::sample::CUTOFF
+    )?;
+    let total: u64 = planted.values().sum();
+    let kinds: Vec<String> = planted
+        .iter()
+        .map(|(k, n)| format!("{n} {}", k.name()))
+        .collect();
+    writeln!(
+        out,
+        "planted statement mistakes: {total}{}",
+        if kinds.is_empty() {
+            String::new()
+        } else {
+            format!(" ({})", kinds.join(", "))
+        }
+    )?;
+    writeln!(
+        out,
+        "every name and figure is invented; run it with: ledgerate run {}",
+        target.display()
+    )?;
+    Ok(exit::OK)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The spreadsheet format's limit: 1,048,576 rows, one of them the header.
+    #[test]
+    fn a_sheet_past_the_row_limit_is_refused_with_the_way_out() {
+        let fits = SheetCounts {
+            rows: [10, 5, 1_048_575, 10, 7, 2],
+        };
+        assert_eq!(limit_message(&fits, 10), None);
+        let big = SheetCounts {
+            rows: [10, 5, 1_048_576, 10, 7, 2],
+        };
+        let m = limit_message(&big, 10).unwrap();
+        assert!(m.contains("Movements sheet"), "{m}");
+        assert!(m.contains("--format csv"), "{m}");
+    }
+}

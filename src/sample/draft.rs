@@ -1,0 +1,698 @@
+//! One sample account before the engine sees it: its family, terms, rate
+//! product and movements, all drawn from the account's own random stream.
+//!
+//! Pure and cheap (no engine run), so that a book's sheet sizes can be
+//! counted before anything is written. Nothing here writes or reads a file.
+
+use std::sync::Arc;
+
+use chrono::{Days, Months, NaiveDate};
+use rust_decimal::Decimal;
+
+use super::catalogue::{shelf, Product, Shelf};
+use super::rng::Rng;
+use super::{date, Calendars, RateRow, CUTOFF, MISTAKES_PER_MILLE};
+use crate::book::{AccountEntry, GlCodes, Position};
+use crate::conventions::calendar::BusinessDay;
+use crate::conventions::compounding::Compounding;
+use crate::conventions::daycount::Basis;
+use crate::conventions::rounding::RoundMode;
+use crate::conventions::schedule::{AnchorKind, Posting};
+use crate::engine::{AccountTerms, Movement, RoundAt, Side, TierMethod};
+
+/// An account before its statement is computed.
+pub(crate) struct Draft {
+    pub entry: AccountEntry,
+    pub calendar: Option<&'static str>,
+    /// The catalogue product it earns; `None`: rates of its own.
+    pub product: Option<usize>,
+    pub debit_product: Option<usize>,
+    pub own_rates: Vec<RateRow>,
+    pub movements: Vec<Movement>,
+    /// The random stream of its planted mistake, when it gets one.
+    pub plant: Option<u64>,
+}
+
+/// The kinds of account of the sample institution.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Family {
+    Saver,
+    Tiered,
+    Loan,
+    Term,
+    Intercompany,
+    Euro,
+    Isda,
+    Icma,
+    NoLeap,
+    Act365L,
+    Continuous,
+    Long,
+    Real,
+    Current,
+    Yen,
+    Dinar,
+}
+
+/// When an account of a family opened.
+#[derive(Debug, Clone, Copy)]
+enum Open {
+    /// On 1 November, or for a new account later in the month.
+    Month,
+    /// On this day (accounts posting quarterly, half-yearly or yearly, brought
+    /// in at the start of the period that ends in November).
+    On(NaiveDate),
+    /// On 15 October, the last payment day, or for a new loan a day later.
+    Loan,
+    /// A term before its maturity in November.
+    Term,
+}
+
+/// What an account of a family looks like; draws pick among the choices.
+struct Spec {
+    family: Family,
+    code: &'static str,
+    /// Accounts per thousand of the book.
+    per_mille: u64,
+    currency: &'static str,
+    minor_units: u32,
+    bases: &'static [Basis],
+    compounding: &'static [Compounding],
+    posting: Posting,
+    anchor: Option<NaiveDate>,
+    open: Open,
+    /// Whole currency units, spread over orders of magnitude.
+    balance: (i64, i64),
+    /// Chance of the asset side, per thousand.
+    asset: u64,
+    capitalise: bool,
+    /// The rate products it earns; `None`: a rate of its own.
+    shelf: Option<Shelf>,
+    flow: Flow,
+    /// The account's name; `{}` stands for a place of the town.
+    name: &'static str,
+    gl: (&'static str, &'static str),
+}
+
+const SIMPLE: &[Compounding] = &[Compounding::Simple];
+const NOV_30: Option<NaiveDate> = Some(date(2026, 11, 30));
+
+const SPECS: [Spec; 16] = [
+    Spec {
+        family: Family::Saver,
+        code: "SAV",
+        per_mille: 300,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Daily],
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (100, 250_000),
+        asset: 0,
+        capitalise: true,
+        shelf: Some(Shelf::Saver),
+        flow: Flow::Savings,
+        name: "{} saver",
+        gl: ("5110", "2210"),
+    },
+    Spec {
+        family: Family::Tiered,
+        code: "TSV",
+        per_mille: 150,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Simple, Compounding::Monthly],
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (1_000, 400_000),
+        asset: 0,
+        capitalise: true,
+        shelf: Some(Shelf::TierWhole),
+        flow: Flow::Savings,
+        name: "{} tiered saver",
+        gl: ("5120", "2210"),
+    },
+    Spec {
+        family: Family::Loan,
+        code: "LN",
+        per_mille: 150,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act360],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: Some(date(2026, 1, 15)),
+        open: Open::Loan,
+        balance: (2_000, 600_000),
+        asset: 1000,
+        capitalise: false,
+        shelf: Some(Shelf::Loan),
+        flow: Flow::Lending,
+        name: "{} member loan",
+        gl: ("4110", "1310"),
+    },
+    Spec {
+        family: Family::Term,
+        code: "TD",
+        per_mille: 100,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: SIMPLE,
+        posting: Posting::Maturity,
+        anchor: None,
+        open: Open::Term,
+        balance: (5_000, 2_000_000),
+        asset: 0,
+        capitalise: false,
+        shelf: None,
+        flow: Flow::Fixed,
+        name: "Harbourview fixed-term deposit",
+        gl: ("5130", "2220"),
+    },
+    Spec {
+        family: Family::Intercompany,
+        code: "IC",
+        per_mille: 40,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Thirty360, Basis::Thirty360Us],
+        compounding: SIMPLE,
+        posting: Posting::Quarterly,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 9, 1)),
+        balance: (500_000, 20_000_000),
+        asset: 500,
+        capitalise: false,
+        shelf: Some(Shelf::Intercompany),
+        flow: Flow::Treasury,
+        name: "Borrowing from Harbourview Group Holdings",
+        gl: ("5210", "2310"),
+    },
+    Spec {
+        family: Family::Euro,
+        code: "EUR",
+        per_mille: 60,
+        currency: "EUR",
+        minor_units: 2,
+        bases: &[Basis::Thirty360E, Basis::Thirty360EIsda],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (1_000, 5_000_000),
+        asset: 500,
+        capitalise: false,
+        shelf: Some(Shelf::Euro),
+        flow: Flow::Savings,
+        name: "{} euro deposit",
+        gl: ("5140", "2230"),
+    },
+    Spec {
+        family: Family::Isda,
+        code: "ISDA",
+        per_mille: 25,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::ActActIsda],
+        compounding: &[Compounding::Quarterly],
+        posting: Posting::Semiannual,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 6, 1)),
+        balance: (50_000, 5_000_000),
+        asset: 1000,
+        capitalise: true,
+        shelf: Some(Shelf::Isda),
+        flow: Flow::Treasury,
+        name: "Dollar interbank placement",
+        gl: ("4220", "1330"),
+    },
+    Spec {
+        family: Family::Icma,
+        code: "ICMA",
+        per_mille: 25,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::ActActIcma],
+        compounding: SIMPLE,
+        posting: Posting::Semiannual,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 6, 1)),
+        balance: (10_000, 2_000_000),
+        asset: 1000,
+        capitalise: false,
+        shelf: Some(Shelf::Icma),
+        flow: Flow::Fixed,
+        name: "Harbour bond holding (semiannual)",
+        gl: ("4230", "1340"),
+    },
+    Spec {
+        family: Family::NoLeap,
+        code: "NL",
+        per_mille: 20,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Nl365],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (500, 300_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::NoLeap),
+        flow: Flow::Savings,
+        name: "{} club deposit",
+        gl: ("5150", "2240"),
+    },
+    Spec {
+        family: Family::Act365L,
+        code: "L",
+        per_mille: 20,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365L],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (1_000, 500_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Act365L),
+        flow: Flow::Savings,
+        name: "{} notice account",
+        gl: ("5160", "2210"),
+    },
+    Spec {
+        family: Family::Continuous,
+        code: "CONT",
+        per_mille: 20,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Continuous],
+        posting: Posting::Quarterly,
+        anchor: NOV_30,
+        open: Open::On(date(2026, 9, 1)),
+        balance: (10_000, 3_000_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Continuous),
+        flow: Flow::Fixed,
+        name: "Continuously compounded reserve",
+        gl: ("5170", "2250"),
+    },
+    Spec {
+        family: Family::Long,
+        code: "LTS",
+        per_mille: 15,
+        currency: "GBP",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: &[Compounding::Semiannual, Compounding::Annual],
+        posting: Posting::Annual,
+        anchor: NOV_30,
+        open: Open::On(date(2025, 12, 1)),
+        balance: (1_000, 200_000),
+        asset: 0,
+        capitalise: true,
+        shelf: Some(Shelf::Long),
+        flow: Flow::Fixed,
+        name: "{} long-term saver",
+        gl: ("5180", "2210"),
+    },
+    Spec {
+        family: Family::Real,
+        code: "BRL",
+        per_mille: 20,
+        currency: "BRL",
+        minor_units: 2,
+        bases: &[Basis::Bus252],
+        compounding: &[Compounding::AnnualEffective],
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::On(date(2026, 11, 1)),
+        balance: (10_000, 10_000_000),
+        asset: 1000,
+        capitalise: false,
+        shelf: Some(Shelf::Real),
+        flow: Flow::Treasury,
+        name: "Real-denominated placement",
+        gl: ("4240", "1350"),
+    },
+    Spec {
+        family: Family::Current,
+        code: "CHK",
+        per_mille: 40,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (200, 40_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Current),
+        flow: Flow::Current,
+        name: "{} current account",
+        gl: ("5190", "2260"),
+    },
+    Spec {
+        family: Family::Yen,
+        code: "JPY",
+        per_mille: 8,
+        currency: "JPY",
+        minor_units: 0,
+        bases: &[Basis::Act365F],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (100_000, 90_000_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Yen),
+        flow: Flow::Savings,
+        name: "Yen settlement deposit",
+        gl: ("5200", "2270"),
+    },
+    Spec {
+        family: Family::Dinar,
+        code: "KWD",
+        per_mille: 7,
+        currency: "KWD",
+        minor_units: 3,
+        bases: &[Basis::Act360],
+        compounding: SIMPLE,
+        posting: Posting::Monthly,
+        anchor: None,
+        open: Open::Month,
+        balance: (500, 900_000),
+        asset: 0,
+        capitalise: false,
+        shelf: Some(Shelf::Dinar),
+        flow: Flow::Savings,
+        name: "Dinar call deposit",
+        gl: ("5200", "2270"),
+    },
+];
+
+fn pick_spec(r: &mut Rng) -> &'static Spec {
+    let total: u64 = SPECS.iter().map(|s| s.per_mille).sum();
+    let mut x = r.below(total);
+    for s in &SPECS {
+        if x < s.per_mille {
+            return s;
+        }
+        x -= s.per_mille;
+    }
+    &SPECS[0]
+}
+
+/// Invented place names of the institution's town, for account names.
+const PLACES: [&str; 16] = [
+    "Marram Point",
+    "Gull Street",
+    "Quayside",
+    "Lantern Row",
+    "Tidewater",
+    "Breakwater",
+    "Pier Lane",
+    "Saltmarsh",
+    "Crabapple Court",
+    "Dune Road",
+    "Netmenders Yard",
+    "Shingle Bank",
+    "Rope Walk",
+    "Kelp Hill",
+    "Beacon Green",
+    "Ferry Steps",
+];
+
+fn plus_days(d: NaiveDate, n: i64) -> NaiveDate {
+    let step = Days::new(n.unsigned_abs());
+    let moved = if n >= 0 {
+        d.checked_add_days(step)
+    } else {
+        d.checked_sub_days(step)
+    };
+    moved.unwrap_or(d)
+}
+
+/// A day between `from` and `to` inclusive.
+fn day_between(r: &mut Rng, from: NaiveDate, to: NaiveDate) -> NaiveDate {
+    plus_days(from, r.between(0, (to - from).num_days()))
+}
+
+/// An amount of `units` whole currency units and random minor units.
+fn money(r: &mut Rng, lo: i64, hi: i64, minor_units: u32) -> Decimal {
+    let scale = 10i64.pow(minor_units);
+    let whole = r.between(lo, hi);
+    Decimal::new(
+        whole.saturating_mul(scale) + r.between(0, scale - 1),
+        minor_units,
+    )
+}
+
+/// A balance spread over orders of magnitude: `lo` to `hi` whole units, as
+/// real books are (many small, few large).
+fn balance(r: &mut Rng, lo: i64, hi: i64, minor_units: u32) -> Decimal {
+    let mut top = lo.max(1);
+    let mut tops = Vec::new();
+    while top < hi {
+        top = top.saturating_mul(10).min(hi);
+        tops.push(top);
+    }
+    let cap = r.pick(&tops).copied().unwrap_or(hi);
+    money(r, lo, cap, minor_units)
+}
+
+/// The opening of an account posting at month ends: 1 November, or for a
+/// new account a day later in the month.
+fn month_open(r: &mut Rng) -> NaiveDate {
+    if r.chance(60) {
+        day_between(r, date(2026, 11, 2), date(2026, 11, 25))
+    } else {
+        date(2026, 11, 1)
+    }
+}
+
+/// How balances move in an account family.
+#[derive(Clone, Copy)]
+enum Flow {
+    /// Deposits and withdrawals that keep the balance positive.
+    Savings,
+    /// Repayments, now and then a further drawing.
+    Lending,
+    /// Cheques and deposits that may overdraw.
+    Current,
+    /// Large drawings and repayments between group companies.
+    Treasury,
+    /// Fixed: no movements.
+    Fixed,
+}
+
+fn movements(r: &mut Rng, flow: Flow, t: &AccountTerms, last: NaiveDate) -> Vec<Movement> {
+    if matches!(flow, Flow::Fixed) {
+        return Vec::new();
+    }
+    let count = r.below(7);
+    let minor = t.minor_units;
+    let size = t.opening_balance.abs();
+    let scale = Decimal::new(1, minor);
+    let mut out = Vec::new();
+    let mut balance = t.opening_balance;
+    let mut dates: Vec<NaiveDate> = (0..count)
+        .map(|_| day_between(r, t.open_date, last))
+        .collect();
+    dates.sort_unstable();
+    for (n, value_date) in dates.into_iter().enumerate() {
+        // A share of the balance in per mille, as an amount of minor units.
+        let share = |r: &mut Rng, lo: i64, hi: i64| {
+            let per_mille = Decimal::from(r.between(lo, hi));
+            let x = (size * per_mille / Decimal::ONE_THOUSAND).round_dp(minor);
+            x.max(scale)
+        };
+        let (amount, kind) = match flow {
+            Flow::Savings => {
+                if r.chance(550) {
+                    (money(r, 20, 3000, minor), "DEP")
+                } else {
+                    let w = share(r, 10, 300).min(balance.abs()).max(scale);
+                    (-w, "WDL")
+                }
+            }
+            Flow::Lending => {
+                if r.chance(800) {
+                    (-share(r, 8, 40), "REPAY")
+                } else {
+                    (share(r, 50, 200), "DRAW")
+                }
+            }
+            Flow::Current => {
+                if r.chance(500) {
+                    (money(r, 50, 4000, minor), "DEP")
+                } else {
+                    (-share(r, 100, 900), "CHQ")
+                }
+            }
+            Flow::Treasury => {
+                let x = share(r, 20, 150);
+                if r.chance(500) {
+                    (x, "DRAW")
+                } else {
+                    (-x, "REPAY")
+                }
+            }
+            Flow::Fixed => (Decimal::ZERO, "ADJ"),
+        };
+        balance += amount;
+        // A few are booked after their value date (back-valued).
+        let booking_date = if r.chance(50) {
+            Some(plus_days(value_date, r.between(1, 4)).min(CUTOFF)).filter(|b| *b > value_date)
+        } else {
+            None
+        };
+        out.push(Movement {
+            value_date,
+            amount,
+            booking_date,
+            reference: Some(format!(
+                "{kind}-{}{:02}-{}",
+                value_date.format("%m%d"),
+                n + 1,
+                t.id.rsplit('-').next().unwrap_or_default()
+            )),
+        });
+    }
+    out
+}
+
+/// Draws account `index` of the book of `seed`.
+pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendars) -> Draft {
+    let mut r = Rng::stream(seed, index.saturating_add(1));
+    let spec = pick_spec(&mut r);
+    let id = format!("HM-{}-{:07}", spec.code, index.saturating_add(1));
+    let place = r.pick(&PLACES).copied().unwrap_or("Harbour");
+    let mut name = spec.name.replace("{}", place);
+    let mut gl = spec.gl;
+    let basis = r.pick(spec.bases).copied().unwrap_or(Basis::Act365F);
+    let mut maturity = None;
+    let open = match spec.open {
+        Open::Month => month_open(&mut r),
+        Open::On(d) => d,
+        Open::Loan if r.chance(50) => day_between(&mut r, date(2026, 10, 16), date(2026, 11, 10)),
+        Open::Loan => date(2026, 10, 15),
+        Open::Term => {
+            let months = *r.pick(&[3u32, 6, 6, 12, 12, 24]).unwrap_or(&6);
+            let m = day_between(&mut r, date(2026, 11, 2), date(2026, 12, 1));
+            maturity = Some((m, months));
+            m.checked_sub_months(Months::new(months)).unwrap_or(m)
+        }
+    };
+    let balance = balance(&mut r, spec.balance.0, spec.balance.1, spec.minor_units);
+    let mut t = AccountTerms::new(&id, spec.currency, spec.minor_units, basis, open, balance);
+    t.compounding = r.pick(spec.compounding).copied().unwrap_or_default();
+    t.posting = spec.posting;
+    t.anchor = spec.anchor;
+    t.capitalise = spec.capitalise;
+    t.calendar = Arc::clone(&cals.weekends);
+    if r.chance(spec.asset) {
+        t.side = Side::Asset;
+    }
+    let mut shelf = spec.shelf;
+    let mut calendar = None;
+    let mut debit_product = None;
+    let mut own_rates = Vec::new();
+    let mut last = CUTOFF;
+    match spec.family {
+        Family::Tiered if r.chance(500) => {
+            t.tier_method = TierMethod::Banded;
+            shelf = Some(Shelf::TierBanded);
+        }
+        Family::Loan => {
+            t.anchor_kind = AnchorKind::Payment;
+            t.business_day = BusinessDay::ModifiedFollowing;
+            t.calendar = Arc::clone(&cals.harbour);
+            calendar = Some("HARBOUR");
+            if r.chance(250) {
+                t.round_at = RoundAt::Daily;
+                t.round_mode = RoundMode::HalfEven;
+                t.round_places = Some(4);
+            }
+        }
+        Family::Term => {
+            if r.chance(300) {
+                t.currency = "EUR".to_string();
+                t.basis = Basis::Act360;
+            }
+            if let Some((m, months)) = maturity {
+                t.maturity = Some(m);
+                last = plus_days(m, -1);
+                if months > 12 {
+                    t.compounding = Compounding::Annual;
+                }
+            }
+            own_rates.push(RateRow {
+                rate_ref: t.id.clone(),
+                effective: open,
+                percent: Decimal::new(r.between(250, 500), 2).normalize(),
+                tier_from: None,
+            });
+        }
+        Family::Intercompany if t.side == Side::Asset => {
+            name = "Loan to Harbourview Services Ltd".to_string();
+            gl = ("4210", "1320");
+        }
+        Family::Euro if r.chance(300) => t.round_mode = RoundMode::HalfEven,
+        Family::Real => {
+            t.calendar = Arc::clone(&cals.brazil);
+            calendar = Some("BR-2026");
+        }
+        Family::Current => debit_product = product_of(&mut r, products, Shelf::Overdraft),
+        _ => {}
+    }
+    let product = shelf.and_then(|s| product_of(&mut r, products, s));
+    if t.round_at == RoundAt::Posting && r.chance(100) {
+        t.round_mode = RoundMode::HalfEven;
+    }
+    let moves = movements(&mut r, spec.flow, &t, last);
+    let rate_ref = product
+        .and_then(|p| products.get(p))
+        .map_or_else(|| t.id.clone(), |p| p.rate_ref.clone());
+    let debit_rate_ref = debit_product
+        .and_then(|p| products.get(p))
+        .map(|p| p.rate_ref.clone());
+    let plant = r.chance(MISTAKES_PER_MILLE).then(|| r.next_u64());
+    Draft {
+        entry: AccountEntry {
+            name,
+            rate_ref,
+            debit_rate_ref,
+            gl: GlCodes {
+                interest: Some(gl.0.to_string()),
+                accrued: Some(gl.1.to_string()),
+                settlement: None,
+            },
+            position: Position::default(),
+            terms: t,
+        },
+        calendar,
+        product,
+        debit_product,
+        own_rates,
+        movements: moves,
+        plant,
+    }
+}
+
+fn product_of(r: &mut Rng, products: &[Product], s: Shelf) -> Option<usize> {
+    r.pick(&shelf(products, s)).copied()
+}

@@ -1,0 +1,600 @@
+//! Synthetic account books of any size: the month end of Harbourview Mutual,
+//! an invented credit union, closing November 2026.
+//!
+//! A [`Generator`] makes the rows of every sheet of a book (Accounts, Rates,
+//! Movements, Statements, Holidays, Settings) from a seed and a number of
+//! accounts. The mix is meant to look like a real book: every day-count basis
+//! and every compounding rule the engine supports, whole and banded tiers,
+//! 0 to 6 movements and 0 to 2 rate changes per account, and one statement
+//! row per account for its posting period that ends in the November window.
+//! The statement amounts come from the engine itself ([`crate::engine::accrue`]
+//! on the generated account), then about 2% of them get a planted mistake of a
+//! kind the likely-cause search knows ([`MistakeKind`]).
+//!
+//! Pure generation: this module never writes a file, reads the clock or asks
+//! the operating system for randomness. Each account draws from its own
+//! stream of a small deterministic generator ([`rng::Rng`]) mixed from the
+//! seed and the account's number, so the same seed always gives the same rows
+//! whatever the order or the thread count; writing them is the report layer's
+//! ([`crate::report::book_writer`]). Every name and figure is invented.
+
+mod catalogue;
+mod draft;
+mod plant;
+pub mod rng;
+
+use std::ops::Range;
+use std::sync::Arc;
+
+use chrono::NaiveDate;
+use rayon::prelude::*;
+use rust_decimal::Decimal;
+
+use crate::book::AccountEntry;
+use crate::conventions::calendar::Calendar;
+use crate::engine::rates::{RateSchedule, RateSource};
+use crate::engine::run::{accrue, RunOptions, Sources};
+use crate::engine::{EngineError, Movement, RoundAt, TierMethod};
+
+use catalogue::Product;
+use draft::Draft;
+pub use plant::{Mistake, MistakeKind};
+
+/// The cut-off of the sample books (the Settings sheet's `cutoff`).
+pub const CUTOFF: NaiveDate = date(2026, 11, 30);
+
+/// The first day of the window: the cut-off's month.
+pub const WINDOW_START: NaiveDate = date(2026, 11, 1);
+
+/// The entity booking the journal (the Settings sheet's `entity`).
+pub const ENTITY: &str = "HARBOURVIEW-MUTUAL";
+
+/// How many accounts in a thousand get a planted statement mistake.
+pub const MISTAKES_PER_MILLE: u64 = 20;
+
+/// A date known to exist; `NaiveDate::MIN` would only stand in for a typo in
+/// this file, and the tests read every constant back.
+const fn date(y: i32, m: u32, d: u32) -> NaiveDate {
+    match NaiveDate::from_ymd_opt(y, m, d) {
+        Some(x) => x,
+        None => NaiveDate::MIN,
+    }
+}
+
+/// One cell of a generated sheet.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Value {
+    /// Text.
+    Text(String),
+    /// An exact number, written with its own decimals.
+    Number(Decimal),
+    /// A date.
+    Date(NaiveDate),
+    /// Nothing.
+    Empty,
+}
+
+impl Value {
+    /// The value as CSV text: numbers with their decimals, dates in ISO form.
+    ///
+    /// ```
+    /// use ledgerate::sample::Value;
+    /// use rust_decimal::Decimal;
+    /// assert_eq!(Value::Number(Decimal::new(12050, 2)).csv_text(), "120.50");
+    /// assert_eq!(Value::Date("2026-11-30".parse().unwrap()).csv_text(), "2026-11-30");
+    /// assert_eq!(Value::Empty.csv_text(), "");
+    /// ```
+    pub fn csv_text(&self) -> String {
+        match self {
+            Value::Text(s) => s.clone(),
+            Value::Number(d) => d.to_string(),
+            Value::Date(d) => d.format("%Y-%m-%d").to_string(),
+            Value::Empty => String::new(),
+        }
+    }
+}
+
+fn text(s: &str) -> Value {
+    Value::Text(s.to_string())
+}
+
+fn opt_date(d: Option<NaiveDate>) -> Value {
+    d.map_or(Value::Empty, Value::Date)
+}
+
+/// A sheet of the generated book: its name and header labels.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SheetSpec {
+    /// The sheet's name (a CSV file's name is this in lower case plus `.csv`).
+    pub name: &'static str,
+    /// Header labels, in column order.
+    pub columns: &'static [&'static str],
+}
+
+/// Index of the Accounts sheet in [`SHEETS`].
+pub const ACCOUNTS: usize = 0;
+/// Index of the Rates sheet in [`SHEETS`].
+pub const RATES: usize = 1;
+/// Index of the Movements sheet in [`SHEETS`].
+pub const MOVEMENTS: usize = 2;
+/// Index of the Statements sheet in [`SHEETS`].
+pub const STATEMENTS: usize = 3;
+/// Index of the Holidays sheet in [`SHEETS`].
+pub const HOLIDAYS: usize = 4;
+/// Index of the Settings sheet in [`SHEETS`].
+pub const SETTINGS: usize = 5;
+
+/// The sheets of a generated book, in book order.
+///
+/// ```
+/// use ledgerate::sample::{SHEETS, STATEMENTS};
+/// assert_eq!(SHEETS[STATEMENTS].name, "Statements");
+/// assert_eq!(SHEETS[STATEMENTS].columns[3], "posted_interest");
+/// ```
+pub const SHEETS: [SheetSpec; 6] = [
+    SheetSpec {
+        name: "Accounts",
+        columns: &[
+            "account",
+            "name",
+            "currency",
+            "side",
+            "day_count",
+            "compounding",
+            "posting",
+            "posting_anchor",
+            "anchor_kind",
+            "capitalise",
+            "round_at",
+            "round_mode",
+            "round_places",
+            "maturity",
+            "open_date",
+            "opening_balance",
+            "rate_ref",
+            "debit_rate_ref",
+            "tier_method",
+            "calendar",
+            "business_day",
+            "gl_interest",
+            "gl_accrued",
+        ],
+    },
+    SheetSpec {
+        name: "Rates",
+        columns: &["rate_ref", "effective", "rate_percent", "tier_from"],
+    },
+    SheetSpec {
+        name: "Movements",
+        columns: &[
+            "account",
+            "value_date",
+            "amount",
+            "booking_date",
+            "reference",
+        ],
+    },
+    SheetSpec {
+        name: "Statements",
+        columns: &[
+            "account",
+            "period_start",
+            "period_end",
+            "posted_interest",
+            "reference",
+        ],
+    },
+    SheetSpec {
+        name: "Holidays",
+        columns: &["calendar", "date", "name"],
+    },
+    SheetSpec {
+        name: "Settings",
+        columns: &["setting", "value"],
+    },
+];
+
+/// One row of the Rates sheet.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct RateRow {
+    /// The schedule it belongs to.
+    pub rate_ref: String,
+    /// The first day of its table.
+    pub effective: NaiveDate,
+    /// The annual rate in percent (2.10 for 2.10%).
+    pub percent: Decimal,
+    /// The tier threshold, for tiered tables.
+    pub tier_from: Option<Decimal>,
+}
+
+impl RateRow {
+    /// The row's cells.
+    pub fn cells(&self) -> Vec<Value> {
+        vec![
+            Value::Text(self.rate_ref.clone()),
+            Value::Date(self.effective),
+            Value::Number(self.percent),
+            self.tier_from.map_or(Value::Empty, Value::Number),
+        ]
+    }
+}
+
+/// The statement row of an account: what the institution posted for one
+/// posting period ending in the window.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SampleStatement {
+    /// First day of the period.
+    pub start: NaiveDate,
+    /// Last day of the period.
+    pub end: NaiveDate,
+    /// What the row says was posted (the expected amount unless a mistake was planted).
+    pub posted: Decimal,
+    /// What the engine expects for the period.
+    pub expected: Decimal,
+    /// The statement's reference.
+    pub reference: String,
+}
+
+/// One generated account with everything the book holds for it.
+#[derive(Debug, Clone)]
+pub struct SampleAccount {
+    /// The account's 0-based number in the book.
+    pub index: u64,
+    /// Its terms as the reader resolves them.
+    pub entry: AccountEntry,
+    /// The calendar named on its row, if any.
+    pub calendar: Option<&'static str>,
+    /// Its movements, in sheet order.
+    pub movements: Vec<Movement>,
+    /// Rates rows of its own (rate_ref is the account id), after the shared products.
+    pub own_rates: Vec<RateRow>,
+    /// Its statement row, when a posting period ends in the window.
+    pub statement: Option<SampleStatement>,
+    /// The mistake planted in the statement row, if any.
+    pub mistake: Option<Mistake>,
+}
+
+impl SampleAccount {
+    /// The Accounts row, in the columns of [`SHEETS`]`[ACCOUNTS]`.
+    pub fn account_row(&self) -> Vec<Value> {
+        let t = &self.entry.terms;
+        let default_ref = self.entry.rate_ref == t.id;
+        vec![
+            text(&t.id),
+            text(&self.entry.name),
+            text(&t.currency),
+            text(t.side.name()),
+            text(t.basis.name()),
+            text(t.compounding.name()),
+            text(t.posting.name()),
+            opt_date(t.anchor),
+            match t.anchor_kind {
+                crate::conventions::schedule::AnchorKind::Payment => text(t.anchor_kind.name()),
+                crate::conventions::schedule::AnchorKind::End => Value::Empty,
+            },
+            text(if t.capitalise { "yes" } else { "no" }),
+            match t.round_at {
+                RoundAt::Daily => text(t.round_at.name()),
+                RoundAt::Posting => Value::Empty,
+            },
+            text(t.round_mode.name()),
+            t.round_places
+                .map_or(Value::Empty, |p| Value::Number(Decimal::from(p))),
+            opt_date(t.maturity),
+            Value::Date(t.open_date),
+            Value::Number(t.opening_balance),
+            if default_ref {
+                Value::Empty
+            } else {
+                text(&self.entry.rate_ref)
+            },
+            self.entry
+                .debit_rate_ref
+                .as_deref()
+                .map_or(Value::Empty, text),
+            text(match t.tier_method {
+                TierMethod::Whole => "whole",
+                TierMethod::Banded => "banded",
+            }),
+            self.calendar.map_or(Value::Empty, text),
+            text(t.business_day.name()),
+            self.entry.gl.interest.as_deref().map_or(Value::Empty, text),
+            self.entry.gl.accrued.as_deref().map_or(Value::Empty, text),
+        ]
+    }
+
+    /// The Movements rows.
+    pub fn movement_rows(&self) -> Vec<Vec<Value>> {
+        self.movements
+            .iter()
+            .map(|m| {
+                vec![
+                    text(&self.entry.terms.id),
+                    Value::Date(m.value_date),
+                    Value::Number(m.amount),
+                    opt_date(m.booking_date),
+                    m.reference.as_deref().map_or(Value::Empty, text),
+                ]
+            })
+            .collect()
+    }
+
+    /// The Statements rows (none or one).
+    pub fn statement_rows(&self) -> Vec<Vec<Value>> {
+        self.statement
+            .iter()
+            .map(|s| {
+                vec![
+                    text(&self.entry.terms.id),
+                    Value::Date(s.start),
+                    Value::Date(s.end),
+                    Value::Number(s.posted),
+                    text(&s.reference),
+                ]
+            })
+            .collect()
+    }
+
+    /// The account's own Rates rows.
+    pub fn rate_rows(&self) -> Vec<Vec<Value>> {
+        self.own_rates.iter().map(RateRow::cells).collect()
+    }
+}
+
+/// An account the generator could not finish (a defect of the generator:
+/// every account it makes should be computable).
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error("the sample account {account} cannot be computed: {source}")]
+pub struct SampleError {
+    /// The account id.
+    pub account: String,
+    /// What the engine said.
+    #[source]
+    pub source: EngineError,
+}
+
+/// How many data rows (header not counted) each sheet of a book gets.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct SheetCounts {
+    /// Rows by sheet, in the order of [`SHEETS`].
+    pub rows: [u64; 6],
+}
+
+impl SheetCounts {
+    /// The largest sheet: its index in [`SHEETS`] and its data rows.
+    pub fn largest(&self) -> (usize, u64) {
+        self.rows
+            .iter()
+            .copied()
+            .enumerate()
+            .max_by_key(|(i, n)| (*n, std::cmp::Reverse(*i)))
+            .unwrap_or((0, 0))
+    }
+}
+
+/// Makes the rows of a sample book of `accounts` accounts from `seed`.
+///
+/// ```
+/// use ledgerate::sample::Generator;
+/// let g = Generator::new(42, 10);
+/// let a = g.account(0).unwrap();
+/// assert!(a.entry.terms.id.starts_with("HM-"));
+/// // The same seed and number give the same account.
+/// assert_eq!(format!("{:?}", a.account_row()), format!("{:?}", g.account(0).unwrap().account_row()));
+/// assert!(a.statement.is_some());
+/// ```
+#[derive(Debug, Clone)]
+pub struct Generator {
+    seed: u64,
+    accounts: u64,
+    products: Vec<Product>,
+    calendars: Calendars,
+}
+
+/// The calendars of the book's Holidays sheet.
+#[derive(Debug, Clone)]
+struct Calendars {
+    weekends: Arc<Calendar>,
+    harbour: Arc<Calendar>,
+    brazil: Arc<Calendar>,
+}
+
+/// The Holidays sheet: calendar, date, name.
+const HOLIDAY_ROWS: [(&str, NaiveDate, &str); 7] = [
+    ("HARBOUR", date(2026, 11, 26), "Harvest Thanksgiving"),
+    ("HARBOUR", date(2026, 12, 25), "Christmas Day"),
+    ("HARBOUR", date(2027, 1, 1), "New Year's Day"),
+    ("BR-2026", date(2026, 11, 2), "All Souls' Day"),
+    ("BR-2026", date(2026, 11, 20), "Black Awareness Day"),
+    ("BR-2026", date(2026, 12, 25), "Christmas Day"),
+    ("BR-2027", date(2027, 1, 1), "New Year's Day"),
+];
+
+fn calendar(name: &str) -> Calendar {
+    Calendar::new(
+        name,
+        HOLIDAY_ROWS
+            .iter()
+            .filter(|(c, _, _)| *c == name)
+            .map(|(_, d, _)| *d),
+    )
+}
+
+impl Generator {
+    /// A generator of `accounts` accounts from `seed`.
+    pub fn new(seed: u64, accounts: u64) -> Generator {
+        Generator {
+            seed,
+            accounts,
+            products: catalogue::products(seed),
+            calendars: Calendars {
+                weekends: Arc::new(Calendar::weekends_only()),
+                harbour: Arc::new(calendar("HARBOUR")),
+                brazil: Arc::new(calendar("BR-2026")),
+            },
+        }
+    }
+
+    /// The number of accounts.
+    pub fn accounts(&self) -> u64 {
+        self.accounts
+    }
+
+    /// The seed.
+    pub fn seed(&self) -> u64 {
+        self.seed
+    }
+
+    /// The rows of a small sheet (Holidays or Settings) or the shared
+    /// products' Rates rows; the per-account sheets give none here.
+    pub fn fixed_rows(&self, sheet: usize) -> Vec<Vec<Value>> {
+        match sheet {
+            RATES => self
+                .products
+                .iter()
+                .flat_map(|p| p.rows.iter().map(RateRow::cells))
+                .collect(),
+            HOLIDAYS => HOLIDAY_ROWS
+                .iter()
+                .map(|(c, d, n)| vec![text(c), Value::Date(*d), text(n)])
+                .collect(),
+            SETTINGS => vec![
+                vec![text("cutoff"), Value::Date(CUTOFF)],
+                vec![text("entity"), text(ENTITY)],
+            ],
+            _ => Vec::new(),
+        }
+    }
+
+    /// The data rows each sheet will get, counted without running the
+    /// engine (a statement row is counted for every account; an account
+    /// without a posting period in the window has none, so that count is an
+    /// upper bound).
+    pub fn counts(&self) -> SheetCounts {
+        let (movements, own_rates) = (0..self.accounts)
+            .into_par_iter()
+            .map(|i| {
+                let d = self.draft(i);
+                (d.movements.len() as u64, d.own_rates.len() as u64)
+            })
+            .reduce(|| (0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
+        let fixed = |s: usize| self.fixed_rows(s).len() as u64;
+        SheetCounts {
+            rows: [
+                self.accounts,
+                fixed(RATES) + own_rates,
+                movements,
+                self.accounts,
+                fixed(HOLIDAYS),
+                fixed(SETTINGS),
+            ],
+        }
+    }
+
+    fn draft(&self, index: u64) -> Draft {
+        draft::draft(self.seed, index, &self.products, &self.calendars)
+    }
+
+    /// The account numbered `index` (0-based), with its statement row
+    /// computed by the engine and any planted mistake.
+    ///
+    /// # Errors
+    /// [`SampleError`] when the engine cannot compute the generated account.
+    pub fn account(&self, index: u64) -> Result<SampleAccount, SampleError> {
+        let d = self.draft(index);
+        let fail = |source: EngineError| SampleError {
+            account: d.entry.terms.id.clone(),
+            source,
+        };
+        let own;
+        let rates: &RateSchedule = match d.product {
+            Some(p) => self
+                .products
+                .get(p)
+                .map(|p| &p.schedule)
+                .ok_or_else(|| fail(EngineError::Unsupported("no rate product".into())))?,
+            None => {
+                own = RateSchedule::from_rows(d.own_rates.iter().map(|r| {
+                    (
+                        r.effective,
+                        catalogue::percent_to_rate(r.percent),
+                        Decimal::ZERO,
+                    )
+                }));
+                &own
+            }
+        };
+        let debit = d
+            .debit_product
+            .and_then(|p| self.products.get(p))
+            .map(|p| &p.schedule);
+        let planting = d.plant.is_some();
+        let options = RunOptions {
+            window_start: WINDOW_START,
+            cutoff: CUTOFF,
+            keep_days: planting,
+            keep_states: false,
+            fast_path: true,
+        };
+        let sources = Sources {
+            rates,
+            debit_rates: debit.map(|r| r as &dyn RateSource),
+            movements: &d.movements,
+            actual: &[],
+            floating: None,
+        };
+        let right = accrue(&d.entry.terms, sources, options).map_err(fail)?;
+        let posting = right
+            .postings
+            .iter()
+            .rev()
+            .find(|p| p.end >= WINDOW_START && p.end <= CUTOFF);
+        let mut statement = None;
+        let mut mistake = None;
+        if let Some(p) = posting {
+            let mut posted = p.expected;
+            if let Some(stream) = d.plant {
+                let job = plant::Job {
+                    terms: &d.entry.terms,
+                    rates,
+                    debit,
+                    movements: &d.movements,
+                    right: &right,
+                    posting: p,
+                };
+                let (m, amount) = plant::plant(&job, stream).map_err(fail)?;
+                posted = amount;
+                mistake = Some(m);
+            }
+            statement = Some(SampleStatement {
+                start: p.start,
+                end: p.end,
+                posted,
+                expected: p.expected,
+                reference: format!("ST-{}-{}", d.entry.terms.id, p.end.format("%Y%m")),
+            });
+        }
+        Ok(SampleAccount {
+            index,
+            entry: d.entry,
+            calendar: d.calendar,
+            movements: d.movements,
+            own_rates: d.own_rates,
+            statement,
+            mistake,
+        })
+    }
+
+    /// The accounts numbered `range`, generated in parallel on rayon's pool
+    /// and returned in order.
+    pub fn accounts_in(&self, range: Range<u64>) -> Vec<Result<SampleAccount, SampleError>> {
+        let end = range.end.min(self.accounts);
+        (range.start.min(end)..end)
+            .into_par_iter()
+            .map(|i| self.account(i))
+            .collect()
+    }
+}
+
+#[cfg(test)]
+mod tests;

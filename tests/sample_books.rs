@@ -1,0 +1,281 @@
+//! `ledgerate sample` as a user runs it: books of invented accounts that are
+//! the same for the same seed, that the reader takes without an error, and
+//! whose planted statement mistakes a month-end run finds and names (the
+//! workbook read back with calamine).
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+use assert_cmd::Command;
+use calamine::{open_workbook_auto, Data, Reader};
+use ledgerate::book::{read_book, ReadOptions, Severity};
+use ledgerate::report::book_writer::csv_name;
+use ledgerate::sample::{Generator, Mistake, MistakeKind, SHEETS};
+use predicates::prelude::*;
+
+fn ledgerate() -> Command {
+    Command::cargo_bin("ledgerate").unwrap()
+}
+
+fn sample(accounts: u64, seed: u64, format: &str, out: &Path) {
+    ledgerate()
+        .args(["sample", "--accounts", &accounts.to_string()])
+        .args(["--seed", &seed.to_string(), "--format", format, "--out"])
+        .arg(out)
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("sample book written"));
+}
+
+fn csv_bytes(dir: &Path) -> Vec<(String, Vec<u8>)> {
+    SHEETS
+        .iter()
+        .map(|s| {
+            let name = csv_name(s.name);
+            let bytes = std::fs::read(dir.join(&name)).unwrap();
+            (name, bytes)
+        })
+        .collect()
+}
+
+/// Common practice, no source: a seeded generator is reproducible, so a
+/// benchmark or a bug report can name its book by size and seed.
+#[test]
+fn the_same_seed_gives_the_same_bytes_and_another_seed_another_book() {
+    let dir = tempfile::tempdir().unwrap();
+    let (a, b, c) = (
+        dir.path().join("a"),
+        dir.path().join("b"),
+        dir.path().join("c"),
+    );
+    sample(400, 7, "csv", &a);
+    sample(400, 7, "csv", &b);
+    sample(400, 8, "csv", &c);
+    assert_eq!(csv_bytes(&a), csv_bytes(&b));
+    let (first, other) = (csv_bytes(&a), csv_bytes(&c));
+    for sheet in [
+        "accounts.csv",
+        "movements.csv",
+        "statements.csv",
+        "rates.csv",
+    ] {
+        let x = first.iter().find(|(n, _)| n == sheet).unwrap();
+        let y = other.iter().find(|(n, _)| n == sheet).unwrap();
+        assert_ne!(x.1, y.1, "{sheet} is the same for seeds 7 and 8");
+    }
+
+    let (x, y, z) = (
+        dir.path().join("x.xlsx"),
+        dir.path().join("y.xlsx"),
+        dir.path().join("z.xlsx"),
+    );
+    sample(300, 7, "xlsx", &x);
+    sample(300, 7, "xlsx", &y);
+    sample(300, 8, "xlsx", &z);
+    let bytes = |p: &PathBuf| std::fs::read(p).unwrap();
+    assert_eq!(bytes(&x), bytes(&y));
+    assert_ne!(bytes(&x), bytes(&z));
+}
+
+/// The sample book is a book the reader takes whole: no problem of any
+/// severity, every account typed with the terms the generator gave it.
+#[test]
+fn the_book_reads_back_with_no_problem_and_the_generated_terms() {
+    let dir = tempfile::tempdir().unwrap();
+    let generator = Generator::new(11, 600);
+    for (format, path) in [
+        ("csv", dir.path().join("book")),
+        ("xlsx", dir.path().join("book.xlsx")),
+    ] {
+        sample(600, 11, format, &path);
+        let book = read_book(&path, &ReadOptions::default());
+        let errors: Vec<String> = book
+            .problems
+            .iter()
+            .filter(|p| p.severity == Severity::Error)
+            .map(|p| p.to_string())
+            .collect();
+        assert!(errors.is_empty(), "{format}: {errors:#?}");
+        assert!(
+            book.problems.is_empty(),
+            "{format}: {:#?}",
+            book.problems.iter().take(5).collect::<Vec<_>>()
+        );
+        assert_eq!(book.accounts.len(), 600);
+        for (i, read) in (0..).zip(&book.accounts) {
+            let made = generator.account(i).unwrap();
+            let (r, m) = (&read.terms, &made.entry.terms);
+            assert_eq!(r.id, m.id);
+            assert_eq!(
+                (r.basis, r.compounding, r.posting, r.side, r.tier_method),
+                (m.basis, m.compounding, m.posting, m.side, m.tier_method),
+                "{}",
+                m.id
+            );
+            assert_eq!(
+                (r.anchor, r.anchor_kind, r.maturity, r.open_date),
+                (m.anchor, m.anchor_kind, m.maturity, m.open_date),
+                "{}",
+                m.id
+            );
+            assert_eq!(
+                (r.capitalise, r.round_at, r.round_mode, r.round_places),
+                (m.capitalise, m.round_at, m.round_mode, m.round_places),
+                "{}",
+                m.id
+            );
+            assert_eq!(r.opening_balance, m.opening_balance, "{}", m.id);
+            assert_eq!(r.business_day, m.business_day, "{}", m.id);
+            assert_eq!(
+                r.calendar.holidays().collect::<Vec<_>>(),
+                m.calendar.holidays().collect::<Vec<_>>(),
+                "{}",
+                m.id
+            );
+            assert_eq!(read.rate_ref, made.entry.rate_ref);
+            assert_eq!(read.debit_rate_ref, made.entry.debit_rate_ref);
+            let moved = book.movements.get(&m.id).cloned().unwrap_or_default();
+            assert_eq!(moved, made.movements, "{}", m.id);
+        }
+        let statements = book.statements.len();
+        assert_eq!(statements, 600, "{format}: one statement row per account");
+    }
+}
+
+/// What the Likely cause column says for each planted kind (the wording of
+/// the cause search, semantics section 9).
+fn named(mistake: &Mistake, cause: &str) -> bool {
+    match mistake {
+        Mistake::OtherBasis { used } => {
+            cause.contains(&format!("interest on {} instead of", used.name()))
+        }
+        Mistake::RateChangeNotApplied { effective } => {
+            cause.contains(&format!("rate change of {effective}")) && cause.contains("not applied")
+        }
+        Mistake::RateChangeMoved { effective, applied } => {
+            cause.contains(&format!("rate change of {effective}"))
+                && cause.contains(&format!("applied from {applied} instead"))
+        }
+        Mistake::MovementMoved {
+            reference, taken, ..
+        } => {
+            cause.contains(&format!("movement {reference} "))
+                && cause.contains(&format!("taken from {taken} instead"))
+        }
+        Mistake::MovementLeftOut { reference } => {
+            cause.contains(&format!("movement {reference} ")) && cause.contains("left out")
+        }
+        Mistake::PeriodStartADayLate => cause.contains("period start a day late"),
+        Mistake::PeriodEndADayEarly => cause.contains("period end a day early"),
+        Mistake::UnexplainedAmount { .. } => {
+            cause.starts_with("no single change reproduces the posted amount")
+        }
+    }
+}
+
+/// A month-end run on a 2,000-account sample: the unplanted rows agree, the
+/// planted ones (about 2%) are exceptions, and the cause search names each
+/// planted mistake, every kind among them.
+#[test]
+fn a_run_on_a_2000_account_sample_finds_and_names_the_planted_mistakes() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = dir.path().join("book.xlsx");
+    let out = dir.path().join("nov.xlsx");
+    sample(2000, 2026, "xlsx", &book);
+    ledgerate()
+        .arg("run")
+        .arg(&book)
+        .args(["--fixed-time", "2026-12-01T08:00:00", "--out"])
+        .arg(&out)
+        .assert()
+        .success()
+        .stdout(predicate::str::contains(
+            "accounts: 2000 read, 2000 computed, 0 left out by errors",
+        ));
+
+    let mut wb = open_workbook_auto(&out).unwrap();
+    let rows: Vec<Vec<Data>> = wb
+        .worksheet_range("Reconciliation")
+        .unwrap()
+        .rows()
+        .map(|r| r.to_vec())
+        .collect();
+    let header: Vec<String> = rows[0].iter().map(|c| c.to_string()).collect();
+    let col = |label: &str| header.iter().position(|h| h == label).unwrap();
+    let (account, status, cause) = (col("Account"), col("Status"), col("Likely cause"));
+    let by_account: BTreeMap<String, (String, String)> = rows[1..]
+        .iter()
+        .map(|r| {
+            (
+                r[account].to_string(),
+                (r[status].to_string(), r[cause].to_string()),
+            )
+        })
+        .collect();
+    assert_eq!(by_account.len(), 2000, "one reconciliation row per account");
+
+    let generator = Generator::new(2026, 2000);
+    let mut kinds: BTreeMap<MistakeKind, usize> = BTreeMap::new();
+    let mut exceptions = 0;
+    for i in 0..2000 {
+        let a = generator.account(i).unwrap();
+        let (st, why) = &by_account[&a.entry.terms.id];
+        let exception = !matches!(st.as_str(), "agrees" | "within tolerance");
+        exceptions += usize::from(exception);
+        match &a.mistake {
+            None => assert_eq!(st, "agrees", "{}: {why}", a.entry.terms.id),
+            Some(m) => {
+                assert!(exception, "{} planted {m:?} but {st}", a.entry.terms.id);
+                assert!(
+                    named(m, why),
+                    "{} planted {m:?}; the cause says: {why}",
+                    a.entry.terms.id
+                );
+                *kinds.entry(m.kind()).or_insert(0) += 1;
+            }
+        }
+    }
+    // About 2%: 40 of 2,000, give or take what chance does to a sample.
+    assert!((20..=60).contains(&exceptions), "{exceptions} exceptions");
+    for kind in MistakeKind::ALL {
+        assert!(
+            kinds.contains_key(&kind),
+            "no {} planted: {kinds:?}",
+            kind.name()
+        );
+    }
+}
+
+#[test]
+fn a_book_past_a_sheet_is_refused_as_a_workbook_with_the_way_out() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("big.xlsx");
+    ledgerate()
+        .args(["sample", "--accounts", "1048576", "--out"])
+        .arg(&out)
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("--format csv"))
+        .stderr(predicate::str::contains("Accounts sheet"));
+    assert!(!out.exists());
+}
+
+#[test]
+fn an_existing_book_is_not_replaced_without_force() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("b.xlsx");
+    std::fs::write(&out, b"keep me").unwrap();
+    ledgerate()
+        .args(["sample", "--accounts", "5", "--out"])
+        .arg(&out)
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("--force"));
+    assert_eq!(std::fs::read(&out).unwrap(), b"keep me");
+    ledgerate()
+        .args(["sample", "--accounts", "5", "--force", "--out"])
+        .arg(&out)
+        .assert()
+        .success();
+    assert_ne!(std::fs::read(&out).unwrap(), b"keep me");
+}
