@@ -165,26 +165,36 @@ pub fn run_books(
     // same period are one posting: a correction and its reversal, say).
     let actual: Vec<HashMap<&str, Vec<ActualPosting>>> =
         books.iter().map(actual_postings).collect();
+    // Each account's statement rows, found once per book rather than per account.
+    let rows: Vec<HashMap<&str, Vec<&StatementRow>>> =
+        books.iter().map(statements_by_account).collect();
     type Work<'b> = (
         usize,
         &'b Book,
-        &'b HashMap<&'b str, Vec<ActualPosting>>,
+        (
+            &'b HashMap<&'b str, Vec<ActualPosting>>,
+            &'b HashMap<&'b str, Vec<&'b StatementRow>>,
+        ),
         &'b AccountEntry,
     );
     let work: Vec<Work<'_>> = books
         .iter()
-        .zip(&actual)
+        .zip(actual.iter().zip(&rows))
         .enumerate()
-        .flat_map(|(bi, (b, posted))| b.accounts.iter().map(move |a| (bi, b, posted, a)))
+        .flat_map(|(bi, (b, (posted, rows)))| {
+            b.accounts.iter().map(move |a| (bi, b, (posted, rows), a))
+        })
         .filter(|(_, _, _, a)| in_shard(&a.terms.id, settings.shard))
         .collect();
     let outcomes: Vec<Result<Outcome, Box<Problem>>> = work
         .par_iter()
         .with_min_len(64)
-        .map(|&(_, book, posted, entry)| {
+        .map(|&(_, book, (posted, rows), entry)| {
             let r = accrue_one(
                 book,
                 entry,
+                rows.get(entry.terms.id.as_str())
+                    .map_or(&[][..], Vec::as_slice),
                 posted.get(entry.terms.id.as_str()),
                 options,
                 &settings.tolerance,
@@ -304,13 +314,14 @@ fn actual_postings(book: &Book) -> HashMap<&str, Vec<ActualPosting>> {
 fn accrue_one(
     book: &Book,
     entry: &AccountEntry,
+    statements: &[&StatementRow],
     actual: Option<&Vec<ActualPosting>>,
     options: RunOptions,
     tolerance: &Tolerance,
     fallback: FixingFallback,
 ) -> Result<Outcome, Box<Problem>> {
     let t = &entry.terms;
-    let (periods, notes) = statement_periods(book, entry, options.cutoff);
+    let (periods, notes) = statement_periods(statements, entry, options.cutoff);
     // Day rows are kept for reconciliation; the Daily sheet gets them only when asked for.
     let keep_daily = options.keep_days;
     let options = RunOptions {
@@ -463,19 +474,23 @@ fn fixing_warnings(entry: &AccountEntry, warnings: &[FixingWarning]) -> Vec<Prob
 
 /// The account's statement rows grouped by period (rows with the same
 /// period are one posting), leaving out rows that end after the cut-off.
+fn statements_by_account(book: &Book) -> HashMap<&str, Vec<&StatementRow>> {
+    let mut out: HashMap<&str, Vec<&StatementRow>> = HashMap::new();
+    for s in &book.statements {
+        out.entry(s.account.as_str()).or_default().push(s);
+    }
+    out
+}
+
 fn statement_periods(
-    book: &Book,
+    statements: &[&StatementRow],
     entry: &AccountEntry,
     cutoff: NaiveDate,
 ) -> (Vec<StatementPeriod>, Vec<Problem>) {
     let mut groups: BTreeMap<(NaiveDate, NaiveDate), (Decimal, Vec<&StatementRow>)> =
         BTreeMap::new();
     let mut notes = Vec::new();
-    for s in book
-        .statements
-        .iter()
-        .filter(|s| s.account == entry.terms.id)
-    {
+    for &s in statements {
         if s.period_end > cutoff {
             notes.push(Problem {
                 severity: Severity::Warning,
