@@ -208,79 +208,62 @@ impl Journal {
         } else {
             (&accrued_gl, &interest_gl)
         };
-        let window = format!("{from}..{to}");
-        match style {
-            JournalStyle::Incremental => {
+        // Incremental books the window's interest and settles postings against the
+        // accrual account; reversing books the whole accrued, reverses it the next
+        // day, and books postings straight to interest expense or income.
+        let (accrued, memo, postings_against) = match style {
+            JournalStyle::Incremental => (
+                a.interest_for_window,
+                format!("interest accrued {from}..{to}"),
+                &accrued_gl,
+            ),
+            JournalStyle::Reversing => (
+                a.accrued_at_cutoff,
+                format!("interest accrued at {to}"),
+                &interest_gl,
+            ),
+        };
+        self.entry(
+            to,
+            a.entity,
+            a.currency,
+            a.minor_units,
+            accrue_dr,
+            accrue_cr,
+            &memo,
+            accrued,
+        );
+        if style == JournalStyle::Reversing {
+            if let Some(next) = to.succ_opt() {
                 self.entry(
-                    to,
+                    next,
                     a.entity,
                     a.currency,
                     a.minor_units,
-                    accrue_dr,
                     accrue_cr,
-                    &format!("interest accrued {window}"),
-                    a.interest_for_window,
-                );
-                // Settling a posting: liability Dr payable / Cr settlement; asset Dr settlement / Cr receivable.
-                let (dr, cr) = if liability {
-                    (&accrued_gl, &settle_gl)
-                } else {
-                    (&settle_gl, &accrued_gl)
-                };
-                for (date, amount) in &a.postings {
-                    self.entry(
-                        *date,
-                        a.entity,
-                        a.currency,
-                        a.minor_units,
-                        dr,
-                        cr,
-                        "interest posted",
-                        *amount,
-                    );
-                }
-            }
-            JournalStyle::Reversing => {
-                self.entry(
-                    to,
-                    a.entity,
-                    a.currency,
-                    a.minor_units,
                     accrue_dr,
-                    accrue_cr,
-                    &format!("interest accrued at {to}"),
-                    a.accrued_at_cutoff,
+                    &format!("reversal of interest accrued at {to}"),
+                    accrued,
                 );
-                if let Some(next) = to.succ_opt() {
-                    self.entry(
-                        next,
-                        a.entity,
-                        a.currency,
-                        a.minor_units,
-                        accrue_cr,
-                        accrue_dr,
-                        &format!("reversal of interest accrued at {to}"),
-                        a.accrued_at_cutoff,
-                    );
-                }
-                let (dr, cr) = if liability {
-                    (&interest_gl, &settle_gl)
-                } else {
-                    (&settle_gl, &interest_gl)
-                };
-                for (date, amount) in &a.postings {
-                    self.entry(
-                        *date,
-                        a.entity,
-                        a.currency,
-                        a.minor_units,
-                        dr,
-                        cr,
-                        "interest posted",
-                        *amount,
-                    );
-                }
             }
+        }
+        // A posting: liability Dr (payable or expense) / Cr settlement; asset the other way.
+        let (dr, cr) = if liability {
+            (postings_against, &settle_gl)
+        } else {
+            (&settle_gl, postings_against)
+        };
+        for (date, amount) in &a.postings {
+            self.entry(
+                *date,
+                a.entity,
+                a.currency,
+                a.minor_units,
+                dr,
+                cr,
+                "interest posted",
+                *amount,
+            );
         }
     }
 
