@@ -131,6 +131,30 @@ impl Known {
         self.by_id.get(id)
     }
 
+    /// The account a row of another sheet names in column `column`, with its
+    /// dates; an unknown id is an error on that cell and gives `None`.
+    pub(crate) fn of_row(
+        &self,
+        f: &mut Fields<'_, '_, '_>,
+        column: usize,
+    ) -> Option<(String, &Life)> {
+        let id = f.required_text(column)?;
+        f.account = Some(id.clone());
+        match self.get(&id) {
+            Some(life) => Some((id, life)),
+            None => {
+                f.report(
+                    Severity::Error,
+                    column,
+                    &id,
+                    "an account of the Accounts sheet",
+                    &self.unknown_fix(&id),
+                );
+                None
+            }
+        }
+    }
+
     /// The fix for a row naming an account that is not in the sheet.
     pub(crate) fn unknown_fix(&self, id: &str) -> String {
         match self.folded.get(&fold(id)) {

@@ -8,7 +8,7 @@
 //! each came from.
 
 mod accounts;
-mod cell;
+pub(crate) mod cell;
 mod fixings;
 mod holidays;
 pub mod model;

@@ -49,18 +49,7 @@ pub(crate) fn read(
     out.spoiled.extend(table.skipped_accounts().iter().cloned());
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
-        let Some(id) = f.required_text(ACCOUNT) else {
-            continue;
-        };
-        f.account = Some(id.clone());
-        let Some(life) = accounts.get(&id) else {
-            f.report(
-                Severity::Error,
-                ACCOUNT,
-                &id,
-                "an account of the Accounts sheet",
-                &accounts.unknown_fix(&id),
-            );
+        let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
             continue;
         };
         let value_date = f.required_date(VALUE_DATE);

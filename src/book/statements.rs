@@ -54,18 +54,7 @@ pub(crate) fn read(
     let mut periods: BTreeMap<String, Vec<(NaiveDate, NaiveDate, String)>> = BTreeMap::new();
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
-        let Some(id) = f.required_text(ACCOUNT) else {
-            continue;
-        };
-        f.account = Some(id.clone());
-        let Some(life) = accounts.get(&id) else {
-            f.report(
-                Severity::Error,
-                ACCOUNT,
-                &id,
-                "an account of the Accounts sheet",
-                &accounts.unknown_fix(&id),
-            );
+        let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
             continue;
         };
         let start = f.required_date(PERIOD_START);

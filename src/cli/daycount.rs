@@ -56,12 +56,8 @@ fn date(what: &str, s: &str) -> Result<NaiveDate> {
 
 /// Parses a strict ISO date (YYYY-MM-DD), nothing before or after.
 pub(crate) fn parse_iso_date(s: &str) -> Option<NaiveDate> {
-    let t = s.trim();
-    let b = t.as_bytes();
-    if b.len() != 10 || b.get(4) != Some(&b'-') || b.get(7) != Some(&b'-') {
-        return None;
-    }
-    NaiveDate::parse_from_str(t, "%Y-%m-%d").ok()
+    // The same strict ISO rule the book reader applies to date text.
+    crate::book::cell::parse_iso_date(s.trim())
 }
 
 /// Reads a holiday file: one ISO date a line, blank lines and `#` comments skipped.
