@@ -185,6 +185,7 @@ fn run(b: &Batch, options: RunOptions) -> Decimal {
             debit_rates: None,
             movements: m,
             actual: &[],
+            breaks: &[],
             floating: None,
         };
         let result = accrue(t, sources, options).expect("bench accounts compute");

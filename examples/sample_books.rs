@@ -705,6 +705,7 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
         cutoff: "2026-11-30".parse()?,
         keep_days: true,
         keep_states: false,
+        keep_spans: false,
         fast_path: true,
     };
     let november: NaiveDate = "2026-11-01".parse()?;
@@ -737,6 +738,7 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
                 debit_rates: debit,
                 movements: m,
                 actual: &[],
+                breaks: &[],
                 floating,
             };
             accrue(t, src, options)

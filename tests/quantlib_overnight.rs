@@ -153,6 +153,7 @@ fn overnight_coupons_agree_with_the_reference_library() {
             debit_rates: None,
             movements: &[],
             actual: &[],
+            breaks: &[],
             floating: Some(FloatingRates {
                 schedule: &schedule,
                 fixings: &fixings,
@@ -165,6 +166,7 @@ fn overnight_coupons_agree_with_the_reference_library() {
             cutoff,
             keep_days: c.accrued.is_some(),
             keep_states: false,
+            keep_spans: false,
             fast_path: true,
         };
         let r = match accrue(&t, sources, options) {

@@ -127,6 +127,7 @@ fn run(ex: &Value) -> AccountResult {
         cutoff: date(&ex["cutoff"]),
         keep_days: true,
         keep_states: false,
+        keep_spans: false,
         fast_path: true,
     };
     let sources = Sources {
@@ -134,6 +135,7 @@ fn run(ex: &Value) -> AccountResult {
         debit_rates: None,
         movements: &movements,
         actual: &actual,
+        breaks: &[],
         floating: None,
     };
     accrue(&t, sources, options).unwrap_or_else(|e| panic!("{}: {e}", ex["name"]))

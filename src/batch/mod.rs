@@ -159,6 +159,7 @@ pub fn run_books(
         cutoff: settings.cutoff,
         keep_days: settings.daily,
         keep_states: false,
+        keep_spans: false,
         fast_path: settings.fast_path,
     };
     // Amounts actually posted, summed per account and period (rows for the
@@ -322,13 +323,19 @@ fn accrue_one(
 ) -> Result<Outcome, Box<Problem>> {
     let t = &entry.terms;
     let (periods, notes) = statement_periods(statements, entry, options.cutoff);
-    // Day rows are kept for reconciliation; the Daily sheet gets them only when asked for.
+    // Reconciliation sums spans of days broken at each statement period's
+    // ends; states let the cause search re-run a period.
     let keep_daily = options.keep_days;
     let options = RunOptions {
-        keep_days: options.keep_days || !periods.is_empty(),
+        keep_spans: !periods.is_empty(),
         keep_states: !periods.is_empty(),
         ..options
     };
+    let breaks: Vec<NaiveDate> = periods
+        .iter()
+        .flat_map(|p| [p.start.pred_opt(), Some(p.end)])
+        .flatten()
+        .collect();
     let problem = |e: &EngineError| engine_problem(entry, e);
     let floating_schedule = book.floating_rates.get(&entry.rate_ref);
     let empty = crate::engine::rates::RateSchedule::default();
@@ -361,6 +368,7 @@ fn accrue_one(
         debit_rates: debit,
         movements,
         actual: actual.map_or(&[][..], Vec::as_slice),
+        breaks: &breaks,
         floating,
     };
     let r: AccountResult = accrue(t, sources, options).map_err(|e| problem(&e))?;
@@ -595,6 +603,7 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Box<Problem> {
             "check the rate for a typing error".to_string(),
         ),
         EngineError::BadState(_) => ("a period start".to_string(), "report this as a defect".to_string()),
+        EngineError::UnbrokenSpan(_) => ("runs of days that end at every statement boundary".to_string(), "report this as a defect; --no-fast-path computes the account day by day".to_string()),
     };
     Box::new(Problem {
         severity: Severity::Error,

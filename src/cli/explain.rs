@@ -168,6 +168,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         debit_rates: debit.map(|d| d as &dyn RateSource),
         movements,
         actual: &actual,
+        breaks: &[],
         floating,
     };
     let options = RunOptions {
@@ -175,6 +176,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         cutoff,
         keep_days: true,
         keep_states: true,
+        keep_spans: false,
         fast_path: true,
     };
     let r = accrue(t, sources, options).map_err(|e| anyhow!("account {}: {e}", t.id))?;

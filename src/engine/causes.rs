@@ -402,6 +402,8 @@ pub fn likely_cause(a: &Account, row: &Reconciled, tolerance: &Tolerance) -> Str
         let rates = change.rates.as_ref().unwrap_or(a.rates);
         let movements = change.movements.as_deref().unwrap_or(a.movements);
         let (ps, pe) = change.period.unwrap_or((row.start, row.end));
+        // The re-run's spans must end where the period tried does.
+        let breaks = [ps.pred_opt().unwrap_or(ps), pe];
         let state = state_for(a, terms, change.from);
         let floating = a.floating.map(|f| FloatingRates {
             schedule: change.floating.as_ref().unwrap_or(f.schedule),
@@ -412,13 +414,15 @@ pub fn likely_cause(a: &Account, row: &Reconciled, tolerance: &Tolerance) -> Str
             debit_rates: a.debit_rates.map(|r| r as &dyn super::rates::RateSource),
             movements,
             actual: a.actual,
+            breaks: &breaks,
             floating,
         };
         let options = RunOptions {
             window_start: ps,
             cutoff: pe.max(row.end),
-            keep_days: true,
+            keep_days: false,
             keep_states: false,
+            keep_spans: true,
             fast_path: true,
         };
         let Ok(result) = resume(terms, sources, options, &state) else {

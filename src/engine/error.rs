@@ -51,4 +51,8 @@ pub enum EngineError {
     /// A resumed state does not start a posting period of the account.
     #[error("the saved state on {0} does not start a posting period")]
     BadState(NaiveDate),
+    /// Reconciliation met a run of days crossing a statement period's
+    /// boundary: the run was made without that period's breaks.
+    #[error("the run of days from {0} crosses a statement period boundary")]
+    UnbrokenSpan(NaiveDate),
 }

@@ -2,7 +2,8 @@
 //! expected interest, balance-years, variance in money and basis points, and
 //! status; and a "not posted" row for each posting the statements miss.
 //!
-//! Pure: works on an [`AccountResult`] computed with day rows. The search
+//! Pure: works on an [`AccountResult`] computed with spans (or day rows),
+//! broken at the statement periods' boundaries. The search
 //! for a likely cause lives in [`super::causes`].
 
 use chrono::NaiveDate;
@@ -141,25 +142,36 @@ pub fn expected_over(
     let mut uncovered = Accrual::new();
     let mut years = Accrual::new();
     let mut any_base = false;
-    for d in result
-        .days
+    for span in result
+        .spans
         .iter()
-        .filter(|d| d.date >= start && d.date <= end)
+        .filter(|x| x.last >= start && x.first <= end)
     {
-        if !d.base.is_zero() {
+        // Runs of days end at every statement boundary (`Sources::breaks`),
+        // so a span lies wholly inside the period or wholly outside it.
+        if span.first < start || span.last > end {
+            return Err(EngineError::UnbrokenSpan(span.first));
+        }
+        if !span.base.is_zero() {
             any_base = true;
         }
-        let by =
-            d.base
-                .checked_mul(Decimal::from(d.fraction.num))
-                .ok_or(EngineError::Overflow {
-                    what: "the balance-years",
-                    date: d.date,
-                })?;
-        years.add_fraction(by, d.fraction.den).map_err(overflow)?;
-        if !inside.iter().any(|p| p.start <= d.date && d.date <= p.end) {
+        let by = span
+            .base
+            .checked_mul(Decimal::from(span.fraction.num))
+            .ok_or(EngineError::Overflow {
+                what: "the balance-years",
+                date: span.first,
+            })?;
+        years
+            .add_fraction(by, span.fraction.den)
+            .map_err(overflow)?;
+        // A span never crosses a posting period's end, so one day tells for all.
+        if !inside
+            .iter()
+            .any(|p| p.start <= span.first && span.first <= p.end)
+        {
             uncovered
-                .add_fraction(d.interest_num, d.interest_den)
+                .add_fraction(span.interest_num, span.interest_den)
                 .map_err(overflow)?;
         }
     }
@@ -333,6 +345,7 @@ mod tests {
             debit_rates: None,
             movements: &[],
             actual,
+            breaks: &[],
             floating: None,
         };
         let o = RunOptions {
@@ -340,6 +353,7 @@ mod tests {
             cutoff: d(to),
             keep_days: true,
             keep_states: true,
+            keep_spans: false,
             fast_path: true,
         };
         accrue(terms, src, o).unwrap()

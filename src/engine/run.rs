@@ -30,6 +30,10 @@ pub struct RunOptions {
     pub keep_days: bool,
     /// Keep an [`AccrualState`] at the start of every posting period.
     pub keep_states: bool,
+    /// Keep one [`Span`] per run of days accrued together (per day when
+    /// `keep_days` is set or the fast path is off): what reconciliation sums
+    /// over a statement period.
+    pub keep_spans: bool,
     /// Accrue runs of days over which nothing changes in one step (the same
     /// exact numerators, summed at once). Off: the plain day loop, for audits.
     pub fast_path: bool,
@@ -43,9 +47,29 @@ impl RunOptions {
             cutoff,
             keep_days: false,
             keep_states: false,
+            keep_spans: false,
             fast_path: true,
         }
     }
+}
+
+/// Days `first..=last` accrued together: one base and one day-fraction
+/// denominator throughout, so the sums over the span are single products.
+/// With day rows or without the fast path every span is one day.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Span {
+    /// First day.
+    pub first: NaiveDate,
+    /// Last day (inclusive).
+    pub last: NaiveDate,
+    /// B(D) on every day of the span.
+    pub base: Decimal,
+    /// The sum of f(D) over the span (one denominator).
+    pub fraction: DayFraction,
+    /// The span's interest exactly, as `interest_num / interest_den`.
+    pub interest_num: Decimal,
+    /// See `interest_num`.
+    pub interest_den: u32,
 }
 
 /// One computed day.
@@ -164,6 +188,8 @@ pub struct AccountResult {
     pub effective_annual_rate: Option<Decimal>,
     /// The days computed, when asked for.
     pub days: Vec<DayRow>,
+    /// The runs of days computed, when asked for (or when days are kept).
+    pub spans: Vec<Span>,
     /// The state at the start of each posting period, when asked for.
     pub states: Vec<AccrualState>,
     /// Missing fixings replaced by the last published one (`last` fallback).
@@ -181,6 +207,10 @@ pub struct Sources<'a> {
     pub movements: &'a [Movement],
     /// Amounts actually posted, from statements.
     pub actual: &'a [ActualPosting],
+    /// Days a run of days must end on (in any order): the last days of
+    /// statement periods and the eves of their first days, so that spans sum
+    /// exactly over each statement period.
+    pub breaks: &'a [NaiveDate],
     /// A floating account's tables and fixings (semantics section 10). When
     /// given, the account's rates are resolved from them for each day of the
     /// run and `rates` is not consulted; a fixed-rate account leaves it `None`.
@@ -203,7 +233,7 @@ pub struct Sources<'a> {
 /// // 1,000.00 at 2.25% over a regular 30/360 month is exactly 1.875: it posts 1.88.
 /// let terms = AccountTerms::new("EX-01", "USD", 2, Basis::Thirty360, d("2026-11-01"), n("1000.00"));
 /// let rates = RateSchedule::from_rows([(d("2026-01-01"), n("0.0225"), Decimal::ZERO)]);
-/// let src = Sources { rates: &rates, debit_rates: None, movements: &[], actual: &[], floating: None };
+/// let src = Sources { rates: &rates, debit_rates: None, movements: &[], actual: &[], breaks: &[], floating: None };
 /// let r = accrue(&terms, src, RunOptions::month_end(d("2026-11-30"))).unwrap();
 /// assert_eq!(r.postings[0].interest.to_string(), "1.875");
 /// assert_eq!(r.postings[0].posted.to_string(), "1.88");
@@ -343,6 +373,44 @@ struct Loop<'a> {
     since_compounding: Accrual,
     /// The fixing behind each day's rate, for a floating account.
     fixings: Option<&'a std::collections::BTreeMap<NaiveDate, FixingUsed>>,
+    /// Growth factors already computed, by (rate, day fraction): an
+    /// exponential account meets the same pair day after day.
+    growth: GrowthCache,
+    /// `Sources::breaks`, sorted.
+    breaks: Vec<NaiveDate>,
+}
+
+/// The last few growth factors of an exponential account, by the rate as
+/// written (mantissa and scale: 0.05 and 0.050 may round differently deep in
+/// the series) and the day fraction's numerator and denominator.
+#[derive(Default)]
+struct GrowthCache {
+    entries: Vec<(GrowthKey, Decimal)>,
+    next: usize,
+}
+
+type GrowthKey = (i128, u32, i64, u32);
+
+impl GrowthCache {
+    const SIZE: usize = 8;
+
+    fn get_or(
+        &mut self,
+        key: GrowthKey,
+        compute: impl FnOnce() -> Result<Decimal, EngineError>,
+    ) -> Result<Decimal, EngineError> {
+        if let Some((_, g)) = self.entries.iter().find(|(k, _)| *k == key) {
+            return Ok(*g);
+        }
+        let g = compute()?;
+        if self.entries.len() < Self::SIZE {
+            self.entries.push((key, g));
+        } else if let Some(slot) = self.entries.get_mut(self.next) {
+            *slot = (key, g);
+        }
+        self.next = (self.next + 1) % Self::SIZE;
+        Ok(g)
+    }
 }
 
 impl<'a> Loop<'a> {
@@ -362,6 +430,8 @@ impl<'a> Loop<'a> {
         } = plan;
         let mut order: Vec<usize> = (0..sources.movements.len()).collect();
         order.sort_by_key(|&i| sources.movements.get(i).map(|m| m.value_date));
+        let mut breaks = sources.breaks.to_vec();
+        breaks.sort_unstable();
         Ok(Loop {
             terms,
             sources,
@@ -375,6 +445,8 @@ impl<'a> Loop<'a> {
             period_acc: Accrual::new(),
             since_compounding: Accrual::new(),
             fixings: resolved.map(|r| &r.fixings),
+            growth: GrowthCache::default(),
+            breaks,
         })
     }
 
@@ -397,6 +469,8 @@ impl<'a> Loop<'a> {
         let open = terms.open_date;
         let mut postings = Vec::new();
         let mut days = Vec::new();
+        let mut spans = Vec::new();
+        let keep_spans = opts.keep_spans || opts.keep_days;
         let mut states = Vec::new();
         let mut accrued_before_window = None;
         let mut rate_at_cutoff = None;
@@ -529,6 +603,16 @@ impl<'a> Loop<'a> {
 
             // Today's interest on the base.
             let day_interest = self.interest(base, table, fraction, d, &mut pieces)?;
+            if keep_spans {
+                spans.push(Span {
+                    first: d,
+                    last,
+                    base,
+                    fraction,
+                    interest_num: day_interest.numerator(),
+                    interest_den: day_interest.denominator(),
+                });
+            }
             d = last;
             let rate = blended_rate(base, &pieces, table, terms.tier_method);
             day_interest
@@ -715,6 +799,7 @@ impl<'a> Loop<'a> {
             rate_at_cutoff,
             effective_annual_rate,
             days,
+            spans,
             states,
             fixing_warnings: Vec::new(),
         })
@@ -758,6 +843,8 @@ impl<'a> Loop<'a> {
         );
         before(self.options.window_start.pred_opt().filter(|eve| d <= *eve));
         before(Some(self.options.cutoff));
+        let breaks = &self.breaks;
+        before(breaks.get(breaks.partition_point(|b| *b < d)).copied());
         before(pb.same_denominator_until(d));
         stop.max(d)
     }
@@ -811,7 +898,7 @@ impl<'a> Loop<'a> {
 
     /// i(D) for `base` (semantics section 5), as an exact sum.
     fn interest(
-        &self,
+        &mut self,
         base: Decimal,
         table: Option<&RateTable>,
         f: DayFraction,
@@ -833,14 +920,23 @@ impl<'a> Loop<'a> {
                 )?;
                 let mut total = Decimal::ZERO;
                 for &(slice, rate) in pieces.iter() {
-                    let growth = if terms.compounding == Compounding::Continuous {
-                        growth::exp_m1(checked(rate.checked_mul(years), "the exponent", d)?)?
-                    } else {
-                        growth::pow_m1(
-                            checked(Decimal::ONE.checked_add(rate), "the rate", d)?,
-                            years,
-                        )?
-                    };
+                    let growth = self.growth.get_or(
+                        (rate.mantissa(), rate.scale(), f.num, f.den),
+                        || {
+                            Ok(if terms.compounding == Compounding::Continuous {
+                                growth::exp_m1(checked(
+                                    rate.checked_mul(years),
+                                    "the exponent",
+                                    d,
+                                )?)?
+                            } else {
+                                growth::pow_m1(
+                                    checked(Decimal::ONE.checked_add(rate), "the rate", d)?,
+                                    years,
+                                )?
+                            })
+                        },
+                    )?;
                     total = checked(
                         slice.checked_mul(growth).and_then(|x| total.checked_add(x)),
                         "the daily interest",

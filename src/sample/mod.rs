@@ -534,6 +534,7 @@ impl Generator {
             cutoff: CUTOFF,
             keep_days: planting,
             keep_states: false,
+            keep_spans: false,
             fast_path: true,
         };
         let sources = Sources {
@@ -541,6 +542,7 @@ impl Generator {
             debit_rates: debit.map(|r| r as &dyn RateSource),
             movements: &d.movements,
             actual: &[],
+            breaks: &[],
             floating: None,
         };
         let right = accrue(&d.entry.terms, sources, options).map_err(fail)?;

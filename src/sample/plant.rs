@@ -183,6 +183,7 @@ fn rerun(
         debit_rates: job.debit.map(|d| d as &dyn RateSource),
         movements,
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     let options = RunOptions {
@@ -190,6 +191,7 @@ fn rerun(
         cutoff: CUTOFF,
         keep_days: false,
         keep_states: false,
+        keep_spans: false,
         fast_path: true,
     };
     let result = accrue(terms, sources, options).ok()?;

@@ -51,6 +51,7 @@ fn options() -> RunOptions {
         cutoff: d("2026-11-30"),
         keep_days: true,
         keep_states: true,
+        keep_spans: false,
         fast_path: true,
     }
 }
@@ -68,6 +69,7 @@ fn posted_with(
         debit_rates: None,
         movements,
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     let r = accrue(terms, src, options()).unwrap();
@@ -91,6 +93,7 @@ fn explain(c: &Case, posted: Decimal, tolerance: Tolerance) -> (Status, String) 
         debit_rates: None,
         movements: &c.movements,
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     let r = accrue(&c.terms, src, options()).unwrap();
@@ -435,6 +438,7 @@ fn floating_sources<'a>(
         debit_rates: None,
         movements: &[],
         actual: &[],
+        breaks: &[],
         floating: Some(FloatingRates {
             schedule,
             fixings: &c.fixings,

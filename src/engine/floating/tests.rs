@@ -128,6 +128,7 @@ fn run(t: &AccountTerms, s: &FloatingSchedule, fixings: &Fixings, cutoff: &str) 
         debit_rates: None,
         movements: &[],
         actual: &[],
+        breaks: &[],
         floating: Some(FloatingRates {
             schedule: s,
             fixings,
@@ -139,6 +140,7 @@ fn run(t: &AccountTerms, s: &FloatingSchedule, fixings: &Fixings, cutoff: &str) 
         cutoff: d(cutoff),
         keep_days: true,
         keep_states: false,
+        keep_spans: false,
         fast_path: true,
     };
     accrue(t, src, o).unwrap()
@@ -562,6 +564,7 @@ fn a_missing_fixing_names_the_index_and_date() {
             debit_rates: None,
             movements: &[],
             actual: &[],
+            breaks: &[],
             floating: Some(FloatingRates {
                 schedule: &s,
                 fixings: &fx,
@@ -613,6 +616,7 @@ fn compounding_on_another_basis_is_an_error_naming_it() {
         debit_rates: None,
         movements: &[],
         actual: &[],
+        breaks: &[],
         floating: Some(FloatingRates {
             schedule: &s,
             fixings: &fx,
@@ -675,6 +679,7 @@ fn a_base_change_inside_the_period_splits_at_the_factor() {
         debit_rates: None,
         movements: &moves,
         actual: &[],
+        breaks: &[],
         floating: Some(FloatingRates {
             schedule: &s,
             fixings: &fx,

@@ -34,6 +34,7 @@ fn opts(window: &str, cutoff: &str) -> RunOptions {
         cutoff: d(cutoff),
         keep_days: true,
         keep_states: true,
+        keep_spans: false,
         fast_path: true,
     }
 }
@@ -49,6 +50,7 @@ fn run_with(
         debit_rates: None,
         movements,
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     accrue(t, src, o).unwrap()
@@ -183,6 +185,7 @@ fn section_3_act_act_icma_regular_and_stub() {
         debit_rates: None,
         movements: &[],
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     assert!(matches!(
@@ -211,6 +214,7 @@ fn section_4_a_day_without_rates_is_an_error() {
         debit_rates: None,
         movements: &[],
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     let e = accrue(&t, src, opts("2026-11-01", "2026-11-30")).unwrap_err();
@@ -238,6 +242,7 @@ fn section_4_a_debit_rate_applies_to_an_overdrawn_base() {
         debit_rates: Some(&debit),
         movements: &[],
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     let r = accrue(&t, src, opts("2026-11-01", "2026-11-30")).unwrap();
@@ -288,6 +293,7 @@ fn section_6_the_actual_posting_feeds_capitalisation() {
         debit_rates: None,
         movements: &[],
         actual: &actual,
+        breaks: &[],
         floating: None,
     };
     let r = accrue(&t, src, opts("2026-11-01", "2026-11-30")).unwrap();
@@ -381,6 +387,7 @@ fn a_saved_state_resumes_to_the_same_figures() {
         debit_rates: None,
         movements: &moves,
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     let again = resume(&t, src, opts("2026-11-01", "2026-11-30"), sep).unwrap();
@@ -405,6 +412,7 @@ fn overflow_is_an_error() {
         debit_rates: None,
         movements: &[mv("2026-11-02", "1", None)],
         actual: &[],
+        breaks: &[],
         floating: None,
     };
     assert!(matches!(
@@ -621,12 +629,49 @@ proptest! {
     #[test]
     fn the_fast_path_equals_the_day_loop((t, rates, movements, cutoff) in any_account()) {
         let run = |fast: bool| {
-            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[], floating: None };
-            let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, fast_path: fast };
+            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[], breaks: &[], floating: None };
+            let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, keep_spans: false, fast_path: fast };
             accrue(&t, src, o)
         };
         let (fast, plain) = (run(true), run(false));
         prop_assert_eq!(fast, plain);
+    }
+
+    /// Reconciling on the fast path's spans gives the rows the day loop's
+    /// day rows give, for statement periods anywhere in the account's life.
+    #[test]
+    fn reconciling_on_spans_equals_reconciling_day_by_day(
+        (t, rates, movements, cutoff) in any_account(),
+        periods in prop::collection::vec((0i64..240, 0i64..70, -3_000i64..3_000_000), 1..4),
+    ) {
+        use crate::engine::reconcile::{reconcile, StatementPeriod, Tolerance};
+        let statements: Vec<StatementPeriod> = periods
+            .iter()
+            .map(|&(from, len, cents)| {
+                let start = t.open_date + chrono::Days::new(from as u64);
+                StatementPeriod {
+                    start,
+                    end: (start + chrono::Days::new(len as u64)).min(cutoff),
+                    posted: Decimal::new(cents, 2),
+                    rows: 1,
+                }
+            })
+            .filter(|s| s.start <= s.end)
+            .collect();
+        let breaks: Vec<NaiveDate> = statements
+            .iter()
+            .flat_map(|s| [s.start.pred_opt().unwrap(), s.end])
+            .collect();
+        let window = cutoff.with_day(1).unwrap();
+        let run = |fast: bool| {
+            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[], breaks: &breaks, floating: None };
+            let o = RunOptions { window_start: window, cutoff, keep_days: !fast, keep_states: false, keep_spans: fast, fast_path: fast };
+            let r = accrue(&t, src, o).unwrap();
+            (reconcile(&t, &r, &statements, window, cutoff, &Tolerance::default()), r.spans.len())
+        };
+        let ((fast, spans), (plain, days)) = (run(true), run(false));
+        prop_assert_eq!(fast, plain);
+        prop_assert!(spans <= days);
     }
 }
 
@@ -727,8 +772,8 @@ proptest! {
         let empty = RateSchedule::default();
         let run = |fast: bool| {
             let floating = Some(FloatingRates { schedule: &schedule, fixings: &fixings, fallback: FixingFallback::None });
-            let src = Sources { rates: &empty, debit_rates: None, movements: &movements, actual: &[], floating };
-            let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, fast_path: fast };
+            let src = Sources { rates: &empty, debit_rates: None, movements: &movements, actual: &[], breaks: &[], floating };
+            let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, keep_spans: false, fast_path: fast };
             accrue(&t, src, o)
         };
         let (fast, plain) = (run(true), run(false));
