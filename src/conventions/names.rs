@@ -41,10 +41,14 @@ impl std::error::Error for UnknownName {}
 /// assert_eq!(fold("modified_following"), "modifiedfollowing");
 /// ```
 pub fn fold(name: &str) -> String {
+    folded(name).collect()
+}
+
+/// The characters of `fold(name)`, without building the string.
+fn folded(name: &str) -> impl Iterator<Item = char> + '_ {
     name.chars()
         .filter(|c| !c.is_whitespace() && *c != '_' && *c != '-')
         .flat_map(char::to_lowercase)
-        .collect()
 }
 
 /// Looks `found` up in `table` (each entry: a spelling and its value). The
@@ -60,7 +64,8 @@ pub fn lookup<T: Copy + PartialEq>(
     accepted: &[&'static str],
 ) -> Result<T, UnknownName> {
     let key = fold(found);
-    if let Some((_, v)) = table.iter().find(|(n, _)| fold(n) == key) {
+    // Every cell of a names column comes here: compare without allocating.
+    if let Some((_, v)) = table.iter().find(|(n, _)| folded(n).eq(key.chars())) {
         return Ok(*v);
     }
     Err(UnknownName {
