@@ -499,7 +499,7 @@ impl<'a> Loop<'a> {
             .unwrap_or(self.order.len());
         let mut ci = self.compounding_ends.partition_point(|e| *e < resume_day);
         let mut unbooked: Vec<usize> = Vec::new();
-        let mut pieces: Vec<(Decimal, Decimal)> = Vec::with_capacity(4);
+        let mut pieces = Pieces::default();
         let mut basis = None;
         let mut period_end: Option<NaiveDate> = None;
 
@@ -614,7 +614,7 @@ impl<'a> Loop<'a> {
                 });
             }
             d = last;
-            let rate = blended_rate(base, &pieces, table, terms.tier_method);
+            let rate = blended_rate(base, &pieces.list, table, terms.tier_method);
             day_interest
                 .add_to(&mut self.period_acc)
                 .map_err(overflow("the accrued interest", d))?;
@@ -638,7 +638,7 @@ impl<'a> Loop<'a> {
             for &i in &unbooked {
                 let Some(m) = self.movement(i) else { continue };
                 let with = checked(base.checked_add(m.amount), "the base", d)?;
-                let mut scratch = Vec::with_capacity(4);
+                let mut scratch = Pieces::default();
                 let t = self.table_for(with, d)?;
                 let full = self.interest(with, t, fraction, d, &mut scratch)?;
                 let mut diff = full;
@@ -858,17 +858,12 @@ impl<'a> Loop<'a> {
         base: Decimal,
         table: Option<&RateTable>,
         num: i64,
-        pieces: &mut Vec<(Decimal, Decimal)>,
+        pieces: &mut Pieces,
     ) -> bool {
         let Some(table) = table else { return true };
-        table.pieces(base, self.terms.tier_method, pieces);
-        let mut br = Decimal::ZERO;
-        for &(slice, rate) in pieces.iter() {
-            match slice.checked_mul(rate).and_then(|x| br.checked_add(x)) {
-                Some(sum) => br = sum,
-                None => return false,
-            }
-        }
+        let Some(br) = pieces.fill(base, table, self.terms.tier_method).1 else {
+            return false;
+        };
         const LIMIT: u128 = 1 << 95;
         br.mantissa()
             .unsigned_abs()
@@ -903,14 +898,14 @@ impl<'a> Loop<'a> {
         table: Option<&RateTable>,
         f: DayFraction,
         d: NaiveDate,
-        pieces: &mut Vec<(Decimal, Decimal)>,
+        pieces: &mut Pieces,
     ) -> Result<DayInterest, EngineError> {
-        pieces.clear();
         let Some(table) = table else {
+            pieces.clear();
             return Ok(DayInterest::Fraction(Decimal::ZERO, f.den.max(1)));
         };
-        table.pieces(base, self.terms.tier_method, pieces);
         let terms = self.terms;
+        let (list, br) = pieces.fill(base, table, terms.tier_method);
         let raw = match terms.compounding {
             Compounding::Continuous | Compounding::AnnualEffective => {
                 let years = checked(
@@ -919,7 +914,7 @@ impl<'a> Loop<'a> {
                     d,
                 )?;
                 let mut total = Decimal::ZERO;
-                for &(slice, rate) in pieces.iter() {
+                for &(slice, rate) in list {
                     let growth = self.growth.get_or(
                         (rate.mantissa(), rate.scale(), f.num, f.den),
                         || {
@@ -946,14 +941,7 @@ impl<'a> Loop<'a> {
                 DayInterest::Amount(total)
             }
             _ => {
-                let mut num = Decimal::ZERO;
-                for &(slice, rate) in pieces.iter() {
-                    num = checked(
-                        slice.checked_mul(rate).and_then(|x| num.checked_add(x)),
-                        "the daily interest",
-                        d,
-                    )?;
-                }
+                let num = checked(br, "the daily interest", d)?;
                 let num = checked(
                     num.checked_mul(Decimal::from(f.num)),
                     "the daily interest",
@@ -1031,6 +1019,51 @@ impl<'a> Loop<'a> {
             posted: actual.map_or(expected, |a| a.amount),
             actual_given: actual.is_some(),
         })
+    }
+}
+
+/// The tier pieces of one base under one table, and the sum of slice x
+/// rate over them, kept while base and table stay the same (most days).
+#[derive(Default)]
+struct Pieces {
+    list: Vec<(Decimal, Decimal)>,
+    /// `None` when the sum overflows.
+    sum: Option<Decimal>,
+    /// The base (mantissa and scale, so the pieces' scales match too) and
+    /// the table's address the pieces were built for.
+    key: Option<(i128, u32, usize)>,
+}
+
+impl Pieces {
+    fn clear(&mut self) {
+        self.list.clear();
+        self.sum = Some(Decimal::ZERO);
+        self.key = None;
+    }
+
+    /// The pieces of `base` under `table`, built only when either changed.
+    fn fill(
+        &mut self,
+        base: Decimal,
+        table: &RateTable,
+        method: TierMethod,
+    ) -> (&[(Decimal, Decimal)], Option<Decimal>) {
+        let key = (
+            base.mantissa(),
+            base.scale(),
+            std::ptr::from_ref(table) as usize,
+        );
+        if self.key != Some(key) {
+            table.pieces(base, method, &mut self.list);
+            self.sum = self
+                .list
+                .iter()
+                .try_fold(Decimal::ZERO, |acc, (slice, rate)| {
+                    slice.checked_mul(*rate).and_then(|x| acc.checked_add(x))
+                });
+            self.key = Some(key);
+        }
+        (&self.list, self.sum)
     }
 }
 
