@@ -236,11 +236,11 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
         accruals.push(AccrualLine {
             account: text(&r.1, 0),
             name: text(&r.1, 1),
-            currency: ccy,
+            currency: ccy.into(),
             minor_units: places,
-            side: text(&r.1, 3),
-            day_count: text(&r.1, 4),
-            compounding: text(&r.1, 5),
+            side: text(&r.1, 3).into(),
+            day_count: text(&r.1, 4).into(),
+            compounding: text(&r.1, 5).into(),
             balance_at_cutoff: amount(&s, r, 6, places)?,
             accrued_at_cutoff: amount(&s, r, 7, places)?,
             posted_in_window: amount(&s, r, 8, places)?,
@@ -278,7 +278,7 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
             let places = minor(&ccy);
             reconciliation.push(ReconciliationLine {
                 account: text(&r.1, 0),
-                currency: ccy,
+                currency: ccy.into(),
                 minor_units: places,
                 period_start: date(&s, r, 2)?,
                 period_end: date(&s, r, 3)?,
@@ -290,7 +290,7 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
                 posted: amount(&s, r, 7, places)?,
                 variance: amount(&s, r, 8, places)?,
                 variance_bp: decimal(&s, r, 9)?,
-                status: text(&r.1, 10),
+                status: text(&r.1, 10).into(),
                 likely_cause: text(&r.1, 11),
             });
         }
@@ -530,9 +530,9 @@ fn totals(accruals: &[AccrualLine]) -> Vec<CurrencyTotal> {
     let mut by: BTreeMap<String, CurrencyTotal> = BTreeMap::new();
     for a in accruals {
         let t = by
-            .entry(a.currency.clone())
+            .entry(a.currency.to_string())
             .or_insert_with(|| CurrencyTotal {
-                currency: a.currency.clone(),
+                currency: a.currency.to_string(),
                 minor_units: a.minor_units,
                 accounts: 0,
                 balance_at_cutoff: Decimal::ZERO,

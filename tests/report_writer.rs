@@ -62,7 +62,7 @@ fn report() -> Report {
         |account: &str, currency: &str, minor: u32, balance: &str, accrued: &str| AccrualLine {
             account: account.into(),
             name: format!("{account} name"),
-            currency: currency.into(),
+            currency: currency.to_string().into(),
             minor_units: minor,
             side: "liability".into(),
             day_count: "ACT/365F".into(),
@@ -93,7 +93,7 @@ fn report() -> Report {
             posted: dec(posted),
             variance: dec(variance),
             variance_bp: bp.map(dec),
-            status: status.into(),
+            status: status.to_string().into(),
             likely_cause: if status == "under-posted" {
                 "day count ACT/360 instead of ACT/365F reproduces the posted amount".into()
             } else {

@@ -22,7 +22,7 @@ use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, T
 use crate::engine::run::{accrue, AccountResult, RunOptions, Sources};
 use crate::engine::{ActualPosting, EngineError};
 use crate::report::model::{
-    AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount,
+    AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle};
 
@@ -137,10 +137,15 @@ pub struct BatchResult {
     pub accounts_computed: usize,
 }
 
+/// Accounts accrued together before their rows are added up: enough for
+/// every thread of the pool to stay busy, few enough to hold at once.
+const PART: usize = 4096;
+
 /// One account's outcome.
 struct Outcome {
     line: AccrualLine,
-    entries: (String, Vec<(NaiveDate, Decimal)>),
+    /// Postings in the window: payment date and amount.
+    postings: Vec<(NaiveDate, Decimal)>,
     daily: Vec<DailyLine>,
     reconciliation: Vec<(Status, ReconciliationLine)>,
     notes: Vec<Problem>,
@@ -187,25 +192,6 @@ pub fn run_books(
         })
         .filter(|(_, _, _, a)| in_shard(&a.terms.id, settings.shard))
         .collect();
-    let outcomes: Vec<Result<Outcome, Box<Problem>>> = work
-        .par_iter()
-        .with_min_len(64)
-        .map(|&(_, book, (posted, rows), entry)| {
-            let r = accrue_one(
-                book,
-                entry,
-                rows.get(entry.terms.id.as_str())
-                    .map_or(&[][..], Vec::as_slice),
-                posted.get(entry.terms.id.as_str()),
-                options,
-                &settings.tolerance,
-                settings.fixing_fallback,
-            );
-            tick();
-            r
-        })
-        .collect();
-
     let mut result = BatchResult {
         accounts_read: work.len()
             + books
@@ -214,55 +200,72 @@ pub fn run_books(
                 .sum::<usize>(),
         ..BatchResult::default()
     };
+    // Every account gives one line: room for them all at once, not by doubling.
+    result.accruals.reserve_exact(work.len());
     let mut journal = Journal::new();
-    let mut totals: BTreeMap<String, CurrencyTotal> = BTreeMap::new();
+    let mut totals: BTreeMap<Word, CurrencyTotal> = BTreeMap::new();
     let mut daily = Vec::new();
     let mut counts: BTreeMap<Status, usize> = BTreeMap::new();
-    for (&(bi, _, _, entry), outcome) in work.iter().zip(outcomes) {
-        match outcome {
-            Ok(o) => {
-                let t = totals
-                    .entry(o.line.currency.clone())
-                    .or_insert_with(|| CurrencyTotal {
-                        currency: o.line.currency.clone(),
-                        minor_units: o.line.minor_units,
-                        accounts: 0,
-                        balance_at_cutoff: Decimal::ZERO,
-                        accrued_at_cutoff: Decimal::ZERO,
-                        posted_in_window: Decimal::ZERO,
-                        interest_for_window: Decimal::ZERO,
-                    });
-                t.accounts += 1;
-                t.balance_at_cutoff += o.line.balance_at_cutoff;
-                t.accrued_at_cutoff += o.line.accrued_at_cutoff;
-                t.posted_in_window += o.line.posted_in_window;
-                t.interest_for_window += o.line.interest_for_window;
-                let entity = settings.entities.get(bi).map_or("default", String::as_str);
-                journal.add_account(
-                    &AccountEntries {
-                        entity,
-                        currency: &o.line.currency,
-                        minor_units: o.line.minor_units,
-                        side: entry.terms.side,
-                        gl: &entry.gl,
-                        interest_for_window: o.line.interest_for_window,
-                        accrued_at_cutoff: o.line.accrued_at_cutoff,
-                        postings: o.entries.1,
-                    },
-                    settings.journal_style,
-                    settings.window_start,
-                    settings.cutoff,
+    // Accounts go through in parts of book order: each part accrued in
+    // parallel, then added to the rows and sums, so that only one part's
+    // outcomes (day rows, postings, notes) are held at a time.
+    for part in work.chunks(PART) {
+        let outcomes: Vec<Result<Outcome, Box<Problem>>> = part
+            .par_iter()
+            .with_min_len(64)
+            .map(|&(_, book, (posted, rows), entry)| {
+                let r = accrue_one(
+                    book,
+                    entry,
+                    rows.get(entry.terms.id.as_str())
+                        .map_or(&[][..], Vec::as_slice),
+                    posted.get(entry.terms.id.as_str()),
+                    options,
+                    &settings.tolerance,
+                    settings.fixing_fallback,
                 );
-                daily.extend(o.daily);
-                for (status, line) in o.reconciliation {
-                    *counts.entry(status).or_insert(0usize) += 1;
-                    result.reconciliation.push(line);
+                tick();
+                r
+            })
+            .collect();
+        for (&(bi, _, _, entry), outcome) in part.iter().zip(outcomes) {
+            match outcome {
+                Ok(o) => {
+                    let t = totals
+                        .entry(o.line.currency.clone())
+                        .or_insert_with(|| empty_total(&o.line));
+                    t.accounts += 1;
+                    t.balance_at_cutoff += o.line.balance_at_cutoff;
+                    t.accrued_at_cutoff += o.line.accrued_at_cutoff;
+                    t.posted_in_window += o.line.posted_in_window;
+                    t.interest_for_window += o.line.interest_for_window;
+                    let entity = settings.entities.get(bi).map_or("default", String::as_str);
+                    journal.add_account(
+                        &AccountEntries {
+                            entity,
+                            currency: &o.line.currency,
+                            minor_units: o.line.minor_units,
+                            side: entry.terms.side,
+                            gl: &entry.gl,
+                            interest_for_window: o.line.interest_for_window,
+                            accrued_at_cutoff: o.line.accrued_at_cutoff,
+                            postings: o.postings,
+                        },
+                        settings.journal_style,
+                        settings.window_start,
+                        settings.cutoff,
+                    );
+                    daily.extend(o.daily);
+                    for (status, line) in o.reconciliation {
+                        *counts.entry(status).or_insert(0usize) += 1;
+                        result.reconciliation.push(line);
+                    }
+                    result.problems.extend(o.notes);
+                    result.accruals.push(o.line);
+                    result.accounts_computed += 1;
                 }
-                result.problems.extend(o.notes);
-                result.accruals.push(o.line);
-                result.accounts_computed += 1;
+                Err(p) => result.problems.push(*p),
             }
-            Err(p) => result.problems.push(*p),
         }
     }
     result.totals = totals.into_values().collect();
@@ -278,6 +281,19 @@ pub fn run_books(
     result.journal = journal.lines();
     result.daily = settings.daily.then_some(daily);
     result
+}
+
+/// A currency's totals before its first account.
+fn empty_total(line: &AccrualLine) -> CurrencyTotal {
+    CurrencyTotal {
+        currency: line.currency.to_string(),
+        minor_units: line.minor_units,
+        accounts: 0,
+        balance_at_cutoff: Decimal::ZERO,
+        accrued_at_cutoff: Decimal::ZERO,
+        posted_in_window: Decimal::ZERO,
+        interest_for_window: Decimal::ZERO,
+    }
 }
 
 /// Accounts the reader kept out because of errors (each error names its account).
@@ -430,18 +446,18 @@ fn accrue_one(
         line: AccrualLine {
             account: t.id.clone(),
             name: entry.name.clone(),
-            currency: t.currency.clone(),
+            currency: currency_word(&t.currency),
             minor_units: t.minor_units,
-            side: t.side.name().to_string(),
-            day_count: t.basis.name().to_string(),
-            compounding: t.compounding.name().to_string(),
+            side: t.side.name().into(),
+            day_count: t.basis.name().into(),
+            compounding: t.compounding.name().into(),
             balance_at_cutoff: r.balance_at_cutoff,
             accrued_at_cutoff: r.accrued_at_cutoff,
             posted_in_window: r.posted_in_window,
             interest_for_window: r.interest_for_window,
             effective_annual_rate: r.effective_annual_rate,
         },
-        entries: (t.id.clone(), postings),
+        postings,
         daily,
         reconciliation,
         notes,
@@ -557,7 +573,7 @@ fn reconciliation_line(
     };
     ReconciliationLine {
         account: t.id.clone(),
-        currency: t.currency.clone(),
+        currency: currency_word(&t.currency),
         minor_units: t.minor_units,
         period_start: row.start,
         period_end: row.end,
@@ -567,8 +583,17 @@ fn reconciliation_line(
         posted: row.posted,
         variance: row.variance,
         variance_bp: row.variance_bp.map(|bp| bp.round_dp(4)),
-        status: row.status.name().to_string(),
+        status: row.status.name().into(),
         likely_cause: cause,
+    }
+}
+
+/// The account's currency code as a row holds it: the table's own code when
+/// it is exactly that, else a copy.
+fn currency_word(code: &str) -> Word {
+    match crate::conventions::currency::lookup(code) {
+        Some(c) if c.code == code => Word::Borrowed(c.code),
+        _ => Word::Owned(code.to_string()),
     }
 }
 

@@ -205,7 +205,7 @@ fn statements_are_reconciled_with_causes() {
     // Only October on the statement: November is not posted.
     b.statements = vec![row("2026-10-01", "2026-10-31", "3.66")];
     let r = run_books(&[b], &settings(), &|| {});
-    let statuses: Vec<&str> = r.reconciliation.iter().map(|l| l.status.as_str()).collect();
+    let statuses: Vec<&str> = r.reconciliation.iter().map(|l| l.status.as_ref()).collect();
     assert_eq!(statuses, ["agrees", "not posted"]);
     assert_eq!(r.status_counts.len(), 2);
 }

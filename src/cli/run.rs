@@ -411,7 +411,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let outside = report
         .reconciliation
         .iter()
-        .any(|l| !matches!(l.status.as_str(), "agrees" | "within tolerance"));
+        .any(|l| !matches!(l.status.as_ref(), "agrees" | "within tolerance"));
     Ok(
         if report
             .problems

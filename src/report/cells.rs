@@ -288,6 +288,10 @@ pub struct Cells<'a> {
     styles: &'a Styles,
     texts: &'a mut TextFigures,
     widths: Vec<usize>,
+    /// The format given to each column as a whole, if any: a cell in that
+    /// format is written without one and takes the column's (the same style
+    /// in the file, without looking the format up again for every cell).
+    column_formats: Vec<Option<&'a Format>>,
     row: RowNum,
 }
 
@@ -305,8 +309,36 @@ impl<'a> Cells<'a> {
             styles,
             texts,
             widths: Vec::new(),
+            column_formats: Vec::new(),
             row: 0,
         }
+    }
+
+    /// Gives column `col` the format `format` as a whole: the cells written
+    /// in that very format (the same [`Styles`] entry) then carry it through
+    /// their column. Cells in any other format keep their own, and so does
+    /// every header cell. Set it before the column's first cell.
+    pub fn column_format(&mut self, col: ColNum, format: &'a Format) -> Result<(), ReportError> {
+        self.ws
+            .set_column_format(col, format)
+            .map_err(at(self.sheet, self.row))?;
+        let i = usize::from(col);
+        if self.column_formats.len() <= i {
+            self.column_formats.resize(i + 1, None);
+        }
+        if let Some(slot) = self.column_formats.get_mut(i) {
+            *slot = Some(format);
+        }
+        Ok(())
+    }
+
+    /// Whether `format` is the one column `col` already carries.
+    fn carried(&self, col: ColNum, format: &Format) -> bool {
+        self.column_formats
+            .get(usize::from(col))
+            .copied()
+            .flatten()
+            .is_some_and(|f| std::ptr::eq(f, format))
     }
 
     /// Moves to a 0-based row.
@@ -357,9 +389,12 @@ impl<'a> Cells<'a> {
         }
         let text = cut.as_deref().unwrap_or(text);
         self.seen(col, text.chars().count());
-        self.ws
-            .write_string_with_format(row, col, text, format)
-            .map_err(at(self.sheet, row))?;
+        if self.carried(col, format) {
+            self.ws.write_string(row, col, text)
+        } else {
+            self.ws.write_string_with_format(row, col, text, format)
+        }
+        .map_err(at(self.sheet, row))?;
         Ok(())
     }
 
@@ -428,9 +463,12 @@ impl<'a> Cells<'a> {
     ) -> Result<(), ReportError> {
         self.seen(col, len);
         let row = self.row;
-        self.ws
-            .write_number_with_format(row, col, n, format)
-            .map_err(at(self.sheet, row))?;
+        if self.carried(col, format) {
+            self.ws.write_number(row, col, n)
+        } else {
+            self.ws.write_number_with_format(row, col, n, format)
+        }
+        .map_err(at(self.sheet, row))?;
         Ok(())
     }
 
@@ -556,9 +594,13 @@ impl<'a> Cells<'a> {
         let styles = self.styles;
         self.seen(col, 10);
         let row = self.row;
-        self.ws
-            .write_datetime_with_format(row, col, d, &styles.date)
-            .map_err(at(self.sheet, row))?;
+        if self.carried(col, &styles.date) {
+            self.ws.write_datetime(row, col, d)
+        } else {
+            self.ws
+                .write_datetime_with_format(row, col, d, &styles.date)
+        }
+        .map_err(at(self.sheet, row))?;
         Ok(())
     }
 

@@ -1,10 +1,17 @@
 //! What a run hands to the workbook writer: plain rows of figures, already
 //! computed and rounded. The writer decides only how they look.
 
+use std::borrow::Cow;
+
 use chrono::{NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
 use crate::book::Problem;
+
+/// A word of a row that is nearly always one of a few fixed names (a side, a
+/// day-count basis, a compounding, a status, a currency code): the fixed name
+/// itself, shared by every row, or text read back from a workbook.
+pub type Word = Cow<'static, str>;
 
 /// One input file of the run, for the audit trail.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -83,15 +90,15 @@ pub struct AccrualLine {
     /// Account name.
     pub name: String,
     /// ISO 4217 code.
-    pub currency: String,
+    pub currency: Word,
     /// Minor units of the currency (number format of the amounts).
     pub minor_units: u32,
     /// `asset` or `liability`.
-    pub side: String,
+    pub side: Word,
     /// Canonical basis name.
-    pub day_count: String,
+    pub day_count: Word,
     /// Canonical compounding name.
-    pub compounding: String,
+    pub compounding: Word,
     /// Balance at cut-off.
     pub balance_at_cutoff: Decimal,
     /// Accrued at cut-off (rounded).
@@ -173,7 +180,7 @@ pub struct ReconciliationLine {
     /// Account id.
     pub account: String,
     /// ISO 4217 code.
-    pub currency: String,
+    pub currency: Word,
     /// Minor units.
     pub minor_units: u32,
     /// First day of the statement period.
@@ -193,7 +200,7 @@ pub struct ReconciliationLine {
     /// The variance as an annual rate gap in basis points; blank when balance-years is zero.
     pub variance_bp: Option<Decimal>,
     /// Status word.
-    pub status: String,
+    pub status: Word,
     /// The likely cause, in plain words (empty when agreed or within tolerance).
     pub likely_cause: String,
 }

@@ -64,7 +64,7 @@ fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
         posted: dec("4.19"),
         variance: dec("-0.06"),
         variance_bp: bp.map(dec),
-        status: status.into(),
+        status: status.to_string().into(),
         likely_cause: String::new(),
     }
 }

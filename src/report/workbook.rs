@@ -15,13 +15,14 @@ use std::path::{Path, PathBuf};
 
 use rust_xlsxwriter::{
     Chart, ChartAxisLabelPosition, ChartFormat, ChartRange, ChartSolidFill, ColNum, Color,
-    DocProperties, RowNum, Workbook, Worksheet,
+    DocProperties, Format, RowNum, Workbook, Worksheet,
 };
 
 use super::cells::{Cells, TextFigure, TextFigures, EXACT_DIGITS};
 use super::error::ReportError;
 use super::layout::{
     self, column_width, outside_tolerance, part_name, place, sheet_ref, Limits, Styles,
+    MAX_FORMAT_DECIMALS,
 };
 use super::model::{AccrualLine, DailyLine, JournalLine, ReconciliationLine, Report};
 use super::output;
@@ -281,6 +282,9 @@ struct ListSheet<T> {
     header: &'static [&'static str],
     caps: &'static [usize],
     row: fn(&mut Cells<'_>, &T) -> Result<(), ReportError>,
+    /// The format each column carries as a whole, by column, for the rows of
+    /// one part: the one most of its cells have (none where they differ).
+    columns: for<'s> fn(&'s Styles, &[T]) -> Vec<Option<&'s Format>>,
 }
 
 const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
@@ -288,6 +292,7 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     header: &ACCRUALS_HEADER,
     caps: &[30, 40, 10, 12, 16, 18, 24, 24, 24, 24, 22],
     row: accrual_row,
+    columns: accrual_columns,
 };
 
 const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
@@ -295,6 +300,7 @@ const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
     header: &RECONCILIATION_HEADER,
     caps: &[30, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 80],
     row: reconciliation_row,
+    columns: reconciliation_columns,
 };
 
 const JOURNAL: ListSheet<JournalLine> = ListSheet {
@@ -302,6 +308,7 @@ const JOURNAL: ListSheet<JournalLine> = ListSheet {
     header: &JOURNAL_HEADER,
     caps: &[14, 30, 10, 24, 24, 24, 60],
     row: journal_row,
+    columns: journal_columns,
 };
 
 const DAILY: ListSheet<DailyLine> = ListSheet {
@@ -309,6 +316,7 @@ const DAILY: ListSheet<DailyLine> = ListSheet {
     header: &DAILY_HEADER,
     caps: &[30, 14, 24, 24, 12, 16, 24, 24],
     row: daily_row,
+    columns: daily_columns,
 };
 
 /// The Problems list (a function: its rows borrow the report).
@@ -318,6 +326,7 @@ fn problems_sheet<'p>() -> ListSheet<&'p Problem> {
         header: &PROBLEMS_HEADER,
         caps: &[10, 40, 16, 10, 40, 50, 80],
         row: problem_row,
+        columns: problem_columns,
     }
 }
 
@@ -349,6 +358,11 @@ fn write_list<T>(
         ws.autofilter(0, 0, last_row, last_col)
             .map_err(|e| ReportError::sheet(&name, e))?;
         let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
+        for (col, format) in (0..).zip((list.columns)(ctx.styles, part)) {
+            if let Some(format) = format {
+                cells.column_format(col, format)?;
+            }
+        }
         // Left-aligned: a filter button sits at the right of each header cell.
         cells.at(0).header(list.header, &[])?;
         for (row, item) in (1..).zip(part.iter()) {
@@ -371,6 +385,91 @@ fn write_list<T>(
         });
     }
     Ok(parts.len())
+}
+
+/// The minor units most rows of a part have (the fewest decimals of a tie),
+/// for the formats its amount columns carry.
+fn usual_units<T>(rows: &[T], units: impl Fn(&T) -> u32) -> u32 {
+    let mut counts = [0usize; MAX_FORMAT_DECIMALS as usize + 1];
+    for r in rows {
+        let i = units(r).min(MAX_FORMAT_DECIMALS) as usize;
+        if let Some(n) = counts.get_mut(i) {
+            *n += 1;
+        }
+    }
+    let mut best = (0u32, 0usize);
+    for (u, &n) in (0u32..).zip(counts.iter()) {
+        if n > best.1 {
+            best = (u, n);
+        }
+    }
+    best.0
+}
+
+fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
+    let amount = s.amount(usual_units(rows, |r| r.minor_units));
+    let text = Some(&s.text);
+    vec![
+        text,
+        text,
+        text,
+        text,
+        text,
+        text,
+        Some(amount),
+        Some(amount),
+        Some(amount),
+        Some(amount),
+        Some(&s.percent),
+    ]
+}
+
+fn reconciliation_columns<'s>(
+    s: &'s Styles,
+    rows: &[ReconciliationLine],
+) -> Vec<Option<&'s Format>> {
+    let units = usual_units(rows, |r| r.minor_units);
+    let amount = Some(s.amount(units));
+    let text = Some(&s.text);
+    vec![
+        text,
+        text,
+        Some(&s.date),
+        Some(&s.date),
+        Some(&s.count),
+        Some(s.balance_years(units)),
+        amount,
+        amount,
+        amount,
+        Some(&s.bp),
+        None, // each status has its own fill
+        text,
+    ]
+}
+
+fn journal_columns<'s>(s: &'s Styles, rows: &[JournalLine]) -> Vec<Option<&'s Format>> {
+    let ledger = Some(s.ledger(usual_units(rows, |r| r.minor_units)));
+    let text = Some(&s.text);
+    vec![Some(&s.date), text, text, text, ledger, ledger, text]
+}
+
+fn daily_columns<'s>(s: &'s Styles, rows: &[DailyLine]) -> Vec<Option<&'s Format>> {
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    vec![
+        Some(&s.text),
+        Some(&s.date),
+        amount,
+        amount,
+        Some(&s.percent),
+        Some(&s.day_fraction),
+        amount,
+        amount,
+    ]
+}
+
+/// Problems: a short list, every cell in its own format.
+fn problem_columns<'s>(_: &'s Styles, _: &[&Problem]) -> Vec<Option<&'s Format>> {
+    Vec::new()
 }
 
 fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
