@@ -290,27 +290,44 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
 /// assert!(books[1].has_errors());
 /// ```
 pub fn check_unique_ids(books: &mut [Book]) {
-    let mut seen: HashMap<String, Position> = HashMap::new();
-    for book in books.iter_mut() {
-        let mut dropped: BTreeSet<String> = BTreeSet::new();
-        for entry in &book.accounts {
-            let id = &entry.terms.id;
+    // The first holder of each id, by (book, account) index: the ids are
+    // borrowed, never copied.
+    let mut seen: HashMap<&str, (usize, usize)> = HashMap::new();
+    let mut found: Vec<(usize, Problem)> = Vec::new();
+    for (b, book) in books.iter().enumerate() {
+        for (a, entry) in book.accounts.iter().enumerate() {
+            let id = entry.terms.id.as_str();
             match seen.get(id) {
-                Some(first) => {
-                    book.problems.push(Problem {
+                Some(&(fb, fa)) => {
+                    let first = books
+                        .get(fb)
+                        .and_then(|f| f.accounts.get(fa))
+                        .map(|f| f.position.to_string())
+                        .unwrap_or_default();
+                    found.push((b, Problem {
                         severity: Severity::Error,
                         position: entry.position.clone(),
-                        account: Some(id.clone()),
-                        found: id.clone(),
+                        account: Some(id.to_string()),
+                        found: id.to_string(),
                         expected: format!("account ids unique across the books of a run (it is also in {first})"),
                         fix: "remove the account from one of the books, or give it its own id; this one is not used".to_string(),
-                    });
-                    dropped.insert(id.clone());
+                    }));
                 }
                 None => {
-                    seen.insert(id.clone(), entry.position.clone());
+                    seen.insert(id, (b, a));
                 }
             }
+        }
+    }
+    drop(seen);
+    let mut found = found.into_iter().peekable();
+    for (b, book) in books.iter_mut().enumerate() {
+        let mut dropped: BTreeSet<String> = BTreeSet::new();
+        while let Some((_, p)) = found.next_if(|(fb, _)| *fb == b) {
+            if let Some(id) = &p.account {
+                dropped.insert(id.clone());
+            }
+            book.problems.push(p);
         }
         if dropped.is_empty() {
             continue;
