@@ -6,6 +6,7 @@
 //! approximated: floating-rate terms that do not go together, or a floating
 //! rate whose index has no fixings, are errors rather than a guessed rate.
 
+use std::cell::OnceCell;
 use std::collections::{BTreeSet, HashMap};
 use std::sync::Arc;
 
@@ -109,6 +110,10 @@ pub(crate) struct Life {
     pub open: Option<NaiveDate>,
     /// M, when given.
     pub maturity: Option<NaiveDate>,
+    /// The account's first row in the Accounts sheet.
+    row: u32,
+    /// Its place among the sheet's ids.
+    seq: u32,
 }
 
 /// Every account id of the Accounts sheet (first row of each), with its
@@ -116,19 +121,51 @@ pub(crate) struct Life {
 #[derive(Debug, Default)]
 pub(crate) struct Known {
     by_id: HashMap<String, Life>,
-    /// Ids by folded id, to suggest the id a row probably meant.
-    folded: HashMap<String, String>,
+    /// Ids by folded id, to suggest the id a row probably meant: made the
+    /// first time a row names an unknown id (a good book never needs it).
+    folded: OnceCell<HashMap<String, String>>,
 }
 
 impl Known {
-    fn insert(&mut self, id: String, life: Life) {
-        self.folded.entry(fold(&id)).or_insert_with(|| id.clone());
-        self.by_id.insert(id, life);
+    fn insert(
+        &mut self,
+        id: String,
+        open: Option<NaiveDate>,
+        maturity: Option<NaiveDate>,
+        row: u32,
+    ) {
+        let seq = u32::try_from(self.by_id.len()).unwrap_or(u32::MAX);
+        self.by_id.insert(
+            id,
+            Life {
+                open,
+                maturity,
+                row,
+                seq,
+            },
+        );
     }
 
     /// The dates of account `id` (ids match exactly).
     pub(crate) fn get(&self, id: &str) -> Option<&Life> {
         self.by_id.get(id)
+    }
+
+    /// Ids by folded id; of ids that fold alike, the first in the sheet.
+    fn folded(&self) -> &HashMap<String, String> {
+        self.folded.get_or_init(|| {
+            let mut first: HashMap<String, (u32, &str)> = HashMap::new();
+            for (id, life) in &self.by_id {
+                let slot = first.entry(fold(id)).or_insert((life.seq, id));
+                if life.seq < slot.0 {
+                    *slot = (life.seq, id);
+                }
+            }
+            first
+                .into_iter()
+                .map(|(key, (_, id))| (key, id.to_string()))
+                .collect()
+        })
     }
 
     /// The account a row of another sheet names in column `column`, with its
@@ -157,7 +194,7 @@ impl Known {
 
     /// The fix for a row naming an account that is not in the sheet.
     pub(crate) fn unknown_fix(&self, id: &str) -> String {
-        match self.folded.get(&fold(id)) {
+        match self.folded().get(&fold(id)) {
             Some(known) => format!("did you mean {known}? account ids match exactly; the row is not used"),
             None => "correct the account id, or add the account to the Accounts sheet; the row is not used".to_string(),
         }
@@ -194,7 +231,6 @@ pub(crate) fn read(
 ) -> Option<Accounts> {
     let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
     let mut out = Accounts::default();
-    let mut first_row: HashMap<String, String> = HashMap::new();
     let weekends = Arc::new(Calendar::weekends_only());
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
@@ -202,8 +238,8 @@ pub(crate) fn read(
             continue;
         };
         f.account = Some(id.clone());
-        if let Some(first) = first_row.get(&id) {
-            let first = first.clone();
+        if let Some(life) = out.known.get(&id) {
+            let first = table.cell_ref(life.row, ACCOUNT);
             f.report(
                 Severity::Error,
                 ACCOUNT,
@@ -213,17 +249,15 @@ pub(crate) fn read(
             );
             continue;
         }
-        first_row.insert(id.clone(), f.cell_ref(ACCOUNT));
         let entry = account(&mut f, &id, others, &weekends);
         out.known.insert(
             id.clone(),
-            Life {
-                open: entry.as_ref().map(|e| e.terms.open_date).or_else(|| {
-                    f.raw(OPEN_DATE)
-                        .and_then(|c| super::cell::date(c).ok().flatten())
-                }),
-                maturity: entry.as_ref().and_then(|e| e.terms.maturity),
-            },
+            entry.as_ref().map(|e| e.terms.open_date).or_else(|| {
+                f.raw(OPEN_DATE)
+                    .and_then(|c| super::cell::date(c).ok().flatten())
+            }),
+            entry.as_ref().and_then(|e| e.terms.maturity),
+            rec.row,
         );
         match entry {
             Some(e) if !f.failed => out.entries.push(e),
@@ -232,6 +266,7 @@ pub(crate) fn read(
             }
         }
     }
+    out.entries.shrink_to_fit();
     Some(out)
 }
 

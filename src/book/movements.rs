@@ -78,5 +78,9 @@ pub(crate) fn read(
             reference,
         });
     }
+    // Most accounts have a few movements: no room is kept for more.
+    for list in out.by_account.values_mut() {
+        list.shrink_to_fit();
+    }
     Some(out)
 }

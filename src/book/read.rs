@@ -72,52 +72,61 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
             decimal_comma: options.decimal_comma,
         },
     };
-    let sheet = |kind: SheetKind| loaded.sheets.iter().find(|s| s.kind == kind);
+    // Each sheet is dropped as soon as it is typed: a CSV sheet's text is
+    // the largest thing the reader holds.
+    let mut sheets = loaded.sheets;
+    let mut sheet = |kind: SheetKind| {
+        let i = sheets.iter().position(|s| s.kind == kind)?;
+        Some(sheets.swap_remove(i))
+    };
     let problems = &mut book.problems;
 
     let settings = sheet(SheetKind::Settings)
-        .map_or_else(Settings::default, |s| settings::read(ctx, s, problems));
+        .map_or_else(Settings::default, |s| settings::read(ctx, &s, problems));
     let calendars = sheet(SheetKind::Holidays)
-        .map_or_else(Calendars::default, |s| holidays::read(ctx, s, problems));
+        .map_or_else(Calendars::default, |s| holidays::read(ctx, &s, problems));
     let rates =
-        sheet(SheetKind::Rates).map_or_else(Rates::default, |s| rates::read(ctx, s, problems));
+        sheet(SheetKind::Rates).map_or_else(Rates::default, |s| rates::read(ctx, &s, problems));
     let fixings = sheet(SheetKind::Fixings)
-        .map_or_else(FixingsSheet::default, |s| fixings::read(ctx, s, problems));
+        .map_or_else(FixingsSheet::default, |s| fixings::read(ctx, &s, problems));
     let others = Others {
         rates: &rates,
         calendars: &calendars,
         fixings: &fixings,
     };
     let accounts_sheet = sheet(SheetKind::Accounts);
-    let Some(found) = accounts_sheet.and_then(|s| accounts::read(ctx, s, &others, problems)) else {
+    let found = accounts_sheet
+        .as_ref()
+        .and_then(|s| accounts::read(ctx, s, &others, problems));
+    let Some(found) = found else {
         book.rates = rates.schedules;
         book.floating_rates = rates.floating;
         book.fixings = fixings.fixings;
         book.settings = settings.rows;
         return book;
     };
-    if let Some(s) = accounts_sheet.filter(|s| s.rows.len() == 1) {
-        no_account_rows(&name, s, problems);
+    if let Some(s) = accounts_sheet.filter(|s| s.rows().take(2).count() == 1) {
+        no_account_rows(&name, &s, problems);
     }
     let mut rejected: BTreeSet<String> = found.rejected;
     let mut entries = found.entries;
 
     if let Some(s) = sheet(SheetKind::Movements) {
-        match movements::read(ctx, s, &found.known, problems) {
+        match movements::read(ctx, &s, &found.known, problems) {
             Some(m) => {
                 rejected.extend(m.spoiled);
                 book.movements = m.by_account;
             }
-            None => unusable_sheet(s, &entries, problems, &mut rejected),
+            None => unusable_sheet(&s, &entries, problems, &mut rejected),
         }
     }
     if let Some(s) = sheet(SheetKind::Statements) {
-        match statements::read(ctx, s, &found.known, settings.statement_end, problems) {
+        match statements::read(ctx, &s, &found.known, settings.statement_end, problems) {
             Some(st) => {
                 rejected.extend(st.spoiled);
                 book.statements = st.rows;
             }
-            None => unusable_sheet(s, &entries, problems, &mut rejected),
+            None => unusable_sheet(&s, &entries, problems, &mut rejected),
         }
     }
 
@@ -154,7 +163,7 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
 /// An Accounts sheet with a header and nothing under it: the book computes
 /// nothing, which is worth a warning (a filter or a wrong sheet saved?).
 fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
-    let below = sheet.rows.first().map_or(1, |h| h.index.saturating_add(1));
+    let below = sheet.rows().next().map_or(1, |h| h.index.saturating_add(1));
     problems.push(Problem {
         severity: Severity::Warning,
         position: Position {
@@ -281,27 +290,44 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
 /// assert!(books[1].has_errors());
 /// ```
 pub fn check_unique_ids(books: &mut [Book]) {
-    let mut seen: HashMap<String, Position> = HashMap::new();
-    for book in books.iter_mut() {
-        let mut dropped: BTreeSet<String> = BTreeSet::new();
-        for entry in &book.accounts {
-            let id = &entry.terms.id;
+    // The first holder of each id, by (book, account) index: the ids are
+    // borrowed, never copied.
+    let mut seen: HashMap<&str, (usize, usize)> = HashMap::new();
+    let mut found: Vec<(usize, Problem)> = Vec::new();
+    for (b, book) in books.iter().enumerate() {
+        for (a, entry) in book.accounts.iter().enumerate() {
+            let id = entry.terms.id.as_str();
             match seen.get(id) {
-                Some(first) => {
-                    book.problems.push(Problem {
+                Some(&(fb, fa)) => {
+                    let first = books
+                        .get(fb)
+                        .and_then(|f| f.accounts.get(fa))
+                        .map(|f| f.position.to_string())
+                        .unwrap_or_default();
+                    found.push((b, Problem {
                         severity: Severity::Error,
                         position: entry.position.clone(),
-                        account: Some(id.clone()),
-                        found: id.clone(),
+                        account: Some(id.to_string()),
+                        found: id.to_string(),
                         expected: format!("account ids unique across the books of a run (it is also in {first})"),
                         fix: "remove the account from one of the books, or give it its own id; this one is not used".to_string(),
-                    });
-                    dropped.insert(id.clone());
+                    }));
                 }
                 None => {
-                    seen.insert(id.clone(), entry.position.clone());
+                    seen.insert(id, (b, a));
                 }
             }
+        }
+    }
+    drop(seen);
+    let mut found = found.into_iter().peekable();
+    for (b, book) in books.iter_mut().enumerate() {
+        let mut dropped: BTreeSet<String> = BTreeSet::new();
+        while let Some((_, p)) = found.next_if(|(fb, _)| *fb == b) {
+            if let Some(id) = &p.account {
+                dropped.insert(id.clone());
+            }
+            book.problems.push(p);
         }
         if dropped.is_empty() {
             continue;

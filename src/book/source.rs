@@ -8,6 +8,7 @@
 //! costs one cell, not a dense grid up to it. Nothing here knows what a
 //! column means.
 
+use std::borrow::Cow;
 use std::fs::{self, File};
 use std::io::{BufReader, Read};
 use std::panic::{catch_unwind, AssertUnwindSafe};
@@ -107,7 +108,51 @@ pub(crate) struct Sheet {
     /// The name to show in positions (a CSV file: its name without `.csv`).
     pub name: String,
     /// Rows with at least one non-blank cell, in order.
-    pub rows: Vec<Row>,
+    pub rows: Rows,
+}
+
+/// Where a sheet's rows are: held as cells (a workbook sheet), or the text
+/// of a CSV file that was checked when the book was opened and is parsed
+/// again, a record at a time, on each pass over the rows. A CSV sheet so
+/// costs its file's text, not a heap value per cell.
+#[derive(Debug, Clone)]
+pub(crate) enum Rows {
+    /// Rows of cells.
+    Held(Vec<Row>),
+    /// The text of a CSV file that parses without a fault.
+    Csv(String),
+}
+
+impl Sheet {
+    /// The rows with at least one non-blank cell, in order.
+    pub(crate) fn rows(&self) -> SheetRows<'_> {
+        match &self.rows {
+            Rows::Held(rows) => SheetRows::Held(rows.iter()),
+            Rows::Csv(text) => SheetRows::Csv(CsvRows::new(text, true)),
+        }
+    }
+}
+
+/// The rows of a sheet, one at a time: borrowed when held, built from the
+/// text when the sheet is a CSV file.
+pub(crate) enum SheetRows<'a> {
+    /// Held rows.
+    Held(std::slice::Iter<'a, Row>),
+    /// A CSV file's records.
+    Csv(CsvRows<'a>),
+}
+
+impl<'a> Iterator for SheetRows<'a> {
+    type Item = Cow<'a, Row>;
+
+    fn next(&mut self) -> Option<Cow<'a, Row>> {
+        match self {
+            SheetRows::Held(rows) => rows.next().map(Cow::Borrowed),
+            // The text parsed without a fault when the book was opened; a
+            // fault now (never expected) ends the rows.
+            SheetRows::Csv(rows) => rows.next_row()?.ok().map(Cow::Owned),
+        }
+    }
 }
 
 /// The sheets of a book and the problems met opening it.
@@ -516,7 +561,7 @@ fn push_sheet(
     loaded.sheets.push(Sheet {
         kind,
         name,
-        rows: group_rows(cells),
+        rows: Rows::Held(group_rows(cells)),
     });
 }
 
@@ -758,11 +803,11 @@ fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
             continue;
         }
         picked.push((kind, stem.clone()));
-        if let Some(rows) = read_csv_file(&file, book, &stem, loaded) {
+        if let Some(text) = read_csv_file(&file, book, &stem, loaded) {
             loaded.sheets.push(Sheet {
                 kind,
                 name: stem,
-                rows,
+                rows: Rows::Csv(text),
             });
         }
     }
@@ -812,6 +857,34 @@ fn decode_csv(bytes: &[u8]) -> Result<String, (String, String)> {
     utf8(bytes).map_err(|f| (f, SAVE_UTF8.to_string()))
 }
 
+/// [`decode_csv`] on a file's bytes, without copying UTF-8 text. The `Err`
+/// gives the bytes back with (found, fix).
+fn decode_csv_owned(mut bytes: Vec<u8>) -> Result<String, (Vec<u8>, (String, String))> {
+    const BOM: [u8; 3] = [0xEF, 0xBB, 0xBF];
+    let plain = !bytes.starts_with(&[0xFF, 0xFE])
+        && !bytes.starts_with(&[0xFE, 0xFF])
+        && !bytes.contains(&0);
+    if plain {
+        let bom = bytes.starts_with(&BOM);
+        if bom {
+            bytes.drain(..BOM.len());
+        }
+        match String::from_utf8(bytes) {
+            Ok(text) => return Ok(text),
+            Err(e) => {
+                bytes = e.into_bytes();
+                if bom {
+                    bytes.splice(0..0, BOM);
+                }
+            }
+        }
+    }
+    match decode_csv(&bytes) {
+        Ok(text) => Ok(text),
+        Err(e) => Err((bytes, e)),
+    }
+}
+
 fn utf8(bytes: &[u8]) -> Result<String, String> {
     utf8_at(bytes).map_err(|(_, found)| found)
 }
@@ -835,9 +908,10 @@ fn utf8_at(bytes: &[u8]) -> Result<String, (u64, String)> {
     }
 }
 
-/// Reads one CSV file into rows, each with its number of fields (the
-/// table checks them against the header).
-fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Option<Vec<Row>> {
+/// Reads one CSV file and checks that it parses: its encoding, its quotes,
+/// its separator. Gives the text, which is parsed again into rows when the
+/// sheet is read.
+fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Option<String> {
     let at = |cell: String| Position {
         book: book.to_string(),
         sheet: stem.to_string(),
@@ -859,9 +933,9 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
             return None;
         }
     };
-    let text = match decode_csv(&bytes) {
+    let text = match decode_csv_owned(bytes) {
         Ok(t) => t,
-        Err((found, fix)) => {
+        Err((bytes, (found, fix))) => {
             let line = utf8_at(bytes.strip_prefix(&[0xEF, 0xBB, 0xBF]).unwrap_or(&bytes))
                 .err()
                 .map_or(0, |(l, _)| l);
@@ -875,82 +949,145 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
             return None;
         }
     };
-    let mut reader = csv::ReaderBuilder::new()
-        .has_headers(false)
-        .flexible(true)
-        .from_reader(text.as_bytes());
-    let mut rows = Vec::new();
-    let mut first = true;
-    let mut lines = LineCounter::new(text.as_bytes());
-    for record in reader.records() {
-        let record = match record {
-            Ok(r) => r,
-            Err(e) => {
-                let line = e.position().map_or(0, |p| lines.line_at(p.byte()));
-                loaded.problem(
-                    Severity::Error,
-                    at(line_ref(line)),
-                    &lower_first(&e.to_string()),
-                    "comma-separated fields",
-                    "check the quotes on this line; the rest of the file is not read",
-                );
-                return None;
-            }
-        };
-        let line = lines.line_at(record.position().map_or(0, csv::Position::byte));
-        let index = u32::try_from(line.saturating_sub(1)).unwrap_or(u32::MAX);
-        let filled = record
-            .iter()
-            .enumerate()
-            .filter(|(_, f)| !f.trim().is_empty())
-            .last()
-            .map(|(i, _)| i + 1);
-        let Some(filled) = filled else {
-            continue;
-        };
-        if first {
-            first = false;
-            let sep = (record.len() == 1)
-                .then(|| {
-                    record
-                        .get(0)
-                        .and_then(|f| [';', '\t', '|'].into_iter().find(|c| f.contains(*c)))
-                })
-                .flatten();
-            if let Some(sep) = sep {
-                loaded.problem(
-                    Severity::Error,
-                    at(line_ref(line)),
-                    record.get(0).unwrap_or(""),
-                    "fields separated by commas",
-                    &format!(
-                        "the fields are separated by '{}': save the file as CSV with commas",
-                        sep.escape_default()
-                    ),
-                );
-                return None;
-            }
+    let mut rows = CsvRows::new(&text, false);
+    while let Some(row) = rows.next_row() {
+        if let Err(fault) = row {
+            loaded.problem(
+                Severity::Error,
+                at(line_ref(fault.line)),
+                &fault.found,
+                fault.expected,
+                &fault.fix,
+            );
+            return None;
         }
-        let shape = Some(Shape {
-            fields: u32::try_from(record.len()).unwrap_or(u32::MAX),
-            filled: u32::try_from(filled).unwrap_or(u32::MAX),
-        });
-        let cells = record
-            .iter()
-            .enumerate()
-            .filter_map(|(c, f)| {
-                let cell = Cell::text(f);
-                let c = u32::try_from(c).ok()?;
-                (!cell.is_empty()).then_some((c, cell))
-            })
-            .collect();
-        rows.push(Row {
-            index,
-            cells,
-            shape,
-        });
     }
-    Some(rows)
+    Some(text)
+}
+
+/// Why a CSV file cannot be read as rows.
+#[derive(Debug)]
+pub(crate) struct CsvFault {
+    /// The 1-based line.
+    line: u64,
+    found: String,
+    expected: &'static str,
+    fix: String,
+}
+
+/// The records of a CSV file's text as rows, each with its number of
+/// fields (the table checks them against the header). Blank records are
+/// left out. A fault (a broken quote, a first line separated by something
+/// other than commas) ends the rows.
+pub(crate) struct CsvRows<'a> {
+    reader: csv::Reader<&'a [u8]>,
+    lines: LineCounter<'a>,
+    record: csv::StringRecord,
+    first: bool,
+    done: bool,
+    /// Whether to build the cells (a check of the file needs only the shape).
+    cells: bool,
+}
+
+impl<'a> CsvRows<'a> {
+    fn new(text: &'a str, cells: bool) -> Self {
+        CsvRows {
+            reader: csv::ReaderBuilder::new()
+                .has_headers(false)
+                .flexible(true)
+                .from_reader(text.as_bytes()),
+            lines: LineCounter::new(text.as_bytes()),
+            record: csv::StringRecord::new(),
+            first: true,
+            done: false,
+            cells,
+        }
+    }
+
+    /// The next non-blank record, or the fault that ends the file.
+    fn next_row(&mut self) -> Option<Result<Row, CsvFault>> {
+        loop {
+            if self.done {
+                return None;
+            }
+            match self.reader.read_record(&mut self.record) {
+                Ok(true) => {}
+                Ok(false) => {
+                    self.done = true;
+                    return None;
+                }
+                Err(e) => {
+                    self.done = true;
+                    let line = e.position().map_or(0, |p| self.lines.line_at(p.byte()));
+                    return Some(Err(CsvFault {
+                        line,
+                        found: lower_first(&e.to_string()),
+                        expected: "comma-separated fields",
+                        fix: "check the quotes on this line; the rest of the file is not read"
+                            .to_string(),
+                    }));
+                }
+            }
+            let record = &self.record;
+            let line = self
+                .lines
+                .line_at(record.position().map_or(0, csv::Position::byte));
+            let index = u32::try_from(line.saturating_sub(1)).unwrap_or(u32::MAX);
+            let filled = record
+                .iter()
+                .enumerate()
+                .filter(|(_, f)| !f.trim().is_empty())
+                .last()
+                .map(|(i, _)| i + 1);
+            let Some(filled) = filled else {
+                continue;
+            };
+            if self.first {
+                self.first = false;
+                let sep = (record.len() == 1)
+                    .then(|| {
+                        record
+                            .get(0)
+                            .and_then(|f| [';', '\t', '|'].into_iter().find(|c| f.contains(*c)))
+                    })
+                    .flatten();
+                if let Some(sep) = sep {
+                    self.done = true;
+                    return Some(Err(CsvFault {
+                        line,
+                        found: record.get(0).unwrap_or("").to_string(),
+                        expected: "fields separated by commas",
+                        fix: format!(
+                            "the fields are separated by '{}': save the file as CSV with commas",
+                            sep.escape_default()
+                        ),
+                    }));
+                }
+            }
+            let shape = Some(Shape {
+                fields: u32::try_from(record.len()).unwrap_or(u32::MAX),
+                filled: u32::try_from(filled).unwrap_or(u32::MAX),
+            });
+            let cells = if self.cells {
+                record
+                    .iter()
+                    .enumerate()
+                    .filter_map(|(c, f)| {
+                        let cell = Cell::text(f);
+                        let c = u32::try_from(c).ok()?;
+                        (!cell.is_empty()).then_some((c, cell))
+                    })
+                    .collect()
+            } else {
+                Vec::new()
+            };
+            return Some(Ok(Row {
+                index,
+                cells,
+                shape,
+            }));
+        }
+    }
 }
 
 /// The file line a CSV record starts on. The csv crate's own line numbers
@@ -1002,21 +1139,22 @@ pub(crate) fn text_sheet(kind: SheetKind, rows: &[&[&str]]) -> Sheet {
     Sheet {
         kind,
         name: kind.label().to_string(),
-        rows: rows
-            .iter()
-            .zip(0u32..)
-            .map(|(cells, r)| Row {
-                index: r,
-                cells: cells
-                    .iter()
-                    .zip(0u32..)
-                    .map(|(s, c)| (c, Cell::text(s)))
-                    .filter(|(_, c)| !c.is_empty())
-                    .collect(),
-                shape: None,
-            })
-            .filter(|r| !r.cells.is_empty())
-            .collect(),
+        rows: Rows::Held(
+            rows.iter()
+                .zip(0u32..)
+                .map(|(cells, r)| Row {
+                    index: r,
+                    cells: cells
+                        .iter()
+                        .zip(0u32..)
+                        .map(|(s, c)| (c, Cell::text(s)))
+                        .filter(|(_, c)| !c.is_empty())
+                        .collect(),
+                    shape: None,
+                })
+                .filter(|r| !r.cells.is_empty())
+                .collect(),
+        ),
     }
 }
 

@@ -50,8 +50,8 @@ pub(crate) fn read(
     let mut out = Statements::default();
     // A ragged row of an account is missing from its figures.
     out.spoiled.extend(table.skipped_accounts().iter().cloned());
-    // Per account: (start, end, row cell of the end) of rows kept so far.
-    let mut periods: BTreeMap<String, Vec<(NaiveDate, NaiveDate, String)>> = BTreeMap::new();
+    // Per account: (start, end, row) of rows kept so far.
+    let mut periods: BTreeMap<String, Vec<(NaiveDate, NaiveDate, u32)>> = BTreeMap::new();
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
@@ -107,13 +107,13 @@ pub(crate) fn read(
             );
             continue;
         }
-        let here = f.cell_ref(PERIOD_START);
         let kept = periods.entry(id.clone()).or_default();
-        if let Some((s, e, cell)) = kept
+        if let Some((s, e, row)) = kept
             .iter()
             .find(|(s, e, _)| (*s, *e) != (start, period_end) && *s <= period_end && start <= *e)
         {
-            let (s, e, cell) = (*s, *e, cell.clone());
+            let (s, e) = (*s, *e);
+            let cell = table.cell_ref(*row, PERIOD_START);
             f.report(
                 Severity::Error,
                 PERIOD_START,
@@ -124,7 +124,7 @@ pub(crate) fn read(
             out.spoiled.push(id);
             continue;
         }
-        kept.push((start, period_end, here));
+        kept.push((start, period_end, rec.row));
         let position = f.position(ACCOUNT);
         out.rows.push(StatementRow {
             account: id,
@@ -135,5 +135,6 @@ pub(crate) fn read(
             position,
         });
     }
+    out.rows.shrink_to_fit();
     Some(out)
 }

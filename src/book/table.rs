@@ -6,6 +6,7 @@
 //! This module knows column names but not what a sheet means; it never
 //! drops a bad cell silently (each one is a problem naming its cell).
 
+use std::borrow::Cow;
 use std::collections::HashMap;
 
 use chrono::NaiveDate;
@@ -13,7 +14,7 @@ use rust_decimal::Decimal;
 
 use super::cell::{self, shown, Cell, Issue, NumberStyle};
 use super::model::{Position, Problem, Severity};
-use super::source::{a1, a1_row, column_letters, Row, Sheet};
+use super::source::{a1, a1_row, column_letters, Row, Shape, Sheet};
 use crate::conventions::names::{fold, UnknownName};
 
 /// A column a sheet may have.
@@ -125,13 +126,13 @@ pub(crate) struct Table<'s> {
 pub(crate) struct Record<'s> {
     /// 0-based row index.
     pub row: u32,
-    cells: Vec<Option<(u32, &'s Cell)>>,
+    cells: Vec<Option<Cow<'s, Cell>>>,
 }
 
 impl Record<'_> {
     /// The cell of column `i`, if present and not blank.
     pub(crate) fn get(&self, i: usize) -> Option<&Cell> {
-        self.cells.get(i).copied().flatten().map(|(_, c)| c)
+        self.cells.get(i)?.as_deref()
     }
 }
 
@@ -190,7 +191,7 @@ impl<'s> Table<'s> {
                 fix,
             )
         };
-        let Some(first) = sheet.rows.first() else {
+        let Some(first) = sheet.rows().next() else {
             problems.push(err(
                 String::new(),
                 "an empty sheet",
@@ -203,10 +204,9 @@ impl<'s> Table<'s> {
             return None;
         };
         let first_text: Vec<String> = first.cells.iter().map(|(_, c)| c.shown()).collect();
-        if names_in(first, &known) == 0 {
+        if names_in(&first, &known) == 0 {
             let later = sheet
-                .rows
-                .iter()
+                .rows()
                 .skip(1)
                 .find(|r| names_in(r, &known) >= required_names.len().clamp(1, 2));
             let problem = match later {
@@ -346,17 +346,33 @@ impl<'s> Table<'s> {
         if !ok {
             return None;
         }
-        let (skipped, skipped_accounts) = ragged_rows(ctx, sheet, first, columns, &at, problems);
-        // Values under no header at all.
+        // One pass over the data rows: ragged CSV records (each an error,
+        // left out), then the first value under no header at all.
+        let account_col = match columns.first() {
+            Some(c) if c.name == "account" => at.first().copied().flatten(),
+            _ => None,
+        };
         let headed: Vec<u32> = first.cells.iter().map(|(c, _)| *c).collect();
-        if let Some((r, c)) = sheet
-            .rows
-            .iter()
-            .skip(1)
-            .filter(|r| !skipped.contains(&r.index))
-            .flat_map(|r| r.cells.iter().map(move |(c, _)| (r.index, *c)))
-            .find(|(_, c)| !headed.contains(c))
-        {
+        let mut skipped = Vec::new();
+        let mut skipped_accounts = Vec::new();
+        let mut unheaded: Option<(u32, u32)> = None;
+        for row in sheet.rows().skip(1).filter(|r| r.index > first.index) {
+            if let Some(head) = first.shape {
+                if let Some(account) = ragged(ctx, sheet, head, account_col, &row, problems) {
+                    skipped.push(row.index);
+                    skipped_accounts.extend(account);
+                    continue;
+                }
+            }
+            if unheaded.is_none() {
+                unheaded = row
+                    .cells
+                    .iter()
+                    .find(|(c, _)| !headed.contains(c))
+                    .map(|(c, _)| (row.index, *c));
+            }
+        }
+        if let Some((r, c)) = unheaded {
             problems.push(ctx.problem(
                 Severity::Note,
                 &sheet.name,
@@ -411,22 +427,31 @@ impl<'s> Table<'s> {
     /// only in unknown columns) skipped.
     pub(crate) fn records(&self) -> impl Iterator<Item = Record<'s>> + '_ {
         self.sheet
-            .rows
-            .iter()
-            .filter(|r| r.index > self.header_row && !self.skipped.contains(&r.index))
+            .rows()
+            .filter(|r| r.index > self.header_row && self.skipped.binary_search(&r.index).is_err())
             .filter_map(|r| {
-                let mut cells: Vec<Option<(u32, &'s Cell)>> = vec![None; self.columns.len()];
+                let mut cells: Vec<Option<Cow<'s, Cell>>> = vec![None; self.columns.len()];
                 let mut any = false;
-                for (c, cell) in &r.cells {
-                    if let Some(slot) = self.by_col.get(c).and_then(|i| cells.get_mut(*i)) {
-                        *slot = Some((*c, cell));
+                let index = r.index;
+                let mut put = |c: u32, cell: Cow<'s, Cell>| {
+                    if let Some(slot) = self.by_col.get(&c).and_then(|i| cells.get_mut(*i)) {
+                        *slot = Some(cell);
                         any = true;
                     }
+                };
+                match r {
+                    Cow::Borrowed(row) => {
+                        for (c, cell) in &row.cells {
+                            put(*c, Cow::Borrowed(cell));
+                        }
+                    }
+                    Cow::Owned(row) => {
+                        for (c, cell) in row.cells {
+                            put(c, Cow::Owned(cell));
+                        }
+                    }
                 }
-                any.then_some(Record {
-                    row: r.index,
-                    cells,
-                })
+                any.then_some(Record { row: index, cells })
             })
     }
 
@@ -440,48 +465,36 @@ impl<'s> Table<'s> {
     }
 }
 
-/// CSV records with fewer fields than the header names, or values beyond
-/// its last field: each is an error naming the file and row, and is left
-/// out (its values cannot be put in their columns with certainty). Returns
-/// their row indexes and the accounts they name.
-fn ragged_rows(
+/// A CSV record with fewer fields than the header names, or values beyond
+/// its last field: an error naming the file and row, and the row is left
+/// out (its values cannot be put in their columns with certainty). `Some`
+/// (with the account it names, when its account field can be read) when
+/// the row is ragged.
+fn ragged(
     ctx: &Ctx<'_>,
     sheet: &Sheet,
-    header: &Row,
-    columns: &[Column],
-    at: &[Option<u32>],
+    head: Shape,
+    account_col: Option<u32>,
+    row: &Row,
     problems: &mut Vec<Problem>,
-) -> (Vec<u32>, Vec<String>) {
-    let Some(head) = header.shape else {
-        return (Vec::new(), Vec::new());
-    };
-    let account_col = match columns.first() {
-        Some(c) if c.name == "account" => at.first().copied().flatten(),
-        _ => None,
-    };
-    let mut skipped = Vec::new();
-    let mut accounts = Vec::new();
-    for row in sheet.rows.iter().filter(|r| r.index > header.index) {
-        let Some(shape) = row.shape else { continue };
-        if shape.fields >= head.filled && shape.filled <= head.fields {
-            continue;
-        }
-        let account = account_col
-            .and_then(|c| row.cells.iter().find(|(col, _)| *col == c))
-            .and_then(|(_, cell)| cell::text(cell).ok().flatten());
-        problems.push(ctx.problem(
-            Severity::Error,
-            &sheet.name,
-            a1_row(row.index),
-            account.as_deref(),
-            &format!("{} fields", shape.fields),
-            &format!("{} fields, as in the header row", head.fields),
-            "give the row one field per header column (quote a field that holds a comma); the row is not read",
-        ));
-        skipped.push(row.index);
-        accounts.extend(account);
+) -> Option<Option<String>> {
+    let shape = row.shape?;
+    if shape.fields >= head.filled && shape.filled <= head.fields {
+        return None;
     }
-    (skipped, accounts)
+    let account = account_col
+        .and_then(|c| row.cells.iter().find(|(col, _)| *col == c))
+        .and_then(|(_, cell)| cell::text(cell).ok().flatten());
+    problems.push(ctx.problem(
+        Severity::Error,
+        &sheet.name,
+        a1_row(row.index),
+        account.as_deref(),
+        &format!("{} fields", shape.fields),
+        &format!("{} fields, as in the header row", head.fields),
+        "give the row one field per header column (quote a field that holds a comma); the row is not read",
+    ));
+    Some(account)
 }
 
 /// Reading one record's fields, collecting a problem for each bad cell.
@@ -683,7 +696,7 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::book::source::SheetKind;
+    use crate::book::source::{Rows, SheetKind};
 
     const COLUMNS: &[Column] = &[
         required("account"),
@@ -696,14 +709,15 @@ mod tests {
         Sheet {
             kind: SheetKind::Accounts,
             name: "Accounts".into(),
-            rows: rows
-                .iter()
-                .map(|(r, cells)| Row {
-                    index: *r,
-                    cells: cells.iter().map(|(c, s)| (*c, Cell::text(s))).collect(),
-                    shape: None,
-                })
-                .collect(),
+            rows: Rows::Held(
+                rows.iter()
+                    .map(|(r, cells)| Row {
+                        index: *r,
+                        cells: cells.iter().map(|(c, s)| (*c, Cell::text(s))).collect(),
+                        shape: None,
+                    })
+                    .collect(),
+            ),
         }
     }
 
