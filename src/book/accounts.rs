@@ -6,9 +6,9 @@
 //! approximated: floating-rate terms that do not go together, or a floating
 //! rate whose index has no fixings, are errors rather than a guessed rate.
 
-use std::cell::OnceCell;
 use std::collections::{BTreeSet, HashMap};
 use std::sync::Arc;
+use std::sync::OnceLock;
 
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
@@ -123,7 +123,7 @@ pub(crate) struct Known {
     by_id: HashMap<String, Life>,
     /// Ids by folded id, to suggest the id a row probably meant: made the
     /// first time a row names an unknown id (a good book never needs it).
-    folded: OnceCell<HashMap<String, String>>,
+    folded: OnceLock<HashMap<String, String>>,
 }
 
 impl Known {

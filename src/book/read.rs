@@ -111,8 +111,31 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     let mut rejected: BTreeSet<String> = found.rejected;
     let mut entries = found.entries;
 
-    if let Some(s) = sheet(SheetKind::Movements) {
-        match movements::read(ctx, &s, &found.known, problems) {
+    // Movements and Statements only look up the accounts, so they are typed
+    // side by side; their problems are then listed in the sequential order.
+    let movements_sheet = sheet(SheetKind::Movements);
+    let statements_sheet = sheet(SheetKind::Statements);
+    let known = &found.known;
+    let statement_end = settings.statement_end;
+    let (moved, stated) = rayon::join(
+        || {
+            movements_sheet.map(|s| {
+                let mut found = Vec::new();
+                let typed = movements::read(ctx, &s, known, &mut found);
+                (s, typed, found)
+            })
+        },
+        || {
+            statements_sheet.map(|s| {
+                let mut found = Vec::new();
+                let typed = statements::read(ctx, &s, known, statement_end, &mut found);
+                (s, typed, found)
+            })
+        },
+    );
+    if let Some((s, typed, mut found)) = moved {
+        problems.append(&mut found);
+        match typed {
             Some(m) => {
                 rejected.extend(m.spoiled);
                 book.movements = m.by_account;
@@ -120,8 +143,9 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
             None => unusable_sheet(&s, &entries, problems, &mut rejected),
         }
     }
-    if let Some(s) = sheet(SheetKind::Statements) {
-        match statements::read(ctx, &s, &found.known, settings.statement_end, problems) {
+    if let Some((s, typed, mut found)) = stated {
+        problems.append(&mut found);
+        match typed {
             Some(st) => {
                 rejected.extend(st.spoiled);
                 book.statements = st.rows;
