@@ -422,6 +422,35 @@ fn no_fast_path_gives_the_same_workbook() {
     assert!(std::fs::read(&a).unwrap() == std::fs::read(&b).unwrap());
 }
 
+/// `--timings` reports each step on standard error and leaves the workbook
+/// as it is without it (the Run sheet does not list the option).
+#[test]
+fn timings_go_to_standard_error_and_not_into_the_workbook() {
+    let dir = tempfile::tempdir().unwrap();
+    let a = dir.path().join("quiet.xlsx");
+    let b = dir.path().join("timed.xlsx");
+    run_to(&a, &[])
+        .success()
+        .stderr(predicate::str::contains("timings:").not());
+    let timed = run_to(&b, &["--timings"]).success();
+    let stderr = String::from_utf8(timed.get_output().stderr.clone()).unwrap();
+    for step in [
+        "read and check the books",
+        "fingerprint the inputs",
+        "accrue and reconcile",
+        "write the workbook",
+        "total",
+    ] {
+        assert!(
+            stderr
+                .lines()
+                .any(|l| l.starts_with("timings: ") && l.contains(step) && l.ends_with(" s")),
+            "no '{step}' line in {stderr}"
+        );
+    }
+    assert!(std::fs::read(&a).unwrap() == std::fs::read(&b).unwrap());
+}
+
 #[test]
 fn a_csv_book_gives_a_byte_identical_workbook_across_runs_and_thread_counts() {
     let dir = tempfile::tempdir().unwrap();

@@ -56,6 +56,10 @@ pub struct Args {
     /// Accrue every day one by one (the same figures, slower), for audits.
     #[arg(long)]
     no_fast_path: bool,
+    /// Print how long reading, accruing and writing took, on standard error
+    /// (never in the workbook, which stays the same from run to run).
+    #[arg(long)]
+    timings: bool,
     /// Only the accounts of shard K of N (K from 1), for a run split across
     /// machines; combine the shard workbooks with `ledgerate merge`.
     #[arg(long, value_name = "K/N")]
@@ -215,7 +219,7 @@ fn audited_command_line() -> String {
             continue;
         }
         // Options that cannot change a figure stay out of the audit trail.
-        if a == "--no-fast-path" {
+        if a == "--no-fast-path" || a == "--timings" {
             continue;
         }
         if a == "--threads" || a == "--out" {
@@ -258,7 +262,9 @@ impl NoNanos for NaiveDateTime {
 /// Runs the command.
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_books_exist(&args.books.books)?;
+    let mut clock = Timings::start(args.timings);
     let books = read_books(&args.books)?;
+    clock.lap("read and check the books");
     refuse_unreadable(&books)?;
     let cutoff =
         settings::date(&books, "cutoff", args.cutoff.as_deref(), None)?.ok_or_else(|| {
@@ -349,6 +355,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         .iter()
         .map(|b| fingerprint(b))
         .collect::<Result<Vec<_>>>()?;
+    clock.lap("fingerprint the inputs");
 
     let batch_settings = BatchSettings {
         cutoff: cutoff.value,
@@ -375,6 +382,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         None => run_books(&books, &batch_settings, &tick),
     };
     bar.finish_and_clear();
+    clock.lap("accrue and reconcile");
 
     let mut problems: Vec<Problem> = books
         .iter()
@@ -407,6 +415,8 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     };
     crate::report::write_report(&report, &target)
         .with_context(|| format!("cannot write the workbook {}", target.display()))?;
+    clock.lap("write the workbook");
+    clock.report();
     print_summary(out, &report, &target)?;
     let outside = report
         .reconciliation
@@ -425,6 +435,41 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             exit::OK
         },
     )
+}
+
+/// Wall-clock time of each step of a run, for `--timings`.
+struct Timings {
+    on: bool,
+    last: std::time::Instant,
+    laps: Vec<(&'static str, std::time::Duration)>,
+}
+
+impl Timings {
+    fn start(on: bool) -> Timings {
+        Timings {
+            on,
+            last: std::time::Instant::now(),
+            laps: Vec::new(),
+        }
+    }
+
+    fn lap(&mut self, step: &'static str) {
+        let now = std::time::Instant::now();
+        self.laps.push((step, now - self.last));
+        self.last = now;
+    }
+
+    /// One line per step on standard error, then the total.
+    fn report(&self) {
+        if !self.on {
+            return;
+        }
+        let total: std::time::Duration = self.laps.iter().map(|(_, d)| *d).sum();
+        for (step, d) in &self.laps {
+            eprintln!("timings: {step:<26} {:>9.3} s", d.as_secs_f64());
+        }
+        eprintln!("timings: {:<26} {:>9.3} s", "total", total.as_secs_f64());
+    }
 }
 
 fn progress_bar(total: usize) -> indicatif::ProgressBar {
