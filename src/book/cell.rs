@@ -103,9 +103,14 @@ const ERROR_TEXTS: &[&str] = &[
 /// Whether text is a spreadsheet error value (`#N/A`, or LibreOffice's `Err:502`).
 fn is_error_text(s: &str) -> bool {
     let t = s.trim();
-    ERROR_TEXTS.iter().any(|e| e.eq_ignore_ascii_case(t))
-        || t.strip_prefix("Err:")
-            .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit()))
+    // Every CSV field comes here: look at the first byte before the list.
+    match t.as_bytes().first() {
+        Some(b'#') => ERROR_TEXTS.iter().any(|e| e.eq_ignore_ascii_case(t)),
+        Some(b'E') => t
+            .strip_prefix("Err:")
+            .is_some_and(|n| !n.is_empty() && n.bytes().all(|b| b.is_ascii_digit())),
+        _ => false,
+    }
 }
 
 impl Cell {
