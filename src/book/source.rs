@@ -131,6 +131,18 @@ impl Sheet {
             Rows::Csv(text) => SheetRows::Csv(CsvRows::new(text, true)),
         }
     }
+
+    /// A CSV sheet's records with their shapes and no cells (cheaper when
+    /// only the shapes matter); `None` for a workbook sheet.
+    pub(crate) fn shapes(&self) -> Option<impl Iterator<Item = Row> + '_> {
+        match &self.rows {
+            Rows::Held(_) => None,
+            Rows::Csv(text) => {
+                let mut rows = CsvRows::new(text, false);
+                Some(std::iter::from_fn(move || rows.next_row()?.ok()))
+            }
+        }
+    }
 }
 
 /// The rows of a sheet, one at a time: borrowed when held, built from the

@@ -356,7 +356,41 @@ impl<'s> Table<'s> {
         let mut skipped = Vec::new();
         let mut skipped_accounts = Vec::new();
         let mut unheaded: Option<(u32, u32)> = None;
-        for row in sheet.rows().skip(1).filter(|r| r.index > first.index) {
+        // A CSV sheet whose header names columns A, B, C... without a gap
+        // needs only each record's shape here: a record is ragged, or holds
+        // a value under no header, only when its shape says so, and only
+        // such records (none in a good book) are read again as cells.
+        let width = u32::try_from(headed.len()).unwrap_or(u32::MAX);
+        let gapless = headed
+            .iter()
+            .enumerate()
+            .all(|(i, c)| usize::try_from(*c).is_ok_and(|c| c == i));
+        let suspects: Option<Vec<u32>> = match (first.shape, sheet.shapes()) {
+            (Some(head), Some(shapes)) if gapless => Some(
+                shapes
+                    .filter(|r| r.index > first.index)
+                    .filter(|r| {
+                        r.shape.is_some_and(|s| {
+                            s.fields < head.filled || s.filled > head.fields || s.filled > width
+                        })
+                    })
+                    .map(|r| r.index)
+                    .collect(),
+            ),
+            _ => None,
+        };
+        let none_suspect = suspects.as_ref().is_some_and(Vec::is_empty);
+        let rows = sheet
+            .rows()
+            .skip(1)
+            .take_while(|_| !none_suspect)
+            .filter(|r| r.index > first.index)
+            .filter(|r| {
+                suspects
+                    .as_ref()
+                    .is_none_or(|s| s.binary_search(&r.index).is_ok())
+            });
+        for row in rows {
             if let Some(head) = first.shape {
                 if let Some(account) = ragged(ctx, sheet, head, account_col, &row, problems) {
                     skipped.push(row.index);
@@ -727,6 +761,65 @@ mod tests {
             style: NumberStyle {
                 decimal_comma: false,
             },
+        }
+    }
+
+    /// A CSV text as a sheet both ways: parsed a record at a time, and held
+    /// as rows of cells with the same shapes.
+    fn csv_both_ways(text: &str) -> [Sheet; 2] {
+        let csv = Sheet {
+            kind: SheetKind::Accounts,
+            name: "accounts".into(),
+            rows: Rows::Csv(text.to_string()),
+        };
+        let held = Sheet {
+            rows: Rows::Held(csv.rows().map(std::borrow::Cow::into_owned).collect()),
+            ..csv.clone()
+        };
+        [csv, held]
+    }
+
+    fn opened(s: &Sheet) -> Vec<(Severity, String, String)> {
+        let mut problems = Vec::new();
+        Table::open(&ctx(), s, COLUMNS, &mut problems);
+        problems
+            .into_iter()
+            .map(|p| (p.severity, p.position.cell, p.found))
+            .collect()
+    }
+
+    /// The CSV pass that looks only at record shapes finds what the pass over
+    /// every cell finds: values under no header (after a trailing blank
+    /// header, or in a gap of the header) and ragged records.
+    #[test]
+    fn csv_shapes_find_what_the_cells_find() {
+        let texts = [
+            // Two blank header fields at the end; a value under the second one.
+            "account,open_date,,\nA-1,2026-01-01,,\nA-2,2026-01-01,,x\n",
+            // A gap in the header; a value under it.
+            "account,,open_date\nA-1,y,2026-01-01\n",
+            // Ragged records, short and long, around a good one.
+            "account,open_date\nA-1\nA-2,2026-01-01\nA-3,2026-01-01,extra\n",
+            // Nothing wrong.
+            "account,open_date\nA-1,2026-01-01\n",
+        ];
+        let expected: [&[(Severity, &str, &str)]; 4] = [
+            &[(Severity::Note, "D3", "values in a column without a header")],
+            &[(Severity::Note, "B2", "values in a column without a header")],
+            &[
+                (Severity::Error, "2:2", "1 fields"),
+                (Severity::Error, "4:4", "3 fields"),
+            ],
+            &[],
+        ];
+        for (text, want) in texts.iter().zip(expected) {
+            let want: Vec<(Severity, String, String)> = want
+                .iter()
+                .map(|(s, c, f)| (*s, c.to_string(), f.to_string()))
+                .collect();
+            for s in csv_both_ways(text) {
+                assert_eq!(opened(&s), want, "{text:?}");
+            }
         }
     }
 

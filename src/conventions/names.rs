@@ -141,14 +141,35 @@ mod tests {
     /// against keys with tabs, form feeds, non-ASCII letters and case.
     #[test]
     fn the_ascii_comparison_agrees_with_folding() {
-        let names = ["ACT/365 Fixed", "act-360", "30E/360 ISDA", "half_up", "k", "x y"];
+        let names = [
+            "ACT/365 Fixed",
+            "act-360",
+            "30E/360 ISDA",
+            "half_up",
+            "k",
+            "x y",
+        ];
         let found = [
-            "act/365fixed", "ACT 360", "act\u{0B}360", "30e/360\u{0C}isda", "HALFUP",
-            "\u{212A}", "K", "x\ty", "xy ", "act/365 fixe", "", "\u{e9}",
+            "act/365fixed",
+            "ACT 360",
+            "act\u{0B}360",
+            "30e/360\u{0C}isda",
+            "HALFUP",
+            "\u{212A}",
+            "K",
+            "x\ty",
+            "xy ",
+            "act/365 fixe",
+            "",
+            "\u{e9}",
         ];
         for n in names {
             for f in found {
-                assert_eq!(folds_to(n, &fold(f)), fold(n) == fold(f), "{n:?} against {f:?}");
+                assert_eq!(
+                    folds_to(n, &fold(f)),
+                    fold(n) == fold(f),
+                    "{n:?} against {f:?}"
+                );
             }
         }
     }
