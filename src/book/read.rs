@@ -5,7 +5,7 @@
 //! is a [`Problem`] in the book, and an account with an error is kept out of
 //! `accounts` with its rows of other sheets. The input is only read.
 
-use std::collections::{BTreeSet, HashMap};
+use std::collections::{BTreeSet, HashMap, HashSet};
 use std::path::Path;
 
 use super::accounts::{self, Others};
@@ -155,7 +155,7 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     }
 
     entries.retain(|e| !rejected.contains(&e.terms.id));
-    let kept: BTreeSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
+    let kept: HashSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
     book.movements.retain(|id, _| kept.contains(id.as_str()));
     book.statements
         .retain(|s| kept.contains(s.account.as_str()));

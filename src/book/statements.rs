@@ -6,7 +6,7 @@
 //! `statement_end` setting `exclusive`, a period_end is the first day after
 //! the period and one day is taken off. Nothing here reconciles.
 
-use std::collections::BTreeMap;
+use std::collections::HashMap;
 
 use chrono::NaiveDate;
 
@@ -51,7 +51,7 @@ pub(crate) fn read(
     // A ragged row of an account is missing from its figures.
     out.spoiled.extend(table.skipped_accounts().iter().cloned());
     // Per account: (start, end, row) of rows kept so far.
-    let mut periods: BTreeMap<String, Vec<(NaiveDate, NaiveDate, u32)>> = BTreeMap::new();
+    let mut periods: HashMap<String, Vec<(NaiveDate, NaiveDate, u32)>> = HashMap::new();
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
