@@ -167,29 +167,20 @@ pub fn run_books(
         keep_spans: false,
         fast_path: settings.fast_path,
     };
-    // Amounts actually posted, summed per account and period (rows for the
-    // same period are one posting: a correction and its reversal, say).
-    let actual: Vec<HashMap<&str, Vec<ActualPosting>>> =
-        books.iter().map(actual_postings).collect();
     // Each account's statement rows, found once per book rather than per account.
     let rows: Vec<HashMap<&str, Vec<&StatementRow>>> =
         books.iter().map(statements_by_account).collect();
     type Work<'b> = (
         usize,
         &'b Book,
-        (
-            &'b HashMap<&'b str, Vec<ActualPosting>>,
-            &'b HashMap<&'b str, Vec<&'b StatementRow>>,
-        ),
+        &'b HashMap<&'b str, Vec<&'b StatementRow>>,
         &'b AccountEntry,
     );
     let work: Vec<Work<'_>> = books
         .iter()
-        .zip(actual.iter().zip(&rows))
+        .zip(&rows)
         .enumerate()
-        .flat_map(|(bi, (b, (posted, rows)))| {
-            b.accounts.iter().map(move |a| (bi, b, (posted, rows), a))
-        })
+        .flat_map(|(bi, (b, rows))| b.accounts.iter().map(move |a| (bi, b, rows, a)))
         .filter(|(_, _, _, a)| in_shard(&a.terms.id, settings.shard))
         .collect();
     let mut result = BatchResult {
@@ -213,13 +204,12 @@ pub fn run_books(
         let outcomes: Vec<Result<Outcome, Box<Problem>>> = part
             .par_iter()
             .with_min_len(64)
-            .map(|&(_, book, (posted, rows), entry)| {
+            .map(|&(_, book, rows, entry)| {
                 let r = accrue_one(
                     book,
                     entry,
                     rows.get(entry.terms.id.as_str())
                         .map_or(&[][..], Vec::as_slice),
-                    posted.get(entry.terms.id.as_str()),
                     options,
                     &settings.tolerance,
                     settings.fixing_fallback,
@@ -312,32 +302,29 @@ fn left_out_accounts(book: &Book, shard: Option<(u32, u32)>) -> usize {
     ids.len()
 }
 
-fn actual_postings(book: &Book) -> HashMap<&str, Vec<ActualPosting>> {
-    let mut sums: BTreeMap<(&str, NaiveDate, NaiveDate), Decimal> = BTreeMap::new();
-    for s in &book.statements {
-        *sums
-            .entry((s.account.as_str(), s.period_start, s.period_end))
-            .or_default() += s.posted;
+/// Amounts actually posted by an account's statement rows, summed per
+/// period (rows for the same period are one posting: a correction and its
+/// reversal, say), in period order.
+fn actual_postings(rows: &[&StatementRow]) -> Vec<ActualPosting> {
+    let mut sums: BTreeMap<(NaiveDate, NaiveDate), Decimal> = BTreeMap::new();
+    for s in rows {
+        *sums.entry((s.period_start, s.period_end)).or_default() += s.posted;
     }
-    let mut out: HashMap<&str, Vec<ActualPosting>> = HashMap::new();
-    for ((account, start, end), amount) in sums {
-        out.entry(account)
-            .or_default()
-            .push(ActualPosting { start, end, amount });
-    }
-    out
+    sums.into_iter()
+        .map(|((start, end), amount)| ActualPosting { start, end, amount })
+        .collect()
 }
 
 fn accrue_one(
     book: &Book,
     entry: &AccountEntry,
     statements: &[&StatementRow],
-    actual: Option<&Vec<ActualPosting>>,
     options: RunOptions,
     tolerance: &Tolerance,
     fallback: FixingFallback,
 ) -> Result<Outcome, Box<Problem>> {
     let t = &entry.terms;
+    let actual = actual_postings(statements);
     let (periods, notes) = statement_periods(statements, entry, options.cutoff);
     // Reconciliation sums spans of days broken at each statement period's
     // ends; states let the cause search re-run a period.
@@ -383,7 +370,7 @@ fn accrue_one(
         rates,
         debit_rates: debit,
         movements,
-        actual: actual.map_or(&[][..], Vec::as_slice),
+        actual: &actual,
         breaks: &breaks,
         floating,
     };
