@@ -1166,3 +1166,43 @@ fn a_broken_csv_folder_reports_file_and_sheet_faults() {
     // The rates file carries a byte-order mark and is read.
     assert_eq!(book.rates.len(), 3);
 }
+
+/// Movements keep the sheet's order within each account, whether the rows
+/// come grouped by account or interleaved.
+#[test]
+fn movements_keep_their_order_within_an_account_when_rows_interleave() {
+    let dir = tempfile::tempdir().unwrap();
+    let book_dir = dir.path().join("interleaved");
+    std::fs::create_dir(&book_dir).unwrap();
+    let write = |name: &str, text: &str| std::fs::write(book_dir.join(name), text).unwrap();
+    write(
+        "accounts.csv",
+        "account,currency,day_count,open_date,opening_balance,rate_ref\n\
+         IL-A,USD,ACT/360,2026-01-01,100.00,STD\n\
+         IL-B,USD,ACT/360,2026-01-01,100.00,STD\n",
+    );
+    write(
+        "rates.csv",
+        "rate_ref,effective,rate_percent\nSTD,2026-01-01,2\n",
+    );
+    write(
+        "movements.csv",
+        "account,value_date,amount,reference\n\
+         IL-A,2026-11-20,1.00,A-1\n\
+         IL-A,2026-11-03,2.00,A-2\n\
+         IL-B,2026-11-05,3.00,B-1\n\
+         IL-A,2026-11-10,4.00,A-3\n\
+         IL-B,2026-11-01,5.00,B-2\n\
+         IL-A,2026-11-02,6.00,A-4\n",
+    );
+    let book = read_book(&book_dir, &ReadOptions::default());
+    assert!(!book.has_errors(), "{}", all_problems(&book));
+    let refs = |id: &str| -> Vec<String> {
+        book.movements[id]
+            .iter()
+            .map(|m| m.reference.clone().unwrap())
+            .collect()
+    };
+    assert_eq!(refs("IL-A"), ["A-1", "A-2", "A-3", "A-4"]);
+    assert_eq!(refs("IL-B"), ["B-1", "B-2"]);
+}

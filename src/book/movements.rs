@@ -47,6 +47,9 @@ pub(crate) fn read(
     let mut out = Movements::default();
     // A ragged row of an account is missing from its figures.
     out.spoiled.extend(table.skipped_accounts().iter().cloned());
+    // Rows usually come grouped by account: a run of rows of one account is
+    // gathered here and joins the map once, in the rows' order.
+    let mut run: Option<(String, Vec<Movement>)> = None;
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
@@ -71,12 +74,23 @@ pub(crate) fn read(
                 );
             }
         }
-        out.by_account.entry(id).or_default().push(Movement {
+        let movement = Movement {
             value_date,
             amount,
             booking_date,
             reference,
-        });
+        };
+        match &mut run {
+            Some((current, list)) if *current == id => list.push(movement),
+            _ => {
+                if let Some((done, list)) = run.replace((id, vec![movement])) {
+                    out.by_account.entry(done).or_default().extend(list);
+                }
+            }
+        }
+    }
+    if let Some((done, list)) = run {
+        out.by_account.entry(done).or_default().extend(list);
     }
     // Most accounts have a few movements: no room is kept for more.
     for list in out.by_account.values_mut() {
