@@ -448,8 +448,41 @@ fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Stri
             let mut wb: Xlsx<BufReader<File>> =
                 open_workbook(path).map_err(|e: XlsxError| lower_first(&e.to_string()))?;
             let names = worksheet_names(wb.sheets_metadata());
-            for (kind, name) in pick_sheets(book, &names, &mut loaded) {
-                let cells = read_xlsx_sheet(&mut wb, &name, book, &mut loaded);
+            let picked = pick_sheets(book, &names, &mut loaded);
+            // The Accounts sheet streams on one core, the other sheets on the
+            // other, each through its own reader of the file; sheets and
+            // problems then join in the workbook's order.
+            let (accounts, others): (Vec<_>, Vec<_>) = picked
+                .into_iter()
+                .enumerate()
+                .partition(|(_, (kind, _))| *kind == SheetKind::Accounts);
+            let read_all = |wb: &mut Xlsx<BufReader<File>>,
+                            sheets: Vec<(usize, (SheetKind, String))>| {
+                sheets
+                    .into_iter()
+                    .map(|(at, (kind, name))| {
+                        let mut own = Loaded::default();
+                        let cells = read_xlsx_sheet(wb, &name, book, &mut own);
+                        (at, kind, name, cells, own.problems)
+                    })
+                    .collect::<Vec<_>>()
+            };
+            let (mut read, rest) = rayon::join(
+                || read_all(&mut wb, accounts),
+                || match open_workbook::<Xlsx<BufReader<File>>, _>(path) {
+                    Ok(mut second) => read_all(&mut second, others),
+                    // The file opened a moment ago: a second reader that
+                    // cannot open it reads nothing, and says so per sheet.
+                    Err(_) => others
+                        .into_iter()
+                        .map(|(at, (kind, name))| (at, kind, name, None, Vec::new()))
+                        .collect(),
+                },
+            );
+            read.extend(rest);
+            read.sort_by_key(|(at, ..)| *at);
+            for (_, kind, name, cells, problems) in read {
+                loaded.problems.extend(problems);
                 push_sheet(book, kind, name, cells, &mut loaded);
             }
         }
