@@ -5,8 +5,9 @@
 //! Files are only ever opened for reading. A file that cannot be read, is
 //! empty, truncated or not a workbook gives a problem, never a panic. xlsx and
 //! xlsb sheets are streamed cell by cell, so a stray cell far down and right
-//! costs one cell, not a dense grid up to it. Nothing here knows what a
-//! column means.
+//! costs one cell, not a dense grid up to it; an xlsx book's Accounts sheet
+//! streams on one core while its other sheets stream on another. Nothing
+//! here knows what a column means.
 
 use std::borrow::Cow;
 use std::fs::{self, File};
