@@ -23,6 +23,9 @@ use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, InputFile, JournalLine, ReconciliationLine, Report,
     RunFacts, Setting, SettingSource, StatusCount,
 };
+use crate::report::workbook::{
+    ACCRUALS_HEADER, DAILY_HEADER, JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER,
+};
 
 /// A shard workbook that cannot be merged.
 #[derive(Debug, thiserror::Error)]
@@ -210,25 +213,8 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
     };
     let facts = read_run(path, &mut book)?;
 
-    let s = list_sheets(
-        path,
-        &mut book,
-        "Accruals",
-        &[
-            "Account",
-            "Name",
-            "Currency",
-            "Side",
-            "Day count",
-            "Compounding",
-            "Balance at cut-off",
-            "Accrued at cut-off",
-            "Posted in window",
-            "Interest for window",
-            "Effective annual rate",
-        ],
-    )?
-    .ok_or_else(|| missing("Accruals"))?;
+    let s = list_sheets(path, &mut book, "Accruals", &ACCRUALS_HEADER)?
+        .ok_or_else(|| missing("Accruals"))?;
     let mut accruals = Vec::new();
     for r in &s.rows {
         let ccy = text(&r.1, 2);
@@ -254,25 +240,7 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
         .collect();
 
     let mut reconciliation = Vec::new();
-    if let Some(s) = list_sheets(
-        path,
-        &mut book,
-        "Reconciliation",
-        &[
-            "Account",
-            "Currency",
-            "Period start",
-            "Period end",
-            "Days",
-            "Balance-years",
-            "Expected",
-            "Posted",
-            "Variance",
-            "Variance (bp)",
-            "Status",
-            "Likely cause",
-        ],
-    )? {
+    if let Some(s) = list_sheets(path, &mut book, "Reconciliation", &RECONCILIATION_HEADER)? {
         for r in &s.rows {
             let ccy = text(&r.1, 1);
             let places = minor(&ccy);
@@ -296,21 +264,8 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
         }
     }
 
-    let s = list_sheets(
-        path,
-        &mut book,
-        "Journal",
-        &[
-            "Date",
-            "Entity",
-            "Currency",
-            "GL account",
-            "Debit",
-            "Credit",
-            "Memo",
-        ],
-    )?
-    .ok_or_else(|| missing("Journal"))?;
+    let s = list_sheets(path, &mut book, "Journal", &JOURNAL_HEADER)?
+        .ok_or_else(|| missing("Journal"))?;
     let mut journal = Vec::new();
     for r in &s.rows {
         let ccy = text(&r.1, 2);
@@ -327,21 +282,7 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
         });
     }
 
-    let daily = match list_sheets(
-        path,
-        &mut book,
-        "Daily",
-        &[
-            "Account",
-            "Date",
-            "Balance",
-            "Base",
-            "Rate",
-            "Day fraction",
-            "Interest",
-            "Accrued",
-        ],
-    )? {
+    let daily = match list_sheets(path, &mut book, "Daily", &DAILY_HEADER)? {
         None => None,
         Some(s) => {
             let mut lines = Vec::new();
@@ -364,15 +305,8 @@ pub fn read_workbook(path: &Path) -> Result<Report, MergeError> {
         }
     };
 
-    let s = list_sheets(
-        path,
-        &mut book,
-        "Problems",
-        &[
-            "Severity", "Book", "Sheet", "Cell", "Found", "Expected", "Fix",
-        ],
-    )?
-    .ok_or_else(|| missing("Problems"))?;
+    let s = list_sheets(path, &mut book, "Problems", &PROBLEMS_HEADER)?
+        .ok_or_else(|| missing("Problems"))?;
     let mut problems = Vec::new();
     for r in &s.rows {
         let severity = match text(&r.1, 0).as_str() {
