@@ -19,5 +19,6 @@ pub mod cli;
 pub mod conventions;
 pub mod engine;
 pub mod merge;
+pub mod problem;
 pub mod report;
 pub mod sample;

@@ -15,10 +15,10 @@ use chrono::{NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
 use crate::batch::journal::Journal;
-use crate::batch::sort_problems;
-use crate::book::{Position, Problem, Severity};
 use crate::conventions::currency;
 use crate::engine::reconcile::Status;
+use crate::problem::sort_problems;
+use crate::problem::{Position, Problem, Severity};
 use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, InputFile, JournalLine, ReconciliationLine, Report,
     RunFacts, Setting, SettingSource, StatusCount,

@@ -10,9 +10,7 @@ use std::sync::Arc;
 use std::time::{Duration, Instant};
 
 use chrono::NaiveDate;
-use ledgerate::book::{
-    check_unique_ids, read_book, AccountEntry, Book, Problem, ReadOptions, Severity,
-};
+use ledgerate::book::{check_unique_ids, read_book, AccountEntry, Book, ReadOptions};
 use ledgerate::conventions::calendar::BusinessDay;
 use ledgerate::conventions::compounding::Compounding;
 use ledgerate::conventions::daycount::Basis;
@@ -20,6 +18,7 @@ use ledgerate::conventions::rounding::RoundMode;
 use ledgerate::conventions::schedule::{AnchorKind, Posting};
 use ledgerate::engine::rates::{RateSchedule, RateSource, Tier};
 use ledgerate::engine::{Movement, RoundAt, Side, TierMethod};
+use ledgerate::problem::{Problem, Severity};
 use rust_decimal::Decimal;
 
 fn fixture(name: &str) -> PathBuf {

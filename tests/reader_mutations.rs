@@ -12,7 +12,8 @@ use std::io::{Read, Write};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
 
-use ledgerate::book::{contract_violations, read_book, Book, ReadOptions, Severity};
+use ledgerate::book::{contract_violations, read_book, Book, ReadOptions};
+use ledgerate::problem::Severity;
 use proptest::prelude::*;
 
 fn fixture(rel: &str) -> PathBuf {

@@ -8,7 +8,7 @@ use std::str::FromStr;
 
 use calamine::{open_workbook, open_workbook_auto, Data, HorizontalAlignment, Reader, Xlsx};
 use chrono::{NaiveDate, NaiveDateTime};
-use ledgerate::book::{Position, Problem, Severity};
+use ledgerate::problem::{Position, Problem, Severity};
 use ledgerate::report::model::*;
 use ledgerate::report::{write_report, write_template, ReportError};
 use rust_decimal::Decimal;

@@ -8,7 +8,8 @@ use std::path::{Path, PathBuf};
 
 use assert_cmd::Command;
 use calamine::{open_workbook_auto, Data, Reader};
-use ledgerate::book::{read_book, ReadOptions, Severity};
+use ledgerate::book::{read_book, ReadOptions};
+use ledgerate::problem::Severity;
 use ledgerate::report::book_writer::csv_name;
 use ledgerate::sample::{Generator, Mistake, MistakeKind, SHEETS};
 use predicates::prelude::*;

@@ -14,13 +14,14 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
-use crate::book::{AccountEntry, Book, Position, Problem, Severity, StatementRow};
+use crate::book::{AccountEntry, Book, StatementRow};
 use crate::engine::causes::{likely_cause, Account};
 use crate::engine::floating::{FixingFallback, FixingWarning, FloatingRates};
 use crate::engine::rates::RateSource;
 use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, Tolerance};
 use crate::engine::run::{accrue, AccountResult, RunOptions, Sources};
 use crate::engine::{ActualPosting, EngineError};
+use crate::problem::{Position, Problem, Severity};
 use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount, Word,
 };
@@ -71,47 +72,6 @@ pub fn shard_of(account: &str, shards: u32) -> u32 {
 
 fn in_shard(id: &str, shard: Option<(u32, u32)>) -> bool {
     shard.is_none_or(|(k, n)| shard_of(id, n) == k)
-}
-
-/// Sorts problems into the order every report lists them: by book (in the
-/// order given), sheet (in the order of the book format), row and column,
-/// keeping the order found among problems of one cell. A shard run and a
-/// merge of shards list them the same way as one run.
-pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
-    const SHEETS: [&str; 7] = [
-        "accounts",
-        "rates",
-        "movements",
-        "statements",
-        "fixings",
-        "holidays",
-        "settings",
-    ];
-    let key = |p: &Problem| {
-        let book = books
-            .iter()
-            .position(|b| *b == p.position.book)
-            .unwrap_or(books.len());
-        let sheet = p.position.sheet.to_lowercase();
-        let rank = SHEETS
-            .iter()
-            .position(|s| sheet.starts_with(s))
-            .unwrap_or(SHEETS.len());
-        let (row, col) = cell_order(&p.position.cell);
-        (book, rank, sheet, row, col)
-    };
-    problems.sort_by_cached_key(key);
-}
-
-/// (row, column) of an A1 cell ("F12"), a row reference ("1:1") or nothing.
-fn cell_order(cell: &str) -> (u64, u64) {
-    let letters: String = cell.chars().take_while(char::is_ascii_alphabetic).collect();
-    let rest = cell.get(letters.len()..).unwrap_or_default();
-    let digits: String = rest.chars().take_while(char::is_ascii_digit).collect();
-    let col = letters.chars().fold(0u64, |acc, c| {
-        acc * 26 + u64::from(c.to_ascii_uppercase() as u8 - b'A' + 1)
-    });
-    (digits.parse().unwrap_or(0), col)
 }
 
 /// The batch's figures, ready for the report.

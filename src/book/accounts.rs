@@ -15,7 +15,7 @@ use rust_decimal::Decimal;
 
 use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
-use super::model::{AccountEntry, GlCodes, Problem, Severity};
+use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
 use super::source::Sheet;
 use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
@@ -27,6 +27,7 @@ use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
+use crate::problem::{Problem, Severity};
 
 const COLUMNS: &[Column] = &[
     required("account"),

@@ -12,13 +12,13 @@ use std::collections::{BTreeMap, BTreeSet};
 
 use chrono::NaiveDate;
 
-use super::model::{Problem, Severity};
 use super::rates::percent_to_decimal;
 use super::source::Sheet;
 use super::table::{near_miss, required, Column, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;
 use crate::engine::floating::Fixings;
+use crate::problem::{Problem, Severity};
 
 const COLUMNS: &[Column] = &[
     required("index"),

@@ -9,11 +9,11 @@ use std::sync::Arc;
 
 use chrono::NaiveDate;
 
-use super::model::Problem;
 use super::source::Sheet;
 use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;
+use crate::problem::Problem;
 
 const COLUMNS: &[Column] = &[required("calendar"), required("date"), optional("name")];
 const CALENDAR: usize = 0;

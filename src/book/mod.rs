@@ -1,5 +1,5 @@
 //! Reading account books (workbooks or CSV folders) into typed [`model::Book`]s
-//! plus problems.
+//! plus [`crate::problem::Problem`]s.
 //!
 //! Readers never change an input file, never guess a day/month order, and
 //! never turn a spreadsheet float into a decimal except by its shortest
@@ -21,7 +21,5 @@ mod source;
 mod statements;
 mod table;
 
-pub use model::{
-    AccountEntry, Book, GlCodes, Position, Problem, SettingRow, Severity, StatementRow,
-};
+pub use model::{AccountEntry, Book, GlCodes, SettingRow, StatementRow};
 pub use read::{check_unique_ids, contract_violations, read_book, ReadOptions};

@@ -1,10 +1,9 @@
-//! The typed contents of account books, and the problems found reading them.
+//! The typed contents of account books.
 //!
 //! Readers fill these; the run turns them into engine inputs. Every row keeps
 //! the position it came from so that any later problem can name its cell.
 
 use std::collections::BTreeMap;
-use std::fmt;
 use std::path::PathBuf;
 
 use chrono::NaiveDate;
@@ -13,84 +12,7 @@ use rust_decimal::Decimal;
 use crate::engine::floating::{Fixings, FloatingSchedule};
 use crate::engine::rates::RateSchedule;
 use crate::engine::{AccountTerms, Movement};
-
-/// Where something is in the input: book file, sheet, cell.
-#[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord, Default)]
-pub struct Position {
-    /// The book as given on the command line.
-    pub book: String,
-    /// The sheet (for a CSV folder, the file name without `.csv`).
-    pub sheet: String,
-    /// The cell in A1 notation, or empty for a whole sheet or file.
-    pub cell: String,
-}
-
-impl fmt::Display for Position {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match (self.sheet.is_empty(), self.cell.is_empty()) {
-            (true, _) => write!(f, "{}", self.book),
-            (false, true) => write!(f, "{} sheet {}", self.book, self.sheet),
-            (false, false) => write!(f, "{} {}!{}", self.book, self.sheet, self.cell),
-        }
-    }
-}
-
-/// How serious a problem is.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
-pub enum Severity {
-    /// The account (or the book) cannot be computed; the exit status is non-zero.
-    Error,
-    /// Computed, but worth a look.
-    Warning,
-    /// For information (unknown columns kept out, summed statement rows...).
-    Note,
-}
-
-impl Severity {
-    /// The word written in reports.
-    pub fn name(self) -> &'static str {
-        match self {
-            Severity::Error => "error",
-            Severity::Warning => "warning",
-            Severity::Note => "note",
-        }
-    }
-}
-
-/// One problem: where, what was found, what was expected, how to fix it.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub struct Problem {
-    /// Error, warning or note.
-    pub severity: Severity,
-    /// Where it is.
-    pub position: Position,
-    /// The account it keeps out (or concerns), when there is one.
-    pub account: Option<String>,
-    /// The value found, as the user would see it.
-    pub found: String,
-    /// What was expected there.
-    pub expected: String,
-    /// How to fix it.
-    pub fix: String,
-}
-
-impl fmt::Display for Problem {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(
-            f,
-            "{}: {}: found {}; expected {}; {}",
-            self.severity.name(),
-            self.position,
-            if self.found.is_empty() {
-                "nothing".to_string()
-            } else {
-                format!("'{}'", self.found)
-            },
-            self.expected,
-            self.fix
-        )
-    }
-}
+use crate::problem::{Position, Problem, Severity};
 
 /// General-ledger accounts of an account's journal lines.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]

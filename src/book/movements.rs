@@ -9,10 +9,10 @@
 use std::collections::BTreeMap;
 
 use super::accounts::Known;
-use super::model::{Problem, Severity};
 use super::source::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
 use crate::engine::Movement;
+use crate::problem::{Problem, Severity};
 
 const COLUMNS: &[Column] = &[
     required("account"),

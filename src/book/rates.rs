@@ -14,11 +14,11 @@ use std::collections::BTreeMap;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
-use super::model::{Problem, Severity};
 use super::source::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
 use crate::engine::floating::{FloatingSchedule, IndexRate, TierRate};
 use crate::engine::rates::RateSchedule;
+use crate::problem::{Problem, Severity};
 
 const COLUMNS: &[Column] = &[
     required("rate_ref"),

@@ -12,12 +12,13 @@ use super::accounts::{self, Others};
 use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
-use super::model::{Book, Position, Problem, Severity};
+use super::model::Book;
 use super::rates::{self, Rates};
 use super::settings::{self, Settings};
 use super::source::{self, Sheet, SheetKind};
 use super::table::Ctx;
 use super::{movements, statements};
+use crate::problem::{Position, Problem, Severity};
 
 /// How to read a book.
 ///

@@ -6,10 +6,11 @@
 //! account. This module never applies a setting except `statement_end`,
 //! which only says how the Statements sheet is to be read.
 
-use super::model::{Problem, SettingRow, Severity};
+use super::model::SettingRow;
 use super::source::Sheet;
 use super::table::{near_miss, required, Column, Ctx, Fields, Table};
 use crate::conventions::names::{fold, lookup, UnknownName};
+use crate::problem::{Problem, Severity};
 
 const COLUMNS: &[Column] = &[required("setting"), required("value")];
 const SETTING: usize = 0;

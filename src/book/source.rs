@@ -21,9 +21,10 @@ use calamine::{
 };
 
 use super::cell::{shown, Cell};
-use super::model::{Position, Problem, Severity};
 use super::table::near_miss;
 use crate::conventions::names::fold;
+pub(crate) use crate::problem::{a1, a1_row, column_letters};
+use crate::problem::{Position, Problem, Severity};
 
 /// The sheets a book may hold.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
@@ -195,29 +196,6 @@ impl Loaded {
             fix: fix.to_string(),
         });
     }
-}
-
-/// The A1 name of a 0-based cell: `(0, 0)` is `A1`, `(6, 27)` is `AB7`.
-pub(crate) fn a1(row: u32, col: u32) -> String {
-    format!("{}{}", column_letters(col), u64::from(row) + 1)
-}
-
-/// The A1 name of a whole row: `7:7`.
-pub(crate) fn a1_row(row: u32) -> String {
-    let n = u64::from(row) + 1;
-    format!("{n}:{n}")
-}
-
-/// Column letters of a 0-based column: 0 is `A`, 25 `Z`, 26 `AA`.
-pub(crate) fn column_letters(col: u32) -> String {
-    let mut n = u64::from(col) + 1;
-    let mut letters = Vec::new();
-    while n > 0 {
-        let rem = (n - 1) % 26;
-        letters.push(char::from(b'A' + u8::try_from(rem).unwrap_or(0)));
-        n = (n - 1) / 26;
-    }
-    letters.iter().rev().collect()
 }
 
 /// What a file's first bytes say it is.

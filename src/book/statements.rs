@@ -11,10 +11,11 @@ use std::collections::HashMap;
 use chrono::NaiveDate;
 
 use super::accounts::Known;
-use super::model::{Problem, Severity, StatementRow};
+use super::model::StatementRow;
 use super::settings::StatementEnd;
 use super::source::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
+use crate::problem::{Problem, Severity};
 
 const COLUMNS: &[Column] = &[
     required("account"),

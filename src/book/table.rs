@@ -13,9 +13,9 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use super::cell::{self, shown, Cell, Issue, NumberStyle};
-use super::model::{Position, Problem, Severity};
 use super::source::{a1, a1_row, column_letters, Row, Shape, Sheet};
 use crate::conventions::names::{fold, UnknownName};
+use crate::problem::{Position, Problem, Severity};
 
 /// A column a sheet may have.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

@@ -12,8 +12,8 @@ use super::settings::{self, month_start};
 use super::{exit, read_books, BookArgs};
 use crate::batch::journal::JournalStyle;
 use crate::batch::{run_books, BatchSettings};
-use crate::book::{Problem, Severity};
 use crate::engine::reconcile::Tolerance;
+use crate::problem::{Problem, Severity};
 
 /// Arguments of `check`.
 #[derive(Debug, clap::Args)]

@@ -13,9 +13,9 @@ use super::settings::{self, month_start, Settings};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::batch::journal::JournalStyle;
 use crate::batch::{run_books, BatchSettings};
-use crate::book::{Problem, Severity};
 use crate::engine::floating::FixingFallback;
 use crate::engine::reconcile::Tolerance;
+use crate::problem::{Problem, Severity};
 use crate::report::model::{Report, RunFacts, SettingSource};
 use rust_decimal::Decimal;
 
@@ -390,7 +390,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         .collect();
     problems.extend(batch.problems.iter().cloned());
     let book_names: Vec<String> = books.iter().map(|b| b.path.display().to_string()).collect();
-    crate::batch::sort_problems(&mut problems, &book_names);
+    crate::problem::sort_problems(&mut problems, &book_names);
     let failed = batch.accounts_read.saturating_sub(batch.accounts_computed);
     let report = Report {
         facts: RunFacts {

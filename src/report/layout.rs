@@ -345,11 +345,11 @@ impl Styles {
     }
 
     /// The fill of a Problems severity cell, if it has one.
-    pub fn severity(&self, severity: crate::book::Severity) -> Option<&Format> {
+    pub fn severity(&self, severity: crate::problem::Severity) -> Option<&Format> {
         match severity {
-            crate::book::Severity::Error => Some(&self.error_row),
-            crate::book::Severity::Warning => Some(&self.warning_row),
-            crate::book::Severity::Note => None,
+            crate::problem::Severity::Error => Some(&self.error_row),
+            crate::problem::Severity::Warning => Some(&self.warning_row),
+            crate::problem::Severity::Note => None,
         }
     }
 }

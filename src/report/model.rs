@@ -6,7 +6,7 @@ use std::borrow::Cow;
 use chrono::{NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
-use crate::book::Problem;
+use crate::problem::Problem;
 
 /// A word of a row that is nearly always one of a few fixed names (a side, a
 /// day-count basis, a compounding, a status, a currency code): the fixed name

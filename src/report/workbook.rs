@@ -26,7 +26,7 @@ use super::layout::{
 };
 use super::model::{AccrualLine, DailyLine, JournalLine, ReconciliationLine, Report};
 use super::output;
-use crate::book::{Position, Problem, Severity};
+use crate::problem::{Position, Problem, Severity};
 
 /// Header labels of the Accruals sheet.
 pub const ACCRUALS_HEADER: [&str; 11] = [

@@ -12,13 +12,14 @@ use rust_decimal::Decimal;
 use super::catalogue::{shelf, Product, Shelf};
 use super::rng::Rng;
 use super::{date, Calendars, RateRow, CUTOFF, MISTAKES_PER_MILLE};
-use crate::book::{AccountEntry, GlCodes, Position};
+use crate::book::{AccountEntry, GlCodes};
 use crate::conventions::calendar::BusinessDay;
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{AnchorKind, Posting};
 use crate::engine::{AccountTerms, Movement, RoundAt, Side, TierMethod};
+use crate::problem::Position;
 
 /// An account before its statement is computed.
 pub(crate) struct Draft {
