@@ -1,7 +1,7 @@
 //! The bad-books corpus under `tests/bad-books/`: small Harbourview Mutual
 //! books, each a good two-account book with one fault planted (or one hard
 //! case that must read correctly), as xlsx files, CSV folders and raw bytes.
-//! `tests/bad_books.rs` runs the real binary on every one against
+//! `tests/it/bad_books.rs` runs the real binary on every one against
 //! `tests/bad-books/expected.tsv`.
 //!
 //! Every file is written the same way on every run (fixed document times,

@@ -1,5 +1,5 @@
-//! Writes the account-book fixtures of `tests/book_reader.rs` under
-//! `tests/fixtures/books/`, and the bad-books corpus of `tests/bad_books.rs`
+//! Writes the account-book fixtures of `tests/it/book_reader.rs` under
+//! `tests/fixtures/books/`, and the bad-books corpus of `tests/it/bad_books.rs`
 //! under `tests/bad-books/` (see [`bad_books`]): the Harbourview Mutual books (an invented credit
 //! union) as xlsx, as a folder of CSV files, and (when LibreOffice is
 //! installed) as ods and xls; a broken book with planted faults; and small

@@ -47,6 +47,6 @@ fi
 echo "quantlib check: live vectors identical to the committed fixture (seed $seed, $pairs pairs per basis)"
 
 cd "$root"
-LEDGERATE_QL_VECTORS="$live" cargo test --test quantlib_daycount -- --nocapture ||
+LEDGERATE_QL_VECTORS="$live" cargo test --test it quantlib_daycount:: -- --nocapture ||
     fail "ledgerate disagrees with the reference library"
 echo "quantlib check: OK"

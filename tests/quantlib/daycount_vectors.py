@@ -4,7 +4,7 @@
 Draws random date pairs with a fixed seed for every day-count basis that the
 reference library also implements, asks it for the day count and the year
 fraction of each pair, and writes one line-oriented, deterministic text file
-that tests/quantlib_daycount.rs compares ledgerate with.
+that tests/it/quantlib_daycount.rs compares ledgerate with.
 
 Source of every answer: QuantLib 1.44 from PyPI (`pip install QuantLib==1.44`),
 through the classes named in CLASSES below.

@@ -47,6 +47,6 @@ fi
 echo "overnight check: live vectors identical to the committed fixture (seed $seed, $coupons coupons)"
 
 cd "$root"
-LEDGERATE_QL_OVERNIGHT="$live" cargo test --test quantlib_overnight -- --nocapture ||
+LEDGERATE_QL_OVERNIGHT="$live" cargo test --test it quantlib_overnight:: -- --nocapture ||
     fail "ledgerate disagrees with the reference library"
 echo "overnight check: OK"

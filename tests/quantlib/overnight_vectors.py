@@ -7,7 +7,7 @@ arrears (with a lookback, an observation shift, a lockout and a spread
 compounded or added after) or simply averaged (with a spread; the library
 averages simply only without lookback or lockout). For each coupon it asks the library
 for the coupon rate and, for the unshifted ones, the amount accrued to a
-date inside the coupon. tests/quantlib_overnight.rs runs
+date inside the coupon. tests/it/quantlib_overnight.rs runs
 ledgerate on the same fixings and terms and compares.
 
 Source of every answer: QuantLib 1.44 from PyPI (`pip install QuantLib==1.44`),

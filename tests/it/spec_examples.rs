@@ -30,7 +30,7 @@ fn dec(v: &Value) -> Decimal {
 }
 
 fn examples() -> Vec<Value> {
-    let text = include_str!("fixtures/spec_examples.json");
+    let text = include_str!("../fixtures/spec_examples.json");
     serde_json::from_str::<Value>(text)
         .unwrap()
         .as_array()

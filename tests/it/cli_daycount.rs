@@ -1,12 +1,8 @@
 //! `ledgerate daycount` as a user runs it: the real binary, its output and
 //! exit status.
 
-use assert_cmd::Command;
+use crate::common::ledgerate;
 use predicates::prelude::*;
-
-fn ledgerate() -> Command {
-    Command::cargo_bin("ledgerate").unwrap()
-}
 
 /// ISDA 2006 section 4.16(b): 1 Nov 2003 to 1 May 2004 is 61/365 + 121/366.
 #[test]

@@ -2,19 +2,11 @@
 //! `merge`, gives the same sheets, cell for cell, as one `run` over all the
 //! accounts (the Run sheet differs only in the command line).
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
-use assert_cmd::Command;
+use crate::common::{ledgerate, sample};
 use calamine::{open_workbook_auto, Data, Reader};
 use predicates::prelude::*;
-
-fn ledgerate() -> Command {
-    Command::cargo_bin("ledgerate").unwrap()
-}
-
-fn sample() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books/harbourview-2026-11.xlsx")
-}
 
 fn sheets(path: &Path) -> Vec<(String, Vec<Vec<Data>>)> {
     let mut wb = open_workbook_auto(path).unwrap();

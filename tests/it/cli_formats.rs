@@ -3,16 +3,11 @@
 //! LibreOffice), a CSV folder and an unknown extension, read back with
 //! calamine, with figures worked out by hand.
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
+use crate::common::fixture;
 use assert_cmd::Command;
 use calamine::{open_workbook_auto, Data, Reader};
-
-fn fixture(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/fixtures/books")
-        .join(name)
-}
 
 fn run(book: &Path, out: &Path) {
     Command::cargo_bin("ledgerate")

@@ -8,19 +8,11 @@ use std::collections::BTreeMap;
 use std::fs;
 use std::path::Path;
 
-use assert_cmd::Command;
-use calamine::{open_workbook_auto, Data, Reader};
+use crate::common::{date as d, dec as n, ledgerate, sheet};
+use calamine::Data;
 use chrono::{Datelike, Days, NaiveDate, Weekday};
 use predicates::prelude::*;
 use rust_decimal::Decimal;
-
-fn d(s: &str) -> NaiveDate {
-    s.parse().unwrap()
-}
-
-fn n(s: &str) -> Decimal {
-    s.parse().unwrap()
-}
 
 /// Invented HVM-ON fixings in percent; 26 November (a holiday of the
 /// account's calendar) has a stray fixing, and 30 November none yet.
@@ -102,16 +94,6 @@ fn business_days_back(mut day: NaiveDate, k: u32) -> NaiveDate {
         }
     }
     day
-}
-
-fn ledgerate() -> Command {
-    Command::cargo_bin("ledgerate").unwrap()
-}
-
-fn sheet(path: &Path, name: &str) -> Vec<Vec<Data>> {
-    let mut wb = open_workbook_auto(path).unwrap();
-    let range = wb.worksheet_range(name).unwrap();
-    range.rows().map(|r| r.to_vec()).collect()
 }
 
 fn text(rows: &[Vec<Data>]) -> String {

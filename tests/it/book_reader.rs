@@ -5,10 +5,10 @@
 //! The fixtures under `tests/fixtures/books/` are written by
 //! `cargo run --example book_fixtures` (ods and xls by LibreOffice).
 
-use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
+use crate::common::{date, dec, fixture};
 use chrono::NaiveDate;
 use ledgerate::book::{check_unique_ids, read_book, AccountEntry, Book, ReadOptions};
 use ledgerate::conventions::calendar::BusinessDay;
@@ -21,22 +21,8 @@ use ledgerate::engine::{Movement, RoundAt, Side, TierMethod};
 use ledgerate::problem::{Problem, Severity};
 use rust_decimal::Decimal;
 
-fn fixture(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/fixtures/books")
-        .join(name)
-}
-
 fn read(name: &str) -> Book {
     read_book(&fixture(name), &ReadOptions::default())
-}
-
-fn dec(s: &str) -> Decimal {
-    s.parse().unwrap()
-}
-
-fn date(s: &str) -> NaiveDate {
-    s.parse().unwrap()
 }
 
 fn account<'a>(book: &'a Book, id: &str) -> &'a AccountEntry {

@@ -2,23 +2,11 @@
 //! binary on the shipped sample books, the workbook read back with calamine,
 //! and figures worked out by hand beside each check.
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
-use assert_cmd::Command;
+use crate::common::{ledgerate, sample, sample_csv, sheet};
 use calamine::{open_workbook_auto, Data, DataType, Reader};
 use predicates::prelude::*;
-
-fn ledgerate() -> Command {
-    Command::cargo_bin("ledgerate").unwrap()
-}
-
-fn sample() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books/harbourview-2026-11.xlsx")
-}
-
-fn sample_csv() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books/harbourview-2026-11-csv")
-}
 
 fn run_to(out: &Path, extra: &[&str]) -> assert_cmd::assert::Assert {
     ledgerate()
@@ -37,12 +25,6 @@ fn run_to(out: &Path, extra: &[&str]) -> assert_cmd::assert::Assert {
 }
 
 /// A sheet as rows of cells.
-fn sheet(path: &Path, name: &str) -> Vec<Vec<Data>> {
-    let mut wb = open_workbook_auto(path).unwrap();
-    let range = wb.worksheet_range(name).unwrap();
-    range.rows().map(|r| r.to_vec()).collect()
-}
-
 /// The Accruals row of an account, by header label.
 fn accrual(path: &Path, account: &str, column: &str) -> Data {
     let rows = sheet(path, "Accruals");

@@ -6,17 +6,13 @@
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use assert_cmd::Command;
+use crate::common::ledgerate;
 use calamine::{open_workbook_auto, Data, Reader};
 use ledgerate::book::{read_book, ReadOptions};
 use ledgerate::problem::Severity;
 use ledgerate::report::book_writer::csv_name;
 use ledgerate::sample::{Generator, Mistake, MistakeKind, SHEETS};
 use predicates::prelude::*;
-
-fn ledgerate() -> Command {
-    Command::cargo_bin("ledgerate").unwrap()
-}
 
 fn sample(accounts: u64, seed: u64, format: &str, out: &Path) {
     ledgerate()

@@ -14,13 +14,7 @@ use ledgerate::report::{write_report, write_template, ReportError};
 use rust_decimal::Decimal;
 use sha2::{Digest, Sha256};
 
-fn dec(s: &str) -> Decimal {
-    Decimal::from_str(s).unwrap()
-}
-
-fn date(s: &str) -> NaiveDate {
-    NaiveDate::parse_from_str(s, "%Y-%m-%d").unwrap()
-}
+use crate::common::{date, dec};
 
 /// A small report by hand: a USD savings account, a JPY deposit, a KWD loan
 /// and a USD account with a balance beyond what a spreadsheet number holds.
