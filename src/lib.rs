@@ -19,6 +19,7 @@ pub mod cli;
 pub mod conventions;
 pub mod engine;
 pub mod merge;
+pub mod panics;
 pub mod problem;
 pub mod report;
 pub mod sample;

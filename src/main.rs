@@ -7,5 +7,6 @@
 static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
 fn main() -> std::process::ExitCode {
+    ledgerate::panics::install_hook();
     ledgerate::cli::main_with(std::env::args_os())
 }

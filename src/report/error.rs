@@ -49,6 +49,24 @@ pub enum ReportError {
         #[source]
         source: std::io::Error,
     },
+    /// The target exists and is not a regular file (a device, a FIFO, a
+    /// socket, or a link to nothing): replacing it would destroy it.
+    #[error("the output '{}' is {kind}, not a regular file; give the path of a file to create or replace", .path.display())]
+    TargetNotFile {
+        /// The target path.
+        path: PathBuf,
+        /// What it is, in words ("a device", "a FIFO"...).
+        kind: &'static str,
+    },
+    /// The spreadsheet writer stopped while writing (it stops this way when
+    /// the disk is full or a file size limit is reached).
+    #[error("the spreadsheet writer stopped writing '{}': {message}; check that the output folder is writable and has free space, then run again (any earlier file of that name is unchanged)", .path.display())]
+    Stopped {
+        /// The target path.
+        path: PathBuf,
+        /// What the writer said.
+        message: String,
+    },
     /// A fixed value of the writer itself is out of range (a defect of the program).
     #[error("internal error in the workbook writer: {0}; please report it")]
     Internal(String),

@@ -12,12 +12,79 @@ use rust_xlsxwriter::Workbook;
 use super::error::ReportError;
 use super::model::InputFile;
 
+/// The longest part of the target's file name kept in the temporary file's
+/// name, in bytes: the whole temporary name stays within the 255 bytes a file
+/// name may have, whatever the target's name.
+const TEMP_NAME_PART: usize = 100;
+
+/// Runs a writer; a panic inside the spreadsheet library (it panics when a
+/// scratch file cannot be written, on a full disk say) becomes
+/// [`ReportError::Stopped`] naming the target, and prints nothing itself.
+pub(crate) fn guarded<T>(
+    target: &Path,
+    write: impl FnOnce() -> Result<T, ReportError>,
+) -> Result<T, ReportError> {
+    crate::panics::quietly(write).unwrap_or_else(|message| {
+        Err(ReportError::Stopped {
+            path: target.to_path_buf(),
+            message,
+        })
+    })
+}
+
+/// What an existing target that is not a regular file is, in words; `None`
+/// for a regular file (or a link to one) and for a target that does not exist.
+fn not_a_file(target: &Path) -> Option<&'static str> {
+    std::fs::symlink_metadata(target).ok()?;
+    let Ok(meta) = std::fs::metadata(target) else {
+        return Some("a link to nothing");
+    };
+    if meta.is_file() {
+        return None;
+    }
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::FileTypeExt;
+        let t = meta.file_type();
+        if t.is_fifo() {
+            return Some("a FIFO (named pipe)");
+        }
+        if t.is_socket() {
+            return Some("a socket");
+        }
+        if t.is_char_device() || t.is_block_device() {
+            return Some("a device");
+        }
+    }
+    Some("not a regular file")
+}
+
+/// Where the finished workbook is renamed to: the target itself, or, when
+/// the target is a link to a regular file, the file it links to (the link
+/// stays a link).
+fn final_path(target: &Path) -> PathBuf {
+    match std::fs::symlink_metadata(target) {
+        Ok(m) if m.file_type().is_symlink() => {
+            std::fs::canonicalize(target).unwrap_or_else(|_| target.to_path_buf())
+        }
+        _ => target.to_path_buf(),
+    }
+}
+
 /// The folder the target goes into; it must exist, and the target must not be
-/// a folder itself.
+/// a folder itself, nor anything else that is not a regular file.
 pub(crate) fn target_dir(target: &Path) -> Result<PathBuf, ReportError> {
     if target.is_dir() {
         return Err(ReportError::TargetIsDirectory(target.to_path_buf()));
     }
+    if let Some(kind) = not_a_file(target) {
+        return Err(ReportError::TargetNotFile {
+            path: target.to_path_buf(),
+            kind,
+        });
+    }
+    let target = final_path(target);
+    let target = target.as_path();
     let dir = match target.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
         _ => PathBuf::from("."),
@@ -77,15 +144,19 @@ pub(crate) fn save_atomically(
             source,
         }
     };
+    let real = final_path(target);
+    let target = real.as_path();
+    let dir = match target.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p,
+        _ => dir,
+    };
     // A run killed mid-write leaves this file, never a partial target: its
     // name says which output it was and that it is unfinished.
-    let prefix = format!(
-        ".{}.ledgerate-",
-        target
-            .file_name()
-            .map(|n| n.to_string_lossy().into_owned())
-            .unwrap_or_default()
-    );
+    let name = target
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let prefix = format!(".{}.ledgerate-", name_part(&name));
     let mut builder = tempfile::Builder::new();
     builder.prefix(&prefix).suffix(".partial");
     if let Some(p) = output_permissions(target) {
@@ -110,4 +181,28 @@ pub(crate) fn save_atomically(
     tmp.persist(target)
         .map_err(|e| io("rename the finished workbook to", target)(e.error))?;
     Ok(())
+}
+
+/// At most [`TEMP_NAME_PART`] bytes of a file name, cut at a character
+/// boundary.
+fn name_part(name: &str) -> &str {
+    let mut end = name.len().min(TEMP_NAME_PART);
+    while !name.is_char_boundary(end) {
+        end -= 1;
+    }
+    name.get(..end).unwrap_or_default()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_long_name_is_cut_at_a_character_boundary() {
+        let long = "é".repeat(120);
+        let part = name_part(&long);
+        assert!(part.len() <= TEMP_NAME_PART);
+        assert_eq!(part.chars().count(), TEMP_NAME_PART / 2);
+        assert_eq!(name_part("accruals.xlsx"), "accruals.xlsx");
+    }
 }

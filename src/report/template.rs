@@ -365,6 +365,10 @@ impl InputFormats {
 /// # Ok::<(), ledgerate::report::ReportError>(())
 /// ```
 pub fn write_template(target: &Path) -> Result<(), ReportError> {
+    output::guarded(target, || write_template_unguarded(target))
+}
+
+fn write_template_unguarded(target: &Path) -> Result<(), ReportError> {
     let dir = output::target_dir(target)?;
     let mut wb = Workbook::new();
     wb.set_zip_compression_level(layout::ZIP_LEVEL);

@@ -158,7 +158,9 @@ pub struct WriteOutcome {
 /// # Ok(()) }
 /// ```
 pub fn write_report(report: &Report, target: &Path) -> Result<WriteOutcome, ReportError> {
-    write_report_with(report, target, &Limits::default())
+    output::guarded(target, || {
+        write_report_with(report, target, &Limits::default())
+    })
 }
 
 /// [`write_report`] with other limits (tests use a small row limit).

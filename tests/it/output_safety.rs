@@ -203,3 +203,137 @@ fn the_output_may_not_be_inside_a_csv_book() {
     assert!(String::from_utf8_lossy(&out.stderr).contains("would overwrite the input"));
     assert_eq!(hashes(&csv), before);
 }
+
+/// `ledgerate run` on the sample book writing to `out`, with `shell` run
+/// before it in the same shell (limits, signal dispositions).
+fn run_to_in_shell(out: &Path, shell: &str) -> std::process::Output {
+    Command::new("bash")
+        .arg("-c")
+        .arg(format!(
+            "{shell}\nexec \"$0\" run \"$1\" --cutoff 2026-11-30 --fixed-time 2026-12-01T00:00:00 --out \"$2\""
+        ))
+        .arg(env!("CARGO_BIN_EXE_ledgerate"))
+        .arg(sample("harbourview-2026-11.xlsx"))
+        .arg(out)
+        .output()
+        .unwrap()
+}
+
+fn run_to(out: &Path) -> std::process::Output {
+    run_to_in_shell(out, "")
+}
+
+fn stderr(out: &std::process::Output) -> String {
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+#[test]
+fn an_output_that_is_a_fifo_a_device_or_a_dangling_link_is_refused_and_left_as_it_was() {
+    use std::os::unix::fs::FileTypeExt;
+    let dir = tempfile::tempdir().unwrap();
+    let fifo = dir.path().join("pipe.xlsx");
+    assert!(Command::new("mkfifo")
+        .arg(&fifo)
+        .status()
+        .unwrap()
+        .success());
+    let out = run_to(&fifo);
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("is a FIFO (named pipe), not a regular file"),
+        "{}",
+        stderr(&out)
+    );
+    assert!(std::fs::symlink_metadata(&fifo)
+        .unwrap()
+        .file_type()
+        .is_fifo());
+
+    let dangling = dir.path().join("gone.xlsx");
+    std::os::unix::fs::symlink(dir.path().join("nothing-here.xlsx"), &dangling).unwrap();
+    let out = run_to(&dangling);
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("is a link to nothing"),
+        "{}",
+        stderr(&out)
+    );
+    assert!(std::fs::symlink_metadata(&dangling)
+        .unwrap()
+        .file_type()
+        .is_symlink());
+
+    // A character device like /dev/null, made in the test's own folder
+    // (only root may make one; elsewhere this part says it is skipped).
+    let device = dir.path().join("null.xlsx");
+    let made = Command::new("mknod")
+        .arg(&device)
+        .args(["c", "1", "3"])
+        .stderr(Stdio::null())
+        .status()
+        .is_ok_and(|s| s.success());
+    if made {
+        let out = run_to(&device);
+        assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+        assert!(stderr(&out).contains("is a device"), "{}", stderr(&out));
+        assert!(std::fs::symlink_metadata(&device)
+            .unwrap()
+            .file_type()
+            .is_char_device());
+    } else {
+        eprintln!("mknod refused (not root): the device case is skipped");
+    }
+}
+
+#[test]
+fn an_output_that_links_to_a_file_replaces_the_file_and_keeps_the_link() {
+    let dir = tempfile::tempdir().unwrap();
+    let real = dir.path().join("real.xlsx");
+    std::fs::write(&real, b"old").unwrap();
+    let link = dir.path().join("latest.xlsx");
+    std::os::unix::fs::symlink(&real, &link).unwrap();
+    let out = run_to(&link);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert!(std::fs::symlink_metadata(&link)
+        .unwrap()
+        .file_type()
+        .is_symlink());
+    assert!(
+        std::fs::read(&real).unwrap().starts_with(b"PK"),
+        "the linked file holds the workbook"
+    );
+}
+
+#[test]
+fn a_long_output_name_is_written() {
+    let dir = tempfile::tempdir().unwrap();
+    let name = format!("{}.xlsx", "n".repeat(245));
+    let target = dir.path().join(&name);
+    let out = run_to(&target);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    assert!(target.is_file());
+}
+
+#[test]
+fn a_write_that_fails_for_space_is_an_error_with_exit_2_and_the_old_output_intact() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("accruals.xlsx");
+    std::fs::write(&target, b"last month's workbook").unwrap();
+    // A file size limit of 10 KiB stands in for a full disk: with SIGXFSZ
+    // ignored, a write past it fails with an error, as on a full disk.
+    let out = run_to_in_shell(&target, "trap '' XFSZ; ulimit -f 10");
+    let err = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("the spreadsheet writer stopped writing"), "{err}");
+    assert!(err.contains("has free space"), "{err}");
+    assert!(
+        !err.contains("panicked") && !err.contains("backtrace"),
+        "{err}"
+    );
+    assert_eq!(std::fs::read(&target).unwrap(), b"last month's workbook");
+    let left: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
+    assert_eq!(left.len(), 1, "only the old workbook is left: {left:?}");
+}
