@@ -163,6 +163,12 @@ fn excel_date_cell(d: &ExcelDateTime) -> Cell {
         if !date_serial_plausible(d.as_f64()) {
             return Cell::BadDate(d.to_string());
         }
+        // Serial 60 of the 1900 system is 29 February 1900, a day the
+        // spreadsheet calendar counts but that never existed; the text
+        // 1900-02-29 is refused too.
+        if matches!(d.to_ymd_hms_milli(), (1900, 2, 29, ..)) {
+            return Cell::BadDate(format!("{d} (29 February 1900, a day that never existed)"));
+        }
         match d.as_datetime() {
             Some(dt) if (1900..=9999).contains(&dt.year()) => date_cell(dt),
             _ => Cell::BadDate(d.to_string()),
@@ -719,6 +725,39 @@ mod tests {
         let e = date(&Cell::Number(d("46023"))).unwrap_err();
         assert_eq!(e.found, "46023");
         assert!(e.fix.contains("date without a date format"), "{}", e.fix);
+    }
+
+    #[test]
+    fn serial_60_of_the_1900_system_is_no_date() {
+        // Source: the 1900 date system counts 1900 as a leap year, so serial
+        // 60 is 29 February 1900, which never existed; 59 and 61 are the
+        // days either side (common practice of spreadsheet programs, no
+        // published standard).
+        use calamine::ExcelDateTimeType::DateTime;
+        let day = |serial: f64, is_1904: bool| {
+            Cell::from(&Data::DateTime(ExcelDateTime::new(
+                serial, DateTime, is_1904,
+            )))
+        };
+        assert!(
+            matches!(day(60.0, false), Cell::BadDate(ref s) if s.contains("29 February 1900")),
+            "{:?}",
+            day(60.0, false)
+        );
+        assert!(matches!(day(60.5, false), Cell::BadDate(_)));
+        assert_eq!(
+            day(59.0, false),
+            Cell::Date(NaiveDate::from_ymd_opt(1900, 2, 28).unwrap())
+        );
+        assert_eq!(
+            day(61.0, false),
+            Cell::Date(NaiveDate::from_ymd_opt(1900, 3, 1).unwrap())
+        );
+        // In the 1904 system serial 60 is an ordinary day.
+        assert_eq!(
+            day(60.0, true),
+            Cell::Date(NaiveDate::from_ymd_opt(1904, 3, 1).unwrap())
+        );
     }
 
     #[test]

@@ -324,7 +324,10 @@ fn a_write_that_fails_for_space_is_an_error_with_exit_2_and_the_old_output_intac
     let out = run_to_in_shell(&target, "trap '' XFSZ; ulimit -f 10");
     let err = stderr(&out);
     assert_eq!(out.status.code(), Some(2), "{err}");
-    assert!(err.contains("the spreadsheet writer stopped writing"), "{err}");
+    assert!(
+        err.contains("the spreadsheet writer stopped writing"),
+        "{err}"
+    );
     assert!(err.contains("has free space"), "{err}");
     assert!(
         !err.contains("panicked") && !err.contains("backtrace"),
