@@ -60,10 +60,39 @@ pub(crate) fn parse_iso_date(s: &str) -> Option<NaiveDate> {
     crate::book::cell::parse_iso_date(s.trim())
 }
 
-/// Reads a holiday file: one ISO date a line, blank lines and `#` comments skipped.
+/// The largest holiday file read, in bytes: a century of holidays of several
+/// markets takes a few tens of kilobytes.
+const CALENDAR_LIMIT: u64 = 1 << 20;
+
+/// Reads a holiday file: one ISO date a line, blank lines and `#` comments
+/// skipped. Only a regular file of at most [`CALENDAR_LIMIT`] bytes is read.
 pub(crate) fn read_calendar(path: &Path) -> Result<Calendar> {
-    let text = std::fs::read_to_string(path)
+    use std::io::Read;
+    let meta = std::fs::metadata(path)
         .with_context(|| format!("cannot read the calendar file {}", path.display()))?;
+    if !meta.is_file() {
+        let kind = super::inputs::not_a_file_or_folder(path).unwrap_or("a folder");
+        bail!(
+            "the calendar file {} is {kind}, not a file: give a text file with one ISO date a line",
+            path.display()
+        );
+    }
+    let mut text = String::new();
+    std::fs::File::open(path)
+        .and_then(|f| f.take(CALENDAR_LIMIT + 1).read_to_string(&mut text))
+        .with_context(|| {
+            format!(
+                "cannot read the calendar file {} as UTF-8 text",
+                path.display()
+            )
+        })?;
+    if text.len() as u64 > CALENDAR_LIMIT {
+        bail!(
+            "the calendar file {} is larger than {} KiB: a holiday list is one ISO date a line; check that this is the right file",
+            path.display(),
+            CALENDAR_LIMIT / 1024
+        );
+    }
     let mut dates = Vec::new();
     for (i, line) in text.lines().enumerate() {
         let content = line.split('#').next().unwrap_or("").trim();
