@@ -17,7 +17,7 @@ use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
@@ -804,7 +804,8 @@ mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
     use crate::book::rates;
-    use crate::book::source::{text_sheet, SheetKind};
+    use crate::book::sheet::text_sheet;
+    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

@@ -14,7 +14,7 @@ use std::collections::BTreeMap;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
 use crate::engine::floating::{FloatingSchedule, IndexRate, TierRate};
 use crate::engine::rates::RateSchedule;
@@ -392,7 +392,8 @@ fn unit_warnings(
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
-    use crate::book::source::{text_sheet, SheetKind};
+    use crate::book::sheet::text_sheet;
+    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

@@ -13,12 +13,14 @@ use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
 use super::model::Book;
+use super::open::load;
 use super::rates::{self, Rates};
 use super::settings::{self, Settings};
-use super::source::{self, Sheet, SheetKind};
+use super::sheet::Sheet;
+use super::source::SheetKind;
 use super::table::Ctx;
 use super::{movements, statements};
-use crate::problem::{Position, Problem, Severity};
+use crate::problem::{a1_row, Position, Problem, Severity};
 
 /// How to read a book.
 ///
@@ -61,7 +63,7 @@ pub struct ReadOptions {
 /// ```
 pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     let name = path.display().to_string();
-    let loaded = source::load(path, &name);
+    let loaded = load(path, &name);
     let mut book = Book {
         path: path.to_path_buf(),
         problems: loaded.problems,
@@ -194,7 +196,7 @@ fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
         position: Position {
             book: book.to_string(),
             sheet: sheet.name.clone(),
-            cell: source::a1_row(below),
+            cell: a1_row(below),
         },
         account: None,
         found: "a header row and no account rows".to_string(),

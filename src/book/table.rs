@@ -13,9 +13,10 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use super::cell::{self, shown, Cell, Issue, NumberStyle};
-use super::source::{a1, a1_row, column_letters, Row, Shape, Sheet};
+use super::row::{Row, Shape};
+use super::sheet::Sheet;
 use crate::conventions::names::{fold, UnknownName};
-use crate::problem::{Position, Problem, Severity};
+use crate::problem::{a1, a1_row, column_letters, Position, Problem, Severity};
 
 /// A column a sheet may have.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -730,7 +731,8 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::book::source::{Rows, SheetKind};
+    use crate::book::sheet::Rows;
+    use crate::book::source::SheetKind;
 
     const COLUMNS: &[Column] = &[
         required("account"),
