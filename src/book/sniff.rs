@@ -170,3 +170,28 @@ fn zip_kind(path: &Path) -> Format {
         Format::Xlsx
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn first_bytes_say_zip_ole_or_neither() {
+        assert_eq!(sniff(b"PK\x03\x04rest"), Content::Zip);
+        assert_eq!(
+            sniff(&[0xD0, 0xCF, 0x11, 0xE0, 0xA1, 0xB1, 0x1A, 0xE1, 0]),
+            Content::Ole
+        );
+        assert_eq!(sniff(b"account,currency\n"), Content::Other);
+        assert_eq!(sniff(b"PK"), Content::Other);
+    }
+
+    #[test]
+    fn extensions_name_formats_that_agree_with_their_bytes() {
+        assert_eq!(Format::named_by("xlsm"), Some(Format::Xlsx));
+        assert_eq!(Format::named_by("xla"), Some(Format::Xls));
+        assert_eq!(Format::named_by("csv"), None);
+        assert_eq!(Format::Xls.content(), Content::Ole);
+        assert_eq!(Format::Ods.content(), Content::Zip);
+    }
+}
