@@ -177,3 +177,16 @@ pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
     };
     problems.sort_by_cached_key(key);
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a1_names() {
+        assert_eq!(a1(0, 0), "A1");
+        assert_eq!(a1(6, 27), "AB7");
+        assert_eq!(a1(1_048_575, 16_383), "XFD1048576");
+        assert_eq!(a1_row(6), "7:7");
+    }
+}

@@ -17,7 +17,7 @@ use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
@@ -677,62 +677,8 @@ fn schedule_check(
     late: Severity,
 ) {
     let rates = others.rates;
-    let which = if col == DEBIT_RATE_REF {
-        "debit_rate_ref"
-    } else {
-        "rate_ref"
-    };
-    if let Some(schedule) = rates.floating.get(rate_ref) {
-        let cell = rates
-            .floating_cell
-            .get(rate_ref)
-            .cloned()
-            .unwrap_or_default();
-        if col == DEBIT_RATE_REF {
-            f.report(
-                Severity::Error,
-                col,
-                rate_ref,
-                &format!("a fixed debit rate schedule (Rates!{cell} names an index)"),
-                "debit rates that follow an index are not computed: give the debit_rate_ref fixed rates",
-            );
-            return;
-        }
-        if !t.floating.method.is_floating() {
-            let shown = f.raw(RATE_METHOD).map(|c| c.shown()).unwrap_or_default();
-            f.report(
-                Severity::Error,
-                RATE_METHOD,
-                &shown,
-                &format!("rate_method simple-daily or compounded-in-arrears for {rate_ref}, whose Rates!{cell} names an index"),
-                "set rate_method to how the index accrues, or give the rate_ref fixed rates",
-            );
-            return;
-        }
-        for index in schedule.indices() {
-            let fix = match others.fixings.lookup(index) {
-                IndexLookup::Found => continue,
-                IndexLookup::Broken(at) => {
-                    format!("correct the {index} rows of the Fixings sheet (see Fixings!{at})")
-                }
-                IndexLookup::Unknown(Some(near)) => format!(
-                    "did you mean {near}? index names match exactly: correct Rates!{cell} or add {index} fixings to the Fixings sheet"
-                ),
-                IndexLookup::Unknown(None) if others.fixings.read => {
-                    format!("add the {index} fixings to the Fixings sheet (index, date, rate_percent)")
-                }
-                IndexLookup::Unknown(None) => format!(
-                    "add a Fixings sheet (index, date, rate_percent) with the {index} fixings"
-                ),
-            };
-            f.report(
-                Severity::Error,
-                col,
-                rate_ref,
-                &format!("a rate_ref whose index {index} (Rates!{cell}) has fixings on the Fixings sheet"),
-                &fix,
-            );
-        }
+    if !floating_check(f, t, rate_ref, col, others) {
+        return;
     }
     if col != DEBIT_RATE_REF
         && t.floating.method.is_floating()
@@ -759,30 +705,7 @@ fn schedule_check(
         return;
     }
     let Some((first, cell)) = rates.first.get(rate_ref) else {
-        // Refs match exactly; one that differs only in case or spacing is
-        // the likeliest meaning.
-        let key = fold(rate_ref);
-        let near = rates
-            .first
-            .keys()
-            .find(|k| fold(k) == key)
-            .or_else(|| rates.first.keys().find(|k| near_miss(&key, &fold(k))));
-        let fix = match (near, rates.read) {
-            (Some(n), _) => format!(
-                "did you mean {n}? add rows for {rate_ref} to the Rates sheet, or correct {which}"
-            ),
-            (None, true) => {
-                format!("add rows for {rate_ref} to the Rates sheet, or correct {which}")
-            }
-            (None, false) => "the Rates sheet cannot be used: see its problems".to_string(),
-        };
-        f.report(
-            Severity::Error,
-            col,
-            rate_ref,
-            &format!("a {which} with rows in the Rates sheet"),
-            &fix,
-        );
+        unknown_rate_ref(f, rate_ref, col, rates);
         return;
     };
     if *first > t.open_date {
@@ -799,12 +722,117 @@ fn schedule_check(
     }
 }
 
+/// Checks of `rate_ref` when it names a floating schedule: a debit rate
+/// cannot follow an index, the account's rate_method must say how the index
+/// accrues, and each index needs fixings. `false` when the schedule cannot
+/// be used at all, so nothing more is checked.
+fn floating_check(
+    f: &mut Fields<'_, '_, '_>,
+    t: &AccountTerms,
+    rate_ref: &str,
+    col: usize,
+    others: &Others<'_>,
+) -> bool {
+    let rates = others.rates;
+    let Some(schedule) = rates.floating.get(rate_ref) else {
+        return true;
+    };
+    let cell = rates
+        .floating_cell
+        .get(rate_ref)
+        .cloned()
+        .unwrap_or_default();
+    if col == DEBIT_RATE_REF {
+        f.report(
+            Severity::Error,
+            col,
+            rate_ref,
+            &format!("a fixed debit rate schedule (Rates!{cell} names an index)"),
+            "debit rates that follow an index are not computed: give the debit_rate_ref fixed rates",
+        );
+        return false;
+    }
+    if !t.floating.method.is_floating() {
+        let shown = f.raw(RATE_METHOD).map(|c| c.shown()).unwrap_or_default();
+        f.report(
+            Severity::Error,
+            RATE_METHOD,
+            &shown,
+            &format!("rate_method simple-daily or compounded-in-arrears for {rate_ref}, whose Rates!{cell} names an index"),
+            "set rate_method to how the index accrues, or give the rate_ref fixed rates",
+        );
+        return false;
+    }
+    for index in schedule.indices() {
+        let fix = match others.fixings.lookup(index) {
+            IndexLookup::Found => continue,
+            IndexLookup::Broken(at) => {
+                format!("correct the {index} rows of the Fixings sheet (see Fixings!{at})")
+            }
+            IndexLookup::Unknown(Some(near)) => format!(
+                "did you mean {near}? index names match exactly: correct Rates!{cell} or add {index} fixings to the Fixings sheet"
+            ),
+            IndexLookup::Unknown(None) if others.fixings.read => {
+                format!("add the {index} fixings to the Fixings sheet (index, date, rate_percent)")
+            }
+            IndexLookup::Unknown(None) => format!(
+                "add a Fixings sheet (index, date, rate_percent) with the {index} fixings"
+            ),
+        };
+        f.report(
+            Severity::Error,
+            col,
+            rate_ref,
+            &format!(
+                "a rate_ref whose index {index} (Rates!{cell}) has fixings on the Fixings sheet"
+            ),
+            &fix,
+        );
+    }
+    true
+}
+
+/// The error for a `rate_ref` (in column `col`) with no rows in the Rates
+/// sheet, naming the likeliest meant one.
+fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rates: &Rates) {
+    let which = if col == DEBIT_RATE_REF {
+        "debit_rate_ref"
+    } else {
+        "rate_ref"
+    };
+    // Refs match exactly; one that differs only in case or spacing is
+    // the likeliest meaning.
+    let key = fold(rate_ref);
+    let near = rates
+        .first
+        .keys()
+        .find(|k| fold(k) == key)
+        .or_else(|| rates.first.keys().find(|k| near_miss(&key, &fold(k))));
+    let fix = match (near, rates.read) {
+        (Some(n), _) => format!(
+            "did you mean {n}? add rows for {rate_ref} to the Rates sheet, or correct {which}"
+        ),
+        (None, true) => {
+            format!("add rows for {rate_ref} to the Rates sheet, or correct {which}")
+        }
+        (None, false) => "the Rates sheet cannot be used: see its problems".to_string(),
+    };
+    f.report(
+        Severity::Error,
+        col,
+        rate_ref,
+        &format!("a {which} with rows in the Rates sheet"),
+        &fix,
+    );
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
     use crate::book::rates;
-    use crate::book::source::{text_sheet, SheetKind};
+    use crate::book::sheet::text_sheet;
+    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

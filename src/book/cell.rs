@@ -78,6 +78,16 @@ pub(crate) fn shown(s: &str) -> String {
     }
 }
 
+/// A library's error text as a message quotes it: its first letter lower
+/// case, the rest as written.
+pub(crate) fn lower_first(s: &str) -> String {
+    let mut c = s.chars();
+    match c.next() {
+        Some(f) => f.to_lowercase().chain(c).collect(),
+        None => String::new(),
+    }
+}
+
 /// Error values as spreadsheets write them. ODS files (and CSV exports)
 /// carry them as plain text, so text equal to one of these is an error cell.
 const ERROR_TEXTS: &[&str] = &[

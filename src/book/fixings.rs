@@ -13,7 +13,7 @@ use std::collections::{BTreeMap, BTreeSet};
 use chrono::NaiveDate;
 
 use super::rates::percent_to_decimal;
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{near_miss, required, Column, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;
@@ -177,7 +177,8 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
-    use crate::book::source::{text_sheet, SheetKind};
+    use crate::book::sheet::text_sheet;
+    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

@@ -9,7 +9,7 @@ use std::sync::Arc;
 
 use chrono::NaiveDate;
 
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;

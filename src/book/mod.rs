@@ -9,17 +9,26 @@
 
 mod accounts;
 pub(crate) mod cell;
+mod csv_folder;
+mod csv_records;
 mod fixings;
 mod holidays;
 pub mod model;
 mod movements;
 pub(crate) mod number;
+mod open;
+mod picking;
 mod rates;
 mod read;
+mod row;
 mod settings;
+mod sheet;
+mod sniff;
 mod source;
 mod statements;
 mod table;
+mod workbook;
+mod xlsx;
 
 pub use model::{AccountEntry, Book, GlCodes, SettingRow, StatementRow};
 pub use read::{check_unique_ids, contract_violations, read_book, ReadOptions};

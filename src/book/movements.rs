@@ -9,7 +9,7 @@
 use std::collections::BTreeMap;
 
 use super::accounts::Known;
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
 use crate::engine::Movement;
 use crate::problem::{Problem, Severity};

@@ -14,7 +14,7 @@ use std::collections::BTreeMap;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
 use crate::engine::floating::{FloatingSchedule, IndexRate, TierRate};
 use crate::engine::rates::RateSchedule;
@@ -94,68 +94,14 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
     let mut decimals: Vec<Decimal> = Vec::new();
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
-        let Some(rate_ref) = f.required_text(RATE_REF) else {
-            continue;
-        };
-        let effective = f.required_date(EFFECTIVE);
-        let index = f.text(INDEX);
-        let percent = f.decimal(PERCENT);
-        let decimal = f.decimal(DECIMAL);
-        let rate = if let Some(index) = index {
-            if let Some(col) = [PERCENT, DECIMAL].into_iter().find(|&i| f.given(i)) {
-                let shown = f.raw(col).map(|c| c.shown()).unwrap_or_default();
-                f.report(
-                    Severity::Error,
-                    col,
-                    &shown,
-                    &format!("a rate or an index, not both (the row names the index {index})"),
-                    "clear the rate for a floating rate, or the index for a fixed one",
-                );
-            }
-            out.floating_cell
-                .entry(rate_ref.clone())
-                .or_insert_with(|| f.cell_ref(INDEX));
-            index_rate(&mut f, index)
-        } else {
-            for col in [SPREAD_BP, FLOOR_PERCENT, CAP_PERCENT] {
-                if f.given(col) {
-                    let shown = f.raw(col).map(|c| c.shown()).unwrap_or_default();
-                    f.report(
-                        Severity::Error,
-                        col,
-                        &shown,
-                        &format!("{} only on a row that names an index", table.name(col)),
-                        "name the index in the index column, or clear the cell",
-                    );
-                }
-            }
-            fixed_rate(&mut f, percent, decimal, &mut percents, &mut decimals).map(TierRate::Fixed)
-        };
-        let tier_from = f.decimal(TIER_FROM).unwrap_or(Decimal::ZERO);
-        if tier_from.is_sign_negative() && !tier_from.is_zero() {
-            f.report(
-                Severity::Error,
-                TIER_FROM,
-                &tier_from.to_string(),
-                "a tier threshold of zero or more",
-                "tiers apply to the size of the base: write the threshold as a positive amount",
-            );
-        }
-        if f.failed {
-            out.broken
-                .entry(rate_ref)
-                .or_insert_with(|| f.cell_ref(RATE_REF));
-            continue;
-        }
-        if let (Some(effective), Some(rate)) = (effective, rate) {
-            rows.entry(rate_ref).or_default().push(RateRow {
-                effective,
-                rate,
-                tier_from,
-                tier_cell: f.cell_ref(TIER_FROM),
-                effective_cell: f.cell_ref(EFFECTIVE),
-            });
-        }
+        read_row(
+            &mut f,
+            &table,
+            &mut out,
+            &mut rows,
+            &mut percents,
+            &mut decimals,
+        );
     }
     unit_warnings(ctx, &table, &percents, &decimals, problems);
     for (rate_ref, rows) in rows {
@@ -163,29 +109,110 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
             out.broken.entry(rate_ref).or_insert(cell);
             continue;
         }
-        if out.broken.contains_key(&rate_ref) {
-            continue;
-        }
-        if let Some(first) = rows.iter().min_by_key(|r| r.effective) {
-            out.first.insert(
-                rate_ref.clone(),
-                (first.effective, first.effective_cell.clone()),
-            );
-        }
-        if out.floating_cell.contains_key(&rate_ref) {
-            let schedule = FloatingSchedule::from_rows(
-                rows.into_iter().map(|r| (r.effective, r.rate, r.tier_from)),
-            );
-            out.floating.insert(rate_ref, schedule);
-            continue;
-        }
-        let schedule = RateSchedule::from_rows(rows.iter().filter_map(|r| match r.rate {
-            TierRate::Fixed(rate) => Some((r.effective, rate, r.tier_from)),
-            TierRate::Index(_) => None,
-        }));
-        out.schedules.insert(rate_ref, schedule);
+        add_schedule(&mut out, rate_ref, rows);
     }
     out
+}
+
+/// Reads one row: a good one joins its schedule's `rows`; a bad one marks
+/// its schedule broken. The rates given in percent and in decimals are
+/// gathered for the unit warnings.
+fn read_row(
+    f: &mut Fields<'_, '_, '_>,
+    table: &Table<'_>,
+    out: &mut Rates,
+    rows: &mut BTreeMap<String, Vec<RateRow>>,
+    percents: &mut Vec<Decimal>,
+    decimals: &mut Vec<Decimal>,
+) {
+    let Some(rate_ref) = f.required_text(RATE_REF) else {
+        return;
+    };
+    let effective = f.required_date(EFFECTIVE);
+    let index = f.text(INDEX);
+    let percent = f.decimal(PERCENT);
+    let decimal = f.decimal(DECIMAL);
+    let rate = if let Some(index) = index {
+        if let Some(col) = [PERCENT, DECIMAL].into_iter().find(|&i| f.given(i)) {
+            let shown = f.raw(col).map(|c| c.shown()).unwrap_or_default();
+            f.report(
+                Severity::Error,
+                col,
+                &shown,
+                &format!("a rate or an index, not both (the row names the index {index})"),
+                "clear the rate for a floating rate, or the index for a fixed one",
+            );
+        }
+        out.floating_cell
+            .entry(rate_ref.clone())
+            .or_insert_with(|| f.cell_ref(INDEX));
+        index_rate(f, index)
+    } else {
+        for col in [SPREAD_BP, FLOOR_PERCENT, CAP_PERCENT] {
+            if f.given(col) {
+                let shown = f.raw(col).map(|c| c.shown()).unwrap_or_default();
+                f.report(
+                    Severity::Error,
+                    col,
+                    &shown,
+                    &format!("{} only on a row that names an index", table.name(col)),
+                    "name the index in the index column, or clear the cell",
+                );
+            }
+        }
+        fixed_rate(f, percent, decimal, percents, decimals).map(TierRate::Fixed)
+    };
+    let tier_from = f.decimal(TIER_FROM).unwrap_or(Decimal::ZERO);
+    if tier_from.is_sign_negative() && !tier_from.is_zero() {
+        f.report(
+            Severity::Error,
+            TIER_FROM,
+            &tier_from.to_string(),
+            "a tier threshold of zero or more",
+            "tiers apply to the size of the base: write the threshold as a positive amount",
+        );
+    }
+    if f.failed {
+        out.broken
+            .entry(rate_ref)
+            .or_insert_with(|| f.cell_ref(RATE_REF));
+        return;
+    }
+    if let (Some(effective), Some(rate)) = (effective, rate) {
+        rows.entry(rate_ref).or_default().push(RateRow {
+            effective,
+            rate,
+            tier_from,
+            tier_cell: f.cell_ref(TIER_FROM),
+            effective_cell: f.cell_ref(EFFECTIVE),
+        });
+    }
+}
+
+/// Adds the schedule of `rate_ref`, from rows whose tiers were checked, to
+/// the floating or the fixed schedules, unless a bad row broke it.
+fn add_schedule(out: &mut Rates, rate_ref: String, rows: Vec<RateRow>) {
+    if out.broken.contains_key(&rate_ref) {
+        return;
+    }
+    if let Some(first) = rows.iter().min_by_key(|r| r.effective) {
+        out.first.insert(
+            rate_ref.clone(),
+            (first.effective, first.effective_cell.clone()),
+        );
+    }
+    if out.floating_cell.contains_key(&rate_ref) {
+        let schedule = FloatingSchedule::from_rows(
+            rows.into_iter().map(|r| (r.effective, r.rate, r.tier_from)),
+        );
+        out.floating.insert(rate_ref, schedule);
+        return;
+    }
+    let schedule = RateSchedule::from_rows(rows.iter().filter_map(|r| match r.rate {
+        TierRate::Fixed(rate) => Some((r.effective, rate, r.tier_from)),
+        TierRate::Index(_) => None,
+    }));
+    out.schedules.insert(rate_ref, schedule);
 }
 
 /// A row's index rate: the spread in basis points, the floor and cap in percent.
@@ -392,7 +419,8 @@ fn unit_warnings(
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
-    use crate::book::source::{text_sheet, SheetKind};
+    use crate::book::sheet::text_sheet;
+    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

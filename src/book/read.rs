@@ -8,17 +8,21 @@
 use std::collections::{BTreeSet, HashMap, HashSet};
 use std::path::Path;
 
-use super::accounts::{self, Others};
+use super::accounts::{self, Known, Others};
 use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
-use super::model::Book;
+use super::model::{AccountEntry, Book};
+use super::movements::Movements;
+use super::open::load;
 use super::rates::{self, Rates};
-use super::settings::{self, Settings};
-use super::source::{self, Sheet, SheetKind};
+use super::settings::{self, Settings, StatementEnd};
+use super::sheet::Sheet;
+use super::source::SheetKind;
+use super::statements::Statements;
 use super::table::Ctx;
 use super::{movements, statements};
-use crate::problem::{Position, Problem, Severity};
+use crate::problem::{a1_row, Position, Problem, Severity};
 
 /// How to read a book.
 ///
@@ -61,7 +65,7 @@ pub struct ReadOptions {
 /// ```
 pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     let name = path.display().to_string();
-    let loaded = source::load(path, &name);
+    let loaded = load(path, &name);
     let mut book = Book {
         path: path.to_path_buf(),
         problems: loaded.problems,
@@ -100,10 +104,7 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
         .as_ref()
         .and_then(|s| accounts::read(ctx, s, &others, problems));
     let Some(found) = found else {
-        book.rates = rates.schedules;
-        book.floating_rates = rates.floating;
-        book.fixings = fixings.fixings;
-        book.settings = settings.rows;
+        keep_tables(&mut book, rates, fixings, settings);
         return book;
     };
     if let Some(s) = accounts_sheet.filter(|s| s.rows().take(2).count() == 1) {
@@ -111,14 +112,56 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
     }
     let mut rejected: BTreeSet<String> = found.rejected;
     let mut entries = found.entries;
+    let (moved, stated) = type_postings(
+        ctx,
+        sheet(SheetKind::Movements),
+        sheet(SheetKind::Statements),
+        &found.known,
+        settings.statement_end,
+    );
+    if let Some(m) = take_typed(moved, &entries, problems, &mut rejected) {
+        rejected.extend(m.spoiled);
+        book.movements = m.by_account;
+    }
+    if let Some(st) = take_typed(stated, &entries, problems, &mut rejected) {
+        rejected.extend(st.spoiled);
+        book.statements = st.rows;
+    }
 
-    // Movements and Statements only look up the accounts, so they are typed
-    // side by side; their problems are then listed in the sequential order.
-    let movements_sheet = sheet(SheetKind::Movements);
-    let statements_sheet = sheet(SheetKind::Statements);
-    let known = &found.known;
-    let statement_end = settings.statement_end;
-    let (moved, stated) = rayon::join(
+    entries.retain(|e| !rejected.contains(&e.terms.id));
+    let kept: HashSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
+    book.movements.retain(|id, _| kept.contains(id.as_str()));
+    book.statements
+        .retain(|s| kept.contains(s.account.as_str()));
+    fixing_holiday_warnings(ctx, &entries, &rates, &fixings, problems);
+    book.accounts = entries;
+    keep_tables(&mut book, rates, fixings, settings);
+    book
+}
+
+/// The book's rate schedules, fixings and settings, as read.
+fn keep_tables(book: &mut Book, rates: Rates, fixings: FixingsSheet, settings: Settings) {
+    book.rates = rates.schedules;
+    book.floating_rates = rates.floating;
+    book.fixings = fixings.fixings;
+    book.settings = settings.rows;
+}
+
+/// A typed sheet: the sheet, what it gives (`None` when it cannot be read
+/// as a table), and the problems found typing it.
+type Typed<T> = (Sheet, Option<T>, Vec<Problem>);
+
+/// Types the Movements and Statements sheets. They only look up the
+/// accounts, so they are typed side by side; their problems are listed
+/// afterwards in the sequential order.
+fn type_postings(
+    ctx: Ctx<'_>,
+    movements_sheet: Option<Sheet>,
+    statements_sheet: Option<Sheet>,
+    known: &Known,
+    statement_end: StatementEnd,
+) -> (Option<Typed<Movements>>, Option<Typed<Statements>>) {
+    rayon::join(
         || {
             movements_sheet.map(|s| {
                 let mut found = Vec::new();
@@ -133,37 +176,37 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
                 (s, typed, found)
             })
         },
-    );
-    if let Some((s, typed, mut found)) = moved {
-        problems.append(&mut found);
-        match typed {
-            Some(m) => {
-                rejected.extend(m.spoiled);
-                book.movements = m.by_account;
-            }
-            None => unusable_sheet(&s, &entries, problems, &mut rejected),
-        }
-    }
-    if let Some((s, typed, mut found)) = stated {
-        problems.append(&mut found);
-        match typed {
-            Some(st) => {
-                rejected.extend(st.spoiled);
-                book.statements = st.rows;
-            }
-            None => unusable_sheet(&s, &entries, problems, &mut rejected),
-        }
-    }
+    )
+}
 
-    entries.retain(|e| !rejected.contains(&e.terms.id));
-    let kept: HashSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
-    book.movements.retain(|id, _| kept.contains(id.as_str()));
-    book.statements
-        .retain(|s| kept.contains(s.account.as_str()));
-    // A fixing dated on a day that is not a business day of an account's
-    // calendar is never used for it: a warning, once per calendar.
+/// What a typed Movements or Statements sheet gives, its problems added to
+/// the book's; a sheet that cannot be read as a table keeps every account
+/// out.
+fn take_typed<T>(
+    typed: Option<Typed<T>>,
+    entries: &[AccountEntry],
+    problems: &mut Vec<Problem>,
+    rejected: &mut BTreeSet<String>,
+) -> Option<T> {
+    let (s, typed, mut found) = typed?;
+    problems.append(&mut found);
+    if typed.is_none() {
+        unusable_sheet(&s, entries, problems, rejected);
+    }
+    typed
+}
+
+/// A fixing dated on a day that is not a business day of an account's
+/// calendar is never used for it: a warning, once per calendar.
+fn fixing_holiday_warnings(
+    ctx: Ctx<'_>,
+    entries: &[AccountEntry],
+    rates: &Rates,
+    fixings: &FixingsSheet,
+    problems: &mut Vec<Problem>,
+) {
     let mut seen = BTreeSet::new();
-    for e in &entries {
+    for e in entries {
         if let Some(schedule) = rates.floating.get(&e.rate_ref) {
             for index in schedule.indices() {
                 fixings.holiday_warnings(
@@ -177,12 +220,6 @@ pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
             }
         }
     }
-    book.rates = rates.schedules;
-    book.floating_rates = rates.floating;
-    book.fixings = fixings.fixings;
-    book.accounts = entries;
-    book.settings = settings.rows;
-    book
 }
 
 /// An Accounts sheet with a header and nothing under it: the book computes
@@ -194,7 +231,7 @@ fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
         position: Position {
             book: book.to_string(),
             sheet: sheet.name.clone(),
-            cell: source::a1_row(below),
+            cell: a1_row(below),
         },
         account: None,
         found: "a header row and no account rows".to_string(),
@@ -207,7 +244,7 @@ fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
 /// every account's balance or postings unknown: each account gets an error.
 fn unusable_sheet(
     sheet: &Sheet,
-    entries: &[super::model::AccountEntry],
+    entries: &[AccountEntry],
     problems: &mut Vec<Problem>,
     rejected: &mut BTreeSet<String>,
 ) {

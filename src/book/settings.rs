@@ -7,7 +7,7 @@
 //! which only says how the Statements sheet is to be read.
 
 use super::model::SettingRow;
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{near_miss, required, Column, Ctx, Fields, Table};
 use crate::conventions::names::{fold, lookup, UnknownName};
 use crate::problem::{Problem, Severity};

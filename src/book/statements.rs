@@ -13,7 +13,7 @@ use chrono::NaiveDate;
 use super::accounts::Known;
 use super::model::StatementRow;
 use super::settings::StatementEnd;
-use super::source::Sheet;
+use super::sheet::Sheet;
 use super::table::{optional, required, Column, Ctx, Fields, Table};
 use crate::problem::{Problem, Severity};
 

@@ -13,9 +13,10 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use super::cell::{self, shown, Cell, Issue, NumberStyle};
-use super::source::{a1, a1_row, column_letters, Row, Shape, Sheet};
+use super::row::{Row, Shape};
+use super::sheet::Sheet;
 use crate::conventions::names::{fold, UnknownName};
-use crate::problem::{Position, Problem, Severity};
+use crate::problem::{a1, a1_row, column_letters, Position, Problem, Severity};
 
 /// A column a sheet may have.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -163,135 +164,185 @@ fn joined(names: &[String]) -> String {
     }
 }
 
-impl<'s> Table<'s> {
-    /// Finds the header row of `sheet` and matches it to `columns`. `None`
-    /// (with error problems) when the sheet cannot be read as a table: no
-    /// header, a required column missing, or a column given twice.
-    pub(crate) fn open(
-        ctx: &Ctx<'_>,
-        sheet: &'s Sheet,
-        columns: &'static [Column],
-        problems: &mut Vec<Problem>,
-    ) -> Option<Table<'s>> {
-        let known: Vec<String> = columns.iter().map(|c| fold(c.name)).collect();
-        let all_names: Vec<String> = columns.iter().map(|c| c.name.to_string()).collect();
-        let required_names: Vec<String> = columns
-            .iter()
-            .filter(|c| c.required)
-            .map(|c| c.name.to_string())
-            .collect();
-        let err = |cell: String, found: &str, expected: &str, fix: &str| {
-            ctx.problem(
-                Severity::Error,
-                &sheet.name,
-                cell,
-                None,
-                found,
-                expected,
-                fix,
-            )
-        };
-        let Some(first) = sheet.rows().next() else {
-            problems.push(err(
-                String::new(),
-                "an empty sheet",
+/// What matching a sheet's header needs: the book, the sheet, and the
+/// columns asked for with their names.
+struct Matching<'a, 'b> {
+    ctx: &'a Ctx<'b>,
+    sheet: &'a Sheet,
+    columns: &'static [Column],
+    /// Every column's name, folded, in the order asked for.
+    known: Vec<String>,
+    /// Every column's name as written.
+    all_names: Vec<String>,
+    /// The required columns' names as written.
+    required_names: Vec<String>,
+}
+
+/// A header row matched to the columns asked for.
+struct Header {
+    /// The sheet column of each asked-for column, when present.
+    at: Vec<Option<u32>>,
+    /// The asked-for column of each sheet column that has one.
+    by_col: HashMap<u32, usize>,
+    /// Header cells that name no column asked for, with their text.
+    unknown: Vec<(u32, String)>,
+    /// Whether no column is given twice.
+    once: bool,
+}
+
+impl<'a, 'b> Matching<'a, 'b> {
+    fn new(ctx: &'a Ctx<'b>, sheet: &'a Sheet, columns: &'static [Column]) -> Self {
+        Matching {
+            ctx,
+            sheet,
+            columns,
+            known: columns.iter().map(|c| fold(c.name)).collect(),
+            all_names: columns.iter().map(|c| c.name.to_string()).collect(),
+            required_names: columns
+                .iter()
+                .filter(|c| c.required)
+                .map(|c| c.name.to_string())
+                .collect(),
+        }
+    }
+
+    /// The name of column `i`.
+    fn name(&self, i: usize) -> &'static str {
+        self.columns.get(i).map_or("", |c| c.name)
+    }
+
+    /// An error about the sheet's header.
+    fn error(&self, cell: String, found: &str, expected: &str, fix: &str) -> Problem {
+        self.ctx.problem(
+            Severity::Error,
+            &self.sheet.name,
+            cell,
+            None,
+            found,
+            expected,
+            fix,
+        )
+    }
+
+    /// The error for a sheet with no rows.
+    fn empty(&self) -> Problem {
+        self.error(
+            String::new(),
+            "an empty sheet",
+            &format!(
+                "a header row naming the columns ({})",
+                joined(&self.required_names)
+            ),
+            "add a header row and the data below it, or remove the sheet",
+        )
+    }
+
+    /// The error for a first row that names no column: the header is in a
+    /// later row, or in none.
+    fn header_not_first(&self, first: &Row, first_text: &[String]) -> Problem {
+        let later = self
+            .sheet
+            .rows()
+            .skip(1)
+            .find(|r| names_in(r, &self.known) >= self.required_names.len().clamp(1, 2));
+        match later {
+            Some(h) => self.error(
+                a1_row(first.index),
+                &joined(first_text),
+                &format!(
+                    "the header row as the first non-blank row (row {})",
+                    u64::from(first.index) + 1
+                ),
+                &format!(
+                    "the header is in row {}: delete the rows above it",
+                    u64::from(h.index) + 1
+                ),
+            ),
+            None => self.error(
+                a1_row(first.index),
+                &joined(first_text),
                 &format!(
                     "a header row naming the columns ({})",
-                    joined(&required_names)
+                    joined(&self.required_names)
                 ),
-                "add a header row and the data below it, or remove the sheet",
-            ));
-            return None;
-        };
-        let first_text: Vec<String> = first.cells.iter().map(|(_, c)| c.shown()).collect();
-        if names_in(&first, &known) == 0 {
-            let later = sheet
-                .rows()
-                .skip(1)
-                .find(|r| names_in(r, &known) >= required_names.len().clamp(1, 2));
-            let problem = match later {
-                Some(h) => err(
-                    a1_row(first.index),
-                    &joined(&first_text),
-                    &format!(
-                        "the header row as the first non-blank row (row {})",
-                        u64::from(first.index) + 1
-                    ),
-                    &format!(
-                        "the header is in row {}: delete the rows above it",
-                        u64::from(h.index) + 1
-                    ),
-                ),
-                None => err(
-                    a1_row(first.index),
-                    &joined(&first_text),
-                    &format!(
-                        "a header row naming the columns ({})",
-                        joined(&required_names)
-                    ),
-                    "put the column names in the first row of the sheet",
-                ),
-            };
-            problems.push(problem);
-            return None;
+                "put the column names in the first row of the sheet",
+            ),
         }
+    }
 
-        let mut at: Vec<Option<u32>> = vec![None; columns.len()];
-        let mut by_col = HashMap::new();
-        let mut unknown: Vec<(u32, String)> = Vec::new();
-        let mut ok = true;
+    /// Matches each header cell to a column asked for; a column given
+    /// twice is an error on the second.
+    fn match_header(&self, first: &Row, problems: &mut Vec<Problem>) -> Header {
+        let mut header = Header {
+            at: vec![None; self.columns.len()],
+            by_col: HashMap::new(),
+            unknown: Vec::new(),
+            once: true,
+        };
         for (col, cell) in &first.cells {
             let key = header_key(cell);
-            match known.iter().position(|k| *k == key) {
-                Some(i) => match at.get(i).copied().flatten() {
-                    Some(earlier) => {
-                        ok = false;
-                        problems.push(err(
-                            a1(first.index, *col),
-                            &cell.shown(),
-                            &format!(
-                                "each column once ({} is column {})",
-                                columns.get(i).map_or("", |c| c.name),
-                                column_letters(earlier)
-                            ),
-                            &format!(
-                                "remove or rename one of the two {} columns ({} and {})",
-                                columns.get(i).map_or("", |c| c.name),
-                                a1(first.index, earlier),
-                                a1(first.index, *col)
-                            ),
-                        ));
+            let Some(i) = self.known.iter().position(|k| *k == key) else {
+                header.unknown.push((*col, cell.shown()));
+                continue;
+            };
+            match header.at.get(i).copied().flatten() {
+                Some(earlier) => {
+                    header.once = false;
+                    problems.push(self.error(
+                        a1(first.index, *col),
+                        &cell.shown(),
+                        &format!(
+                            "each column once ({} is column {})",
+                            self.name(i),
+                            column_letters(earlier)
+                        ),
+                        &format!(
+                            "remove or rename one of the two {} columns ({} and {})",
+                            self.name(i),
+                            a1(first.index, earlier),
+                            a1(first.index, *col)
+                        ),
+                    ));
+                }
+                None => {
+                    if let Some(slot) = header.at.get_mut(i) {
+                        *slot = Some(*col);
                     }
-                    None => {
-                        if let Some(slot) = at.get_mut(i) {
-                            *slot = Some(*col);
-                        }
-                        by_col.insert(*col, i);
-                    }
-                },
-                None => unknown.push((*col, cell.shown())),
+                    header.by_col.insert(*col, i);
+                }
             }
         }
+        header
+    }
 
-        // Unknown headers that are near misses of absent columns.
-        let absent: Vec<usize> = (0..columns.len())
-            .filter(|i| at.get(*i).copied().flatten().is_none())
-            .collect();
+    /// An error for each absent required column and a warning for an
+    /// absent optional one whose name an unknown header nearly is. Gives
+    /// the sheet columns of the unknown headers those problems name.
+    fn absent_columns(
+        &self,
+        header: &Header,
+        first: &Row,
+        first_text: &[String],
+        problems: &mut Vec<Problem>,
+    ) -> Vec<u32> {
         let near_of = |i: usize| -> Option<&(u32, String)> {
-            let wanted = known.get(i)?;
-            unknown
+            let wanted = self.known.get(i)?;
+            header
+                .unknown
                 .iter()
                 .filter(|(_, h)| near_miss(&fold(h), wanted))
                 .min_by_key(|(_, h)| strsim::damerau_levenshtein(&fold(h), wanted))
         };
         let mut explained: Vec<u32> = Vec::new();
-        for &i in &absent {
-            let Some(column) = columns.get(i) else {
-                continue;
-            };
+        let absent = header
+            .at
+            .iter()
+            .zip(self.columns)
+            .enumerate()
+            .filter(|(_, (at, _))| at.is_none());
+        for (i, (_, column)) in absent {
             let near = near_of(i);
             if column.required {
-                ok = false;
                 let fix = match near {
                     Some((c, h)) => {
                         explained.push(*c);
@@ -304,21 +355,21 @@ impl<'s> Table<'s> {
                     }
                     None => format!("add a column named {} to the header row", column.name),
                 };
-                problems.push(err(
+                problems.push(self.error(
                     a1_row(first.index),
-                    &joined(&first_text),
+                    &joined(first_text),
                     &format!(
                         "a column named {} (required: {})",
                         column.name,
-                        joined(&required_names)
+                        joined(&self.required_names)
                     ),
                     &fix,
                 ));
             } else if let Some((c, h)) = near {
                 explained.push(*c);
-                problems.push(ctx.problem(
+                problems.push(self.ctx.problem(
                     Severity::Warning,
-                    &sheet.name,
+                    &self.sheet.name,
                     a1(first.index, *c),
                     None,
                     h,
@@ -327,102 +378,80 @@ impl<'s> Table<'s> {
                 ));
             }
         }
-        let rest: Vec<String> = unknown
+        explained
+    }
+
+    /// One note for the unknown headers no other problem names.
+    fn unknown_columns(
+        &self,
+        header: &Header,
+        explained: &[u32],
+        header_row: u32,
+        problems: &mut Vec<Problem>,
+    ) {
+        let rest: Vec<String> = header
+            .unknown
             .iter()
             .filter(|(c, _)| !explained.contains(c))
             .map(|(_, h)| h.clone())
             .collect();
         if !rest.is_empty() {
-            problems.push(ctx.problem(
+            problems.push(self.ctx.problem(
                 Severity::Note,
-                &sheet.name,
-                a1_row(first.index),
+                &self.sheet.name,
+                a1_row(header_row),
                 None,
                 &joined(&rest),
-                &format!("the columns of the {} sheet ({})", sheet.name, joined(&all_names)),
+                &format!("the columns of the {} sheet ({})", self.sheet.name, joined(&self.all_names)),
                 "these columns are kept out of the computation; nothing to do unless one should be a listed column",
             ));
         }
-        if !ok {
+    }
+}
+
+impl<'s> Table<'s> {
+    /// Finds the header row of `sheet` and matches it to `columns`. `None`
+    /// (with error problems) when the sheet cannot be read as a table: no
+    /// header, a required column missing, or a column given twice.
+    pub(crate) fn open(
+        ctx: &Ctx<'_>,
+        sheet: &'s Sheet,
+        columns: &'static [Column],
+        problems: &mut Vec<Problem>,
+    ) -> Option<Table<'s>> {
+        let matching = Matching::new(ctx, sheet, columns);
+        let Some(first) = sheet.rows().next() else {
+            problems.push(matching.empty());
+            return None;
+        };
+        let first_text: Vec<String> = first.cells.iter().map(|(_, c)| c.shown()).collect();
+        if names_in(&first, &matching.known) == 0 {
+            problems.push(matching.header_not_first(&first, &first_text));
             return None;
         }
-        // One pass over the data rows: ragged CSV records (each an error,
-        // left out), then the first value under no header at all.
-        let account_col = match columns.first() {
-            Some(c) if c.name == "account" => at.first().copied().flatten(),
-            _ => None,
-        };
-        let headed: Vec<u32> = first.cells.iter().map(|(c, _)| *c).collect();
-        let mut skipped = Vec::new();
-        let mut skipped_accounts = Vec::new();
-        let mut unheaded: Option<(u32, u32)> = None;
-        // A CSV sheet whose header names columns A, B, C... without a gap
-        // needs only each record's shape here: a record is ragged, or holds
-        // a value under no header, only when its shape says so, and only
-        // such records (none in a good book) are read again as cells.
-        let width = u32::try_from(headed.len()).unwrap_or(u32::MAX);
-        let gapless = headed
+        let header = matching.match_header(&first, problems);
+        let explained = matching.absent_columns(&header, &first, &first_text, problems);
+        matching.unknown_columns(&header, &explained, first.index, problems);
+        let required_present = header
+            .at
             .iter()
-            .enumerate()
-            .all(|(i, c)| usize::try_from(*c).is_ok_and(|c| c == i));
-        let suspects: Option<Vec<u32>> = match (first.shape, sheet.shapes()) {
-            (Some(head), Some(shapes)) if gapless => Some(
-                shapes
-                    .filter(|r| r.index > first.index)
-                    .filter(|r| {
-                        r.shape.is_some_and(|s| {
-                            s.fields < head.filled || s.filled > head.fields || s.filled > width
-                        })
-                    })
-                    .map(|r| r.index)
-                    .collect(),
-            ),
+            .zip(columns)
+            .all(|(at, c)| at.is_some() || !c.required);
+        if !header.once || !required_present {
+            return None;
+        }
+        let account_col = match columns.first() {
+            Some(c) if c.name == "account" => header.at.first().copied().flatten(),
             _ => None,
         };
-        let none_suspect = suspects.as_ref().is_some_and(Vec::is_empty);
-        let rows = sheet
-            .rows()
-            .skip(1)
-            .take_while(|_| !none_suspect)
-            .filter(|r| r.index > first.index)
-            .filter(|r| {
-                suspects
-                    .as_ref()
-                    .is_none_or(|s| s.binary_search(&r.index).is_ok())
-            });
-        for row in rows {
-            if let Some(head) = first.shape {
-                if let Some(account) = ragged(ctx, sheet, head, account_col, &row, problems) {
-                    skipped.push(row.index);
-                    skipped_accounts.extend(account);
-                    continue;
-                }
-            }
-            if unheaded.is_none() {
-                unheaded = row
-                    .cells
-                    .iter()
-                    .find(|(c, _)| !headed.contains(c))
-                    .map(|(c, _)| (row.index, *c));
-            }
-        }
-        if let Some((r, c)) = unheaded {
-            problems.push(ctx.problem(
-                Severity::Note,
-                &sheet.name,
-                a1(r, c),
-                None,
-                "values in a column without a header",
-                "a header name above every column that holds values",
-                "those values are kept out; give the column a header if it should be read",
-            ));
-        }
+        let (skipped, skipped_accounts) =
+            check_data_rows(ctx, sheet, &first, account_col, problems);
         Some(Table {
             sheet,
             columns,
             header_row: first.index,
-            at,
-            by_col,
+            at: header.at,
+            by_col: header.by_col,
             skipped,
             skipped_accounts,
         })
@@ -496,6 +525,91 @@ impl<'s> Table<'s> {
             Some(c) => a1(row, c),
             None => a1_row(row),
         }
+    }
+}
+
+/// One pass over the data rows below the header `first`: ragged CSV
+/// records (each an error, left out), then the first value under no header
+/// at all (a note). Gives the rows left out and the accounts they name.
+fn check_data_rows(
+    ctx: &Ctx<'_>,
+    sheet: &Sheet,
+    first: &Row,
+    account_col: Option<u32>,
+    problems: &mut Vec<Problem>,
+) -> (Vec<u32>, Vec<String>) {
+    let headed: Vec<u32> = first.cells.iter().map(|(c, _)| *c).collect();
+    let mut skipped = Vec::new();
+    let mut skipped_accounts = Vec::new();
+    let mut unheaded: Option<(u32, u32)> = None;
+    let suspects = shape_suspects(sheet, first, &headed);
+    let none_suspect = suspects.as_ref().is_some_and(Vec::is_empty);
+    let rows = sheet
+        .rows()
+        .skip(1)
+        .take_while(|_| !none_suspect)
+        .filter(|r| r.index > first.index)
+        .filter(|r| {
+            suspects
+                .as_ref()
+                .is_none_or(|s| s.binary_search(&r.index).is_ok())
+        });
+    for row in rows {
+        if let Some(head) = first.shape {
+            if let Some(account) = ragged(ctx, sheet, head, account_col, &row, problems) {
+                skipped.push(row.index);
+                skipped_accounts.extend(account);
+                continue;
+            }
+        }
+        if unheaded.is_none() {
+            unheaded = row
+                .cells
+                .iter()
+                .find(|(c, _)| !headed.contains(c))
+                .map(|(c, _)| (row.index, *c));
+        }
+    }
+    if let Some((r, c)) = unheaded {
+        problems.push(ctx.problem(
+            Severity::Note,
+            &sheet.name,
+            a1(r, c),
+            None,
+            "values in a column without a header",
+            "a header name above every column that holds values",
+            "those values are kept out; give the column a header if it should be read",
+        ));
+    }
+    (skipped, skipped_accounts)
+}
+
+/// The record-shape shortcut for a CSV sheet whose header `first` names
+/// columns A, B, C... without a gap (`headed`): a record is ragged, or
+/// holds a value under no header, only when its shape says so, so only the
+/// records whose shapes say so (none in a good book) need reading as
+/// cells. Gives their row indexes, in order; `None` when the shortcut does
+/// not apply (a workbook sheet, or a header with a gap) and every data row
+/// must be read.
+fn shape_suspects(sheet: &Sheet, first: &Row, headed: &[u32]) -> Option<Vec<u32>> {
+    let width = u32::try_from(headed.len()).unwrap_or(u32::MAX);
+    let gapless = headed
+        .iter()
+        .enumerate()
+        .all(|(i, c)| usize::try_from(*c).is_ok_and(|c| c == i));
+    match (first.shape, sheet.shapes()) {
+        (Some(head), Some(shapes)) if gapless => Some(
+            shapes
+                .filter(|r| r.index > first.index)
+                .filter(|r| {
+                    r.shape.is_some_and(|s| {
+                        s.fields < head.filled || s.filled > head.fields || s.filled > width
+                    })
+                })
+                .map(|r| r.index)
+                .collect(),
+        ),
+        _ => None,
     }
 }
 
@@ -730,7 +844,8 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::book::source::{Rows, SheetKind};
+    use crate::book::sheet::Rows;
+    use crate::book::source::SheetKind;
 
     const COLUMNS: &[Column] = &[
         required("account"),
@@ -821,6 +936,25 @@ mod tests {
                 assert_eq!(opened(&s), want, "{text:?}");
             }
         }
+    }
+
+    /// The shape shortcut names only the records whose shapes break the
+    /// header's, and stands aside for a header with a gap and for a sheet
+    /// held as cells.
+    #[test]
+    fn the_shape_shortcut_names_only_records_whose_shape_is_off() {
+        let suspects = |s: &Sheet| {
+            let first = s.rows().next().unwrap();
+            let headed: Vec<u32> = first.cells.iter().map(|(c, _)| *c).collect();
+            shape_suspects(s, &first, &headed)
+        };
+        let [csv, held] = csv_both_ways("account,open_date\nA-1\nA-2,2026-01-01\nA-3,x,y\n");
+        assert_eq!(suspects(&csv), Some(vec![1, 3]));
+        assert_eq!(suspects(&held), None);
+        let [good, _] = csv_both_ways("account,open_date\nA-1,2026-01-01\n");
+        assert_eq!(suspects(&good), Some(vec![]));
+        let [gap, _] = csv_both_ways("account,,open_date\nA-1,y,2026-01-01\n");
+        assert_eq!(suspects(&gap), None);
     }
 
     #[test]
