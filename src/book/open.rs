@@ -10,7 +10,6 @@
 
 use std::fs::{self, File};
 use std::io::BufReader;
-use std::panic::{catch_unwind, AssertUnwindSafe};
 use std::path::Path;
 
 use calamine::{Ods, Xls};
@@ -68,13 +67,14 @@ pub(crate) fn load(path: &Path, book: &str) -> Loaded {
 /// reader cannot take apart (damaged, truncated) is the `Err`.
 fn read_workbook(path: &Path, book: &str, format: Format) -> Result<Loaded, Unreadable> {
     // calamine indexes into buffers of a malformed file in places; a panic
-    // there must become a problem about the file, not end the run.
-    let read = catch_unwind(AssertUnwindSafe(|| match format {
+    // there must become a problem about the file, not end the run, and
+    // print nothing of its own.
+    let read = crate::panics::quietly(|| match format {
         Format::Xlsx => xlsx::read(path, book),
         Format::Xlsb => workbook::read_xlsb(path, book),
         Format::Xls => workbook::read_parsed::<Xls<BufReader<File>>>(path, book),
         Format::Ods => workbook::read_parsed::<Ods<BufReader<File>>>(path, book),
-    }));
+    });
     match read {
         Ok(Ok(loaded)) => Ok(loaded),
         Ok(Err(message)) => Err(Unreadable {
