@@ -1,5 +1,5 @@
 //! Journal entries for a window: the interest to book and each posting's
-//! settlement, summed into GL lines (semantics section 7).
+//! settlement, summed into GL lines (behaviour.md, Cut-off figures).
 //!
 //! Pure: it turns computed figures into balanced lines and never decides an
 //! amount itself. Every entry it makes is balanced, so debits equal credits

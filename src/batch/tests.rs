@@ -88,7 +88,7 @@ fn settings() -> BatchSettings {
     }
 }
 
-/// Debits equal credits per currency (semantics section 7).
+/// Debits equal credits per currency (behaviour.md, Output workbook).
 #[test]
 fn journal_debits_equal_credits_per_currency() {
     for style in [JournalStyle::Incremental, JournalStyle::Reversing] {

@@ -1,6 +1,6 @@
 //! The Accounts sheet: one row per account, typed into the engine's
-//! [`AccountTerms`] with the defaults of books.md, and checked against the
-//! account's own dates, its rate schedules and its calendar.
+//! [`AccountTerms`] with the defaults of behaviour.md, Input books, and checked
+//! against the account's own dates, its rate schedules and its calendar.
 //!
 //! An account with any error is kept out (its problems name it); nothing is
 //! approximated: floating-rate terms that do not go together, or a floating
@@ -446,7 +446,7 @@ fn calendar_of(
     }
 }
 
-/// The floating-rate columns (semantics section 10); blank ones take the
+/// The floating-rate columns (behaviour.md, Floating rates); blank ones take the
 /// defaults of a fixed-rate account.
 fn floating_terms(f: &mut Fields<'_, '_, '_>) -> FloatingTerms {
     FloatingTerms {
@@ -1010,7 +1010,7 @@ mod tests {
         "observation_shift",
     ];
 
-    /// Section 10: a floating account reads its method, lookback and shift.
+    /// Floating rates: a floating account reads its method, lookback and shift.
     #[test]
     fn a_floating_account_reads_its_terms() {
         let (found, problems) = read_accounts(&[
@@ -1033,7 +1033,7 @@ mod tests {
         assert_eq!((fl.lookback_days, fl.observation_shift), (5, true));
     }
 
-    /// Section 10: an index without fixings is an error on the account, with
+    /// Floating rates: an index without fixings is an error on the account, with
     /// the near miss suggested; rates naming an index need a floating method;
     /// compounding in arrears needs ACT/360 or ACT/365F.
     #[test]

@@ -1,5 +1,5 @@
 //! The Fixings sheet: each index's fixings by the business day they apply
-//! to, for floating rates (semantics section 10).
+//! to, for floating rates (behaviour.md, Floating rates).
 //!
 //! `rate_percent` is divided by 100 exactly. An index with a bad row, or
 //! with two fixings for one date, is kept out (the accounts that use it get
@@ -193,7 +193,7 @@ mod tests {
         s.parse().unwrap()
     }
 
-    /// books.md, Fixings sheet: index, date, rate_percent; the percent
+    /// Input books, Fixings sheet: index, date, rate_percent; the percent
     /// becomes a decimal exactly.
     #[test]
     fn fixings_by_index_and_date() {
@@ -243,7 +243,7 @@ mod tests {
         assert_eq!(fx.fixings.keys().collect::<Vec<_>>(), ["HVM-6M"]);
     }
 
-    /// books.md, Fixings: one fixing per business day of the account's
+    /// Floating rates, Fixings: one fixing per business day of the account's
     /// calendar; a fixing on a holiday of it is a warning, once.
     #[test]
     fn a_fixing_on_a_holiday_is_a_warning() {

@@ -500,7 +500,7 @@ mod tests {
         assert_eq!(PERCENT_LOOKS_DECIMAL.to_string(), "0.2");
     }
 
-    /// books.md, Rates: a row may name an index with a spread in basis
+    /// Input books, Rates: a row may name an index with a spread in basis
     /// points, a floor and a cap in percent; fixed rows of the same rate_ref
     /// become fixed tiers of its floating schedule.
     #[test]
@@ -547,7 +547,7 @@ mod tests {
         );
     }
 
-    /// Section 10: a floor above the cap, a rate and an index on one row,
+    /// Floating rates: a floor above the cap, a rate and an index on one row,
     /// or a spread without an index are errors that spoil the schedule.
     #[test]
     fn floating_rows_that_cannot_be_used() {

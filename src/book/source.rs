@@ -25,7 +25,7 @@ pub(crate) enum SheetKind {
 }
 
 impl SheetKind {
-    /// Every sheet, in the order books.md lists them.
+    /// Every sheet, in the order behaviour.md, Input books lists them.
     pub(crate) const ALL: [SheetKind; 7] = [
         SheetKind::Accounts,
         SheetKind::Rates,
@@ -36,7 +36,7 @@ impl SheetKind {
         SheetKind::Settings,
     ];
 
-    /// The sheet's name as written in books.md.
+    /// The sheet's name as written in behaviour.md, Input books.
     pub(crate) fn label(self) -> &'static str {
         match self {
             SheetKind::Accounts => "Accounts",

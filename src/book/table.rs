@@ -21,7 +21,7 @@ use crate::problem::{a1, a1_row, column_letters, Position, Problem, Severity};
 /// A column a sheet may have.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub(crate) struct Column {
-    /// The name as books.md writes it.
+    /// The name as behaviour.md, Input books writes it.
     pub name: &'static str,
     /// Whether the sheet is unusable without it.
     pub required: bool,

@@ -6,7 +6,7 @@
 
 use super::names::{lookup, UnknownName};
 
-/// A compounding rule (semantics section 5).
+/// A compounding rule (behaviour.md, Daily interest and compounding).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub enum Compounding {
     /// Never, until a capitalising posting.
@@ -46,7 +46,7 @@ const SPELLINGS: &[(&str, Compounding)] = &[
 ];
 
 impl Compounding {
-    /// Every rule, in the order of semantics section 5.
+    /// Every rule, in the order of behaviour.md, Daily interest and compounding.
     pub const ALL: [Compounding; 8] = [
         Self::Simple,
         Self::Daily,

@@ -14,7 +14,7 @@ use super::names::{lookup, UnknownName};
 use super::ratio::Ratio;
 use super::schedule::roll_months;
 
-/// A day-count basis (semantics section 3).
+/// A day-count basis (behaviour.md, Day count).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Basis {
     /// Actual days / 360 (ISDA 4.16(e)).
@@ -81,7 +81,7 @@ const SPELLINGS: &[(&str, Basis)] = &[
 ];
 
 impl Basis {
-    /// Every basis, in the order of semantics section 3.
+    /// Every basis, in the order of behaviour.md, Day count.
     pub const ALL: [Basis; 11] = [
         Basis::Act360,
         Basis::Act365F,
@@ -464,7 +464,7 @@ impl DayFraction {
 }
 
 /// Everything needed to give each day of one posting period its fraction
-/// f(D) = DCF(P, D+1) - DCF(P, D) (semantics section 3).
+/// f(D) = DCF(P, D+1) - DCF(P, D) (behaviour.md, Day count).
 #[derive(Debug, Clone, Copy)]
 pub struct PeriodBasis<'a> {
     /// The basis.

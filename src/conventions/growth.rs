@@ -1,6 +1,7 @@
 //! Growth arithmetic for compounding: `e^x - 1`, fractional powers, the
-//! growth factor of a rate over a term, effective annual rates (semantics
-//! section 7) and the annual percentage yield of US Regulation DD Appendix A.
+//! growth factor of a rate over a term, effective annual rates
+//! (behaviour.md, Cut-off figures) and the annual percentage yield of US
+//! Regulation DD Appendix A.
 //!
 //! Everything is decimal ([`Decimal`]), good to about 26 significant digits,
 //! and never passes through binary floating point. The `_m1` forms return the
@@ -204,7 +205,7 @@ pub fn growth_factor(
 }
 
 /// The effective annual rate of nominal annual `rate` under compounding `c`
-/// (semantics section 7): `(1 + r/n)^n - 1` for the periodic rules (n = 365
+/// (behaviour.md, Cut-off figures): `(1 + r/n)^n - 1` for the periodic rules (n = 365
 /// for daily), `e^r - 1` for continuous, `r` itself for simple and
 /// annual-effective.
 ///
@@ -456,7 +457,7 @@ mod tests {
             let got = effective_annual_rate(c, r).unwrap();
             assert_eq!(got.round_dp(10), d(ear), "{c:?}");
         }
-        // Semantics section 7: the rate itself for simple and annual-effective.
+        // behaviour.md, Cut-off figures: the rate itself for simple and annual-effective.
         assert_eq!(effective_annual_rate(Simple, r).unwrap(), r);
         assert_eq!(effective_annual_rate(AnnualEffective, r).unwrap(), r);
     }

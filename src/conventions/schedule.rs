@@ -1,6 +1,6 @@
 //! Posting schedules: period ends rolled from an anchor, the end-of-month
 //! rule, stubs, maturity, and business-day adjustment of payment dates
-//! (semantics section 2).
+//! (behaviour.md, Posting schedule).
 //!
 //! Dates roll from the anchor itself by k x 1, 3, 6 or 12 months, never
 //! chained from the previous date. Periods are reported as their first and
@@ -399,7 +399,7 @@ impl ScheduleTerms {
 
     /// The last days of the compounding periods of `months` months in `from..=to`,
     /// rolled from the anchor unadjusted; a compounding end that falls on a
-    /// posting end moves with it (semantics section 2).
+    /// posting end moves with it (behaviour.md, Posting schedule).
     ///
     /// # Errors
     /// [`ScheduleError::DateRange`] for dates out of range.

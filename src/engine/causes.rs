@@ -1,8 +1,8 @@
-//! The likely cause of a variance (semantics section 9): re-run the account
+//! The likely cause of a variance (behaviour.md, Likely causes): re-run the account
 //! with one change at a time, from the state at the start of the period, and
 //! keep the changes that reproduce the posted amount within tolerance.
 //!
-//! Floating accounts (semantics section 10) also try the lookback mis-set by
+//! Floating accounts (behaviour.md, Floating rates) also try the lookback mis-set by
 //! up to two business days, the observation shift and the spread's
 //! compounding the other way, and a floor or cap not applied.
 //!
@@ -100,7 +100,7 @@ fn first_rate(t: &RateTable) -> Decimal {
     t.tiers.first().map_or(Decimal::ZERO, |x| x.rate)
 }
 
-/// The changes of semantics section 9, in the order of its list.
+/// The changes of behaviour.md, Likely causes, in the order of its list.
 fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
     let t = a.terms;
     let s = row.start;

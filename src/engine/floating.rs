@@ -1,4 +1,4 @@
-//! Floating rates (semantics section 10): rate tables whose tiers name an
+//! Floating rates (behaviour.md, Floating rates): rate tables whose tiers name an
 //! index, the fixings that fill them, and their resolution into the plain
 //! day-by-day rates the day loop accrues.
 //!

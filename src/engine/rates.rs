@@ -186,7 +186,7 @@ mod tests {
         }
     }
 
-    /// Semantics section 4: a base below the lowest threshold earns nothing.
+    /// Rates and tiers: a base below the lowest threshold earns nothing.
     #[test]
     fn below_the_lowest_threshold_earns_nothing() {
         let mut out = Vec::new();

@@ -1,6 +1,6 @@
-//! Statement reconciliation (semantics section 9): each statement period's
-//! expected interest, balance-years, variance in money and basis points, and
-//! status; and a "not posted" row for each posting the statements miss.
+//! Statement reconciliation (behaviour.md, Reconciliation): each statement
+//! period's expected interest, balance-years, variance in money and basis
+//! points, and status; and a "not posted" row for each posting the statements miss.
 //!
 //! Pure: works on an [`AccountResult`] computed with spans (or day rows),
 //! broken at the statement periods' boundaries. The search
@@ -41,7 +41,7 @@ impl Tolerance {
     }
 }
 
-/// The status of a statement row, first that applies (semantics section 9).
+/// The status of a statement row, first that applies (behaviour.md, Reconciliation).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Status {
     /// Something was posted for a period in which no day had a base.
@@ -418,8 +418,9 @@ mod tests {
         assert_eq!(row.balance_years, n("100000"));
     }
 
-    /// Section 6 and 9: a wrong posting feeds the balance as posted, so the
-    /// next period agrees instead of inheriting the error.
+    /// Postings and capitalisation with Reconciliation: a wrong posting feeds
+    /// the balance as posted, so the next period agrees instead of inheriting
+    /// the error.
     #[test]
     fn a_wrong_posting_does_not_turn_the_next_period_red() {
         let mut t = AccountTerms::new(
@@ -448,7 +449,7 @@ mod tests {
         assert_eq!(nov.status, Status::Agrees);
     }
 
-    /// Section 9: something posted for a period with no earning base.
+    /// Reconciliation: something posted for a period with no earning base.
     #[test]
     fn a_posting_without_any_base_is_unexpected() {
         let t = AccountTerms::new("G-4", "USD", 2, Basis::Act360, d("2026-11-01"), n("0"));
@@ -458,7 +459,8 @@ mod tests {
         assert_eq!(row.variance_bp, None);
     }
 
-    /// Section 9: a row may start before the account opened; those days earn nothing.
+    /// Reconciliation: a row may start before the account opened; those days earn
+    /// nothing.
     #[test]
     fn days_before_opening_earn_nothing() {
         let t = AccountTerms::new(

@@ -1,10 +1,10 @@
 //! The day loop: accrue one account night by night from its opening (or a
 //! saved period start) to the cut-off, posting at each period end.
 //!
-//! Semantics sections 1-8. Day D earns on the balance standing at its end;
-//! a movement valued V earns from V; a posting at the end of E capitalises
-//! from E+1. The loop keeps exact numerators ([`Accrual`]) and rounds only
-//! what is posted or reported.
+//! behaviour.md, Days and value dates to Brought-forward accounts. Day D earns
+//! on the balance standing at its end; a movement valued V earns from V; a
+//! posting at the end of E capitalises from E+1. The loop keeps exact
+//! numerators ([`Accrual`]) and rounds only what is posted or reported.
 
 use chrono::{Datelike, NaiveDate};
 use rust_decimal::Decimal;
@@ -22,7 +22,7 @@ use crate::conventions::schedule::{month_end, Period, PeriodKind, ScheduleTerms}
 /// What to compute besides the postings.
 #[derive(Debug, Clone, Copy)]
 pub struct RunOptions {
-    /// F: the first day of the window (semantics section 7).
+    /// F: the first day of the window (behaviour.md, Cut-off figures).
     pub window_start: NaiveDate,
     /// C: the cut-off, the last day computed.
     pub cutoff: NaiveDate,
@@ -145,7 +145,7 @@ pub struct AccrualState {
 }
 
 impl AccrualState {
-    /// The state at the start of `open_date` (semantics section 8).
+    /// The state at the start of `open_date` (behaviour.md, Brought-forward accounts).
     pub fn opening(terms: &AccountTerms) -> AccrualState {
         let a = terms.opening_accrued;
         AccrualState {
@@ -184,7 +184,7 @@ pub struct AccountResult {
     pub interest_for_window: Decimal,
     /// The rate in force at the cut-off, when the account earns on C.
     pub rate_at_cutoff: Option<Decimal>,
-    /// Its yield under the account's compounding (semantics section 7).
+    /// Its yield under the account's compounding (behaviour.md, Cut-off figures).
     pub effective_annual_rate: Option<Decimal>,
     /// The days computed, when asked for.
     pub days: Vec<DayRow>,
@@ -211,9 +211,9 @@ pub struct Sources<'a> {
     /// statement periods and the eves of their first days, so that spans sum
     /// exactly over each statement period.
     pub breaks: &'a [NaiveDate],
-    /// A floating account's tables and fixings (semantics section 10). When
-    /// given, the account's rates are resolved from them for each day of the
-    /// run and `rates` is not consulted; a fixed-rate account leaves it `None`.
+    /// A floating account's tables and fixings (behaviour.md, Floating rates).
+    /// When given, the account's rates are resolved from them for each day of
+    /// the run and `rates` is not consulted; a fixed-rate account leaves it `None`.
     pub floating: Option<FloatingRates<'a>>,
 }
 
@@ -891,7 +891,7 @@ impl<'a> Loop<'a> {
         Ok(Some(t))
     }
 
-    /// i(D) for `base` (semantics section 5), as an exact sum.
+    /// i(D) for `base` (behaviour.md, Daily interest and compounding), as an exact sum.
     fn interest(
         &mut self,
         base: Decimal,
@@ -970,7 +970,7 @@ impl<'a> Loop<'a> {
         a.value().map_err(overflow("the accrued interest", d))
     }
 
-    /// The posting at the end of period `p` (semantics section 6).
+    /// The posting at the end of period `p` (behaviour.md, Postings and capitalisation).
     fn post(&mut self, p: Period, d: NaiveDate) -> Result<PostingRow, EngineError> {
         let terms = self.terms;
         let round = |x: Decimal| terms.round_mode.round(x, terms.minor_units);

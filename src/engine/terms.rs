@@ -114,8 +114,8 @@ impl TierMethod {
     }
 }
 
-/// How an account's rate is found for each day (books.md, Accounts column
-/// `rate_method`).
+/// How an account's rate is found for each day (behaviour.md, Input books:
+/// Accounts column `rate_method`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub enum RateMethod {
     /// The Rates rows give the rate itself.
@@ -166,7 +166,8 @@ impl RateMethod {
     }
 }
 
-/// What a floor and a cap bound (books.md, Accounts column `floor_on`).
+/// What a floor and a cap bound (behaviour.md, Input books: Accounts column
+/// `floor_on`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub enum FloorOn {
     /// Each looked-back fixing, before the spread is added.
@@ -199,8 +200,8 @@ impl FloorOn {
     }
 }
 
-/// The floating-rate terms of an account (semantics section 10). The default
-/// is a fixed-rate account.
+/// The floating-rate terms of an account (behaviour.md, Floating rates). The
+/// default is a fixed-rate account.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub struct FloatingTerms {
     /// How the day's rate is found.
@@ -220,7 +221,7 @@ pub struct FloatingTerms {
     pub floor_on: FloorOn,
 }
 
-/// The terms of one account (books.md, Accounts sheet).
+/// The terms of one account (behaviour.md, Input books: the Accounts sheet).
 #[derive(Debug, Clone)]
 pub struct AccountTerms {
     /// The account id.
@@ -237,7 +238,7 @@ pub struct AccountTerms {
     pub compounding: Compounding,
     /// Posting frequency.
     pub posting: Posting,
-    /// Posting anchor; `None` takes the default of semantics section 2.
+    /// Posting anchor; `None` takes the default of behaviour.md, Posting schedule.
     pub anchor: Option<NaiveDate>,
     /// What the anchor is.
     pub anchor_kind: AnchorKind,
@@ -267,13 +268,15 @@ pub struct AccountTerms {
     pub opening_accrued: Decimal,
     /// Where the period open on `open_date` began, when before it.
     pub period_start: Option<NaiveDate>,
-    /// How the rate of each day is found (semantics section 10); fixed by default.
+    /// How the rate of each day is found (behaviour.md, Floating rates); fixed by
+    /// default.
     pub floating: FloatingTerms,
 }
 
 impl AccountTerms {
-    /// An account with the defaults of books.md: liability, simple, monthly
-    /// postings paid out, rounded at posting half-up, whole tiers, unadjusted.
+    /// An account with the defaults of behaviour.md, Input books: liability, simple,
+    /// monthly postings paid out, rounded at posting half-up, whole tiers,
+    /// unadjusted.
     ///
     /// ```
     /// use ledgerate::conventions::daycount::Basis;

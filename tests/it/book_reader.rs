@@ -1,4 +1,4 @@
-//! Reading account books (books.md): the Harbourview Mutual books, an
+//! Reading account books (behaviour.md, Input books): the Harbourview Mutual books, an
 //! invented credit union's, as real files in every supported form, and a
 //! broken book with one planted fault of each kind.
 //!

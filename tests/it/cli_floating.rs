@@ -1,8 +1,9 @@
-//! Floating-rate accounts as a user runs them (semantics section 10): a
+//! Floating-rate accounts as a user runs them (behaviour.md, Floating rates): a
 //! Harbourview Mutual book with a Fixings sheet of invented overnight
 //! fixings, `ledgerate run` with and without `--fixing-fallback last`, the
 //! workbook read back, and `explain` showing the fixing behind each day.
-//! Figures are worked out beside each check from the formula of section 10.
+//! Figures are worked out beside each check from the formula of that
+//! section.
 
 use std::collections::BTreeMap;
 use std::fs;
@@ -121,7 +122,7 @@ fn posted(path: &Path, account: &str) -> Decimal {
     }
 }
 
-/// Section 10: a missing fixing is an error naming the index and the date,
+/// Floating rates: a missing fixing is an error naming the index and the date,
 /// and keeps only that account out; a fixing on a holiday is a warning.
 #[test]
 fn a_missing_fixing_keeps_the_account_out_and_says_which() {
@@ -155,7 +156,7 @@ fn a_missing_fixing_keeps_the_account_out_and_says_which() {
     );
 }
 
-/// Section 10, compounded in arrears with a two-day lookback, and simple
+/// Floating rates, compounded in arrears with a two-day lookback, and simple
 /// daily with the last fixing standing in for 30 November: each posting is
 /// the formula's figure to the cent, and the stand-in is a warning.
 #[test]

@@ -12,10 +12,10 @@
 //! Day counts must agree exactly; ledgerate's exact fraction, as a decimal,
 //! must agree with the library's binary float to 1e-12 (relative above 1,
 //! absolute below). NL/365 pairs with a 29 February end point differ by
-//! design (semantics section 3: ledgerate drops the night of 29 February,
+//! design (behaviour.md, Day count: ledgerate drops the night of 29 February,
 //! the library the night of 28 February in leap years); they are left out
 //! of the comparison and counted, and each must differ by exactly one day
-//! per 29 February end point, as the spec says.
+//! per 29 February end point, as behaviour.md, Day count says.
 
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -250,7 +250,7 @@ fn compare(row: &Row, calendar: &Calendar) -> Option<String> {
     if row.left_out {
         // Differs by design: one day per 29 February end point, the library
         // counting one more night from a 29 February start and one fewer to
-        // a 29 February end (semantics section 3).
+        // a 29 February end (behaviour.md, Day count).
         let offset = i64::from(is_feb29(row.d1)) - i64::from(is_feb29(row.d2));
         return match days {
             Ok(n) if row.ql_days - n == offset => None,

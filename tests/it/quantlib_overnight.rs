@@ -1,5 +1,5 @@
 //! Overnight-rate coupons compared, one by one, with the answers of the
-//! reference library (semantics section 10).
+//! reference library (behaviour.md, Floating rates).
 //!
 //! Source: QuantLib 1.44 from PyPI, ql.OvernightIndexedCoupon on a ql.Sofr
 //! index. `tests/quantlib/overnight_vectors.py` draws random fixings on the
@@ -15,8 +15,8 @@
 //! unrounded interest / nominal x 360 / days, must agree with the library's
 //! to 1e-12; an accrued amount to 1e-6 (1e-12 of the nominal). Accrued
 //! amounts are drawn for unshifted coupons only: with an observation shift
-//! ledgerate earns the period's annualised rate on every day (semantics
-//! section 10), where the library compounds the observation days so far, so
+//! ledgerate earns the period's annualised rate on every day (behaviour.md,
+//! Floating rates), where the library compounds the observation days so far, so
 //! the two differ inside the period by design and agree at its end.
 
 use std::collections::BTreeMap;

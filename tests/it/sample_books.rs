@@ -140,7 +140,7 @@ fn the_book_reads_back_with_no_problem_and_the_generated_terms() {
 }
 
 /// What the Likely cause column says for each planted kind (the wording of
-/// the cause search, semantics section 9).
+/// the cause search, behaviour.md, Likely causes).
 fn named(mistake: &Mistake, cause: &str) -> bool {
     match mistake {
         Mistake::OtherBasis { used } => {

@@ -1,5 +1,5 @@
 //! Spec examples: the 25 worked examples of the behaviour contract
-//! (spec/examples.md, machine-readable copy in fixtures/spec_examples.json),
+//! (behaviour.md, Worked examples; every figure in fixtures/spec_examples.json),
 //! each run through the engine and compared figure by figure.
 //!
 //! These are the project's own conformance tests on invented accounts, not
@@ -38,7 +38,8 @@ fn examples() -> Vec<Value> {
         .clone()
 }
 
-/// The account of an example, with the defaults of books.md for unset fields.
+/// The account of an example, with the defaults of behaviour.md, Input books, for
+/// unset fields.
 fn terms(a: &Value) -> AccountTerms {
     let ccy = a["currency"].as_str().unwrap();
     let mut t = AccountTerms::new(

@@ -30,7 +30,7 @@ Output format (UTF-8, LF, tab-separated):
     note        "-", or "left-out:29-feb-end-point" for an NL/365 pair with a
                 29 February end point: the library zeroes the night of
                 28 February in leap years, ledgerate the night of 29 February
-                (semantics section 3), so those pairs differ by design and are
+                (behaviour.md, Day count), so those pairs differ by design and are
                 not compared
 """
 

@@ -140,7 +140,7 @@ def draw(seed: int, coupons: int) -> list[str]:
         accrued_date, accrued = "-", "-"
         # Accrued part-way: compared for unshifted coupons. With an
         # observation shift ledgerate earns the whole period's rate on each day
-        # (semantics section 10), the library the rate compounded so far.
+        # (behaviour.md, Floating rates), the library the rate compounded so far.
         if not shift:
             a = start + dt.timedelta(days=rng.randint(1, (end - start).days - 1))
             accrued_date = a.isoformat()

@@ -415,7 +415,7 @@ fn cross_convention_table() {
         assert_eq!(dec(Basis::Act360, a, e), a360, "ACT/360 {a} {e}");
         assert_eq!(dec(Basis::Act365F, a, e), a365, "ACT/365F {a} {e}");
         // The table's NL/365 drops a 29 February end point; ours drops only the
-        // night of 29 February (semantics section 3), so those pairs differ by design.
+        // night of 29 February (behaviour.md, Day count), so those pairs differ by design.
         if !e.ends_with("-02-29") {
             assert_eq!(dec(Basis::Nl365, a, e), nl, "NL/365 {a} {e}");
         }
@@ -438,7 +438,7 @@ fn cross_convention_table() {
     }
 }
 
-/// NL/365 (semantics section 3): the night of 29 February earns nothing, so a
+/// NL/365 (behaviour.md, Day count): the night of 29 February earns nothing, so a
 /// period ending on 29 February keeps the night of the 28th.
 #[test]
 fn nl_365_skips_only_the_night_of_29_february() {

@@ -493,7 +493,7 @@ fn floating_cause(c: &FloatingCase, terms: &AccountTerms, schedule: &FloatingSch
     likely_cause(&a, &rows[0], &tolerance)
 }
 
-/// Section 9 with section 10: a lookback mis-set by a business day is found.
+/// Likely causes with Floating rates: a lookback mis-set by a business day is found.
 #[test]
 fn a_floating_lookback_mis_set_is_found() {
     let c = floating_case();
@@ -506,7 +506,7 @@ fn a_floating_lookback_mis_set_is_found() {
     );
 }
 
-/// Section 9 with section 10: an observation shift applied by mistake is found.
+/// Likely causes with Floating rates: an observation shift applied by mistake is found.
 #[test]
 fn a_floating_observation_shift_is_found() {
     let c = floating_case();
@@ -519,7 +519,7 @@ fn a_floating_observation_shift_is_found() {
     );
 }
 
-/// Section 9 with section 10: the spread compounded instead of added after is found.
+/// Likely causes with Floating rates: the spread compounded instead of added after is found.
 #[test]
 fn a_floating_spread_compounded_is_found() {
     let c = floating_case();
@@ -532,7 +532,7 @@ fn a_floating_spread_compounded_is_found() {
     );
 }
 
-/// Section 9 with section 10: a floor left out is found.
+/// Likely causes with Floating rates: a floor left out is found.
 #[test]
 fn a_floating_floor_not_applied_is_found() {
     let c = floating_case();

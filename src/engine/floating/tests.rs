@@ -1,7 +1,7 @@
 //! Floating rates against the past-coupon cases of QuantLib's overnight
 //! coupon test-suite (figures as listed in the conventions reference,
-//! section 4.3), the computed daily factor table, and the rules of semantics
-//! section 10 that those cases do not pin.
+//! section 4.3), the computed daily factor table, and the rules of
+//! behaviour.md, Floating rates that those cases do not pin.
 
 use std::sync::Arc;
 
@@ -446,7 +446,7 @@ fn day_rate(r: &AccountResult, day: &str) -> Decimal {
     r.days.iter().find(|x| x.date == d(day)).unwrap().rate
 }
 
-/// Section 10: a floor bounds each looked-back fixing before the spread: a
+/// Floating rates: a floor bounds each looked-back fixing before the spread: a
 /// negative fixing floored at zero earns the spread alone.
 #[test]
 fn a_floor_at_zero_on_a_negative_fixing() {
@@ -481,7 +481,7 @@ fn a_floor_at_zero_on_a_negative_fixing() {
     assert_eq!(day_rate(&r, "2026-11-05"), n("0.0018"));
 }
 
-/// Section 10: a cap bounds the fixing before the spread.
+/// Floating rates: a cap bounds the fixing before the spread.
 #[test]
 fn a_cap_bounds_the_fixing() {
     let t = harbourview_loan(RateMethod::SimpleDaily);
@@ -496,7 +496,7 @@ fn a_cap_bounds_the_fixing() {
     assert_eq!(day_rate(&r, "2026-11-13"), n("0.0523"));
 }
 
-/// Section 10: a floor under compounding bounds each fixing before it
+/// Floating rates: a floor under compounding bounds each fixing before it
 /// compounds: the period equals the same period on the floored fixings.
 #[test]
 fn a_floor_under_compounding_bounds_each_fixing() {
@@ -527,7 +527,7 @@ fn a_floor_under_compounding_bounds_each_fixing() {
     assert_eq!(floored.days[0].fixing.as_ref().unwrap().rate, n("-0.0005"));
 }
 
-/// Section 10, simple-daily: a weekend day earns the Friday fixing, looked
+/// Floating rates, simple-daily: a weekend day earns the Friday fixing, looked
 /// back two business days.
 #[test]
 fn simple_daily_lookback_over_a_weekend() {
@@ -549,7 +549,7 @@ fn simple_daily_lookback_over_a_weekend() {
     assert_eq!(used("2026-11-09"), (d("2026-11-05"), n("0.0015")));
 }
 
-/// Section 10: a missing fixing is an error naming the index and the date;
+/// Floating rates: a missing fixing is an error naming the index and the date;
 /// with the `last` fallback the last published fixing stands in, and the
 /// substitution is reported.
 #[test]
@@ -602,7 +602,7 @@ fn a_missing_fixing_names_the_index_and_date() {
     );
 }
 
-/// Section 10: compounded-in-arrears is computed on ACT/360 and ACT/365F
+/// Floating rates: compounded-in-arrears is computed on ACT/360 and ACT/365F
 /// only; any other basis is an error that names it.
 #[test]
 fn compounding_on_another_basis_is_an_error_naming_it() {
@@ -659,7 +659,7 @@ fn compounding_a_period_equals_the_ratio_of_an_index() {
     assert_close(r.postings[0].interest, &from_index.to_string(), "1e-22");
 }
 
-/// Section 10: when the base changes inside the period each day earns its
+/// Floating rates: when the base changes inside the period each day earns its
 /// own base times the factor's increase over the day, so a deposit on a
 /// business day splits the period's interest at that day's factor.
 #[test]
@@ -694,7 +694,7 @@ fn a_base_change_inside_the_period_splits_at_the_factor() {
     assert_close(r.postings[0].interest, &want.to_string(), "1e-8");
 }
 
-/// Section 10: a period that starts on a non-business day takes the
+/// Floating rates: a period that starts on a non-business day takes the
 /// preceding business day's fixing up to the first business day.
 #[test]
 fn a_period_starting_on_a_holiday_uses_the_preceding_fixing() {

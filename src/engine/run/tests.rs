@@ -1,5 +1,5 @@
-//! The rules of semantics sections 1-8 that the spec examples do not pin,
-//! one test per rule, named for it.
+//! The rules of behaviour.md, Days and value dates to Brought-forward accounts,
+//! that the spec examples do not pin, one test per rule, named for it.
 
 use std::sync::Arc;
 
@@ -65,10 +65,10 @@ fn mv(value: &str, amount: &str, booking: Option<&str>) -> Movement {
     }
 }
 
-/// Section 1: the night of M-1 is the last that earns; a maturity of 1 Dec
+/// Days and value dates: the night of M-1 is the last that earns; a maturity of 1 Dec
 /// makes 30 Nov the last earning day.
 #[test]
-fn section_1_the_night_before_maturity_is_the_last() {
+fn days_the_night_before_maturity_is_the_last() {
     let mut t = account(Basis::Act360, "2026-11-01", "36000");
     t.maturity = Some(d("2026-12-01"));
     let r = run_with(&t, &flat("0.10"), &[], opts("2026-12-01", "2026-12-31"));
@@ -78,10 +78,10 @@ fn section_1_the_night_before_maturity_is_the_last() {
     assert_eq!(r.postings[0].posted, n("300.00"));
 }
 
-/// Section 1: the cut-off only stops the computation; a period ending after it
+/// Days and value dates: the cut-off only stops the computation; a period ending after it
 /// is accrued, not posted.
 #[test]
-fn section_1_the_cutoff_never_moves_a_posting() {
+fn days_the_cutoff_never_moves_a_posting() {
     let t = account(Basis::Act360, "2026-11-01", "36000");
     let r = run_with(&t, &flat("0.10"), &[], opts("2026-11-01", "2026-11-15"));
     assert!(r.postings.is_empty());
@@ -89,10 +89,10 @@ fn section_1_the_cutoff_never_moves_a_posting() {
     assert_eq!(r.interest_for_window, n("150.00"));
 }
 
-/// Section 2: with a business-day convention only the payment date moves,
+/// Posting schedule: with a business-day convention only the payment date moves,
 /// and the period ends the day before it.
 #[test]
-fn section_2_an_adjusted_payment_date_moves_the_period_end() {
+fn schedule_an_adjusted_payment_date_moves_the_period_end() {
     let mut t = account(Basis::Act360, "2026-07-01", "36000");
     t.business_day = BusinessDay::Following;
     t.anchor = Some(d("2026-01-31"));
@@ -106,9 +106,9 @@ fn section_2_an_adjusted_payment_date_moves_the_period_end() {
     assert_eq!(r.postings[0].posted, n("330.00"));
 }
 
-/// Section 2: a defaulted anchor is the last day of the opening month.
+/// Posting schedule: a defaulted anchor is the last day of the opening month.
 #[test]
-fn section_2_the_default_anchor_is_the_end_of_the_opening_month() {
+fn schedule_the_default_anchor_is_the_end_of_the_opening_month() {
     let mut t = account(Basis::Act365F, "2026-08-10", "36500");
     t.posting = Posting::Quarterly;
     let r = run_with(&t, &flat("0.10"), &[], opts("2026-11-01", "2026-11-30"));
@@ -117,9 +117,9 @@ fn section_2_the_default_anchor_is_the_end_of_the_opening_month() {
     assert_eq!(r.postings[1].end, d("2026-11-30"));
 }
 
-/// Section 2: payment anchors end each period the day before the payment date.
+/// Posting schedule: payment anchors end each period the day before the payment date.
 #[test]
-fn section_2_payment_anchor() {
+fn schedule_payment_anchor() {
     let mut t = account(Basis::Act360, "2026-10-10", "36000");
     t.anchor = Some(d("2026-01-10"));
     t.anchor_kind = AnchorKind::Payment;
@@ -131,9 +131,9 @@ fn section_2_payment_anchor() {
     assert_eq!(r.postings[0].payment, d("2026-11-10"));
 }
 
-/// Section 2: posting none accrues and never posts.
+/// Posting schedule: posting none accrues and never posts.
 #[test]
-fn section_2_posting_none_only_accrues() {
+fn schedule_posting_none_only_accrues() {
     let mut t = account(Basis::Act360, "2026-10-01", "36000");
     t.posting = Posting::None;
     let r = run_with(&t, &flat("0.10"), &[], opts("2026-11-01", "2026-11-30"));
@@ -143,9 +143,9 @@ fn section_2_posting_none_only_accrues() {
     assert_eq!(r.interest_for_window, n("300.00"));
 }
 
-/// Section 2: the payment delay moves the payment date, not the period.
+/// Posting schedule: the payment delay moves the payment date, not the period.
 #[test]
-fn section_2_payment_delay_counts_business_days() {
+fn schedule_payment_delay_counts_business_days() {
     let mut t = account(Basis::Act360, "2026-11-01", "36000");
     t.payment_delay_days = 2;
     let r = run_with(&t, &flat("0.10"), &[], opts("2026-11-01", "2026-11-30"));
@@ -154,9 +154,9 @@ fn section_2_payment_delay_counts_business_days() {
     assert_eq!(r.postings[0].payment, d("2026-12-03"));
 }
 
-/// Section 3: BUS/252 earns 1/252 on business days only.
+/// Day count: BUS/252 earns 1/252 on business days only.
 #[test]
-fn section_3_bus_252_earns_on_business_days() {
+fn daycount_bus_252_earns_on_business_days() {
     let mut t = account(Basis::Bus252, "2026-11-01", "25200");
     t.calendar = Arc::new(Calendar::new("X", [d("2026-11-26")]));
     let r = run_with(&t, &flat("0.10"), &[], opts("2026-11-01", "2026-11-30"));
@@ -166,10 +166,10 @@ fn section_3_bus_252_earns_on_business_days() {
     assert_eq!(weekend.fraction.num, 0);
 }
 
-/// Section 3: ACT/ACT ICMA gives a regular quarter exactly 1/4, and a front
+/// Day count: ACT/ACT ICMA gives a regular quarter exactly 1/4, and a front
 /// stub its share of the reference quarter.
 #[test]
-fn section_3_act_act_icma_regular_and_stub() {
+fn daycount_act_act_icma_regular_and_stub() {
     let mut t = account(Basis::ActActIcma, "2026-08-16", "100000");
     t.posting = Posting::Quarterly;
     t.anchor = Some(d("2026-03-31"));
@@ -194,19 +194,19 @@ fn section_3_act_act_icma_regular_and_stub() {
     ));
 }
 
-/// Section 3: ACT/365L divides by 366 for every day of a period whose end
+/// Day count: ACT/365L divides by 366 for every day of a period whose end
 /// falls in a leap year, here a December period ending 1 Jan 2028.
 #[test]
-fn section_3_act_365l_follows_the_period_end_year() {
+fn daycount_act_365l_follows_the_period_end_year() {
     let t = account(Basis::Act365L, "2027-12-01", "36600");
     let r = run_with(&t, &flat("0.10"), &[], opts("2027-12-01", "2027-12-31"));
     assert_eq!(r.days[0].fraction.den, 366);
     assert_eq!(r.postings[0].posted, n("310.00"));
 }
 
-/// Section 4: a day with no rate table is an error, not a zero.
+/// Rates and tiers: a day with no rate table is an error, not a zero.
 #[test]
-fn section_4_a_day_without_rates_is_an_error() {
+fn rates_a_day_without_rates_is_an_error() {
     let t = account(Basis::Act360, "2026-11-01", "1000");
     let late = RateSchedule::from_rows([(d("2026-11-10"), n("0.03"), Decimal::ZERO)]);
     let src = Sources {
@@ -231,9 +231,9 @@ fn section_4_a_day_without_rates_is_an_error() {
     );
 }
 
-/// Section 4: an opposite-sign base earns the debit rate, with its sign.
+/// Rates and tiers: an opposite-sign base earns the debit rate, with its sign.
 #[test]
-fn section_4_a_debit_rate_applies_to_an_overdrawn_base() {
+fn rates_a_debit_rate_applies_to_an_overdrawn_base() {
     let t = account(Basis::Act360, "2026-11-01", "-36000");
     let credit = flat("0.01");
     let debit = flat("0.12");
@@ -249,9 +249,9 @@ fn section_4_a_debit_rate_applies_to_an_overdrawn_base() {
     assert_eq!(r.postings[0].posted, n("-360.00"));
 }
 
-/// Section 5: daily rounding defaults to the currency's minor unit.
+/// Rounding and exactness: daily rounding defaults to the currency's minor unit.
 #[test]
-fn section_5_daily_rounding_defaults_to_the_minor_unit() {
+fn rounding_daily_defaults_to_the_minor_unit() {
     let mut t = account(Basis::Act365F, "2026-11-01", "1000.00");
     t.round_at = RoundAt::Daily;
     let r = run_with(&t, &flat("0.05"), &[], opts("2026-11-01", "2026-11-30"));
@@ -260,10 +260,10 @@ fn section_5_daily_rounding_defaults_to_the_minor_unit() {
     assert_eq!(r.postings[0].posted, n("4.20"));
 }
 
-/// Section 5: monthly compounding adds the month's interest to the base from
-/// the next day, unrounded.
+/// Daily interest and compounding: monthly compounding adds the month's
+/// interest to the base from the next day, unrounded.
 #[test]
-fn section_5_periodic_compounding_joins_at_the_period_end() {
+fn compounding_periodic_interest_joins_at_the_period_end() {
     let mut t = account(Basis::Act365F, "2026-10-01", "36500");
     t.compounding = crate::conventions::compounding::Compounding::Monthly;
     t.posting = Posting::Quarterly;
@@ -276,10 +276,11 @@ fn section_5_periodic_compounding_joins_at_the_period_end() {
     assert_eq!(nov1.base, n("36810"));
 }
 
-/// Section 6: a statement amount for exactly a posting period replaces the
-/// expected amount in the balance, so one wrong posting does not spill over.
+/// Postings and capitalisation: a statement amount for exactly a posting
+/// period replaces the expected amount in the balance, so one wrong posting
+/// does not spill over.
 #[test]
-fn section_6_the_actual_posting_feeds_capitalisation() {
+fn postings_the_actual_posting_feeds_capitalisation() {
     let mut t = account(Basis::Act360, "2026-10-01", "36000");
     t.capitalise = true;
     let rates = flat("0.10");
@@ -304,11 +305,11 @@ fn section_6_the_actual_posting_feeds_capitalisation() {
     assert_eq!(r.balance_at_cutoff, n("36703.33"));
 }
 
-/// Section 6: a movement booked after its period posted leaves that posting
-/// as it was; the interest it earned there joins the first posting after its
-/// booking date as a separate adjustment.
+/// Postings and capitalisation: a movement booked after its period posted
+/// leaves that posting as it was; the interest it earned there joins the
+/// first posting after its booking date as a separate adjustment.
 #[test]
-fn section_6_back_valuation_is_added_to_the_next_posting() {
+fn postings_back_valuation_is_added_to_the_next_posting() {
     let t = account(Basis::Act360, "2026-10-01", "36000");
     let moves = [mv("2026-10-22", "3600", Some("2026-11-05"))];
     let r = run_with(&t, &flat("0.10"), &moves, opts("2026-11-01", "2026-11-30"));
@@ -324,9 +325,9 @@ fn section_6_back_valuation_is_added_to_the_next_posting() {
     assert_eq!(oct22.balance, n("39600"));
 }
 
-/// Section 7: the effective annual rate of the rate in force at cut-off.
+/// Cut-off figures: the effective annual rate of the rate in force at cut-off.
 #[test]
-fn section_7_effective_annual_rate() {
+fn cutoff_effective_annual_rate() {
     let mut t = account(Basis::Act365F, "2026-11-01", "1000");
     t.compounding = crate::conventions::compounding::Compounding::Quarterly;
     let r = run_with(&t, &flat("0.05"), &[], opts("2026-11-01", "2026-11-30"));
@@ -338,10 +339,11 @@ fn section_7_effective_annual_rate() {
     );
 }
 
-/// Section 8: under periodic compounding the opening accrued joins the base
-/// at the next compounding end, and posts with the first period.
+/// Brought-forward accounts: under periodic compounding the opening accrued
+/// joins the base at the next compounding end, and posts with the first
+/// period.
 #[test]
-fn section_8_opening_accrued_under_periodic_compounding() {
+fn brought_forward_opening_accrued_under_periodic_compounding() {
     let mut t = account(Basis::Act365F, "2026-11-16", "36500");
     t.compounding = crate::conventions::compounding::Compounding::Monthly;
     t.posting = Posting::Quarterly;
@@ -445,7 +447,7 @@ fn a_date() -> impl Strategy<Value = NaiveDate> {
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(300))]
 
-    /// Section 3 law: the day fractions of a period add up exactly to the
+    /// Day count law: the day fractions of a period add up exactly to the
     /// period's fraction DCF(P, E+1), for every basis.
     #[test]
     fn day_fractions_sum_to_the_period_fraction(basis in every_basis(), start in a_date(), len in 1i64..400) {
@@ -675,8 +677,8 @@ proptest! {
     }
 }
 
-/// A random floating account (semantics section 10) with invented fixings on
-/// every business day around its life, for the fast-path law.
+/// A random floating account (behaviour.md, Floating rates) with invented fixings
+/// on every business day around its life, for the fast-path law.
 #[allow(clippy::type_complexity)]
 fn any_floating_account() -> impl Strategy<
     Value = (
