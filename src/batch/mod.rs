@@ -277,11 +277,11 @@ fn outcome(entry: &AccountEntry, run: AccountRun, options: &Options) -> Outcome 
     let r = run.result;
     let reconciliation = run
         .rows
-        .iter()
+        .into_iter()
         .map(|c| {
             (
                 c.row.status,
-                reconciliation_line(entry, &c.row, c.likely_cause.as_deref()),
+                reconciliation_line(entry, &c.row, c.likely_cause),
             )
         })
         .collect();
@@ -341,7 +341,7 @@ fn statements_by_account(book: &Book) -> HashMap<&str, Vec<&StatementRow>> {
 fn reconciliation_line(
     entry: &AccountEntry,
     row: &Reconciled,
-    likely_cause: Option<&str>,
+    likely_cause: Option<String>,
 ) -> ReconciliationLine {
     let t = &entry.terms;
     let cause = match row.status {
@@ -350,7 +350,7 @@ fn reconciliation_line(
         Status::UnexpectedPosting => {
             "no day of the period had a balance earning interest".to_string()
         }
-        Status::OverPosted | Status::UnderPosted => likely_cause.unwrap_or_default().to_string(),
+        Status::OverPosted | Status::UnderPosted => likely_cause.unwrap_or_default(),
     };
     ReconciliationLine {
         account: t.id.clone(),
