@@ -21,9 +21,9 @@ use chrono::NaiveDate;
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion, Throughput};
 use ledgerate::conventions::compounding::Compounding;
 use ledgerate::conventions::daycount::Basis;
-use ledgerate::engine::rates::{RateSchedule, RateSource};
-use ledgerate::engine::run::{accrue, RunOptions, Sources};
-use ledgerate::engine::{AccountTerms, Movement, TierMethod};
+use ledgerate::engine::rates::RateSchedule;
+use ledgerate::engine::run::{accrue, RunOptions};
+use ledgerate::engine::{AccountTerms, Inputs, Movement, TierMethod};
 use rust_decimal::Decimal;
 
 /// Accounts in one measured batch.
@@ -180,8 +180,8 @@ fn batch(c: &Case) -> Batch {
 fn run(b: &Batch, options: RunOptions) -> Decimal {
     let mut total = Decimal::ZERO;
     for ((t, m), r) in b.terms.iter().zip(&b.movements).zip(&b.rates) {
-        let sources = Sources {
-            rates: r as &dyn RateSource,
+        let sources = Inputs {
+            rates: r,
             debit_rates: None,
             movements: m,
             actual: &[],

@@ -11,10 +11,10 @@ use chrono::{Datelike, NaiveDate};
 use ledgerate::book::{read_book, ReadOptions};
 use ledgerate::conventions::daycount::Basis;
 use ledgerate::engine::floating::{FixingFallback, FloatingRates};
-use ledgerate::engine::rates::{RateSchedule, RateSource, RateTable};
+use ledgerate::engine::rates::{RateSchedule, RateTable};
 use ledgerate::engine::reconcile::expected_over;
-use ledgerate::engine::run::{accrue, RunOptions, Sources};
-use ledgerate::engine::{AccountTerms, Movement};
+use ledgerate::engine::run::{accrue, RunOptions};
+use ledgerate::engine::{AccountTerms, Inputs, Movement};
 use rust_decimal::Decimal;
 use rust_xlsxwriter::{Format, Workbook};
 
@@ -729,11 +729,10 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
         let debit = entry
             .debit_rate_ref
             .as_ref()
-            .and_then(|r| book.rates.get(r))
-            .map(|r| r as &dyn RateSource);
+            .and_then(|r| book.rates.get(r));
         let movements = book.movements.get(id).cloned().unwrap_or_default();
         let run = |t: &AccountTerms, r: &RateSchedule, m: &[Movement]| {
-            let src = Sources {
+            let src = Inputs {
                 rates: r,
                 debit_rates: debit,
                 movements: m,

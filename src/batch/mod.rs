@@ -15,13 +15,10 @@ use rayon::prelude::*;
 use rust_decimal::Decimal;
 
 use crate::book::{AccountEntry, Book, StatementRow};
-use crate::engine::causes::{likely_cause, Account};
-use crate::engine::floating::{FixingFallback, FixingWarning, FloatingRates};
-use crate::engine::rates::RateSource;
-use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, Tolerance};
-use crate::engine::run::{accrue, AccountResult, RunOptions, Sources};
-use crate::engine::{ActualPosting, EngineError};
-use crate::problem::{Position, Problem, Severity};
+use crate::engine::floating::FixingFallback;
+use crate::engine::reconcile::{Reconciled, Status, Tolerance};
+use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
+use crate::problem::{Problem, Severity};
 use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount, Word,
 };
@@ -119,12 +116,12 @@ pub fn run_books(
     settings: &BatchSettings,
     tick: &(dyn Fn() + Sync),
 ) -> BatchResult {
-    let options = RunOptions {
+    let options = Options {
         window_start: settings.window_start,
         cutoff: settings.cutoff,
+        tolerance: settings.tolerance,
+        fixing_fallback: settings.fixing_fallback,
         keep_days: settings.daily,
-        keep_states: false,
-        keep_spans: false,
         fast_path: settings.fast_path,
     };
     // Each account's statement rows, found once per book rather than per account.
@@ -170,9 +167,7 @@ pub fn run_books(
                     entry,
                     rows.get(entry.terms.id.as_str())
                         .map_or(&[][..], Vec::as_slice),
-                    options,
-                    &settings.tolerance,
-                    settings.fixing_fallback,
+                    &options,
                 );
                 tick();
                 r
@@ -262,106 +257,31 @@ fn left_out_accounts(book: &Book, shard: Option<(u32, u32)>) -> usize {
     ids.len()
 }
 
-/// Amounts actually posted by an account's statement rows, summed per
-/// period (rows for the same period are one posting: a correction and its
-/// reversal, say), in period order.
-fn actual_postings(rows: &[&StatementRow]) -> Vec<ActualPosting> {
-    let mut sums: BTreeMap<(NaiveDate, NaiveDate), Decimal> = BTreeMap::new();
-    for s in rows {
-        *sums.entry((s.period_start, s.period_end)).or_default() += s.posted;
-    }
-    sums.into_iter()
-        .map(|((start, end), amount)| ActualPosting { start, end, amount })
-        .collect()
-}
-
+/// One account through the pipeline, turned into the batch's rows.
 fn accrue_one(
     book: &Book,
     entry: &AccountEntry,
     statements: &[&StatementRow],
-    options: RunOptions,
-    tolerance: &Tolerance,
-    fallback: FixingFallback,
+    options: &Options,
 ) -> Result<Outcome, Box<Problem>> {
+    let account = BookAccount::from_book(book, entry, statements);
+    let run = run_account(&account, options).map_err(|f| Box::new(f.problem))?;
+    Ok(outcome(entry, run, options))
+}
+
+/// The rows of an account computed: its accrual line, the postings of the
+/// window for the journal, its day lines when kept, its reconciliation
+/// lines and its notes.
+fn outcome(entry: &AccountEntry, run: AccountRun, options: &Options) -> Outcome {
     let t = &entry.terms;
-    let actual = actual_postings(statements);
-    let (periods, notes) = statement_periods(statements, entry, options.cutoff);
-    // Reconciliation sums spans of days broken at each statement period's
-    // ends; states let the cause search re-run a period.
-    let keep_daily = options.keep_days;
-    let options = RunOptions {
-        keep_spans: !periods.is_empty(),
-        keep_states: !periods.is_empty(),
-        ..options
-    };
-    let breaks: Vec<NaiveDate> = periods
-        .iter()
-        .flat_map(|p| [p.start.pred_opt(), Some(p.end)])
-        .flatten()
-        .collect();
-    let problem = |e: &EngineError| engine_problem(entry, e);
-    let floating_schedule = book.floating_rates.get(&entry.rate_ref);
-    let empty = crate::engine::rates::RateSchedule::default();
-    let rates = match (book.rates.get(&entry.rate_ref), &floating_schedule) {
-        (_, Some(_)) => &empty,
-        (Some(r), None) => r,
-        (None, None) => {
-            return Err(problem(&EngineError::Unsupported(format!(
-                "no Rates rows for rate_ref '{}'",
-                entry.rate_ref
-            ))))
-        }
-    };
-    let floating = floating_schedule.as_ref().map(|s| FloatingRates {
-        schedule: s,
-        fixings: &book.fixings,
-        fallback,
-    });
-    let debit = match &entry.debit_rate_ref {
-        Some(r) => Some(book.rates.get(r).ok_or_else(|| {
-            problem(&EngineError::Unsupported(format!(
-                "no Rates rows for debit_rate_ref '{r}'"
-            )))
-        })? as &dyn RateSource),
-        None => None,
-    };
-    let movements = book.movements.get(&t.id).map_or(&[][..], Vec::as_slice);
-    let sources = Sources {
-        rates,
-        debit_rates: debit,
-        movements,
-        actual: &actual,
-        breaks: &breaks,
-        floating,
-    };
-    let r: AccountResult = accrue(t, sources, options).map_err(|e| problem(&e))?;
-    let rows = reconcile(
-        t,
-        &r,
-        &periods,
-        options.window_start,
-        options.cutoff,
-        tolerance,
-    )
-    .map_err(|e| problem(&e))?;
-    let account = Account {
-        terms: t,
-        rates,
-        debit_rates: entry
-            .debit_rate_ref
-            .as_ref()
-            .and_then(|d| book.rates.get(d)),
-        movements,
-        actual: sources.actual,
-        states: &r.states,
-        floating,
-    };
-    let reconciliation = rows
-        .iter()
-        .map(|row| {
+    let r = run.result;
+    let reconciliation = run
+        .rows
+        .into_iter()
+        .map(|c| {
             (
-                row.status,
-                reconciliation_line(entry, &account, row, tolerance),
+                c.row.status,
+                reconciliation_line(entry, &c.row, c.likely_cause),
             )
         })
         .collect();
@@ -374,7 +294,7 @@ fn accrue_one(
     let daily = r
         .days
         .iter()
-        .filter(|_| keep_daily)
+        .filter(|_| options.keep_days)
         .map(|d| DailyLine {
             account: t.id.clone(),
             minor_units: t.minor_units,
@@ -387,9 +307,7 @@ fn accrue_one(
             accrued: d.accrued,
         })
         .collect();
-    let mut notes = notes;
-    notes.extend(fixing_warnings(entry, &r.fixing_warnings));
-    Ok(Outcome {
+    Outcome {
         line: AccrualLine {
             account: t.id.clone(),
             name: entry.name.clone(),
@@ -407,44 +325,11 @@ fn accrue_one(
         postings,
         daily,
         reconciliation,
-        notes,
-    })
-}
-
-/// One warning per index for the missing fixings the `last` fallback
-/// replaced, naming the dates and the fixings used.
-fn fixing_warnings(entry: &AccountEntry, warnings: &[FixingWarning]) -> Vec<Problem> {
-    let mut by_index: BTreeMap<&str, Vec<&FixingWarning>> = BTreeMap::new();
-    for w in warnings {
-        by_index.entry(w.index.as_str()).or_default().push(w);
+        notes: run.notes,
     }
-    by_index
-        .into_iter()
-        .map(|(index, ws)| {
-            let dates: Vec<String> = ws
-                .iter()
-                .map(|w| format!("{} (used {})", w.date, w.used))
-                .collect();
-            Problem {
-                severity: Severity::Warning,
-                position: entry.position.clone(),
-                account: Some(entry.terms.id.clone()),
-                found: format!(
-                    "account {}: {} missing {index} fixing{}: {}",
-                    entry.terms.id,
-                    ws.len(),
-                    if ws.len() == 1 { "" } else { "s" },
-                    dates.join(", ")
-                ),
-                expected: format!("a {index} fixing for every business day the account needs"),
-                fix: format!("the last published {index} fixing stood in (--fixing-fallback last): add the fixings to the Fixings sheet and run again for final figures"),
-            }
-        })
-        .collect()
 }
 
-/// The account's statement rows grouped by period (rows with the same
-/// period are one posting), leaving out rows that end after the cut-off.
+/// A book's statement rows by account, each account's in sheet order.
 fn statements_by_account(book: &Book) -> HashMap<&str, Vec<&StatementRow>> {
     let mut out: HashMap<&str, Vec<&StatementRow>> = HashMap::new();
     for s in &book.statements {
@@ -453,61 +338,10 @@ fn statements_by_account(book: &Book) -> HashMap<&str, Vec<&StatementRow>> {
     out
 }
 
-fn statement_periods(
-    statements: &[&StatementRow],
-    entry: &AccountEntry,
-    cutoff: NaiveDate,
-) -> (Vec<StatementPeriod>, Vec<Problem>) {
-    let mut groups: BTreeMap<(NaiveDate, NaiveDate), (Decimal, Vec<&StatementRow>)> =
-        BTreeMap::new();
-    let mut notes = Vec::new();
-    for &s in statements {
-        if s.period_end > cutoff {
-            notes.push(Problem {
-                severity: Severity::Warning,
-                position: s.position.clone(),
-                account: Some(s.account.clone()),
-                found: format!(
-                    "a statement period {}..{} ending after the cut-off {cutoff}",
-                    s.period_start, s.period_end
-                ),
-                expected: "statement periods that end on or before the cut-off".to_string(),
-                fix: "run with a later --cutoff to reconcile it; this row is not reconciled"
-                    .to_string(),
-            });
-            continue;
-        }
-        let g = groups
-            .entry((s.period_start, s.period_end))
-            .or_insert((Decimal::ZERO, Vec::new()));
-        g.0 += s.posted;
-        g.1.push(s);
-    }
-    let periods = groups
-        .into_iter()
-        .map(|((start, end), (posted, rows))| {
-            if rows.len() > 1 {
-                let first: Position = rows.first().map(|r| r.position.clone()).unwrap_or_default();
-                notes.push(Problem {
-                    severity: Severity::Note,
-                    position: first,
-                    account: Some(entry.terms.id.clone()),
-                    found: format!("{} statement rows for {start}..{end}", rows.len()),
-                    expected: "one row per posting period".to_string(),
-                    fix: format!("they are summed into one posting of {posted} (a correction and its reversal, say)"),
-                });
-            }
-            StatementPeriod { start, end, posted, rows: rows.len() }
-        })
-        .collect();
-    (periods, notes)
-}
-
 fn reconciliation_line(
     entry: &AccountEntry,
-    account: &Account,
     row: &Reconciled,
-    tolerance: &Tolerance,
+    likely_cause: Option<String>,
 ) -> ReconciliationLine {
     let t = &entry.terms;
     let cause = match row.status {
@@ -516,7 +350,7 @@ fn reconciliation_line(
         Status::UnexpectedPosting => {
             "no day of the period had a balance earning interest".to_string()
         }
-        Status::OverPosted | Status::UnderPosted => likely_cause(account, row, tolerance),
+        Status::OverPosted | Status::UnderPosted => likely_cause.unwrap_or_default(),
     };
     ReconciliationLine {
         account: t.id.clone(),
@@ -542,49 +376,6 @@ fn currency_word(code: &str) -> Word {
         Some(c) if c.code == code => Word::Borrowed(c.code),
         _ => Word::Owned(code.to_string()),
     }
-}
-
-/// An engine error as a problem on the account's row, with a fix.
-fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Box<Problem> {
-    let (expected, fix) = match e {
-        EngineError::NoRate { date, .. } => (
-            format!("a rate in force on {date}"),
-            format!(
-                "add a Rates row for rate_ref '{}' effective on or before {date}, or move the account's open_date",
-                entry.rate_ref
-            ),
-        ),
-        EngineError::Overflow { .. } => (
-            "figures within the exact decimal range (28 significant digits)".to_string(),
-            "check the balance, movements and rates of this account for a typing error".to_string(),
-        ),
-        EngineError::Unsupported(_) => (
-            "terms the engine supports".to_string(),
-            "change the account's terms; see docs/user-guide.md for the supported combinations".to_string(),
-        ),
-        EngineError::MissingFixing { index, date } => (
-            format!("a {index} fixing for {date} on the Fixings sheet"),
-            format!("add the {index} fixing for {date} to the Fixings sheet, or run with --fixing-fallback last to use the last one published"),
-        ),
-        EngineError::DayCount(_) | EngineError::Schedule(_) => (
-            "terms the basis and schedule need".to_string(),
-            "give the missing term on the account's row".to_string(),
-        ),
-        EngineError::Growth(_) => (
-            "a rate and term that compounding can compute".to_string(),
-            "check the rate for a typing error".to_string(),
-        ),
-        EngineError::BadState(_) => ("a period start".to_string(), "report this as a defect".to_string()),
-        EngineError::UnbrokenSpan(_) => ("runs of days that end at every statement boundary".to_string(), "report this as a defect; --no-fast-path computes the account day by day".to_string()),
-    };
-    Box::new(Problem {
-        severity: Severity::Error,
-        position: entry.position.clone(),
-        account: Some(entry.terms.id.clone()),
-        found: format!("account {}: {e}", entry.terms.id),
-        expected,
-        fix,
-    })
 }
 
 #[cfg(test)]

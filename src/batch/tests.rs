@@ -8,6 +8,7 @@ use crate::book::GlCodes;
 use crate::conventions::daycount::Basis;
 use crate::engine::rates::RateSchedule;
 use crate::engine::{AccountTerms, Movement, Side};
+use crate::problem::Position;
 
 fn d(s: &str) -> NaiveDate {
     s.parse().unwrap()

@@ -68,6 +68,20 @@ fn limit_message(counts: &SheetCounts, accounts: u64) -> Option<String> {
 
 /// Runs the command.
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
+    check_target(args)?;
+    let generator = Generator::new(args.seed, args.accounts);
+    let mut writer = open_writer(args, &generator)?;
+    let (written, planted) = write_rows(&generator, &mut writer, args.accounts)?;
+    writer
+        .finish()
+        .with_context(|| format!("cannot write the book {}", args.out.display()))?;
+    print_summary(args, &written, &planted, out)?;
+    Ok(exit::OK)
+}
+
+/// Refuses a book of no accounts, an existing book without `--force`, and
+/// a target of the wrong kind (a folder for a workbook, a file for CSV).
+fn check_target(args: &Args) -> Result<()> {
     if args.accounts == 0 {
         bail!("--accounts 0: give the number of accounts the book should hold, 1 or more");
     }
@@ -87,9 +101,14 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             "{} is a file: a CSV book is a folder; give a folder path",
             target.display()
         ),
-        _ => {}
+        _ => Ok(()),
     }
-    let generator = Generator::new(args.seed, args.accounts);
+}
+
+/// The book writer for the format asked, after refusing a workbook that a
+/// sheet would overflow.
+fn open_writer(args: &Args, generator: &Generator) -> Result<BookWriter> {
+    let target = &args.out;
     if args.format == Format::Xlsx {
         // The Accounts sheet alone tells for the largest books, before any counting.
         let quick = SheetCounts {
@@ -101,7 +120,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             bail!("{m}");
         }
     }
-    let mut writer = match args.format {
+    match args.format {
         Format::Xlsx => BookWriter::xlsx(
             target,
             &SHEETS,
@@ -112,8 +131,16 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         ),
         Format::Csv => BookWriter::csv(target, &SHEETS),
     }
-    .with_context(|| format!("cannot write the book {}", target.display()))?;
+    .with_context(|| format!("cannot write the book {}", target.display()))
+}
 
+/// Writes the shared rows, then every account's rows in chunks generated in
+/// parallel; returns the rows written per sheet and the mistakes planted by kind.
+fn write_rows(
+    generator: &Generator,
+    writer: &mut BookWriter,
+    accounts: u64,
+) -> Result<(SheetCounts, BTreeMap<MistakeKind, u64>)> {
     let mut written = SheetCounts::default();
     let mut add = |w: &mut BookWriter, sheet: usize, rows: Vec<Vec<crate::sample::Value>>| {
         for r in rows {
@@ -125,28 +152,35 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         Ok::<(), crate::report::ReportError>(())
     };
     for sheet in [RATES, HOLIDAYS, SETTINGS] {
-        add(&mut writer, sheet, generator.fixed_rows(sheet))?;
+        add(writer, sheet, generator.fixed_rows(sheet))?;
     }
     let mut planted: BTreeMap<MistakeKind, u64> = BTreeMap::new();
     let mut start = 0;
-    while start < args.accounts {
-        let end = start.saturating_add(CHUNK).min(args.accounts);
+    while start < accounts {
+        let end = start.saturating_add(CHUNK).min(accounts);
         for account in generator.accounts_in(start..end) {
             let a = account?;
-            add(&mut writer, ACCOUNTS, vec![a.account_row()])?;
-            add(&mut writer, RATES, a.rate_rows())?;
-            add(&mut writer, MOVEMENTS, a.movement_rows())?;
-            add(&mut writer, STATEMENTS, a.statement_rows())?;
+            add(writer, ACCOUNTS, vec![a.account_row()])?;
+            add(writer, RATES, a.rate_rows())?;
+            add(writer, MOVEMENTS, a.movement_rows())?;
+            add(writer, STATEMENTS, a.statement_rows())?;
             if let Some(m) = &a.mistake {
                 *planted.entry(m.kind()).or_insert(0) += 1;
             }
         }
         start = end;
     }
-    writer
-        .finish()
-        .with_context(|| format!("cannot write the book {}", target.display()))?;
+    Ok((written, planted))
+}
 
+/// What was written, the mistakes planted, and how to run the book.
+fn print_summary(
+    args: &Args,
+    written: &SheetCounts,
+    planted: &BTreeMap<MistakeKind, u64>,
+    out: &mut dyn Write,
+) -> Result<()> {
+    let target = &args.out;
     let shown = match args.format {
         Format::Xlsx => target.display().to_string(),
         Format::Csv => format!(
@@ -190,7 +224,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         "every name and figure is invented; run it with: ledgerate run {}",
         target.display()
     )?;
-    Ok(exit::OK)
+    Ok(())
 }
 
 #[cfg(test)]

@@ -14,34 +14,14 @@ use chrono::{Days, NaiveDate};
 use rust_decimal::Decimal;
 
 use super::floating::{FloatingRates, FloatingSchedule, IndexRate, TierRate};
+use super::inputs::Inputs;
 use super::rates::{RateSchedule, RateTable};
 use super::reconcile::{expected_over, Reconciled, Tolerance};
-use super::run::{resume, AccrualState, RunOptions, Sources};
-use super::terms::{
-    AccountTerms, ActualPosting, FloatingTerms, FloorOn, Movement, RateMethod, RoundAt,
-};
+use super::run::{resume, AccrualState, RunOptions};
+use super::terms::{AccountTerms, FloatingTerms, FloorOn, Movement, RateMethod, RoundAt};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
 use crate::conventions::rounding::RoundMode;
-
-/// Everything a re-run needs.
-#[derive(Clone, Copy)]
-pub struct Account<'a> {
-    /// The account's terms.
-    pub terms: &'a AccountTerms,
-    /// Its rate schedule (the cause search moves its tables).
-    pub rates: &'a RateSchedule,
-    /// Debit rates, if any.
-    pub debit_rates: Option<&'a RateSchedule>,
-    /// Its movements.
-    pub movements: &'a [Movement],
-    /// Amounts actually posted.
-    pub actual: &'a [ActualPosting],
-    /// States saved at each period start by the original run.
-    pub states: &'a [AccrualState],
-    /// A floating account's tables and fixings (then `rates` is not used).
-    pub floating: Option<FloatingRates<'a>>,
-}
 
 /// One change tried.
 #[derive(Debug, Clone)]
@@ -54,6 +34,21 @@ struct Change {
     period: Option<(NaiveDate, NaiveDate)>,
     /// The earliest date the change touches (where the re-run must start).
     from: NaiveDate,
+}
+
+impl Change {
+    /// A change named `words` that touches nothing yet, from the period's start `from`.
+    fn new(words: String, from: NaiveDate) -> Change {
+        Change {
+            words,
+            terms: None,
+            rates: None,
+            movements: None,
+            floating: None,
+            period: None,
+            from,
+        }
+    }
 }
 
 fn money(x: Decimal, places: u32) -> String {
@@ -101,81 +96,89 @@ fn first_rate(t: &RateTable) -> Decimal {
 }
 
 /// The changes of behaviour.md, Likely causes, in the order of its list.
-fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
-    let t = a.terms;
-    let s = row.start;
-    let base = |words: String| Change {
-        words,
-        terms: None,
-        rates: None,
-        movements: None,
-        floating: None,
-        period: None,
-        from: s,
-    };
+fn changes(terms: &AccountTerms, inputs: &Inputs, row: &Reconciled) -> Vec<Change> {
     let mut out = Vec::new();
+    term_changes(terms, row.start, &mut out);
+    period_changes(row, &mut out);
+    rate_changes(inputs.rates, row, &mut out);
+    movement_changes(terms, inputs.movements, row, &mut out);
+    if let Some(f) = inputs.floating {
+        out.extend(floating_changes(terms, f.schedule, row.start));
+    }
+    out
+}
+
+/// Another basis, compounding, rounding point, rounding mode, or daily
+/// rounding to another number of places.
+fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
+    let with = |words: String, terms: AccountTerms| Change {
+        terms: Some(terms),
+        ..Change::new(words, s)
+    };
     for b in Basis::ALL.into_iter().filter(|b| *b != t.basis) {
-        let mut c = base(format!(
-            "interest on {} instead of {}",
-            b.name(),
-            t.basis.name()
+        out.push(with(
+            format!("interest on {} instead of {}", b.name(), t.basis.name()),
+            AccountTerms {
+                basis: b,
+                ..t.clone()
+            },
         ));
-        c.terms = Some(AccountTerms {
-            basis: b,
-            ..t.clone()
-        });
-        out.push(c);
     }
     for k in Compounding::ALL.into_iter().filter(|k| *k != t.compounding) {
-        let mut c = base(format!(
-            "compounding {} instead of {}",
-            k.name(),
-            t.compounding.name()
+        out.push(with(
+            format!(
+                "compounding {} instead of {}",
+                k.name(),
+                t.compounding.name()
+            ),
+            AccountTerms {
+                compounding: k,
+                ..t.clone()
+            },
         ));
-        c.terms = Some(AccountTerms {
-            compounding: k,
-            ..t.clone()
-        });
-        out.push(c);
     }
     let other_point = match t.round_at {
         RoundAt::Posting => RoundAt::Daily,
         RoundAt::Daily => RoundAt::Posting,
     };
-    let mut c = base(format!(
-        "interest rounded {} instead of at {}",
-        round_point_words(other_point, t),
-        t.round_at.name()
-    ));
-    c.terms = Some(AccountTerms {
-        round_at: other_point,
-        ..t.clone()
-    });
-    out.push(c);
-    for m in RoundMode::ALL.into_iter().filter(|m| *m != t.round_mode) {
-        let mut c = base(format!(
-            "rounded {} instead of {}",
-            m.name(),
-            t.round_mode.name()
-        ));
-        c.terms = Some(AccountTerms {
-            round_mode: m,
+    out.push(with(
+        format!(
+            "interest rounded {} instead of at {}",
+            round_point_words(other_point, t),
+            t.round_at.name()
+        ),
+        AccountTerms {
+            round_at: other_point,
             ..t.clone()
-        });
-        out.push(c);
+        },
+    ));
+    for m in RoundMode::ALL.into_iter().filter(|m| *m != t.round_mode) {
+        out.push(with(
+            format!("rounded {} instead of {}", m.name(), t.round_mode.name()),
+            AccountTerms {
+                round_mode: m,
+                ..t.clone()
+            },
+        ));
     }
     let current_places = t.round_places.unwrap_or(t.minor_units);
     for places in (t.minor_units..=t.minor_units + 4)
         .filter(|p| t.round_at != RoundAt::Daily || *p != current_places)
     {
-        let mut c = base(format!("each day's interest rounded to {places} places"));
-        c.terms = Some(AccountTerms {
-            round_at: RoundAt::Daily,
-            round_places: Some(places),
-            ..t.clone()
-        });
-        out.push(c);
+        out.push(with(
+            format!("each day's interest rounded to {places} places"),
+            AccountTerms {
+                round_at: RoundAt::Daily,
+                round_places: Some(places),
+                ..t.clone()
+            },
+        ));
     }
+}
+
+/// The period a day early or late at either end.
+fn period_changes(row: &Reconciled, out: &mut Vec<Change>) {
+    let s = row.start;
     for (words, ps, pe) in [
         ("period start a day early", shift(s, -1), Some(row.end)),
         ("period start a day late", shift(s, 1), Some(row.end)),
@@ -184,19 +187,29 @@ fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
     ] {
         if let (Some(ps), Some(pe)) = (ps, pe) {
             if ps <= pe {
-                let mut c = base(format!("{words}: {ps}..{pe} instead of {s}..{}", row.end));
+                let mut c = Change::new(
+                    format!("{words}: {ps}..{pe} instead of {s}..{}", row.end),
+                    ps.min(s),
+                );
                 c.period = Some((ps, pe));
-                c.from = ps.min(s);
                 out.push(c);
             }
         }
     }
-    let tables = a.rates.tables();
-    let near = |d: NaiveDate| {
-        shift(s, -5).is_some_and(|lo| d >= lo) && shift(row.end, 5).is_some_and(|hi| d <= hi)
-    };
+}
+
+/// Whether `d` lies within five days of the period.
+fn near(row: &Reconciled, d: NaiveDate) -> bool {
+    shift(row.start, -5).is_some_and(|lo| d >= lo) && shift(row.end, 5).is_some_and(|hi| d <= hi)
+}
+
+/// Each rate change near the period applied up to five days early or late,
+/// or not at all.
+fn rate_changes(rates: &RateSchedule, row: &Reconciled, out: &mut Vec<Change>) {
+    let s = row.start;
+    let tables = rates.tables();
     for (i, table) in tables.iter().enumerate().skip(1) {
-        if !near(table.effective) {
+        if !near(row, table.effective) {
             continue;
         }
         let before = tables.get(i - 1).map_or(Decimal::ZERO, first_rate);
@@ -214,20 +227,32 @@ fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
             if let Some(m) = moved_tables.get_mut(i) {
                 m.effective = moved;
             }
-            let mut c = base(format!("{what} applied from {moved} instead"));
+            let mut c = Change::new(
+                format!("{what} applied from {moved} instead"),
+                moved.min(table.effective).min(s),
+            );
             c.rates = Some(RateSchedule::from_tables(moved_tables));
-            c.from = moved.min(table.effective).min(s);
             out.push(c);
         }
         let mut without = tables.to_vec();
         without.remove(i);
-        let mut c = base(format!("{what} not applied"));
+        let mut c = Change::new(format!("{what} not applied"), table.effective.min(s));
         c.rates = Some(RateSchedule::from_tables(without));
-        c.from = table.effective.min(s);
         out.push(c);
     }
-    for (i, m) in a.movements.iter().enumerate() {
-        if !near(m.value_date) || m.value_date < t.open_date {
+}
+
+/// Each movement near the period taken up to five days early or late,
+/// from its booking date, or left out.
+fn movement_changes(
+    t: &AccountTerms,
+    movements: &[Movement],
+    row: &Reconciled,
+    out: &mut Vec<Change>,
+) {
+    let s = row.start;
+    for (i, m) in movements.iter().enumerate() {
+        if !near(row, m.value_date) || m.value_date < t.open_date {
             continue;
         }
         let what = format!(
@@ -240,7 +265,7 @@ fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
             m.value_date
         );
         let with = |v: NaiveDate| {
-            let mut ms = a.movements.to_vec();
+            let mut ms = movements.to_vec();
             if let Some(x) = ms.get_mut(i) {
                 x.value_date = v;
                 x.booking_date = None;
@@ -254,38 +279,34 @@ fn changes(a: &Account, row: &Reconciled) -> Vec<Change> {
             if v < t.open_date {
                 continue;
             }
-            let mut c = base(format!("{what} taken from {v} instead"));
+            let mut c = Change::new(
+                format!("{what} taken from {v} instead"),
+                v.min(m.value_date).min(s),
+            );
             c.movements = Some(with(v));
-            c.from = v.min(m.value_date).min(s);
             out.push(c);
         }
         if let Some(b) = m.booking_date.filter(|b| *b != m.value_date) {
-            let mut c = base(format!("{what} taken from its booking date {b} instead"));
+            let mut c = Change::new(
+                format!("{what} taken from its booking date {b} instead"),
+                b.min(m.value_date).min(s),
+            );
             c.movements = Some(with(b));
-            c.from = b.min(m.value_date).min(s);
             out.push(c);
         }
-        let mut left = a.movements.to_vec();
+        let mut left = movements.to_vec();
         left.remove(i);
-        let mut c = base(format!("{what} left out"));
+        let mut c = Change::new(format!("{what} left out"), m.value_date.min(s));
         c.movements = Some(left);
-        c.from = m.value_date.min(s);
         out.push(c);
     }
-    if let Some(f) = a.floating {
-        out.extend(floating_changes(t, f.schedule, &base));
-    }
-    out
 }
 
 /// The floating-rate changes: the lookback mis-set by up to two business
 /// days, the observation shift and the compounding of the spread the other
 /// way, and any floor or cap not applied.
-fn floating_changes(
-    t: &AccountTerms,
-    schedule: &FloatingSchedule,
-    base: &dyn Fn(String) -> Change,
-) -> Vec<Change> {
+fn floating_changes(t: &AccountTerms, schedule: &FloatingSchedule, s: NaiveDate) -> Vec<Change> {
+    let base = |words: String| Change::new(words, s);
     let mut out = Vec::new();
     let fl = t.floating;
     let with = |floating: FloatingTerms| AccountTerms {
@@ -384,8 +405,8 @@ fn round_point_words(point: RoundAt, t: &AccountTerms) -> String {
 
 /// The latest saved state at or before `from` (the opening state of `terms`
 /// when that is the account's opening).
-fn state_for(a: &Account, terms: &AccountTerms, from: NaiveDate) -> AccrualState {
-    match a.states.iter().rev().find(|s| s.day <= from) {
+fn state_for(states: &[AccrualState], terms: &AccountTerms, from: NaiveDate) -> AccrualState {
+    match states.iter().rev().find(|s| s.day <= from) {
         Some(s) if s.day != terms.open_date => s.clone(),
         _ => AccrualState::opening(terms),
     }
@@ -394,45 +415,24 @@ fn state_for(a: &Account, terms: &AccountTerms, from: NaiveDate) -> AccrualState
 /// The changes that reproduce `row`'s posted amount, closest first (equally
 /// close ones in list order), as plain words; or, when none does, the implied
 /// rate and its gap to the contract rate in basis points.
-pub fn likely_cause(a: &Account, row: &Reconciled, tolerance: &Tolerance) -> String {
-    let places = a.terms.minor_units;
+///
+/// `inputs` are those of the original run and `states` the period-start
+/// states it kept ([`RunOptions::keep_states`]): each change is re-run from
+/// the latest state before the first day it touches.
+pub fn likely_cause(
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    tolerance: &Tolerance,
+) -> String {
+    let places = terms.minor_units;
     let mut found: Vec<(Decimal, usize, String)> = Vec::new();
-    for (order, change) in changes(a, row).into_iter().enumerate() {
-        let terms = change.terms.as_ref().unwrap_or(a.terms);
-        let rates = change.rates.as_ref().unwrap_or(a.rates);
-        let movements = change.movements.as_deref().unwrap_or(a.movements);
-        let (ps, pe) = change.period.unwrap_or((row.start, row.end));
-        // The re-run's spans must end where the period tried does.
-        let breaks = [ps.pred_opt().unwrap_or(ps), pe];
-        let state = state_for(a, terms, change.from);
-        let floating = a.floating.map(|f| FloatingRates {
-            schedule: change.floating.as_ref().unwrap_or(f.schedule),
-            ..f
-        });
-        let sources = Sources {
-            rates,
-            debit_rates: a.debit_rates.map(|r| r as &dyn super::rates::RateSource),
-            movements,
-            actual: a.actual,
-            breaks: &breaks,
-            floating,
-        };
-        let options = RunOptions {
-            window_start: ps,
-            cutoff: pe.max(row.end),
-            keep_days: false,
-            keep_states: false,
-            keep_spans: true,
-            fast_path: true,
-        };
-        let Ok(result) = resume(terms, sources, options, &state) else {
+    for (order, change) in changes(terms, inputs, row).into_iter().enumerate() {
+        let Some((gap, balance_years)) = rerun(terms, inputs, states, row, &change) else {
             continue;
         };
-        let Ok(e) = expected_over(terms, &result, ps, pe) else {
-            continue;
-        };
-        let gap = row.posted - e.amount;
-        let bp = super::reconcile::variance_bp(gap, e.balance_years);
+        let bp = super::reconcile::variance_bp(gap, balance_years);
         if tolerance.accepts(gap, bp, places) {
             let how = if gap.is_zero() {
                 "reproduces the posted amount exactly".to_string()
@@ -451,6 +451,45 @@ pub fn likely_cause(a: &Account, row: &Reconciled, tolerance: &Tolerance) -> Str
         .map(|(_, _, w)| w)
         .collect::<Vec<_>>()
         .join("; or ")
+}
+
+/// The account re-run with `change` over the period it tries: the gap
+/// between `row`'s posted amount and what the changed account expects, and
+/// the period's balance-years; `None` when the changed account cannot be
+/// computed.
+fn rerun(
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    change: &Change,
+) -> Option<(Decimal, Decimal)> {
+    let terms = change.terms.as_ref().unwrap_or(terms);
+    let (ps, pe) = change.period.unwrap_or((row.start, row.end));
+    // The re-run's spans must end where the period tried does.
+    let breaks = [ps.pred_opt().unwrap_or(ps), pe];
+    let state = state_for(states, terms, change.from);
+    let changed = Inputs {
+        rates: change.rates.as_ref().unwrap_or(inputs.rates),
+        movements: change.movements.as_deref().unwrap_or(inputs.movements),
+        breaks: &breaks,
+        floating: inputs.floating.map(|f| FloatingRates {
+            schedule: change.floating.as_ref().unwrap_or(f.schedule),
+            ..f
+        }),
+        ..*inputs
+    };
+    let options = RunOptions {
+        window_start: ps,
+        cutoff: pe.max(row.end),
+        keep_days: false,
+        keep_states: false,
+        keep_spans: true,
+        fast_path: true,
+    };
+    let result = resume(terms, changed, options, &state).ok()?;
+    let e = expected_over(terms, &result, ps, pe).ok()?;
+    Some((row.posted - e.amount, e.balance_years))
 }
 
 /// The parallel shift of the contract rates that the posted amount implies.

@@ -13,12 +13,14 @@ pub mod accrual;
 pub mod causes;
 pub mod error;
 pub mod floating;
+pub mod inputs;
 pub mod rates;
 pub mod reconcile;
 pub mod run;
 pub mod terms;
 
 pub use error::EngineError;
+pub use inputs::Inputs;
 pub use run::{accrue, resume, AccountResult, AccrualState, DayRow, PostingRow, RunOptions};
 pub use terms::{
     AccountTerms, ActualPosting, FloatingTerms, FloorOn, Movement, RateMethod, RoundAt, Side,

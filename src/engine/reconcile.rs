@@ -147,7 +147,7 @@ pub fn expected_over(
         .iter()
         .filter(|x| x.last >= start && x.first <= end)
     {
-        // Runs of days end at every statement boundary (`Sources::breaks`),
+        // Runs of days end at every statement boundary (`Inputs::breaks`),
         // so a span lies wholly inside the period or wholly outside it.
         if span.first < start || span.last > end {
             return Err(EngineError::UnbrokenSpan(span.first));
@@ -321,8 +321,9 @@ mod tests {
     use crate::conventions::daycount::Basis;
     use crate::conventions::schedule::Posting;
     use crate::engine::rates::RateSchedule;
-    use crate::engine::run::{accrue, RunOptions, Sources};
+    use crate::engine::run::{accrue, RunOptions};
     use crate::engine::ActualPosting;
+    use crate::engine::Inputs;
 
     fn d(s: &str) -> NaiveDate {
         s.parse().unwrap()
@@ -340,7 +341,7 @@ mod tests {
         to: &str,
     ) -> AccountResult {
         let rates = RateSchedule::from_rows([(d("2000-01-01"), n(rate), Decimal::ZERO)]);
-        let src = Sources {
+        let src = Inputs {
             rates: &rates,
             debit_rates: None,
             movements: &[],

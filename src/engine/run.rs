@@ -11,7 +11,8 @@ use rust_decimal::Decimal;
 
 use super::accrual::{Accrual, Overflow};
 use super::error::EngineError;
-use super::floating::{resolve, FixingUsed, FixingWarning, FloatingRates, Resolved};
+use super::floating::{resolve, FixingUsed, FixingWarning, Resolved};
+use super::inputs::Inputs;
 use super::rates::{RateSource, RateTable};
 use super::terms::{AccountTerms, ActualPosting, Movement, RoundAt, TierMethod};
 use crate::conventions::compounding::Compounding;
@@ -196,27 +197,6 @@ pub struct AccountResult {
     pub fixing_warnings: Vec<FixingWarning>,
 }
 
-/// The inputs of one account besides its terms.
-#[derive(Clone, Copy)]
-pub struct Sources<'a> {
-    /// The account's rates.
-    pub rates: &'a dyn RateSource,
-    /// Rates for a base of the opposite sign, when the account has them.
-    pub debit_rates: Option<&'a dyn RateSource>,
-    /// Balance movements, in any order.
-    pub movements: &'a [Movement],
-    /// Amounts actually posted, from statements.
-    pub actual: &'a [ActualPosting],
-    /// Days a run of days must end on (in any order): the last days of
-    /// statement periods and the eves of their first days, so that spans sum
-    /// exactly over each statement period.
-    pub breaks: &'a [NaiveDate],
-    /// A floating account's tables and fixings (behaviour.md, Floating rates).
-    /// When given, the account's rates are resolved from them for each day of
-    /// the run and `rates` is not consulted; a fixed-rate account leaves it `None`.
-    pub floating: Option<FloatingRates<'a>>,
-}
-
 /// Accrues `terms` from its opening to the cut-off.
 ///
 /// # Errors
@@ -225,25 +205,25 @@ pub struct Sources<'a> {
 /// ```
 /// use ledgerate::conventions::daycount::Basis;
 /// use ledgerate::engine::rates::RateSchedule;
-/// use ledgerate::engine::run::{accrue, RunOptions, Sources};
-/// use ledgerate::engine::AccountTerms;
+/// use ledgerate::engine::run::{accrue, RunOptions};
+/// use ledgerate::engine::{AccountTerms, Inputs};
 /// use rust_decimal::Decimal;
 /// let d = |s: &str| s.parse::<chrono::NaiveDate>().unwrap();
 /// let n = |s: &str| s.parse::<Decimal>().unwrap();
 /// // 1,000.00 at 2.25% over a regular 30/360 month is exactly 1.875: it posts 1.88.
 /// let terms = AccountTerms::new("EX-01", "USD", 2, Basis::Thirty360, d("2026-11-01"), n("1000.00"));
 /// let rates = RateSchedule::from_rows([(d("2026-01-01"), n("0.0225"), Decimal::ZERO)]);
-/// let src = Sources { rates: &rates, debit_rates: None, movements: &[], actual: &[], breaks: &[], floating: None };
-/// let r = accrue(&terms, src, RunOptions::month_end(d("2026-11-30"))).unwrap();
+/// let inputs = Inputs { rates: &rates, debit_rates: None, movements: &[], actual: &[], breaks: &[], floating: None };
+/// let r = accrue(&terms, inputs, RunOptions::month_end(d("2026-11-30"))).unwrap();
 /// assert_eq!(r.postings[0].interest.to_string(), "1.875");
 /// assert_eq!(r.postings[0].posted.to_string(), "1.88");
 /// ```
 pub fn accrue(
     terms: &AccountTerms,
-    sources: Sources,
+    inputs: Inputs,
     options: RunOptions,
 ) -> Result<AccountResult, EngineError> {
-    resume(terms, sources, options, &AccrualState::opening(terms))
+    resume(terms, inputs, options, &AccrualState::opening(terms))
 }
 
 /// Runs `terms` again from a saved state (the start of a posting period).
@@ -254,12 +234,12 @@ pub fn accrue(
 /// An [`EngineError`]; [`EngineError::BadState`] when the state does not start a period.
 pub fn resume(
     terms: &AccountTerms,
-    sources: Sources,
+    inputs: Inputs,
     options: RunOptions,
     state: &AccrualState,
 ) -> Result<AccountResult, EngineError> {
     let plan = Plan::new(terms, &options)?;
-    let resolved: Option<Resolved> = match (sources.floating, terms.floating.method.is_floating()) {
+    let resolved: Option<Resolved> = match (inputs.floating, terms.floating.method.is_floating()) {
         (Some(f), _) => Some(resolve(terms, &f, &plan.periods, state.day, plan.last_day)?),
         (None, true) => {
             return Err(EngineError::Unsupported(format!(
@@ -269,15 +249,7 @@ pub fn resume(
         }
         (None, false) => None,
     };
-    let sources = match &resolved {
-        Some(r) => Sources {
-            rates: r,
-            floating: None,
-            ..sources
-        },
-        None => sources,
-    };
-    let mut result = Loop::new(terms, sources, options, state, plan, resolved.as_ref())?.run()?;
+    let mut result = Loop::new(terms, inputs, options, state, plan, resolved.as_ref())?.run()?;
     if let Some(r) = resolved {
         result.fixing_warnings = r.warnings;
     }
@@ -358,7 +330,15 @@ fn checked(
 /// The working state of one run.
 struct Loop<'a> {
     terms: &'a AccountTerms,
-    sources: Sources<'a>,
+    /// The table source in force: the account's rates, or for a floating
+    /// account its tables resolved day by day.
+    rates: &'a dyn RateSource,
+    /// Rates for a base of the opposite sign.
+    debit_rates: Option<&'a dyn RateSource>,
+    /// Balance movements, in the order given.
+    movements: &'a [Movement],
+    /// Amounts actually posted, from statements.
+    actual: &'a [ActualPosting],
     options: RunOptions,
     /// Posting periods; empty when the account never posts.
     periods: Vec<Period>,
@@ -376,8 +356,59 @@ struct Loop<'a> {
     /// Growth factors already computed, by (rate, day fraction): an
     /// exponential account meets the same pair day after day.
     growth: GrowthCache,
-    /// `Sources::breaks`, sorted.
+    /// `Inputs::breaks`, sorted.
     breaks: Vec<NaiveDate>,
+    /// Whether runs of days may be accrued in one step.
+    fast: bool,
+}
+
+/// What a run reports as it goes: postings, day rows, spans, period-start
+/// states, and the figures of the window's eve and the cut-off.
+#[derive(Default)]
+struct Report {
+    postings: Vec<PostingRow>,
+    days: Vec<DayRow>,
+    spans: Vec<Span>,
+    states: Vec<AccrualState>,
+    accrued_before_window: Option<Decimal>,
+    rate_at_cutoff: Option<Decimal>,
+}
+
+/// Where a run stands in the account's schedule.
+struct Cursor {
+    /// The first day of the run (the saved state's).
+    resume_day: NaiveDate,
+    /// The current posting period.
+    pi: usize,
+    /// The next movement, by value date (an index into `Loop::order`).
+    mi: usize,
+    /// The next compounding end.
+    ci: usize,
+    /// Movements in the balance that the current period's base leaves out.
+    unbooked: Vec<usize>,
+    /// The current period's day-fraction terms: its start and the day after its end.
+    basis: Option<(NaiveDate, Option<NaiveDate>)>,
+    /// The current period's last day.
+    period_end: Option<NaiveDate>,
+    /// The tier pieces of the last base and table.
+    pieces: Pieces,
+}
+
+/// One run of days accrued together (a single day off the fast path).
+#[derive(Clone, Copy)]
+struct Step {
+    /// Its last day.
+    last: NaiveDate,
+    /// B(D) on each of its days.
+    base: Decimal,
+    /// Its day fraction.
+    fraction: DayFraction,
+    /// Its interest, exactly.
+    interest: DayInterest,
+    /// The interest as a decimal, when day rows or daily compounding need it.
+    value: Decimal,
+    /// The annual rate the base earned.
+    rate: Decimal,
 }
 
 /// The last few growth factors of an exponential account, by the rate as
@@ -416,7 +447,7 @@ impl GrowthCache {
 impl<'a> Loop<'a> {
     fn new(
         terms: &'a AccountTerms,
-        sources: Sources<'a>,
+        inputs: Inputs<'a>,
         options: RunOptions,
         state: &AccrualState,
         plan: Plan,
@@ -428,13 +459,26 @@ impl<'a> Loop<'a> {
             references,
             last_day,
         } = plan;
-        let mut order: Vec<usize> = (0..sources.movements.len()).collect();
-        order.sort_by_key(|&i| sources.movements.get(i).map(|m| m.value_date));
-        let mut breaks = sources.breaks.to_vec();
+        let mut order: Vec<usize> = (0..inputs.movements.len()).collect();
+        order.sort_by_key(|&i| inputs.movements.get(i).map(|m| m.value_date));
+        let mut breaks = inputs.breaks.to_vec();
         breaks.sort_unstable();
+        // The one-step path needs a base that stays put between events: no
+        // daily compounding, no daily rounding, no day rows to keep.
+        let fast = options.fast_path
+            && !options.keep_days
+            && !terms.compounding.joins_daily()
+            && terms.round_at == RoundAt::Posting;
+        let rates: &'a dyn RateSource = match resolved {
+            Some(r) => r,
+            None => inputs.rates,
+        };
         Ok(Loop {
             terms,
-            sources,
+            rates,
+            debit_rates: inputs.debit_rates.map(|r| r as &dyn RateSource),
+            movements: inputs.movements,
+            actual: inputs.actual,
             options,
             periods,
             compounding_ends,
@@ -447,11 +491,12 @@ impl<'a> Loop<'a> {
             fixings: resolved.map(|r| &r.fixings),
             growth: GrowthCache::default(),
             breaks,
+            fast,
         })
     }
 
     fn movement(&self, i: usize) -> Option<&'a Movement> {
-        self.sources.movements.get(i)
+        self.movements.get(i)
     }
 
     /// Whether movement `i` is excluded from the base of a period ending on `end`:
@@ -463,306 +508,416 @@ impl<'a> Loop<'a> {
         }
     }
 
+    /// `x` rounded to the account's minor units.
+    fn round(&self, x: Decimal) -> Decimal {
+        self.terms.round_mode.round(x, self.terms.minor_units)
+    }
+
+    /// The run, day by day (or run of days by run of days) from the saved
+    /// state to the last earning day, then the cut-off figures.
     fn run(mut self) -> Result<AccountResult, EngineError> {
-        let terms = self.terms;
-        let opts = self.options;
-        let open = terms.open_date;
-        let mut postings = Vec::new();
-        let mut days = Vec::new();
-        let mut spans = Vec::new();
-        let keep_spans = opts.keep_spans || opts.keep_days;
-        let mut states = Vec::new();
-        let mut accrued_before_window = None;
-        let mut rate_at_cutoff = None;
-        let places = terms.minor_units;
-        let round = |x: Decimal| terms.round_mode.round(x, places);
-        if opts.window_start <= open {
-            accrued_before_window = Some(round(self.state.opening_pending));
-        }
-
-        // Where the saved state sits in the schedule.
-        let resume_day = self.state.day;
-        let mut pi = self
-            .periods
-            .iter()
-            .position(|p| p.end >= resume_day)
-            .unwrap_or(self.periods.len());
-        if resume_day != open && self.periods.get(pi).is_none_or(|p| p.start != resume_day) {
-            return Err(EngineError::BadState(resume_day));
-        }
-        // Movements before the resume day are already in the balance; before
-        // the opening they are in the opening balance.
-        let mut mi = self
-            .order
-            .iter()
-            .position(|&i| self.movement(i).is_some_and(|m| m.value_date >= resume_day))
-            .unwrap_or(self.order.len());
-        let mut ci = self.compounding_ends.partition_point(|e| *e < resume_day);
-        let mut unbooked: Vec<usize> = Vec::new();
-        let mut pieces = Pieces::default();
-        let mut basis = None;
-        let mut period_end: Option<NaiveDate> = None;
-
-        // The one-step path needs a base that stays put between events: no
-        // daily compounding, no daily rounding, no day rows to keep.
-        let fast = opts.fast_path
-            && !opts.keep_days
-            && !terms.compounding.joins_daily()
-            && terms.round_at == RoundAt::Posting;
-        let mut d = resume_day;
+        let mut report = self.start_report();
+        let mut at = self.locate()?;
+        let mut d = at.resume_day;
         while d <= self.last_day {
-            // A new posting period: fix its day-fraction terms and which
-            // movements its base leaves out.
-            let period = self.periods.get(pi).copied();
-            if basis.is_none() || period.is_some_and(|p| p.start == d) {
-                let (p_start, end_excl) = match period {
-                    Some(p) => (p.start, p.end.succ_opt()),
-                    None => (terms.first_period_start(), None),
-                };
-                period_end = period.map(|p| p.end);
-                basis = Some((p_start, end_excl));
-                if opts.keep_states {
-                    let mut s = self.state.clone();
-                    s.day = d;
-                    states.push(s);
-                }
-                unbooked = self
-                    .order
-                    .iter()
-                    .take(mi)
-                    .copied()
-                    .filter(|&i| self.unbooked(i, period_end))
-                    .collect();
-            }
-            let (p_start, end_excl) = basis.unwrap_or((d, None));
-            let pb = PeriodBasis {
-                basis: terms.basis,
-                start: p_start,
-                end: end_excl,
-                maturity: terms.maturity,
-                frequency: terms.posting.per_year(),
-                references: &self.references,
-                calendar: &terms.calendar,
-            };
-
-            // Movements valued today.
-            while let Some(&i) = self.order.get(mi) {
-                let Some(m) = self.movement(i) else { break };
-                if m.value_date > d {
-                    break;
-                }
-                self.state.balance =
-                    checked(self.state.balance.checked_add(m.amount), "the balance", d)?;
-                if self.unbooked(i, period_end) {
-                    unbooked.push(i);
-                }
-                mi += 1;
-            }
-
-            let mut excluded = Decimal::ZERO;
-            for &i in &unbooked {
-                if let Some(m) = self.movement(i) {
-                    excluded = checked(excluded.checked_add(m.amount), "the base", d)?;
-                }
-            }
-            let base = checked(
-                self.state
-                    .balance
-                    .checked_sub(excluded)
-                    .and_then(|b| b.checked_add(self.state.compounded)),
-                "the base",
-                d,
-            )?;
-            // Days over which nothing changes are accrued in one step: the
-            // numerators the day loop would add, summed at once.
-            let table = self.table_for(base, d)?;
-            // Compounded interest makes the base a 28-digit quotient whose
-            // running sums round; such days stay single.
-            let mut last = if fast && self.state.compounded.is_zero() {
-                self.run_end(d, period, ci, mi, base, &pb)
-            } else {
-                d
-            };
-            let mut run_fraction = None;
-            if let Some(after) = last.succ_opt().filter(|_| last > d) {
-                let f = pb.span(d, after)?;
-                // One product must equal the day loop's sum to the last
-                // digit: only when it needs no rounding (a 28-digit
-                // compounded base falls back to single days).
-                if self.exact_product(base, table, f.num, &mut pieces) {
-                    run_fraction = Some(f);
-                }
-            }
-            if run_fraction.is_none() {
-                last = d;
-            }
-            let fraction = match run_fraction {
-                Some(f) => f,
-                None => pb.day(d)?,
-            };
-
-            // Today's interest on the base.
-            let day_interest = self.interest(base, table, fraction, d, &mut pieces)?;
-            if keep_spans {
-                spans.push(Span {
-                    first: d,
-                    last,
-                    base,
-                    fraction,
-                    interest_num: day_interest.numerator(),
-                    interest_den: day_interest.denominator(),
-                });
-            }
-            d = last;
-            let rate = blended_rate(base, &pieces.list, table, terms.tier_method);
-            day_interest
-                .add_to(&mut self.period_acc)
-                .map_err(overflow("the accrued interest", d))?;
-            if terms.compounding.months().is_some() {
-                day_interest
-                    .add_to(&mut self.since_compounding)
-                    .map_err(overflow("the accrued interest", d))?;
-            }
-            let need_value = opts.keep_days || terms.compounding.joins_daily();
-            let interest_value = if need_value {
-                day_interest
-                    .value()
-                    .map_err(overflow("the daily interest", d))?
-            } else {
-                Decimal::ZERO
-            };
-
-            // Back-valued movements: the interest they earn in a period that
-            // posts before they are booked is owed to a later posting.
-            let mut back_value_today = Decimal::ZERO;
-            for &i in &unbooked {
-                let Some(m) = self.movement(i) else { continue };
-                let with = checked(base.checked_add(m.amount), "the base", d)?;
-                let mut scratch = Pieces::default();
-                let t = self.table_for(with, d)?;
-                let full = self.interest(with, t, fraction, d, &mut scratch)?;
-                let mut diff = full;
-                diff.subtract(&day_interest)
-                    .map_err(overflow("the back-value interest", d))?;
-                let owed = match self.state.back_value_owed.iter_mut().find(|(j, _)| *j == i) {
-                    Some((_, a)) => a,
-                    None => {
-                        self.state.back_value_owed.push((i, Accrual::new()));
-                        match self.state.back_value_owed.last_mut() {
-                            Some((_, a)) => a,
-                            None => continue,
-                        }
-                    }
-                };
-                diff.add_to(owed)
-                    .map_err(overflow("the back-value interest", d))?;
-                if opts.keep_days {
-                    let v = diff
-                        .value()
-                        .map_err(overflow("the back-value interest", d))?;
-                    back_value_today = checked(
-                        back_value_today.checked_add(v),
-                        "the back-value interest",
-                        d,
-                    )?;
-                }
-            }
-
-            if terms.compounding.joins_daily() {
-                self.state.compounded = checked(
-                    self.state.compounded.checked_add(interest_value),
-                    "the base",
-                    d,
-                )?;
-            }
-
-            // End of day: a posting, else a compounding end.
-            let mut posted_today = None;
-            let is_compounding_end = self.compounding_ends.get(ci) == Some(&d);
-            if is_compounding_end {
-                ci += 1;
-            }
-            if let Some(p) = period.filter(|p| p.end == d) {
-                let row = self.post(p, d)?;
-                if terms.capitalise {
-                    self.state.balance =
-                        checked(self.state.balance.checked_add(row.posted), "the balance", d)?;
-                }
-                posted_today = Some(row.posted);
-                postings.push(row);
-                pi += 1;
-            } else if is_compounding_end {
-                let joined = self
-                    .since_compounding
-                    .value()
-                    .map_err(overflow("the compounded interest", d))?;
-                self.state.compounded = checked(
-                    self.state
-                        .compounded
-                        .checked_add(joined)
-                        .and_then(|c| c.checked_add(self.state.opening_to_join)),
-                    "the base",
-                    d,
-                )?;
-                self.state.opening_to_join = Decimal::ZERO;
-                self.since_compounding = Accrual::new();
-            }
-
-            let is_window_eve = opts.window_start.pred_opt() == Some(d);
-            if opts.keep_days || is_window_eve || d == opts.cutoff {
-                let accrued = self.accrued(d)?;
-                if is_window_eve {
-                    accrued_before_window = Some(round(accrued));
-                }
-                if opts.keep_days {
-                    days.push(DayRow {
-                        date: d,
-                        balance: self.state.balance,
-                        base,
-                        rate,
-                        fraction,
-                        interest: interest_value,
-                        interest_num: day_interest.numerator(),
-                        interest_den: day_interest.denominator(),
-                        back_value: back_value_today,
-                        accrued,
-                        posted: posted_today,
-                        fixing: self.fixings.and_then(|f| f.get(&d)).cloned(),
-                    });
-                }
-            }
-            if d == opts.cutoff {
-                rate_at_cutoff = Some(rate);
-            }
+            let period = self.periods.get(at.pi).copied();
+            self.open_period(d, period, &mut at, &mut report);
+            self.take_movements(d, &mut at)?;
+            let step = self.step(d, period, &mut at, &mut report)?;
+            d = step.last;
+            let back_value = self.owe_back_value(d, &step, &at.unbooked)?;
+            let posted = self.end_day(d, &step, period, &mut at, &mut report)?;
+            self.record_day(d, &step, back_value, posted, &mut report)?;
             d = match d.succ_opt() {
                 Some(n) => n,
                 None => break,
             };
         }
+        self.finish(&mut at, report)
+    }
 
-        // Movements after the last earning day still reach the balance by the cut-off.
-        while let Some(&i) = self.order.get(mi) {
+    /// Phase 1: the report before the first day, with the opening's accrued
+    /// as the figure before the window when the window starts at the opening.
+    fn start_report(&self) -> Report {
+        let mut report = Report::default();
+        if self.options.window_start <= self.terms.open_date {
+            report.accrued_before_window = Some(self.round(self.state.opening_pending));
+        }
+        report
+    }
+
+    /// Phase 2: where the saved state sits in the schedule: its posting
+    /// period, its next movement and its next compounding end.
+    fn locate(&self) -> Result<Cursor, EngineError> {
+        let resume_day = self.state.day;
+        let pi = self
+            .periods
+            .iter()
+            .position(|p| p.end >= resume_day)
+            .unwrap_or(self.periods.len());
+        if resume_day != self.terms.open_date
+            && self.periods.get(pi).is_none_or(|p| p.start != resume_day)
+        {
+            return Err(EngineError::BadState(resume_day));
+        }
+        // Movements before the resume day are already in the balance; before
+        // the opening they are in the opening balance.
+        let mi = self
+            .order
+            .iter()
+            .position(|&i| self.movement(i).is_some_and(|m| m.value_date >= resume_day))
+            .unwrap_or(self.order.len());
+        let ci = self.compounding_ends.partition_point(|e| *e < resume_day);
+        Ok(Cursor {
+            resume_day,
+            pi,
+            mi,
+            ci,
+            unbooked: Vec::new(),
+            basis: None,
+            period_end: None,
+            pieces: Pieces::default(),
+        })
+    }
+
+    /// Phase 3: on the first day of a posting period (or of the run), fix
+    /// its day-fraction terms, save the state, and note which movements its
+    /// base leaves out.
+    #[inline]
+    fn open_period(
+        &self,
+        d: NaiveDate,
+        period: Option<Period>,
+        at: &mut Cursor,
+        report: &mut Report,
+    ) {
+        if at.basis.is_some() && period.is_none_or(|p| p.start != d) {
+            return;
+        }
+        let (p_start, end_excl) = match period {
+            Some(p) => (p.start, p.end.succ_opt()),
+            None => (self.terms.first_period_start(), None),
+        };
+        at.period_end = period.map(|p| p.end);
+        at.basis = Some((p_start, end_excl));
+        if self.options.keep_states {
+            let mut s = self.state.clone();
+            s.day = d;
+            report.states.push(s);
+        }
+        let end = at.period_end;
+        at.unbooked = self
+            .order
+            .iter()
+            .take(at.mi)
+            .copied()
+            .filter(|&i| self.unbooked(i, end))
+            .collect();
+    }
+
+    /// Phase 4: the movements valued on `d` join the balance.
+    #[inline]
+    fn take_movements(&mut self, d: NaiveDate, at: &mut Cursor) -> Result<(), EngineError> {
+        while let Some(&i) = self.order.get(at.mi) {
+            let Some(m) = self.movement(i) else { break };
+            if m.value_date > d {
+                break;
+            }
+            self.state.balance =
+                checked(self.state.balance.checked_add(m.amount), "the balance", d)?;
+            if self.unbooked(i, at.period_end) {
+                at.unbooked.push(i);
+            }
+            at.mi += 1;
+        }
+        Ok(())
+    }
+
+    /// Phase 5: the base of `d`, how far from `d` it can be accrued in one
+    /// step, and the interest of that run of days, added to the period.
+    #[inline]
+    fn step(
+        &mut self,
+        d: NaiveDate,
+        period: Option<Period>,
+        at: &mut Cursor,
+        report: &mut Report,
+    ) -> Result<Step, EngineError> {
+        let terms = self.terms;
+        let opts = self.options;
+        let base = self.base(d, &at.unbooked)?;
+        // Days over which nothing changes are accrued in one step: the
+        // numerators the day loop would add, summed at once.
+        let table = self.table_for(base, d)?;
+        let (last, fraction) = self.reach(d, period, at, base, table)?;
+
+        // The run's interest on the base.
+        let day_interest = self.interest(base, table, fraction, d, &mut at.pieces)?;
+        if opts.keep_spans || opts.keep_days {
+            report.spans.push(Span {
+                first: d,
+                last,
+                base,
+                fraction,
+                interest_num: day_interest.numerator(),
+                interest_den: day_interest.denominator(),
+            });
+        }
+        let rate = blended_rate(base, &at.pieces.list, table, terms.tier_method);
+        day_interest
+            .add_to(&mut self.period_acc)
+            .map_err(overflow("the accrued interest", last))?;
+        if terms.compounding.months().is_some() {
+            day_interest
+                .add_to(&mut self.since_compounding)
+                .map_err(overflow("the accrued interest", last))?;
+        }
+        let need_value = opts.keep_days || terms.compounding.joins_daily();
+        let value = if need_value {
+            day_interest
+                .value()
+                .map_err(overflow("the daily interest", last))?
+        } else {
+            Decimal::ZERO
+        };
+        Ok(Step {
+            last,
+            base,
+            fraction,
+            interest: day_interest,
+            value,
+            rate,
+        })
+    }
+
+    /// B(D): the balance, less the movements the period's base leaves out,
+    /// plus compounded interest not yet posted.
+    #[inline]
+    fn base(&self, d: NaiveDate, unbooked: &[usize]) -> Result<Decimal, EngineError> {
+        let mut excluded = Decimal::ZERO;
+        for &i in unbooked {
+            if let Some(m) = self.movement(i) {
+                excluded = checked(excluded.checked_add(m.amount), "the base", d)?;
+            }
+        }
+        checked(
+            self.state
+                .balance
+                .checked_sub(excluded)
+                .and_then(|b| b.checked_add(self.state.compounded)),
+            "the base",
+            d,
+        )
+    }
+
+    /// The last day of the run of days from `d` accrued in one step, and
+    /// its day fraction: `d` alone off the fast path, or when one product
+    /// would not equal the day loop's sum.
+    #[inline]
+    fn reach(
+        &self,
+        d: NaiveDate,
+        period: Option<Period>,
+        at: &mut Cursor,
+        base: Decimal,
+        table: Option<&RateTable>,
+    ) -> Result<(NaiveDate, DayFraction), EngineError> {
+        let terms = self.terms;
+        let (p_start, end_excl) = at.basis.unwrap_or((d, None));
+        let pb = PeriodBasis {
+            basis: terms.basis,
+            start: p_start,
+            end: end_excl,
+            maturity: terms.maturity,
+            frequency: terms.posting.per_year(),
+            references: &self.references,
+            calendar: &terms.calendar,
+        };
+        // Compounded interest makes the base a 28-digit quotient whose
+        // running sums round; such days stay single.
+        let last = if self.fast && self.state.compounded.is_zero() {
+            self.run_end(d, period, at.ci, at.mi, base, &pb)
+        } else {
+            d
+        };
+        if let Some(after) = last.succ_opt().filter(|_| last > d) {
+            let f = pb.span(d, after)?;
+            // One product must equal the day loop's sum to the last
+            // digit: only when it needs no rounding (a 28-digit
+            // compounded base falls back to single days).
+            if self.exact_product(base, table, f.num, &mut at.pieces) {
+                return Ok((last, f));
+            }
+        }
+        Ok((d, pb.day(d)?))
+    }
+
+    /// Phase 6: back-valued movements. The interest they earn in a period
+    /// that posts before they are booked is owed to a later posting; returns
+    /// the run's share of it when day rows are kept (else zero).
+    #[inline]
+    fn owe_back_value(
+        &mut self,
+        d: NaiveDate,
+        step: &Step,
+        unbooked: &[usize],
+    ) -> Result<Decimal, EngineError> {
+        let mut back_value_today = Decimal::ZERO;
+        for &i in unbooked {
+            let Some(m) = self.movement(i) else { continue };
+            let with = checked(step.base.checked_add(m.amount), "the base", d)?;
+            let mut scratch = Pieces::default();
+            let t = self.table_for(with, d)?;
+            let full = self.interest(with, t, step.fraction, d, &mut scratch)?;
+            let mut diff = full;
+            diff.subtract(&step.interest)
+                .map_err(overflow("the back-value interest", d))?;
+            let owed = match self.state.back_value_owed.iter_mut().find(|(j, _)| *j == i) {
+                Some((_, a)) => a,
+                None => {
+                    self.state.back_value_owed.push((i, Accrual::new()));
+                    match self.state.back_value_owed.last_mut() {
+                        Some((_, a)) => a,
+                        None => continue,
+                    }
+                }
+            };
+            diff.add_to(owed)
+                .map_err(overflow("the back-value interest", d))?;
+            if self.options.keep_days {
+                let v = diff
+                    .value()
+                    .map_err(overflow("the back-value interest", d))?;
+                back_value_today = checked(
+                    back_value_today.checked_add(v),
+                    "the back-value interest",
+                    d,
+                )?;
+            }
+        }
+        Ok(back_value_today)
+    }
+
+    /// Phase 7: the end of `d`: daily compounding joins the base, then a
+    /// posting if a period ends, else a compounding end. Returns the amount
+    /// posted, if any.
+    #[inline]
+    fn end_day(
+        &mut self,
+        d: NaiveDate,
+        step: &Step,
+        period: Option<Period>,
+        at: &mut Cursor,
+        report: &mut Report,
+    ) -> Result<Option<Decimal>, EngineError> {
+        let terms = self.terms;
+        if terms.compounding.joins_daily() {
+            self.state.compounded =
+                checked(self.state.compounded.checked_add(step.value), "the base", d)?;
+        }
+        let mut posted_today = None;
+        let is_compounding_end = self.compounding_ends.get(at.ci) == Some(&d);
+        if is_compounding_end {
+            at.ci += 1;
+        }
+        if let Some(p) = period.filter(|p| p.end == d) {
+            let row = self.post(p, d)?;
+            if terms.capitalise {
+                self.state.balance =
+                    checked(self.state.balance.checked_add(row.posted), "the balance", d)?;
+            }
+            posted_today = Some(row.posted);
+            report.postings.push(row);
+            at.pi += 1;
+        } else if is_compounding_end {
+            let joined = self
+                .since_compounding
+                .value()
+                .map_err(overflow("the compounded interest", d))?;
+            self.state.compounded = checked(
+                self.state
+                    .compounded
+                    .checked_add(joined)
+                    .and_then(|c| c.checked_add(self.state.opening_to_join)),
+                "the base",
+                d,
+            )?;
+            self.state.opening_to_join = Decimal::ZERO;
+            self.since_compounding = Accrual::new();
+        }
+        Ok(posted_today)
+    }
+
+    /// Phase 8: what the report keeps of `d`: the accrued at the window's
+    /// eve, the day row, and the rate at the cut-off.
+    #[inline]
+    fn record_day(
+        &self,
+        d: NaiveDate,
+        step: &Step,
+        back_value: Decimal,
+        posted: Option<Decimal>,
+        report: &mut Report,
+    ) -> Result<(), EngineError> {
+        let opts = self.options;
+        let is_window_eve = opts.window_start.pred_opt() == Some(d);
+        if opts.keep_days || is_window_eve || d == opts.cutoff {
+            let accrued = self.accrued(d)?;
+            if is_window_eve {
+                report.accrued_before_window = Some(self.round(accrued));
+            }
+            if opts.keep_days {
+                report.days.push(DayRow {
+                    date: d,
+                    balance: self.state.balance,
+                    base: step.base,
+                    rate: step.rate,
+                    fraction: step.fraction,
+                    interest: step.value,
+                    interest_num: step.interest.numerator(),
+                    interest_den: step.interest.denominator(),
+                    back_value,
+                    accrued,
+                    posted,
+                    fixing: self.fixings.and_then(|f| f.get(&d)).cloned(),
+                });
+            }
+        }
+        if d == opts.cutoff {
+            report.rate_at_cutoff = Some(step.rate);
+        }
+        Ok(())
+    }
+
+    /// Phase 9: movements after the last earning day still reach the
+    /// balance; then the cut-off and window figures.
+    fn finish(mut self, at: &mut Cursor, report: Report) -> Result<AccountResult, EngineError> {
+        let terms = self.terms;
+        let opts = self.options;
+        let open = terms.open_date;
+        while let Some(&i) = self.order.get(at.mi) {
             let Some(m) = self.movement(i) else { break };
             if m.value_date > opts.cutoff {
                 break;
             }
-            if m.value_date >= resume_day {
+            if m.value_date >= at.resume_day {
                 self.state.balance = checked(
                     self.state.balance.checked_add(m.amount),
                     "the balance",
                     m.value_date,
                 )?;
             }
-            mi += 1;
+            at.mi += 1;
         }
 
         let accrued_at_cutoff = if opts.cutoff < open {
             Decimal::ZERO
         } else {
-            round(self.accrued(opts.cutoff)?)
+            self.round(self.accrued(opts.cutoff)?)
         };
         let mut posted_in_window = Decimal::ZERO;
-        for p in postings
+        for p in report
+            .postings
             .iter()
             .filter(|p| p.end >= opts.window_start && p.end <= opts.cutoff)
         {
@@ -772,7 +927,7 @@ impl<'a> Loop<'a> {
                 p.end,
             )?;
         }
-        let before = accrued_before_window.unwrap_or(Decimal::ZERO);
+        let before = report.accrued_before_window.unwrap_or(Decimal::ZERO);
         let interest_for_window = checked(
             posted_in_window
                 .checked_add(accrued_at_cutoff)
@@ -780,7 +935,7 @@ impl<'a> Loop<'a> {
             "the interest for the window",
             opts.cutoff,
         )?;
-        let effective_annual_rate = match rate_at_cutoff {
+        let effective_annual_rate = match report.rate_at_cutoff {
             Some(r) => Some(growth::effective_annual_rate(terms.compounding, r)?),
             None => None,
         };
@@ -790,17 +945,17 @@ impl<'a> Loop<'a> {
             self.state.balance
         };
         Ok(AccountResult {
-            postings,
+            postings: report.postings,
             balance_at_cutoff,
             accrued_at_cutoff,
             accrued_before_window: before,
             posted_in_window,
             interest_for_window,
-            rate_at_cutoff,
+            rate_at_cutoff: report.rate_at_cutoff,
             effective_annual_rate,
-            days,
-            spans,
-            states,
+            days: report.days,
+            spans: report.spans,
+            states: report.states,
             fixing_warnings: Vec::new(),
         })
     }
@@ -832,9 +987,9 @@ impl<'a> Loop<'a> {
                 .and_then(|m| m.value_date.pred_opt()),
         );
         let source = if base.is_sign_negative() && !base.is_zero() {
-            self.sources.debit_rates
+            self.debit_rates
         } else {
-            Some(self.sources.rates)
+            Some(self.rates)
         };
         before(
             source
@@ -875,12 +1030,12 @@ impl<'a> Loop<'a> {
     /// debit rates for a base of the opposite sign (`None`: it earns nothing).
     fn table_for(&self, base: Decimal, d: NaiveDate) -> Result<Option<&'a RateTable>, EngineError> {
         let source = if base.is_sign_negative() && !base.is_zero() {
-            match self.sources.debit_rates {
+            match self.debit_rates {
                 Some(s) => s,
                 None => return Ok(None),
             }
         } else {
-            self.sources.rates
+            self.rates
         };
         let t = source.table_on(d).ok_or_else(|| EngineError::NoRate {
             date: d,
@@ -1000,7 +1155,7 @@ impl<'a> Loop<'a> {
         );
         let expected = checked(round(interest).checked_add(back_value), "the posting", d)?;
         let first = self.periods.first().is_some_and(|f| f.start == p.start);
-        let actual = self.sources.actual.iter().find(|a| {
+        let actual = self.actual.iter().find(|a| {
             a.end == p.end && (a.start == p.start || (first && a.start == terms.open_date))
         });
         self.period_acc = Accrual::new();

@@ -32,9 +32,11 @@ use rust_decimal::Decimal;
 
 use crate::book::AccountEntry;
 use crate::conventions::calendar::Calendar;
-use crate::engine::rates::{RateSchedule, RateSource};
-use crate::engine::run::{accrue, RunOptions, Sources};
+use crate::engine::floating::{FixingFallback, Fixings};
+use crate::engine::rates::RateSchedule;
+use crate::engine::reconcile::Tolerance;
 use crate::engine::{EngineError, Movement, RoundAt, TierMethod};
+use crate::pipeline::{run_account, BookAccount, Options};
 
 use catalogue::Product;
 use draft::Draft;
@@ -528,24 +530,19 @@ impl Generator {
             .debit_product
             .and_then(|p| self.products.get(p))
             .map(|p| &p.schedule);
-        let planting = d.plant.is_some();
-        let options = RunOptions {
-            window_start: WINDOW_START,
-            cutoff: CUTOFF,
-            keep_days: planting,
-            keep_states: false,
-            keep_spans: false,
-            fast_path: true,
-        };
-        let sources = Sources {
-            rates,
-            debit_rates: debit.map(|r| r as &dyn RateSource),
-            movements: &d.movements,
-            actual: &[],
-            breaks: &[],
+        let fixings = Fixings::new();
+        let inputs = BookAccount {
+            entry: &d.entry,
+            rates: Some(rates),
+            debit_rates: debit,
             floating: None,
+            fixings: &fixings,
+            movements: &d.movements,
+            statements: &[],
         };
-        let right = accrue(&d.entry.terms, sources, options).map_err(fail)?;
+        let right = run_account(&inputs, &run_options(d.plant.is_some()))
+            .map_err(|f| fail(f.error))?
+            .result;
         let posting = right
             .postings
             .iter()
@@ -557,10 +554,8 @@ impl Generator {
             let mut posted = p.expected;
             if let Some(stream) = d.plant {
                 let job = plant::Job {
-                    terms: &d.entry.terms,
+                    account: &inputs,
                     rates,
-                    debit,
-                    movements: &d.movements,
                     right: &right,
                     posting: p,
                 };
@@ -595,6 +590,19 @@ impl Generator {
             .into_par_iter()
             .map(|i| self.account(i))
             .collect()
+    }
+}
+
+/// How a sample account is computed: the book's window, day rows kept
+/// when a mistake is to be planted.
+fn run_options(keep_days: bool) -> Options {
+    Options {
+        window_start: WINDOW_START,
+        cutoff: CUTOFF,
+        tolerance: Tolerance::default(),
+        fixing_fallback: FixingFallback::None,
+        keep_days,
+        fast_path: true,
     }
 }
 

@@ -13,12 +13,14 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use super::rng::Rng;
-use super::{CUTOFF, WINDOW_START};
+use super::{run_options, CUTOFF};
+use crate::book::AccountEntry;
 use crate::conventions::daycount::Basis;
-use crate::engine::rates::{RateSchedule, RateSource};
+use crate::engine::rates::RateSchedule;
 use crate::engine::reconcile::expected_over;
-use crate::engine::run::{accrue, AccountResult, PostingRow, RunOptions, Sources};
+use crate::engine::run::{AccountResult, PostingRow};
 use crate::engine::{AccountTerms, EngineError, Movement};
+use crate::pipeline::{run_account, BookAccount};
 
 /// The kinds of planted mistake.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
@@ -134,14 +136,24 @@ impl Mistake {
 
 /// The account and its right run.
 pub(crate) struct Job<'a> {
-    pub terms: &'a AccountTerms,
+    /// The account as its book holds it (no statement rows yet).
+    pub account: &'a BookAccount<'a>,
+    /// Its rates (the account's, never absent for a sample account).
     pub rates: &'a RateSchedule,
-    pub debit: Option<&'a RateSchedule>,
-    pub movements: &'a [Movement],
     /// Run with day rows kept.
     pub right: &'a AccountResult,
     /// The posting of the statement row.
     pub posting: &'a PostingRow,
+}
+
+impl Job<'_> {
+    fn terms(&self) -> &AccountTerms {
+        &self.account.entry.terms
+    }
+
+    fn movements(&self) -> &[Movement] {
+        self.account.movements
+    }
 }
 
 /// A mistake must move the amount by at least this many minor units, so
@@ -156,7 +168,7 @@ const LEAST_GAP_UNITS: i64 = 3;
 pub(crate) fn plant(job: &Job, stream: u64) -> Result<(Mistake, Decimal), EngineError> {
     let mut r = Rng::stream(stream, 0x5EED);
     let first = usize::try_from(r.below(MistakeKind::ALL.len() as u64)).unwrap_or(0);
-    let least = Decimal::new(LEAST_GAP_UNITS, job.terms.minor_units);
+    let least = Decimal::new(LEAST_GAP_UNITS, job.terms().minor_units);
     let right = job.posting.expected;
     for k in 0..MistakeKind::ALL.len() {
         let Some(kind) = MistakeKind::ALL.get((first + k) % MistakeKind::ALL.len()) else {
@@ -171,31 +183,34 @@ pub(crate) fn plant(job: &Job, stream: u64) -> Result<(Mistake, Decimal), Engine
     Ok(unexplained(job, &mut r))
 }
 
-/// The posting the changed account would make for the same period.
+/// The posting the changed account would make for the same period: the
+/// account with `terms` (when given), `rates` and `movements` in place of
+/// its own.
 fn rerun(
     job: &Job,
-    terms: &AccountTerms,
+    terms: Option<&AccountTerms>,
     rates: &RateSchedule,
     movements: &[Movement],
 ) -> Option<Decimal> {
-    let sources = Sources {
-        rates,
-        debit_rates: job.debit.map(|d| d as &dyn RateSource),
+    let changed_entry;
+    let entry = match terms {
+        Some(t) => {
+            changed_entry = AccountEntry {
+                terms: t.clone(),
+                ..job.account.entry.clone()
+            };
+            &changed_entry
+        }
+        None => job.account.entry,
+    };
+    let account = BookAccount {
+        entry,
+        rates: Some(rates),
         movements,
-        actual: &[],
-        breaks: &[],
-        floating: None,
+        ..*job.account
     };
-    let options = RunOptions {
-        window_start: WINDOW_START,
-        cutoff: CUTOFF,
-        keep_days: false,
-        keep_states: false,
-        keep_spans: false,
-        fast_path: true,
-    };
-    let result = accrue(terms, sources, options).ok()?;
-    result
+    let run = run_account(&account, &run_options(false)).ok()?;
+    run.result
         .postings
         .iter()
         .find(|w| w.start == job.posting.start && w.end == job.posting.end)
@@ -236,160 +251,182 @@ fn other_bases(b: Basis) -> &'static [Basis] {
     }
 }
 
+/// The posting under one mistake of `kind`, drawing from `r`; `None` when
+/// the account offers no such mistake or the changed account cannot be
+/// computed.
 fn attempt(
     kind: MistakeKind,
     job: &Job,
     r: &mut Rng,
 ) -> Result<Option<(Mistake, Decimal)>, EngineError> {
+    Ok(match kind {
+        MistakeKind::OtherBasis => other_basis(job),
+        MistakeKind::RateChangeNotApplied => rate_change_not_applied(job, r),
+        MistakeKind::RateChangeMoved => rate_change_moved(job, r),
+        MistakeKind::MovementMoved => movement_moved(job, r),
+        MistakeKind::MovementLeftOut => movement_left_out(job, r),
+        MistakeKind::PeriodADayOff => period_a_day_off(job, r)?,
+        MistakeKind::UnexplainedAmount => Some(unexplained(job, r)),
+    })
+}
+
+/// Rate changes that fall inside the posting's period (the first table is
+/// not a change), by table index.
+fn changes_in_period(job: &Job) -> Vec<usize> {
     let p = job.posting;
-    let t = job.terms;
-    let least = Decimal::new(LEAST_GAP_UNITS, t.minor_units);
-    let far_enough = |x: Decimal| (x - p.expected).abs() >= least;
-    // Rate changes that fall inside the period (the first table is not a change).
     let tables = job.rates.tables();
-    let changes: Vec<usize> = (1..tables.len())
+    (1..tables.len())
         .filter(|&i| {
             tables
                 .get(i)
                 .is_some_and(|x| x.effective > p.start && x.effective <= p.end)
         })
-        .collect();
-    // Movements valued inside the period.
-    let moves: Vec<usize> = (0..job.movements.len())
+        .collect()
+}
+
+/// Movements valued inside the posting's period, by index.
+fn moves_in_period(job: &Job) -> Vec<usize> {
+    let p = job.posting;
+    let movements = job.movements();
+    (0..movements.len())
         .filter(|&i| {
-            job.movements
+            movements
                 .get(i)
                 .is_some_and(|m| m.value_date >= p.start && m.value_date <= p.end)
         })
-        .collect();
-    Ok(match kind {
-        MistakeKind::OtherBasis => other_bases(t.basis).iter().find_map(|b| {
-            let wrong = AccountTerms {
-                basis: *b,
-                ..t.clone()
-            };
-            rerun(job, &wrong, job.rates, job.movements)
-                .filter(|x| far_enough(*x))
-                .map(|x| (Mistake::OtherBasis { used: *b }, x))
-        }),
-        MistakeKind::RateChangeNotApplied => {
-            let Some(&i) = r.pick(&changes) else {
-                return Ok(None);
-            };
-            let mut kept = tables.to_vec();
-            let effective = kept.remove(i).effective;
-            rerun(job, t, &RateSchedule::from_tables(kept), job.movements)
-                .map(|x| (Mistake::RateChangeNotApplied { effective }, x))
-        }
-        MistakeKind::RateChangeMoved => {
-            let Some(&i) = r.pick(&changes) else {
-                return Ok(None);
-            };
-            let (Some(prev), Some(this)) = (tables.get(i - 1), tables.get(i)) else {
-                return Ok(None);
-            };
-            let next = tables.get(i + 1).map(|x| x.effective);
-            let k = offset(r);
-            let Some(applied) = shifted(this.effective, k)
-                .filter(|d| *d > prev.effective && next.is_none_or(|n| *d < n))
-            else {
-                return Ok(None);
-            };
-            let mut moved = tables.to_vec();
-            if let Some(x) = moved.get_mut(i) {
-                x.effective = applied;
-            }
-            rerun(job, t, &RateSchedule::from_tables(moved), job.movements).map(|x| {
-                (
-                    Mistake::RateChangeMoved {
-                        effective: this.effective,
-                        applied,
-                    },
-                    x,
-                )
-            })
-        }
-        MistakeKind::MovementMoved => {
-            let plain: Vec<usize> = moves
-                .iter()
-                .copied()
-                .filter(|&i| {
-                    job.movements
-                        .get(i)
-                        .is_some_and(|m| m.booking_date.is_none())
-                })
-                .collect();
-            let Some(&i) = r.pick(&plain) else {
-                return Ok(None);
-            };
-            let Some(m) = job.movements.get(i) else {
-                return Ok(None);
-            };
-            let k = offset(r);
-            let Some(taken) = shifted(m.value_date, k)
-                .filter(|d| *d >= t.open_date && *d <= CUTOFF && t.maturity.is_none_or(|x| *d < x))
-            else {
-                return Ok(None);
-            };
-            let mut changed = job.movements.to_vec();
-            if let Some(x) = changed.get_mut(i) {
-                x.value_date = taken;
-            }
-            rerun(job, t, job.rates, &changed).map(|x| {
-                (
-                    Mistake::MovementMoved {
-                        reference: m.reference.clone().unwrap_or_default(),
-                        value_date: m.value_date,
-                        taken,
-                    },
-                    x,
-                )
-            })
-        }
-        MistakeKind::MovementLeftOut => {
-            let Some(&i) = r.pick(&moves) else {
-                return Ok(None);
-            };
-            let mut left = job.movements.to_vec();
-            let m = left.remove(i);
-            rerun(job, t, job.rates, &left).map(|x| {
-                (
-                    Mistake::MovementLeftOut {
-                        reference: m.reference.unwrap_or_default(),
-                    },
-                    x,
-                )
-            })
-        }
-        MistakeKind::PeriodADayOff => {
-            let late = r.chance(500);
-            let (from, to) = if late {
-                (shifted(p.start, 1), Some(p.end))
-            } else {
-                (Some(p.start), shifted(p.end, -1))
-            };
-            let (Some(from), Some(to)) = (from, to) else {
-                return Ok(None);
-            };
-            if from > to {
-                return Ok(None);
-            }
-            let amount = expected_over(t, job.right, from, to)?.amount;
-            let m = if late {
-                Mistake::PeriodStartADayLate
-            } else {
-                Mistake::PeriodEndADayEarly
-            };
-            Some((m, amount))
-        }
-        MistakeKind::UnexplainedAmount => Some(unexplained(job, r)),
+        .collect()
+}
+
+/// The first other basis that moves the posting far enough.
+fn other_basis(job: &Job) -> Option<(Mistake, Decimal)> {
+    let t = job.terms();
+    let least = Decimal::new(LEAST_GAP_UNITS, t.minor_units);
+    let far_enough = |x: Decimal| (x - job.posting.expected).abs() >= least;
+    other_bases(t.basis).iter().find_map(|b| {
+        let wrong = AccountTerms {
+            basis: *b,
+            ..t.clone()
+        };
+        rerun(job, Some(&wrong), job.rates, job.movements())
+            .filter(|x| far_enough(*x))
+            .map(|x| (Mistake::OtherBasis { used: *b }, x))
     })
+}
+
+/// A rate change of the period left out.
+fn rate_change_not_applied(job: &Job, r: &mut Rng) -> Option<(Mistake, Decimal)> {
+    let &i = r.pick(&changes_in_period(job))?;
+    let mut kept = job.rates.tables().to_vec();
+    let effective = kept.remove(i).effective;
+    rerun(job, None, &RateSchedule::from_tables(kept), job.movements())
+        .map(|x| (Mistake::RateChangeNotApplied { effective }, x))
+}
+
+/// A rate change of the period applied a few days early or late (still
+/// after the table before it and before the one after it).
+fn rate_change_moved(job: &Job, r: &mut Rng) -> Option<(Mistake, Decimal)> {
+    let &i = r.pick(&changes_in_period(job))?;
+    let tables = job.rates.tables();
+    let (prev, this) = (tables.get(i - 1)?, tables.get(i)?);
+    let next = tables.get(i + 1).map(|x| x.effective);
+    let k = offset(r);
+    let applied = shifted(this.effective, k)
+        .filter(|d| *d > prev.effective && next.is_none_or(|n| *d < n))?;
+    let mut moved = tables.to_vec();
+    if let Some(x) = moved.get_mut(i) {
+        x.effective = applied;
+    }
+    rerun(
+        job,
+        None,
+        &RateSchedule::from_tables(moved),
+        job.movements(),
+    )
+    .map(|x| {
+        (
+            Mistake::RateChangeMoved {
+                effective: this.effective,
+                applied,
+            },
+            x,
+        )
+    })
+}
+
+/// A movement of the period without a booking date taken a few days early
+/// or late (within the account's life and the window).
+fn movement_moved(job: &Job, r: &mut Rng) -> Option<(Mistake, Decimal)> {
+    let t = job.terms();
+    let movements = job.movements();
+    let plain: Vec<usize> = moves_in_period(job)
+        .into_iter()
+        .filter(|&i| movements.get(i).is_some_and(|m| m.booking_date.is_none()))
+        .collect();
+    let &i = r.pick(&plain)?;
+    let m = movements.get(i)?;
+    let k = offset(r);
+    let taken = shifted(m.value_date, k)
+        .filter(|d| *d >= t.open_date && *d <= CUTOFF && t.maturity.is_none_or(|x| *d < x))?;
+    let mut changed = movements.to_vec();
+    if let Some(x) = changed.get_mut(i) {
+        x.value_date = taken;
+    }
+    rerun(job, None, job.rates, &changed).map(|x| {
+        (
+            Mistake::MovementMoved {
+                reference: m.reference.clone().unwrap_or_default(),
+                value_date: m.value_date,
+                taken,
+            },
+            x,
+        )
+    })
+}
+
+/// A movement of the period left out.
+fn movement_left_out(job: &Job, r: &mut Rng) -> Option<(Mistake, Decimal)> {
+    let &i = r.pick(&moves_in_period(job))?;
+    let mut left = job.movements().to_vec();
+    let m = left.remove(i);
+    rerun(job, None, job.rates, &left).map(|x| {
+        (
+            Mistake::MovementLeftOut {
+                reference: m.reference.unwrap_or_default(),
+            },
+            x,
+        )
+    })
+}
+
+/// The right run's interest from the period's second day, or to its last
+/// day but one.
+fn period_a_day_off(job: &Job, r: &mut Rng) -> Result<Option<(Mistake, Decimal)>, EngineError> {
+    let p = job.posting;
+    let late = r.chance(500);
+    let (from, to) = if late {
+        (shifted(p.start, 1), Some(p.end))
+    } else {
+        (Some(p.start), shifted(p.end, -1))
+    };
+    let (Some(from), Some(to)) = (from, to) else {
+        return Ok(None);
+    };
+    if from > to {
+        return Ok(None);
+    }
+    let amount = expected_over(job.terms(), job.right, from, to)?.amount;
+    let m = if late {
+        Mistake::PeriodStartADayLate
+    } else {
+        Mistake::PeriodEndADayEarly
+    };
+    Ok(Some((m, amount)))
 }
 
 /// The right amount plus 30% to 60% of it (at least ten currency units), a
 /// gap no single change of the cause search comes near.
 fn unexplained(job: &Job, r: &mut Rng) -> (Mistake, Decimal) {
-    let places = job.terms.minor_units;
+    let places = job.terms().minor_units;
     let right = job.posting.expected;
     let share = Decimal::new(r.between(30, 60), 2);
     let floor = Decimal::TEN;

@@ -31,8 +31,8 @@ use ledgerate::engine::floating::{
     FixingFallback, Fixings, FloatingRates, FloatingSchedule, IndexRate, TierRate,
 };
 use ledgerate::engine::rates::RateSchedule;
-use ledgerate::engine::run::{accrue, RunOptions, Sources};
-use ledgerate::engine::{AccountTerms, FloatingTerms, RateMethod};
+use ledgerate::engine::run::{accrue, RunOptions};
+use ledgerate::engine::{AccountTerms, FloatingTerms, Inputs, RateMethod};
 use rust_decimal::Decimal;
 
 /// Fewer coupons than this fails the test, so a short or empty file cannot pass.
@@ -148,7 +148,7 @@ fn overnight_coupons_agree_with_the_reference_library() {
             }),
             Decimal::ZERO,
         )]);
-        let sources = Sources {
+        let sources = Inputs {
             rates: &empty,
             debit_rates: None,
             movements: &[],

@@ -16,8 +16,8 @@ use ledgerate::conventions::rounding::RoundMode;
 use ledgerate::conventions::schedule::Posting;
 use ledgerate::engine::rates::RateSchedule;
 use ledgerate::engine::reconcile::{reconcile, StatementPeriod, Tolerance};
-use ledgerate::engine::run::{accrue, AccountResult, RunOptions, Sources};
-use ledgerate::engine::{AccountTerms, ActualPosting, Movement, RoundAt, Side, TierMethod};
+use ledgerate::engine::run::{accrue, AccountResult, RunOptions};
+use ledgerate::engine::{AccountTerms, ActualPosting, Inputs, Movement, RoundAt, Side, TierMethod};
 use rust_decimal::Decimal;
 use serde_json::Value;
 
@@ -131,7 +131,7 @@ fn run(ex: &Value) -> AccountResult {
         keep_spans: false,
         fast_path: true,
     };
-    let sources = Sources {
+    let sources = Inputs {
         rates: &rates,
         debit_rates: None,
         movements: &movements,

@@ -64,7 +64,7 @@ fn posted_with(
     movements: &[Movement],
     period: Option<(NaiveDate, NaiveDate)>,
 ) -> Decimal {
-    let src = Sources {
+    let src = Inputs {
         rates,
         debit_rates: None,
         movements,
@@ -88,7 +88,7 @@ fn posted_with(
 
 /// Reconciles the November statement posting `posted` and returns the status and cause.
 fn explain(c: &Case, posted: Decimal, tolerance: Tolerance) -> (Status, String) {
-    let src = Sources {
+    let src = Inputs {
         rates: &c.rates,
         debit_rates: None,
         movements: &c.movements,
@@ -113,16 +113,10 @@ fn explain(c: &Case, posted: Decimal, tolerance: Tolerance) -> (Status, String) 
     )
     .unwrap();
     let row = &rows[0];
-    let a = Account {
-        terms: &c.terms,
-        rates: &c.rates,
-        debit_rates: None,
-        movements: &c.movements,
-        actual: &[],
-        states: &r.states,
-        floating: None,
-    };
-    (row.status, likely_cause(&a, row, &tolerance))
+    (
+        row.status,
+        likely_cause(&c.terms, &src, &r.states, row, &tolerance),
+    )
 }
 
 fn assert_first(cause: &str, words: &str) {
@@ -432,8 +426,8 @@ fn floating_sources<'a>(
     c: &'a FloatingCase,
     schedule: &'a FloatingSchedule,
     empty: &'a RateSchedule,
-) -> Sources<'a> {
-    Sources {
+) -> Inputs<'a> {
+    Inputs {
         rates: empty,
         debit_rates: None,
         movements: &[],
@@ -481,16 +475,7 @@ fn floating_cause(c: &FloatingCase, terms: &AccountTerms, schedule: &FloatingSch
         "{:?}",
         rows[0]
     );
-    let a = Account {
-        terms: &c.terms,
-        rates: &empty,
-        debit_rates: None,
-        movements: &[],
-        actual: &[],
-        states: &r.states,
-        floating: sources.floating,
-    };
-    likely_cause(&a, &rows[0], &tolerance)
+    likely_cause(&c.terms, &sources, &r.states, &rows[0], &tolerance)
 }
 
 /// Likely causes with Floating rates: a lookback mis-set by a business day is found.

@@ -7,9 +7,10 @@ use std::sync::Arc;
 
 use super::*;
 use crate::conventions::schedule::Posting;
-use crate::engine::run::{accrue, AccountResult, RunOptions, Sources};
+use crate::engine::run::{accrue, AccountResult, RunOptions};
 use crate::engine::terms::FloatingTerms;
 use crate::engine::AccountTerms;
+use crate::engine::Inputs;
 
 fn d(s: &str) -> NaiveDate {
     s.parse().unwrap()
@@ -123,7 +124,7 @@ fn coupon(start: &str, end: &str, floating: FloatingTerms) -> AccountTerms {
 
 fn run(t: &AccountTerms, s: &FloatingSchedule, fixings: &Fixings, cutoff: &str) -> AccountResult {
     let empty = RateSchedule::default();
-    let src = Sources {
+    let src = Inputs {
         rates: &empty,
         debit_rates: None,
         movements: &[],
@@ -559,7 +560,7 @@ fn a_missing_fixing_names_the_index_and_date() {
     let fx = harbourview_fixings();
     let empty = RateSchedule::default();
     let go = |fallback| {
-        let src = Sources {
+        let src = Inputs {
             rates: &empty,
             debit_rates: None,
             movements: &[],
@@ -611,7 +612,7 @@ fn compounding_on_another_basis_is_an_error_naming_it() {
     let s = harbourview_rate("0", None, None);
     let fx = harbourview_fixings();
     let empty = RateSchedule::default();
-    let src = Sources {
+    let src = Inputs {
         rates: &empty,
         debit_rates: None,
         movements: &[],
@@ -674,7 +675,7 @@ fn a_base_change_inside_the_period_splits_at_the_factor() {
         booking_date: None,
         reference: None,
     }];
-    let src = Sources {
+    let src = Inputs {
         rates: &empty,
         debit_rates: None,
         movements: &moves,

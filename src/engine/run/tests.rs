@@ -11,6 +11,7 @@ use crate::conventions::daycount::{year_fraction, Terms};
 use crate::conventions::schedule::{AnchorKind, Posting};
 use crate::engine::rates::RateSchedule;
 use crate::engine::terms::Side;
+use crate::engine::Inputs;
 
 fn d(s: &str) -> NaiveDate {
     s.parse().unwrap()
@@ -45,7 +46,7 @@ fn run_with(
     movements: &[Movement],
     o: RunOptions,
 ) -> AccountResult {
-    let src = Sources {
+    let src = Inputs {
         rates,
         debit_rates: None,
         movements,
@@ -180,7 +181,7 @@ fn daycount_act_act_icma_regular_and_stub() {
     assert_eq!(r.postings[1].posted, n("1000.00"));
     let mut none = t.clone();
     none.posting = Posting::None;
-    let src = Sources {
+    let src = Inputs {
         rates: &flat("0.04"),
         debit_rates: None,
         movements: &[],
@@ -209,7 +210,7 @@ fn daycount_act_365l_follows_the_period_end_year() {
 fn rates_a_day_without_rates_is_an_error() {
     let t = account(Basis::Act360, "2026-11-01", "1000");
     let late = RateSchedule::from_rows([(d("2026-11-10"), n("0.03"), Decimal::ZERO)]);
-    let src = Sources {
+    let src = Inputs {
         rates: &late,
         debit_rates: None,
         movements: &[],
@@ -237,7 +238,7 @@ fn rates_a_debit_rate_applies_to_an_overdrawn_base() {
     let t = account(Basis::Act360, "2026-11-01", "-36000");
     let credit = flat("0.01");
     let debit = flat("0.12");
-    let src = Sources {
+    let src = Inputs {
         rates: &credit,
         debit_rates: Some(&debit),
         movements: &[],
@@ -289,7 +290,7 @@ fn postings_the_actual_posting_feeds_capitalisation() {
         end: d("2026-10-31"),
         amount: n("400.00"),
     }];
-    let src = Sources {
+    let src = Inputs {
         rates: &rates,
         debit_rates: None,
         movements: &[],
@@ -384,7 +385,7 @@ fn a_saved_state_resumes_to_the_same_figures() {
         .iter()
         .find(|s| s.day == d("2026-09-01"))
         .unwrap();
-    let src = Sources {
+    let src = Inputs {
         rates: &flat("0.045"),
         debit_rates: None,
         movements: &moves,
@@ -409,7 +410,7 @@ fn a_saved_state_resumes_to_the_same_figures() {
 #[test]
 fn overflow_is_an_error() {
     let t = account(Basis::Act360, "2026-11-01", "79228162514264337593543950335");
-    let src = Sources {
+    let src = Inputs {
         rates: &flat("0.10"),
         debit_rates: None,
         movements: &[mv("2026-11-02", "1", None)],
@@ -631,7 +632,7 @@ proptest! {
     #[test]
     fn the_fast_path_equals_the_day_loop((t, rates, movements, cutoff) in any_account()) {
         let run = |fast: bool| {
-            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[], breaks: &[], floating: None };
+            let src = Inputs { rates: &rates, debit_rates: None, movements: &movements, actual: &[], breaks: &[], floating: None };
             let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, keep_spans: false, fast_path: fast };
             accrue(&t, src, o)
         };
@@ -666,7 +667,7 @@ proptest! {
             .collect();
         let window = cutoff.with_day(1).unwrap();
         let run = |fast: bool| {
-            let src = Sources { rates: &rates, debit_rates: None, movements: &movements, actual: &[], breaks: &breaks, floating: None };
+            let src = Inputs { rates: &rates, debit_rates: None, movements: &movements, actual: &[], breaks: &breaks, floating: None };
             let o = RunOptions { window_start: window, cutoff, keep_days: !fast, keep_states: false, keep_spans: fast, fast_path: fast };
             let r = accrue(&t, src, o).unwrap();
             (reconcile(&t, &r, &statements, window, cutoff, &Tolerance::default()), r.spans.len())
@@ -774,7 +775,7 @@ proptest! {
         let empty = RateSchedule::default();
         let run = |fast: bool| {
             let floating = Some(FloatingRates { schedule: &schedule, fixings: &fixings, fallback: FixingFallback::None });
-            let src = Sources { rates: &empty, debit_rates: None, movements: &movements, actual: &[], breaks: &[], floating };
+            let src = Inputs { rates: &empty, debit_rates: None, movements: &movements, actual: &[], breaks: &[], floating };
             let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days: false, keep_states: false, keep_spans: false, fast_path: fast };
             accrue(&t, src, o)
         };

@@ -1,0 +1,391 @@
+//! One account explained: what `ledgerate explain` shows (the account's
+//! terms, its days, its postings, its statement periods with expected,
+//! posted, variance, status and likely cause, its notes, and the accrued
+//! interest at the cut-off), built from the pipeline's run of the account,
+//! and the printer that lays it out as text.
+//!
+//! The figures are the pipeline's, the same the month-end run reports. This
+//! module reads no file, resolves no setting and looks for no account (the
+//! command line does all three); it writes only to the writer it is given.
+
+use std::io::{self, Write};
+
+use chrono::NaiveDate;
+use rust_decimal::Decimal;
+
+use crate::book::{AccountEntry, Book};
+use crate::engine::floating::FixingUsed;
+use crate::engine::reconcile::Status;
+use crate::engine::{DayRow, FloorOn, PostingRow};
+use crate::pipeline::{
+    run_account, statements_of, AccountRun, BookAccount, CheckedRow, Failed, Options,
+};
+use crate::problem::Problem;
+
+/// One account's explanation: the figures of the days shown.
+#[derive(Debug, Clone)]
+pub struct Explanation {
+    /// The account's terms, the days shown and the cut-off.
+    pub header: Header,
+    /// The days shown, one row each.
+    pub days: Vec<DayRow>,
+    /// The posting periods that overlap the days shown.
+    pub postings: Vec<PostingRow>,
+    /// The reconciled statement periods (and posting periods no statement
+    /// covers) that overlap the days shown, each with its likely cause when
+    /// it is over- or under-posted.
+    pub statements: Vec<CheckedRow>,
+    /// Whether the account has statement rows for periods ending by the cut-off.
+    pub has_statements: bool,
+    /// The pipeline's notes and warnings on the account.
+    pub notes: Vec<Problem>,
+    /// Interest earned since the last posting and not posted, rounded.
+    pub accrued_at_cutoff: Decimal,
+}
+
+/// The account's terms as explain's first lines name them.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Header {
+    /// The account id.
+    pub id: String,
+    /// Its name (may be empty).
+    pub name: String,
+    /// Its currency code.
+    pub currency: String,
+    /// Asset or liability.
+    pub side: &'static str,
+    /// The day-count basis.
+    pub basis: &'static str,
+    /// The compounding rule.
+    pub compounding: &'static str,
+    /// The posting frequency.
+    pub posting: &'static str,
+    /// Whether postings join the balance.
+    pub capitalised: bool,
+    /// A floating account's rate terms.
+    pub floating: Option<FloatingHeader>,
+    /// The first and last days shown.
+    pub shown: (NaiveDate, NaiveDate),
+    /// The cut-off.
+    pub cutoff: NaiveDate,
+    /// The currency's minor units (amounts are shown to these places).
+    pub minor_units: u32,
+}
+
+/// A floating account's rate terms.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FloatingHeader {
+    /// The rate method.
+    pub method: &'static str,
+    /// The indices its tables name.
+    pub indices: Vec<String>,
+    /// Lookback in business days.
+    pub lookback_days: u32,
+    /// Whether the lookback moves the weights too.
+    pub observation_shift: bool,
+    /// Lockout in business days.
+    pub lockout_days: u32,
+    /// Whether the spread is compounded with the fixings.
+    pub spread_compounded: bool,
+    /// Whether floor and cap bound the all-in rate.
+    pub floor_on_all_in: bool,
+}
+
+/// Explains account `entry` of `book`: runs it through the pipeline with
+/// day rows kept and keeps what falls in `period` (default: the statement
+/// periods that end in the window, else the window).
+///
+/// # Errors
+/// [`Failed`] when the account cannot be computed, as the month-end run
+/// reports it.
+pub fn explain(
+    book: &Book,
+    entry: &AccountEntry,
+    options: &Options,
+    period: Option<(NaiveDate, NaiveDate)>,
+) -> Result<Explanation, Box<Failed>> {
+    let statements = statements_of(book, &entry.terms.id);
+    let account = BookAccount::from_book(book, entry, &statements);
+    let options = Options {
+        keep_days: true,
+        ..*options
+    };
+    let run = run_account(&account, &options)?;
+    Ok(Explanation::new(&account, run, &options, period))
+}
+
+impl Explanation {
+    /// The explanation of `account`'s `run` over `period` (default: the
+    /// statement periods that end in the window, else the window).
+    pub fn new(
+        account: &BookAccount,
+        run: AccountRun,
+        options: &Options,
+        period: Option<(NaiveDate, NaiveDate)>,
+    ) -> Explanation {
+        let shown = period.unwrap_or_else(|| {
+            let in_window = run.periods.iter().filter(|p| p.end >= options.window_start);
+            match (
+                in_window.clone().map(|p| p.start).min(),
+                in_window.map(|p| p.end).max(),
+            ) {
+                (Some(a), Some(b)) => (a, b),
+                _ => (options.window_start, options.cutoff),
+            }
+        });
+        let r = run.result;
+        Explanation {
+            header: header(account, shown, options.cutoff),
+            days: r
+                .days
+                .into_iter()
+                .filter(|d| d.date >= shown.0 && d.date <= shown.1)
+                .collect(),
+            postings: r
+                .postings
+                .into_iter()
+                .filter(|p| p.end >= shown.0 && p.start <= shown.1)
+                .collect(),
+            statements: run
+                .rows
+                .into_iter()
+                .filter(|c| c.row.end >= shown.0 && c.row.start <= shown.1)
+                .collect(),
+            has_statements: !run.periods.is_empty(),
+            notes: run.notes,
+            accrued_at_cutoff: r.accrued_at_cutoff,
+        }
+    }
+}
+
+fn header(account: &BookAccount, shown: (NaiveDate, NaiveDate), cutoff: NaiveDate) -> Header {
+    let t = &account.entry.terms;
+    let fl = t.floating;
+    Header {
+        id: t.id.clone(),
+        name: account.entry.name.clone(),
+        currency: t.currency.clone(),
+        side: t.side.name(),
+        basis: t.basis.name(),
+        compounding: t.compounding.name(),
+        posting: t.posting.name(),
+        capitalised: t.capitalise,
+        floating: account.floating.map(|s| FloatingHeader {
+            method: fl.method.name(),
+            indices: s.indices().into_iter().map(str::to_string).collect(),
+            lookback_days: fl.lookback_days,
+            observation_shift: fl.observation_shift,
+            lockout_days: fl.lockout_days,
+            spread_compounded: fl.spread_compounded,
+            floor_on_all_in: fl.floor_on == FloorOn::AllIn,
+        }),
+        shown,
+        cutoff,
+        minor_units: t.minor_units,
+    }
+}
+
+/// Prints `x` as text: the account, one line per day, per posting and per
+/// statement period (with the likely cause of a variance), the notes, and
+/// the accrued interest at the cut-off.
+///
+/// # Errors
+/// The writer's.
+pub fn print(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
+    print_header(&x.header, out)?;
+    print_days(x, out)?;
+    print_postings(x, out)?;
+    print_statements(x, out)?;
+    for n in &x.notes {
+        writeln!(out, "{n}")?;
+    }
+    writeln!(
+        out,
+        "accrued at cut-off {}",
+        fmt_amount(x.accrued_at_cutoff, x.header.minor_units)
+    )
+}
+
+fn print_header(h: &Header, out: &mut dyn Write) -> io::Result<()> {
+    writeln!(
+        out,
+        "account {}{}: {} {}, {}, {} compounding, {} posting{}",
+        h.id,
+        if h.name.is_empty() {
+            String::new()
+        } else {
+            format!(" ({})", h.name)
+        },
+        h.currency,
+        h.side,
+        h.basis,
+        h.compounding,
+        h.posting,
+        if h.capitalised { ", capitalised" } else { "" }
+    )?;
+    if let Some(fl) = &h.floating {
+        writeln!(
+            out,
+            "floating: {} on {}, lookback {} business days{}{}, spread {}{}",
+            fl.method,
+            fl.indices.join(", "),
+            fl.lookback_days,
+            if fl.observation_shift {
+                " with observation shift"
+            } else {
+                ""
+            },
+            if fl.lockout_days > 0 {
+                format!(", lockout {} business days", fl.lockout_days)
+            } else {
+                String::new()
+            },
+            if fl.spread_compounded {
+                "compounded"
+            } else {
+                "added"
+            },
+            if fl.floor_on_all_in {
+                ", floor and cap on the all-in rate"
+            } else {
+                ""
+            },
+        )?;
+    }
+    writeln!(
+        out,
+        "days {}..{} (cut-off {})",
+        h.shown.0, h.shown.1, h.cutoff
+    )
+}
+
+fn print_days(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
+    let places = x.header.minor_units;
+    writeln!(
+        out,
+        "{:<10} {:>18} {:>18} {:>9} {:>9} {:>16} {:>16}{}",
+        "date",
+        "balance",
+        "base",
+        "rate",
+        "fraction",
+        "interest",
+        "accrued",
+        if x.header.floating.is_some() {
+            "  fixing used"
+        } else {
+            ""
+        }
+    )?;
+    for d in &x.days {
+        let mut rate = (d.rate * Decimal::ONE_HUNDRED).round_dp(4);
+        rate.rescale(4);
+        writeln!(
+            out,
+            "{:<10} {:>18} {:>18} {:>8}% {:>9} {:>16} {:>16}{}{}",
+            d.date,
+            fmt_amount(d.balance, places),
+            fmt_amount(d.base, places),
+            rate,
+            format!("{}/{}", d.fraction.num, d.fraction.den),
+            fmt_amount(d.interest, places + 6),
+            fmt_amount(d.accrued, places + 6),
+            d.fixing.as_ref().map(fixing_words).unwrap_or_default(),
+            d.posted
+                .map(|p| format!("  posted {}", fmt_amount(p, places)))
+                .unwrap_or_default()
+        )?;
+    }
+    Ok(())
+}
+
+fn print_postings(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
+    let places = x.header.minor_units;
+    for p in &x.postings {
+        writeln!(
+            out,
+            "posting {}..{} paid {}: interest {} expected {}{}{}",
+            p.start,
+            p.end,
+            p.payment,
+            fmt_amount(p.interest, places + 6),
+            fmt_amount(p.expected, places),
+            if p.back_value.is_zero() {
+                String::new()
+            } else {
+                format!(
+                    " (of which back-value {})",
+                    fmt_amount(p.back_value, places)
+                )
+            },
+            if p.actual_given {
+                format!(", statement posted {}", fmt_amount(p.posted, places))
+            } else {
+                String::new()
+            }
+        )?;
+    }
+    Ok(())
+}
+
+fn print_statements(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
+    let places = x.header.minor_units;
+    for c in &x.statements {
+        let row = &c.row;
+        let bp = row
+            .variance_bp
+            .map_or_else(|| "n/a".to_string(), |b| format!("{:.2}", b.round_dp(2)));
+        writeln!(
+            out,
+            "statement {}..{}: posted {}, expected {}, variance {} ({bp} bp): {}",
+            row.start,
+            row.end,
+            fmt_amount(row.posted, places),
+            fmt_amount(row.expected, places),
+            fmt_amount(row.variance, places),
+            row.status.name()
+        )?;
+        if matches!(row.status, Status::OverPosted | Status::UnderPosted) {
+            writeln!(
+                out,
+                "  likely cause: {}",
+                c.likely_cause.as_deref().unwrap_or_default()
+            )?;
+        }
+    }
+    if !x.has_statements {
+        writeln!(out, "no statement rows for this account")?;
+    }
+    Ok(())
+}
+
+/// `x` to `places` decimals, trailing zeros kept, as explain shows amounts.
+///
+/// ```
+/// use ledgerate::explain::fmt_amount;
+/// use rust_decimal::Decimal;
+/// assert_eq!(fmt_amount(Decimal::new(15, 1), 2), "1.50");
+/// assert_eq!(fmt_amount(Decimal::new(-3, 0), 0), "-3");
+/// ```
+pub fn fmt_amount(x: Decimal, places: u32) -> String {
+    let mut r = x.round_dp(places);
+    r.rescale(places);
+    r.to_string()
+}
+
+/// A day's fixing as explain shows it: index, the fixing's own date (after
+/// lookback and lockout) and rate in percent, and any stand-in.
+fn fixing_words(f: &FixingUsed) -> String {
+    let mut pct = (f.rate * Decimal::ONE_HUNDRED).normalize();
+    if pct.scale() < 4 {
+        pct.rescale(4);
+    }
+    format!(
+        "  {} {} {pct}%{}",
+        f.index,
+        f.date,
+        f.stand_in
+            .map(|s| format!(" (not published: the {s} fixing stood in)"))
+            .unwrap_or_default()
+    )
+}
