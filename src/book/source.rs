@@ -26,61 +26,8 @@ use crate::conventions::names::fold;
 pub(crate) use crate::problem::{a1, a1_row, column_letters};
 use crate::problem::{Position, Problem, Severity};
 
-/// The sheets a book may hold.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
-pub(crate) enum SheetKind {
-    /// One row per account.
-    Accounts,
-    /// Rate tables.
-    Rates,
-    /// Balance movements.
-    Movements,
-    /// Postings as statements show them.
-    Statements,
-    /// Index fixings (floating rates).
-    Fixings,
-    /// Holiday calendars.
-    Holidays,
-    /// Run settings.
-    Settings,
-}
-
-impl SheetKind {
-    /// Every sheet, in the order books.md lists them.
-    pub(crate) const ALL: [SheetKind; 7] = [
-        SheetKind::Accounts,
-        SheetKind::Rates,
-        SheetKind::Movements,
-        SheetKind::Statements,
-        SheetKind::Fixings,
-        SheetKind::Holidays,
-        SheetKind::Settings,
-    ];
-
-    /// The sheet's name as written in books.md.
-    pub(crate) fn label(self) -> &'static str {
-        match self {
-            SheetKind::Accounts => "Accounts",
-            SheetKind::Rates => "Rates",
-            SheetKind::Movements => "Movements",
-            SheetKind::Statements => "Statements",
-            SheetKind::Fixings => "Fixings",
-            SheetKind::Holidays => "Holidays",
-            SheetKind::Settings => "Settings",
-        }
-    }
-
-    /// Whether a book must have it.
-    pub(crate) fn required(self) -> bool {
-        matches!(self, SheetKind::Accounts | SheetKind::Rates)
-    }
-
-    /// The sheet a name stands for (case, spaces, `_` and `-` ignored).
-    pub(crate) fn from_name(name: &str) -> Option<SheetKind> {
-        let key = fold(name);
-        SheetKind::ALL.into_iter().find(|k| fold(k.label()) == key)
-    }
-}
+/// The sheets a book may hold, as the book schema describes them.
+pub(crate) use super::schema::SheetKind;
 
 /// A row of a sheet: its 0-based index and its non-blank cells by column.
 #[derive(Debug, Clone, PartialEq, Eq)]
