@@ -64,6 +64,11 @@ const GL_INTEREST: usize = column!(ACCOUNTS, "gl_interest");
 const GL_ACCRUED: usize = column!(ACCOUNTS, "gl_accrued");
 const GL_SETTLEMENT: usize = column!(ACCOUNTS, "gl_settlement");
 
+/// The name of the Accounts column at place `i`, for messages.
+fn column_name(i: usize) -> &'static str {
+    ACCOUNTS.columns.get(i).map_or("", |c| c.name)
+}
+
 /// The most days a day-count column (payment delay, lookback, lockout) may hold.
 const MAX_DAYS: u32 = 3650;
 
@@ -431,14 +436,15 @@ fn check_floating(f: &mut Fields<'_, '_, '_>, t: &AccountTerms) {
     let fl = t.floating;
     let given = |f: &Fields<'_, '_, '_>, i: usize| f.given(i);
     if !fl.method.is_floating() {
-        for (i, name) in [
-            (LOOKBACK_DAYS, "lookback_days"),
-            (OBSERVATION_SHIFT, "observation_shift"),
-            (LOCKOUT_DAYS, "lockout_days"),
-            (SPREAD_COMPOUNDED, "spread_compounded"),
-            (FLOOR_ON, "floor_on"),
+        for i in [
+            LOOKBACK_DAYS,
+            OBSERVATION_SHIFT,
+            LOCKOUT_DAYS,
+            SPREAD_COMPOUNDED,
+            FLOOR_ON,
         ] {
             if given(f, i) {
+                let name = column_name(i);
                 let shown = f.raw(i).map(|c| c.shown()).unwrap_or_default();
                 f.report(
                     Severity::Warning,
@@ -494,11 +500,9 @@ fn check_floating(f: &mut Fields<'_, '_, '_>, t: &AccountTerms) {
             }
         }
         _ => {
-            for (i, name) in [
-                (OBSERVATION_SHIFT, "observation_shift"),
-                (SPREAD_COMPOUNDED, "spread_compounded"),
-            ] {
+            for i in [OBSERVATION_SHIFT, SPREAD_COMPOUNDED] {
                 if f.yes_no(i) == Some(true) {
+                    let name = column_name(i);
                     error(
                         f,
                         i,
@@ -643,11 +647,11 @@ fn schedule_check(
     late: Severity,
 ) {
     let rates = others.rates;
-    let which = if col == DEBIT_RATE_REF {
-        "debit_rate_ref"
+    let which = column_name(if col == DEBIT_RATE_REF {
+        DEBIT_RATE_REF
     } else {
-        "rate_ref"
-    };
+        RATE_REF
+    });
     if let Some(schedule) = rates.floating.get(rate_ref) {
         let cell = rates
             .floating_cell
