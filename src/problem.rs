@@ -8,6 +8,8 @@
 
 use std::fmt;
 
+use crate::book::schema::SheetKind;
+
 /// Where something is in the input: book file, sheet, cell.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord, Default)]
 pub struct Position {
@@ -153,25 +155,23 @@ pub fn parse_a1(cell: &str) -> (u64, u64) {
 /// keeping the order found among problems of one cell. A shard run and a
 /// merge of shards list them the same way as one run.
 pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
-    const SHEETS: [&str; 7] = [
-        "accounts",
-        "rates",
-        "movements",
-        "statements",
-        "fixings",
-        "holidays",
-        "settings",
-    ];
     let key = |p: &Problem| {
         let book = books
             .iter()
             .position(|b| *b == p.position.book)
             .unwrap_or(books.len());
         let sheet = p.position.sheet.to_lowercase();
-        let rank = SHEETS
+        // A sheet whose name begins with one of the book format's sheet
+        // names ranks in the format's order; any other comes after them.
+        let rank = SheetKind::ALL
             .iter()
-            .position(|s| sheet.starts_with(s))
-            .unwrap_or(SHEETS.len());
+            .position(|k| {
+                let label = k.label();
+                sheet
+                    .get(..label.len())
+                    .is_some_and(|start| start.eq_ignore_ascii_case(label))
+            })
+            .unwrap_or(SheetKind::ALL.len());
         let (row, col) = parse_a1(&p.position.cell);
         (book, rank, sheet, row, col)
     };
@@ -188,5 +188,60 @@ mod tests {
         assert_eq!(a1(6, 27), "AB7");
         assert_eq!(a1(1_048_575, 16_383), "XFD1048576");
         assert_eq!(a1_row(6), "7:7");
+    }
+
+    fn at(book: &str, sheet: &str, cell: &str) -> Problem {
+        Problem {
+            severity: Severity::Error,
+            position: Position {
+                book: book.into(),
+                sheet: sheet.into(),
+                cell: cell.into(),
+            },
+            account: None,
+            found: String::new(),
+            expected: String::new(),
+            fix: String::new(),
+        }
+    }
+
+    /// Problems come by book as given, then sheet in the order of the book
+    /// format (a CSV file's lower-case name too; other sheets last), then
+    /// row and column.
+    #[test]
+    fn problems_sort_by_book_then_format_sheet_order_then_cell() {
+        let mut problems = vec![
+            at("b.xlsx", "Accounts", "A2"),
+            at("a.xlsx", "Notes", "A1"),
+            at("a.xlsx", "Settings", "B2"),
+            at("a.xlsx", "holidays", "A3"),
+            at("a.xlsx", "Accounts", "B10"),
+            at("a.xlsx", "Accounts", "C9"),
+            at("a.xlsx", "Rates", "A2"),
+            at("a.xlsx", "Accounts", "A10"),
+        ];
+        sort_problems(&mut problems, &["a.xlsx".into(), "b.xlsx".into()]);
+        let order: Vec<String> = problems
+            .iter()
+            .map(|p| {
+                format!(
+                    "{} {}!{}",
+                    p.position.book, p.position.sheet, p.position.cell
+                )
+            })
+            .collect();
+        assert_eq!(
+            order,
+            [
+                "a.xlsx Accounts!C9",
+                "a.xlsx Accounts!A10",
+                "a.xlsx Accounts!B10",
+                "a.xlsx Rates!A2",
+                "a.xlsx holidays!A3",
+                "a.xlsx Settings!B2",
+                "a.xlsx Notes!A1",
+                "b.xlsx Accounts!A2",
+            ]
+        );
     }
 }

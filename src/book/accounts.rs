@@ -17,8 +17,9 @@ use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
+use super::schema::{column, ACCOUNTS};
 use super::sheet::Sheet;
-use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
+use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::currency;
@@ -29,74 +30,44 @@ use crate::conventions::schedule::{month_end, AnchorKind, Posting};
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
 use crate::problem::{Problem, Severity};
 
-const COLUMNS: &[Column] = &[
-    required("account"),
-    required("currency"),
-    required("day_count"),
-    required("open_date"),
-    required("opening_balance"),
-    optional("name"),
-    optional("side"),
-    optional("compounding"),
-    optional("posting"),
-    optional("posting_anchor"),
-    optional("anchor_kind"),
-    optional("capitalise"),
-    optional("round_at"),
-    optional("round_mode"),
-    optional("round_places"),
-    optional("maturity"),
-    optional("rate_ref"),
-    optional("debit_rate_ref"),
-    optional("tier_method"),
-    optional("calendar"),
-    optional("business_day"),
-    optional("payment_delay_days"),
-    optional("opening_accrued"),
-    optional("period_start"),
-    optional("rate_method"),
-    optional("lookback_days"),
-    optional("observation_shift"),
-    optional("lockout_days"),
-    optional("spread_compounded"),
-    optional("floor_on"),
-    optional("gl_interest"),
-    optional("gl_accrued"),
-    optional("gl_settlement"),
-];
-const ACCOUNT: usize = 0;
-const CURRENCY: usize = 1;
-const DAY_COUNT: usize = 2;
-const OPEN_DATE: usize = 3;
-const OPENING_BALANCE: usize = 4;
-const NAME: usize = 5;
-const SIDE: usize = 6;
-const COMPOUNDING: usize = 7;
-const POSTING: usize = 8;
-const POSTING_ANCHOR: usize = 9;
-const ANCHOR_KIND: usize = 10;
-const CAPITALISE: usize = 11;
-const ROUND_AT: usize = 12;
-const ROUND_MODE: usize = 13;
-const ROUND_PLACES: usize = 14;
-const MATURITY: usize = 15;
-const RATE_REF: usize = 16;
-const DEBIT_RATE_REF: usize = 17;
-const TIER_METHOD: usize = 18;
-const CALENDAR: usize = 19;
-const BUSINESS_DAY: usize = 20;
-const PAYMENT_DELAY_DAYS: usize = 21;
-const OPENING_ACCRUED: usize = 22;
-const PERIOD_START: usize = 23;
-const RATE_METHOD: usize = 24;
-const LOOKBACK_DAYS: usize = 25;
-const OBSERVATION_SHIFT: usize = 26;
-const LOCKOUT_DAYS: usize = 27;
-const SPREAD_COMPOUNDED: usize = 28;
-const FLOOR_ON: usize = 29;
-const GL_INTEREST: usize = 30;
-const GL_ACCRUED: usize = 31;
-const GL_SETTLEMENT: usize = 32;
+const ACCOUNT: usize = column!(ACCOUNTS, "account");
+const CURRENCY: usize = column!(ACCOUNTS, "currency");
+const DAY_COUNT: usize = column!(ACCOUNTS, "day_count");
+const OPEN_DATE: usize = column!(ACCOUNTS, "open_date");
+const OPENING_BALANCE: usize = column!(ACCOUNTS, "opening_balance");
+const NAME: usize = column!(ACCOUNTS, "name");
+const SIDE: usize = column!(ACCOUNTS, "side");
+const COMPOUNDING: usize = column!(ACCOUNTS, "compounding");
+const POSTING: usize = column!(ACCOUNTS, "posting");
+const POSTING_ANCHOR: usize = column!(ACCOUNTS, "posting_anchor");
+const ANCHOR_KIND: usize = column!(ACCOUNTS, "anchor_kind");
+const CAPITALISE: usize = column!(ACCOUNTS, "capitalise");
+const ROUND_AT: usize = column!(ACCOUNTS, "round_at");
+const ROUND_MODE: usize = column!(ACCOUNTS, "round_mode");
+const ROUND_PLACES: usize = column!(ACCOUNTS, "round_places");
+const MATURITY: usize = column!(ACCOUNTS, "maturity");
+const RATE_REF: usize = column!(ACCOUNTS, "rate_ref");
+const DEBIT_RATE_REF: usize = column!(ACCOUNTS, "debit_rate_ref");
+const TIER_METHOD: usize = column!(ACCOUNTS, "tier_method");
+const CALENDAR: usize = column!(ACCOUNTS, "calendar");
+const BUSINESS_DAY: usize = column!(ACCOUNTS, "business_day");
+const PAYMENT_DELAY_DAYS: usize = column!(ACCOUNTS, "payment_delay_days");
+const OPENING_ACCRUED: usize = column!(ACCOUNTS, "opening_accrued");
+const PERIOD_START: usize = column!(ACCOUNTS, "period_start");
+const RATE_METHOD: usize = column!(ACCOUNTS, "rate_method");
+const LOOKBACK_DAYS: usize = column!(ACCOUNTS, "lookback_days");
+const OBSERVATION_SHIFT: usize = column!(ACCOUNTS, "observation_shift");
+const LOCKOUT_DAYS: usize = column!(ACCOUNTS, "lockout_days");
+const SPREAD_COMPOUNDED: usize = column!(ACCOUNTS, "spread_compounded");
+const FLOOR_ON: usize = column!(ACCOUNTS, "floor_on");
+const GL_INTEREST: usize = column!(ACCOUNTS, "gl_interest");
+const GL_ACCRUED: usize = column!(ACCOUNTS, "gl_accrued");
+const GL_SETTLEMENT: usize = column!(ACCOUNTS, "gl_settlement");
+
+/// The name of the Accounts column at place `i`, for messages.
+fn column_name(i: usize) -> &'static str {
+    ACCOUNTS.columns.get(i).map_or("", |c| c.name)
+}
 
 /// The most days a day-count column (payment delay, lookback, lockout) may hold.
 const MAX_DAYS: u32 = 3650;
@@ -230,7 +201,7 @@ pub(crate) fn read(
     others: &Others<'_>,
     problems: &mut Vec<Problem>,
 ) -> Option<Accounts> {
-    let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
+    let table = Table::open(&ctx, sheet, ACCOUNTS.columns, problems)?;
     let mut out = Accounts::default();
     let weekends = Arc::new(Calendar::weekends_only());
     for rec in table.records() {
@@ -465,14 +436,15 @@ fn check_floating(f: &mut Fields<'_, '_, '_>, t: &AccountTerms) {
     let fl = t.floating;
     let given = |f: &Fields<'_, '_, '_>, i: usize| f.given(i);
     if !fl.method.is_floating() {
-        for (i, name) in [
-            (LOOKBACK_DAYS, "lookback_days"),
-            (OBSERVATION_SHIFT, "observation_shift"),
-            (LOCKOUT_DAYS, "lockout_days"),
-            (SPREAD_COMPOUNDED, "spread_compounded"),
-            (FLOOR_ON, "floor_on"),
+        for i in [
+            LOOKBACK_DAYS,
+            OBSERVATION_SHIFT,
+            LOCKOUT_DAYS,
+            SPREAD_COMPOUNDED,
+            FLOOR_ON,
         ] {
             if given(f, i) {
+                let name = column_name(i);
                 let shown = f.raw(i).map(|c| c.shown()).unwrap_or_default();
                 f.report(
                     Severity::Warning,
@@ -528,11 +500,9 @@ fn check_floating(f: &mut Fields<'_, '_, '_>, t: &AccountTerms) {
             }
         }
         _ => {
-            for (i, name) in [
-                (OBSERVATION_SHIFT, "observation_shift"),
-                (SPREAD_COMPOUNDED, "spread_compounded"),
-            ] {
+            for i in [OBSERVATION_SHIFT, SPREAD_COMPOUNDED] {
                 if f.yes_no(i) == Some(true) {
+                    let name = column_name(i);
                     error(
                         f,
                         i,
@@ -831,8 +801,9 @@ mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
     use crate::book::rates;
+    use crate::book::schema::IfBlank;
+    use crate::book::schema::SheetKind;
     use crate::book::sheet::text_sheet;
-    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {
@@ -971,18 +942,36 @@ mod tests {
         assert_eq!(found.entries[0].name, "");
     }
 
+    /// A blank cell means what the book schema says: an account whose row
+    /// writes every defaulted column at its default reads as the same
+    /// account as one that leaves those columns out.
     #[test]
-    fn column_indices_match_the_column_list() {
-        let names: Vec<&str> = COLUMNS.iter().map(|c| c.name).collect();
-        let at = |i: usize| names.get(i).copied();
-        assert_eq!(at(ACCOUNT), Some("account"));
-        assert_eq!(at(OPENING_BALANCE), Some("opening_balance"));
-        assert_eq!(at(ROUND_PLACES), Some("round_places"));
-        assert_eq!(at(CALENDAR), Some("calendar"));
-        assert_eq!(at(PERIOD_START), Some("period_start"));
-        assert_eq!(at(FLOOR_ON), Some("floor_on"));
-        assert_eq!(at(GL_SETTLEMENT), Some("gl_settlement"));
-        assert_eq!(names.len(), GL_SETTLEMENT + 1);
+    fn blank_cells_mean_the_schema_defaults() {
+        let defaults: Vec<(&str, &str)> = ACCOUNTS
+            .columns
+            .iter()
+            .filter_map(|c| match c.if_blank {
+                IfBlank::Means(v) => Some((c.name, v)),
+                _ => None,
+            })
+            .collect();
+        assert!(defaults.len() >= 15, "{defaults:?}");
+        let read_row = |extra: &[(&str, &str)]| {
+            let mut header = HEADER[..6].to_vec();
+            header.extend(extra.iter().map(|d| d.0));
+            let mut row = vec!["HM-SAV-605", "USD", "ACT/365F", "2026-01-01", "1000", "STD"];
+            row.extend(extra.iter().map(|d| d.1));
+            let (found, problems) = read_accounts(&[&header, &row]);
+            let errors: Vec<&Problem> = problems
+                .iter()
+                .filter(|p| p.severity == Severity::Error)
+                .collect();
+            assert!(errors.is_empty(), "{errors:?}");
+            let entries = found.unwrap().entries;
+            assert_eq!(entries.len(), 1);
+            format!("{entries:?}")
+        };
+        assert_eq!(read_row(&[]), read_row(&defaults));
     }
 
     #[test]

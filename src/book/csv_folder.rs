@@ -13,8 +13,8 @@ use std::path::Path;
 use super::cell::lower_first;
 use super::csv_records::CsvRows;
 use super::picking::unused_sheet;
+use super::schema::SheetKind;
 use super::sheet::{Loaded, Rows, Sheet};
-use super::source::SheetKind;
 use crate::problem::{Position, Severity};
 
 /// Reads a folder of CSV files. Each file named after a sheet becomes that

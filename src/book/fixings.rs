@@ -13,21 +13,17 @@ use std::collections::{BTreeMap, BTreeSet};
 use chrono::NaiveDate;
 
 use super::rates::percent_to_decimal;
+use super::schema::{column, FIXINGS};
 use super::sheet::Sheet;
-use super::table::{near_miss, required, Column, Ctx, Fields, Table};
+use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;
 use crate::engine::floating::Fixings;
 use crate::problem::{Problem, Severity};
 
-const COLUMNS: &[Column] = &[
-    required("index"),
-    required("date"),
-    required("rate_percent"),
-];
-const INDEX: usize = 0;
-const DATE: usize = 1;
-const RATE: usize = 2;
+const INDEX: usize = column!(FIXINGS, "index");
+const DATE: usize = column!(FIXINGS, "date");
+const RATE: usize = column!(FIXINGS, "rate_percent");
 
 /// What the Fixings sheet gives the accounts.
 #[derive(Debug, Default)]
@@ -123,7 +119,7 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
         sheet: sheet.name.clone(),
         ..FixingsSheet::default()
     };
-    let Some(table) = Table::open(&ctx, sheet, COLUMNS, problems) else {
+    let Some(table) = Table::open(&ctx, sheet, FIXINGS.columns, problems) else {
         return out;
     };
     out.read = true;
@@ -177,8 +173,8 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
+    use crate::book::schema::SheetKind;
     use crate::book::sheet::text_sheet;
-    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

@@ -9,16 +9,16 @@ use std::sync::Arc;
 
 use chrono::NaiveDate;
 
+use super::schema::{column, HOLIDAYS};
 use super::sheet::Sheet;
-use super::table::{near_miss, optional, required, Column, Ctx, Fields, Table};
+use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;
 use crate::problem::Problem;
 
-const COLUMNS: &[Column] = &[required("calendar"), required("date"), optional("name")];
-const CALENDAR: usize = 0;
-const DATE: usize = 1;
-const NAME: usize = 2;
+const CALENDAR: usize = column!(HOLIDAYS, "calendar");
+const DATE: usize = column!(HOLIDAYS, "date");
+const NAME: usize = column!(HOLIDAYS, "name");
 
 /// The calendars of a book, by folded name.
 #[derive(Debug, Default)]
@@ -64,7 +64,7 @@ impl Calendars {
 /// Reads the Holidays sheet.
 pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> Calendars {
     let mut out = Calendars::default();
-    let Some(table) = Table::open(&ctx, sheet, COLUMNS, problems) else {
+    let Some(table) = Table::open(&ctx, sheet, HOLIDAYS.columns, problems) else {
         return out;
     };
     out.read = true;

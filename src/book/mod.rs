@@ -6,6 +6,9 @@
 //! round-trip text (in [`number`], the one border between the two). They
 //! know nothing of the engine's arithmetic: they type terms and report where
 //! each came from.
+//!
+//! [`schema`] describes the book format once (sheets, columns, settings);
+//! the sheet readers take their columns from it.
 
 mod accounts;
 pub(crate) mod cell;
@@ -21,10 +24,10 @@ mod picking;
 mod rates;
 mod read;
 mod row;
+pub mod schema;
 mod settings;
 mod sheet;
 mod sniff;
-mod source;
 mod statements;
 mod table;
 mod workbook;

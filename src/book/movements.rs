@@ -9,23 +9,17 @@
 use std::collections::BTreeMap;
 
 use super::accounts::Known;
+use super::schema::{column, MOVEMENTS};
 use super::sheet::Sheet;
-use super::table::{optional, required, Column, Ctx, Fields, Table};
+use super::table::{Ctx, Fields, Table};
 use crate::engine::Movement;
 use crate::problem::{Problem, Severity};
 
-const COLUMNS: &[Column] = &[
-    required("account"),
-    required("value_date"),
-    required("amount"),
-    optional("booking_date"),
-    optional("reference"),
-];
-const ACCOUNT: usize = 0;
-const VALUE_DATE: usize = 1;
-const AMOUNT: usize = 2;
-const BOOKING_DATE: usize = 3;
-const REFERENCE: usize = 4;
+const ACCOUNT: usize = column!(MOVEMENTS, "account");
+const VALUE_DATE: usize = column!(MOVEMENTS, "value_date");
+const AMOUNT: usize = column!(MOVEMENTS, "amount");
+const BOOKING_DATE: usize = column!(MOVEMENTS, "booking_date");
+const REFERENCE: usize = column!(MOVEMENTS, "reference");
 
 /// What the Movements sheet gives.
 #[derive(Debug, Default)]
@@ -43,7 +37,7 @@ pub(crate) fn read(
     accounts: &Known,
     problems: &mut Vec<Problem>,
 ) -> Option<Movements> {
-    let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
+    let table = Table::open(&ctx, sheet, MOVEMENTS.columns, problems)?;
     let mut out = Movements::default();
     // A ragged row of an account is missing from its figures.
     out.spoiled.extend(table.skipped_accounts().iter().cloned());

@@ -5,8 +5,8 @@
 //! This module only compares names and reports: it never opens a file and
 //! never reads a cell.
 
+use super::schema::SheetKind;
 use super::sheet::Loaded;
-use super::source::SheetKind;
 use super::table::near_miss;
 use crate::conventions::names::fold;
 use crate::problem::{Position, Severity};

@@ -14,32 +14,22 @@ use std::collections::BTreeMap;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
+use super::schema::{column, RATES};
 use super::sheet::Sheet;
-use super::table::{optional, required, Column, Ctx, Fields, Table};
+use super::table::{Ctx, Fields, Table};
 use crate::engine::floating::{FloatingSchedule, IndexRate, TierRate};
 use crate::engine::rates::RateSchedule;
 use crate::problem::{Problem, Severity};
 
-const COLUMNS: &[Column] = &[
-    required("rate_ref"),
-    required("effective"),
-    optional("rate_percent"),
-    optional("rate_decimal"),
-    optional("tier_from"),
-    optional("index"),
-    optional("spread_bp"),
-    optional("floor_percent"),
-    optional("cap_percent"),
-];
-const RATE_REF: usize = 0;
-const EFFECTIVE: usize = 1;
-const PERCENT: usize = 2;
-const DECIMAL: usize = 3;
-const TIER_FROM: usize = 4;
-const INDEX: usize = 5;
-const SPREAD_BP: usize = 6;
-const FLOOR_PERCENT: usize = 7;
-const CAP_PERCENT: usize = 8;
+const RATE_REF: usize = column!(RATES, "rate_ref");
+const EFFECTIVE: usize = column!(RATES, "effective");
+const PERCENT: usize = column!(RATES, "rate_percent");
+const DECIMAL: usize = column!(RATES, "rate_decimal");
+const TIER_FROM: usize = column!(RATES, "tier_from");
+const INDEX: usize = column!(RATES, "index");
+const SPREAD_BP: usize = column!(RATES, "spread_bp");
+const FLOOR_PERCENT: usize = column!(RATES, "floor_percent");
+const CAP_PERCENT: usize = column!(RATES, "cap_percent");
 
 /// A percent column whose every value is below this (in size) may hold decimals.
 const PERCENT_LOOKS_DECIMAL: Decimal = Decimal::from_parts(2, 0, 0, false, 1);
@@ -73,7 +63,7 @@ struct RateRow {
 /// Reads the Rates sheet.
 pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> Rates {
     let mut out = Rates::default();
-    let Some(table) = Table::open(&ctx, sheet, COLUMNS, problems) else {
+    let Some(table) = Table::open(&ctx, sheet, RATES.columns, problems) else {
         return out;
     };
     if !table.has(PERCENT) && !table.has(DECIMAL) && !table.has(INDEX) {
@@ -419,8 +409,9 @@ fn unit_warnings(
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
+    use crate::book::schema::IfBlank;
+    use crate::book::schema::SheetKind;
     use crate::book::sheet::text_sheet;
-    use crate::book::source::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {
@@ -429,6 +420,42 @@ mod tests {
                 decimal_comma: false,
             },
         }
+    }
+
+    /// A blank cell means what the book schema says: rows written with every
+    /// defaulted column at its default give the same schedules as rows that
+    /// leave those columns out (an index schedule, and a fixed one, which
+    /// takes no spread).
+    #[test]
+    fn blank_cells_mean_the_schema_defaults() {
+        let defaults: Vec<(&str, &str)> = RATES
+            .columns
+            .iter()
+            .filter_map(|c| match c.if_blank {
+                IfBlank::Means(v) => Some((c.name, v)),
+                _ => None,
+            })
+            .collect();
+        assert_eq!(defaults.len(), 2, "{defaults:?}");
+        let read_rows = |extra: &[(&str, &str)]| {
+            let mut header = vec!["rate_ref", "effective", "rate_percent", "index"];
+            header.extend(extra.iter().map(|d| d.0));
+            // A spread belongs on an index row only.
+            let mut fixed = vec!["STD", "2026-01-01", "2.5", ""];
+            fixed.extend(
+                extra
+                    .iter()
+                    .map(|(name, v)| if *name == "spread_bp" { "" } else { *v }),
+            );
+            let mut floating = vec!["FLT", "2026-01-01", "", "HVM-ON"];
+            floating.extend(extra.iter().map(|d| d.1));
+            let sheet = text_sheet(SheetKind::Rates, &[&header, &fixed, &floating]);
+            let mut problems = Vec::new();
+            let rates = read(ctx(), &sheet, &mut problems);
+            assert!(problems.is_empty(), "{problems:?}");
+            format!("{:?} {:?}", rates.schedules, rates.floating)
+        };
+        assert_eq!(read_rows(&[]), read_rows(&defaults));
     }
 
     #[test]

@@ -1,20 +1,20 @@
 //! The Settings sheet: one row per setting (cutoff, window_start,
-//! tolerance_amount, tolerance_bp, entity, journal_style, statement_end),
-//! each value checked against its type.
+//! tolerance_amount, tolerance_bp, entity, journal_style, statement_end, as
+//! the book schema lists them), each value checked against its kind.
 //!
 //! Settings are book-wide: a bad one is an error of the book, not of an
 //! account. This module never applies a setting except `statement_end`,
 //! which only says how the Statements sheet is to be read.
 
 use super::model::SettingRow;
+use super::schema::{column, Choice, Kind, SETTINGS, SETTING_ROWS};
 use super::sheet::Sheet;
-use super::table::{near_miss, required, Column, Ctx, Fields, Table};
+use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::names::{fold, lookup, UnknownName};
 use crate::problem::{Problem, Severity};
 
-const COLUMNS: &[Column] = &[required("setting"), required("value")];
-const SETTING: usize = 0;
-const VALUE: usize = 1;
+const SETTING: usize = column!(SETTINGS, "setting");
+const VALUE: usize = column!(SETTINGS, "value");
 
 /// How the Statements sheet writes a period's end.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -57,26 +57,6 @@ fn journal_style(s: &str) -> Result<&'static str, UnknownName> {
     )
 }
 
-/// The known settings, with what each value must be.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum Kind {
-    Date,
-    NonNegative,
-    Text,
-    JournalStyle,
-    StatementEnd,
-}
-
-const KNOWN: &[(&str, Kind)] = &[
-    ("cutoff", Kind::Date),
-    ("window_start", Kind::Date),
-    ("tolerance_amount", Kind::NonNegative),
-    ("tolerance_bp", Kind::NonNegative),
-    ("entity", Kind::Text),
-    ("journal_style", Kind::JournalStyle),
-    ("statement_end", Kind::StatementEnd),
-];
-
 /// What the Settings sheet says.
 #[derive(Debug, Default)]
 pub(crate) struct Settings {
@@ -89,7 +69,7 @@ pub(crate) struct Settings {
 /// Reads the Settings sheet.
 pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> Settings {
     let mut out = Settings::default();
-    let Some(table) = Table::open(&ctx, sheet, COLUMNS, problems) else {
+    let Some(table) = Table::open(&ctx, sheet, SETTINGS.columns, problems) else {
         return out;
     };
     let mut seen: Vec<(String, String)> = Vec::new();
@@ -99,16 +79,20 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
             continue;
         };
         let key = fold(&raw_name);
-        let Some((name, kind)) = KNOWN.iter().find(|(n, _)| fold(n) == key).copied() else {
-            let near = KNOWN
+        let Some((name, kind)) = SETTING_ROWS
+            .iter()
+            .find(|s| fold(s.name) == key)
+            .map(|s| (s.name, s.kind))
+        else {
+            let near = SETTING_ROWS
                 .iter()
-                .find(|(n, _)| near_miss(&key, &fold(n)))
-                .map(|(n, _)| *n);
+                .find(|s| near_miss(&key, &fold(s.name)))
+                .map(|s| s.name);
             let fix = match near {
                 Some(n) => format!("did you mean {n}? the row is not used"),
                 None => "the row is not used; remove it or correct the name".to_string(),
             };
-            let names: Vec<&str> = KNOWN.iter().map(|(n, _)| *n).collect();
+            let names: Vec<&str> = SETTING_ROWS.iter().map(|s| s.name).collect();
             f.report(
                 Severity::Warning,
                 SETTING,
@@ -132,9 +116,10 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
         }
         seen.push((folded.clone(), f.cell_ref(SETTING)));
         f.subject = Some(name);
+        // A kind without a check of its own here is read as text.
         let value = match kind {
             Kind::Date => f.date(VALUE).map(|d| d.to_string()),
-            Kind::NonNegative => match f.decimal(VALUE) {
+            Kind::Amount | Kind::Bp => match f.decimal(VALUE) {
                 Some(d) if d.is_sign_negative() && !d.is_zero() => {
                     f.report(
                         Severity::Error,
@@ -147,12 +132,12 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
                 }
                 other => other.map(|d| d.to_string()),
             },
-            Kind::Text => f.text(VALUE),
-            Kind::JournalStyle => f.named(VALUE, journal_style).map(str::to_string),
-            Kind::StatementEnd => f.named(VALUE, StatementEnd::parse).map(|s| {
+            Kind::Choice(Choice::JournalStyle) => f.named(VALUE, journal_style).map(str::to_string),
+            Kind::Choice(Choice::StatementEnd) => f.named(VALUE, StatementEnd::parse).map(|s| {
                 out.statement_end = s;
                 s.name().to_string()
             }),
+            _ => f.text(VALUE),
         };
         match value {
             Some(value) => {
@@ -176,4 +161,70 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
         }
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::book::cell::NumberStyle;
+    use crate::book::schema::Example;
+    use crate::book::schema::SheetKind;
+    use crate::book::sheet::text_sheet;
+
+    fn ctx() -> Ctx<'static> {
+        Ctx {
+            book: "book.xlsx",
+            style: NumberStyle {
+                decimal_comma: false,
+            },
+        }
+    }
+
+    fn read_one(name: &str, value: &str) -> (Settings, Vec<Problem>) {
+        let sheet = text_sheet(
+            SheetKind::Settings,
+            &[&["setting", "value"], &[name, value]],
+        );
+        let mut problems = Vec::new();
+        let settings = read(ctx(), &sheet, &mut problems);
+        (settings, problems)
+    }
+
+    /// Every setting of the book schema is read: its template example is
+    /// taken, and a value of another kind is an error on its cell unless the
+    /// setting holds free text.
+    #[test]
+    fn every_setting_of_the_schema_is_checked_by_its_kind() {
+        for spec in SETTING_ROWS {
+            let example = match spec.example {
+                Example::Text(t) => t.to_string(),
+                Example::Date(y, m, d) => format!("{y:04}-{m:02}-{d:02}"),
+                Example::Number(mantissa, scale) => {
+                    rust_decimal::Decimal::new(mantissa, scale).to_string()
+                }
+                Example::Blank => panic!("{} has no example", spec.name),
+            };
+            let (settings, problems) = read_one(spec.name, &example);
+            assert!(problems.is_empty(), "{}: {problems:?}", spec.name);
+            assert_eq!(settings.rows.len(), 1, "{}", spec.name);
+
+            let (settings, problems) = read_one(spec.name, "not a value?");
+            if spec.kind == Kind::Text {
+                assert!(problems.is_empty(), "{}: {problems:?}", spec.name);
+            } else {
+                assert!(settings.rows.is_empty(), "{}", spec.name);
+                assert_eq!(problems.len(), 1, "{}: {problems:?}", spec.name);
+                assert_eq!(problems[0].position.cell, "B2");
+                assert_eq!(problems[0].severity, Severity::Error);
+            }
+        }
+    }
+
+    #[test]
+    fn a_statement_end_setting_says_how_statements_are_read() {
+        let (settings, problems) = read_one("Statement End", "exclusive");
+        assert!(problems.is_empty(), "{problems:?}");
+        assert_eq!(settings.statement_end, StatementEnd::Exclusive);
+        assert_eq!(settings.rows[0].name, "statementend");
+    }
 }

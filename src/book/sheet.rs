@@ -11,7 +11,7 @@ use std::borrow::Cow;
 use super::cell::shown;
 use super::csv_records::CsvRows;
 use super::row::Row;
-use super::source::SheetKind;
+use super::schema::SheetKind;
 use crate::problem::{Position, Problem, Severity};
 
 /// One sheet that was read.

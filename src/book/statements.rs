@@ -12,23 +12,17 @@ use chrono::NaiveDate;
 
 use super::accounts::Known;
 use super::model::StatementRow;
+use super::schema::{column, STATEMENTS};
 use super::settings::StatementEnd;
 use super::sheet::Sheet;
-use super::table::{optional, required, Column, Ctx, Fields, Table};
+use super::table::{Ctx, Fields, Table};
 use crate::problem::{Problem, Severity};
 
-const COLUMNS: &[Column] = &[
-    required("account"),
-    required("period_start"),
-    required("period_end"),
-    required("posted_interest"),
-    optional("reference"),
-];
-const ACCOUNT: usize = 0;
-const PERIOD_START: usize = 1;
-const PERIOD_END: usize = 2;
-const POSTED: usize = 3;
-const REFERENCE: usize = 4;
+const ACCOUNT: usize = column!(STATEMENTS, "account");
+const PERIOD_START: usize = column!(STATEMENTS, "period_start");
+const PERIOD_END: usize = column!(STATEMENTS, "period_end");
+const POSTED: usize = column!(STATEMENTS, "posted_interest");
+const REFERENCE: usize = column!(STATEMENTS, "reference");
 
 /// What the Statements sheet gives.
 #[derive(Debug, Default)]
@@ -47,7 +41,7 @@ pub(crate) fn read(
     end: StatementEnd,
     problems: &mut Vec<Problem>,
 ) -> Option<Statements> {
-    let table = Table::open(&ctx, sheet, COLUMNS, problems)?;
+    let table = Table::open(&ctx, sheet, STATEMENTS.columns, problems)?;
     let mut out = Statements::default();
     // A ragged row of an account is missing from its figures.
     out.spoiled.extend(table.skipped_accounts().iter().cloned());

@@ -14,34 +14,10 @@ use rust_decimal::Decimal;
 
 use super::cell::{self, shown, Cell, Issue, NumberStyle};
 use super::row::{Row, Shape};
+use super::schema::Column;
 use super::sheet::Sheet;
 use crate::conventions::names::{fold, UnknownName};
 use crate::problem::{a1, a1_row, column_letters, Position, Problem, Severity};
-
-/// A column a sheet may have.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub(crate) struct Column {
-    /// The name as behaviour.md, Input books writes it.
-    pub name: &'static str,
-    /// Whether the sheet is unusable without it.
-    pub required: bool,
-}
-
-/// A required column.
-pub(crate) const fn required(name: &'static str) -> Column {
-    Column {
-        name,
-        required: true,
-    }
-}
-
-/// An optional column.
-pub(crate) const fn optional(name: &'static str) -> Column {
-    Column {
-        name,
-        required: false,
-    }
-}
 
 /// What every sheet reader needs: the book's name for positions, and how
 /// it writes numbers.
@@ -844,14 +820,26 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::book::schema::SheetKind;
+    use crate::book::schema::{Example, IfBlank, Kind};
     use crate::book::sheet::Rows;
-    use crate::book::source::SheetKind;
+
+    const fn col(name: &'static str, required: bool) -> Column {
+        Column {
+            name,
+            required,
+            kind: Kind::Text,
+            if_blank: IfBlank::Nothing,
+            note: "",
+            example: Example::Blank,
+        }
+    }
 
     const COLUMNS: &[Column] = &[
-        required("account"),
-        required("open_date"),
-        optional("maturity"),
-        optional("name"),
+        col("account", true),
+        col("open_date", true),
+        col("maturity", false),
+        col("name", false),
     ];
 
     fn sheet(rows: &[(u32, &[(u32, &str)])]) -> Sheet {

@@ -18,8 +18,8 @@ use calamine::{open_workbook, Reader, SheetType, Xlsb, XlsbError};
 use super::cell::{lower_first, Cell};
 use super::picking::pick_sheets;
 use super::row::Row;
+use super::schema::SheetKind;
 use super::sheet::{Loaded, Rows, Sheet};
-use super::source::SheetKind;
 use crate::problem::{Position, Severity};
 
 /// The cells of one sheet, as (row, column, cell), blank cells left out.

@@ -15,8 +15,8 @@ use calamine::{open_workbook, Reader, Xlsx, XlsxError};
 
 use super::cell::{lower_first, Cell};
 use super::picking::pick_sheets;
+use super::schema::SheetKind;
 use super::sheet::Loaded;
-use super::source::SheetKind;
 use super::workbook::{push_sheet, worksheet_names, Cells};
 use crate::problem::{Position, Severity};
 

@@ -15,11 +15,9 @@ use std::path::PathBuf;
 use anyhow::{bail, Context, Result};
 
 use super::exit;
-use crate::report::book_writer::{csv_name, BookWriter, DATA_ROWS_PER_SHEET};
-use crate::sample::{
-    Generator, MistakeKind, SheetCounts, ACCOUNTS, HOLIDAYS, MOVEMENTS, RATES, SETTINGS, SHEETS,
-    STATEMENTS,
-};
+use crate::book::schema::SheetKind;
+use crate::report::book_writer::{csv_name, BookWriter, Value, DATA_ROWS_PER_SHEET};
+use crate::sample::{Generator, MistakeKind, SheetCounts, SHEETS};
 
 /// Accounts generated and written at a time.
 const CHUNK: u64 = 4096;
@@ -58,11 +56,11 @@ pub struct Args {
 fn limit_message(counts: &SheetCounts, accounts: u64) -> Option<String> {
     let (sheet, rows) = SHEETS
         .iter()
-        .zip(counts.rows)
+        .map(|s| (s.name(), counts.get(s.sheet)))
         .find(|(_, rows)| *rows > DATA_ROWS_PER_SHEET)?;
     Some(format!(
-        "a book of {accounts} accounts needs {rows} rows on its {} sheet, more than the {} a worksheet holds under its header: write it with --format csv (CSV books have no row limit)",
-        sheet.name, DATA_ROWS_PER_SHEET
+        "a book of {accounts} accounts needs {rows} rows on its {sheet} sheet, more than the {} a worksheet holds under its header: write it with --format csv (CSV books have no row limit)",
+        DATA_ROWS_PER_SHEET
     ))
 }
 
@@ -111,9 +109,7 @@ fn open_writer(args: &Args, generator: &Generator) -> Result<BookWriter> {
     let target = &args.out;
     if args.format == Format::Xlsx {
         // The Accounts sheet alone tells for the largest books, before any counting.
-        let quick = SheetCounts {
-            rows: [args.accounts, 0, 0, 0, 0, 0],
-        };
+        let quick = SheetCounts::of(&[(SheetKind::Accounts, args.accounts)]);
         let refusal = limit_message(&quick, args.accounts)
             .or_else(|| limit_message(&generator.counts(), args.accounts));
         if let Some(m) = refusal {
@@ -142,16 +138,14 @@ fn write_rows(
     accounts: u64,
 ) -> Result<(SheetCounts, BTreeMap<MistakeKind, u64>)> {
     let mut written = SheetCounts::default();
-    let mut add = |w: &mut BookWriter, sheet: usize, rows: Vec<Vec<crate::sample::Value>>| {
+    let mut add = |w: &mut BookWriter, sheet: SheetKind, rows: Vec<Vec<Value>>| {
         for r in rows {
             w.row(sheet, &r)?;
-            if let Some(n) = written.rows.get_mut(sheet) {
-                *n += 1;
-            }
+            written.add(sheet, 1);
         }
         Ok::<(), crate::report::ReportError>(())
     };
-    for sheet in [RATES, HOLIDAYS, SETTINGS] {
+    for sheet in [SheetKind::Rates, SheetKind::Holidays, SheetKind::Settings] {
         add(writer, sheet, generator.fixed_rows(sheet))?;
     }
     let mut planted: BTreeMap<MistakeKind, u64> = BTreeMap::new();
@@ -160,10 +154,10 @@ fn write_rows(
         let end = start.saturating_add(CHUNK).min(accounts);
         for account in generator.accounts_in(start..end) {
             let a = account?;
-            add(writer, ACCOUNTS, vec![a.account_row()])?;
-            add(writer, RATES, a.rate_rows())?;
-            add(writer, MOVEMENTS, a.movement_rows())?;
-            add(writer, STATEMENTS, a.statement_rows())?;
+            add(writer, SheetKind::Accounts, vec![a.account_row()])?;
+            add(writer, SheetKind::Rates, a.rate_rows())?;
+            add(writer, SheetKind::Movements, a.movement_rows())?;
+            add(writer, SheetKind::Statements, a.statement_rows())?;
             if let Some(m) = &a.mistake {
                 *planted.entry(m.kind()).or_insert(0) += 1;
             }
@@ -188,20 +182,20 @@ fn print_summary(
             target.display(),
             SHEETS
                 .iter()
-                .map(|s| csv_name(s.name))
+                .map(|s| csv_name(s.name()))
                 .collect::<Vec<_>>()
                 .join(", ")
         ),
     };
     writeln!(out, "sample book written: {shown}")?;
-    let n = |sheet: usize| written.rows.get(sheet).copied().unwrap_or(0);
+    let n = |sheet: SheetKind| written.get(sheet);
     writeln!(
         out,
         "{} accounts, {} rates rows, {} movements, {} statement rows (seed {}, cut-off {})",
-        n(ACCOUNTS),
-        n(RATES),
-        n(MOVEMENTS),
-        n(STATEMENTS),
+        n(SheetKind::Accounts),
+        n(SheetKind::Rates),
+        n(SheetKind::Movements),
+        n(SheetKind::Statements),
         args.seed,
         crate::sample::CUTOFF
     )?;
@@ -234,13 +228,19 @@ mod tests {
     /// The spreadsheet format's limit: 1,048,576 rows, one of them the header.
     #[test]
     fn a_sheet_past_the_row_limit_is_refused_with_the_way_out() {
-        let fits = SheetCounts {
-            rows: [10, 5, 1_048_575, 10, 7, 2],
+        let counts = |movements: u64| {
+            SheetCounts::of(&[
+                (SheetKind::Accounts, 10),
+                (SheetKind::Rates, 5),
+                (SheetKind::Movements, movements),
+                (SheetKind::Statements, 10),
+                (SheetKind::Holidays, 7),
+                (SheetKind::Settings, 2),
+            ])
         };
+        let fits = counts(1_048_575);
         assert_eq!(limit_message(&fits, 10), None);
-        let big = SheetCounts {
-            rows: [10, 5, 1_048_576, 10, 7, 2],
-        };
+        let big = counts(1_048_576);
         let m = limit_message(&big, 10).unwrap();
         assert!(m.contains("Movements sheet"), "{m}");
         assert!(m.contains("--format csv"), "{m}");

@@ -14,13 +14,47 @@ use std::io::BufWriter;
 use std::path::{Path, PathBuf};
 
 use chrono::NaiveDate;
+use rust_decimal::Decimal;
 use rust_xlsxwriter::{ColNum, DocProperties, Format, RowNum, Workbook};
 
 use super::cells::{Cells, TextFigures};
 use super::error::ReportError;
 use super::layout::{self, Styles, MAX_FORMAT_DECIMALS, SHEET_ROW_LIMIT};
 use super::output;
-use crate::sample::{SheetSpec, Value};
+use crate::book::schema::{Layout, SheetKind};
+
+/// One cell of a row to write.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Value {
+    /// Text.
+    Text(String),
+    /// An exact number, written with its own decimals.
+    Number(Decimal),
+    /// A date.
+    Date(NaiveDate),
+    /// Nothing.
+    Empty,
+}
+
+impl Value {
+    /// The value as CSV text: numbers with their decimals, dates in ISO form.
+    ///
+    /// ```
+    /// use ledgerate::report::book_writer::Value;
+    /// use rust_decimal::Decimal;
+    /// assert_eq!(Value::Number(Decimal::new(12050, 2)).csv_text(), "120.50");
+    /// assert_eq!(Value::Date("2026-11-30".parse().unwrap()).csv_text(), "2026-11-30");
+    /// assert_eq!(Value::Empty.csv_text(), "");
+    /// ```
+    pub fn csv_text(&self) -> String {
+        match self {
+            Value::Text(s) => s.clone(),
+            Value::Number(d) => d.to_string(),
+            Value::Date(d) => d.format("%Y-%m-%d").to_string(),
+            Value::Empty => String::new(),
+        }
+    }
+}
 
 /// How many data rows a workbook sheet holds under its header.
 ///
@@ -31,7 +65,8 @@ pub const DATA_ROWS_PER_SHEET: u64 = SHEET_ROW_LIMIT as u64 - 1;
 
 /// A book being written.
 pub struct BookWriter {
-    sheets: Vec<SheetSpec>,
+    /// The sheets, in the order they were given (and are in the book).
+    sheets: Vec<Layout>,
     inner: Inner,
 }
 
@@ -97,16 +132,17 @@ impl BookWriter {
     /// [`ReportError`] when the target's folder is missing or a sheet cannot be set up.
     ///
     /// ```no_run
-    /// use ledgerate::report::book_writer::BookWriter;
-    /// use ledgerate::sample::{Value, SHEETS, SETTINGS};
-    /// let mut w = BookWriter::xlsx(std::path::Path::new("book.xlsx"), &SHEETS, "A book", "2026-12-01".parse().unwrap())?;
-    /// w.row(SETTINGS, &[Value::Text("cutoff".into()), Value::Date("2026-11-30".parse().unwrap())])?;
+    /// use ledgerate::book::schema::{Layout, SheetKind};
+    /// use ledgerate::report::book_writer::{BookWriter, Value};
+    /// let sheets = [Layout::every(SheetKind::Settings)];
+    /// let mut w = BookWriter::xlsx(std::path::Path::new("book.xlsx"), &sheets, "A book", "2026-12-01".parse().unwrap())?;
+    /// w.row(SheetKind::Settings, &[Value::Text("cutoff".into()), Value::Date("2026-11-30".parse().unwrap())])?;
     /// w.finish()?;
     /// # Ok::<(), ledgerate::report::ReportError>(())
     /// ```
     pub fn xlsx(
         target: &Path,
-        sheets: &[SheetSpec],
+        sheets: &[Layout],
         title: &str,
         created: NaiveDate,
     ) -> Result<BookWriter, ReportError> {
@@ -128,20 +164,20 @@ impl BookWriter {
         let styles = Styles::new();
         let mut texts = TextFigures::default();
         for s in sheets {
+            let (name, labels) = (s.name(), s.labels());
             let ws = wb
                 .add_worksheet_with_constant_memory()
-                .map_err(|e| ReportError::sheet(s.name, e))?;
-            ws.set_name(s.name)
-                .map_err(|e| ReportError::sheet(s.name, e))?;
+                .map_err(|e| ReportError::sheet(name, e))?;
+            ws.set_name(name).map_err(|e| ReportError::sheet(name, e))?;
             ws.set_freeze_panes(1, 0)
-                .map_err(|e| ReportError::sheet(s.name, e))?;
-            for (col, label) in (0..).zip(s.columns.iter()) {
+                .map_err(|e| ReportError::sheet(name, e))?;
+            for (col, label) in (0..).zip(labels.iter()) {
                 let width = u16::try_from(label.len().max(10) + 4).unwrap_or(14);
                 ws.set_column_width(col, width)
-                    .map_err(|e| ReportError::sheet(s.name, e))?;
+                    .map_err(|e| ReportError::sheet(name, e))?;
             }
-            let mut cells = Cells::new(ws, s.name, &styles, &mut texts);
-            cells.at(0).header(s.columns, &[])?;
+            let mut cells = Cells::new(ws, name, &styles, &mut texts);
+            cells.at(0).header(&labels, &[])?;
         }
         let numbers = (0..=MAX_FORMAT_DECIMALS)
             .map(|d| {
@@ -173,11 +209,11 @@ impl BookWriter {
     ///
     /// # Errors
     /// [`ReportError::Io`] when the folder or a file cannot be made.
-    pub fn csv(dir: &Path, sheets: &[SheetSpec]) -> Result<BookWriter, ReportError> {
+    pub fn csv(dir: &Path, sheets: &[Layout]) -> Result<BookWriter, ReportError> {
         std::fs::create_dir_all(dir).map_err(io("create the folder", dir))?;
         let mut files = Vec::new();
         for s in sheets {
-            let target = dir.join(csv_name(s.name));
+            let target = dir.join(csv_name(s.name()));
             let mut builder = tempfile::Builder::new();
             builder.prefix(".ledgerate-").suffix(".partial");
             if let Some(p) = output::output_permissions(&target) {
@@ -188,7 +224,9 @@ impl BookWriter {
                 .map_err(io("create a temporary file in", dir))?;
             let file = tmp.reopen().map_err(io("open a temporary file in", dir))?;
             let mut writer = csv::Writer::from_writer(BufWriter::with_capacity(1 << 20, file));
-            writer.write_record(s.columns).map_err(csv_error(&target))?;
+            writer
+                .write_record(s.labels())
+                .map_err(csv_error(&target))?;
             files.push(CsvFile {
                 target,
                 tmp,
@@ -201,20 +239,21 @@ impl BookWriter {
         })
     }
 
-    /// Adds one row to sheet number `sheet` (an index of the sheets given at
-    /// the start), after its previous rows.
+    /// Adds one row to sheet `kind` (one of the sheets given at the start),
+    /// after its previous rows, its values in the order of the sheet's
+    /// columns.
     ///
     /// # Errors
-    /// [`ReportError`] for an unknown sheet, a sheet past the row limit, or
-    /// a write the writer refused.
-    pub fn row(&mut self, sheet: usize, values: &[Value]) -> Result<(), ReportError> {
-        let spec = self
+    /// [`ReportError`] for a sheet not given at the start, a sheet past the
+    /// row limit, or a write the writer refused.
+    pub fn row(&mut self, kind: SheetKind, values: &[Value]) -> Result<(), ReportError> {
+        let sheet = self
             .sheets
-            .get(sheet)
-            .copied()
-            .ok_or_else(|| ReportError::Internal(format!("no sheet number {sheet}")))?;
+            .iter()
+            .position(|s| s.sheet == kind)
+            .ok_or_else(|| ReportError::Internal(format!("no {} sheet", kind.label())))?;
         match &mut self.inner {
-            Inner::Xlsx(x) => x.row(sheet, spec.name, values),
+            Inner::Xlsx(x) => x.row(sheet, kind.label(), values),
             Inner::Csv(c) => {
                 let file = c
                     .files

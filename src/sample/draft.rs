@@ -576,30 +576,101 @@ fn movements(r: &mut Rng, flow: Flow, t: &AccountTerms, last: NaiveDate) -> Vec<
     out
 }
 
-/// Draws account `index` of the book of `seed`.
+/// Draws account `index` of the book of `seed`: its family and name, its
+/// opening, its terms, what its family adds, its rate product and its
+/// movements, in that order from the account's own stream.
 pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendars) -> Draft {
     let mut r = Rng::stream(seed, index.saturating_add(1));
     let spec = pick_spec(&mut r);
     let id = format!("HM-{}-{:07}", spec.code, index.saturating_add(1));
     let place = r.pick(&PLACES).copied().unwrap_or("Harbour");
-    let mut name = spec.name.replace("{}", place);
-    let mut gl = spec.gl;
     let basis = r.pick(spec.bases).copied().unwrap_or(Basis::Act365F);
-    let mut maturity = None;
-    let open = match spec.open {
-        Open::Month => month_open(&mut r),
-        Open::On(d) => d,
-        Open::Loan if r.chance(50) => day_between(&mut r, date(2026, 10, 16), date(2026, 11, 10)),
-        Open::Loan => date(2026, 10, 15),
+    let (open, maturity) = opening(&mut r, spec.open);
+    let mut t = spec_terms(&mut r, spec, &id, basis, open, cals);
+    let mut more = Particulars {
+        name: spec.name.replace("{}", place),
+        gl: spec.gl,
+        shelf: spec.shelf,
+        calendar: None,
+        debit_product: None,
+        own_rates: Vec::new(),
+        last: CUTOFF,
+    };
+    family_terms(
+        &mut r,
+        spec.family,
+        &mut t,
+        &mut more,
+        maturity,
+        products,
+        cals,
+    );
+    let product = more.shelf.and_then(|s| product_of(&mut r, products, s));
+    if t.round_at == RoundAt::Posting && r.chance(100) {
+        t.round_mode = RoundMode::HalfEven;
+    }
+    let moves = movements(&mut r, spec.flow, &t, more.last);
+    let rate_ref = product
+        .and_then(|p| products.get(p))
+        .map_or_else(|| t.id.clone(), |p| p.rate_ref.clone());
+    let debit_rate_ref = more
+        .debit_product
+        .and_then(|p| products.get(p))
+        .map(|p| p.rate_ref.clone());
+    let plant = r.chance(MISTAKES_PER_MILLE).then(|| r.next_u64());
+    Draft {
+        entry: AccountEntry {
+            name: more.name,
+            rate_ref,
+            debit_rate_ref,
+            gl: GlCodes {
+                interest: Some(more.gl.0.to_string()),
+                accrued: Some(more.gl.1.to_string()),
+                settlement: None,
+            },
+            position: Position::default(),
+            terms: t,
+        },
+        calendar: more.calendar,
+        product,
+        debit_product: more.debit_product,
+        own_rates: more.own_rates,
+        movements: moves,
+        plant,
+    }
+}
+
+/// The day an account opens and, for a term, its maturity and term in
+/// months.
+fn opening(r: &mut Rng, open: Open) -> (NaiveDate, Option<(NaiveDate, u32)>) {
+    match open {
+        Open::Month => (month_open(r), None),
+        Open::On(d) => (d, None),
+        Open::Loan if r.chance(50) => {
+            (day_between(r, date(2026, 10, 16), date(2026, 11, 10)), None)
+        }
+        Open::Loan => (date(2026, 10, 15), None),
         Open::Term => {
             let months = *r.pick(&[3u32, 6, 6, 12, 12, 24]).unwrap_or(&6);
-            let m = day_between(&mut r, date(2026, 11, 2), date(2026, 12, 1));
-            maturity = Some((m, months));
-            m.checked_sub_months(Months::new(months)).unwrap_or(m)
+            let m = day_between(r, date(2026, 11, 2), date(2026, 12, 1));
+            let open = m.checked_sub_months(Months::new(months)).unwrap_or(m);
+            (open, Some((m, months)))
         }
-    };
-    let balance = balance(&mut r, spec.balance.0, spec.balance.1, spec.minor_units);
-    let mut t = AccountTerms::new(&id, spec.currency, spec.minor_units, basis, open, balance);
+    }
+}
+
+/// The terms every account of a spec has: its opening balance, one of its
+/// compounding rules, its posting, and its side.
+fn spec_terms(
+    r: &mut Rng,
+    spec: &Spec,
+    id: &str,
+    basis: Basis,
+    open: NaiveDate,
+    cals: &Calendars,
+) -> AccountTerms {
+    let balance = balance(r, spec.balance.0, spec.balance.1, spec.minor_units);
+    let mut t = AccountTerms::new(id, spec.currency, spec.minor_units, basis, open, balance);
     t.compounding = r.pick(spec.compounding).copied().unwrap_or_default();
     t.posting = spec.posting;
     t.anchor = spec.anchor;
@@ -608,21 +679,46 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
     if r.chance(spec.asset) {
         t.side = Side::Asset;
     }
-    let mut shelf = spec.shelf;
-    let mut calendar = None;
-    let mut debit_product = None;
-    let mut own_rates = Vec::new();
-    let mut last = CUTOFF;
-    match spec.family {
+    t
+}
+
+/// What an account holds beyond its terms, as its family makes it.
+struct Particulars {
+    name: String,
+    /// Interest and accrued GL codes.
+    gl: (&'static str, &'static str),
+    /// The rate products it earns; `None`: rates of its own.
+    shelf: Option<Shelf>,
+    /// The calendar named on its row.
+    calendar: Option<&'static str>,
+    debit_product: Option<usize>,
+    own_rates: Vec<RateRow>,
+    /// The last day a movement may take value.
+    last: NaiveDate,
+}
+
+/// The terms and particulars that set a family apart: banded tiers, a
+/// loan's payment dates and calendar, a term's maturity and own rate, and
+/// so on.
+fn family_terms(
+    r: &mut Rng,
+    family: Family,
+    t: &mut AccountTerms,
+    more: &mut Particulars,
+    maturity: Option<(NaiveDate, u32)>,
+    products: &[Product],
+    cals: &Calendars,
+) {
+    match family {
         Family::Tiered if r.chance(500) => {
             t.tier_method = TierMethod::Banded;
-            shelf = Some(Shelf::TierBanded);
+            more.shelf = Some(Shelf::TierBanded);
         }
         Family::Loan => {
             t.anchor_kind = AnchorKind::Payment;
             t.business_day = BusinessDay::ModifiedFollowing;
             t.calendar = Arc::clone(&cals.harbour);
-            calendar = Some("HARBOUR");
+            more.calendar = Some("HARBOUR");
             if r.chance(250) {
                 t.round_at = RoundAt::Daily;
                 t.round_mode = RoundMode::HalfEven;
@@ -636,61 +732,29 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
             }
             if let Some((m, months)) = maturity {
                 t.maturity = Some(m);
-                last = plus_days(m, -1);
+                more.last = plus_days(m, -1);
                 if months > 12 {
                     t.compounding = Compounding::Annual;
                 }
             }
-            own_rates.push(RateRow {
+            more.own_rates.push(RateRow {
                 rate_ref: t.id.clone(),
-                effective: open,
+                effective: t.open_date,
                 percent: Decimal::new(r.between(250, 500), 2).normalize(),
                 tier_from: None,
             });
         }
         Family::Intercompany if t.side == Side::Asset => {
-            name = "Loan to Harbourview Services Ltd".to_string();
-            gl = ("4210", "1320");
+            more.name = "Loan to Harbourview Services Ltd".to_string();
+            more.gl = ("4210", "1320");
         }
         Family::Euro if r.chance(300) => t.round_mode = RoundMode::HalfEven,
         Family::Real => {
             t.calendar = Arc::clone(&cals.brazil);
-            calendar = Some("BR-2026");
+            more.calendar = Some("BR-2026");
         }
-        Family::Current => debit_product = product_of(&mut r, products, Shelf::Overdraft),
+        Family::Current => more.debit_product = product_of(r, products, Shelf::Overdraft),
         _ => {}
-    }
-    let product = shelf.and_then(|s| product_of(&mut r, products, s));
-    if t.round_at == RoundAt::Posting && r.chance(100) {
-        t.round_mode = RoundMode::HalfEven;
-    }
-    let moves = movements(&mut r, spec.flow, &t, last);
-    let rate_ref = product
-        .and_then(|p| products.get(p))
-        .map_or_else(|| t.id.clone(), |p| p.rate_ref.clone());
-    let debit_rate_ref = debit_product
-        .and_then(|p| products.get(p))
-        .map(|p| p.rate_ref.clone());
-    let plant = r.chance(MISTAKES_PER_MILLE).then(|| r.next_u64());
-    Draft {
-        entry: AccountEntry {
-            name,
-            rate_ref,
-            debit_rate_ref,
-            gl: GlCodes {
-                interest: Some(gl.0.to_string()),
-                accrued: Some(gl.1.to_string()),
-                settlement: None,
-            },
-            position: Position::default(),
-            terms: t,
-        },
-        calendar,
-        product,
-        debit_product,
-        own_rates,
-        movements: moves,
-        plant,
     }
 }
 

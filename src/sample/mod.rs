@@ -23,6 +23,7 @@ mod draft;
 mod plant;
 pub mod rng;
 
+use std::collections::BTreeMap;
 use std::ops::Range;
 use std::sync::Arc;
 
@@ -30,6 +31,7 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
+use crate::book::schema::{layout, Layout, SheetKind, ACCOUNTS, RATES};
 use crate::book::AccountEntry;
 use crate::conventions::calendar::Calendar;
 use crate::engine::floating::{FixingFallback, Fixings};
@@ -37,6 +39,7 @@ use crate::engine::rates::RateSchedule;
 use crate::engine::reconcile::Tolerance;
 use crate::engine::{EngineError, Movement, RoundAt, TierMethod};
 use crate::pipeline::{run_account, BookAccount, Options};
+use crate::report::book_writer::Value;
 
 use catalogue::Product;
 use draft::Draft;
@@ -63,39 +66,6 @@ const fn date(y: i32, m: u32, d: u32) -> NaiveDate {
     }
 }
 
-/// One cell of a generated sheet.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub enum Value {
-    /// Text.
-    Text(String),
-    /// An exact number, written with its own decimals.
-    Number(Decimal),
-    /// A date.
-    Date(NaiveDate),
-    /// Nothing.
-    Empty,
-}
-
-impl Value {
-    /// The value as CSV text: numbers with their decimals, dates in ISO form.
-    ///
-    /// ```
-    /// use ledgerate::sample::Value;
-    /// use rust_decimal::Decimal;
-    /// assert_eq!(Value::Number(Decimal::new(12050, 2)).csv_text(), "120.50");
-    /// assert_eq!(Value::Date("2026-11-30".parse().unwrap()).csv_text(), "2026-11-30");
-    /// assert_eq!(Value::Empty.csv_text(), "");
-    /// ```
-    pub fn csv_text(&self) -> String {
-        match self {
-            Value::Text(s) => s.clone(),
-            Value::Number(d) => d.to_string(),
-            Value::Date(d) => d.format("%Y-%m-%d").to_string(),
-            Value::Empty => String::new(),
-        }
-    }
-}
-
 fn text(s: &str) -> Value {
     Value::Text(s.to_string())
 }
@@ -104,96 +74,47 @@ fn opt_date(d: Option<NaiveDate>) -> Value {
     d.map_or(Value::Empty, Value::Date)
 }
 
-/// A sheet of the generated book: its name and header labels.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub struct SheetSpec {
-    /// The sheet's name (a CSV file's name is this in lower case plus `.csv`).
-    pub name: &'static str,
-    /// Header labels, in column order.
-    pub columns: &'static [&'static str],
-}
-
-/// Index of the Accounts sheet in [`SHEETS`].
-pub const ACCOUNTS: usize = 0;
-/// Index of the Rates sheet in [`SHEETS`].
-pub const RATES: usize = 1;
-/// Index of the Movements sheet in [`SHEETS`].
-pub const MOVEMENTS: usize = 2;
-/// Index of the Statements sheet in [`SHEETS`].
-pub const STATEMENTS: usize = 3;
-/// Index of the Holidays sheet in [`SHEETS`].
-pub const HOLIDAYS: usize = 4;
-/// Index of the Settings sheet in [`SHEETS`].
-pub const SETTINGS: usize = 5;
-
-/// The sheets of a generated book, in book order.
+/// The sheets of a generated book, in book order, each with the columns its
+/// rows fill, in their order (the row builders below make the cells in it).
 ///
 /// ```
-/// use ledgerate::sample::{SHEETS, STATEMENTS};
-/// assert_eq!(SHEETS[STATEMENTS].name, "Statements");
-/// assert_eq!(SHEETS[STATEMENTS].columns[3], "posted_interest");
+/// use ledgerate::book::schema::SheetKind;
+/// use ledgerate::sample::SHEETS;
+/// assert_eq!(SHEETS[3].sheet, SheetKind::Statements);
+/// assert_eq!(SHEETS[3].labels()[3], "posted_interest");
 /// ```
-pub const SHEETS: [SheetSpec; 6] = [
-    SheetSpec {
-        name: "Accounts",
-        columns: &[
-            "account",
-            "name",
-            "currency",
-            "side",
-            "day_count",
-            "compounding",
-            "posting",
-            "posting_anchor",
-            "anchor_kind",
-            "capitalise",
-            "round_at",
-            "round_mode",
-            "round_places",
-            "maturity",
-            "open_date",
-            "opening_balance",
-            "rate_ref",
-            "debit_rate_ref",
-            "tier_method",
-            "calendar",
-            "business_day",
-            "gl_interest",
-            "gl_accrued",
-        ],
-    },
-    SheetSpec {
-        name: "Rates",
-        columns: &["rate_ref", "effective", "rate_percent", "tier_from"],
-    },
-    SheetSpec {
-        name: "Movements",
-        columns: &[
-            "account",
-            "value_date",
-            "amount",
-            "booking_date",
-            "reference",
-        ],
-    },
-    SheetSpec {
-        name: "Statements",
-        columns: &[
-            "account",
-            "period_start",
-            "period_end",
-            "posted_interest",
-            "reference",
-        ],
-    },
-    SheetSpec {
-        name: "Holidays",
-        columns: &["calendar", "date", "name"],
-    },
-    SheetSpec {
-        name: "Settings",
-        columns: &["setting", "value"],
-    },
+pub const SHEETS: [Layout; 6] = [
+    layout!(
+        ACCOUNTS,
+        "account",
+        "name",
+        "currency",
+        "side",
+        "day_count",
+        "compounding",
+        "posting",
+        "posting_anchor",
+        "anchor_kind",
+        "capitalise",
+        "round_at",
+        "round_mode",
+        "round_places",
+        "maturity",
+        "open_date",
+        "opening_balance",
+        "rate_ref",
+        "debit_rate_ref",
+        "tier_method",
+        "calendar",
+        "business_day",
+        "gl_interest",
+        "gl_accrued",
+    ),
+    layout!(RATES, "rate_ref", "effective", "rate_percent", "tier_from"),
+    Layout::every(SheetKind::Movements),
+    Layout::every(SheetKind::Statements),
+    Layout::every(SheetKind::Holidays),
+    Layout::every(SheetKind::Settings),
 ];
 
 /// One row of the Rates sheet.
@@ -257,7 +178,7 @@ pub struct SampleAccount {
 }
 
 impl SampleAccount {
-    /// The Accounts row, in the columns of [`SHEETS`]`[ACCOUNTS]`.
+    /// The Accounts row, in the columns of the Accounts layout of [`SHEETS`].
     pub fn account_row(&self) -> Vec<Value> {
         let t = &self.entry.terms;
         let default_ref = self.entry.rate_ref == t.id;
@@ -356,21 +277,37 @@ pub struct SampleError {
 }
 
 /// How many data rows (header not counted) each sheet of a book gets.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
 pub struct SheetCounts {
-    /// Rows by sheet, in the order of [`SHEETS`].
-    pub rows: [u64; 6],
+    rows: BTreeMap<SheetKind, u64>,
 }
 
 impl SheetCounts {
-    /// The largest sheet: its index in [`SHEETS`] and its data rows.
-    pub fn largest(&self) -> (usize, u64) {
-        self.rows
-            .iter()
-            .copied()
-            .enumerate()
-            .max_by_key(|(i, n)| (*n, std::cmp::Reverse(*i)))
-            .unwrap_or((0, 0))
+    /// The counts given, the other sheets none.
+    ///
+    /// ```
+    /// use ledgerate::book::schema::SheetKind;
+    /// use ledgerate::sample::SheetCounts;
+    /// let c = SheetCounts::of(&[(SheetKind::Accounts, 10)]);
+    /// assert_eq!((c.get(SheetKind::Accounts), c.get(SheetKind::Rates)), (10, 0));
+    /// ```
+    pub fn of(counts: &[(SheetKind, u64)]) -> SheetCounts {
+        let mut out = SheetCounts::default();
+        for (sheet, n) in counts {
+            out.add(*sheet, *n);
+        }
+        out
+    }
+
+    /// The data rows of `sheet`.
+    pub fn get(&self, sheet: SheetKind) -> u64 {
+        self.rows.get(&sheet).copied().unwrap_or(0)
+    }
+
+    /// Counts `n` more rows on `sheet`.
+    pub fn add(&mut self, sheet: SheetKind, n: u64) {
+        let count = self.rows.entry(sheet).or_insert(0);
+        *count = count.saturating_add(n);
     }
 }
 
@@ -449,18 +386,18 @@ impl Generator {
 
     /// The rows of a small sheet (Holidays or Settings) or the shared
     /// products' Rates rows; the per-account sheets give none here.
-    pub fn fixed_rows(&self, sheet: usize) -> Vec<Vec<Value>> {
+    pub fn fixed_rows(&self, sheet: SheetKind) -> Vec<Vec<Value>> {
         match sheet {
-            RATES => self
+            SheetKind::Rates => self
                 .products
                 .iter()
                 .flat_map(|p| p.rows.iter().map(RateRow::cells))
                 .collect(),
-            HOLIDAYS => HOLIDAY_ROWS
+            SheetKind::Holidays => HOLIDAY_ROWS
                 .iter()
                 .map(|(c, d, n)| vec![text(c), Value::Date(*d), text(n)])
                 .collect(),
-            SETTINGS => vec![
+            SheetKind::Settings => vec![
                 vec![text("cutoff"), Value::Date(CUTOFF)],
                 vec![text("entity"), text(ENTITY)],
             ],
@@ -480,17 +417,15 @@ impl Generator {
                 (d.movements.len() as u64, d.own_rates.len() as u64)
             })
             .reduce(|| (0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
-        let fixed = |s: usize| self.fixed_rows(s).len() as u64;
-        SheetCounts {
-            rows: [
-                self.accounts,
-                fixed(RATES) + own_rates,
-                movements,
-                self.accounts,
-                fixed(HOLIDAYS),
-                fixed(SETTINGS),
-            ],
-        }
+        let fixed = |s: SheetKind| self.fixed_rows(s).len() as u64;
+        SheetCounts::of(&[
+            (SheetKind::Accounts, self.accounts),
+            (SheetKind::Rates, fixed(SheetKind::Rates) + own_rates),
+            (SheetKind::Movements, movements),
+            (SheetKind::Statements, self.accounts),
+            (SheetKind::Holidays, fixed(SheetKind::Holidays)),
+            (SheetKind::Settings, fixed(SheetKind::Settings)),
+        ])
     }
 
     fn draft(&self, index: u64) -> Draft {

@@ -101,13 +101,13 @@ fn movements_rate_changes_and_statements_per_account() {
     }
     let counts = g.counts();
     assert_eq!(
-        counts.rows[MOVEMENTS],
+        counts.get(SheetKind::Movements),
         accounts
             .iter()
             .map(|a| a.movements.len() as u64)
             .sum::<u64>()
     );
-    assert_eq!(counts.rows[ACCOUNTS], 3000);
+    assert_eq!(counts.get(SheetKind::Accounts), 3000);
 }
 
 /// About 2% of statement rows carry a mistake, each far enough from the
@@ -138,26 +138,51 @@ fn about_two_percent_of_rows_carry_a_mistake() {
     assert_eq!(kinds, MistakeKind::ALL.into_iter().collect());
 }
 
+/// The width of a sheet of the generated book: the columns of its layout.
+fn width(sheet: SheetKind) -> usize {
+    SHEETS
+        .iter()
+        .find(|s| s.sheet == sheet)
+        .map(|s| s.labels().len())
+        .unwrap()
+}
+
 #[test]
 fn every_row_has_a_cell_per_column() {
     for a in book(3, 200) {
-        assert_eq!(a.account_row().len(), SHEETS[ACCOUNTS].columns.len());
+        assert_eq!(a.account_row().len(), width(SheetKind::Accounts));
         for r in a.movement_rows() {
-            assert_eq!(r.len(), SHEETS[MOVEMENTS].columns.len());
+            assert_eq!(r.len(), width(SheetKind::Movements));
         }
-        for r in a.statement_rows().into_iter().chain(a.rate_rows()) {
-            assert!(
-                r.len() == SHEETS[STATEMENTS].columns.len()
-                    || r.len() == SHEETS[RATES].columns.len()
-            );
+        for r in a.statement_rows() {
+            assert_eq!(r.len(), width(SheetKind::Statements));
+        }
+        for r in a.rate_rows() {
+            assert_eq!(r.len(), width(SheetKind::Rates));
         }
     }
     let g = Generator::new(3, 1);
-    for sheet in [RATES, HOLIDAYS, SETTINGS] {
+    for sheet in [SheetKind::Rates, SheetKind::Holidays, SheetKind::Settings] {
         for r in g.fixed_rows(sheet) {
-            assert_eq!(r.len(), SHEETS[sheet].columns.len());
+            assert_eq!(r.len(), width(sheet));
         }
     }
     assert!(HOLIDAY_ROWS.iter().all(|(_, d, _)| *d != NaiveDate::MIN));
     assert!([CUTOFF, WINDOW_START].iter().all(|d| *d != NaiveDate::MIN));
+}
+
+/// Every sheet of the generated book is a sheet of the book format, once,
+/// in the format's order; the Fixings sheet is the one left out.
+#[test]
+fn the_sheets_follow_the_book_format() {
+    let kinds: Vec<SheetKind> = SHEETS.iter().map(|s| s.sheet).collect();
+    let expected: Vec<SheetKind> = SheetKind::ALL
+        .into_iter()
+        .filter(|k| *k != SheetKind::Fixings)
+        .collect();
+    assert_eq!(kinds, expected);
+    assert_eq!(
+        SHEETS[0].labels()[..5],
+        ["account", "name", "currency", "side", "day_count"]
+    );
 }

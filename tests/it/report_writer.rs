@@ -8,6 +8,7 @@ use std::str::FromStr;
 
 use calamine::{open_workbook, open_workbook_auto, Data, HorizontalAlignment, Reader, Xlsx};
 use chrono::{NaiveDate, NaiveDateTime};
+use ledgerate::book::schema::{SheetKind, SETTING_ROWS};
 use ledgerate::problem::{Position, Problem, Severity};
 use ledgerate::report::model::*;
 use ledgerate::report::{write_report, write_template, ReportError};
@@ -684,83 +685,14 @@ fn the_template_has_every_sheet_and_column_of_an_account_book() {
     let dir = tempfile::tempdir().unwrap();
     let target = dir.path().join("book.xlsx");
     write_template(&target).unwrap();
-    let expected: Vec<(&str, Vec<&str>)> = vec![
-        (
-            "Accounts",
-            vec![
-                "account",
-                "currency",
-                "day_count",
-                "open_date",
-                "opening_balance",
-                "name",
-                "side",
-                "compounding",
-                "posting",
-                "posting_anchor",
-                "anchor_kind",
-                "capitalise",
-                "round_at",
-                "round_mode",
-                "round_places",
-                "maturity",
-                "rate_ref",
-                "debit_rate_ref",
-                "tier_method",
-                "calendar",
-                "business_day",
-                "payment_delay_days",
-                "opening_accrued",
-                "period_start",
-                "rate_method",
-                "lookback_days",
-                "observation_shift",
-                "lockout_days",
-                "spread_compounded",
-                "floor_on",
-                "gl_interest",
-                "gl_accrued",
-                "gl_settlement",
-            ],
-        ),
-        (
-            "Rates",
-            vec![
-                "rate_ref",
-                "effective",
-                "rate_percent",
-                "rate_decimal",
-                "tier_from",
-                "index",
-                "spread_bp",
-                "floor_percent",
-                "cap_percent",
-            ],
-        ),
-        (
-            "Movements",
-            vec![
-                "account",
-                "value_date",
-                "amount",
-                "booking_date",
-                "reference",
-            ],
-        ),
-        (
-            "Statements",
-            vec![
-                "account",
-                "period_start",
-                "period_end",
-                "posted_interest",
-                "reference",
-            ],
-        ),
-        ("Fixings", vec!["index", "date", "rate_percent"]),
-        ("Holidays", vec!["calendar", "date", "name"]),
-        ("Settings", vec!["setting", "value"]),
-    ];
+    // Every sheet and column of the book schema, in its order.
+    let expected: Vec<(&str, Vec<&str>)> = SheetKind::ALL
+        .iter()
+        .map(|k| {
+            let spec = k.spec();
+            (spec.name, spec.columns.iter().map(|c| c.name).collect())
+        })
+        .collect();
     assert_eq!(
         names(&target),
         expected
@@ -772,7 +704,7 @@ fn the_template_has_every_sheet_and_column_of_an_account_book() {
         let rows = sheet(&target, name);
         assert_eq!(&header(&rows), columns, "{name}");
         assert!(rows.len() >= 2, "{name} has an example row");
-        // A note on every header cell.
+        // A note on every header cell: the schema's note on the column.
         let comments = zip_text(
             &target,
             &format!("xl/comments{}.xml", sheet_index(&target, name)),
@@ -781,6 +713,15 @@ fn the_template_has_every_sheet_and_column_of_an_account_book() {
             comments.matches("<comment ref=").count() >= columns.len(),
             "{name} notes"
         );
+        let spec = SheetKind::from_name(name).unwrap().spec();
+        for c in spec.columns {
+            let note = c.note.replace('&', "&amp;");
+            assert!(
+                comments.contains(&format!("<t>{note}</t>")),
+                "{name}.{}",
+                c.name
+            );
+        }
     }
 
     let accounts = sheet(&target, "Accounts");
@@ -793,15 +734,7 @@ fn the_template_has_every_sheet_and_column_of_an_account_book() {
     let setting_names: Vec<String> = settings[1..].iter().map(|r| r[0].to_string()).collect();
     assert_eq!(
         setting_names,
-        vec![
-            "cutoff",
-            "window_start",
-            "tolerance_amount",
-            "tolerance_bp",
-            "entity",
-            "journal_style",
-            "statement_end"
-        ]
+        SETTING_ROWS.iter().map(|s| s.name).collect::<Vec<_>>()
     );
     assert_eq!(day_of(&settings[1][1]), date("2024-01-31"));
 

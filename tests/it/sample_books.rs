@@ -28,7 +28,7 @@ fn csv_bytes(dir: &Path) -> Vec<(String, Vec<u8>)> {
     SHEETS
         .iter()
         .map(|s| {
-            let name = csv_name(s.name);
+            let name = csv_name(s.name());
             let bytes = std::fs::read(dir.join(&name)).unwrap();
             (name, bytes)
         })
