@@ -18,7 +18,6 @@ pub mod book;
 pub mod cli;
 pub mod conventions;
 pub mod engine;
-pub mod merge;
 pub mod problem;
 pub mod report;
 pub mod sample;

@@ -13,9 +13,10 @@ use anyhow::{anyhow, bail, Context, Result};
 use super::exit;
 use super::inputs::{check_output_is_not_an_input, fingerprint};
 use super::run::{print_summary, run_time};
+use crate::batch::merge::merge;
 use crate::book::{read_book, ReadOptions};
-use crate::merge::{merge, read_workbook};
 use crate::problem::Severity;
+use crate::report::readback::read_workbook;
 
 /// Arguments of `merge`.
 #[derive(Debug, clap::Args)]

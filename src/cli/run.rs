@@ -421,7 +421,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let outside = report
         .reconciliation
         .iter()
-        .any(|l| !matches!(l.status.as_ref(), "agrees" | "within tolerance"));
+        .any(|l| l.status.outside_tolerance());
     Ok(
         if report
             .problems
@@ -539,7 +539,7 @@ pub(crate) fn print_summary(
         let counts: Vec<String> = report
             .status_counts
             .iter()
-            .map(|c| format!("{} {}", c.rows, c.status))
+            .map(|c| format!("{} {}", c.rows, c.status.name()))
             .collect();
         writeln!(out, "statement rows: {}", counts.join(", "))?;
     }

@@ -21,8 +21,7 @@ use rust_xlsxwriter::{
 use super::cells::{Cells, TextFigure, TextFigures, EXACT_DIGITS};
 use super::error::ReportError;
 use super::layout::{
-    self, column_width, outside_tolerance, part_name, place, sheet_ref, Limits, Styles,
-    MAX_FORMAT_DECIMALS,
+    self, column_width, part_name, place, sheet_ref, Limits, Styles, MAX_FORMAT_DECIMALS,
 };
 use super::model::{AccrualLine, DailyLine, JournalLine, ReconciliationLine, Report};
 use super::output;
@@ -96,6 +95,27 @@ pub const TOTALS_HEADER: [&str; 6] = [
     "Posted in window",
     "Interest for window",
 ];
+
+/// Labels of the Summary's account counts.
+pub const ACCOUNTS_READ: &str = "Accounts read";
+/// See [`ACCOUNTS_READ`].
+pub const ACCOUNTS_COMPUTED: &str = "Accounts computed";
+/// See [`ACCOUNTS_READ`].
+pub const ACCOUNTS_LEFT_OUT: &str = "Accounts left out by errors";
+
+/// Labels of the Run sheet's first rows: the program, the command line and
+/// the time of the run.
+pub const RUN_PROGRAM: &str = "Program version";
+/// See [`RUN_PROGRAM`].
+pub const RUN_COMMAND_LINE: &str = "Command line";
+/// See [`RUN_PROGRAM`].
+pub const RUN_TIME: &str = "Time of the run";
+
+/// Header labels of the Run sheet's inputs.
+pub const INPUTS_HEADER: [&str; 3] = ["Input", "Size (bytes)", "SHA-256"];
+
+/// Header labels of the Run sheet's settings.
+pub const SETTINGS_HEADER: [&str; 3] = ["Setting", "Value", "Source"];
 
 /// The caution printed at the top of the Summary.
 pub const CAUTION: &str = "Caution: every figure here is worked out from the terms and data \
@@ -503,11 +523,7 @@ fn reconciliation_row(c: &mut Cells<'_>, r: &ReconciliationLine) -> Result<(), R
     if let Some(bp) = r.variance_bp {
         c.bp(9, bp)?;
     }
-    c.text_as(
-        10,
-        &r.status,
-        styles.status(&r.status).unwrap_or(&styles.text),
-    )?;
+    c.text_as(10, r.status.name(), styles.status(r.status))?;
     c.text(11, &r.likely_cause)?;
     Ok(())
 }
@@ -569,9 +585,7 @@ fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
         },
         account: None,
         found: first.text.clone(),
-        expected: format!(
-            "a figure of at most {EXACT_DIGITS} significant digits, which a spreadsheet number holds exactly"
-        ),
+        expected: text_figure_expected(),
         fix: format!(
             "{} figure{} written as text, right-aligned, so that no digit is lost ({}); \
              spreadsheet sums skip text cells, so add these figures separately",
@@ -596,10 +610,7 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
         },
         account: None,
         found: format!("{}…", first.text),
-        expected: format!(
-            "a text of at most {} characters, which a spreadsheet cell holds",
-            super::cells::MAX_CELL_CHARS
-        ),
+        expected: cut_text_expected(),
         fix: format!(
             "{} text{} cut to fit, ending in … ({}); the input keeps the whole text, so shorten it there if the cut matters",
             texts.cut_count,
@@ -607,6 +618,26 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             cells.join(", ")
         ),
     })
+}
+
+fn text_figure_expected() -> String {
+    format!(
+        "a figure of at most {EXACT_DIGITS} significant digits, which a spreadsheet number holds exactly"
+    )
+}
+
+fn cut_text_expected() -> String {
+    format!(
+        "a text of at most {} characters, which a spreadsheet cell holds",
+        super::cells::MAX_CELL_CHARS
+    )
+}
+
+/// Whether a problem is one of the notes the writer adds to the Problems
+/// sheet itself (figures written as text, texts cut to fit): a workbook
+/// read back leaves them out, since writing it again makes them anew.
+pub(crate) fn is_writer_note(p: &Problem) -> bool {
+    p.expected == text_figure_expected() || p.expected == cut_text_expected()
 }
 
 /// The first cells of `listed` as `Sheet!A1`, and how many more of `count`.
@@ -647,7 +678,7 @@ fn chart_plan(rows: &[ReconciliationLine], limits: &Limits) -> Option<ChartPlan>
     let outside: Vec<usize> = rows
         .iter()
         .enumerate()
-        .filter(|(_, r)| outside_tolerance(&r.status) && r.variance_bp.is_some())
+        .filter(|(_, r)| r.status.outside_tolerance() && r.variance_bp.is_some())
         .map(|(i, _)| i)
         .collect();
     let total = outside.len();
@@ -777,13 +808,13 @@ fn write_summary(
         c.text_spilling(1, &input.path, &styles.text)?;
     }
     row += 1;
-    label(&mut c, row, "Accounts read")?;
+    label(&mut c, row, ACCOUNTS_READ)?;
     c.count(1, int(facts.accounts_read))?;
     row += 1;
-    label(&mut c, row, "Accounts computed")?;
+    label(&mut c, row, ACCOUNTS_COMPUTED)?;
     c.count(1, int(facts.accounts_computed))?;
     row += 1;
-    label(&mut c, row, "Accounts left out by errors")?;
+    label(&mut c, row, ACCOUNTS_LEFT_OUT)?;
     c.count(1, int(facts.accounts_failed))?;
     row += 1;
     label(&mut c, row, "Problems: errors")?;
@@ -819,8 +850,8 @@ fn write_summary(
         c.at(row).header(&["Status", "Rows"], &[1])?;
         for s in &report.status_counts {
             row += 1;
-            let fill = styles.status(&s.status).unwrap_or(&styles.text);
-            c.at(row).text_as(0, &s.status, fill)?;
+            c.at(row)
+                .text_as(0, s.status.name(), styles.status(s.status))?;
             c.count(1, int(s.rows))?;
         }
     }
@@ -926,16 +957,15 @@ fn write_run(
     layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Run", e))?;
     let mut c = Cells::new(ws, "Run", styles, texts);
     c.at(0).header(&["Item", "Value"], &[])?;
-    c.at(1).text(0, "Program version")?;
+    c.at(1).text(0, RUN_PROGRAM)?;
     c.text(1, &facts.program)?;
-    c.at(2).text(0, "Command line")?;
+    c.at(2).text(0, RUN_COMMAND_LINE)?;
     c.text_spilling(1, &facts.command_line, &styles.text)?;
-    c.at(3).text(0, "Time of the run")?;
+    c.at(3).text(0, RUN_TIME)?;
     c.datetime(1, facts.run_time)?;
 
     let mut row: RowNum = 5;
-    c.at(row)
-        .header(&["Input", "Size (bytes)", "SHA-256"], &[1])?;
+    c.at(row).header(&INPUTS_HEADER, &[1])?;
     for input in &facts.inputs {
         row += 1;
         c.at(row).text(0, &input.path)?;
@@ -943,7 +973,7 @@ fn write_run(
         c.text(2, &input.sha256)?;
     }
     row += 2;
-    c.at(row).header(&["Setting", "Value", "Source"], &[])?;
+    c.at(row).header(&SETTINGS_HEADER, &[])?;
     for s in &facts.settings {
         row += 1;
         c.at(row).text(0, &s.name)?;
@@ -951,7 +981,7 @@ fn write_run(
         c.text(2, s.source.name())?;
     }
     let widths = [
-        column_width("Time of the run", c.width(0), 60),
+        column_width(RUN_TIME, c.width(0), 60),
         column_width("Size (bytes)", c.width(1).max(20), 40),
         column_width("SHA-256", c.width(2), 70),
     ];
