@@ -9,8 +9,7 @@ use rust_decimal::Decimal;
 
 use super::daycount::parse_iso_date;
 use super::inputs::check_books_exist;
-use super::run::{fixing_fallback, tolerance, ToleranceArgs};
-use super::settings::{self, month_start, Settings};
+use super::settings::{Given, Settings, ToleranceArgs};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::engine::causes::{likely_cause, Account};
 use crate::engine::floating::{FixingUsed, FloatingRates};
@@ -30,10 +29,10 @@ pub struct Args {
     /// The days to show, START..END (default: the statement periods in the window, else the window).
     #[arg(long, value_name = "START..END")]
     period: Option<String>,
-    /// C, the cut-off (else the Settings sheet's cutoff, else the period's end).
+    /// The cut-off date (else the Settings sheet's cutoff, else the period's end).
     #[arg(long, value_name = "DATE")]
     cutoff: Option<String>,
-    /// F, the first day of the window (else the Settings sheet's window_start, else the cut-off's month).
+    /// The first day of the window (else the Settings sheet's window_start, else the cut-off's month).
     #[arg(long, value_name = "DATE")]
     window_start: Option<String>,
     #[command(flatten)]
@@ -97,25 +96,20 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             }
         })?;
     let period = args.period.as_deref().map(parse_period).transpose()?;
-    let cutoff = settings::date(
-        &books,
-        "cutoff",
-        args.cutoff.as_deref(),
-        period.map(|p| p.1),
-    )?
-    .ok_or_else(|| anyhow!("no cut-off: give --cutoff YYYY-MM-DD or --period START..END"))?
-    .value;
-    let window_start = settings::date(
-        &books,
-        "window_start",
-        args.window_start.as_deref(),
-        Some(month_start(cutoff)),
-    )?
-    .map_or(month_start(cutoff), |w| w.value);
-    let mut listed = Settings::default();
-    let tol = tolerance(&books, &args.tolerance, &mut listed)?;
+    let given = Given {
+        cutoff: args.cutoff.as_deref(),
+        cutoff_default: period.map(|p| p.1),
+        window_start: args.window_start.as_deref(),
+        fixing_fallback: args.fixing_fallback.as_deref(),
+        decimal_comma: args.books.decimal_comma,
+        ..Given::default()
+    }
+    .with_tolerance(&args.tolerance);
+    let settings = Settings::resolve(&books, &given)?
+        .ok_or_else(|| anyhow!("no cut-off: give --cutoff YYYY-MM-DD or --period START..END"))?;
+    let (cutoff, window_start) = (settings.cutoff, settings.window_start);
+    let (tol, fallback) = (settings.tolerance, settings.fixing_fallback);
     let t = &entry.terms;
-    let fallback = fixing_fallback(args.fixing_fallback.as_deref(), &mut listed)?;
     let floating_schedule = book.floating_rates.get(&entry.rate_ref);
     let floating = floating_schedule.map(|s| FloatingRates {
         schedule: s,

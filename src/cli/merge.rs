@@ -10,9 +10,9 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{anyhow, bail, Context, Result};
 
-use super::exit;
 use super::inputs::{check_output_is_not_an_input, fingerprint};
-use super::run::{print_summary, run_time};
+use super::summary::print_summary;
+use super::{exit, run_time};
 use crate::batch::merge::merge;
 use crate::book::{read_book, ReadOptions};
 use crate::problem::Severity;
