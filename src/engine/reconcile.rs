@@ -83,8 +83,8 @@ impl Status {
 
     /// Whether a row of this status is outside tolerance and needs
     /// explaining: every status but `agrees` and `within tolerance`. The
-    /// workbook's chart, `--fail-on-variance` and the cause search all ask
-    /// this one question.
+    /// workbook's variance chart and `--fail-on-variance` both ask this one
+    /// question.
     ///
     /// ```
     /// use ledgerate::engine::reconcile::Status;
