@@ -509,3 +509,35 @@ fn replace_in_zip(bytes: &[u8], from: &str, to: &str) -> Vec<u8> {
     }
     out.finish().unwrap().into_inner()
 }
+
+/// The words of the statuses in the workbook (semantics section 9), each
+/// with its own fill, and which of them the chart counts as outside tolerance.
+#[test]
+fn each_status_is_written_as_its_word() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    r.reconciliation = Status::ALL
+        .iter()
+        .map(|s| recon(s.name(), Some("1")))
+        .collect();
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    let words: Vec<String> = rows(&target, "Reconciliation")[1..]
+        .iter()
+        .map(|row| row[10].to_string())
+        .collect();
+    assert_eq!(
+        words,
+        [
+            "agrees",
+            "within tolerance",
+            "over-posted",
+            "under-posted",
+            "not posted",
+            "unexpected posting"
+        ]
+    );
+    let plan = super::workbook::chart_plan_for_tests(&r.reconciliation, &Limits::default());
+    // Rows 4 to 7 (over-posted .. unexpected posting) are charted.
+    assert_eq!(plan.unwrap().1, "Reconciliation!$J$4:$J$7");
+}
