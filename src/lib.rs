@@ -19,7 +19,6 @@ pub mod cli;
 pub mod conventions;
 pub mod engine;
 pub mod explain;
-pub mod merge;
 pub mod panics;
 pub mod pipeline;
 pub mod problem;

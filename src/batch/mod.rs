@@ -7,8 +7,10 @@
 //! amounts, so the output is the same on one thread or many.
 
 pub mod journal;
+pub mod merge;
+pub mod totals;
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::HashMap;
 
 use chrono::NaiveDate;
 use rayon::prelude::*;
@@ -23,13 +25,14 @@ use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle};
+use totals::{StatusCounts, Totals};
 
 /// What the batch needs besides the books.
 #[derive(Debug, Clone)]
 pub struct BatchSettings {
-    /// C.
+    /// The cut-off date: the last day computed.
     pub cutoff: NaiveDate,
-    /// F.
+    /// The first day of the window (the window ends on the cut-off date).
     pub window_start: NaiveDate,
     /// Keep the day-by-day lines.
     pub daily: bool,
@@ -108,6 +111,15 @@ struct Outcome {
     notes: Vec<Problem>,
 }
 
+/// One account to accrue: its book's index, the book, the book's statement
+/// rows by account, and the account.
+type Work<'b> = (
+    usize,
+    &'b Book,
+    &'b HashMap<&'b str, Vec<&'b StatementRow>>,
+    &'b AccountEntry,
+);
+
 /// Accrues every account of `books` (in parallel on rayon's pool) and sums
 /// the results. `tick` is called once per account, from any thread, for a
 /// progress display.
@@ -127,117 +139,132 @@ pub fn run_books(
     // Each account's statement rows, found once per book rather than per account.
     let rows: Vec<HashMap<&str, Vec<&StatementRow>>> =
         books.iter().map(statements_by_account).collect();
-    type Work<'b> = (
-        usize,
-        &'b Book,
-        &'b HashMap<&'b str, Vec<&'b StatementRow>>,
-        &'b AccountEntry,
-    );
-    let work: Vec<Work<'_>> = books
-        .iter()
-        .zip(&rows)
-        .enumerate()
-        .flat_map(|(bi, (b, rows))| b.accounts.iter().map(move |a| (bi, b, rows, a)))
-        .filter(|(_, _, _, a)| in_shard(&a.terms.id, settings.shard))
-        .collect();
-    let mut result = BatchResult {
-        accounts_read: work.len()
-            + books
-                .iter()
-                .map(|b| left_out_accounts(b, settings.shard))
-                .sum::<usize>(),
-        ..BatchResult::default()
-    };
-    // Every account gives one line: room for them all at once, not by doubling.
-    result.accruals.reserve_exact(work.len());
-    let mut journal = Journal::new();
-    let mut totals: BTreeMap<Word, CurrencyTotal> = BTreeMap::new();
-    let mut daily = Vec::new();
-    let mut counts: BTreeMap<Status, usize> = BTreeMap::new();
+    let work = work_in_book_order(books, &rows, settings.shard);
+    let accounts_read = work.len()
+        + books
+            .iter()
+            .map(|b| left_out_accounts(b, settings.shard))
+            .sum::<usize>();
+    let mut sums = Sums::new(settings, accounts_read, work.len());
     // Accounts go through in parts of book order: each part accrued in
     // parallel, then added to the rows and sums, so that only one part's
     // outcomes (day rows, postings, notes) are held at a time.
     for part in work.chunks(PART) {
-        let outcomes: Vec<Result<Outcome, Box<Problem>>> = part
-            .par_iter()
-            .with_min_len(64)
-            .map(|&(_, book, rows, entry)| {
-                let r = accrue_one(
-                    book,
-                    entry,
-                    rows.get(entry.terms.id.as_str())
-                        .map_or(&[][..], Vec::as_slice),
-                    &options,
-                );
-                tick();
-                r
-            })
-            .collect();
+        let outcomes = accrue_part(part, &options, tick);
         for (&(bi, _, _, entry), outcome) in part.iter().zip(outcomes) {
             match outcome {
-                Ok(o) => {
-                    let t = totals
-                        .entry(o.line.currency.clone())
-                        .or_insert_with(|| empty_total(&o.line));
-                    t.accounts += 1;
-                    t.balance_at_cutoff += o.line.balance_at_cutoff;
-                    t.accrued_at_cutoff += o.line.accrued_at_cutoff;
-                    t.posted_in_window += o.line.posted_in_window;
-                    t.interest_for_window += o.line.interest_for_window;
-                    let entity = settings.entities.get(bi).map_or("default", String::as_str);
-                    journal.add_account(
-                        &AccountEntries {
-                            entity,
-                            currency: &o.line.currency,
-                            minor_units: o.line.minor_units,
-                            side: entry.terms.side,
-                            gl: &entry.gl,
-                            interest_for_window: o.line.interest_for_window,
-                            accrued_at_cutoff: o.line.accrued_at_cutoff,
-                            postings: o.postings,
-                        },
-                        settings.journal_style,
-                        settings.window_start,
-                        settings.cutoff,
-                    );
-                    daily.extend(o.daily);
-                    for (status, line) in o.reconciliation {
-                        *counts.entry(status).or_insert(0usize) += 1;
-                        result.reconciliation.push(line);
-                    }
-                    result.problems.extend(o.notes);
-                    result.accruals.push(o.line);
-                    result.accounts_computed += 1;
-                }
-                Err(p) => result.problems.push(*p),
+                Ok(o) => sums.add(bi, entry, o),
+                Err(p) => sums.result.problems.push(*p),
             }
         }
     }
-    result.totals = totals.into_values().collect();
-    result.status_counts = Status::ALL
-        .iter()
-        .filter_map(|st| {
-            counts.get(st).map(|&rows| StatusCount {
-                status: st.name().to_string(),
-                rows,
-            })
-        })
-        .collect();
-    result.journal = journal.lines();
-    result.daily = settings.daily.then_some(daily);
-    result
+    sums.finish()
 }
 
-/// A currency's totals before its first account.
-fn empty_total(line: &AccrualLine) -> CurrencyTotal {
-    CurrencyTotal {
-        currency: line.currency.to_string(),
-        minor_units: line.minor_units,
-        accounts: 0,
-        balance_at_cutoff: Decimal::ZERO,
-        accrued_at_cutoff: Decimal::ZERO,
-        posted_in_window: Decimal::ZERO,
-        interest_for_window: Decimal::ZERO,
+/// Every account of the books (of the shard, if any), in book order.
+fn work_in_book_order<'b>(
+    books: &'b [Book],
+    rows: &'b [HashMap<&'b str, Vec<&'b StatementRow>>],
+    shard: Option<(u32, u32)>,
+) -> Vec<Work<'b>> {
+    books
+        .iter()
+        .zip(rows)
+        .enumerate()
+        .flat_map(|(bi, (b, rows))| b.accounts.iter().map(move |a| (bi, b, rows, a)))
+        .filter(|(_, _, _, a)| in_shard(&a.terms.id, shard))
+        .collect()
+}
+
+/// One part's accounts accrued in parallel; outcomes in the part's order.
+fn accrue_part(
+    part: &[Work<'_>],
+    options: &Options,
+    tick: &(dyn Fn() + Sync),
+) -> Vec<Result<Outcome, Box<Problem>>> {
+    part.par_iter()
+        .with_min_len(64)
+        .map(|&(_, book, rows, entry)| {
+            let r = accrue_one(
+                book,
+                entry,
+                rows.get(entry.terms.id.as_str())
+                    .map_or(&[][..], Vec::as_slice),
+                options,
+            );
+            tick();
+            r
+        })
+        .collect()
+}
+
+/// The batch's rows and sums so far, added to one account at a time in book order.
+struct Sums<'s> {
+    settings: &'s BatchSettings,
+    result: BatchResult,
+    journal: Journal,
+    totals: Totals,
+    counts: StatusCounts,
+    daily: Vec<DailyLine>,
+}
+
+impl<'s> Sums<'s> {
+    fn new(settings: &'s BatchSettings, accounts_read: usize, accounts: usize) -> Sums<'s> {
+        let mut result = BatchResult {
+            accounts_read,
+            ..BatchResult::default()
+        };
+        // Every account gives one line: room for them all at once, not by doubling.
+        result.accruals.reserve_exact(accounts);
+        Sums {
+            settings,
+            result,
+            journal: Journal::new(),
+            totals: Totals::default(),
+            counts: StatusCounts::default(),
+            daily: Vec::new(),
+        }
+    }
+
+    /// Adds one computed account of book `bi`: its totals, journal lines,
+    /// day rows, reconciliation rows, notes and accrual line.
+    fn add(&mut self, bi: usize, entry: &AccountEntry, o: Outcome) {
+        let settings = self.settings;
+        self.totals.add(&o.line);
+        let entity = settings.entities.get(bi).map_or("default", String::as_str);
+        self.journal.add_account(
+            &AccountEntries {
+                entity,
+                currency: &o.line.currency,
+                minor_units: o.line.minor_units,
+                side: entry.terms.side,
+                gl: &entry.gl,
+                interest_for_window: o.line.interest_for_window,
+                accrued_at_cutoff: o.line.accrued_at_cutoff,
+                postings: o.postings,
+            },
+            settings.journal_style,
+            settings.window_start,
+            settings.cutoff,
+        );
+        self.daily.extend(o.daily);
+        for (_, line) in o.reconciliation {
+            self.counts.add(line.status);
+            self.result.reconciliation.push(line);
+        }
+        self.result.problems.extend(o.notes);
+        self.result.accruals.push(o.line);
+        self.result.accounts_computed += 1;
+    }
+
+    fn finish(self) -> BatchResult {
+        BatchResult {
+            totals: self.totals.rows(),
+            status_counts: self.counts.rows(),
+            journal: self.journal.lines(),
+            daily: self.settings.daily.then_some(self.daily),
+            ..self.result
+        }
     }
 }
 
@@ -364,7 +391,7 @@ fn reconciliation_line(
         posted: row.posted,
         variance: row.variance,
         variance_bp: row.variance_bp.map(|bp| bp.round_dp(4)),
-        status: row.status.name().into(),
+        status: row.status,
         likely_cause: cause,
     }
 }

@@ -135,20 +135,32 @@ fn results_do_not_depend_on_the_thread_count() {
     assert_eq!(ids, sorted);
 }
 
-/// The window's interest of every account adds up to the currency total.
+/// Each currency's totals are the sums of its accounts' rounded amounts, and
+/// adding the accrual lines one by one into [`Totals`] gives the batch's.
 #[test]
 fn totals_are_the_sum_of_the_accounts() {
     let r = run_books(&[book(30)], &settings(), &|| {});
+    assert_eq!(r.totals.len(), 3);
     for t in &r.totals {
-        let sum: Decimal = r
+        let lines: Vec<&AccrualLine> = r
             .accruals
             .iter()
             .filter(|a| a.currency == t.currency)
-            .map(|a| a.interest_for_window)
-            .sum();
-        assert_eq!(sum, t.interest_for_window);
+            .collect();
+        let sum = |f: fn(&AccrualLine) -> Decimal| lines.iter().map(|a| f(a)).sum::<Decimal>();
         assert_eq!(t.accounts, 10);
+        assert_eq!(t.accounts, lines.len());
+        assert_eq!(t.balance_at_cutoff, sum(|a| a.balance_at_cutoff));
+        assert_eq!(t.accrued_at_cutoff, sum(|a| a.accrued_at_cutoff));
+        assert_eq!(t.posted_in_window, sum(|a| a.posted_in_window));
+        assert_eq!(t.interest_for_window, sum(|a| a.interest_for_window));
+        assert!(lines.iter().all(|a| a.minor_units == t.minor_units));
     }
+    let mut by_line = Totals::default();
+    for line in r.accruals.iter().rev() {
+        by_line.add(line);
+    }
+    assert_eq!(by_line.rows(), r.totals);
 }
 
 #[test]
@@ -197,7 +209,7 @@ fn statements_are_reconciled_with_causes() {
     let line = &r.reconciliation[0];
     assert_eq!(line.posted, n("3.40"));
     assert_eq!(line.expected, n("3.44"));
-    assert_eq!(line.status, "under-posted");
+    assert_eq!(line.status, Status::UnderPosted);
     assert!(!line.likely_cause.is_empty());
     assert!(r
         .problems
@@ -206,7 +218,139 @@ fn statements_are_reconciled_with_causes() {
     // Only October on the statement: November is not posted.
     b.statements = vec![row("2026-10-01", "2026-10-31", "3.66")];
     let r = run_books(&[b], &settings(), &|| {});
-    let statuses: Vec<&str> = r.reconciliation.iter().map(|l| l.status.as_ref()).collect();
-    assert_eq!(statuses, ["agrees", "not posted"]);
+    let statuses: Vec<Status> = r.reconciliation.iter().map(|l| l.status).collect();
+    assert_eq!(statuses, [Status::Agrees, Status::NotPosted]);
     assert_eq!(r.status_counts.len(), 2);
+}
+
+/// The book of [`book`] with a statement for every third account, posting
+/// far too little or far too much for November, so that rows of several
+/// statuses appear.
+fn book_with_statements(count: usize) -> Book {
+    let mut b = book(count);
+    b.statements = b
+        .accounts
+        .iter()
+        .step_by(3)
+        .zip(["1.00", "99999999.00"].iter().cycle())
+        .map(|(a, posted)| StatementRow {
+            account: a.terms.id.clone(),
+            period_start: d("2026-11-01"),
+            period_end: d("2026-11-30"),
+            posted: n(posted),
+            reference: None,
+            position: Position {
+                book: "test.xlsx".into(),
+                sheet: "Statements".into(),
+                cell: "A2".into(),
+            },
+        })
+        .collect();
+    b
+}
+
+/// What a shard's workbook gives back of a batch.
+fn read_back(r: BatchResult) -> crate::report::readback::RunRows {
+    use crate::report::model::{InputFile, RunFacts, Setting, SettingSource};
+    crate::report::readback::RunRows {
+        facts: RunFacts {
+            program: "ledgerate test".into(),
+            command_line: "ledgerate run test.xlsx".into(),
+            inputs: vec![InputFile {
+                path: "test.xlsx".into(),
+                size: 1,
+                sha256: "00".into(),
+            }],
+            settings: vec![Setting {
+                name: "cutoff".into(),
+                value: "2026-11-30".into(),
+                source: SettingSource::Option,
+            }],
+            run_time: d("2026-12-01").and_hms_opt(9, 0, 0).unwrap(),
+            cutoff: d("2026-11-30"),
+            window_start: d("2026-11-01"),
+            accounts_read: r.accounts_read,
+            accounts_computed: r.accounts_computed,
+            accounts_failed: r.accounts_read - r.accounts_computed,
+        },
+        accruals: r.accruals,
+        reconciliation: r.reconciliation,
+        journal: r.journal,
+        daily: r.daily,
+        problems: r.problems,
+    }
+}
+
+/// Shards of a run, merged in any order, give the single run's rows, totals,
+/// counts by status and journal.
+#[test]
+fn shards_merged_equal_the_single_run() {
+    let books = [book_with_statements(120)];
+    let single = run_books(&books, &settings(), &|| {});
+    assert!(single.status_counts.len() > 1, "{:?}", single.status_counts);
+    let mut parts: Vec<_> = (1..=3)
+        .map(|k| {
+            let s = BatchSettings {
+                shard: Some((k, 3)),
+                ..settings()
+            };
+            run_books(&books, &s, &|| {})
+        })
+        .collect();
+    for p in &parts {
+        assert!(p.accounts_computed > 0 && p.accounts_computed < single.accounts_computed);
+    }
+    parts.reverse();
+    let order: HashMap<String, usize> = books[0]
+        .accounts
+        .iter()
+        .enumerate()
+        .map(|(i, a)| (a.terms.id.clone(), i))
+        .collect();
+    let time = d("2026-12-02").and_hms_opt(8, 0, 0).unwrap();
+    let merged = merge::merge(
+        parts.into_iter().map(read_back).collect(),
+        &order,
+        time,
+        "ledgerate merge".into(),
+    )
+    .unwrap();
+    assert_eq!(merged.accruals, single.accruals);
+    assert_eq!(merged.totals, single.totals);
+    assert_eq!(merged.reconciliation, single.reconciliation);
+    assert_eq!(merged.status_counts, single.status_counts);
+    assert_eq!(merged.journal, single.journal);
+    assert_eq!(merged.facts.accounts_read, single.accounts_read);
+    assert_eq!(merged.facts.accounts_computed, single.accounts_computed);
+    assert_eq!(merged.facts.run_time, time);
+}
+
+#[test]
+fn shards_of_other_books_or_settings_are_not_merged() {
+    let books = [book(6)];
+    let part = || read_back(run_books(&books, &settings(), &|| {}));
+    let order = HashMap::new();
+    let time = d("2026-12-02").and_hms_opt(8, 0, 0).unwrap();
+    let merged = |parts| merge::merge(parts, &order, time, String::new()).map(|_| ());
+    assert_eq!(merged(vec![]), Err(merge::MergeError::NoShards));
+    let mut other_book = part();
+    other_book.facts.inputs[0].sha256 = "ff".into();
+    assert_eq!(
+        merged(vec![part(), other_book]),
+        Err(merge::MergeError::DifferentBooks)
+    );
+    let mut other_cutoff = part();
+    other_cutoff.facts.settings[0].value = "2026-11-29".into();
+    assert_eq!(
+        merged(vec![part(), other_cutoff]),
+        Err(merge::MergeError::DifferentSettings)
+    );
+    // Only the shard setting may differ.
+    let mut shard = part();
+    shard.facts.settings.push(crate::report::model::Setting {
+        name: "shard".into(),
+        value: "2/2".into(),
+        source: crate::report::model::SettingSource::Option,
+    });
+    assert_eq!(merged(vec![part(), shard]), Ok(()));
 }

@@ -1,18 +1,17 @@
 //! `ledgerate check BOOK...`: reads and validates the books and prints every
 //! problem, writing nothing. With a cut-off (option or Settings sheet) it
-//! also accrues every account, so problems only the engine meets (a day
-//! without a rate, a statement after the cut-off) are listed too.
+//! also accrues every account with the settings a run would use, so
+//! problems only the engine meets (a day without a rate, a statement after
+//! the cut-off) are listed too.
 
 use std::io::Write;
 
 use anyhow::Result;
 
 use super::inputs::check_books_exist;
-use super::settings::{self, month_start};
+use super::settings::{Given, Settings};
 use super::{exit, read_books, BookArgs};
-use crate::batch::journal::JournalStyle;
-use crate::batch::{run_books, BatchSettings};
-use crate::engine::reconcile::Tolerance;
+use crate::batch::run_books;
 use crate::problem::{Problem, Severity};
 
 /// Arguments of `check`.
@@ -51,23 +50,17 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             print(p, out)?;
         }
     }
-    if let Some(cutoff) = settings::date(&books, "cutoff", args.cutoff.as_deref(), None)? {
-        let batch = BatchSettings {
-            cutoff: cutoff.value,
-            window_start: month_start(cutoff.value),
-            daily: false,
-            journal_style: JournalStyle::Incremental,
-            entities: Vec::new(),
-            tolerance: Tolerance::default(),
-            fast_path: true,
-            shard: None,
-            fixing_fallback: crate::engine::floating::FixingFallback::None,
-        };
-        let result = run_books(&books, &batch, &|| {});
+    let given = Given {
+        cutoff: args.cutoff.as_deref(),
+        decimal_comma: args.books.decimal_comma,
+        ..Given::default()
+    };
+    if let Some(settings) = Settings::resolve(&books, &given)? {
+        let result = run_books(&books, &settings.batch(), &|| {});
         writeln!(
             out,
             "accrued to {}: {} accounts computed, {} problems",
-            cutoff.value,
+            settings.cutoff,
             result.accounts_computed,
             result.problems.len()
         )?;

@@ -12,8 +12,7 @@ use chrono::NaiveDate;
 
 use super::daycount::parse_iso_date;
 use super::inputs::check_books_exist;
-use super::run::{fixing_fallback, tolerance, ToleranceArgs};
-use super::settings::{self, month_start, Settings};
+use super::settings::{Given, Settings, ToleranceArgs};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::book::{AccountEntry, Book};
 use crate::explain::{explain, print};
@@ -30,10 +29,10 @@ pub struct Args {
     /// The days to show, START..END (default: the statement periods in the window, else the window).
     #[arg(long, value_name = "START..END")]
     period: Option<String>,
-    /// C, the cut-off (else the Settings sheet's cutoff, else the period's end).
+    /// The cut-off date (else the Settings sheet's cutoff, else the period's end).
     #[arg(long, value_name = "DATE")]
     cutoff: Option<String>,
-    /// F, the first day of the window (else the Settings sheet's window_start, else the cut-off's month).
+    /// The first day of the window (else the Settings sheet's window_start, else the cut-off's month).
     #[arg(long, value_name = "DATE")]
     window_start: Option<String>,
     #[command(flatten)]
@@ -94,26 +93,26 @@ fn find_account<'b>(books: &'b [Book], id: &str) -> Result<(&'b Book, &'b Accoun
         })
 }
 
-/// The window, cut-off, tolerances and fixing fallback in force.
+/// The window, cut-off, tolerances and fixing fallback in force, resolved
+/// as for a run (command line, else the books' Settings sheets, else the
+/// default; the cut-off defaults to the end of `--period`).
 fn options(args: &Args, books: &[Book], period: Option<(NaiveDate, NaiveDate)>) -> Result<Options> {
-    let cutoff = settings::date(books, "cutoff", args.cutoff.as_deref(), period.map(|p| p.1))?
-        .ok_or_else(|| anyhow!("no cut-off: give --cutoff YYYY-MM-DD or --period START..END"))?
-        .value;
-    let window_start = settings::date(
-        books,
-        "window_start",
-        args.window_start.as_deref(),
-        Some(month_start(cutoff)),
-    )?
-    .map_or(month_start(cutoff), |w| w.value);
-    let mut listed = Settings::default();
-    let tolerance = tolerance(books, &args.tolerance, &mut listed)?;
-    let fixing_fallback = fixing_fallback(args.fixing_fallback.as_deref(), &mut listed)?;
+    let given = Given {
+        cutoff: args.cutoff.as_deref(),
+        cutoff_default: period.map(|p| p.1),
+        window_start: args.window_start.as_deref(),
+        fixing_fallback: args.fixing_fallback.as_deref(),
+        decimal_comma: args.books.decimal_comma,
+        ..Given::default()
+    }
+    .with_tolerance(&args.tolerance);
+    let settings = Settings::resolve(books, &given)?
+        .ok_or_else(|| anyhow!("no cut-off: give --cutoff YYYY-MM-DD or --period START..END"))?;
     Ok(Options {
-        window_start,
-        cutoff,
-        tolerance,
-        fixing_fallback,
+        window_start: settings.window_start,
+        cutoff: settings.cutoff,
+        tolerance: settings.tolerance,
+        fixing_fallback: settings.fixing_fallback,
         keep_days: true,
         fast_path: true,
     })

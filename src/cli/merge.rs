@@ -10,12 +10,14 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{anyhow, bail, Context, Result};
 
-use super::exit;
 use super::inputs::{check_output_is_not_an_input, fingerprint};
-use super::run::{print_summary, run_time};
+use super::summary::print_summary;
+use super::{exit, run_time};
+use crate::batch::merge::merge;
 use crate::book::{read_book, ReadOptions};
-use crate::merge::{merge, read_workbook};
 use crate::problem::Severity;
+use crate::report::model::RunFacts;
+use crate::report::readback::{read_workbook, RunRows};
 
 /// Arguments of `merge`.
 #[derive(Debug, clap::Args)]
@@ -34,21 +36,10 @@ pub struct Args {
 /// Runs the command.
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_output_is_not_an_input(&args.out, &args.shards)?;
-    let mut parts = Vec::new();
-    for s in &args.shards {
-        if !s.exists() {
-            bail!("the shard workbook {} does not exist", s.display());
-        }
-        parts.push(read_workbook(s).map_err(|e| anyhow!("{e}"))?);
-    }
+    let parts = read_shards(&args.shards)?;
     let first = parts
         .first()
         .ok_or_else(|| anyhow!("no shard workbooks given"))?;
-    let decimal_comma = first
-        .facts
-        .settings
-        .iter()
-        .any(|s| s.name == "decimal_comma" && s.value == "true");
     let books: Vec<PathBuf> = first
         .facts
         .inputs
@@ -56,29 +47,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         .map(|i| PathBuf::from(&i.path))
         .collect();
     check_output_is_not_an_input(&args.out, &books)?;
-    let mut order: HashMap<String, usize> = HashMap::new();
-    for input in &first.facts.inputs {
-        let path = Path::new(&input.path);
-        let now = fingerprint(path).with_context(|| {
-            format!(
-                "merge re-reads the input books for the order of the accounts: {} is not there",
-                input.path
-            )
-        })?;
-        if now.sha256 != input.sha256 {
-            bail!(
-                "the book {} changed since the shards read it (SHA-256 {} on the Run sheets, {} now): run the shards again",
-                input.path,
-                input.sha256,
-                now.sha256
-            );
-        }
-        let book = read_book(path, &ReadOptions { decimal_comma });
-        for a in &book.accounts {
-            let next = order.len();
-            order.entry(a.terms.id.clone()).or_insert(next);
-        }
-    }
+    let order = book_order(&first.facts)?;
     let shards: Vec<String> = args
         .shards
         .iter()
@@ -105,4 +74,50 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             exit::OK
         },
     )
+}
+
+/// Every shard workbook read back, in the order given.
+fn read_shards(shards: &[PathBuf]) -> Result<Vec<RunRows>> {
+    shards
+        .iter()
+        .map(|s| {
+            if !s.exists() {
+                bail!("the shard workbook {} does not exist", s.display());
+            }
+            read_workbook(s).map_err(|e| anyhow!("{e}"))
+        })
+        .collect()
+}
+
+/// Each account's place across the input books the shards read, once each
+/// book is found unchanged (same SHA-256 as on the shards' Run sheets).
+fn book_order(facts: &RunFacts) -> Result<HashMap<String, usize>> {
+    let decimal_comma = facts
+        .settings
+        .iter()
+        .any(|s| s.name == "decimal_comma" && s.value == "true");
+    let mut order: HashMap<String, usize> = HashMap::new();
+    for input in &facts.inputs {
+        let path = Path::new(&input.path);
+        let now = fingerprint(path).with_context(|| {
+            format!(
+                "merge re-reads the input books for the order of the accounts: {} is not there",
+                input.path
+            )
+        })?;
+        if now.sha256 != input.sha256 {
+            bail!(
+                "the book {} changed since the shards read it (SHA-256 {} on the Run sheets, {} now): run the shards again",
+                input.path,
+                input.sha256,
+                now.sha256
+            );
+        }
+        let book = read_book(path, &ReadOptions { decimal_comma });
+        for a in &book.accounts {
+            let next = order.len();
+            order.entry(a.terms.id.clone()).or_insert(next);
+        }
+    }
+    Ok(order)
 }

@@ -17,6 +17,7 @@ mod merge;
 mod run;
 mod sample;
 mod settings;
+mod summary;
 mod template;
 
 /// Exit statuses, declared in one place.
@@ -105,6 +106,22 @@ fn read_books(args: &BookArgs) -> anyhow::Result<Vec<crate::book::Book>> {
         .collect();
     crate::book::check_unique_ids(&mut books);
     Ok(books)
+}
+
+/// The run time written in a workbook: `--fixed-time` (a timestamp, or a
+/// date at midnight), else the clock to the whole second.
+fn run_time(fixed: Option<&str>) -> anyhow::Result<chrono::NaiveDateTime> {
+    use chrono::{NaiveDateTime, Timelike};
+    match fixed {
+        Some(t) => NaiveDateTime::parse_from_str(t, "%Y-%m-%dT%H:%M:%S")
+            .or_else(|_| NaiveDateTime::parse_from_str(&format!("{t}T00:00:00"), "%Y-%m-%dT%H:%M:%S"))
+            .map_err(|_| anyhow::anyhow!("--fixed-time '{t}' is not a timestamp: write it as YYYY-MM-DDTHH:MM:SS, for example 2026-12-01T09:00:00")),
+        // Whole seconds: the workbook has no finer time.
+        None => {
+            let now = chrono::Local::now().naive_local();
+            Ok(now.with_nanosecond(0).unwrap_or(now))
+        }
+    }
 }
 
 /// An error of the command line layer: what went wrong, in words for the user.

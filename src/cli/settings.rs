@@ -1,33 +1,209 @@
-//! The settings in force for a run: a command-line option, else a book's
-//! Settings sheet, else the default, each recorded with where it came from.
+//! The settings in force for a command, resolved once: a command-line
+//! option, else a book's Settings sheet, else the default, each recorded
+//! with where it came from for the Run sheet.
+//!
+//! `run`, `check` and `explain` each hand what their command line gave
+//! ([`Given`]) to [`Settings::resolve`] and read the one [`Settings`] value
+//! it returns; the options they share ([`ToleranceArgs`]) are declared here
+//! too. This module never reads a file, the clock or the environment, and
+//! never applies a setting: the batch and the engine do.
 
-use anyhow::{bail, Result};
+use anyhow::{anyhow, bail, Result};
 use chrono::{Datelike, NaiveDate};
+use rust_decimal::Decimal;
 
 use super::daycount::parse_iso_date;
+use crate::batch::journal::JournalStyle;
+use crate::batch::BatchSettings;
 use crate::book::Book;
+use crate::engine::floating::FixingFallback;
+use crate::engine::reconcile::Tolerance;
 use crate::report::model::{Setting, SettingSource};
 
-/// One resolved setting value with its source.
-#[derive(Debug, Clone)]
-pub struct Resolved<T> {
-    /// The value.
-    pub value: T,
-    /// Where it came from.
-    pub source: SettingSource,
+/// Reconciliation tolerances, as `run` and `explain` take them.
+#[derive(Debug, Default, clap::Args)]
+pub struct ToleranceArgs {
+    /// Variance accepted, in units of each row's currency (default: one minor unit).
+    #[arg(long, value_name = "AMOUNT", allow_hyphen_values = true)]
+    pub tolerance_amount: Option<String>,
+    /// Variance accepted as an annual rate gap in basis points (default: 0).
+    #[arg(long, value_name = "BP", allow_hyphen_values = true)]
+    pub tolerance_bp: Option<String>,
 }
 
-/// Every setting of the run.
-#[derive(Debug, Clone, Default)]
+/// What a command's options give. `None` (or `false`) for an option not
+/// given, or one the command does not have.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Given<'a> {
+    /// `--cutoff`.
+    pub cutoff: Option<&'a str>,
+    /// The cut-off date when neither the option nor a Settings sheet gives
+    /// one (`explain`: the end of `--period`).
+    pub cutoff_default: Option<NaiveDate>,
+    /// `--window-start`.
+    pub window_start: Option<&'a str>,
+    /// `--entity`.
+    pub entity: Option<&'a str>,
+    /// `--journal-style`.
+    pub journal_style: Option<&'a str>,
+    /// `--tolerance-amount`.
+    pub tolerance_amount: Option<&'a str>,
+    /// `--tolerance-bp`.
+    pub tolerance_bp: Option<&'a str>,
+    /// `--fixing-fallback`.
+    pub fixing_fallback: Option<&'a str>,
+    /// `--shard`.
+    pub shard: Option<&'a str>,
+    /// `--daily`.
+    pub daily: bool,
+    /// `--decimal-comma`.
+    pub decimal_comma: bool,
+    /// `--fail-on-variance`.
+    pub fail_on_variance: bool,
+    /// `--no-fast-path`.
+    pub no_fast_path: bool,
+}
+
+impl<'a> Given<'a> {
+    /// The tolerance options of `args`.
+    pub fn with_tolerance(self, args: &'a ToleranceArgs) -> Given<'a> {
+        Given {
+            tolerance_amount: args.tolerance_amount.as_deref(),
+            tolerance_bp: args.tolerance_bp.as_deref(),
+            ..self
+        }
+    }
+}
+
+/// Every setting of a command, resolved.
+#[derive(Debug, Clone)]
 pub struct Settings {
-    /// What the Run sheet lists.
+    /// The cut-off date: the last day computed.
+    pub cutoff: NaiveDate,
+    /// The first day of the window (the window ends on the cut-off date).
+    pub window_start: NaiveDate,
+    /// How the journal books accruals.
+    pub journal_style: JournalStyle,
+    /// The entity booking each book's journal lines, by book index.
+    pub entities: Vec<String>,
+    /// Reconciliation tolerances.
+    pub tolerance: Tolerance,
+    /// What a floating account does about a missing fixing.
+    pub fixing_fallback: FixingFallback,
+    /// Only the accounts of shard K of N (`(K, N)`, K from 1).
+    pub shard: Option<(u32, u32)>,
+    /// Keep the day-by-day lines.
+    pub daily: bool,
+    /// Accrue unchanging runs of days in one step (the same figures).
+    pub fast_path: bool,
+    /// A statement row outside tolerance makes the exit status 3.
+    pub fail_on_variance: bool,
+    /// Every setting in force with where it came from, in the Run sheet's order.
     pub listed: Vec<Setting>,
 }
 
 impl Settings {
-    /// Records a setting for the Run sheet.
-    pub fn record<T: ToString>(&mut self, name: &str, r: &Resolved<T>) {
-        self.listed.push(Setting {
+    /// Resolves every setting from `given`, else the books' Settings sheets,
+    /// else the defaults; `None` when no cut-off date is given anywhere.
+    ///
+    /// # Errors
+    /// A value that does not parse, books that disagree on a setting, or a
+    /// window that starts after the cut-off.
+    pub fn resolve(books: &[Book], given: &Given<'_>) -> Result<Option<Settings>> {
+        let Some(cutoff) = date(books, "cutoff", given.cutoff, given.cutoff_default)? else {
+            return Ok(None);
+        };
+        let window = date(
+            books,
+            "window_start",
+            given.window_start,
+            Some(month_start(cutoff.value)),
+        )?
+        .ok_or_else(|| anyhow!("no window start"))?;
+        if window.value > cutoff.value {
+            bail!(
+                "the window starts on {} after the cut-off {}: the window must end on the cut-off",
+                window.value,
+                cutoff.value
+            );
+        }
+        let style = text(books, "journal_style", given.journal_style, "incremental")?;
+        let journal_style = JournalStyle::parse(&style.value).map_err(|e| anyhow!("{e}"))?;
+        let entities = entities(books, given.entity);
+
+        let mut listed = Listed::default();
+        listed.record("cutoff", &cutoff);
+        listed.record("window_start", &window);
+        for (b, e) in books.iter().zip(&entities) {
+            let name = if books.len() == 1 {
+                "entity".to_string()
+            } else {
+                format!("entity of {}", b.path.display())
+            };
+            listed.record(&name, e);
+        }
+        listed.record("journal_style", &style);
+        listed.record("daily", &switch(given.daily));
+        listed.record("decimal_comma", &switch(given.decimal_comma));
+        listed.record("statement_end", &statement_end(books));
+        listed.record("fail_on_variance", &switch(given.fail_on_variance));
+        let tolerance = tolerance(books, given, &mut listed)?;
+        let shard = given.shard.map(parse_shard).transpose()?;
+        if let Some((k, n)) = shard {
+            listed.record(
+                "shard",
+                &Resolved {
+                    value: format!("{k}/{n}"),
+                    source: SettingSource::Option,
+                },
+            );
+        }
+        let fixing_fallback = fixing_fallback(given.fixing_fallback, &mut listed)?;
+        Ok(Some(Settings {
+            cutoff: cutoff.value,
+            window_start: window.value,
+            journal_style,
+            entities: entities.into_iter().map(|e| e.value).collect(),
+            tolerance,
+            fixing_fallback,
+            shard,
+            daily: given.daily,
+            fast_path: !given.no_fast_path,
+            fail_on_variance: given.fail_on_variance,
+            listed: listed.0,
+        }))
+    }
+
+    /// What the batch needs of them.
+    pub fn batch(&self) -> BatchSettings {
+        BatchSettings {
+            cutoff: self.cutoff,
+            window_start: self.window_start,
+            daily: self.daily,
+            journal_style: self.journal_style,
+            entities: self.entities.clone(),
+            tolerance: self.tolerance,
+            fast_path: self.fast_path,
+            shard: self.shard,
+            fixing_fallback: self.fixing_fallback,
+        }
+    }
+}
+
+/// One resolved setting value with its source.
+#[derive(Debug, Clone, PartialEq, Eq)]
+struct Resolved<T> {
+    value: T,
+    source: SettingSource,
+}
+
+/// The settings listed so far, for the Run sheet.
+#[derive(Debug, Default)]
+struct Listed(Vec<Setting>);
+
+impl Listed {
+    fn record<T: ToString>(&mut self, name: &str, r: &Resolved<T>) {
+        self.0.push(Setting {
             name: name.to_string(),
             value: r.value.to_string(),
             source: r.source,
@@ -37,7 +213,7 @@ impl Settings {
 
 /// The one value the books' Settings sheets give for `name` (folded), with
 /// an error when two books disagree.
-pub fn from_books(books: &[Book], name: &str) -> Result<Option<String>> {
+fn from_books(books: &[Book], name: &str) -> Result<Option<String>> {
     let mut found: Option<(String, String)> = None;
     for b in books {
         for s in b.settings.iter().filter(|s| s.name == name) {
@@ -57,7 +233,7 @@ pub fn from_books(books: &[Book], name: &str) -> Result<Option<String>> {
 }
 
 /// A date setting: the option, else the books, else `default`.
-pub fn date(
+fn date(
     books: &[Book],
     name: &str,
     option: Option<&str>,
@@ -91,7 +267,7 @@ pub fn date(
 }
 
 /// A text setting: the option, else the books, else `default`.
-pub fn text(
+fn text(
     books: &[Book],
     name: &str,
     option: Option<&str>,
@@ -115,7 +291,150 @@ pub fn text(
     })
 }
 
+/// The entity of each book: `--entity` for all, else each book's own
+/// Settings sheet, else "default".
+fn entities(books: &[Book], option: Option<&str>) -> Vec<Resolved<String>> {
+    books
+        .iter()
+        .map(
+            |b| match (option, b.settings.iter().find(|s| s.name == "entity")) {
+                (Some(e), _) => Resolved {
+                    value: e.to_string(),
+                    source: SettingSource::Option,
+                },
+                (None, Some(s)) => Resolved {
+                    value: s.value.clone(),
+                    source: SettingSource::Book,
+                },
+                (None, None) => Resolved {
+                    value: "default".to_string(),
+                    source: SettingSource::Default,
+                },
+            },
+        )
+        .collect()
+}
+
+/// A yes/no option: on only from the command line.
+fn switch(on: bool) -> Resolved<bool> {
+    Resolved {
+        value: on,
+        source: if on {
+            SettingSource::Option
+        } else {
+            SettingSource::Default
+        },
+    }
+}
+
+/// How the books' Statements sheets write a period's end, as the reader
+/// applied it. Each book has its own setting, so books may differ; the Run
+/// sheet then names each book's.
+fn statement_end(books: &[Book]) -> Resolved<String> {
+    let of = |b: &Book| {
+        b.settings
+            .iter()
+            .find(|s| s.name == "statementend")
+            .map(|s| s.value.to_ascii_lowercase())
+    };
+    let given: Vec<Option<String>> = books.iter().map(of).collect();
+    let source = if given.iter().any(Option::is_some) {
+        SettingSource::Book
+    } else {
+        SettingSource::Default
+    };
+    let values: Vec<String> = given
+        .into_iter()
+        .map(|v| v.unwrap_or_else(|| "inclusive".to_string()))
+        .collect();
+    let value = match values.first() {
+        Some(first) if values.iter().all(|v| v == first) => first.clone(),
+        None => "inclusive".to_string(),
+        Some(_) => books
+            .iter()
+            .zip(&values)
+            .map(|(b, v)| format!("{}: {v}", b.path.display()))
+            .collect::<Vec<_>>()
+            .join("; "),
+    };
+    Resolved { value, source }
+}
+
+/// The tolerances in force, recorded for the Run sheet.
+fn tolerance(books: &[Book], given: &Given<'_>, listed: &mut Listed) -> Result<Tolerance> {
+    let parse = |what: &str, v: &str| -> Result<Decimal> {
+        let d: Decimal = v
+            .trim()
+            .parse()
+            .map_err(|_| anyhow!("{what} '{v}' is not a decimal number: write it like 0.05"))?;
+        if d.is_sign_negative() {
+            bail!("{what} '{v}' is negative: a tolerance is a size, write it without a sign");
+        }
+        Ok(d)
+    };
+    let amount = text(books, "tolerance_amount", given.tolerance_amount, "")?;
+    let bp = text(books, "tolerance_bp", given.tolerance_bp, "0")?;
+    let tol = Tolerance {
+        amount: if amount.value.is_empty() {
+            None
+        } else {
+            Some(parse("the tolerance amount", &amount.value)?)
+        },
+        bp: parse("the tolerance in basis points", &bp.value)?,
+    };
+    let shown = Resolved {
+        value: if amount.value.is_empty() {
+            "one minor unit of each row's currency".to_string()
+        } else {
+            amount.value.clone()
+        },
+        source: amount.source,
+    };
+    listed.record("tolerance_amount", &shown);
+    listed.record("tolerance_bp", &bp);
+    Ok(tol)
+}
+
+/// Parses `K/N` with 1 <= K <= N.
+fn parse_shard(s: &str) -> Result<(u32, u32)> {
+    let bad =
+        || anyhow!("--shard '{s}' is not K/N: write it like 2/8 (shard 2 of 8, counting from 1)");
+    let (k, n) = s.split_once('/').ok_or_else(bad)?;
+    let (k, n): (u32, u32) = (
+        k.trim().parse().map_err(|_| bad())?,
+        n.trim().parse().map_err(|_| bad())?,
+    );
+    if k == 0 || n == 0 || k > n {
+        return Err(bad());
+    }
+    Ok((k, n))
+}
+
+/// The `--fixing-fallback` in force (the command line only), recorded for
+/// the Run sheet.
+fn fixing_fallback(given: Option<&str>, listed: &mut Listed) -> Result<FixingFallback> {
+    let fallback = match given {
+        Some(v) => FixingFallback::parse(v).map_err(|e| anyhow!("--fixing-fallback: {e}"))?,
+        None => FixingFallback::None,
+    };
+    listed.record(
+        "fixing_fallback",
+        &Resolved {
+            value: fallback.name(),
+            source: if given.is_some() {
+                SettingSource::Option
+            } else {
+                SettingSource::Default
+            },
+        },
+    );
+    Ok(fallback)
+}
+
 /// The first day of `d`'s month.
-pub fn month_start(d: NaiveDate) -> NaiveDate {
+fn month_start(d: NaiveDate) -> NaiveDate {
     d.with_day(1).unwrap_or(d)
 }
+
+#[cfg(test)]
+mod tests;

@@ -81,8 +81,23 @@ impl Status {
         }
     }
 
-    /// Whether the row needs explaining.
-    pub fn is_exception(self) -> bool {
+    /// Whether a row of this status is outside tolerance and needs
+    /// explaining: every status but `agrees` and `within tolerance`. The
+    /// workbook's variance chart and `--fail-on-variance` both ask this one
+    /// question.
+    ///
+    /// ```
+    /// use ledgerate::engine::reconcile::Status;
+    /// let outside: Vec<&str> = Status::ALL
+    ///     .iter()
+    ///     .filter(|s| s.outside_tolerance())
+    ///     .map(|s| s.name())
+    ///     .collect();
+    /// assert_eq!(outside, ["over-posted", "under-posted", "not posted", "unexpected posting"]);
+    /// assert!(!Status::Agrees.outside_tolerance());
+    /// assert!(!Status::WithinTolerance.outside_tolerance());
+    /// ```
+    pub fn outside_tolerance(self) -> bool {
         !matches!(self, Status::Agrees | Status::WithinTolerance)
     }
 }

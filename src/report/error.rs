@@ -1,12 +1,14 @@
-//! What can stop a workbook being written.
+//! What can stop a workbook being written, or one of our workbooks being
+//! read back.
 //!
 //! Every error says where it happened (the target path, or the sheet and row
-//! being written) and how to get past it. Nothing here decides a figure.
+//! being written or read) and how to get past it. Nothing here decides a figure.
 
 use std::path::PathBuf;
 
-/// A workbook that could not be written. No partial file is left behind: the
-/// output only appears under its name once it is complete.
+/// A workbook that could not be written (no partial file is left behind: the
+/// output only appears under its name once it is complete), or could not be
+/// read back.
 #[derive(Debug, thiserror::Error)]
 pub enum ReportError {
     /// The folder the workbook should go into does not exist.
@@ -66,6 +68,28 @@ pub enum ReportError {
         path: PathBuf,
         /// What the writer said.
         message: String,
+    },
+    /// A workbook to read back cannot be opened as a workbook.
+    #[error("cannot open {path} as a workbook: {why}")]
+    Unreadable {
+        /// The workbook.
+        path: PathBuf,
+        /// What went wrong.
+        why: String,
+    },
+    /// A sheet or cell of a workbook read back is not what the writer writes.
+    #[error("{path} {sheet}!{cell}: found {found}; expected {expected}: merge only takes workbooks written by `ledgerate run --shard`")]
+    NotWritten {
+        /// The workbook.
+        path: PathBuf,
+        /// The sheet.
+        sheet: String,
+        /// The cell (A1), the row (`1:1`), or empty for the whole sheet.
+        cell: String,
+        /// What was there.
+        found: String,
+        /// What the writer writes there.
+        expected: String,
     },
     /// A fixed value of the writer itself is out of range (a defect of the program).
     #[error("internal error in the workbook writer: {0}; please report it")]

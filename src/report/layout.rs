@@ -6,6 +6,8 @@
 
 use rust_xlsxwriter::{Color, Format, FormatAlign, FormatBorder, Worksheet, XlsxError};
 
+use crate::engine::reconcile::Status;
+
 /// Rows a worksheet holds, header included (the spreadsheet format's limit).
 pub const SHEET_ROW_LIMIT: u32 = 1_048_576;
 
@@ -156,28 +158,15 @@ pub mod palette {
     pub const BAR_NEGATIVE: u32 = 0xD55E00;
 }
 
-/// Status words and their fills. Statuses not listed here are written plain.
-const STATUS_FILLS: &[(&str, u32)] = &[
-    ("agrees", palette::AGREES),
-    ("within tolerance", palette::WITHIN),
-    ("over-posted", palette::OVER),
-    ("under-posted", palette::UNDER),
-    ("not posted", palette::MISSING),
-    ("unexpected posting", palette::UNEXPECTED),
+/// Each status's fill. The word in the cell is [`Status::name`].
+const STATUS_FILLS: [(Status, u32); 6] = [
+    (Status::Agrees, palette::AGREES),
+    (Status::WithinTolerance, palette::WITHIN),
+    (Status::OverPosted, palette::OVER),
+    (Status::UnderPosted, palette::UNDER),
+    (Status::NotPosted, palette::MISSING),
+    (Status::UnexpectedPosting, palette::UNEXPECTED),
 ];
-
-/// Whether a status word means the row is outside tolerance: anything but
-/// `agrees` and `within tolerance` (case, spaces and dashes ignored).
-///
-/// ```
-/// use ledgerate::report::layout::outside_tolerance;
-/// assert!(outside_tolerance("under-posted"));
-/// assert!(!outside_tolerance("Within tolerance"));
-/// ```
-pub fn outside_tolerance(status: &str) -> bool {
-    let s = crate::conventions::names::fold(status);
-    s != "agrees" && s != "withintolerance"
-}
 
 /// The amount format for `decimals` places: thousands separated, a minus sign
 /// for negatives (`#,##0.00;-#,##0.00`). With `blank_zero`, zero shows as an
@@ -237,7 +226,7 @@ pub struct Styles {
     amounts: Vec<Format>,
     ledger: Vec<Format>,
     balance_years: Vec<Format>,
-    statuses: Vec<(String, Format)>,
+    statuses: Vec<(Status, Format)>,
     error_row: Format,
     warning_row: Format,
 }
@@ -304,12 +293,7 @@ impl Styles {
                 .collect(),
             statuses: STATUS_FILLS
                 .iter()
-                .map(|(s, c)| {
-                    (
-                        crate::conventions::names::fold(s),
-                        Format::new().set_background_color(Color::RGB(*c)),
-                    )
-                })
+                .map(|(s, c)| (*s, Format::new().set_background_color(Color::RGB(*c))))
                 .collect(),
             error_row: Format::new()
                 .set_align(FormatAlign::Top)
@@ -335,13 +319,12 @@ impl Styles {
         pick(&self.balance_years, minor_units, &self.text)
     }
 
-    /// The fill of a status word, if it has one.
-    pub fn status(&self, status: &str) -> Option<&Format> {
-        let key = crate::conventions::names::fold(status);
+    /// The fill of a status's cell.
+    pub fn status(&self, status: Status) -> &Format {
         self.statuses
             .iter()
-            .find(|(s, _)| *s == key)
-            .map(|(_, f)| f)
+            .find(|(s, _)| *s == status)
+            .map_or(&self.text, |(_, f)| f)
     }
 
     /// The fill of a Problems severity cell, if it has one.
@@ -387,33 +370,25 @@ mod tests {
     }
 
     #[test]
-    fn statuses_outside_tolerance_are_every_word_but_the_two_good_ones() {
-        for s in [
-            "over-posted",
-            "under-posted",
-            "not posted",
-            "unexpected posting",
-        ] {
-            assert!(outside_tolerance(s), "{s}");
-        }
-        for s in ["agrees", "within tolerance", "WITHIN-TOLERANCE"] {
-            assert!(!outside_tolerance(s), "{s}");
-        }
-    }
-
-    #[test]
-    fn every_status_word_has_its_own_fill() {
+    fn every_status_has_its_own_fill() {
         let styles = Styles::new();
-        let fills: Vec<&Format> = STATUS_FILLS
-            .iter()
-            .filter_map(|(s, _)| styles.status(s))
-            .collect();
-        assert_eq!(fills.len(), STATUS_FILLS.len());
-        let mut colours: Vec<u32> = STATUS_FILLS.iter().map(|(_, c)| *c).collect();
+        let mut colours: Vec<u32> = Vec::new();
+        for status in Status::ALL {
+            let (_, colour) = STATUS_FILLS
+                .iter()
+                .find(|(s, _)| *s == status)
+                .unwrap_or_else(|| panic!("no fill for {}", status.name()));
+            colours.push(*colour);
+            assert_eq!(
+                *styles.status(status),
+                Format::new().set_background_color(Color::RGB(*colour)),
+                "{}",
+                status.name()
+            );
+        }
         colours.sort_unstable();
         colours.dedup();
-        assert_eq!(colours.len(), STATUS_FILLS.len());
-        assert!(styles.status("something else").is_none());
+        assert_eq!(colours.len(), Status::ALL.len());
     }
 
     #[test]

@@ -1,5 +1,6 @@
-//! Writing the output workbook from a [`model::Report`], the blank input
-//! book of `ledgerate template`, and the sample books of `ledgerate sample`.
+//! Writing the output workbook from a [`model::Report`] (and reading it
+//! back), the blank input book of `ledgerate template`, and the sample books
+//! of `ledgerate sample`.
 //!
 //! The writer only lays out figures it is given: it computes nothing but
 //! layout and formats, reads no clock and no input book. It writes to a
@@ -14,6 +15,8 @@
 //! * [`template`] writes the blank input book ([`write_template`]).
 //! * [`book_writer`] writes input books row by row, as a workbook or a CSV
 //!   folder (the sample books of `ledgerate sample`).
+//! * [`readback`] reads a workbook the writer wrote back into its rows, by
+//!   the writer's own header labels (for `ledgerate merge`).
 //! * `output` (private) does the temporary file, flush and rename.
 
 pub mod book_writer;
@@ -22,6 +25,7 @@ mod error;
 pub mod layout;
 pub mod model;
 mod output;
+pub mod readback;
 pub mod template;
 pub mod workbook;
 

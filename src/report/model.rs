@@ -6,10 +6,11 @@ use std::borrow::Cow;
 use chrono::{NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
+use crate::engine::reconcile::Status;
 use crate::problem::Problem;
 
 /// A word of a row that is nearly always one of a few fixed names (a side, a
-/// day-count basis, a compounding, a status, a currency code): the fixed name
+/// day-count basis, a compounding, a currency code): the fixed name
 /// itself, shared by every row, or text read back from a workbook.
 pub type Word = Cow<'static, str>;
 
@@ -70,9 +71,9 @@ pub struct RunFacts {
     pub settings: Vec<Setting>,
     /// When the run happened (or the pinned `--fixed-time`).
     pub run_time: NaiveDateTime,
-    /// C.
+    /// The cut-off date: the last day computed.
     pub cutoff: NaiveDate,
-    /// F.
+    /// The first day of the window (the window ends on the cut-off date).
     pub window_start: NaiveDate,
     /// Accounts in the books.
     pub accounts_read: usize,
@@ -107,7 +108,7 @@ pub struct AccrualLine {
     pub posted_in_window: Decimal,
     /// Interest for window.
     pub interest_for_window: Decimal,
-    /// Effective annual rate as a decimal (0.0512 for 5.12%), blank when the account does not earn on C.
+    /// Effective annual rate as a decimal (0.0512 for 5.12%), blank when the account does not earn on the cut-off date.
     pub effective_annual_rate: Option<Decimal>,
 }
 
@@ -199,8 +200,8 @@ pub struct ReconciliationLine {
     pub variance: Decimal,
     /// The variance as an annual rate gap in basis points; blank when balance-years is zero.
     pub variance_bp: Option<Decimal>,
-    /// Status word.
-    pub status: Word,
+    /// The status; the writer writes its word ([`Status::name`]).
+    pub status: Status,
     /// The likely cause, in plain words (empty when agreed or within tolerance).
     pub likely_cause: String,
 }
@@ -208,8 +209,8 @@ pub struct ReconciliationLine {
 /// Counts of one status (Summary sheet).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct StatusCount {
-    /// Status word.
-    pub status: String,
+    /// The status; the writer writes its word.
+    pub status: Status,
     /// Rows with it.
     pub rows: usize,
 }

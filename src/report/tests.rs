@@ -4,12 +4,13 @@
 use std::str::FromStr;
 
 use calamine::{open_workbook, Data, Reader, Xlsx};
-use chrono::{NaiveDate, NaiveDateTime};
+use chrono::{Datelike, NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
 use super::layout::Limits;
 use super::model::*;
 use super::workbook::{write_report_with, DAILY_HEADER, JOURNAL_HEADER};
+use crate::engine::reconcile::Status;
 
 fn dec(s: &str) -> Decimal {
     Decimal::from_str(s).unwrap()
@@ -64,7 +65,10 @@ fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
         posted: dec("4.19"),
         variance: dec("-0.06"),
         variance_bp: bp.map(dec),
-        status: status.to_string().into(),
+        status: Status::ALL
+            .into_iter()
+            .find(|s| s.name() == status)
+            .unwrap(),
         likely_cause: String::new(),
     }
 }
@@ -226,15 +230,15 @@ fn the_workbook_with_a_chart_is_written_and_its_rows_read_back() {
     ];
     r.status_counts = vec![
         StatusCount {
-            status: "agrees".into(),
+            status: Status::Agrees,
             rows: 1,
         },
         StatusCount {
-            status: "under-posted".into(),
+            status: Status::UnderPosted,
             rows: 1,
         },
         StatusCount {
-            status: "over-posted".into(),
+            status: Status::OverPosted,
             rows: 1,
         },
     ];
@@ -324,4 +328,216 @@ fn figures_written_as_text_are_noted_once_in_problems_and_counted_in_the_summary
         value_of("Figures written as text"),
         Data::Float(outcome.text_figure_count as f64)
     );
+}
+
+fn accrual(account: &str, currency: &'static str, minor_units: u32, balance: &str) -> AccrualLine {
+    AccrualLine {
+        account: account.into(),
+        name: format!("account {account}"),
+        currency: currency.into(),
+        minor_units,
+        side: "liability".into(),
+        day_count: "ACT/365F".into(),
+        compounding: "simple".into(),
+        balance_at_cutoff: dec(balance),
+        accrued_at_cutoff: dec("3.1"),
+        posted_in_window: dec("-12"),
+        interest_for_window: dec("0.25"),
+        effective_annual_rate: Some(dec("0.0512")),
+    }
+}
+
+/// Every row the writer writes reads back as it was: continuation sheets,
+/// figures written as text, statuses, dates, problems and the Run sheet.
+#[test]
+fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("shard.xlsx");
+    let mut r = report();
+    r.facts.inputs = vec![InputFile {
+        path: "book.xlsx".into(),
+        size: 12_345,
+        sha256: "ab".repeat(32),
+    }];
+    r.facts.settings = vec![
+        Setting {
+            name: "cutoff".into(),
+            value: "2024-03-31".into(),
+            source: SettingSource::Option,
+        },
+        Setting {
+            name: "window_start".into(),
+            value: "2024-03-01".into(),
+            source: SettingSource::Default,
+        },
+        Setting {
+            name: "entity".into(),
+            value: "HM".into(),
+            source: SettingSource::Book,
+        },
+    ];
+    r.facts.accounts_read = 5;
+    r.facts.accounts_computed = 4;
+    r.facts.accounts_failed = 1;
+    let mut text_figure = accrual("A-BIG", "USD", 2, "1000000000000000.55");
+    text_figure.effective_annual_rate = None;
+    r.accruals = vec![
+        accrual("A-1", "USD", 2, "1000.00"),
+        accrual("A-2", "JPY", 0, "5000000"),
+        accrual("A-3", "KWD", 3, "-1250.125"),
+        text_figure,
+    ];
+    r.reconciliation = Status::ALL
+        .iter()
+        .map(|s| recon(s.name(), Some("-7.06")))
+        .collect();
+    r.journal = vec![JournalLine {
+        date: day(31),
+        entity: "HM".into(),
+        currency: "USD".into(),
+        minor_units: 2,
+        gl_account: "2100".into(),
+        debit: dec("0"),
+        credit: dec("4.25"),
+        memo: "interest accrued".into(),
+    }];
+    // Intermediates of at most 15 digits: longer ones are shown rounded.
+    let mut days = daily(5);
+    for l in &mut days {
+        l.day_fraction = dec("0.002777777777778");
+        l.interest = dec("0.138888888888889");
+        l.accrued = l.interest * Decimal::from(l.date.day0() + 1);
+    }
+    r.daily = Some(days);
+    r.problems = vec![crate::problem::Problem {
+        severity: crate::problem::Severity::Warning,
+        position: crate::problem::Position {
+            book: "book.xlsx".into(),
+            sheet: "Accounts".into(),
+            cell: "C7".into(),
+        },
+        account: None,
+        found: "'x'".into(),
+        expected: "a name".into(),
+        fix: "type one".into(),
+    }];
+    let limits = Limits {
+        rows_per_sheet: 3,
+        ..Limits::default()
+    };
+    let outcome = write_report_with(&r, &target, &limits).unwrap();
+    assert!(
+        outcome.text_figure_count > 0,
+        "the writer's note is left out"
+    );
+
+    let back = super::readback::read_workbook(&target).unwrap();
+    assert_eq!(back.facts, r.facts);
+    assert_eq!(back.accruals, r.accruals);
+    assert_eq!(back.reconciliation, r.reconciliation);
+    assert_eq!(back.journal, r.journal);
+    assert_eq!(back.daily, r.daily);
+    assert_eq!(back.problems, r.problems);
+    // Amounts come back with the currency's places, as the totals add them.
+    assert_eq!(back.accruals[0].balance_at_cutoff.to_string(), "1000.00");
+    assert_eq!(back.accruals[2].accrued_at_cutoff.to_string(), "3.100");
+}
+
+#[test]
+fn a_workbook_the_writer_did_not_write_is_refused_naming_the_sheet() {
+    let dir = tempfile::tempdir().unwrap();
+    let template = dir.path().join("template.xlsx");
+    super::write_template(&template).unwrap();
+    let err = super::readback::read_workbook(&template).unwrap_err();
+    match &err {
+        super::ReportError::NotWritten { sheet, found, .. } => {
+            assert_eq!((sheet.as_str(), found.as_str()), ("Run", "no such sheet"));
+        }
+        other => panic!("{other}"),
+    }
+    assert!(err
+        .to_string()
+        .contains("merge only takes workbooks written by"));
+
+    // A status word the writer never writes names its cell.
+    let target = dir.path().join("shard.xlsx");
+    let mut r = report();
+    r.facts.settings = ["cutoff", "window_start"]
+        .iter()
+        .map(|name| Setting {
+            name: (*name).into(),
+            value: "2024-03-31".into(),
+            source: SettingSource::Option,
+        })
+        .collect();
+    r.reconciliation = vec![recon("agrees", None)];
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    let shard = std::fs::read(&target).unwrap();
+    let edited = replace_in_zip(&shard, "agrees", "agreed");
+    std::fs::write(&target, edited).unwrap();
+    let err = super::readback::read_workbook(&target).unwrap_err();
+    match &err {
+        super::ReportError::NotWritten {
+            sheet, cell, found, ..
+        } => assert_eq!(
+            (sheet.as_str(), cell.as_str(), found.as_str()),
+            ("Reconciliation", "K2", "agreed")
+        ),
+        other => panic!("{other}"),
+    }
+}
+
+/// The package with the cell text `from` replaced by `to` on every sheet.
+fn replace_in_zip(bytes: &[u8], from: &str, to: &str) -> Vec<u8> {
+    use std::io::{Read, Write};
+    let mut archive = zip::ZipArchive::new(std::io::Cursor::new(bytes)).unwrap();
+    let mut out = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
+    for i in 0..archive.len() {
+        let mut entry = archive.by_index(i).unwrap();
+        let name = entry.name().unwrap().to_string();
+        let mut content = Vec::new();
+        entry.read_to_end(&mut content).unwrap();
+        if name.ends_with(".xml") {
+            content = String::from_utf8(content)
+                .unwrap()
+                .replace(&format!(">{from}<"), &format!(">{to}<"))
+                .into_bytes();
+        }
+        out.start_file(name, zip::write::SimpleFileOptions::default())
+            .unwrap();
+        out.write_all(&content).unwrap();
+    }
+    out.finish().unwrap().into_inner()
+}
+
+/// The words of the statuses in the workbook (semantics section 9), each
+/// with its own fill, and which of them the chart counts as outside tolerance.
+#[test]
+fn each_status_is_written_as_its_word() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    r.reconciliation = Status::ALL
+        .iter()
+        .map(|s| recon(s.name(), Some("1")))
+        .collect();
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    let words: Vec<String> = rows(&target, "Reconciliation")[1..]
+        .iter()
+        .map(|row| row[10].to_string())
+        .collect();
+    assert_eq!(
+        words,
+        [
+            "agrees",
+            "within tolerance",
+            "over-posted",
+            "under-posted",
+            "not posted",
+            "unexpected posting"
+        ]
+    );
+    let plan = super::workbook::chart_plan_for_tests(&r.reconciliation, &Limits::default());
+    // Rows 4 to 7 (over-posted .. unexpected posting) are charted.
+    assert_eq!(plan.unwrap().1, "Reconciliation!$J$4:$J$7");
 }

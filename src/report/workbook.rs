@@ -21,10 +21,12 @@ use rust_xlsxwriter::{
 use super::cells::{Cells, TextFigure, TextFigures, EXACT_DIGITS};
 use super::error::ReportError;
 use super::layout::{
-    self, column_width, outside_tolerance, part_name, place, sheet_ref, Limits, Styles,
-    MAX_FORMAT_DECIMALS,
+    self, column_width, part_name, place, sheet_ref, Limits, Styles, MAX_FORMAT_DECIMALS,
 };
-use super::model::{AccrualLine, DailyLine, JournalLine, ReconciliationLine, Report};
+use super::model::{
+    AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, Report, RunFacts,
+    StatusCount,
+};
 use super::output;
 use crate::problem::{Position, Problem, Severity};
 
@@ -96,6 +98,27 @@ pub const TOTALS_HEADER: [&str; 6] = [
     "Posted in window",
     "Interest for window",
 ];
+
+/// Labels of the Summary's account counts.
+pub const ACCOUNTS_READ: &str = "Accounts read";
+/// See [`ACCOUNTS_READ`].
+pub const ACCOUNTS_COMPUTED: &str = "Accounts computed";
+/// See [`ACCOUNTS_READ`].
+pub const ACCOUNTS_LEFT_OUT: &str = "Accounts left out by errors";
+
+/// Labels of the Run sheet's first rows: the program, the command line and
+/// the time of the run.
+pub const RUN_PROGRAM: &str = "Program version";
+/// See [`RUN_PROGRAM`].
+pub const RUN_COMMAND_LINE: &str = "Command line";
+/// See [`RUN_PROGRAM`].
+pub const RUN_TIME: &str = "Time of the run";
+
+/// Header labels of the Run sheet's inputs.
+pub const INPUTS_HEADER: [&str; 3] = ["Input", "Size (bytes)", "SHA-256"];
+
+/// Header labels of the Run sheet's settings.
+pub const SETTINGS_HEADER: [&str; 3] = ["Setting", "Value", "Source"];
 
 /// The caution printed at the top of the Summary.
 pub const CAUTION: &str = "Caution: every figure here is worked out from the terms and data \
@@ -171,22 +194,7 @@ pub(crate) fn write_report_with(
 ) -> Result<WriteOutcome, ReportError> {
     let dir = output::target_dir(target)?;
     output::check_not_input(target, &report.facts.inputs)?;
-    let mut wb = Workbook::new();
-    // The big sheets spill to scratch files; keep them on the target's disk.
-    wb.set_tempdir(&dir).map_err(|e| ReportError::Save {
-        path: target.to_path_buf(),
-        source: e,
-    })?;
-    wb.set_zip_compression_level(layout::ZIP_LEVEL);
-    wb.set_properties(
-        &DocProperties::new()
-            .set_title("Interest accrual and reconciliation")
-            .set_author(report.facts.program.as_str())
-            .set_comment(format!("Cut-off {}", report.facts.cutoff))
-            // The run time is the only time in the file: no clock is read.
-            .set_creation_datetime(&report.facts.run_time),
-    );
-
+    let mut wb = new_workbook(report, target, &dir)?;
     let styles = Styles::new();
     let mut ctx = Ctx {
         styles: &styles,
@@ -205,53 +213,43 @@ pub(crate) fn write_report_with(
         name: "Summary".into(),
         rows: 0,
     });
-
-    write_list(&mut wb, &ACCRUALS, &report.accruals, &mut ctx)?;
-    let recon_parts = if report.reconciliation.is_empty() {
-        0
-    } else {
-        write_list(&mut wb, &RECONCILIATION, &report.reconciliation, &mut ctx)?
-    };
-    write_list(&mut wb, &JOURNAL, &report.journal, &mut ctx)?;
-    if let Some(daily) = &report.daily {
-        write_list(&mut wb, &DAILY, daily, &mut ctx)?;
-    }
-
+    let recon_parts = write_lists(&mut wb, report, &mut ctx)?;
     let chart = (recon_parts > 0)
         .then(|| chart_plan(&report.reconciliation, limits))
         .flatten();
-    let summary = {
-        let ws = wb
-            .worksheet_from_index(0)
-            .map_err(|e| ReportError::sheet("Summary", e))?;
-        write_summary(ws, report, chart.as_ref(), &styles, &mut ctx.texts)?
-    };
+    let summary = write_summary(
+        summary_sheet(&mut wb)?,
+        report,
+        chart.as_ref(),
+        &styles,
+        &mut ctx.texts,
+    )?;
 
     // Run goes last but is built now, so that its figures join the note.
-    let mut run = Worksheet::new();
-    run.set_name("Run")
-        .map_err(|e| ReportError::sheet("Run", e))?;
-    let run_rows = write_run(&mut run, report, &styles, &mut ctx.texts)?;
+    let (run, run_rows) = run_sheet(report, &styles, &mut ctx.texts)?;
 
     // Every figure is written by now: say once which ones are text, and
     // which texts were too long for a cell.
     let note = text_figure_problem(&ctx.texts, target);
     let cut_note = cut_text_problem(&ctx.texts, target);
-    let mut problems: Vec<&Problem> = report.problems.iter().collect();
-    problems.extend(note.as_ref());
-    problems.extend(cut_note.as_ref());
+    let problems: Vec<&Problem> = report
+        .problems
+        .iter()
+        .chain(note.as_ref())
+        .chain(cut_note.as_ref())
+        .collect();
     write_list(&mut wb, &problems_sheet(), &problems, &mut ctx)?;
 
-    {
-        let ws = wb
-            .worksheet_from_index(0)
-            .map_err(|e| ReportError::sheet("Summary", e))?;
-        finish_summary(ws, &summary, &problems, &ctx.texts, &styles)?;
-    }
+    finish_summary(
+        summary_sheet(&mut wb)?,
+        &summary,
+        &problems,
+        &ctx.texts,
+        &styles,
+    )?;
     if let Some(s) = ctx.sheets.first_mut() {
         s.rows = usize::try_from(summary.rows_used).unwrap_or(usize::MAX);
     }
-
     wb.push_worksheet(run);
     ctx.sheets.push(SheetRows {
         name: "Run".into(),
@@ -267,6 +265,52 @@ pub(crate) fn write_report_with(
         text_figure_problem: note,
         cut_text_problem: cut_note,
     })
+}
+
+/// An empty workbook with the report's document properties, spilling its
+/// big sheets to scratch files in `dir` (the target's folder).
+fn new_workbook(report: &Report, target: &Path, dir: &Path) -> Result<Workbook, ReportError> {
+    let mut wb = Workbook::new();
+    wb.set_tempdir(dir).map_err(|e| ReportError::Save {
+        path: target.to_path_buf(),
+        source: e,
+    })?;
+    wb.set_zip_compression_level(layout::ZIP_LEVEL);
+    wb.set_properties(
+        &DocProperties::new()
+            .set_title("Interest accrual and reconciliation")
+            .set_author(report.facts.program.as_str())
+            .set_comment(format!("Cut-off {}", report.facts.cutoff))
+            // The run time is the only time in the file: no clock is read.
+            .set_creation_datetime(&report.facts.run_time),
+    );
+    Ok(wb)
+}
+
+/// The Accruals, Reconciliation (when there are rows), Journal and Daily
+/// (when asked for) lists; returns how many Reconciliation sheets there are.
+fn write_lists(
+    wb: &mut Workbook,
+    report: &Report,
+    ctx: &mut Ctx<'_>,
+) -> Result<usize, ReportError> {
+    write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    let recon_parts = if report.reconciliation.is_empty() {
+        0
+    } else {
+        write_list(wb, &RECONCILIATION, &report.reconciliation, ctx)?
+    };
+    write_list(wb, &JOURNAL, &report.journal, ctx)?;
+    if let Some(daily) = &report.daily {
+        write_list(wb, &DAILY, daily, ctx)?;
+    }
+    Ok(recon_parts)
+}
+
+/// The Summary, the workbook's first sheet.
+fn summary_sheet(wb: &mut Workbook) -> Result<&mut Worksheet, ReportError> {
+    wb.worksheet_from_index(0)
+        .map_err(|e| ReportError::sheet("Summary", e))
 }
 
 /// State shared by the sheets of one workbook.
@@ -505,11 +549,7 @@ fn reconciliation_row(c: &mut Cells<'_>, r: &ReconciliationLine) -> Result<(), R
     if let Some(bp) = r.variance_bp {
         c.bp(9, bp)?;
     }
-    c.text_as(
-        10,
-        &r.status,
-        styles.status(&r.status).unwrap_or(&styles.text),
-    )?;
+    c.text_as(10, r.status.name(), styles.status(r.status))?;
     c.text(11, &r.likely_cause)?;
     Ok(())
 }
@@ -571,9 +611,7 @@ fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
         },
         account: None,
         found: first.text.clone(),
-        expected: format!(
-            "a figure of at most {EXACT_DIGITS} significant digits, which a spreadsheet number holds exactly"
-        ),
+        expected: text_figure_expected(),
         fix: format!(
             "{} figure{} written as text, right-aligned, so that no digit is lost ({}); \
              spreadsheet sums skip text cells, so add these figures separately",
@@ -598,10 +636,7 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
         },
         account: None,
         found: format!("{}…", first.text),
-        expected: format!(
-            "a text of at most {} characters, which a spreadsheet cell holds",
-            super::cells::MAX_CELL_CHARS
-        ),
+        expected: cut_text_expected(),
         fix: format!(
             "{} text{} cut to fit, ending in … ({}); the input keeps the whole text, so shorten it there if the cut matters",
             texts.cut_count,
@@ -609,6 +644,26 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             cells.join(", ")
         ),
     })
+}
+
+fn text_figure_expected() -> String {
+    format!(
+        "a figure of at most {EXACT_DIGITS} significant digits, which a spreadsheet number holds exactly"
+    )
+}
+
+fn cut_text_expected() -> String {
+    format!(
+        "a text of at most {} characters, which a spreadsheet cell holds",
+        super::cells::MAX_CELL_CHARS
+    )
+}
+
+/// Whether a problem is one of the notes the writer adds to the Problems
+/// sheet itself (figures written as text, texts cut to fit): a workbook
+/// read back leaves them out, since writing it again makes them anew.
+pub(crate) fn is_writer_note(p: &Problem) -> bool {
+    p.expected == text_figure_expected() || p.expected == cut_text_expected()
 }
 
 /// The first cells of `listed` as `Sheet!A1`, and how many more of `count`.
@@ -649,7 +704,7 @@ fn chart_plan(rows: &[ReconciliationLine], limits: &Limits) -> Option<ChartPlan>
     let outside: Vec<usize> = rows
         .iter()
         .enumerate()
-        .filter(|(_, r)| outside_tolerance(&r.status) && r.variance_bp.is_some())
+        .filter(|(_, r)| r.status.outside_tolerance() && r.variance_bp.is_some())
         .map(|(i, _)| i)
         .collect();
     let total = outside.len();
@@ -737,6 +792,9 @@ struct SummaryPlaces {
 
 const SUMMARY_COLS: ColNum = 6;
 
+/// The Summary: title and caution, the run's facts, totals by currency,
+/// counts by status, widths and the variance chart. The problem and text
+/// figure counts are left to [`finish_summary`]; their places are returned.
 fn write_summary(
     ws: &mut Worksheet,
     report: &Report,
@@ -744,9 +802,25 @@ fn write_summary(
     styles: &Styles,
     texts: &mut TextFigures,
 ) -> Result<SummaryPlaces, ReportError> {
-    let facts = &report.facts;
     layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Summary", e))?;
     let mut c = Cells::new(ws, "Summary", styles, texts);
+    summary_title(&mut c)?;
+    let mut places = summary_facts(&mut c, &report.facts)?;
+    let row = summary_totals(&mut c, places.text_figures, &report.totals)?;
+    let row = summary_status_counts(&mut c, row, &report.status_counts)?;
+    summary_widths(&mut c)?;
+    if let Some(plan) = chart {
+        c.sheet()
+            .insert_chart(6, SUMMARY_COLS + 1, &variance_chart(plan))
+            .map_err(|e| ReportError::sheet("Summary", e))?;
+    }
+    places.rows_used = row.saturating_add(1);
+    Ok(places)
+}
+
+/// The title and the caution under it.
+fn summary_title(c: &mut Cells<'_>) -> Result<(), ReportError> {
+    let styles = c.styles();
     c.at(0).text_spilling(
         0,
         "Interest accrual and reconciliation: summary",
@@ -755,56 +829,74 @@ fn write_summary(
     c.sheet()
         .merge_range(1, 0, 4, SUMMARY_COLS - 1, CAUTION, &styles.caution)
         .map_err(|e| ReportError::sheet("Summary", e))?;
+    Ok(())
+}
 
+/// The Run section: the window, the books and the account counts, and the
+/// labels of the counts [`finish_summary`] fills in. `rows_used` is the last
+/// row written.
+fn summary_facts(c: &mut Cells<'_>, facts: &RunFacts) -> Result<SummaryPlaces, ReportError> {
+    let styles = c.styles();
     let mut row: RowNum = 6;
-    section(&mut c, row, "Run", SUMMARY_COLS)?;
+    section(c, row, "Run", SUMMARY_COLS)?;
     row += 1;
     let label = |c: &mut Cells<'_>, row: RowNum, text: &str| -> Result<(), ReportError> {
         c.at(row).text_as(0, text, &styles.label)
     };
-    label(&mut c, row, "Cut-off")?;
+    label(c, row, "Cut-off")?;
     c.date(1, facts.cutoff)?;
     row += 1;
-    label(&mut c, row, "Window from")?;
+    label(c, row, "Window from")?;
     c.date(1, facts.window_start)?;
     row += 1;
-    label(&mut c, row, "Window to")?;
+    label(c, row, "Window to")?;
     c.date(1, facts.cutoff)?;
     row += 1;
-    label(&mut c, row, "Books")?;
+    label(c, row, "Books")?;
     c.count(1, int(facts.inputs.len()))?;
     for input in &facts.inputs {
         row += 1;
-        label(&mut c, row, "Book")?;
+        label(c, row, "Book")?;
         c.text_spilling(1, &input.path, &styles.text)?;
     }
     row += 1;
-    label(&mut c, row, "Accounts read")?;
+    label(c, row, ACCOUNTS_READ)?;
     c.count(1, int(facts.accounts_read))?;
     row += 1;
-    label(&mut c, row, "Accounts computed")?;
+    label(c, row, ACCOUNTS_COMPUTED)?;
     c.count(1, int(facts.accounts_computed))?;
     row += 1;
-    label(&mut c, row, "Accounts left out by errors")?;
+    label(c, row, ACCOUNTS_LEFT_OUT)?;
     c.count(1, int(facts.accounts_failed))?;
-    row += 1;
-    label(&mut c, row, "Problems: errors")?;
-    let errors = row;
-    row += 1;
-    label(&mut c, row, "Problems: warnings")?;
-    let warnings = row;
-    row += 1;
-    label(&mut c, row, "Problems: notes")?;
-    let notes = row;
-    row += 1;
-    label(&mut c, row, "Figures written as text")?;
-    let text_figures = row;
+    let mut late = |text: &str| -> Result<RowNum, ReportError> {
+        row += 1;
+        label(c, row, text)?;
+        Ok(row)
+    };
+    let errors = late("Problems: errors")?;
+    let warnings = late("Problems: warnings")?;
+    let notes = late("Problems: notes")?;
+    let text_figures = late("Figures written as text")?;
+    Ok(SummaryPlaces {
+        errors,
+        warnings,
+        notes,
+        text_figures,
+        rows_used: text_figures,
+    })
+}
 
-    row += 2;
-    section(&mut c, row, "Totals by currency", SUMMARY_COLS)?;
+/// Totals by currency, from two rows below `row`; returns the last row written.
+fn summary_totals(
+    c: &mut Cells<'_>,
+    row: RowNum,
+    totals: &[CurrencyTotal],
+) -> Result<RowNum, ReportError> {
+    let mut row = row + 2;
+    section(c, row, "Totals by currency", SUMMARY_COLS)?;
     row += 1;
     c.at(row).header(&TOTALS_HEADER, &[1, 2, 3, 4, 5])?;
-    for t in &report.totals {
+    for t in totals {
         row += 1;
         c.at(row).text(0, &t.currency)?;
         c.count(1, int(t.accounts))?;
@@ -813,21 +905,36 @@ fn write_summary(
         c.amount(4, t.posted_in_window, t.minor_units)?;
         c.amount(5, t.interest_for_window, t.minor_units)?;
     }
+    Ok(row)
+}
 
-    if !report.status_counts.is_empty() {
-        row += 2;
-        section(&mut c, row, "Counts by status", 2)?;
-        row += 1;
-        c.at(row).header(&["Status", "Rows"], &[1])?;
-        for s in &report.status_counts {
-            row += 1;
-            let fill = styles.status(&s.status).unwrap_or(&styles.text);
-            c.at(row).text_as(0, &s.status, fill)?;
-            c.count(1, int(s.rows))?;
-        }
+/// Counts by status (none without statement rows), from two rows below
+/// `row`; returns the last row written.
+fn summary_status_counts(
+    c: &mut Cells<'_>,
+    row: RowNum,
+    counts: &[StatusCount],
+) -> Result<RowNum, ReportError> {
+    if counts.is_empty() {
+        return Ok(row);
     }
+    let styles = c.styles();
+    let mut row = row + 2;
+    section(c, row, "Counts by status", 2)?;
+    row += 1;
+    c.at(row).header(&["Status", "Rows"], &[1])?;
+    for s in counts {
+        row += 1;
+        c.at(row)
+            .text_as(0, s.status.name(), styles.status(s.status))?;
+        c.count(1, int(s.rows))?;
+    }
+    Ok(row)
+}
 
-    // Widths: labels and codes in A, figures in B..F.
+/// Widths: labels and codes in A, figures in B..F; and the caution's rows
+/// tall enough for its lines at these widths.
+fn summary_widths(c: &mut Cells<'_>) -> Result<(), ReportError> {
     let widths: Vec<u16> = (0..SUMMARY_COLS)
         .map(|col| {
             let header = TOTALS_HEADER.get(usize::from(col)).copied().unwrap_or("");
@@ -840,54 +947,44 @@ fn write_summary(
             .set_column_width(col, width)
             .map_err(|e| ReportError::sheet("Summary", e))?;
     }
-    // The caution's rows: tall enough for its lines at these widths.
     for r in 1..=4 {
         c.sheet()
             .set_row_height(r, 18)
             .map_err(|e| ReportError::sheet("Summary", e))?;
     }
+    Ok(())
+}
 
-    if let Some(plan) = chart {
-        let mut ch = Chart::new_column();
-        let series = ch.add_series();
-        series
-            .set_categories(&chart_range(plan, 0))
-            .set_values(&chart_range(plan, 9))
-            .set_name("Variance (bp)")
-            .set_format(
-                ChartFormat::new().set_solid_fill(
-                    ChartSolidFill::new().set_color(Color::RGB(layout::palette::BAR)),
-                ),
-            )
-            .set_invert_if_negative()
-            .set_invert_if_negative_color(Color::RGB(layout::palette::BAR_NEGATIVE));
-        let title = if plan.shown == plan.total {
-            "Variance (bp) of the rows outside tolerance".to_string()
-        } else {
-            format!(
-                "Variance (bp): the first {} of {} rows outside tolerance",
-                plan.shown, plan.total
-            )
-        };
-        ch.title().set_name(&title);
-        ch.x_axis()
-            .set_name("Account")
-            .set_label_position(ChartAxisLabelPosition::Low);
-        ch.y_axis().set_name("Basis points").set_num_format("0.00");
-        ch.legend().set_hidden();
-        ch.set_width(640).set_height(320);
-        c.sheet()
-            .insert_chart(6, SUMMARY_COLS + 1, &ch)
-            .map_err(|e| ReportError::sheet("Summary", e))?;
-    }
-
-    Ok(SummaryPlaces {
-        errors,
-        warnings,
-        notes,
-        text_figures,
-        rows_used: row.saturating_add(1),
-    })
+/// The column chart of the variances (bp) of the rows outside tolerance.
+fn variance_chart(plan: &ChartPlan) -> Chart {
+    let mut ch = Chart::new_column();
+    let series = ch.add_series();
+    series
+        .set_categories(&chart_range(plan, 0))
+        .set_values(&chart_range(plan, 9))
+        .set_name("Variance (bp)")
+        .set_format(
+            ChartFormat::new()
+                .set_solid_fill(ChartSolidFill::new().set_color(Color::RGB(layout::palette::BAR))),
+        )
+        .set_invert_if_negative()
+        .set_invert_if_negative_color(Color::RGB(layout::palette::BAR_NEGATIVE));
+    let title = if plan.shown == plan.total {
+        "Variance (bp) of the rows outside tolerance".to_string()
+    } else {
+        format!(
+            "Variance (bp): the first {} of {} rows outside tolerance",
+            plan.shown, plan.total
+        )
+    };
+    ch.title().set_name(&title);
+    ch.x_axis()
+        .set_name("Account")
+        .set_label_position(ChartAxisLabelPosition::Low);
+    ch.y_axis().set_name("Basis points").set_num_format("0.00");
+    ch.legend().set_hidden();
+    ch.set_width(640).set_height(320);
+    ch
 }
 
 /// A section heading underlined over `cols` columns.
@@ -918,6 +1015,20 @@ fn finish_summary(
     Ok(())
 }
 
+/// The Run sheet, built apart from the workbook (it is pushed last), and
+/// the rows it uses.
+fn run_sheet(
+    report: &Report,
+    styles: &Styles,
+    texts: &mut TextFigures,
+) -> Result<(Worksheet, RowNum), ReportError> {
+    let mut run = Worksheet::new();
+    run.set_name("Run")
+        .map_err(|e| ReportError::sheet("Run", e))?;
+    let rows = write_run(&mut run, report, styles, texts)?;
+    Ok((run, rows))
+}
+
 fn write_run(
     ws: &mut Worksheet,
     report: &Report,
@@ -928,16 +1039,15 @@ fn write_run(
     layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Run", e))?;
     let mut c = Cells::new(ws, "Run", styles, texts);
     c.at(0).header(&["Item", "Value"], &[])?;
-    c.at(1).text(0, "Program version")?;
+    c.at(1).text(0, RUN_PROGRAM)?;
     c.text(1, &facts.program)?;
-    c.at(2).text(0, "Command line")?;
+    c.at(2).text(0, RUN_COMMAND_LINE)?;
     c.text_spilling(1, &facts.command_line, &styles.text)?;
-    c.at(3).text(0, "Time of the run")?;
+    c.at(3).text(0, RUN_TIME)?;
     c.datetime(1, facts.run_time)?;
 
     let mut row: RowNum = 5;
-    c.at(row)
-        .header(&["Input", "Size (bytes)", "SHA-256"], &[1])?;
+    c.at(row).header(&INPUTS_HEADER, &[1])?;
     for input in &facts.inputs {
         row += 1;
         c.at(row).text(0, &input.path)?;
@@ -945,7 +1055,7 @@ fn write_run(
         c.text(2, &input.sha256)?;
     }
     row += 2;
-    c.at(row).header(&["Setting", "Value", "Source"], &[])?;
+    c.at(row).header(&SETTINGS_HEADER, &[])?;
     for s in &facts.settings {
         row += 1;
         c.at(row).text(0, &s.name)?;
@@ -953,7 +1063,7 @@ fn write_run(
         c.text(2, s.source.name())?;
     }
     let widths = [
-        column_width("Time of the run", c.width(0), 60),
+        column_width(RUN_TIME, c.width(0), 60),
         column_width("Size (bytes)", c.width(1).max(20), 40),
         column_width("SHA-256", c.width(2), 70),
     ];

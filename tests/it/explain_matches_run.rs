@@ -106,7 +106,7 @@ fn same_row(x: &Explanation, line: &ReconciliationLine, what: &str) {
         line.expected,
         line.posted,
         line.variance,
-        line.status.to_string(),
+        line.status.name().to_string(),
     );
     assert_eq!(
         got, want,
@@ -194,7 +194,7 @@ fn printed_lines_show(
             fmt_amount(l.expected, places),
             fmt_amount(l.variance, places)
         );
-        let status = format!(" bp): {}\n", l.status);
+        let status = format!(" bp): {}\n", l.status.name());
         assert!(
             text.lines()
                 .any(|t| t.starts_with(&shown) && format!("{t}\n").ends_with(&status)),

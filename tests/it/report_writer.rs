@@ -9,6 +9,7 @@ use std::str::FromStr;
 use calamine::{open_workbook, open_workbook_auto, Data, HorizontalAlignment, Reader, Xlsx};
 use chrono::{NaiveDate, NaiveDateTime};
 use ledgerate::book::schema::{SheetKind, SETTING_ROWS};
+use ledgerate::engine::reconcile::Status;
 use ledgerate::problem::{Position, Problem, Severity};
 use ledgerate::report::model::*;
 use ledgerate::report::{write_report, write_template, ReportError};
@@ -88,7 +89,10 @@ fn report() -> Report {
             posted: dec(posted),
             variance: dec(variance),
             variance_bp: bp.map(dec),
-            status: status.to_string().into(),
+            status: Status::ALL
+                .into_iter()
+                .find(|s| s.name() == status)
+                .unwrap(),
             likely_cause: if status == "under-posted" {
                 "day count ACT/360 instead of ACT/365F reproduces the posted amount".into()
             } else {
@@ -153,19 +157,19 @@ fn report() -> Report {
         ],
         status_counts: vec![
             StatusCount {
-                status: "agrees".into(),
+                status: Status::Agrees,
                 rows: 1,
             },
             StatusCount {
-                status: "within tolerance".into(),
+                status: Status::WithinTolerance,
                 rows: 1,
             },
             StatusCount {
-                status: "over-posted".into(),
+                status: Status::OverPosted,
                 rows: 1,
             },
             StatusCount {
-                status: "under-posted".into(),
+                status: Status::UnderPosted,
                 rows: 1,
             },
         ],

@@ -1,0 +1,130 @@
+//! The Summary's sums: totals by currency and rows by status, added one line
+//! at a time.
+//!
+//! The batch adds each account's line as it is computed; a merge of shard
+//! workbooks adds the lines it read back. Both go through these two types,
+//! so a merged run's totals are the single run's to the last digit. They
+//! only add what they are given: they never round, convert or skip a line,
+//! and never look at anything but the line's currency, its four amounts and
+//! the row's status.
+
+use std::collections::BTreeMap;
+
+use rust_decimal::Decimal;
+
+use crate::engine::reconcile::Status;
+use crate::report::model::{AccrualLine, CurrencyTotal, StatusCount, Word};
+
+/// Totals by currency: accounts, balance at cut-off, accrued at cut-off,
+/// posted in window and interest for window, each the sum of the accounts'
+/// rounded amounts.
+///
+/// ```
+/// use ledgerate::batch::totals::Totals;
+/// use ledgerate::report::model::AccrualLine;
+/// use rust_decimal::Decimal;
+///
+/// let line = |ccy: &'static str, accrued: i64| AccrualLine {
+///     account: format!("{ccy}-{accrued}"),
+///     name: String::new(),
+///     currency: ccy.into(),
+///     minor_units: 2,
+///     side: "liability".into(),
+///     day_count: "ACT/365F".into(),
+///     compounding: "simple".into(),
+///     balance_at_cutoff: Decimal::new(100_000, 2),
+///     accrued_at_cutoff: Decimal::new(accrued, 2),
+///     posted_in_window: Decimal::ZERO,
+///     interest_for_window: Decimal::new(accrued, 2),
+///     effective_annual_rate: None,
+/// };
+/// let mut totals = Totals::default();
+/// totals.add(&line("USD", 125));
+/// totals.add(&line("EUR", 300));
+/// totals.add(&line("USD", 1));
+/// let rows = totals.rows();
+/// // In currency-code order.
+/// assert_eq!(rows[0].currency, "EUR");
+/// assert_eq!((rows[1].currency.as_str(), rows[1].accounts), ("USD", 2));
+/// assert_eq!(rows[1].accrued_at_cutoff, Decimal::new(126, 2));
+/// assert_eq!(rows[1].balance_at_cutoff, Decimal::new(200_000, 2));
+/// ```
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct Totals {
+    by_currency: BTreeMap<Word, CurrencyTotal>,
+}
+
+impl Totals {
+    /// Adds one account's line to its currency's totals.
+    pub fn add(&mut self, line: &AccrualLine) {
+        let t = self
+            .by_currency
+            .entry(line.currency.clone())
+            .or_insert_with(|| CurrencyTotal {
+                currency: line.currency.to_string(),
+                minor_units: line.minor_units,
+                accounts: 0,
+                balance_at_cutoff: Decimal::ZERO,
+                accrued_at_cutoff: Decimal::ZERO,
+                posted_in_window: Decimal::ZERO,
+                interest_for_window: Decimal::ZERO,
+            });
+        t.accounts += 1;
+        t.balance_at_cutoff += line.balance_at_cutoff;
+        t.accrued_at_cutoff += line.accrued_at_cutoff;
+        t.posted_in_window += line.posted_in_window;
+        t.interest_for_window += line.interest_for_window;
+    }
+
+    /// The totals of every line of `lines`.
+    pub fn of<'a>(lines: impl IntoIterator<Item = &'a AccrualLine>) -> Totals {
+        let mut totals = Totals::default();
+        for line in lines {
+            totals.add(line);
+        }
+        totals
+    }
+
+    /// One row per currency, in code order.
+    pub fn rows(&self) -> Vec<CurrencyTotal> {
+        self.by_currency.values().cloned().collect()
+    }
+}
+
+/// Statement rows counted by status.
+///
+/// ```
+/// use ledgerate::batch::totals::StatusCounts;
+/// use ledgerate::engine::reconcile::Status;
+///
+/// let mut counts = StatusCounts::default();
+/// for s in [Status::NotPosted, Status::Agrees, Status::Agrees] {
+///     counts.add(s);
+/// }
+/// let rows: Vec<(Status, usize)> = counts.rows().iter().map(|c| (c.status, c.rows)).collect();
+/// // In the order of `Status::ALL`, statuses with rows only.
+/// assert_eq!(rows, [(Status::Agrees, 2), (Status::NotPosted, 1)]);
+/// ```
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct StatusCounts {
+    by_status: BTreeMap<Status, usize>,
+}
+
+impl StatusCounts {
+    /// Counts one row of `status`.
+    pub fn add(&mut self, status: Status) {
+        *self.by_status.entry(status).or_insert(0) += 1;
+    }
+
+    /// One count per status that has rows, in the order of [`Status::ALL`].
+    pub fn rows(&self) -> Vec<StatusCount> {
+        Status::ALL
+            .iter()
+            .filter_map(|&status| {
+                self.by_status
+                    .get(&status)
+                    .map(|&rows| StatusCount { status, rows })
+            })
+            .collect()
+    }
+}

@@ -1,0 +1,91 @@
+//! The plain-text summary `run` and `merge` print on standard output: the
+//! window, the account counts, the totals by currency, the statement rows by
+//! status, the problem counts and the first errors.
+//!
+//! It only prints figures the report already holds: it never adds, rounds
+//! beyond padding an amount to its currency's places, or reads a file.
+
+use std::io::Write;
+use std::path::Path;
+
+use anyhow::Result;
+use rust_decimal::Decimal;
+
+use crate::problem::Severity;
+use crate::report::model::Report;
+
+/// The plain-text summary on standard output.
+pub(crate) fn print_summary(out: &mut dyn Write, report: &Report, target: &Path) -> Result<()> {
+    let f = &report.facts;
+    let count = |s: Severity| report.problems.iter().filter(|p| p.severity == s).count();
+    writeln!(
+        out,
+        "cut-off {}, window {}..{}",
+        f.cutoff, f.window_start, f.cutoff
+    )?;
+    writeln!(
+        out,
+        "accounts: {} read, {} computed, {} left out by errors",
+        f.accounts_read, f.accounts_computed, f.accounts_failed
+    )?;
+    if !report.totals.is_empty() {
+        writeln!(
+            out,
+            "{:<8} {:>8} {:>22} {:>18} {:>18} {:>20}",
+            "currency",
+            "accounts",
+            "balance at cut-off",
+            "accrued at cut-off",
+            "posted in window",
+            "interest for window"
+        )?;
+        for t in &report.totals {
+            let m = |x: Decimal| {
+                let mut r = x;
+                if r.scale() < t.minor_units {
+                    r.rescale(t.minor_units);
+                }
+                r
+            };
+            writeln!(
+                out,
+                "{:<8} {:>8} {:>22} {:>18} {:>18} {:>20}",
+                t.currency,
+                t.accounts,
+                m(t.balance_at_cutoff),
+                m(t.accrued_at_cutoff),
+                m(t.posted_in_window),
+                m(t.interest_for_window)
+            )?;
+        }
+    }
+    if !report.status_counts.is_empty() {
+        let counts: Vec<String> = report
+            .status_counts
+            .iter()
+            .map(|c| format!("{} {}", c.rows, c.status.name()))
+            .collect();
+        writeln!(out, "statement rows: {}", counts.join(", "))?;
+    }
+    writeln!(
+        out,
+        "problems: {} errors, {} warnings, {} notes (all listed on the Problems sheet)",
+        count(Severity::Error),
+        count(Severity::Warning),
+        count(Severity::Note)
+    )?;
+    for p in report
+        .problems
+        .iter()
+        .filter(|p| p.severity == Severity::Error)
+        .take(10)
+    {
+        writeln!(out, "  {p}")?;
+    }
+    if count(Severity::Error) > 10 {
+        writeln!(out, "  ... and {} more errors", count(Severity::Error) - 10)?;
+    }
+    writeln!(out, "workbook: {}", target.display())?;
+    writeln!(out, "review these figures against the contract terms and the applicable standards before booking them")?;
+    Ok(())
+}

@@ -1,0 +1,558 @@
+//! Reading a workbook this program wrote back into its rows: the Run
+//! sheet's facts, the Accruals, Reconciliation, Journal, Daily and Problems
+//! lists (with their continuation sheets) and the Summary's account counts.
+//! `ledgerate merge` combines shard runs from them.
+//!
+//! Sheets and columns are found by the writer's own header labels, and every
+//! cell goes through the reader's conversions (`book::cell`): a figure reads
+//! back exactly as it was written (a number of at most 15 significant
+//! digits, or text holding every digit). This module never computes a figure
+//! (totals and counts by status are the batch's to add), never guesses: a
+//! sheet, label or cell that is not what the writer writes is an error that
+//! names the workbook, sheet and cell, and it never reads a workbook it did
+//! not write.
+
+use std::collections::HashMap;
+use std::fs::File;
+use std::io::BufReader;
+use std::path::{Path, PathBuf};
+
+use calamine::{open_workbook_auto, Data, DataType, Reader, Sheets};
+use chrono::{NaiveDate, NaiveDateTime};
+use rust_decimal::Decimal;
+
+use super::error::ReportError;
+use super::model::{
+    AccrualLine, DailyLine, InputFile, JournalLine, ReconciliationLine, RunFacts, Setting,
+    SettingSource,
+};
+use super::workbook::{
+    is_writer_note, ACCOUNTS_LEFT_OUT, ACCOUNTS_READ, ACCRUALS_HEADER, DAILY_HEADER, INPUTS_HEADER,
+    JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM,
+    RUN_TIME, SETTINGS_HEADER,
+};
+use crate::book::cell::{self, Cell, NumberStyle};
+use crate::conventions::currency;
+use crate::engine::reconcile::Status;
+use crate::problem::{a1, a1_row, Position, Problem, Severity};
+
+/// The run facts and rows of one workbook, read back. Totals and counts by
+/// status are not read: they are sums of these rows.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct RunRows {
+    /// The Run sheet's facts, with the Summary's accounts read and left out
+    /// (accounts computed: the Accruals rows).
+    pub facts: RunFacts,
+    /// Accruals rows.
+    pub accruals: Vec<AccrualLine>,
+    /// Reconciliation rows (none without the sheet).
+    pub reconciliation: Vec<ReconciliationLine>,
+    /// Journal rows.
+    pub journal: Vec<JournalLine>,
+    /// Daily rows, when the workbook has the sheet.
+    pub daily: Option<Vec<DailyLine>>,
+    /// Problems rows, without the writer's own notes.
+    pub problems: Vec<Problem>,
+}
+
+/// Reads a workbook written by `ledgerate run` back into its rows.
+///
+/// # Errors
+/// [`ReportError::Unreadable`] for a file that is no workbook,
+/// [`ReportError::NotWritten`] for a sheet or cell that the writer would
+/// not have written.
+pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
+    let mut book = Written::open(path)?;
+    let facts = book.run_facts()?;
+    let accruals = book.accruals()?;
+    let reconciliation = book.reconciliation()?;
+    let journal = book.journal()?;
+    let daily = book.daily(&accruals)?;
+    let problems = book.problems()?;
+    let (read, left_out) = book.account_counts()?;
+    Ok(RunRows {
+        facts: RunFacts {
+            accounts_read: read,
+            accounts_computed: accruals.len(),
+            accounts_failed: left_out,
+            ..facts
+        },
+        accruals,
+        reconciliation,
+        journal,
+        daily,
+        problems,
+    })
+}
+
+/// An open workbook that ledgerate wrote.
+struct Written {
+    path: PathBuf,
+    sheets: Sheets<BufReader<File>>,
+}
+
+/// One data row of a list sheet: where it is and its cells.
+struct Row<'a> {
+    path: &'a Path,
+    sheet: &'a str,
+    /// 0-based row of its sheet.
+    row: u32,
+    cells: &'a [Data],
+}
+
+/// The data rows of one list over its sheets ("Daily", "Daily 2"...).
+struct List {
+    /// Sheet names, in order.
+    sheets: Vec<String>,
+    /// (index into `sheets`, 0-based row, cells) of each non-blank data row.
+    rows: Vec<(usize, u32, Vec<Data>)>,
+}
+
+impl List {
+    fn rows<'a>(&'a self, path: &'a Path) -> impl Iterator<Item = Row<'a>> + 'a {
+        self.rows.iter().map(move |(sheet, row, cells)| Row {
+            path,
+            sheet: self.sheets.get(*sheet).map_or("", String::as_str),
+            row: *row,
+            cells,
+        })
+    }
+}
+
+impl Written {
+    fn open(path: &Path) -> Result<Written, ReportError> {
+        let sheets = open_workbook_auto(path).map_err(|e| ReportError::Unreadable {
+            path: path.to_path_buf(),
+            why: e.to_string(),
+        })?;
+        Ok(Written {
+            path: path.to_path_buf(),
+            sheets,
+        })
+    }
+
+    fn not_written(&self, sheet: &str, cell: &str, found: &str, expected: &str) -> ReportError {
+        ReportError::NotWritten {
+            path: self.path.clone(),
+            sheet: sheet.to_string(),
+            cell: cell.to_string(),
+            found: found.to_string(),
+            expected: expected.to_string(),
+        }
+    }
+
+    fn missing(&self, sheet: &str) -> ReportError {
+        self.not_written(sheet, "", "no such sheet", &format!("a {sheet} sheet"))
+    }
+
+    /// Every row of one sheet.
+    fn sheet_rows(&mut self, name: &str) -> Result<Vec<Vec<Data>>, ReportError> {
+        let range = self
+            .sheets
+            .worksheet_range(name)
+            .map_err(|e| ReportError::Unreadable {
+                path: self.path.clone(),
+                why: e.to_string(),
+            })?;
+        Ok(range.rows().map(<[Data]>::to_vec).collect())
+    }
+
+    /// The list `base` over its continuation sheets, each header checked
+    /// against `header`; `None` when the workbook has no such sheet.
+    fn list(&mut self, base: &str, header: &[&str]) -> Result<Option<List>, ReportError> {
+        let sheets: Vec<String> = self
+            .sheets
+            .sheet_names()
+            .into_iter()
+            .filter(|n| is_part_of(n, base))
+            .collect();
+        if sheets.is_empty() {
+            return Ok(None);
+        }
+        let mut rows = Vec::new();
+        for (index, name) in sheets.iter().enumerate() {
+            let mut sheet = self.sheet_rows(name)?.into_iter();
+            let found: Vec<String> = sheet
+                .next()
+                .map(|r| r.iter().map(ToString::to_string).collect())
+                .unwrap_or_default();
+            if found.iter().map(String::as_str).ne(header.iter().copied()) {
+                return Err(self.not_written(
+                    name,
+                    &a1_row(0),
+                    &found.join(", "),
+                    &header.join(", "),
+                ));
+            }
+            rows.extend(
+                (1u32..)
+                    .zip(sheet)
+                    .filter(|(_, r)| r.iter().any(|c| !matches!(c, Data::Empty)))
+                    .map(|(row, cells)| (index, row, cells)),
+            );
+        }
+        Ok(Some(List { sheets, rows }))
+    }
+
+    /// A list every workbook has.
+    fn required_list(&mut self, base: &str, header: &[&str]) -> Result<List, ReportError> {
+        self.list(base, header)?.ok_or_else(|| self.missing(base))
+    }
+
+    /// The Run sheet: program, command line, time of the run, inputs and settings.
+    fn run_facts(&mut self) -> Result<RunFacts, ReportError> {
+        const RUN: &str = "Run";
+        if !self.sheets.sheet_names().iter().any(|n| n == RUN) {
+            return Err(self.not_written(
+                RUN,
+                "",
+                "no such sheet",
+                "the Run sheet of a ledgerate workbook",
+            ));
+        }
+        let rows = self.sheet_rows(RUN)?;
+        let absent = |what: &str| {
+            self.not_written(
+                RUN,
+                "",
+                &format!("no {what}"),
+                "the Run sheet of a ledgerate workbook",
+            )
+        };
+        let value = |label: &str| labelled(&rows, label).cloned();
+        let program = value(RUN_PROGRAM)
+            .map(|d| d.to_string())
+            .ok_or_else(|| absent("program version"))?;
+        let command_line = value(RUN_COMMAND_LINE)
+            .map(|d| d.to_string())
+            .unwrap_or_default();
+        let run_time: NaiveDateTime = value(RUN_TIME)
+            .and_then(|d| d.as_datetime())
+            .ok_or_else(|| absent("time of the run"))?;
+        let inputs = table(&rows, &INPUTS_HEADER)
+            .iter()
+            .map(|r| InputFile {
+                path: text(r, 0),
+                size: whole(r, 1).unwrap_or(0),
+                sha256: text(r, 2),
+            })
+            .collect();
+        let settings = table(&rows, &SETTINGS_HEADER)
+            .iter()
+            .map(|r| self.setting(r))
+            .collect::<Result<Vec<Setting>, ReportError>>()?;
+        let date_setting = |name: &str| {
+            settings
+                .iter()
+                .find(|s| s.name == name)
+                .and_then(|s| cell::parse_iso_date(&s.value))
+                .ok_or_else(|| absent(&format!("{name} setting")))
+        };
+        Ok(RunFacts {
+            program,
+            command_line,
+            inputs,
+            cutoff: date_setting("cutoff")?,
+            window_start: date_setting("window_start")?,
+            settings,
+            run_time,
+            accounts_read: 0,
+            accounts_computed: 0,
+            accounts_failed: 0,
+        })
+    }
+
+    /// One row of the Run sheet's settings.
+    fn setting(&self, r: &[Data]) -> Result<Setting, ReportError> {
+        let word = text(r, 2);
+        let sources = [
+            SettingSource::Default,
+            SettingSource::Book,
+            SettingSource::Option,
+        ];
+        let source = sources
+            .into_iter()
+            .find(|s| s.name() == word)
+            .ok_or_else(|| {
+                self.not_written(
+                    "Run",
+                    "",
+                    &format!("setting source '{word}'"),
+                    "default, Settings sheet or command line",
+                )
+            })?;
+        Ok(Setting {
+            name: text(r, 0),
+            value: text(r, 1),
+            source,
+        })
+    }
+
+    fn accruals(&mut self) -> Result<Vec<AccrualLine>, ReportError> {
+        let list = self.required_list("Accruals", &ACCRUALS_HEADER)?;
+        list.rows(&self.path)
+            .map(|r| {
+                let currency = r.text(2);
+                let places = minor_units(&currency);
+                Ok(AccrualLine {
+                    account: r.text(0),
+                    name: r.text(1),
+                    currency: currency.into(),
+                    minor_units: places,
+                    side: r.text(3).into(),
+                    day_count: r.text(4).into(),
+                    compounding: r.text(5).into(),
+                    balance_at_cutoff: r.amount(6, places)?,
+                    accrued_at_cutoff: r.amount(7, places)?,
+                    posted_in_window: r.amount(8, places)?,
+                    interest_for_window: r.amount(9, places)?,
+                    effective_annual_rate: r.decimal(10)?,
+                })
+            })
+            .collect()
+    }
+
+    fn reconciliation(&mut self) -> Result<Vec<ReconciliationLine>, ReportError> {
+        let Some(list) = self.list("Reconciliation", &RECONCILIATION_HEADER)? else {
+            return Ok(Vec::new());
+        };
+        list.rows(&self.path)
+            .map(|r| {
+                let currency = r.text(1);
+                let places = minor_units(&currency);
+                Ok(ReconciliationLine {
+                    account: r.text(0),
+                    currency: currency.into(),
+                    minor_units: places,
+                    period_start: r.date(2)?,
+                    period_end: r.date(3)?,
+                    days: r
+                        .decimal(4)?
+                        .and_then(|d| i64::try_from(d.mantissa()).ok().filter(|_| d.scale() == 0))
+                        .unwrap_or_default(),
+                    balance_years: r.decimal(5)?.unwrap_or_default(),
+                    expected: r.amount(6, places)?,
+                    posted: r.amount(7, places)?,
+                    variance: r.amount(8, places)?,
+                    variance_bp: r.decimal(9)?,
+                    status: r.status(10)?,
+                    likely_cause: r.text(11),
+                })
+            })
+            .collect()
+    }
+
+    fn journal(&mut self) -> Result<Vec<JournalLine>, ReportError> {
+        let list = self.required_list("Journal", &JOURNAL_HEADER)?;
+        list.rows(&self.path)
+            .map(|r| {
+                let currency = r.text(2);
+                let places = minor_units(&currency);
+                Ok(JournalLine {
+                    date: r.date(0)?,
+                    entity: r.text(1),
+                    currency,
+                    minor_units: places,
+                    gl_account: r.text(3),
+                    debit: r.amount(4, places)?,
+                    credit: r.amount(5, places)?,
+                    memo: r.text(6),
+                })
+            })
+            .collect()
+    }
+
+    /// Daily rows take their minor units from the account's Accruals row.
+    fn daily(&mut self, accruals: &[AccrualLine]) -> Result<Option<Vec<DailyLine>>, ReportError> {
+        let Some(list) = self.list("Daily", &DAILY_HEADER)? else {
+            return Ok(None);
+        };
+        let places_of: HashMap<&str, u32> = accruals
+            .iter()
+            .map(|a| (a.account.as_str(), a.minor_units))
+            .collect();
+        list.rows(&self.path)
+            .map(|r| {
+                let account = r.text(0);
+                let places = places_of.get(account.as_str()).copied().unwrap_or(2);
+                Ok(DailyLine {
+                    minor_units: places,
+                    date: r.date(1)?,
+                    balance: r.amount(2, places)?,
+                    base: r.amount(3, places)?,
+                    rate: r.decimal(4)?.unwrap_or_default(),
+                    day_fraction: r.decimal(5)?.unwrap_or_default(),
+                    interest: r.decimal(6)?.unwrap_or_default(),
+                    accrued: r.decimal(7)?.unwrap_or_default(),
+                    account,
+                })
+            })
+            .collect::<Result<_, _>>()
+            .map(Some)
+    }
+
+    /// The Problems rows, without the notes the writer makes anew.
+    fn problems(&mut self) -> Result<Vec<Problem>, ReportError> {
+        let list = self.required_list("Problems", &PROBLEMS_HEADER)?;
+        let mut problems = Vec::new();
+        for r in list.rows(&self.path) {
+            let p = Problem {
+                severity: r.severity(0)?,
+                position: Position {
+                    book: r.text(1),
+                    sheet: r.text(2),
+                    cell: r.text(3),
+                },
+                account: None,
+                found: r.text(4),
+                expected: r.text(5),
+                fix: r.text(6),
+            };
+            if !is_writer_note(&p) {
+                problems.push(p);
+            }
+        }
+        Ok(problems)
+    }
+
+    /// The Summary's accounts read and accounts left out by errors.
+    fn account_counts(&mut self) -> Result<(usize, usize), ReportError> {
+        const SUMMARY: &str = "Summary";
+        if !self.sheets.sheet_names().iter().any(|n| n == SUMMARY) {
+            return Err(self.missing(SUMMARY));
+        }
+        let rows = self.sheet_rows(SUMMARY)?;
+        let count = |label: &str| {
+            rows.iter()
+                .find(|r| text(r, 0) == label)
+                .and_then(|r| whole(r, 1))
+                .unwrap_or(0)
+        };
+        Ok((count(ACCOUNTS_READ), count(ACCOUNTS_LEFT_OUT)))
+    }
+}
+
+/// Whether `name` is the list sheet `base` or one of its continuations
+/// (`base 2`, `base 3`...).
+fn is_part_of(name: &str, base: &str) -> bool {
+    name == base
+        || name
+            .strip_prefix(base)
+            .and_then(|r| r.strip_prefix(' '))
+            .is_some_and(|k| k.parse::<u32>().is_ok())
+}
+
+/// Column B of the row whose column A is `label`.
+fn labelled<'r>(rows: &'r [Vec<Data>], label: &str) -> Option<&'r Data> {
+    rows.iter()
+        .find(|r| text(r, 0) == label)
+        .map(|r| r.get(1).unwrap_or(&Data::Empty))
+}
+
+/// The rows under the table whose header starts with `header`'s first
+/// label, up to the first blank row.
+fn table<'r>(rows: &'r [Vec<Data>], header: &[&str]) -> Vec<&'r [Data]> {
+    let title = header.first().copied().unwrap_or_default();
+    rows.iter()
+        .skip_while(|r| text(r, 0) != title)
+        .skip(1)
+        .take_while(|r| r.iter().any(|c| !matches!(c, Data::Empty)))
+        .map(Vec::as_slice)
+        .collect()
+}
+
+/// A cell as the text it shows (empty for a blank cell).
+fn text(row: &[Data], col: usize) -> String {
+    match row.get(col) {
+        None | Some(Data::Empty) => String::new(),
+        Some(d) => d.to_string(),
+    }
+}
+
+/// A whole number of a count cell, if it holds one.
+fn whole<T: TryFrom<i128>>(row: &[Data], col: usize) -> Option<T> {
+    match row.get(col).map(Cell::from) {
+        Some(Cell::Number(d)) => {
+            let d = d.normalize();
+            (d.scale() == 0)
+                .then(|| T::try_from(d.mantissa()).ok())
+                .flatten()
+        }
+        _ => None,
+    }
+}
+
+/// The minor units of a currency code as the writer formatted it.
+fn minor_units(code: &str) -> u32 {
+    currency::minor_units(code).unwrap_or(2)
+}
+
+impl Row<'_> {
+    fn error(&self, col: usize, found: &str, expected: &str) -> ReportError {
+        ReportError::NotWritten {
+            path: self.path.to_path_buf(),
+            sheet: self.sheet.to_string(),
+            cell: a1(self.row, u32::try_from(col).unwrap_or(u32::MAX)),
+            found: found.to_string(),
+            expected: expected.to_string(),
+        }
+    }
+
+    fn issue(&self, col: usize, issue: &cell::Issue) -> ReportError {
+        self.error(col, &issue.found, &issue.expected)
+    }
+
+    fn cell(&self, col: usize) -> Cell {
+        self.cells.get(col).map_or(Cell::Empty, Cell::from)
+    }
+
+    fn text(&self, col: usize) -> String {
+        text(self.cells, col)
+    }
+
+    /// An exact decimal, `None` for a blank cell. Text figures carry
+    /// thousands separators and a decimal point.
+    fn decimal(&self, col: usize) -> Result<Option<Decimal>, ReportError> {
+        const WRITTEN: NumberStyle = NumberStyle {
+            decimal_comma: false,
+        };
+        cell::decimal(&self.cell(col), WRITTEN).map_err(|i| self.issue(col, &i))
+    }
+
+    /// An amount, with at least the currency's `places` decimals (a number
+    /// cell drops trailing zeros).
+    fn amount(&self, col: usize, places: u32) -> Result<Decimal, ReportError> {
+        let mut x = self
+            .decimal(col)?
+            .ok_or_else(|| self.error(col, "a blank cell", "an amount"))?;
+        if x.scale() < places {
+            x.rescale(places);
+        }
+        Ok(x)
+    }
+
+    fn date(&self, col: usize) -> Result<NaiveDate, ReportError> {
+        cell::date(&self.cell(col))
+            .map_err(|i| self.issue(col, &i))?
+            .ok_or_else(|| self.error(col, "a blank cell", "a date"))
+    }
+
+    fn status(&self, col: usize) -> Result<Status, ReportError> {
+        let word = self.text(col);
+        Status::ALL
+            .into_iter()
+            .find(|s| s.name() == word)
+            .ok_or_else(|| {
+                let words: Vec<&str> = Status::ALL.iter().map(|s| s.name()).collect();
+                self.error(col, &word, &format!("a status ({})", words.join(", ")))
+            })
+    }
+
+    fn severity(&self, col: usize) -> Result<Severity, ReportError> {
+        let word = self.text(col);
+        [Severity::Error, Severity::Warning, Severity::Note]
+            .into_iter()
+            .find(|s| s.name() == word)
+            .ok_or_else(|| self.error(col, &word, "error, warning or note"))
+    }
+}
