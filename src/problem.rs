@@ -8,7 +8,7 @@
 
 use std::fmt;
 
-use crate::book::schema::SheetKind;
+use crate::schema::SheetKind;
 
 /// Where something is in the input: book file, sheet, cell.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord, Default)]

@@ -17,7 +17,6 @@ use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
-use super::schema::{column, ACCOUNTS};
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::calendar::{BusinessDay, Calendar};
@@ -29,6 +28,7 @@ use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
 use crate::problem::{Problem, Severity};
+use crate::schema::{column, ACCOUNTS};
 
 const ACCOUNT: usize = column!(ACCOUNTS, "account");
 const CURRENCY: usize = column!(ACCOUNTS, "currency");
@@ -801,9 +801,9 @@ mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
     use crate::book::rates;
-    use crate::book::schema::IfBlank;
-    use crate::book::schema::SheetKind;
     use crate::book::sheet::text_sheet;
+    use crate::schema::IfBlank;
+    use crate::schema::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

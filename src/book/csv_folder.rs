@@ -13,9 +13,9 @@ use std::path::Path;
 use super::cell::lower_first;
 use super::csv_records::CsvRows;
 use super::picking::unused_sheet;
-use super::schema::SheetKind;
 use super::sheet::{Loaded, Rows, Sheet};
 use crate::problem::{Position, Severity};
+use crate::schema::SheetKind;
 
 /// Reads a folder of CSV files. Each file named after a sheet becomes that
 /// sheet; other CSV files are noted and other files ignored.

@@ -13,13 +13,13 @@ use std::collections::{BTreeMap, BTreeSet};
 use chrono::NaiveDate;
 
 use super::rates::percent_to_decimal;
-use super::schema::{column, FIXINGS};
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;
 use crate::engine::floating::Fixings;
 use crate::problem::{Problem, Severity};
+use crate::schema::{column, FIXINGS};
 
 const INDEX: usize = column!(FIXINGS, "index");
 const DATE: usize = column!(FIXINGS, "date");
@@ -173,8 +173,8 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
-    use crate::book::schema::SheetKind;
     use crate::book::sheet::text_sheet;
+    use crate::schema::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

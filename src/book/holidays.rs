@@ -9,12 +9,12 @@ use std::sync::Arc;
 
 use chrono::NaiveDate;
 
-use super::schema::{column, HOLIDAYS};
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::calendar::Calendar;
 use crate::conventions::names::fold;
 use crate::problem::Problem;
+use crate::schema::{column, HOLIDAYS};
 
 const CALENDAR: usize = column!(HOLIDAYS, "calendar");
 const DATE: usize = column!(HOLIDAYS, "date");

@@ -3,7 +3,7 @@
 //!
 //! Readers never change an input file, never guess a day/month order, and
 //! never turn a spreadsheet float into a decimal except by its shortest
-//! round-trip text (in [`number`], the one border between the two). They
+//! round-trip text (in `number`, the one border between the two). They
 //! know nothing of the engine's arithmetic: they type terms and report where
 //! each came from.
 //!
@@ -24,7 +24,6 @@ mod picking;
 mod rates;
 mod read;
 mod row;
-pub mod schema;
 mod settings;
 mod sheet;
 mod sniff;
@@ -35,3 +34,6 @@ mod xlsx;
 
 pub use model::{AccountEntry, Book, GlCodes, SettingRow, StatementRow};
 pub use read::{check_unique_ids, contract_violations, read_book, ReadOptions};
+
+/// The book's format, described once (kept here too under its old path).
+pub use crate::schema;

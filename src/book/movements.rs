@@ -9,11 +9,11 @@
 use std::collections::BTreeMap;
 
 use super::accounts::Known;
-use super::schema::{column, MOVEMENTS};
 use super::sheet::Sheet;
 use super::table::{Ctx, Fields, Table};
 use crate::engine::Movement;
 use crate::problem::{Problem, Severity};
+use crate::schema::{column, MOVEMENTS};
 
 const ACCOUNT: usize = column!(MOVEMENTS, "account");
 const VALUE_DATE: usize = column!(MOVEMENTS, "value_date");

@@ -5,11 +5,11 @@
 //! This module only compares names and reports: it never opens a file and
 //! never reads a cell.
 
-use super::schema::SheetKind;
 use super::sheet::Loaded;
 use super::table::near_miss;
 use crate::conventions::names::fold;
 use crate::problem::{Position, Severity};
+use crate::schema::SheetKind;
 
 /// The sheets to read: one per known kind. Notes the sheets that are not
 /// read; a second sheet of a kind is an error.

@@ -14,12 +14,12 @@ use std::collections::BTreeMap;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
-use super::schema::{column, RATES};
 use super::sheet::Sheet;
 use super::table::{Ctx, Fields, Table};
 use crate::engine::floating::{FloatingSchedule, IndexRate, TierRate};
 use crate::engine::rates::RateSchedule;
 use crate::problem::{Problem, Severity};
+use crate::schema::{column, RATES};
 
 const RATE_REF: usize = column!(RATES, "rate_ref");
 const EFFECTIVE: usize = column!(RATES, "effective");
@@ -409,9 +409,9 @@ fn unit_warnings(
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
-    use crate::book::schema::IfBlank;
-    use crate::book::schema::SheetKind;
     use crate::book::sheet::text_sheet;
+    use crate::schema::IfBlank;
+    use crate::schema::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

@@ -16,13 +16,13 @@ use super::model::{AccountEntry, Book};
 use super::movements::Movements;
 use super::open::load;
 use super::rates::{self, Rates};
-use super::schema::SheetKind;
 use super::settings::{self, Settings, StatementEnd};
 use super::sheet::Sheet;
 use super::statements::Statements;
 use super::table::Ctx;
 use super::{movements, statements};
 use crate::problem::{a1_row, Position, Problem, Severity};
+use crate::schema::SheetKind;
 
 /// How to read a book.
 ///

@@ -7,11 +7,11 @@
 //! which only says how the Statements sheet is to be read.
 
 use super::model::SettingRow;
-use super::schema::{column, Choice, Kind, SETTINGS, SETTING_ROWS};
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::names::{fold, lookup, UnknownName};
 use crate::problem::{Problem, Severity};
+use crate::schema::{column, Choice, Kind, SETTINGS, SETTING_ROWS};
 
 const SETTING: usize = column!(SETTINGS, "setting");
 const VALUE: usize = column!(SETTINGS, "value");
@@ -167,9 +167,9 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
 mod tests {
     use super::*;
     use crate::book::cell::NumberStyle;
-    use crate::book::schema::Example;
-    use crate::book::schema::SheetKind;
     use crate::book::sheet::text_sheet;
+    use crate::schema::Example;
+    use crate::schema::SheetKind;
 
     fn ctx() -> Ctx<'static> {
         Ctx {

@@ -11,8 +11,8 @@ use std::borrow::Cow;
 use super::cell::shown;
 use super::csv_records::CsvRows;
 use super::row::Row;
-use super::schema::SheetKind;
 use crate::problem::{Position, Problem, Severity};
+use crate::schema::SheetKind;
 
 /// One sheet that was read.
 #[derive(Debug, Clone)]

@@ -12,11 +12,11 @@ use chrono::NaiveDate;
 
 use super::accounts::Known;
 use super::model::StatementRow;
-use super::schema::{column, STATEMENTS};
 use super::settings::StatementEnd;
 use super::sheet::Sheet;
 use super::table::{Ctx, Fields, Table};
 use crate::problem::{Problem, Severity};
+use crate::schema::{column, STATEMENTS};
 
 const ACCOUNT: usize = column!(STATEMENTS, "account");
 const PERIOD_START: usize = column!(STATEMENTS, "period_start");

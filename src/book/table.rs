@@ -14,10 +14,10 @@ use rust_decimal::Decimal;
 
 use super::cell::{self, shown, Cell, Issue, NumberStyle};
 use super::row::{Row, Shape};
-use super::schema::Column;
 use super::sheet::Sheet;
 use crate::conventions::names::{fold, UnknownName};
 use crate::problem::{a1, a1_row, column_letters, Position, Problem, Severity};
+use crate::schema::Column;
 
 /// What every sheet reader needs: the book's name for positions, and how
 /// it writes numbers.
@@ -820,9 +820,9 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::book::schema::SheetKind;
-    use crate::book::schema::{Example, IfBlank, Kind};
     use crate::book::sheet::Rows;
+    use crate::schema::SheetKind;
+    use crate::schema::{Example, IfBlank, Kind};
 
     const fn col(name: &'static str, required: bool) -> Column {
         Column {

@@ -18,9 +18,9 @@ use calamine::{open_workbook, Reader, SheetType, Xlsb, XlsbError};
 use super::cell::{lower_first, Cell};
 use super::picking::pick_sheets;
 use super::row::Row;
-use super::schema::SheetKind;
 use super::sheet::{Loaded, Rows, Sheet};
 use crate::problem::{Position, Severity};
+use crate::schema::SheetKind;
 
 /// The cells of one sheet, as (row, column, cell), blank cells left out.
 pub(crate) type Cells = Vec<(u32, u32, Cell)>;

@@ -15,10 +15,10 @@ use calamine::{open_workbook, Reader, Xlsx, XlsxError};
 
 use super::cell::{lower_first, Cell};
 use super::picking::pick_sheets;
-use super::schema::SheetKind;
 use super::sheet::Loaded;
 use super::workbook::{push_sheet, worksheet_names, Cells};
 use crate::problem::{Position, Severity};
+use crate::schema::SheetKind;
 
 /// Reads every sheet of a known kind of an xlsx workbook; the `Err` is a
 /// message about the file.

@@ -15,9 +15,9 @@ use std::path::PathBuf;
 use anyhow::{bail, Context, Result};
 
 use super::exit;
-use crate::book::schema::SheetKind;
 use crate::report::book_writer::{csv_name, BookWriter, Value, DATA_ROWS_PER_SHEET};
 use crate::sample::{Generator, MistakeKind, SheetCounts, SHEETS};
+use crate::schema::SheetKind;
 
 /// Accounts generated and written at a time.
 const CHUNK: u64 = 4096;

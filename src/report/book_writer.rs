@@ -21,7 +21,7 @@ use super::cells::{Cells, TextFigures};
 use super::error::ReportError;
 use super::layout::{self, Styles, MAX_FORMAT_DECIMALS, SHEET_ROW_LIMIT};
 use super::output;
-use crate::book::schema::{Layout, SheetKind};
+use crate::schema::{Layout, SheetKind};
 
 /// One cell of a row to write.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -132,7 +132,7 @@ impl BookWriter {
     /// [`ReportError`] when the target's folder is missing or a sheet cannot be set up.
     ///
     /// ```no_run
-    /// use ledgerate::book::schema::{Layout, SheetKind};
+    /// use ledgerate::schema::{Layout, SheetKind};
     /// use ledgerate::report::book_writer::{BookWriter, Value};
     /// let sheets = [Layout::every(SheetKind::Settings)];
     /// let mut w = BookWriter::xlsx(std::path::Path::new("book.xlsx"), &sheets, "A book", "2026-12-01".parse().unwrap())?;

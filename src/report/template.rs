@@ -1,7 +1,7 @@
 //! The blank input book of `ledgerate template`: every sheet and column an
 //! account book may have, a note on each header, drop-down lists for the
 //! named choices, date and number formats, and one example row per sheet,
-//! all as the book schema ([`crate::book::schema`]) describes them.
+//! all as the book schema ([`crate::schema`]) describes them.
 //!
 //! The example is an invented credit union, Harbourview Mutual, with one
 //! savings account. The template computes nothing: its example figures are
@@ -20,7 +20,7 @@ use super::cells::{Cells, TextFigures};
 use super::error::ReportError;
 use super::layout::{self, Styles};
 use super::output;
-use crate::book::schema::{Choice, Column, Example, Kind, SheetKind, SETTING_ROWS};
+use crate::schema::{Choice, Column, Example, Kind, SheetKind, SETTING_ROWS};
 
 /// Last row the validations and column formats cover.
 const LAST_ROW: RowNum = layout::SHEET_ROW_LIMIT - 1;

@@ -31,7 +31,6 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
-use crate::book::schema::{layout, Layout, SheetKind, ACCOUNTS, RATES};
 use crate::book::AccountEntry;
 use crate::conventions::calendar::Calendar;
 use crate::engine::floating::{FixingFallback, Fixings};
@@ -40,6 +39,7 @@ use crate::engine::reconcile::Tolerance;
 use crate::engine::{EngineError, Movement, RoundAt, TierMethod};
 use crate::pipeline::{run_account, BookAccount, Options};
 use crate::report::book_writer::Value;
+use crate::schema::{layout, Layout, SheetKind, ACCOUNTS, RATES};
 
 use catalogue::Product;
 use draft::Draft;
@@ -78,7 +78,7 @@ fn opt_date(d: Option<NaiveDate>) -> Value {
 /// rows fill, in their order (the row builders below make the cells in it).
 ///
 /// ```
-/// use ledgerate::book::schema::SheetKind;
+/// use ledgerate::schema::SheetKind;
 /// use ledgerate::sample::SHEETS;
 /// assert_eq!(SHEETS[3].sheet, SheetKind::Statements);
 /// assert_eq!(SHEETS[3].labels()[3], "posted_interest");
@@ -286,7 +286,7 @@ impl SheetCounts {
     /// The counts given, the other sheets none.
     ///
     /// ```
-    /// use ledgerate::book::schema::SheetKind;
+    /// use ledgerate::schema::SheetKind;
     /// use ledgerate::sample::SheetCounts;
     /// let c = SheetCounts::of(&[(SheetKind::Accounts, 10)]);
     /// assert_eq!((c.get(SheetKind::Accounts), c.get(SheetKind::Rates)), (10, 0));

@@ -8,11 +8,11 @@ use std::str::FromStr;
 
 use calamine::{open_workbook, open_workbook_auto, Data, HorizontalAlignment, Reader, Xlsx};
 use chrono::{NaiveDate, NaiveDateTime};
-use ledgerate::book::schema::{SheetKind, SETTING_ROWS};
 use ledgerate::engine::reconcile::Status;
 use ledgerate::problem::{Position, Problem, Severity};
 use ledgerate::report::model::*;
 use ledgerate::report::{write_report, write_template, ReportError};
+use ledgerate::schema::{SheetKind, SETTING_ROWS};
 use rust_decimal::Decimal;
 use sha2::{Digest, Sha256};
 

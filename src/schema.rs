@@ -70,7 +70,7 @@ impl SheetKind {
     /// The sheet's name as books.md writes it.
     ///
     /// ```
-    /// use ledgerate::book::schema::SheetKind;
+    /// use ledgerate::schema::SheetKind;
     /// assert_eq!(SheetKind::Statements.label(), "Statements");
     /// ```
     pub fn label(self) -> &'static str {
@@ -85,7 +85,7 @@ impl SheetKind {
     /// The sheet a name stands for (case, spaces, `_` and `-` ignored).
     ///
     /// ```
-    /// use ledgerate::book::schema::SheetKind;
+    /// use ledgerate::schema::SheetKind;
     /// assert_eq!(SheetKind::from_name("hol-i_days"), Some(SheetKind::Holidays));
     /// assert_eq!(SheetKind::from_name("Accounts 2"), None);
     /// ```
@@ -114,7 +114,7 @@ impl SheetSpec {
     /// [`column!`], which calls this when the program is built.
     ///
     /// ```
-    /// use ledgerate::book::schema::SheetKind;
+    /// use ledgerate::schema::SheetKind;
     /// let rates = SheetKind::Rates.spec();
     /// assert_eq!(rates.position("effective"), Some(1));
     /// assert_eq!(rates.position("Effective"), None);
@@ -161,13 +161,13 @@ const fn same(a: &str, b: &str) -> bool {
 /// not list stops the build rather than a run.
 ///
 /// ```
-/// use ledgerate::book::schema::{column, ACCOUNTS};
+/// use ledgerate::schema::{column, ACCOUNTS};
 /// const OPEN_DATE: usize = column!(ACCOUNTS, "open_date");
 /// assert_eq!(OPEN_DATE, 3);
 /// ```
 ///
 /// ```compile_fail
-/// use ledgerate::book::schema::{column, ACCOUNTS};
+/// use ledgerate::schema::{column, ACCOUNTS};
 /// const OPEN_DATE: usize = column!(ACCOUNTS, "open_dte");
 /// ```
 #[doc(hidden)]
@@ -189,7 +189,7 @@ pub use crate::schema_column as column;
 /// found when the program is built (see [`column!`]).
 ///
 /// ```
-/// use ledgerate::book::schema::{layout, Layout, RATES};
+/// use ledgerate::schema::{layout, Layout, RATES};
 /// const RATE_ROWS: Layout = layout!(RATES, "rate_ref", "effective", "tier_from");
 /// assert_eq!(RATE_ROWS.labels(), vec!["rate_ref", "effective", "tier_from"]);
 /// ```
@@ -197,9 +197,9 @@ pub use crate::schema_column as column;
 #[macro_export]
 macro_rules! schema_layout {
     ($sheet:expr $(, $name:literal)+ $(,)?) => {
-        $crate::book::schema::Layout::only(
+        $crate::schema::Layout::only(
             $sheet.kind,
-            &[$($crate::book::schema::column!($sheet, $name)),+],
+            &[$($crate::schema::column!($sheet, $name)),+],
         )
     };
 }
@@ -323,7 +323,7 @@ impl Choice {
     /// The canonical names offered, in their usual order.
     ///
     /// ```
-    /// use ledgerate::book::schema::Choice;
+    /// use ledgerate::schema::Choice;
     /// assert_eq!(Choice::DayCount.names().len(), 11);
     /// assert_eq!(Choice::TierMethod.names(), vec!["whole", "banded"]);
     /// ```
@@ -364,7 +364,7 @@ pub struct SettingSpec {
 /// sheet description of [`crate::report::book_writer`].
 ///
 /// ```
-/// use ledgerate::book::schema::{Layout, SheetKind};
+/// use ledgerate::schema::{Layout, SheetKind};
 /// let holidays = Layout::every(SheetKind::Holidays);
 /// assert_eq!(holidays.labels(), vec!["calendar", "date", "name"]);
 /// assert_eq!(Layout::only(SheetKind::Rates, &[0, 2]).labels(), vec!["rate_ref", "rate_percent"]);
