@@ -28,6 +28,8 @@
 //! - [`problem`]: a problem about an input (where: book, sheet, A1 cell; what
 //!   was found; what was expected; how to fix it), and the one order every
 //!   report lists problems in.
+//! - [`files`]: what a path is on disk (a FIFO, a device, a link to
+//!   nothing), so that only regular files and folders are read or replaced.
 //! - [`panics`]: a panic inside a library turned into an error the program
 //!   reports itself, without the library's panic text.
 //!
@@ -65,6 +67,7 @@ pub mod cli;
 pub mod conventions;
 pub mod engine;
 pub mod explain;
+pub mod files;
 pub mod panics;
 pub mod pipeline;
 pub mod problem;

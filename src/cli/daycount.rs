@@ -71,7 +71,7 @@ pub(crate) fn read_calendar(path: &Path) -> Result<Calendar> {
     let meta = std::fs::metadata(path)
         .with_context(|| format!("cannot read the calendar file {}", path.display()))?;
     if !meta.is_file() {
-        let kind = super::inputs::not_a_file_or_folder(path).unwrap_or("a folder");
+        let kind = crate::files::special_kind(path).unwrap_or("a folder");
         bail!(
             "the calendar file {} is {kind}, not a file: give a text file with one ISO date a line",
             path.display()

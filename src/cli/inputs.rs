@@ -64,39 +64,11 @@ pub fn fingerprint(path: &Path) -> Result<InputFile> {
     })
 }
 
-/// What a path that exists is when it is neither a regular file nor a
-/// folder, in words; `None` for a file, a folder (or a link to either) and a
-/// path that does not exist at all.
-pub fn not_a_file_or_folder(path: &Path) -> Option<&'static str> {
-    std::fs::symlink_metadata(path).ok()?;
-    let Ok(meta) = std::fs::metadata(path) else {
-        return Some("a link to nothing");
-    };
-    if meta.is_file() || meta.is_dir() {
-        return None;
-    }
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::FileTypeExt;
-        let t = meta.file_type();
-        if t.is_fifo() {
-            return Some("a FIFO (named pipe)");
-        }
-        if t.is_socket() {
-            return Some("a socket");
-        }
-        if t.is_char_device() || t.is_block_device() {
-            return Some("a device");
-        }
-    }
-    Some("neither a file nor a folder")
-}
-
 /// Checks that every book exists and is a file or a folder: reading a FIFO
 /// or a device would wait for ever or never end.
 pub fn check_books_exist(books: &[PathBuf]) -> Result<()> {
     for b in books {
-        if let Some(kind) = not_a_file_or_folder(b) {
+        if let Some(kind) = crate::files::special_kind(b) {
             bail!(
                 "the book {} is {kind}: give the path of a workbook file (.xlsx, .xlsm, .xlsb, .xls, .ods) or of a folder of CSV files",
                 b.display()

@@ -32,33 +32,6 @@ pub(crate) fn guarded<T>(
     })
 }
 
-/// What an existing target that is not a regular file is, in words; `None`
-/// for a regular file (or a link to one) and for a target that does not exist.
-fn not_a_file(target: &Path) -> Option<&'static str> {
-    std::fs::symlink_metadata(target).ok()?;
-    let Ok(meta) = std::fs::metadata(target) else {
-        return Some("a link to nothing");
-    };
-    if meta.is_file() {
-        return None;
-    }
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::FileTypeExt;
-        let t = meta.file_type();
-        if t.is_fifo() {
-            return Some("a FIFO (named pipe)");
-        }
-        if t.is_socket() {
-            return Some("a socket");
-        }
-        if t.is_char_device() || t.is_block_device() {
-            return Some("a device");
-        }
-    }
-    Some("not a regular file")
-}
-
 /// Where the finished workbook is renamed to: the target itself, or, when
 /// the target is a link to a regular file, the file it links to (the link
 /// stays a link).
@@ -77,7 +50,7 @@ pub(crate) fn target_dir(target: &Path) -> Result<PathBuf, ReportError> {
     if target.is_dir() {
         return Err(ReportError::TargetIsDirectory(target.to_path_buf()));
     }
-    if let Some(kind) = not_a_file(target) {
+    if let Some(kind) = crate::files::special_kind(target) {
         return Err(ReportError::TargetNotFile {
             path: target.to_path_buf(),
             kind,
