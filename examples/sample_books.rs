@@ -15,6 +15,9 @@ use ledgerate::engine::rates::{RateSchedule, RateTable};
 use ledgerate::engine::reconcile::expected_over;
 use ledgerate::engine::run::{accrue, RunOptions};
 use ledgerate::engine::{AccountTerms, Inputs, Movement};
+use ledgerate::schema::{
+    layout, Layout, ACCOUNTS, FIXINGS, HOLIDAYS, MOVEMENTS, RATES, SETTINGS, STATEMENTS,
+};
 use rust_decimal::Decimal;
 use rust_xlsxwriter::{Format, Workbook};
 
@@ -53,7 +56,10 @@ struct Sheet {
     rows: Vec<Vec<Cell>>,
 }
 
-const ACCOUNT_COLUMNS: [&str; 25] = [
+/// The Accounts columns the demo book fills, checked against the book schema
+/// when the example is built.
+const ACCOUNT_LAYOUT: Layout = layout!(
+    ACCOUNTS,
     "account",
     "name",
     "currency",
@@ -79,16 +85,17 @@ const ACCOUNT_COLUMNS: [&str; 25] = [
     "rate_method",
     "lookback_days",
     "observation_shift",
-];
+);
 
-/// One account row: the columns of `ACCOUNT_COLUMNS`, by name.
+/// One account row: the columns of `ACCOUNT_LAYOUT`, by name.
 fn account(fields: &[(&str, Cell)]) -> Vec<Cell> {
-    ACCOUNT_COLUMNS
-        .iter()
+    ACCOUNT_LAYOUT
+        .labels()
+        .into_iter()
         .map(|c| {
             fields
                 .iter()
-                .find(|(k, _)| k == c)
+                .find(|(k, _)| *k == c)
                 .map_or(Cell::Empty, |(_, v)| v.clone())
         })
         .collect()
@@ -517,12 +524,13 @@ fn sheets() -> Vec<Sheet> {
     vec![
         Sheet {
             name: "Accounts",
-            columns: ACCOUNT_COLUMNS.to_vec(),
+            columns: ACCOUNT_LAYOUT.labels(),
             rows: accounts,
         },
         Sheet {
             name: "Rates",
-            columns: vec![
+            columns: layout!(
+                RATES,
                 "rate_ref",
                 "effective",
                 "rate_percent",
@@ -530,33 +538,36 @@ fn sheets() -> Vec<Sheet> {
                 "index",
                 "spread_bp",
                 "floor_percent",
-            ],
+            )
+            .labels(),
             rows: rates,
         },
         Sheet {
             name: "Fixings",
-            columns: vec!["index", "date", "rate_percent"],
+            columns: layout!(FIXINGS, "index", "date", "rate_percent").labels(),
             rows: fixings,
         },
         Sheet {
             name: "Movements",
-            columns: vec![
+            columns: layout!(
+                MOVEMENTS,
                 "account",
                 "value_date",
                 "amount",
                 "booking_date",
                 "reference",
-            ],
+            )
+            .labels(),
             rows: movements,
         },
         Sheet {
             name: "Holidays",
-            columns: vec!["calendar", "date", "name"],
+            columns: layout!(HOLIDAYS, "calendar", "date", "name").labels(),
             rows: holidays,
         },
         Sheet {
             name: "Settings",
-            columns: vec!["setting", "value"],
+            columns: layout!(SETTINGS, "setting", "value").labels(),
             rows: settings,
         },
     ]
@@ -811,13 +822,15 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         3,
         Sheet {
             name: "Statements",
-            columns: vec![
+            columns: layout!(
+                STATEMENTS,
                 "account",
                 "period_start",
                 "period_end",
                 "posted_interest",
                 "reference",
-            ],
+            )
+            .labels(),
             rows,
         },
     );
