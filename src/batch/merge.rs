@@ -2,8 +2,8 @@
 //! the report one run over all the accounts would have given.
 //!
 //! Takes the rows each shard's workbook holds (read back by
-//! `report::readback`), checks that the shards come from the same books and
-//! settings, puts the rows back in book order and adds them up again through
+//! `report::readback`) once `split` has proven them one complete split of
+//! one run, puts the rows back in book order and adds them up again through
 //! the batch's own [`Totals`], [`StatusCounts`] and [`Journal`]. It never
 //! changes a figure of a row, never reads or writes a file, and never keeps
 //! a problem twice.
@@ -13,9 +13,10 @@ use std::collections::HashMap;
 use chrono::NaiveDateTime;
 
 use super::journal::Journal;
+use super::split::OneSplit;
 use super::totals::{StatusCounts, Totals};
 use crate::problem::{sort_problems, Problem};
-use crate::report::model::{AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts, Setting};
+use crate::report::model::{AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts};
 use crate::report::readback::RunRows;
 
 /// Shards that cannot be combined.
@@ -24,33 +25,32 @@ pub enum MergeError {
     /// Nothing to merge.
     #[error("no shard workbooks to merge")]
     NoShards,
-    /// Shards of different books.
-    #[error(
-        "the shards were run on different books (paths or SHA-256 differ on their Run sheets)"
-    )]
-    DifferentBooks,
-    /// Shards run with different settings.
-    #[error("the shards were run with different settings (see their Run sheets)")]
-    DifferentSettings,
+    /// The workbooks are not one complete split of one run: each finding
+    /// names its workbooks and what is missing, repeated or different.
+    #[error("the shard workbooks are not one complete split of one run: {}; nothing was written", .0.join("; "))]
+    NotOneSplit(Vec<String>),
 }
 
-/// Merges shard results: rows put back in book order (`order`: account id
-/// to its position across the books), totals, counts and journal added up
-/// again, problems listed once each in the order every report lists them.
-/// `accounts_read` and `accounts_failed` are the sums over the shards.
-///
-/// # Errors
-/// [`MergeError`] when there are no shards, or they come from different
-/// books or settings.
+/// Merges shards proven to be one split: rows put back in book order
+/// (`order`: account id to its position across the books), totals, counts
+/// and journal added up again, problems listed once each in the order every
+/// report lists them. `accounts_read` and `accounts_failed` are the sums
+/// over the shards.
 pub fn merge(
-    parts: Vec<RunRows>,
+    split: OneSplit,
     order: &HashMap<String, usize>,
     run_time: NaiveDateTime,
     command_line: String,
-) -> Result<Report, MergeError> {
-    let (facts, settings) = same_run(&parts)?;
+) -> Report {
+    let OneSplit {
+        first,
+        rest,
+        settings,
+    } = split;
+    let facts = first.facts.clone();
     let mut rows = Combined::default();
-    for part in parts {
+    rows.add(first);
+    for part in rest {
         rows.add(part);
     }
     rows.put_in_book_order(order);
@@ -61,7 +61,7 @@ pub fn merge(
     for r in &rows.reconciliation {
         counts.add(r.status);
     }
-    Ok(Report {
+    Report {
         totals: totals.rows(),
         status_counts: counts.rows(),
         facts: RunFacts {
@@ -78,26 +78,7 @@ pub fn merge(
         journal: rows.journal.lines(),
         daily: rows.daily,
         problems: rows.problems,
-    })
-}
-
-/// The first shard's facts and its settings without `shard`, once every
-/// shard is known to share the books and those settings.
-fn same_run(parts: &[RunRows]) -> Result<(RunFacts, Vec<Setting>), MergeError> {
-    let without_shard = |s: &[Setting]| -> Vec<Setting> {
-        s.iter().filter(|x| x.name != "shard").cloned().collect()
-    };
-    let first = parts.first().ok_or(MergeError::NoShards)?;
-    let settings = without_shard(&first.facts.settings);
-    for p in parts.iter().skip(1) {
-        if p.facts.inputs != first.facts.inputs {
-            return Err(MergeError::DifferentBooks);
-        }
-        if without_shard(&p.facts.settings) != settings {
-            return Err(MergeError::DifferentSettings);
-        }
     }
-    Ok((first.facts.clone(), settings))
 }
 
 /// Every shard's rows together.

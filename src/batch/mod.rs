@@ -8,6 +8,7 @@
 
 pub mod journal;
 pub mod merge;
+pub mod split;
 pub mod totals;
 
 use std::collections::HashMap;

@@ -249,10 +249,23 @@ fn book_with_statements(count: usize) -> Book {
     b
 }
 
-/// What a shard's workbook gives back of a batch.
-fn read_back(r: BatchResult) -> crate::report::readback::RunRows {
+/// What shard `k` of `n` (a whole run for `None`) gives back of a batch,
+/// from the workbook `file`.
+fn read_back(file: &str, shard: Option<(u32, u32)>, r: BatchResult) -> split::Shard {
     use crate::report::model::{InputFile, RunFacts, Setting, SettingSource};
-    crate::report::readback::RunRows {
+    let mut settings = vec![Setting {
+        name: "cutoff".into(),
+        value: "2026-11-30".into(),
+        source: SettingSource::Option,
+    }];
+    if let Some((k, n)) = shard {
+        settings.push(Setting {
+            name: "shard".into(),
+            value: format!("{k}/{n}"),
+            source: SettingSource::Option,
+        });
+    }
+    let rows = crate::report::readback::RunRows {
         facts: RunFacts {
             program: "ledgerate test".into(),
             command_line: "ledgerate run test.xlsx".into(),
@@ -261,11 +274,7 @@ fn read_back(r: BatchResult) -> crate::report::readback::RunRows {
                 size: 1,
                 sha256: "00".into(),
             }],
-            settings: vec![Setting {
-                name: "cutoff".into(),
-                value: "2026-11-30".into(),
-                source: SettingSource::Option,
-            }],
+            settings,
             run_time: d("2026-12-01").and_hms_opt(9, 0, 0).unwrap(),
             cutoff: d("2026-11-30"),
             window_start: d("2026-11-01"),
@@ -278,7 +287,20 @@ fn read_back(r: BatchResult) -> crate::report::readback::RunRows {
         journal: r.journal,
         daily: r.daily,
         problems: r.problems,
+    };
+    split::Shard {
+        file: file.into(),
+        rows,
     }
+}
+
+/// Shard `k` of `n` of `books`, read back from `file`.
+fn shard_of_books(books: &[Book], file: &str, k: u32, n: u32) -> split::Shard {
+    let s = BatchSettings {
+        shard: Some((k, n)),
+        ..settings()
+    };
+    read_back(file, Some((k, n)), run_books(books, &s, &|| {}))
 }
 
 /// Shards of a run, merged in any order, give the single run's rows, totals,
@@ -289,16 +311,11 @@ fn shards_merged_equal_the_single_run() {
     let single = run_books(&books, &settings(), &|| {});
     assert!(single.status_counts.len() > 1, "{:?}", single.status_counts);
     let mut parts: Vec<_> = (1..=3)
-        .map(|k| {
-            let s = BatchSettings {
-                shard: Some((k, 3)),
-                ..settings()
-            };
-            run_books(&books, &s, &|| {})
-        })
+        .map(|k| shard_of_books(&books, &format!("s{k}.xlsx"), k, 3))
         .collect();
     for p in &parts {
-        assert!(p.accounts_computed > 0 && p.accounts_computed < single.accounts_computed);
+        let computed = p.rows.facts.accounts_computed;
+        assert!(computed > 0 && computed < single.accounts_computed);
     }
     parts.reverse();
     let order: HashMap<String, usize> = books[0]
@@ -309,12 +326,11 @@ fn shards_merged_equal_the_single_run() {
         .collect();
     let time = d("2026-12-02").and_hms_opt(8, 0, 0).unwrap();
     let merged = merge::merge(
-        parts.into_iter().map(read_back).collect(),
+        split::check(parts).unwrap(),
         &order,
         time,
         "ledgerate merge".into(),
-    )
-    .unwrap();
+    );
     assert_eq!(merged.accruals, single.accruals);
     assert_eq!(merged.totals, single.totals);
     assert_eq!(merged.reconciliation, single.reconciliation);
@@ -323,34 +339,103 @@ fn shards_merged_equal_the_single_run() {
     assert_eq!(merged.facts.accounts_read, single.accounts_read);
     assert_eq!(merged.facts.accounts_computed, single.accounts_computed);
     assert_eq!(merged.facts.run_time, time);
+    assert!(merged.facts.settings.iter().all(|s| s.name != "shard"));
+}
+
+/// What the split check says of a set of shards (empty when it passes).
+fn findings(parts: Vec<split::Shard>) -> Vec<String> {
+    match split::check(parts) {
+        Ok(_) => Vec::new(),
+        Err(merge::MergeError::NotOneSplit(found)) => found,
+        Err(e) => vec![e.to_string()],
+    }
 }
 
 #[test]
-fn shards_of_other_books_or_settings_are_not_merged() {
-    let books = [book(6)];
-    let part = || read_back(run_books(&books, &settings(), &|| {}));
-    let order = HashMap::new();
-    let time = d("2026-12-02").and_hms_opt(8, 0, 0).unwrap();
-    let merged = |parts| merge::merge(parts, &order, time, String::new()).map(|_| ());
-    assert_eq!(merged(vec![]), Err(merge::MergeError::NoShards));
-    let mut other_book = part();
-    other_book.facts.inputs[0].sha256 = "ff".into();
+fn only_one_complete_split_of_one_run_is_merged() {
+    let books = [book(12)];
+    let part = |file: &str, k, n| shard_of_books(&books, file, k, n);
     assert_eq!(
-        merged(vec![part(), other_book]),
-        Err(merge::MergeError::DifferentBooks)
+        split::check(vec![]).map(|_| ()),
+        Err(merge::MergeError::NoShards)
     );
-    let mut other_cutoff = part();
-    other_cutoff.facts.settings[0].value = "2026-11-29".into();
+    assert!(findings(vec![part("a", 1, 2), part("b", 2, 2)]).is_empty());
+    assert!(findings(vec![part("a", 1, 1)]).is_empty());
     assert_eq!(
-        merged(vec![part(), other_cutoff]),
-        Err(merge::MergeError::DifferentSettings)
+        findings(vec![part("a", 1, 3), part("b", 2, 3), part("c", 2, 3)]),
+        ["shard 2/3 given twice: b and c", "shard 3/3 missing"]
     );
-    // Only the shard setting may differ.
-    let mut shard = part();
-    shard.facts.settings.push(crate::report::model::Setting {
-        name: "shard".into(),
-        value: "2/2".into(),
-        source: crate::report::model::SettingSource::Option,
-    });
-    assert_eq!(merged(vec![part(), shard]), Ok(()));
+    assert_eq!(
+        findings(vec![
+            part("a", 1, 3),
+            part("b", 2, 3),
+            part("c", 3, 3),
+            part("d", 1, 2)
+        ]),
+        ["d is shard 1/2 but the others are of 3"]
+    );
+    assert_eq!(
+        findings(vec![part("a", 1, 3), part("d", 1, 2)]),
+        ["d is shard 1/2 but a is of 3", "shards 2/3 and 3/3 missing"]
+    );
+    let whole = |file: &str| read_back(file, None, run_books(&books, &settings(), &|| {}));
+    let found = findings(vec![whole("a"), whole("b")]);
+    assert_eq!(found.len(), 2, "{found:?}");
+    assert!(
+        found[0].starts_with("a is a whole run, not a shard"),
+        "{found:?}"
+    );
+    assert!(
+        found[1].starts_with("b is a whole run, not a shard"),
+        "{found:?}"
+    );
+    let mut other_book = part("b", 2, 2);
+    other_book.rows.facts.inputs[0].sha256 = "ff".into();
+    let found = findings(vec![part("a", 1, 2), other_book]);
+    assert_eq!(found.len(), 1, "{found:?}");
+    assert!(
+        found[0].starts_with("b was run on other books than a: test.xlsx had SHA-256 ff"),
+        "{found:?}"
+    );
+    let mut other_cutoff = part("b", 2, 2);
+    other_cutoff.rows.facts.settings[0].value = "2026-11-29".into();
+    let found = findings(vec![part("a", 1, 2), other_cutoff]);
+    assert_eq!(found.len(), 1, "{found:?}");
+    assert!(
+        found[0].starts_with(
+            "b was run with other settings than a: cutoff is 2026-11-29 (command line) there \
+             and 2026-11-30 (command line) in a"
+        ),
+        "{found:?}"
+    );
+}
+
+#[test]
+fn a_shard_holding_another_shards_account_is_refused() {
+    let books = [book(12)];
+    let mut first = shard_of_books(&books, "a", 1, 2);
+    let second = shard_of_books(&books, "b", 2, 2);
+    let moved = second.rows.accruals[0].clone();
+    first.rows.accruals.push(moved.clone());
+    assert_eq!(
+        findings(vec![first, second]),
+        [format!(
+            "a is shard 1/2 but holds account {}, which is in shard 2/2",
+            moved.account
+        )]
+    );
+}
+
+#[test]
+fn many_missing_shards_are_counted_not_listed() {
+    let books = [book(2)];
+    let found = findings(vec![shard_of_books(&books, "a", 2, 4_000_000_000)]);
+    assert_eq!(
+        found,
+        [
+            "shards 1/4000000000, 3/4000000000, 4/4000000000, 5/4000000000, 6/4000000000, \
+          7/4000000000, 8/4000000000, 9/4000000000, 10/4000000000 and 11/4000000000 \
+          and 3999999989 more missing"
+        ]
+    );
 }

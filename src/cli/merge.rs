@@ -2,7 +2,9 @@
 //! shard runs (`run --shard K/N`), equal in every figure to one run over all
 //! the accounts. The input books must still be where the shards read them
 //! (on shared storage, say): merge re-reads them for the order of accounts
-//! and checks their SHA-256 against the shards' Run sheets.
+//! and checks their SHA-256 against the shards' Run sheets. Before any book is
+//! re-read or any file written, the shards are proven one complete split of
+//! one run (`batch::split`): same books, settings and N, each K once.
 
 use std::collections::HashMap;
 use std::io::Write;
@@ -14,10 +16,11 @@ use super::inputs::{check_output_is_not_an_input, fingerprint};
 use super::summary::print_summary;
 use super::{exit, run_time};
 use crate::batch::merge::merge;
+use crate::batch::split::{self, Shard};
 use crate::book::{read_book, ReadOptions};
 use crate::problem::Severity;
 use crate::report::model::RunFacts;
-use crate::report::readback::{read_workbook, RunRows};
+use crate::report::readback::read_workbook;
 
 /// Arguments of `merge`.
 #[derive(Debug, clap::Args)]
@@ -36,30 +39,27 @@ pub struct Args {
 /// Runs the command.
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_output_is_not_an_input(&args.out, &args.shards)?;
-    let parts = read_shards(&args.shards)?;
-    let first = parts
-        .first()
-        .ok_or_else(|| anyhow!("no shard workbooks given"))?;
-    let books: Vec<PathBuf> = first
-        .facts
+    // Proven one complete split before any book is re-read or a file written.
+    let split = split::check(read_shards(&args.shards)?).map_err(|e| anyhow!("{e}"))?;
+    let books: Vec<PathBuf> = split
+        .facts()
         .inputs
         .iter()
         .map(|i| PathBuf::from(&i.path))
         .collect();
     check_output_is_not_an_input(&args.out, &books)?;
-    let order = book_order(&first.facts)?;
+    let order = book_order(split.facts())?;
     let shards: Vec<String> = args
         .shards
         .iter()
         .map(|s| s.display().to_string())
         .collect();
     let report = merge(
-        parts,
+        split,
         &order,
         run_time(args.fixed_time.as_deref())?,
         format!("ledgerate merge {}", shards.join(" ")),
-    )
-    .map_err(|e| anyhow!("{e}"))?;
+    );
     crate::report::write_report(&report, &args.out)
         .with_context(|| format!("cannot write the workbook {}", args.out.display()))?;
     print_summary(out, &report, &args.out)?;
@@ -77,14 +77,18 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
 }
 
 /// Every shard workbook read back, in the order given.
-fn read_shards(shards: &[PathBuf]) -> Result<Vec<RunRows>> {
+fn read_shards(shards: &[PathBuf]) -> Result<Vec<Shard>> {
     shards
         .iter()
         .map(|s| {
             if !s.exists() {
                 bail!("the shard workbook {} does not exist", s.display());
             }
-            read_workbook(s).map_err(|e| anyhow!("{e}"))
+            let rows = read_workbook(s).map_err(|e| anyhow!("{e}"))?;
+            Ok(Shard {
+                file: s.display().to_string(),
+                rows,
+            })
         })
         .collect()
 }

@@ -12,16 +12,17 @@
 //! names the workbook, sheet and cell, and it never reads a workbook it did
 //! not write.
 
-use std::collections::HashMap;
+use std::collections::{BTreeMap, HashMap};
 use std::fs::File;
 use std::io::BufReader;
 use std::path::{Path, PathBuf};
 
-use calamine::{open_workbook_auto, Data, DataType, Reader, Sheets};
+use calamine::{open_workbook, Data, DataType, Reader, Xlsx, XlsxError};
 use chrono::{NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
 use super::error::ReportError;
+use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
     AccrualLine, DailyLine, InputFile, JournalLine, ReconciliationLine, RunFacts, Setting,
     SettingSource,
@@ -29,7 +30,7 @@ use super::model::{
 use super::workbook::{
     is_writer_note, ACCOUNTS_LEFT_OUT, ACCOUNTS_READ, ACCRUALS_HEADER, DAILY_HEADER, INPUTS_HEADER,
     JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM,
-    RUN_TIME, SETTINGS_HEADER,
+    RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -85,11 +86,23 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
     })
 }
 
+/// Columns the writer writes on the Run sheet: those of its widest table.
+const RUN_COLUMNS: u32 = if INPUTS_HEADER.len() > SETTINGS_HEADER.len() {
+    INPUTS_HEADER.len() as u32
+} else {
+    SETTINGS_HEADER.len() as u32
+};
+
 /// An open workbook that ledgerate wrote.
 struct Written {
     path: PathBuf,
-    sheets: Sheets<BufReader<File>>,
+    sheets: Xlsx<BufReader<File>>,
 }
+
+/// The non-blank rows of one sheet, in row order: each 0-based row with its
+/// cells from column A (blank cells as [`Data::Empty`]). A row the sheet
+/// skips is blank.
+type SheetRows = Vec<(u32, Vec<Data>)>;
 
 /// One data row of a list sheet: where it is and its cells.
 struct Row<'a> {
@@ -121,14 +134,78 @@ impl List {
 
 impl Written {
     fn open(path: &Path) -> Result<Written, ReportError> {
-        let sheets = open_workbook_auto(path).map_err(|e| ReportError::Unreadable {
-            path: path.to_path_buf(),
-            why: e.to_string(),
-        })?;
+        let sheets: Xlsx<BufReader<File>> =
+            open_workbook(path).map_err(|e: XlsxError| ReportError::Unreadable {
+                path: path.to_path_buf(),
+                why: e.to_string(),
+            })?;
         Ok(Written {
             path: path.to_path_buf(),
             sheets,
         })
+    }
+
+    /// Every non-blank row of one sheet, streamed cell by cell: a cell
+    /// costs itself, never a grid up to it. A cell at or right of column
+    /// `width` (the columns the writer writes on this sheet), or below the
+    /// last row a sheet can hold, is refused by its place.
+    fn sheet_rows(&mut self, name: &str, width: u32) -> Result<SheetRows, ReportError> {
+        let mut rows: BTreeMap<u32, Vec<Data>> = BTreeMap::new();
+        let mut far: Option<(u32, u32)> = None;
+        {
+            let mut reader =
+                self.sheets
+                    .worksheet_cells_reader(name)
+                    .map_err(|e| ReportError::Unreadable {
+                        path: self.path.clone(),
+                        why: format!("sheet {name}: {e}"),
+                    })?;
+            loop {
+                let cell = match reader.next_cell() {
+                    Ok(Some(c)) => c,
+                    Ok(None) => break,
+                    Err(e) => {
+                        return Err(ReportError::Unreadable {
+                            path: self.path.clone(),
+                            why: format!("sheet {name}: {e}"),
+                        })
+                    }
+                };
+                let (r, c) = cell.get_position();
+                if c >= width || r >= SHEET_ROW_LIMIT {
+                    far = Some((r, c));
+                    break;
+                }
+                let value = Data::from(cell.get_value().clone());
+                if matches!(value, Data::Empty) {
+                    continue;
+                }
+                let row = rows.entry(r).or_default();
+                let at = usize::try_from(c).unwrap_or(usize::MAX);
+                if row.len() <= at {
+                    row.resize(at.saturating_add(1), Data::Empty);
+                }
+                if let Some(slot) = row.get_mut(at) {
+                    *slot = value;
+                }
+            }
+        }
+        if let Some((r, c)) = far {
+            return Err(self.far_cell(name, width, r, c));
+        }
+        Ok(rows.into_iter().collect())
+    }
+
+    /// A cell where the writer never writes one.
+    fn far_cell(&self, sheet: &str, width: u32, row: u32, col: u32) -> ReportError {
+        let last = a1(0, width.saturating_sub(1));
+        let last_col = last.trim_end_matches(|c: char| c.is_ascii_digit());
+        let expected = if col >= width {
+            format!("nothing right of column {last_col} (the writer writes {width} columns on this sheet)")
+        } else {
+            format!("nothing below row {SHEET_ROW_LIMIT} (the last row a sheet holds)")
+        };
+        self.not_written(sheet, &a1(row, col), "a cell", &expected)
     }
 
     fn not_written(&self, sheet: &str, cell: &str, found: &str, expected: &str) -> ReportError {
@@ -145,18 +222,6 @@ impl Written {
         self.not_written(sheet, "", "no such sheet", &format!("a {sheet} sheet"))
     }
 
-    /// Every row of one sheet.
-    fn sheet_rows(&mut self, name: &str) -> Result<Vec<Vec<Data>>, ReportError> {
-        let range = self
-            .sheets
-            .worksheet_range(name)
-            .map_err(|e| ReportError::Unreadable {
-                path: self.path.clone(),
-                why: e.to_string(),
-            })?;
-        Ok(range.rows().map(<[Data]>::to_vec).collect())
-    }
-
     /// The list `base` over its continuation sheets, each header checked
     /// against `header`; `None` when the workbook has no such sheet.
     fn list(&mut self, base: &str, header: &[&str]) -> Result<Option<List>, ReportError> {
@@ -171,10 +236,11 @@ impl Written {
         }
         let mut rows = Vec::new();
         for (index, name) in sheets.iter().enumerate() {
-            let mut sheet = self.sheet_rows(name)?.into_iter();
+            let width = u32::try_from(header.len()).unwrap_or(u32::MAX);
+            let mut sheet = self.sheet_rows(name, width)?.into_iter().peekable();
             let found: Vec<String> = sheet
-                .next()
-                .map(|r| r.iter().map(ToString::to_string).collect())
+                .next_if(|(row, _)| *row == 0)
+                .map(|(_, r)| r.iter().map(ToString::to_string).collect())
                 .unwrap_or_default();
             if found.iter().map(String::as_str).ne(header.iter().copied()) {
                 return Err(self.not_written(
@@ -184,12 +250,7 @@ impl Written {
                     &header.join(", "),
                 ));
             }
-            rows.extend(
-                (1u32..)
-                    .zip(sheet)
-                    .filter(|(_, r)| r.iter().any(|c| !matches!(c, Data::Empty)))
-                    .map(|(row, cells)| (index, row, cells)),
-            );
+            rows.extend(sheet.map(|(row, cells)| (index, row, cells)));
         }
         Ok(Some(List { sheets, rows }))
     }
@@ -210,7 +271,7 @@ impl Written {
                 "the Run sheet of a ledgerate workbook",
             ));
         }
-        let rows = self.sheet_rows(RUN)?;
+        let rows = self.sheet_rows(RUN, RUN_COLUMNS)?;
         let absent = |what: &str| {
             self.not_written(
                 RUN,
@@ -421,11 +482,11 @@ impl Written {
         if !self.sheets.sheet_names().iter().any(|n| n == SUMMARY) {
             return Err(self.missing(SUMMARY));
         }
-        let rows = self.sheet_rows(SUMMARY)?;
+        let rows = self.sheet_rows(SUMMARY, SUMMARY_COLS.into())?;
         let count = |label: &str| {
             rows.iter()
-                .find(|r| text(r, 0) == label)
-                .and_then(|r| whole(r, 1))
+                .find(|(_, r)| text(r, 0) == label)
+                .and_then(|(_, r)| whole(r, 1))
                 .unwrap_or(0)
         };
         Ok((count(ACCOUNTS_READ), count(ACCOUNTS_LEFT_OUT)))
@@ -443,21 +504,27 @@ fn is_part_of(name: &str, base: &str) -> bool {
 }
 
 /// Column B of the row whose column A is `label`.
-fn labelled<'r>(rows: &'r [Vec<Data>], label: &str) -> Option<&'r Data> {
+fn labelled<'r>(rows: &'r SheetRows, label: &str) -> Option<&'r Data> {
     rows.iter()
-        .find(|r| text(r, 0) == label)
-        .map(|r| r.get(1).unwrap_or(&Data::Empty))
+        .find(|(_, r)| text(r, 0) == label)
+        .map(|(_, r)| r.get(1).unwrap_or(&Data::Empty))
 }
 
 /// The rows under the table whose header starts with `header`'s first
-/// label, up to the first blank row.
-fn table<'r>(rows: &'r [Vec<Data>], header: &[&str]) -> Vec<&'r [Data]> {
+/// label, up to the first blank row (a row the sheet skips).
+fn table<'r>(rows: &'r SheetRows, header: &[&str]) -> Vec<&'r [Data]> {
     let title = header.first().copied().unwrap_or_default();
-    rows.iter()
-        .skip_while(|r| text(r, 0) != title)
-        .skip(1)
-        .take_while(|r| r.iter().any(|c| !matches!(c, Data::Empty)))
-        .map(Vec::as_slice)
+    let mut below = rows.iter().skip_while(|(_, r)| text(r, 0) != title);
+    let Some((mut last, _)) = below.next() else {
+        return Vec::new();
+    };
+    below
+        .take_while(|(row, _)| {
+            let next = last.checked_add(1) == Some(*row);
+            last = *row;
+            next
+        })
+        .map(|(_, r)| r.as_slice())
         .collect()
 }
 

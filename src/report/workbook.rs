@@ -790,7 +790,7 @@ struct SummaryPlaces {
     rows_used: RowNum,
 }
 
-const SUMMARY_COLS: ColNum = 6;
+pub(crate) const SUMMARY_COLS: ColNum = 6;
 
 /// The Summary: title and caution, the run's facts, totals by currency,
 /// counts by status, widths and the variance chart. The problem and text

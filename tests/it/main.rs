@@ -20,6 +20,7 @@ mod cli_shards;
 mod explain_matches_run;
 mod hostile_inputs;
 mod layers;
+mod merge_safety;
 mod output_safety;
 mod quantlib_daycount;
 mod quantlib_overnight;
