@@ -103,6 +103,7 @@ fn bash_completes_the_commands_and_their_options() {
         ["--fail-on-variance"]
     );
     assert_eq!(bash_completes("ledgerate completions p"), ["powershell"]);
+    assert_eq!(bash_completes("ledgerate sample --format c"), ["csv"]);
 }
 
 #[test]
@@ -333,6 +334,30 @@ fn the_examples_name_the_readme_sample_book_and_cutoff() {
     let readme =
         std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("README.md")).unwrap();
     assert!(readme.contains("sample-books/harbourview-2026-11.xlsx"));
+}
+
+#[test]
+fn the_readme_and_the_user_guide_list_every_command() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let readme = std::fs::read_to_string(root.join("README.md")).unwrap();
+    let table = readme
+        .split("## Commands")
+        .nth(1)
+        .and_then(|t| t.split("\n## ").next())
+        .unwrap();
+    let guide = std::fs::read_to_string(root.join("docs/user-guide.md")).unwrap();
+    let synopsis = guide.split("## 4. Commands").nth(1).unwrap();
+    let synopsis = synopsis.split("### 4.1").next().unwrap();
+    for name in commands() {
+        assert!(
+            table.contains(&format!("`ledgerate {name}")),
+            "README's Commands table does not list {name}"
+        );
+        assert!(
+            synopsis.contains(&format!("ledgerate {name} ")),
+            "the user guide's list of commands does not name {name}"
+        );
+    }
 }
 
 #[test]
