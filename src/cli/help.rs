@@ -136,7 +136,7 @@ mod tests {
         for (code, words) in [
             (exit::OK, "every account was computed"),
             (exit::ACCOUNT_ERRORS, "some account had an error"),
-            (exit::USAGE, "could not be used"),
+            (exit::USAGE, "the command line or a file could not be used"),
             (exit::VARIANCE, "run --fail-on-variance"),
         ] {
             assert!(
