@@ -10,10 +10,14 @@ use std::process::ExitCode;
 use clap::{Parser, Subcommand};
 
 mod check;
+mod completions;
 mod daycount;
 mod explain;
+mod help;
 mod inputs;
+mod manual;
 mod merge;
+mod progress;
 mod run;
 mod sample;
 mod settings;
@@ -35,7 +39,14 @@ pub mod exit {
 /// Month-end interest accrual, statement reconciliation and variance audit in
 /// basis points, in exact decimal arithmetic.
 #[derive(Debug, Parser)]
-#[command(name = "ledgerate", version, about, long_about = None)]
+#[command(
+    name = "ledgerate",
+    version,
+    about,
+    long_about = None,
+    after_help = help::TOP,
+    after_long_help = help::top_long()
+)]
 pub struct Cli {
     #[command(subcommand)]
     command: Command,
@@ -44,19 +55,32 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 enum Command {
     /// Month-end run: accrue every account of the books and write the workbook.
+    #[command(after_help = help::RUN)]
     Run(run::Args),
     /// Read and validate the books; print every problem, write nothing.
+    #[command(after_help = help::CHECK)]
     Check(check::Args),
     /// Combine the workbooks of shard runs (run --shard K/N) into one.
+    #[command(after_help = help::MERGE)]
     Merge(merge::Args),
     /// One account day by day: expected against posted, and the likely cause of a variance.
+    #[command(after_help = help::EXPLAIN)]
     Explain(explain::Args),
     /// Write a blank input book with every sheet and column.
+    #[command(after_help = help::TEMPLATE)]
     Template(template::Args),
     /// Write a synthetic book of any size (invented accounts, planted statement mistakes).
+    #[command(after_help = help::SAMPLE)]
     Sample(sample::Args),
     /// Days and year fraction between two dates under a day-count basis.
+    #[command(after_help = help::DAYCOUNT)]
     Daycount(daycount::Args),
+    /// Print the shell completion script for bash, zsh, fish, powershell or elvish.
+    #[command(after_help = help::COMPLETIONS)]
+    Completions(completions::Args),
+    /// Write the manual pages (ledgerate.1 and one per command), or print them.
+    #[command(after_help = help::MANUAL)]
+    Manual(manual::Args),
 }
 
 /// The books of a command and how to read them.
@@ -96,14 +120,28 @@ fn refuse_unreadable(books: &[crate::book::Book]) -> anyhow::Result<()> {
 
 /// Reads every book and checks that account ids are unique across them.
 fn read_books(args: &BookArgs) -> anyhow::Result<Vec<crate::book::Book>> {
+    read_books_showing(args, &indicatif::ProgressBar::hidden())
+}
+
+/// [`read_books`], naming on `progress` the book being read.
+fn read_books_showing(
+    args: &BookArgs,
+    progress: &indicatif::ProgressBar,
+) -> anyhow::Result<Vec<crate::book::Book>> {
     let options = crate::book::ReadOptions {
         decimal_comma: args.decimal_comma,
     };
-    let mut books: Vec<crate::book::Book> = args
-        .books
-        .iter()
-        .map(|p| crate::book::read_book(p, &options))
-        .collect();
+    let count = args.books.len();
+    let mut books = Vec::with_capacity(count);
+    for (i, path) in args.books.iter().enumerate() {
+        progress.set_message(if count == 1 {
+            format!("reading {}", path.display())
+        } else {
+            format!("reading {} ({} of {count})", path.display(), i + 1)
+        });
+        books.push(crate::book::read_book(path, &options));
+    }
+    progress.set_message("checking the account ids across the books");
     crate::book::check_unique_ids(&mut books);
     Ok(books)
 }
@@ -159,6 +197,8 @@ where
         Command::Template(a) => template::run(&a, &mut out),
         Command::Sample(a) => sample::run(&a, &mut out),
         Command::Daycount(a) => daycount::run(&a, &mut out),
+        Command::Completions(a) => completions::run(&a, &mut out),
+        Command::Manual(a) => manual::run(&a, &mut out),
     };
     match result {
         Ok(code) => ExitCode::from(code),

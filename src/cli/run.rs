@@ -1,8 +1,9 @@
 //! `ledgerate run BOOK... --cutoff DATE`: the month-end accrual run. Reads
 //! the books, accrues every account in parallel, writes the workbook and
-//! prints a short summary.
+//! prints a short summary. While it works, a terminal on standard error
+//! shows which step it is in (see [`super::progress`]).
 
-use std::io::{IsTerminal, Write};
+use std::io::Write;
 use std::path::PathBuf;
 
 use anyhow::{anyhow, Context, Result};
@@ -11,7 +12,7 @@ use chrono::NaiveDateTime;
 use super::inputs::{check_books_exist, check_output_is_not_an_input, fingerprint};
 use super::settings::{Given, Settings, ToleranceArgs};
 use super::summary::print_summary;
-use super::{exit, read_books, refuse_unreadable, run_time, BookArgs};
+use super::{exit, progress, read_books_showing, refuse_unreadable, run_time, BookArgs};
 use crate::batch::{run_books, BatchResult};
 use crate::book::Book;
 use crate::problem::{Problem, Severity};
@@ -122,7 +123,9 @@ fn audited_command_line() -> String {
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_books_exist(&args.books.books)?;
     let mut clock = Timings::start(args.timings);
-    let books = read_books(&args.books)?;
+    let reading = progress::step("reading the books");
+    let books = read_books_showing(&args.books, &reading)?;
+    reading.finish_and_clear();
     clock.lap("read and check the books");
     refuse_unreadable(&books)?;
     let settings = Settings::resolve(&books, &args.given())?.ok_or_else(|| {
@@ -134,12 +137,14 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         .unwrap_or_else(|| PathBuf::from(format!("accruals-{}.xlsx", settings.cutoff)));
     check_output_is_not_an_input(&target, &args.books.books)?;
     let run_time = run_time(args.fixed_time.as_deref())?;
+    let fingerprinting = progress::step("fingerprinting the books (SHA-256)");
     let inputs = args
         .books
         .books
         .iter()
         .map(|b| fingerprint(b))
         .collect::<Result<Vec<_>>>()?;
+    fingerprinting.finish_and_clear();
     clock.lap("fingerprint the inputs");
 
     let batch = accrue(&books, &settings, args.threads)?;
@@ -147,8 +152,10 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
 
     let fail_on_variance = settings.fail_on_variance;
     let report = report(&books, batch, settings, inputs, run_time);
+    let writing = progress::step(format!("writing the workbook {}", target.display()));
     crate::report::write_report(&report, &target)
         .with_context(|| format!("cannot write the workbook {}", target.display()))?;
+    writing.finish_and_clear();
     clock.lap("write the workbook");
     clock.report();
     print_summary(out, &report, &target)?;
@@ -160,7 +167,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
 fn accrue(books: &[Book], settings: &Settings, threads: Option<usize>) -> Result<BatchResult> {
     let batch_settings = settings.batch();
     let total: usize = books.iter().map(|b| b.accounts.len()).sum();
-    let bar = progress_bar(total);
+    let bar = progress::accruing(total);
     let tick = || bar.inc(1);
     let batch = match threads {
         Some(n) => {
@@ -269,18 +276,4 @@ impl Timings {
         }
         eprintln!("timings: {:<26} {:>9.3} s", "total", total.as_secs_f64());
     }
-}
-
-fn progress_bar(total: usize) -> indicatif::ProgressBar {
-    // Only a long run on a terminal earns a bar; indicatif hides itself off a terminal too.
-    if total < 20_000 || !std::io::stderr().is_terminal() {
-        return indicatif::ProgressBar::hidden();
-    }
-    let bar = indicatif::ProgressBar::new(total as u64);
-    if let Ok(style) = indicatif::ProgressStyle::with_template(
-        "accruing {bar:40} {pos}/{len} accounts, {eta} left",
-    ) {
-        bar.set_style(style);
-    }
-    bar
 }

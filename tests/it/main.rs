@@ -11,6 +11,7 @@ mod common;
 
 mod bad_books;
 mod book_reader;
+mod cli_conventions;
 mod cli_daycount;
 mod cli_floating;
 mod cli_formats;
