@@ -11,7 +11,7 @@ use std::fs;
 use std::path::Path;
 
 use super::cell::lower_first;
-use super::csv_records::CsvRows;
+use super::csv_records::{line_breaks, CsvRows};
 use super::picking::unused_sheet;
 use super::schema::SheetKind;
 use super::sheet::{Loaded, Rows, Sheet};
@@ -165,13 +165,10 @@ fn utf8_at(bytes: &[u8]) -> Result<String, (u64, String)> {
         Ok(s) => Ok(s.to_string()),
         Err(e) => {
             let at = e.valid_up_to();
-            let line = bytes
-                .get(..at)
-                .map_or(0, |b| b.iter().filter(|&&c| c == b'\n').count())
-                + 1;
+            let line = bytes.get(..at).map_or(0, line_breaks) + 1;
             let byte = bytes.get(at).copied().unwrap_or(0);
             Err((
-                u64::try_from(line).unwrap_or(0),
+                line,
                 format!("byte 0x{byte:02X} on line {line}, which is not UTF-8"),
             ))
         }
