@@ -18,6 +18,7 @@ mod cli_many_accounts;
 mod cli_run;
 mod cli_shards;
 mod explain_matches_run;
+mod hostile_books;
 mod hostile_inputs;
 mod output_safety;
 mod pure_core;
