@@ -246,7 +246,10 @@ mod tests {
         assert!(names.contains(&"Accounts"), "{names:?}");
         let (at, _) = sheets.iter().find(|(_, n)| n == "Accounts").unwrap();
         let (rows, columns) = sheet_span(&stream[*at..], "Accounts").unwrap();
-        assert!((9..100).contains(&rows) && (20..=40).contains(&columns), "{rows} x {columns}");
+        assert!(
+            (9..100).contains(&rows) && (20..=40).contains(&columns),
+            "{rows} x {columns}"
+        );
     }
 
     #[test]
@@ -262,7 +265,10 @@ mod tests {
         };
         assert_eq!(biff8(0, 10, 0, 5), Ok((10, 5)));
         assert_eq!(biff8(0, 0, 0, 0), Ok((1, 1)));
-        assert!(biff8(5, 3, 0, 5).unwrap_err().found.contains("rows end before"));
+        assert!(biff8(5, 3, 0, 5)
+            .unwrap_err()
+            .found
+            .contains("rows end before"));
         assert!(biff8(0, 65_537, 0, 5).is_err());
         assert!(biff8(0, 10, 0, 257).is_err());
     }
