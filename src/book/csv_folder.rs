@@ -2,7 +2,9 @@
 //! each file decoded (UTF-8 with or without a byte-order mark, or UTF-16
 //! with one) and checked to parse once, then held as its text.
 //!
-//! Files are only opened for reading, in name order so problems come out
+//! Only regular files (or links to them) are opened, and only for reading;
+//! a sheet file that is a FIFO, a device or a link to nothing is an error
+//! naming it. Files are read in name order so problems come out
 //! the same on every system. A file that cannot be decoded or parsed gives
 //! one problem naming its line, never a panic and never a partial sheet.
 //! This module never knows what a column means.
@@ -11,7 +13,7 @@ use std::fs;
 use std::path::Path;
 
 use super::cell::lower_first;
-use super::csv_records::CsvRows;
+use super::csv_records::{line_breaks, CsvRows};
 use super::picking::unused_sheet;
 use super::sheet::{Loaded, Rows, Sheet};
 use crate::problem::{Position, Severity};
@@ -39,10 +41,11 @@ pub(crate) fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
             return;
         }
     };
+    // Every entry named .csv, whatever it is: a sheet file that is not a
+    // regular file is an error naming it, never an absent sheet.
     let mut files: Vec<(String, std::path::PathBuf)> = entries
         .filter_map(Result::ok)
         .map(|e| e.path())
-        .filter(|p| p.is_file())
         .filter(|p| p.extension().is_some_and(|x| x.eq_ignore_ascii_case("csv")))
         .filter_map(|p| Some((p.file_stem()?.to_string_lossy().into_owned(), p)))
         .collect();
@@ -56,9 +59,24 @@ pub(crate) fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
             cell: String::new(),
         };
         let Some(kind) = SheetKind::from_name(&stem) else {
-            unused_sheet(&stem, at, loaded);
+            // Only regular files are noted; nothing else is opened.
+            if file.is_file() {
+                unused_sheet(&stem, at, loaded);
+            }
             continue;
         };
+        if let Some(what) = not_a_regular_file(&file) {
+            loaded.problem(
+                Severity::Error,
+                at,
+                &format!("{stem}.csv, {what}"),
+                &format!("a {} file that can be read", kind.label()),
+                &format!(
+                    "put the CSV file itself in the folder as {stem}.csv (only regular files, or links to them, are read)"
+                ),
+            );
+            continue;
+        }
         if let Some((_, first)) = picked.iter().find(|(k, _)| *k == kind) {
             loaded.problem(
                 Severity::Error,
@@ -81,6 +99,19 @@ pub(crate) fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
             });
         }
     }
+}
+
+/// What a path is when it is not a regular file (or a link to one), in
+/// words: it is never opened, since a FIFO or a device could block or
+/// never end.
+fn not_a_regular_file(path: &Path) -> Option<&'static str> {
+    if fs::symlink_metadata(path).is_err() {
+        return Some("a file that cannot be looked at");
+    }
+    if path.is_dir() {
+        return Some("a folder");
+    }
+    crate::files::special_kind(path)
 }
 
 /// The text of a CSV file: UTF-8 with or without a byte-order mark, or
@@ -165,13 +196,10 @@ fn utf8_at(bytes: &[u8]) -> Result<String, (u64, String)> {
         Ok(s) => Ok(s.to_string()),
         Err(e) => {
             let at = e.valid_up_to();
-            let line = bytes
-                .get(..at)
-                .map_or(0, |b| b.iter().filter(|&&c| c == b'\n').count())
-                + 1;
+            let line = bytes.get(..at).map_or(0, line_breaks) + 1;
             let byte = bytes.get(at).copied().unwrap_or(0);
             Err((
-                u64::try_from(line).unwrap_or(0),
+                line,
                 format!("byte 0x{byte:02X} on line {line}, which is not UTF-8"),
             ))
         }

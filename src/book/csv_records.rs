@@ -165,10 +165,26 @@ impl<'a> LineCounter<'a> {
         }
         let end = start.min(self.text.len());
         let skipped = self.text.get(self.pos..end).unwrap_or_default();
-        self.line += u64::try_from(skipped.iter().filter(|&&b| b == b'\n').count()).unwrap_or(0);
+        self.line += line_breaks(skipped);
         self.pos = end;
         self.line
     }
+}
+
+/// How many line breaks `bytes` holds: LF, CRLF and a lone CR (the line
+/// end some spreadsheet programs still save) each count once, as the csv
+/// crate's record terminator takes them.
+pub(crate) fn line_breaks(bytes: &[u8]) -> u64 {
+    let lf = bytes.iter().filter(|&&b| b == b'\n').count();
+    // Most files have no CR at all, or CRLF only: one more pass finds out.
+    let lone_cr = if bytes.contains(&b'\r') {
+        let cr = bytes.iter().filter(|&&b| b == b'\r').count();
+        let crlf = bytes.windows(2).filter(|w| *w == b"\r\n").count();
+        cr.saturating_sub(crlf)
+    } else {
+        0
+    };
+    u64::try_from(lf + lone_cr).unwrap_or(u64::MAX)
 }
 
 #[cfg(test)]
@@ -188,5 +204,27 @@ mod tests {
             .map(|r| lines.line_at(r.unwrap().position().unwrap().byte()))
             .collect();
         assert_eq!(got, vec![1, 2, 4, 6]);
+    }
+
+    fn lines_of(text: &str) -> Vec<u64> {
+        let mut rows = CsvRows::new(text, false);
+        std::iter::from_fn(|| rows.next_row())
+            .map(|r| u64::from(r.unwrap().index) + 1)
+            .collect()
+    }
+
+    #[test]
+    fn records_start_on_the_same_lines_with_lf_crlf_or_lone_cr_line_ends() {
+        let lf = "a,b\nHM,1\n\n\"X\ny\",2\nZ,3\n";
+        assert_eq!(lines_of(lf), vec![1, 2, 4, 6]);
+        assert_eq!(lines_of(&lf.replace('\n', "\r\n")), vec![1, 2, 4, 6]);
+        assert_eq!(lines_of(&lf.replace('\n', "\r")), vec![1, 2, 4, 6]);
+    }
+
+    #[test]
+    fn line_breaks_count_lf_crlf_and_lone_cr_once_each() {
+        assert_eq!(line_breaks(b"a\nb\r\nc\rd"), 3);
+        assert_eq!(line_breaks(b"\r\r\n\n\r"), 4);
+        assert_eq!(line_breaks(b"no break"), 0);
     }
 }

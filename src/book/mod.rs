@@ -11,14 +11,18 @@
 //! the sheet readers take their columns from it.
 
 mod accounts;
+mod biff;
 pub(crate) mod cell;
 mod csv_folder;
 mod csv_records;
 mod fixings;
 mod holidays;
+mod limits;
 pub mod model;
 mod movements;
 pub(crate) mod number;
+mod ods_span;
+mod ole;
 mod open;
 mod picking;
 mod rates;

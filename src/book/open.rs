@@ -16,6 +16,7 @@ use calamine::{Ods, Xls};
 
 use super::cell::lower_first;
 use super::csv_folder::read_csv_folder;
+use super::limits::{self, Refusal};
 use super::picking::check_required;
 use super::sheet::Loaded;
 use super::sniff::{workbook_format, Format, Unreadable};
@@ -51,8 +52,27 @@ pub(crate) fn load(path: &Path, book: &str) -> Loaded {
         check_required(book, &mut loaded, true);
         return loaded;
     }
-    let read = workbook_format(path).and_then(|format| read_workbook(path, book, format));
-    match read {
+    let format = match workbook_format(path) {
+        Ok(f) => f,
+        Err(e) => {
+            loaded.problem(Severity::Error, at_book(), &e.found, &e.expected, &e.fix);
+            return loaded;
+        }
+    };
+    // What the file declares is bounded before the workbook library
+    // allocates from it; a panic in the archive or XML parsers under the
+    // check is a damaged file, as it is in the library.
+    let bounded = crate::panics::quietly(|| limits::check(path, format)).unwrap_or_else(|_| {
+        Err(Refusal::damaged(
+            format,
+            "a workbook the reader could not take apart".to_string(),
+        ))
+    });
+    if let Err(r) = bounded {
+        loaded.problem(Severity::Error, at_book(), &r.found, &r.expected, &r.fix);
+        return loaded;
+    }
+    match read_workbook(path, book, format) {
         Ok(l) => loaded = l,
         Err(e) => {
             loaded.problem(Severity::Error, at_book(), &e.found, &e.expected, &e.fix);

@@ -7,6 +7,7 @@ use std::path::{Path, PathBuf};
 use anyhow::{bail, Context, Result};
 use sha2::{Digest, Sha256};
 
+use crate::book::schema::SheetKind;
 use crate::report::model::InputFile;
 
 fn hex(bytes: &[u8]) -> String {
@@ -33,24 +34,31 @@ fn hash_file(path: &Path) -> Result<(u64, String)> {
 }
 
 /// The size and SHA-256 of a book: a file's own, or for a CSV folder the
-/// hash of its files' names and hashes in name order.
+/// hash of its sheet files' names and hashes in name order. Only the files
+/// the reader reads are hashed (accounts.csv, rates.csv... as the schema
+/// names the sheets): other files in the folder are not part of the book.
+/// A sheet file that is not a regular file (a FIFO, a device, a link to
+/// nothing) is never opened: the reader has already reported it, and it
+/// enters the hash as its name and what it is.
 pub fn fingerprint(path: &Path) -> Result<InputFile> {
     let (size, sha256) = if path.is_dir() {
-        let mut names: Vec<PathBuf> = std::fs::read_dir(path)
-            .with_context(|| format!("cannot list the folder {}", path.display()))?
-            .filter_map(|e| e.ok().map(|e| e.path()))
-            .filter(|p| p.is_file())
-            .collect();
-        names.sort();
         let mut h = Sha256::new();
         let mut total = 0;
-        for p in names {
-            let (size, sha) = hash_file(&p)?;
-            total += size;
+        for p in sheet_files(path)? {
             let name = p
                 .file_name()
                 .map(|n| n.to_string_lossy().into_owned())
                 .unwrap_or_default();
+            if let Some(kind) = crate::files::special_kind(&p) {
+                h.update(format!("{name}\t{kind}\n").as_bytes());
+                continue;
+            }
+            if !p.is_file() {
+                h.update(format!("{name}\ta folder\n").as_bytes());
+                continue;
+            }
+            let (size, sha) = hash_file(&p)?;
+            total += size;
             h.update(format!("{name}\t{sha}\n").as_bytes());
         }
         (total, hex(&h.finalize()))
@@ -62,6 +70,24 @@ pub fn fingerprint(path: &Path) -> Result<InputFile> {
         size,
         sha256,
     })
+}
+
+/// The entries of a CSV book folder named as sheet files (a sheet's name
+/// with the extension .csv, in any case), in name order, whatever kind of
+/// file each is.
+fn sheet_files(dir: &Path) -> Result<Vec<PathBuf>> {
+    let mut files: Vec<PathBuf> = std::fs::read_dir(dir)
+        .with_context(|| format!("cannot list the folder {}", dir.display()))?
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.extension().is_some_and(|x| x.eq_ignore_ascii_case("csv")))
+        .filter(|p| {
+            p.file_stem()
+                .and_then(|s| SheetKind::from_name(&s.to_string_lossy()))
+                .is_some()
+        })
+        .collect();
+    files.sort();
+    Ok(files)
 }
 
 /// Checks that every book exists and is a file or a folder: reading a FIFO

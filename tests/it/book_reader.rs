@@ -633,6 +633,47 @@ fn csv_files_in_utf16_with_a_byte_order_mark_are_decoded() {
     );
 }
 
+/// The good CSV book copied into `dir` with every line ending as `end`.
+fn csv_book_with_line_ends(dir: &std::path::Path, end: &str) -> std::path::PathBuf {
+    let folder = dir.join(format!("book_{}", end.escape_default()));
+    std::fs::create_dir(&folder).unwrap();
+    for entry in std::fs::read_dir(fixture("harbourview_good_csv")).unwrap() {
+        let path = entry.unwrap().path();
+        let bytes = std::fs::read(&path).unwrap();
+        let text = String::from_utf8(bytes).unwrap();
+        let text = text
+            .replace("\r\n", "\n")
+            .replace('\r', "\n")
+            .replace('\n', end);
+        std::fs::write(folder.join(path.file_name().unwrap()), text).unwrap();
+    }
+    folder
+}
+
+#[test]
+fn a_csv_book_with_lf_crlf_or_lone_cr_line_ends_reads_the_same() {
+    let dir = tempfile::tempdir().unwrap();
+    let lf = read_book(
+        &csv_book_with_line_ends(dir.path(), "\n"),
+        &ReadOptions::default(),
+    );
+    assert_eq!(lf.accounts.len(), 8, "{}", all_problems(&lf));
+    assert!(!lf.has_errors(), "{}", all_problems(&lf));
+    for end in ["\r\n", "\r"] {
+        let folder = csv_book_with_line_ends(dir.path(), end);
+        assert!(std::fs::read(folder.join("movements.csv"))
+            .unwrap()
+            .ends_with(end.as_bytes()));
+        let other = read_book(&folder, &ReadOptions::default());
+        assert_eq!(
+            contents(&lf),
+            contents(&other),
+            "line ends {:?} read differently",
+            end
+        );
+    }
+}
+
 #[test]
 fn a_decimal_comma_is_read_only_with_the_option() {
     let with = read_book(

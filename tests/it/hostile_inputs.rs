@@ -72,3 +72,102 @@ fn a_calendar_that_is_a_fifo_a_device_or_too_big_is_refused() {
             .stderr(predicate::str::contains(says));
     }
 }
+
+/// The good CSV book copied into `dir`.
+fn csv_book(dir: &Path) -> std::path::PathBuf {
+    let book = dir.join("book");
+    std::fs::create_dir(&book).unwrap();
+    for entry in std::fs::read_dir(crate::common::fixture("harbourview_good_csv")).unwrap() {
+        let path = entry.unwrap().path();
+        std::fs::copy(&path, book.join(path.file_name().unwrap())).unwrap();
+    }
+    book
+}
+
+#[test]
+fn sheet_files_that_are_a_fifo_a_device_or_a_dangling_link_are_errors_naming_them() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = csv_book(dir.path());
+    for name in ["holidays.csv", "statements.csv", "movements.csv"] {
+        std::fs::remove_file(book.join(name)).unwrap();
+    }
+    mkfifo(&book.join("holidays.csv"));
+    std::os::unix::fs::symlink("/dev/null", book.join("statements.csv")).unwrap();
+    std::os::unix::fs::symlink(
+        dir.path().join("unmounted/movements.csv"),
+        book.join("movements.csv"),
+    )
+    .unwrap();
+    let says = [
+        "holidays.csv, a FIFO (named pipe)",
+        "statements.csv, a device",
+        "movements.csv, a link to nothing",
+    ];
+    let mut check = ledgerate()
+        .arg("check")
+        .arg(&book)
+        .timeout(DEADLINE)
+        .assert()
+        .code(1);
+    for s in says {
+        check = check.stdout(predicate::str::contains(s));
+    }
+    check.stdout(predicate::str::contains("no such file").not());
+    // run reads, then fingerprints the book for the Run sheet: neither may
+    // open the FIFO.
+    ledgerate()
+        .arg("run")
+        .arg(&book)
+        .args(["--cutoff", "2026-11-30", "--out"])
+        .arg(dir.path().join("out.xlsx"))
+        .timeout(DEADLINE)
+        .assert()
+        .code(1);
+}
+
+/// The SHA-256 of the one input of a run's workbook, from its Run sheet.
+fn input_sha(workbook: &Path) -> String {
+    let cells = crate::common::sheet(workbook, "Run");
+    cells
+        .iter()
+        .flatten()
+        .map(ToString::to_string)
+        .find(|s| s.len() == 64 && s.chars().all(|c| c.is_ascii_hexdigit()))
+        .unwrap()
+}
+
+#[test]
+fn only_the_sheet_files_of_a_csv_book_are_hashed_for_the_run_sheet() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = csv_book(dir.path());
+    let run = |out: &str| {
+        let out = dir.path().join(out);
+        ledgerate()
+            .arg("run")
+            .arg(&book)
+            .args([
+                "--cutoff",
+                "2026-11-30",
+                "--fixed-time",
+                "2026-12-01T09:00:00",
+                "--out",
+            ])
+            .arg(&out)
+            .timeout(DEADLINE)
+            .assert()
+            .code(0);
+        input_sha(&out)
+    };
+    let before = run("before.xlsx");
+    // An unrelated export of 20 MB, a FIFO (which would block if opened)
+    // and a CSV file that is no sheet: none of them is part of the book.
+    std::fs::write(book.join("export.bin"), vec![7u8; 20 << 20]).unwrap();
+    mkfifo(&book.join("pipe.txt"));
+    std::fs::write(book.join("scratch.csv"), "a,b\n1,2\n").unwrap();
+    assert_eq!(run("after.xlsx"), before);
+    // A sheet file is: changing one changes the hash.
+    let mut holidays = std::fs::read_to_string(book.join("holidays.csv")).unwrap();
+    holidays.push_str("\nHM-HOLIDAYS,2027-01-04,Harbour Founders' Day\n");
+    std::fs::write(book.join("holidays.csv"), holidays).unwrap();
+    assert_ne!(run("changed.xlsx"), before);
+}
