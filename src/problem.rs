@@ -68,6 +68,51 @@ pub struct Problem {
     pub expected: String,
     /// How to fix it.
     pub fix: String,
+    /// The problem this one only follows from, when there is one: the
+    /// terminal lists the cause and folds its follow-ons into one line.
+    pub follows: Option<FollowOn>,
+}
+
+/// Why a problem only follows from another: an account left out because a
+/// sheet it needs is missing or cannot be read. Fixing the cause fixes it.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct FollowOn {
+    /// The book and sheet of the cause (the cell is empty).
+    pub cause: Position,
+    /// What completes "left out because ...", for example
+    /// `the Rates sheet is missing`.
+    pub because: String,
+}
+
+impl FollowOn {
+    /// Follows from a required sheet the book does not have.
+    pub fn missing_sheet(book: &str, label: &str) -> FollowOn {
+        FollowOn {
+            cause: Position {
+                book: book.to_string(),
+                sheet: label.to_string(),
+                cell: String::new(),
+            },
+            because: format!("the {label} sheet is missing"),
+        }
+    }
+
+    /// Follows from a sheet of kind `label` (named `name` in the book) that
+    /// cannot be read as a table.
+    pub fn unreadable_sheet(book: &str, label: &str, name: &str) -> FollowOn {
+        FollowOn {
+            cause: Position {
+                book: book.to_string(),
+                sheet: name.to_string(),
+                cell: String::new(),
+            },
+            because: if name == label {
+                format!("the {label} sheet cannot be read")
+            } else {
+                format!("the {label} sheet ({name}) cannot be read")
+            },
+        }
+    }
 }
 
 impl fmt::Display for Problem {
@@ -178,6 +223,130 @@ pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
     problems.sort_by_cached_key(key);
 }
 
+/// `n` and the noun, plural unless `n` is 1: `1 problem`, `3 problems`,
+/// `0 notes`. For the nouns of printed summaries, which all take an `s`.
+///
+/// ```
+/// use ledgerate::problem::counted;
+/// assert_eq!(counted(1, "problem"), "1 problem");
+/// assert_eq!(counted(0, "note"), "0 notes");
+/// assert_eq!(counted(33, "account"), "33 accounts");
+/// ```
+pub fn counted(n: usize, noun: &str) -> String {
+    if n == 1 {
+        format!("1 {noun}")
+    } else {
+        format!("{n} {noun}s")
+    }
+}
+
+/// One line of a problem listing at the terminal.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Listed<'p> {
+    /// A problem on its own line.
+    One(&'p Problem),
+    /// The follow-ons of one cause, folded into one line.
+    Folded {
+        /// What the accounts are left out because of.
+        because: &'p str,
+        /// The follow-on problems, in report order.
+        problems: Vec<&'p Problem>,
+    },
+}
+
+impl Listed<'_> {
+    /// How many problems the line stands for.
+    pub fn len(&self) -> usize {
+        match self {
+            Listed::One(_) => 1,
+            Listed::Folded { problems, .. } => problems.len(),
+        }
+    }
+
+    /// Whether the line stands for no problem (never, for a line of [`by_cause`]).
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+}
+
+/// How many account ids a folded line names before "and N more".
+const FOLDED_IDS_SHOWN: usize = 3;
+
+impl fmt::Display for Listed<'_> {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Listed::One(p) => write!(f, "{p}"),
+            Listed::Folded { because, problems } => {
+                let mut ids: Vec<&str> = Vec::new();
+                for p in problems {
+                    let id = p.account.as_deref().unwrap_or(&p.found);
+                    if !ids.contains(&id) {
+                        ids.push(id);
+                    }
+                }
+                let severity = problems.first().map_or(Severity::Error, |p| p.severity);
+                write!(
+                    f,
+                    "{}: {} left out because {because}: ",
+                    severity.name(),
+                    counted(ids.len(), "account")
+                )?;
+                let shown: Vec<&str> = ids.iter().take(FOLDED_IDS_SHOWN).copied().collect();
+                write!(f, "{}", shown.join(", "))?;
+                if ids.len() > shown.len() {
+                    write!(f, " and {} more", ids.len() - shown.len())?;
+                }
+                Ok(())
+            }
+        }
+    }
+}
+
+/// The problems (already in report order, see [`sort_problems`]) as the
+/// terminal lists them, root causes first: for each sheet that other
+/// problems follow from, that sheet's own problems, then one line folding
+/// the problems that follow from it; then every other problem in order.
+/// Nothing is left out: every problem is on exactly one line.
+pub fn by_cause<'p>(problems: &[&'p Problem]) -> Vec<Listed<'p>> {
+    let same_sheet = |a: &Position, b: &Position| a.book == b.book && a.sheet == b.sheet;
+    let mut causes: Vec<&Position> = Vec::new();
+    let mut groups: Vec<(&'p FollowOn, Vec<&'p Problem>)> = Vec::new();
+    for p in problems {
+        let Some(fo) = &p.follows else { continue };
+        if !causes.iter().any(|c| same_sheet(c, &fo.cause)) {
+            causes.push(&fo.cause);
+        }
+        match groups.iter_mut().find(|(g, _)| *g == fo) {
+            Some((_, members)) => members.push(p),
+            None => groups.push((fo, vec![p])),
+        }
+    }
+    let mut listed = Vec::with_capacity(problems.len());
+    let mut shown = vec![false; problems.len()];
+    for cause in causes {
+        for (i, p) in problems.iter().enumerate() {
+            if p.follows.is_none() && same_sheet(&p.position, cause) {
+                listed.push(Listed::One(*p));
+                if let Some(s) = shown.get_mut(i) {
+                    *s = true;
+                }
+            }
+        }
+        for (fo, members) in groups.iter().filter(|(fo, _)| same_sheet(&fo.cause, cause)) {
+            listed.push(Listed::Folded {
+                because: &fo.because,
+                problems: members.clone(),
+            });
+        }
+    }
+    for (p, done) in problems.iter().zip(shown) {
+        if !done && p.follows.is_none() {
+            listed.push(Listed::One(*p));
+        }
+    }
+    listed
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -202,6 +371,7 @@ mod tests {
             found: String::new(),
             expected: String::new(),
             fix: String::new(),
+            follows: None,
         }
     }
 

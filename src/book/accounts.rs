@@ -17,7 +17,7 @@ use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
-use super::schema::{column, ACCOUNTS};
+use super::schema::{column, SheetKind, ACCOUNTS};
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::calendar::{BusinessDay, Calendar};
@@ -28,7 +28,7 @@ use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
-use crate::problem::{Problem, Severity};
+use crate::problem::{FollowOn, Problem, Severity};
 
 const ACCOUNT: usize = column!(ACCOUNTS, "account");
 const CURRENCY: usize = column!(ACCOUNTS, "currency");
@@ -785,7 +785,12 @@ fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rate
         (None, true) => {
             format!("add rows for {rate_ref} to the Rates sheet, or correct {which}")
         }
-        (None, false) => "the Rates sheet cannot be used: see its problems".to_string(),
+        (None, false) if rates.sheet.is_none() => {
+            format!("add a Rates sheet with rows for {rate_ref}")
+        }
+        (None, false) => {
+            format!("correct the Rates sheet (see its own problems); it needs rows for {rate_ref}")
+        }
     };
     f.report(
         Severity::Error,
@@ -794,6 +799,15 @@ fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rate
         &format!("a {which} with rows in the Rates sheet"),
         &fix,
     );
+    if !rates.read {
+        // Every account naming a rate_ref meets this; the Rates sheet's own
+        // problem is the one to fix.
+        let label = SheetKind::Rates.label();
+        f.follows(|book| match &rates.sheet {
+            Some(name) => FollowOn::unreadable_sheet(book, label, name),
+            None => FollowOn::missing_sheet(book, label),
+        });
+    }
 }
 
 #[cfg(test)]

@@ -49,6 +49,8 @@ pub(crate) struct Rates {
     pub floating_cell: BTreeMap<String, String>,
     /// Whether the sheet was read as a table.
     pub read: bool,
+    /// The name of the sheet, when the book has one.
+    pub sheet: Option<String>,
 }
 
 /// One good row, kept for the tier checks.
@@ -62,7 +64,10 @@ struct RateRow {
 
 /// Reads the Rates sheet.
 pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> Rates {
-    let mut out = Rates::default();
+    let mut out = Rates {
+        sheet: Some(sheet.name.clone()),
+        ..Rates::default()
+    };
     let Some(table) = Table::open(&ctx, sheet, RATES.columns, problems) else {
         return out;
     };

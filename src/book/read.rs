@@ -22,7 +22,7 @@ use super::sheet::Sheet;
 use super::statements::Statements;
 use super::table::Ctx;
 use super::{movements, statements};
-use crate::problem::{a1_row, Position, Problem, Severity};
+use crate::problem::{a1_row, FollowOn, Position, Problem, Severity};
 
 /// How to read a book.
 ///
@@ -237,6 +237,7 @@ fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
         found: "a header row and no account rows".to_string(),
         expected: "one row per account under the header".to_string(),
         fix: "add the accounts (check the sheet was not saved filtered), or leave this book out of the run".to_string(),
+        follows: None,
     });
 }
 
@@ -260,6 +261,11 @@ fn unusable_sheet(
                 sheet.kind.label(),
                 sheet.name
             ),
+            follows: Some(FollowOn::unreadable_sheet(
+                &e.position.book,
+                sheet.kind.label(),
+                &sheet.name,
+            )),
         });
         rejected.insert(e.terms.id.clone());
     }
@@ -373,6 +379,7 @@ pub fn check_unique_ids(books: &mut [Book]) {
                         found: id.to_string(),
                         expected: format!("account ids unique across the books of a run (it is also in {first})"),
                         fix: "remove the account from one of the books, or give it its own id; this one is not used".to_string(),
+                        follows: None,
                     }));
                 }
                 None => {

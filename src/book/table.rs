@@ -17,7 +17,7 @@ use super::row::{Row, Shape};
 use super::schema::Column;
 use super::sheet::Sheet;
 use crate::conventions::names::{fold, UnknownName};
-use crate::problem::{a1, a1_row, column_letters, Position, Problem, Severity};
+use crate::problem::{a1, a1_row, column_letters, FollowOn, Position, Problem, Severity};
 
 /// What every sheet reader needs: the book's name for positions, and how
 /// it writes numbers.
@@ -58,6 +58,7 @@ impl Ctx<'_> {
             found: found.to_string(),
             expected: expected.to_string(),
             fix: fix.to_string(),
+            follows: None,
         }
     }
 }
@@ -698,6 +699,15 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
             fix,
         );
         self.problems.push(p);
+    }
+
+    /// Marks the problem just reported as following from another problem
+    /// of this book, built from the book's name.
+    pub(crate) fn follows(&mut self, cause: impl FnOnce(&str) -> FollowOn) {
+        let follow_on = cause(self.ctx.book);
+        if let Some(p) = self.problems.last_mut() {
+            p.follows = Some(follow_on);
+        }
     }
 
     fn issue(&mut self, i: usize, issue: Issue) {

@@ -407,6 +407,7 @@ impl Written {
                 found: r.text(4),
                 expected: r.text(5),
                 fix: r.text(6),
+                follows: None,
             };
             if !is_writer_note(&p) {
                 problems.push(p);

@@ -619,6 +619,7 @@ fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             if texts.count == 1 { " is" } else { "s are" },
             cells.join(", ")
         ),
+        follows: None,
     })
 }
 
@@ -643,6 +644,7 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             if texts.cut_count == 1 { " is" } else { "s are" },
             cells.join(", ")
         ),
+        follows: None,
     })
 }
 
