@@ -414,4 +414,68 @@ mod tests {
             ]
         );
     }
+
+    fn follow_on(book: &str, cell: &str, id: &str) -> Problem {
+        let mut p = at(book, "Accounts", cell);
+        p.account = Some(id.into());
+        p.found = id.into();
+        p.follows = Some(FollowOn::missing_sheet(book, "Rates"));
+        p
+    }
+
+    /// Found: a missing Rates sheet listed after 33 rate_ref errors, so the
+    /// first ten lines never said what to fix. Expected: the cause first,
+    /// then one line for the 33 accounts, then the other errors. Fix:
+    /// `by_cause` orders causes first and folds their follow-ons.
+    #[test]
+    fn a_missing_sheet_comes_first_and_its_follow_ons_fold_into_one_line() {
+        let mut problems: Vec<Problem> = (0..33)
+            .map(|i| follow_on("b.xlsx", &format!("A{}", i + 2), &format!("SAV-{:02}", i + 1)))
+            .collect();
+        problems.push(at("b.xlsx", "Accounts", "C40"));
+        problems.push(at("b.xlsx", "Rates", ""));
+        sort_problems(&mut problems, &["b.xlsx".into()]);
+        let all: Vec<&Problem> = problems.iter().collect();
+        let lines = by_cause(&all);
+        assert_eq!(lines.len(), 3);
+        assert_eq!(lines.iter().map(Listed::len).sum::<usize>(), 35);
+        let shown: Vec<String> = lines.iter().map(ToString::to_string).collect();
+        assert!(shown[0].starts_with("error: b.xlsx sheet Rates: "), "{}", shown[0]);
+        assert_eq!(
+            shown[1],
+            "error: 33 accounts left out because the Rates sheet is missing: SAV-01, SAV-02, SAV-03 and 30 more"
+        );
+        assert!(shown[2].starts_with("error: b.xlsx Accounts!C40: "), "{}", shown[2]);
+    }
+
+    /// One account naming two refs of a missing sheet counts once, in the
+    /// singular; problems without follow-ons keep their order.
+    #[test]
+    fn a_folded_line_counts_accounts_once_in_the_singular() {
+        let problems = [
+            at("b.xlsx", "Accounts", "B2"),
+            follow_on("b.xlsx", "A3", "SAV-1"),
+            follow_on("b.xlsx", "Q3", "SAV-1"),
+            at("b.xlsx", "Rates", ""),
+        ];
+        let all: Vec<&Problem> = problems.iter().collect();
+        let shown: Vec<String> = by_cause(&all).iter().map(ToString::to_string).collect();
+        assert_eq!(
+            shown[1],
+            "error: 1 account left out because the Rates sheet is missing: SAV-1"
+        );
+        assert!(shown[2].contains("Accounts!B2"));
+        let plain: Vec<&Problem> = vec![&problems[0], &problems[3]];
+        assert_eq!(
+            by_cause(&plain),
+            vec![Listed::One(&problems[0]), Listed::One(&problems[3])]
+        );
+    }
+
+    #[test]
+    fn counts_are_singular_only_for_one() {
+        assert_eq!(counted(1, "error"), "1 error");
+        assert_eq!(counted(0, "error"), "0 errors");
+        assert_eq!(counted(2, "warning"), "2 warnings");
+    }
 }

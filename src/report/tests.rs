@@ -420,6 +420,7 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
         found: "'x'".into(),
         expected: "a name".into(),
         fix: "type one".into(),
+        follows: None,
     }];
     let limits = Limits {
         rows_per_sheet: 3,

@@ -140,7 +140,12 @@ struct Seen {
 fn printed(output: &str, book: &str) -> Vec<Seen> {
     let mut out = Vec::new();
     for line in output.lines() {
-        let Some(rest) = line.strip_prefix("  ") else {
+        // A problem that follows from another is indented under the
+        // line that folds it.
+        let Some(rest) = line
+            .strip_prefix("    ")
+            .or_else(|| line.strip_prefix("  "))
+        else {
             continue;
         };
         let Some((kind, rest)) = rest.split_once(": ") else {

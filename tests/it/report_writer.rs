@@ -217,6 +217,7 @@ fn report() -> Report {
             found: "31/02/2024".into(),
             expected: "a date such as 2024-02-29".into(),
             fix: "type the date as YYYY-MM-DD or as a spreadsheet date".into(),
+            follows: None,
         }],
     }
 }
