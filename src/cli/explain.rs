@@ -10,7 +10,7 @@ use std::io::Write;
 use anyhow::{anyhow, bail, Result};
 use chrono::NaiveDate;
 
-use super::daycount::parse_iso_date;
+use super::daycount::parse_date_option;
 use super::inputs::check_books_exist;
 use super::settings::{Given, Settings, ToleranceArgs};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
@@ -47,8 +47,8 @@ fn parse_period(s: &str) -> Result<(NaiveDate, NaiveDate)> {
     let bad = || anyhow!("--period '{s}' is not START..END: write it like 2026-11-01..2026-11-30");
     let (a, b) = s.split_once("..").ok_or_else(bad)?;
     let (a, b) = (
-        parse_iso_date(a).ok_or_else(bad)?,
-        parse_iso_date(b).ok_or_else(bad)?,
+        parse_date_option("--period START", a)?,
+        parse_date_option("--period END", b)?,
     );
     if b < a {
         bail!("--period '{s}' ends before it starts");
