@@ -15,6 +15,7 @@ use super::inputs::check_books_exist;
 use super::settings::{Given, Settings, ToleranceArgs};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::book::{AccountEntry, Book};
+use crate::conventions::names::closest_id;
 use crate::explain::{explain, print};
 use crate::pipeline::Options;
 
@@ -83,7 +84,7 @@ fn find_account<'b>(books: &'b [Book], id: &str) -> Result<(&'b Book, &'b Accoun
                 .map(|p| format!("  {p}"))
                 .collect();
             if problems.is_empty() {
-                anyhow!("no account '{id}' in the books: check the id on the Accounts sheet")
+                no_such_account(books, id)
             } else {
                 anyhow!(
                     "the account '{id}' cannot be computed:\n{}",
@@ -91,6 +92,23 @@ fn find_account<'b>(books: &'b [Book], id: &str) -> Result<(&'b Book, &'b Accoun
                 )
             }
         })
+}
+
+/// The error for an id no book has, suggesting the id most likely meant
+/// (the same but for letter case, else a letter or two off).
+fn no_such_account(books: &[Book], id: &str) -> anyhow::Error {
+    let ids = books.iter().flat_map(|b| {
+        b.accounts
+            .iter()
+            .map(|a| a.terms.id.as_str())
+            .chain(b.problems.iter().filter_map(|p| p.account.as_deref()))
+    });
+    match closest_id(id, ids) {
+        Some(near) => anyhow!(
+            "no account '{id}' in the books; did you mean '{near}'? ids match exactly, letter case too: give --account {near}"
+        ),
+        None => anyhow!("no account '{id}' in the books: check the id on the Accounts sheet"),
+    }
 }
 
 /// The window, cut-off, tolerances and fixing fallback in force, resolved
