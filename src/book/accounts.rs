@@ -285,6 +285,9 @@ fn account(
         (currency?, basis?, open_date?, opening_balance?);
     let compounding = compounding.unwrap_or_default();
     let posting = posting.unwrap_or_default();
+    if opening_balance.is_sign_negative() && !opening_balance.is_zero() && debit_rate_ref.is_none() {
+        warn_negative_opening(f, side, opening_balance);
+    }
 
     let calendar = match calendar_name {
         Some(n) => calendar_of(f, &n, others.calendars).unwrap_or_else(|| Arc::clone(weekends)),
@@ -762,6 +765,34 @@ fn floating_check(
     true
 }
 
+/// The warning for an opening balance below zero on an account without a
+/// debit rate: balances are positive in the account's normal direction, so
+/// the account earns nothing until movements bring it above zero. A
+/// deposit typed as a credit (negative, as a ledger shows it) is the usual
+/// cause.
+fn warn_negative_opening(f: &mut Fields<'_, '_, '_>, side: Side, balance: Decimal) {
+    let shown = f
+        .raw(OPENING_BALANCE)
+        .map_or_else(|| balance.to_string(), |c| c.shown());
+    let (what, fix) = match side {
+        Side::Liability => (
+            "a deposit balance of zero or more (balances are positive in the account's normal direction)",
+            format!(
+                "a deposit opening at {balance} earns nothing: write {} if that is what the customer holds; if the account opens overdrawn, name its overdraft rate in debit_rate_ref",
+                -balance
+            ),
+        ),
+        Side::Asset => (
+            "a loan balance of zero or more (balances are positive in the account's normal direction)",
+            format!(
+                "a loan opening at {balance} earns nothing: write {} if that is what the customer owes; if the loan opens overpaid, name its rate in debit_rate_ref",
+                -balance
+            ),
+        ),
+    };
+    f.report(Severity::Warning, OPENING_BALANCE, &shown, what, &fix);
+}
+
 /// The error for a `rate_ref` (in column `col`) with no rows in the Rates
 /// sheet, naming the likeliest meant one.
 fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rates: &Rates) {
@@ -899,6 +930,32 @@ mod tests {
             problems[0].fix.contains("add a Holidays sheet"),
             "{}",
             problems[0].fix
+        );
+    }
+
+    /// Found: a deposit opening at -25000.00 (a credit, as a ledger shows
+    /// it) accrued nothing without a word. Expected: a warning at the
+    /// opening_balance cell that says it earns nothing and gives the
+    /// positive amount; the account is still computed. With a debit rate
+    /// the negative balance is meant, and nothing is said.
+    #[test]
+    fn a_negative_opening_balance_on_a_deposit_is_warned_at_its_cell() {
+        let header: Vec<&str> = HEADER.iter().copied().chain(["side", "debit_rate_ref"]).collect();
+        let (found, problems) = read_accounts(&[
+            &header,
+            &["HM-SAV-610", "USD", "ACT/365F", "2026-01-01", "-25000.00", "STD", "", "liability", ""],
+            &["HM-CHK-611", "USD", "ACT/365F", "2026-01-01", "-300.00", "STD", "", "liability", "STD"],
+        ]);
+        assert_eq!(found.unwrap().entries.len(), 2);
+        assert_eq!(problems.len(), 1, "{problems:#?}");
+        let p = &problems[0];
+        assert_eq!((p.severity, p.position.cell.as_str()), (Severity::Warning, "E2"));
+        assert_eq!(p.found, "-25000.00");
+        assert!(p.expected.starts_with("a deposit balance of zero or more"), "{}", p.expected);
+        assert!(
+            p.fix.starts_with("a deposit opening at -25000.00 earns nothing: write 25000.00"),
+            "{}",
+            p.fix
         );
     }
 
