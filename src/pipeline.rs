@@ -266,7 +266,7 @@ fn statement_periods(
                 expected: "statement periods that end on or before the cut-off".to_string(),
                 fix: "run with a later --cutoff to reconcile it; this row is not reconciled"
                     .to_string(),
-                    follows: None,
+                follows: None,
             });
             continue;
         }

@@ -430,7 +430,13 @@ mod tests {
     #[test]
     fn a_missing_sheet_comes_first_and_its_follow_ons_fold_into_one_line() {
         let mut problems: Vec<Problem> = (0..33)
-            .map(|i| follow_on("b.xlsx", &format!("A{}", i + 2), &format!("SAV-{:02}", i + 1)))
+            .map(|i| {
+                follow_on(
+                    "b.xlsx",
+                    &format!("A{}", i + 2),
+                    &format!("SAV-{:02}", i + 1),
+                )
+            })
             .collect();
         problems.push(at("b.xlsx", "Accounts", "C40"));
         problems.push(at("b.xlsx", "Rates", ""));
@@ -440,12 +446,20 @@ mod tests {
         assert_eq!(lines.len(), 3);
         assert_eq!(lines.iter().map(Listed::len).sum::<usize>(), 35);
         let shown: Vec<String> = lines.iter().map(ToString::to_string).collect();
-        assert!(shown[0].starts_with("error: b.xlsx sheet Rates: "), "{}", shown[0]);
+        assert!(
+            shown[0].starts_with("error: b.xlsx sheet Rates: "),
+            "{}",
+            shown[0]
+        );
         assert_eq!(
             shown[1],
             "error: 33 accounts left out because the Rates sheet is missing: SAV-01, SAV-02, SAV-03 and 30 more"
         );
-        assert!(shown[2].starts_with("error: b.xlsx Accounts!C40: "), "{}", shown[2]);
+        assert!(
+            shown[2].starts_with("error: b.xlsx Accounts!C40: "),
+            "{}",
+            shown[2]
+        );
     }
 
     /// One account naming two refs of a missing sheet counts once, in the

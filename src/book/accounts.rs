@@ -285,7 +285,8 @@ fn account(
         (currency?, basis?, open_date?, opening_balance?);
     let compounding = compounding.unwrap_or_default();
     let posting = posting.unwrap_or_default();
-    if opening_balance.is_sign_negative() && !opening_balance.is_zero() && debit_rate_ref.is_none() {
+    if opening_balance.is_sign_negative() && !opening_balance.is_zero() && debit_rate_ref.is_none()
+    {
         warn_negative_opening(f, side, opening_balance);
     }
 
@@ -940,20 +941,52 @@ mod tests {
     /// the negative balance is meant, and nothing is said.
     #[test]
     fn a_negative_opening_balance_on_a_deposit_is_warned_at_its_cell() {
-        let header: Vec<&str> = HEADER.iter().copied().chain(["side", "debit_rate_ref"]).collect();
+        let header: Vec<&str> = HEADER
+            .iter()
+            .copied()
+            .chain(["side", "debit_rate_ref"])
+            .collect();
         let (found, problems) = read_accounts(&[
             &header,
-            &["HM-SAV-610", "USD", "ACT/365F", "2026-01-01", "-25000.00", "STD", "", "liability", ""],
-            &["HM-CHK-611", "USD", "ACT/365F", "2026-01-01", "-300.00", "STD", "", "liability", "STD"],
+            &[
+                "HM-SAV-610",
+                "USD",
+                "ACT/365F",
+                "2026-01-01",
+                "-25000.00",
+                "STD",
+                "",
+                "liability",
+                "",
+            ],
+            &[
+                "HM-CHK-611",
+                "USD",
+                "ACT/365F",
+                "2026-01-01",
+                "-300.00",
+                "STD",
+                "",
+                "liability",
+                "STD",
+            ],
         ]);
         assert_eq!(found.unwrap().entries.len(), 2);
         assert_eq!(problems.len(), 1, "{problems:#?}");
         let p = &problems[0];
-        assert_eq!((p.severity, p.position.cell.as_str()), (Severity::Warning, "E2"));
+        assert_eq!(
+            (p.severity, p.position.cell.as_str()),
+            (Severity::Warning, "E2")
+        );
         assert_eq!(p.found, "-25000.00");
-        assert!(p.expected.starts_with("a deposit balance of zero or more"), "{}", p.expected);
         assert!(
-            p.fix.starts_with("a deposit opening at -25000.00 earns nothing: write 25000.00"),
+            p.expected.starts_with("a deposit balance of zero or more"),
+            "{}",
+            p.expected
+        );
+        assert!(
+            p.fix
+                .starts_with("a deposit opening at -25000.00 earns nothing: write 25000.00"),
             "{}",
             p.fix
         );

@@ -387,8 +387,7 @@ fn unit_warnings(
         format!("values from {lo} to {hi}")
     };
     let values: Vec<Decimal> = percents.iter().map(|(p, _)| *p).collect();
-    if values.iter().any(|p| !p.is_zero())
-        && values.iter().all(|p| p.abs() < PERCENT_LOOKS_DECIMAL)
+    if values.iter().any(|p| !p.is_zero()) && values.iter().all(|p| p.abs() < PERCENT_LOOKS_DECIMAL)
     {
         problems.push(ctx.problem(
             Severity::Warning,
@@ -608,11 +607,18 @@ mod tests {
         assert_eq!(rates.schedules.len(), 5, "a warning keeps the row");
         assert_eq!(problems.len(), 1, "{problems:#?}");
         let p = &problems[0];
-        assert_eq!((p.severity, p.position.cell.as_str()), (Severity::Warning, "C3"));
+        assert_eq!(
+            (p.severity, p.position.cell.as_str()),
+            (Severity::Warning, "C3")
+        );
         assert_eq!(p.found, "0.031");
         assert!(p.expected.contains("it reads as 0.031%"), "{}", p.expected);
         assert!(p.expected.contains("median of 3%"), "{}", p.expected);
-        assert!(p.fix.starts_with("if 0.031 means 3.1%, write 3.1"), "{}", p.fix);
+        assert!(
+            p.fix.starts_with("if 0.031 means 3.1%, write 3.1"),
+            "{}",
+            p.fix
+        );
     }
 
     #[test]

@@ -19,6 +19,7 @@ mod cli_run;
 mod cli_shards;
 mod explain_matches_run;
 mod hostile_inputs;
+mod messages;
 mod output_safety;
 mod pure_core;
 mod quantlib_daycount;
