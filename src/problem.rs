@@ -11,6 +11,10 @@ use std::fmt;
 use crate::book::schema::SheetKind;
 
 /// Where something is in the input: book file, sheet, cell.
+///
+/// A workbook's position reads `BOOK Accounts!F3`. A CSV folder's reads as
+/// the file and line a user opens: `BOOK/accounts.csv, line 3, column
+/// opening_balance`; the reader marks the positions of a CSV folder.
 #[derive(Debug, Clone, PartialEq, Eq, Hash, PartialOrd, Ord, Default)]
 pub struct Position {
     /// The book as given on the command line.
@@ -19,10 +23,99 @@ pub struct Position {
     pub sheet: String,
     /// The cell in A1 notation, or empty for a whole sheet or file.
     pub cell: String,
+    /// Whether the sheet is a CSV file of a folder, shown as a file and line.
+    pub csv: bool,
+    /// The header of the cell's column, where known (shown for a CSV file).
+    pub column: String,
+}
+
+impl Position {
+    /// The sheet as reports show it: a CSV sheet as its file name.
+    ///
+    /// ```
+    /// use ledgerate::problem::Position;
+    /// let p = Position { book: "book".into(), sheet: "accounts".into(), cell: "F3".into(), csv: true, column: "opening_balance".into() };
+    /// assert_eq!(p.sheet_shown(), "accounts.csv");
+    /// assert_eq!(p.cell_shown(), "line 3, column opening_balance");
+    /// assert_eq!(p.to_string(), "book/accounts.csv, line 3, column opening_balance");
+    /// ```
+    pub fn sheet_shown(&self) -> String {
+        if self.csv && !self.sheet.is_empty() {
+            format!("{}.csv", self.sheet)
+        } else {
+            self.sheet.clone()
+        }
+    }
+
+    /// The cell as reports show it: a CSV cell as its line (a CSV file's
+    /// line is the sheet's row) and, where known, its column's header.
+    pub fn cell_shown(&self) -> String {
+        if !self.csv || self.cell.is_empty() {
+            return self.cell.clone();
+        }
+        let (line, _) = parse_a1(&self.cell);
+        if self.column.is_empty() {
+            format!("line {line}")
+        } else {
+            format!("line {line}, column {}", self.column)
+        }
+    }
+
+    /// The position a report row shows (book, [`Self::sheet_shown`],
+    /// [`Self::cell_shown`]), read back: a CSV line becomes its whole row.
+    ///
+    /// ```
+    /// use ledgerate::problem::Position;
+    /// let p = Position::from_shown("book", "accounts.csv", "line 3, column opening_balance");
+    /// assert_eq!((p.sheet.as_str(), p.cell.as_str(), p.csv), ("accounts", "3:3", true));
+    /// assert_eq!(p.to_string(), "book/accounts.csv, line 3, column opening_balance");
+    /// let q = Position::from_shown("book.xlsx", "Accounts", "F3");
+    /// assert_eq!(q.to_string(), "book.xlsx Accounts!F3");
+    /// ```
+    pub fn from_shown(book: &str, sheet: &str, cell: &str) -> Position {
+        let plain = || Position {
+            book: book.to_string(),
+            sheet: sheet.to_string(),
+            cell: cell.to_string(),
+            ..Position::default()
+        };
+        let Some(stem) = sheet.strip_suffix(".csv") else {
+            return plain();
+        };
+        let (line, column) = match cell.strip_prefix("line ") {
+            Some(rest) => match rest.split_once(", column ") {
+                Some((n, c)) => (n, c),
+                None => (rest, ""),
+            },
+            None if cell.is_empty() => ("", ""),
+            None => return plain(),
+        };
+        let cell = match line.parse::<u64>() {
+            Ok(n) => format!("{n}:{n}"),
+            Err(_) if line.is_empty() => String::new(),
+            Err(_) => return plain(),
+        };
+        Position {
+            book: book.to_string(),
+            sheet: stem.to_string(),
+            cell,
+            csv: true,
+            column: column.to_string(),
+        }
+    }
 }
 
 impl fmt::Display for Position {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        if self.csv && !self.sheet.is_empty() {
+            // The file a user opens, then its line.
+            let file = std::path::Path::new(&self.book).join(self.sheet_shown());
+            write!(f, "{}", file.display())?;
+            if !self.cell.is_empty() {
+                write!(f, ", {}", self.cell_shown())?;
+            }
+            return Ok(());
+        }
         match (self.sheet.is_empty(), self.cell.is_empty()) {
             (true, _) => write!(f, "{}", self.book),
             (false, true) => write!(f, "{} sheet {}", self.book, self.sheet),
@@ -79,9 +172,10 @@ pub struct Problem {
 pub struct FollowOn {
     /// The book and sheet of the cause (the cell is empty).
     pub cause: Position,
-    /// What completes "left out because ...", for example
-    /// `the Rates sheet is missing`.
-    pub because: String,
+    /// The kind of sheet, as the book format names it (`Rates`).
+    pub label: String,
+    /// Whether the sheet is missing (else it cannot be read).
+    pub missing: bool,
 }
 
 impl FollowOn {
@@ -91,9 +185,10 @@ impl FollowOn {
             cause: Position {
                 book: book.to_string(),
                 sheet: label.to_string(),
-                cell: String::new(),
+                ..Position::default()
             },
-            because: format!("the {label} sheet is missing"),
+            label: label.to_string(),
+            missing: true,
         }
     }
 
@@ -104,13 +199,42 @@ impl FollowOn {
             cause: Position {
                 book: book.to_string(),
                 sheet: name.to_string(),
-                cell: String::new(),
+                ..Position::default()
             },
-            because: if name == label {
-                format!("the {label} sheet cannot be read")
+            label: label.to_string(),
+            missing: false,
+        }
+    }
+
+    /// What completes "left out because ...": `the Rates sheet is missing`,
+    /// or for a CSV folder `rates.csv is missing`.
+    ///
+    /// ```
+    /// use ledgerate::problem::FollowOn;
+    /// let mut f = FollowOn::missing_sheet("book", "Rates");
+    /// assert_eq!(f.because(), "the Rates sheet is missing");
+    /// f.cause.csv = true;
+    /// assert_eq!(f.because(), "rates.csv is missing");
+    /// let g = FollowOn::unreadable_sheet("book.xlsx", "Rates", "rate table");
+    /// assert_eq!(g.because(), "the Rates sheet (rate table) cannot be read");
+    /// ```
+    pub fn because(&self) -> String {
+        let what = if self.cause.csv {
+            let name = if self.missing {
+                self.label.to_lowercase()
             } else {
-                format!("the {label} sheet ({name}) cannot be read")
-            },
+                self.cause.sheet.clone()
+            };
+            format!("{name}.csv")
+        } else if self.cause.sheet == self.label || self.missing {
+            format!("the {} sheet", self.label)
+        } else {
+            format!("the {} sheet ({})", self.label, self.cause.sheet)
+        };
+        if self.missing {
+            format!("{what} is missing")
+        } else {
+            format!("{what} cannot be read")
         }
     }
 }
@@ -248,7 +372,7 @@ pub enum Listed<'p> {
     /// The follow-ons of one cause, folded into one line.
     Folded {
         /// What the accounts are left out because of.
-        because: &'p str,
+        cause: &'p FollowOn,
         /// The follow-on problems, in report order.
         problems: Vec<&'p Problem>,
     },
@@ -276,7 +400,7 @@ impl fmt::Display for Listed<'_> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             Listed::One(p) => write!(f, "{p}"),
-            Listed::Folded { because, problems } => {
+            Listed::Folded { cause, problems } => {
                 let mut ids: Vec<&str> = Vec::new();
                 for p in problems {
                     let id = p.account.as_deref().unwrap_or(&p.found);
@@ -287,9 +411,10 @@ impl fmt::Display for Listed<'_> {
                 let severity = problems.first().map_or(Severity::Error, |p| p.severity);
                 write!(
                     f,
-                    "{}: {} left out because {because}: ",
+                    "{}: {} left out because {}: ",
                     severity.name(),
-                    counted(ids.len(), "account")
+                    counted(ids.len(), "account"),
+                    cause.because()
                 )?;
                 let shown: Vec<&str> = ids.iter().take(FOLDED_IDS_SHOWN).copied().collect();
                 write!(f, "{}", shown.join(", "))?;
@@ -308,7 +433,9 @@ impl fmt::Display for Listed<'_> {
 /// the problems that follow from it; then every other problem in order.
 /// Nothing is left out: every problem is on exactly one line.
 pub fn by_cause<'p>(problems: &[&'p Problem]) -> Vec<Listed<'p>> {
-    let same_sheet = |a: &Position, b: &Position| a.book == b.book && a.sheet == b.sheet;
+    // A missing sheet's error names the kind, in its own case.
+    let same_sheet =
+        |a: &Position, b: &Position| a.book == b.book && a.sheet.eq_ignore_ascii_case(&b.sheet);
     let mut causes: Vec<&Position> = Vec::new();
     let mut groups: Vec<(&'p FollowOn, Vec<&'p Problem>)> = Vec::new();
     for p in problems {
@@ -326,7 +453,7 @@ pub fn by_cause<'p>(problems: &[&'p Problem]) -> Vec<Listed<'p>> {
     for cause in causes {
         for (i, p) in problems.iter().enumerate() {
             if p.follows.is_none() && same_sheet(&p.position, cause) {
-                listed.push(Listed::One(*p));
+                listed.push(Listed::One(p));
                 if let Some(s) = shown.get_mut(i) {
                     *s = true;
                 }
@@ -334,14 +461,14 @@ pub fn by_cause<'p>(problems: &[&'p Problem]) -> Vec<Listed<'p>> {
         }
         for (fo, members) in groups.iter().filter(|(fo, _)| same_sheet(&fo.cause, cause)) {
             listed.push(Listed::Folded {
-                because: &fo.because,
+                cause: fo,
                 problems: members.clone(),
             });
         }
     }
     for (p, done) in problems.iter().zip(shown) {
         if !done && p.follows.is_none() {
-            listed.push(Listed::One(*p));
+            listed.push(Listed::One(p));
         }
     }
     listed
@@ -366,6 +493,7 @@ mod tests {
                 book: book.into(),
                 sheet: sheet.into(),
                 cell: cell.into(),
+                ..Default::default()
             },
             account: None,
             found: String::new(),

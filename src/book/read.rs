@@ -64,6 +64,35 @@ pub struct ReadOptions {
 /// assert!(missing.has_errors() && missing.accounts.is_empty());
 /// ```
 pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
+    let mut book = read_sheets(path, options);
+    if path.is_dir() {
+        mark_csv(&mut book);
+    }
+    book
+}
+
+/// Marks every position of a CSV folder's book, so that problems (and
+/// those found later from its rows) name the file and line a user opens.
+fn mark_csv(book: &mut Book) {
+    for p in &mut book.problems {
+        p.position.csv = true;
+        if let Some(f) = &mut p.follows {
+            f.cause.csv = true;
+        }
+    }
+    for a in &mut book.accounts {
+        a.position.csv = true;
+    }
+    for s in &mut book.statements {
+        s.position.csv = true;
+    }
+    for s in &mut book.settings {
+        s.position.csv = true;
+    }
+}
+
+/// The book at `path`, its positions as the sheets name them.
+fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     let name = path.display().to_string();
     let loaded = load(path, &name);
     let mut book = Book {
@@ -232,6 +261,7 @@ fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
             book: book.to_string(),
             sheet: sheet.name.clone(),
             cell: a1_row(below),
+            ..Position::default()
         },
         account: None,
         found: "a header row and no account rows".to_string(),

@@ -36,6 +36,7 @@ impl Ctx<'_> {
             book: self.book.to_string(),
             sheet: sheet.to_string(),
             cell,
+            ..Position::default()
         }
     }
 
@@ -664,7 +665,10 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
 
     /// The position of column `i` in this row.
     pub(crate) fn position(&self, i: usize) -> Position {
-        self.ctx.at(&self.table.sheet.name, self.cell_ref(i))
+        Position {
+            column: self.table.name(i).to_string(),
+            ..self.ctx.at(&self.table.sheet.name, self.cell_ref(i))
+        }
     }
 
     /// The raw cell of column `i`.
@@ -698,7 +702,14 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
             expected,
             fix,
         );
-        self.problems.push(p);
+        let column = self.table.name(i).to_string();
+        self.problems.push(Problem {
+            position: Position {
+                column,
+                ..p.position
+            },
+            ..p
+        });
     }
 
     /// Marks the problem just reported as following from another problem

@@ -415,6 +415,7 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
             book: "book.xlsx".into(),
             sheet: "Accounts".into(),
             cell: "C7".into(),
+            ..Default::default()
         },
         account: None,
         found: "'x'".into(),

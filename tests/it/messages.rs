@@ -2,7 +2,7 @@
 //! with what was found, what is expected and the fix: a missing sheet
 //! before the accounts it keeps out, counts in the singular, the id meant
 //! by `explain --account`, date options that are not ISO, RFC 3339 run
-//! times.
+//! times, a CSV book's file and line.
 
 use std::path::{Path, PathBuf};
 
@@ -50,13 +50,13 @@ fn a_missing_rates_sheet_is_printed_first_and_its_accounts_on_one_line() {
     let lines: Vec<&str> = text.lines().filter(|l| l.starts_with("  ")).collect();
     assert_eq!(lines.len(), 2, "{text}");
     assert!(
-        lines[0].contains("sheet Rates: found 'no such file'")
+        lines[0].contains("/book/rates.csv: found 'no such file'")
             && lines[0].contains("add rates.csv"),
         "{text}"
     );
     assert!(
         lines[1].starts_with(
-            "  error: 41 accounts left out because the Rates sheet is missing: HM-SAV-001, HM-SAV-002, HM-SAV-003 and 38 more"
+            "  error: 41 accounts left out because rates.csv is missing: HM-SAV-001, HM-SAV-002, HM-SAV-003 and 38 more"
         ),
         "{text}"
     );
@@ -81,7 +81,7 @@ fn check_lists_each_follow_on_under_its_folded_line() {
     let text = stdout_of(&a);
     let lines: Vec<&str> = text.lines().collect();
     assert!(
-        lines[1].contains("sheet Rates: found 'no such file'"),
+        lines[1].contains("/book/rates.csv: found 'no such file'"),
         "{text}"
     );
     assert!(
@@ -231,4 +231,44 @@ fn fixed_time_takes_rfc_3339_and_keeps_the_time_written() {
         "{}",
         stderr_of(&a)
     );
+}
+
+/// Found: a CSV book's problem read `book accounts!E3`, a sheet and cell
+/// of no file the user has. Expected: the file and line a user opens and
+/// the column's header, the same at the terminal and on the Problems
+/// sheet.
+#[test]
+fn a_csv_book_names_the_file_and_line_on_the_terminal_and_the_problems_sheet() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = dir.path().join("book");
+    std::fs::create_dir_all(&book).unwrap();
+    for f in std::fs::read_dir(sample_csv()).unwrap() {
+        let f = f.unwrap().path();
+        std::fs::copy(&f, book.join(f.file_name().unwrap())).unwrap();
+    }
+    let accounts = std::fs::read_to_string(book.join("accounts.csv")).unwrap();
+    // The second account's day count, on line 3 of the file.
+    let mut lines: Vec<String> = accounts.lines().map(str::to_string).collect();
+    lines[2] = lines[2].replacen("ACT/365F", "ACT/365", 1);
+    std::fs::write(book.join("accounts.csv"), lines.join("\n") + "\n").unwrap();
+    let out = dir.path().join("out.xlsx");
+    let a = ledgerate()
+        .arg("run")
+        .arg(&book)
+        .args(["--cutoff", "2026-11-30", "--out"])
+        .arg(&out)
+        .assert()
+        .code(1);
+    let text = stdout_of(&a);
+    let at = format!(
+        "{}, line 3, column day_count: found 'ACT/365'",
+        book.join("accounts.csv").display()
+    );
+    assert!(text.contains(&format!("  error: {at}")), "{text}");
+    let rows = sheet(&out, "Problems");
+    let row = rows.iter().find(|r| r[4] == "ACT/365").unwrap();
+    assert_eq!(row[2], "accounts.csv");
+    assert_eq!(row[3], "line 3, column day_count");
+    let a = ledgerate().arg("check").arg(&book).assert().code(1);
+    assert!(stdout_of(&a).contains(&at), "{}", stdout_of(&a));
 }

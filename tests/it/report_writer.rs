@@ -212,6 +212,7 @@ fn report() -> Report {
                 book: "harbourview.xlsx".into(),
                 sheet: "Accounts".into(),
                 cell: "D7".into(),
+                ..Position::default()
             },
             account: Some("HM-SAV-005".into()),
             found: "31/02/2024".into(),
