@@ -266,6 +266,7 @@ fn statement_periods(
                 expected: "statement periods that end on or before the cut-off".to_string(),
                 fix: "run with a later --cutoff to reconcile it; this row is not reconciled"
                     .to_string(),
+                follows: None,
             });
             continue;
         }
@@ -287,6 +288,7 @@ fn statement_periods(
                     found: format!("{} statement rows for {start}..{end}", rows.len()),
                     expected: "one row per posting period".to_string(),
                     fix: format!("they are summed into one posting of {posted} (a correction and its reversal, say)"),
+                    follows: None,
                 });
             }
             StatementPeriod { start, end, posted, rows: rows.len() }
@@ -322,6 +324,7 @@ fn fixing_warnings(entry: &AccountEntry, warnings: &[FixingWarning]) -> Vec<Prob
                 ),
                 expected: format!("a {index} fixing for every business day the account needs"),
                 fix: format!("the last published {index} fixing stood in (--fixing-fallback last): add the fixings to the Fixings sheet and run again for final figures"),
+                follows: None,
             }
         })
         .collect()
@@ -367,6 +370,7 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
         found: format!("account {}: {e}", entry.terms.id),
         expected,
         fix,
+        follows: None,
     }
 }
 

@@ -31,6 +31,7 @@ fn entry(id: &str, ccy: &str, minor: u32, side: Side, basis: Basis, balance: &st
             book: "test.xlsx".into(),
             sheet: "Accounts".into(),
             cell: "A2".into(),
+            ..Default::default()
         },
     }
 }
@@ -197,6 +198,7 @@ fn statements_are_reconciled_with_causes() {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),
             cell: "A2".into(),
+            ..Default::default()
         },
     };
     // 1,000.00 at 4.25% on ACT/360 for November to the 15th and 4% after: 1.7708 + 1.6667.
@@ -243,6 +245,7 @@ fn book_with_statements(count: usize) -> Book {
                 book: "test.xlsx".into(),
                 sheet: "Statements".into(),
                 cell: "A2".into(),
+                ..Default::default()
             },
         })
         .collect();

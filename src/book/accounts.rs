@@ -27,8 +27,8 @@ use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
-use crate::problem::{Problem, Severity};
-use crate::schema::{column, ACCOUNTS};
+use crate::problem::{FollowOn, Problem, Severity};
+use crate::schema::{column, SheetKind, ACCOUNTS};
 
 const ACCOUNT: usize = column!(ACCOUNTS, "account");
 const CURRENCY: usize = column!(ACCOUNTS, "currency");
@@ -285,6 +285,10 @@ fn account(
         (currency?, basis?, open_date?, opening_balance?);
     let compounding = compounding.unwrap_or_default();
     let posting = posting.unwrap_or_default();
+    if opening_balance.is_sign_negative() && !opening_balance.is_zero() && debit_rate_ref.is_none()
+    {
+        warn_negative_opening(f, side, opening_balance);
+    }
 
     let calendar = match calendar_name {
         Some(n) => calendar_of(f, &n, others.calendars).unwrap_or_else(|| Arc::clone(weekends)),
@@ -762,6 +766,34 @@ fn floating_check(
     true
 }
 
+/// The warning for an opening balance below zero on an account without a
+/// debit rate: balances are positive in the account's normal direction, so
+/// the account earns nothing until movements bring it above zero. A
+/// deposit typed as a credit (negative, as a ledger shows it) is the usual
+/// cause.
+fn warn_negative_opening(f: &mut Fields<'_, '_, '_>, side: Side, balance: Decimal) {
+    let shown = f
+        .raw(OPENING_BALANCE)
+        .map_or_else(|| balance.to_string(), |c| c.shown());
+    let (what, fix) = match side {
+        Side::Liability => (
+            "a deposit balance of zero or more (balances are positive in the account's normal direction)",
+            format!(
+                "a deposit opening at {balance} earns nothing: write {} if that is what the customer holds; if the account opens overdrawn, name its overdraft rate in debit_rate_ref",
+                -balance
+            ),
+        ),
+        Side::Asset => (
+            "a loan balance of zero or more (balances are positive in the account's normal direction)",
+            format!(
+                "a loan opening at {balance} earns nothing: write {} if that is what the customer owes; if the loan opens overpaid, name its rate in debit_rate_ref",
+                -balance
+            ),
+        ),
+    };
+    f.report(Severity::Warning, OPENING_BALANCE, &shown, what, &fix);
+}
+
 /// The error for a `rate_ref` (in column `col`) with no rows in the Rates
 /// sheet, naming the likeliest meant one.
 fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rates: &Rates) {
@@ -785,7 +817,12 @@ fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rate
         (None, true) => {
             format!("add rows for {rate_ref} to the Rates sheet, or correct {which}")
         }
-        (None, false) => "the Rates sheet cannot be used: see its problems".to_string(),
+        (None, false) if rates.sheet.is_none() => {
+            format!("add a Rates sheet with rows for {rate_ref}")
+        }
+        (None, false) => {
+            format!("correct the Rates sheet (see its own problems); it needs rows for {rate_ref}")
+        }
     };
     f.report(
         Severity::Error,
@@ -794,6 +831,15 @@ fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rate
         &format!("a {which} with rows in the Rates sheet"),
         &fix,
     );
+    if !rates.read {
+        // Every account naming a rate_ref meets this; the Rates sheet's own
+        // problem is the one to fix.
+        let label = SheetKind::Rates.label();
+        f.follows(|book| match &rates.sheet {
+            Some(name) => FollowOn::unreadable_sheet(book, label, name),
+            None => FollowOn::missing_sheet(book, label),
+        });
+    }
 }
 
 #[cfg(test)]
@@ -885,6 +931,64 @@ mod tests {
             problems[0].fix.contains("add a Holidays sheet"),
             "{}",
             problems[0].fix
+        );
+    }
+
+    /// Found: a deposit opening at -25000.00 (a credit, as a ledger shows
+    /// it) accrued nothing without a word. Expected: a warning at the
+    /// opening_balance cell that says it earns nothing and gives the
+    /// positive amount; the account is still computed. With a debit rate
+    /// the negative balance is meant, and nothing is said.
+    #[test]
+    fn a_negative_opening_balance_on_a_deposit_is_warned_at_its_cell() {
+        let header: Vec<&str> = HEADER
+            .iter()
+            .copied()
+            .chain(["side", "debit_rate_ref"])
+            .collect();
+        let (found, problems) = read_accounts(&[
+            &header,
+            &[
+                "HM-SAV-610",
+                "USD",
+                "ACT/365F",
+                "2026-01-01",
+                "-25000.00",
+                "STD",
+                "",
+                "liability",
+                "",
+            ],
+            &[
+                "HM-CHK-611",
+                "USD",
+                "ACT/365F",
+                "2026-01-01",
+                "-300.00",
+                "STD",
+                "",
+                "liability",
+                "STD",
+            ],
+        ]);
+        assert_eq!(found.unwrap().entries.len(), 2);
+        assert_eq!(problems.len(), 1, "{problems:#?}");
+        let p = &problems[0];
+        assert_eq!(
+            (p.severity, p.position.cell.as_str()),
+            (Severity::Warning, "E2")
+        );
+        assert_eq!(p.found, "-25000.00");
+        assert!(
+            p.expected.starts_with("a deposit balance of zero or more"),
+            "{}",
+            p.expected
+        );
+        assert!(
+            p.fix
+                .starts_with("a deposit opening at -25000.00 earns nothing: write 25000.00"),
+            "{}",
+            p.fix
         );
     }
 

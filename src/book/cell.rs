@@ -386,27 +386,42 @@ pub(crate) fn parse_iso_date(s: &str) -> Option<NaiveDate> {
     NaiveDate::parse_from_str(s, "%Y-%m-%d").ok()
 }
 
+/// The dates a non-ISO date text (`31/03/2027`, `2027/3/31`) can be read
+/// as: one when the order is plain (year first, or a day above 12), two
+/// when day and month are both 12 or below (the order is never guessed),
+/// none when it is no date. A two-digit year is never read. `31/03/2027`
+/// is 2027-03-31; `03/04/2027` is 2027-04-03 or 2027-03-04, day first.
+pub(crate) fn date_readings(s: &str) -> Vec<NaiveDate> {
+    let parts: Vec<&str> = s.trim().split(['/', '.', '-']).collect();
+    let [a, b, c] = parts.as_slice() else {
+        return Vec::new();
+    };
+    let (Ok(a), Ok(b), Ok(c)) = (a.parse::<u32>(), b.parse::<u32>(), c.parse::<u32>()) else {
+        return Vec::new();
+    };
+    let ymd = |y: u32, m: u32, d: u32| {
+        i32::try_from(y)
+            .ok()
+            .filter(|y| *y >= 1000)
+            .and_then(|y| NaiveDate::from_ymd_opt(y, m, d))
+    };
+    if a >= 1000 {
+        return ymd(a, b, c).into_iter().collect();
+    }
+    let day_first = ymd(c, b, a);
+    let month_first = ymd(c, a, b);
+    match (day_first, month_first) {
+        (Some(d), Some(m)) if d == m => vec![d],
+        (d, m) => d.into_iter().chain(m).collect(),
+    }
+}
+
 /// The fix for date text that is not ISO. When the text can only be read
-/// one way (a day above 12), the message shows the ISO form; otherwise it
-/// says that the order is not guessed.
+/// one way (a day above 12, or the year first), the message shows the ISO
+/// form; otherwise it says that the order is not guessed.
 fn date_text_fix(s: &str) -> String {
-    let parts: Vec<&str> = s.split(['/', '.', '-']).collect();
-    if let [a, b, y] = parts.as_slice() {
-        let (a, b, y) = (
-            a.parse::<u32>().ok(),
-            b.parse::<u32>().ok(),
-            y.parse::<i32>().ok(),
-        );
-        if let (Some(a), Some(b), Some(y)) = (a, b, y) {
-            let one_way = match (a > 12, b > 12) {
-                (true, false) => NaiveDate::from_ymd_opt(y, b, a),
-                (false, true) => NaiveDate::from_ymd_opt(y, a, b),
-                _ => None,
-            };
-            if let (Some(d), true) = (one_way, y >= 1000) {
-                return format!("write the date as YYYY-MM-DD ({d} if that is the date meant); day/month order is never guessed");
-            }
-        }
+    if let [d] = date_readings(s).as_slice() {
+        return format!("write the date as YYYY-MM-DD ({d} if that is the date meant); day/month order is never guessed");
     }
     if parse_loose_iso(s) {
         return "write the date as YYYY-MM-DD with a real day of the month, for example 2026-01-31"
@@ -715,6 +730,26 @@ mod tests {
             NaiveDate::from_ymd_opt(2026, 1, 31)
         );
         assert_eq!(date(&Cell::Empty).unwrap(), None);
+    }
+
+    /// Found: year-first text such as 2027/3/31 got no ISO suggestion.
+    /// Expected: year first, or a day above 12, reads one way; day and
+    /// month both 12 or below read two ways and are never picked.
+    #[test]
+    fn date_text_reads_one_way_only_with_the_year_first_or_a_day_above_12() {
+        let d = |s: &str| NaiveDate::parse_from_str(s, "%Y-%m-%d").unwrap();
+        assert_eq!(date_readings("31/03/2027"), [d("2027-03-31")]);
+        assert_eq!(date_readings("3.31.2027"), [d("2027-03-31")]);
+        assert_eq!(date_readings("2027/3/31"), [d("2027-03-31")]);
+        assert_eq!(date_readings("05/05/2027"), [d("2027-05-05")]);
+        assert_eq!(
+            date_readings("03/04/2027"),
+            [d("2027-04-03"), d("2027-03-04")]
+        );
+        assert!(date_readings("31/03/27").is_empty());
+        assert!(date_readings("2027-02-30").is_empty());
+        assert!(date_readings("March 31").is_empty());
+        assert!(date_text_fix("2027/3/31").contains("2027-03-31 if that is the date meant"));
     }
 
     #[test]

@@ -57,6 +57,7 @@ pub(crate) fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
             book: book.to_string(),
             sheet: stem.clone(),
             cell: String::new(),
+            ..Position::default()
         };
         let Some(kind) = SheetKind::from_name(&stem) else {
             // Only regular files are noted; nothing else is opened.
@@ -214,6 +215,7 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
         book: book.to_string(),
         sheet: stem.to_string(),
         cell,
+        ..Position::default()
     };
     let bytes = match fs::read(file) {
         Ok(b) => b,

@@ -24,6 +24,7 @@ pub(crate) fn pick_sheets(
             book: book.to_string(),
             sheet: name.clone(),
             cell: String::new(),
+            ..Position::default()
         };
         match SheetKind::from_name(name) {
             Some(kind) => {
@@ -110,8 +111,14 @@ pub(crate) fn check_required(book: &str, loaded: &mut Loaded, csv: bool) {
             Severity::Error,
             Position {
                 book: book.to_string(),
-                sheet: kind.label().to_string(),
+                // A missing CSV file is named as its file would be.
+                sheet: if csv {
+                    kind.label().to_lowercase()
+                } else {
+                    kind.label().to_string()
+                },
                 cell: String::new(),
+                ..Position::default()
             },
             &found,
             &format!(

@@ -49,6 +49,8 @@ pub(crate) struct Rates {
     pub floating_cell: BTreeMap<String, String>,
     /// Whether the sheet was read as a table.
     pub read: bool,
+    /// The name of the sheet, when the book has one.
+    pub sheet: Option<String>,
 }
 
 /// One good row, kept for the tier checks.
@@ -62,7 +64,10 @@ struct RateRow {
 
 /// Reads the Rates sheet.
 pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> Rates {
-    let mut out = Rates::default();
+    let mut out = Rates {
+        sheet: Some(sheet.name.clone()),
+        ..Rates::default()
+    };
     let Some(table) = Table::open(&ctx, sheet, RATES.columns, problems) else {
         return out;
     };
@@ -80,7 +85,7 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
     }
     out.read = true;
     let mut rows: BTreeMap<String, Vec<RateRow>> = BTreeMap::new();
-    let mut percents: Vec<Decimal> = Vec::new();
+    let mut percents: Vec<(Decimal, String)> = Vec::new();
     let mut decimals: Vec<Decimal> = Vec::new();
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
@@ -112,7 +117,7 @@ fn read_row(
     table: &Table<'_>,
     out: &mut Rates,
     rows: &mut BTreeMap<String, Vec<RateRow>>,
-    percents: &mut Vec<Decimal>,
+    percents: &mut Vec<(Decimal, String)>,
     decimals: &mut Vec<Decimal>,
 ) {
     let Some(rate_ref) = f.required_text(RATE_REF) else {
@@ -262,7 +267,7 @@ fn fixed_rate(
     f: &mut Fields<'_, '_, '_>,
     percent: Option<Decimal>,
     decimal: Option<Decimal>,
-    percents: &mut Vec<Decimal>,
+    percents: &mut Vec<(Decimal, String)>,
     decimals: &mut Vec<Decimal>,
 ) -> Option<Decimal> {
     match (percent, decimal, f.given(PERCENT), f.given(DECIMAL)) {
@@ -281,7 +286,7 @@ fn fixed_rate(
             None
         }
         (Some(p), _, _, _) => {
-            percents.push(p);
+            percents.push((p, f.cell_ref(PERCENT)));
             percent_to_decimal(p).or_else(|| {
                 f.report(
                     Severity::Error,
@@ -367,10 +372,12 @@ fn check_tiers(
 
 /// A percent column that only holds tiny values probably holds decimals,
 /// and a decimal column with values of 1 or more probably holds percents.
+/// Among ordinary percents, one rate typed as a decimal is warned at its
+/// cell (see [`decimal_among_percents`]).
 fn unit_warnings(
     ctx: Ctx<'_>,
     table: &Table<'_>,
-    percents: &[Decimal],
+    percents: &[(Decimal, String)],
     decimals: &[Decimal],
     problems: &mut Vec<Problem>,
 ) {
@@ -379,18 +386,36 @@ fn unit_warnings(
         let hi = v.iter().max().copied().unwrap_or_default();
         format!("values from {lo} to {hi}")
     };
-    if percents.iter().any(|p| !p.is_zero())
-        && percents.iter().all(|p| p.abs() < PERCENT_LOOKS_DECIMAL)
+    let values: Vec<Decimal> = percents.iter().map(|(p, _)| *p).collect();
+    if values.iter().any(|p| !p.is_zero()) && values.iter().all(|p| p.abs() < PERCENT_LOOKS_DECIMAL)
     {
         problems.push(ctx.problem(
             Severity::Warning,
             &table.sheet.name,
             table.header_cell(PERCENT),
             None,
-            &range(percents),
+            &range(&values),
             "annual rates in percent (4.25 means 4.25%)",
             "every rate is below 0.2%: if 0.0425 means 4.25%, rename the column to rate_decimal",
         ));
+    } else {
+        let (mid, suspects) = decimal_among_percents(percents);
+        for (p, cell) in suspects {
+            let meant = (p * Decimal::ONE_HUNDRED).normalize();
+            problems.push(ctx.problem(
+                Severity::Warning,
+                &table.sheet.name,
+                cell.clone(),
+                None,
+                &p.to_string(),
+                &format!(
+                    "a rate in percent like the others of the sheet (it reads as {p}%, far below their median of {mid}%)"
+                ),
+                &format!(
+                    "if {p} means {meant}%, write {meant} (rate_percent holds 4.25 for 4.25%); if {p}% is meant, leave it"
+                ),
+            ));
+        }
     }
     if decimals.iter().any(|d| d.abs() >= Decimal::ONE) {
         problems.push(ctx.problem(
@@ -403,6 +428,53 @@ fn unit_warnings(
             "a rate of 1 or more is 100% or more: if 4.25 means 4.25%, rename the column to rate_percent",
         ));
     }
+}
+
+/// A positive rate_percent below 1 that is below this share of the
+/// sheet's median positive rate was probably typed as a decimal (0.031 for
+/// 3.1%). Common practice, no source.
+const FAR_BELOW_MEDIAN: Decimal = Decimal::from_parts(5, 0, 0, false, 2);
+
+/// Decimal places a rate in percent is quoted to (hundredths of a percent,
+/// one basis point). A smaller percent below 1 with more places (0.031,
+/// 0.0425) reads better as a decimal (3.1%, 4.25%); one with as many (0.05)
+/// is as likely a low savings rate, and is not warned. Common practice, no
+/// source.
+const PERCENT_PLACES: u32 = 2;
+
+/// The percent rates (with their cells) that look typed as decimals: above
+/// zero, below 1, with more than [`PERCENT_PLACES`] decimal places, and
+/// below [`FAR_BELOW_MEDIAN`] of the median of the positive rates, with that median. A negative rate is never one:
+/// negative rates are real.
+fn decimal_among_percents(percents: &[(Decimal, String)]) -> (Decimal, Vec<&(Decimal, String)>) {
+    let looks_positive = |p: &Decimal| p.is_sign_positive() && !p.is_zero();
+    let positive: Vec<Decimal> = percents
+        .iter()
+        .map(|(p, _)| *p)
+        .filter(looks_positive)
+        .collect();
+    let Some(mid) = median(&positive) else {
+        return (Decimal::ZERO, Vec::new());
+    };
+    let limit = mid * FAR_BELOW_MEDIAN;
+    let suspects = percents
+        .iter()
+        .filter(|(p, _)| {
+            looks_positive(p)
+                && *p < Decimal::ONE
+                && *p < limit
+                && p.normalize().scale() > PERCENT_PLACES
+        })
+        .collect();
+    (mid, suspects)
+}
+
+/// The median of the values (the lower middle one of an even count), or
+/// `None` for none.
+fn median(values: &[Decimal]) -> Option<Decimal> {
+    let mut v = values.to_vec();
+    v.sort();
+    v.get(v.len().saturating_sub(1) / 2).copied()
 }
 
 #[cfg(test)]
@@ -510,6 +582,49 @@ mod tests {
             (Severity::Warning, "C1")
         );
         assert!(problems[0].fix.contains("rate_percent"));
+    }
+
+    /// Found: 0.031 among rates of 3 to 4.5 in rate_percent passed without
+    /// a word, though it accrues at 0.031%. Expected: a warning at the cell
+    /// saying it reads as 0.031% and how to write 3.1%. A low savings rate
+    /// quoted in hundredths (0.05) and a negative rate are not warned.
+    #[test]
+    fn one_rate_typed_as_a_decimal_among_percents_is_warned_at_its_cell() {
+        let sheet = text_sheet(
+            SheetKind::Rates,
+            &[
+                &["rate_ref", "effective", "rate_percent"],
+                &["STD", "2026-01-01", "3"],
+                &["STD", "2026-06-01", "0.031"],
+                &["BONUS", "2026-01-01", "4.5"],
+                &["EASY", "2026-01-01", "0.05"],
+                &["EUR-NEG", "2026-01-01", "-0.25"],
+                &["TERM", "2026-01-01", "3.75"],
+            ],
+        );
+        let mut problems = Vec::new();
+        let rates = read(ctx(), &sheet, &mut problems);
+        assert_eq!(rates.schedules.len(), 5, "a warning keeps the row");
+        assert_eq!(problems.len(), 1, "{problems:#?}");
+        let p = &problems[0];
+        assert_eq!(
+            (p.severity, p.position.cell.as_str()),
+            (Severity::Warning, "C3")
+        );
+        assert_eq!(p.found, "0.031");
+        assert!(p.expected.contains("it reads as 0.031%"), "{}", p.expected);
+        assert!(p.expected.contains("median of 3%"), "{}", p.expected);
+        assert!(
+            p.fix.starts_with("if 0.031 means 3.1%, write 3.1"),
+            "{}",
+            p.fix
+        );
+    }
+
+    #[test]
+    fn the_far_below_share_is_a_twentieth_and_percents_have_two_places() {
+        assert_eq!(FAR_BELOW_MEDIAN.to_string(), "0.05");
+        assert_eq!(PERCENT_PLACES, 2);
     }
 
     #[test]

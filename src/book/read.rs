@@ -21,7 +21,7 @@ use super::sheet::Sheet;
 use super::statements::Statements;
 use super::table::Ctx;
 use super::{movements, statements};
-use crate::problem::{a1_row, Position, Problem, Severity};
+use crate::problem::{a1_row, FollowOn, Position, Problem, Severity};
 use crate::schema::SheetKind;
 
 /// How to read a book.
@@ -64,6 +64,35 @@ pub struct ReadOptions {
 /// assert!(missing.has_errors() && missing.accounts.is_empty());
 /// ```
 pub fn read_book(path: &Path, options: &ReadOptions) -> Book {
+    let mut book = read_sheets(path, options);
+    if path.is_dir() {
+        mark_csv(&mut book);
+    }
+    book
+}
+
+/// Marks every position of a CSV folder's book, so that problems (and
+/// those found later from its rows) name the file and line a user opens.
+fn mark_csv(book: &mut Book) {
+    for p in &mut book.problems {
+        p.position.csv = true;
+        if let Some(f) = &mut p.follows {
+            f.cause.csv = true;
+        }
+    }
+    for a in &mut book.accounts {
+        a.position.csv = true;
+    }
+    for s in &mut book.statements {
+        s.position.csv = true;
+    }
+    for s in &mut book.settings {
+        s.position.csv = true;
+    }
+}
+
+/// The book at `path`, its positions as the sheets name them.
+fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     let name = path.display().to_string();
     let loaded = load(path, &name);
     let mut book = Book {
@@ -232,11 +261,13 @@ fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
             book: book.to_string(),
             sheet: sheet.name.clone(),
             cell: a1_row(below),
+            ..Position::default()
         },
         account: None,
         found: "a header row and no account rows".to_string(),
         expected: "one row per account under the header".to_string(),
         fix: "add the accounts (check the sheet was not saved filtered), or leave this book out of the run".to_string(),
+        follows: None,
     });
 }
 
@@ -260,6 +291,11 @@ fn unusable_sheet(
                 sheet.kind.label(),
                 sheet.name
             ),
+            follows: Some(FollowOn::unreadable_sheet(
+                &e.position.book,
+                sheet.kind.label(),
+                &sheet.name,
+            )),
         });
         rejected.insert(e.terms.id.clone());
     }
@@ -373,6 +409,7 @@ pub fn check_unique_ids(books: &mut [Book]) {
                         found: id.to_string(),
                         expected: format!("account ids unique across the books of a run (it is also in {first})"),
                         fix: "remove the account from one of the books, or give it its own id; this one is not used".to_string(),
+                        follows: None,
                     }));
                 }
                 None => {

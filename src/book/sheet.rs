@@ -108,6 +108,7 @@ impl Loaded {
             found: shown(found),
             expected: expected.to_string(),
             fix: fix.to_string(),
+            follows: None,
         });
     }
 }

@@ -16,7 +16,7 @@ use super::cell::{self, shown, Cell, Issue, NumberStyle};
 use super::row::{Row, Shape};
 use super::sheet::Sheet;
 use crate::conventions::names::{fold, UnknownName};
-use crate::problem::{a1, a1_row, column_letters, Position, Problem, Severity};
+use crate::problem::{a1, a1_row, column_letters, FollowOn, Position, Problem, Severity};
 use crate::schema::Column;
 
 /// What every sheet reader needs: the book's name for positions, and how
@@ -36,6 +36,7 @@ impl Ctx<'_> {
             book: self.book.to_string(),
             sheet: sheet.to_string(),
             cell,
+            ..Position::default()
         }
     }
 
@@ -58,6 +59,7 @@ impl Ctx<'_> {
             found: found.to_string(),
             expected: expected.to_string(),
             fix: fix.to_string(),
+            follows: None,
         }
     }
 }
@@ -663,7 +665,10 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
 
     /// The position of column `i` in this row.
     pub(crate) fn position(&self, i: usize) -> Position {
-        self.ctx.at(&self.table.sheet.name, self.cell_ref(i))
+        Position {
+            column: self.table.name(i).to_string(),
+            ..self.ctx.at(&self.table.sheet.name, self.cell_ref(i))
+        }
     }
 
     /// The raw cell of column `i`.
@@ -697,7 +702,23 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
             expected,
             fix,
         );
-        self.problems.push(p);
+        let column = self.table.name(i).to_string();
+        self.problems.push(Problem {
+            position: Position {
+                column,
+                ..p.position
+            },
+            ..p
+        });
+    }
+
+    /// Marks the problem just reported as following from another problem
+    /// of this book, built from the book's name.
+    pub(crate) fn follows(&mut self, cause: impl FnOnce(&str) -> FollowOn) {
+        let follow_on = cause(self.ctx.book);
+        if let Some(p) = self.problems.last_mut() {
+            p.follows = Some(follow_on);
+        }
     }
 
     fn issue(&mut self, i: usize, issue: Issue) {

@@ -76,6 +76,7 @@ pub(crate) fn push_sheet(
         book: book.to_string(),
         sheet: name.clone(),
         cell: String::new(),
+        ..Position::default()
     };
     let Some(cells) = cells else {
         loaded.problem(

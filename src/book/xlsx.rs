@@ -128,6 +128,7 @@ fn read_xlsx_sheet(
                     book: book.to_string(),
                     sheet: name.to_string(),
                     cell: String::new(),
+                    ..Position::default()
                 },
                 &e,
                 "a value, not an error cell",

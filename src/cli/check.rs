@@ -12,7 +12,7 @@ use super::inputs::check_books_exist;
 use super::settings::{Given, Settings};
 use super::{exit, read_books, BookArgs};
 use crate::batch::run_books;
-use crate::problem::{Problem, Severity};
+use crate::problem::{by_cause, counted, Listed, Problem, Severity};
 
 /// Arguments of `check`.
 #[derive(Debug, clap::Args)]
@@ -30,25 +30,33 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let books = read_books(&args.books)?;
     let mut errors = 0;
     let mut total = 0;
-    let mut print = |p: &Problem, out: &mut dyn Write| -> Result<()> {
-        writeln!(out, "  {p}")?;
-        total += 1;
-        if p.severity == Severity::Error {
-            errors += 1;
+    let mut print = |problems: &[Problem], out: &mut dyn Write| -> Result<()> {
+        let all: Vec<&Problem> = problems.iter().collect();
+        for line in by_cause(&all) {
+            writeln!(out, "  {line}")?;
+            // The folded line's problems follow under it, one a line.
+            if let Listed::Folded { problems, .. } = &line {
+                for p in problems {
+                    writeln!(out, "    {p}")?;
+                }
+            }
         }
+        total += problems.len();
+        errors += problems
+            .iter()
+            .filter(|p| p.severity == Severity::Error)
+            .count();
         Ok(())
     };
     for b in &books {
         writeln!(
             out,
-            "{}: {} accounts ready, {} problems",
+            "{}: {} ready, {}",
             b.path.display(),
-            b.accounts.len(),
-            b.problems.len()
+            counted(b.accounts.len(), "account"),
+            counted(b.problems.len(), "problem")
         )?;
-        for p in &b.problems {
-            print(p, out)?;
-        }
+        print(&b.problems, out)?;
     }
     let given = Given {
         cutoff: args.cutoff.as_deref(),
@@ -59,16 +67,19 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         let result = run_books(&books, &settings.batch(), &|| {});
         writeln!(
             out,
-            "accrued to {}: {} accounts computed, {} problems",
+            "accrued to {}: {} computed, {}",
             settings.cutoff,
-            result.accounts_computed,
-            result.problems.len()
+            counted(result.accounts_computed, "account"),
+            counted(result.problems.len(), "problem")
         )?;
-        for p in &result.problems {
-            print(p, out)?;
-        }
+        print(&result.problems, out)?;
     }
-    writeln!(out, "{total} problems, {errors} of them errors")?;
+    writeln!(
+        out,
+        "{}, {errors} of them {}",
+        counted(total, "problem"),
+        if errors == 1 { "an error" } else { "errors" }
+    )?;
     // A file that is no book at all is a file error, not an account's.
     Ok(if books.iter().any(crate::book::Book::unreadable) {
         exit::USAGE

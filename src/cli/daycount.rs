@@ -49,9 +49,25 @@ pub struct Args {
 }
 
 fn date(what: &str, s: &str) -> Result<NaiveDate> {
-    parse_iso_date(s).ok_or_else(|| {
-        anyhow!("{what} '{s}' is not an ISO date: write it as YYYY-MM-DD, for example 2026-11-30")
-    })
+    parse_date_option(what, s)
+}
+
+/// A date given on the command line (`what` is the option or argument):
+/// strict ISO only. Other text is refused with what was found and, when it
+/// reads one way only (the year first, or a day above 12), the ISO form;
+/// when day and month are both 12 or below, both readings, unpicked.
+pub(crate) fn parse_date_option(what: &str, s: &str) -> Result<NaiveDate> {
+    if let Some(d) = parse_iso_date(s) {
+        return Ok(d);
+    }
+    let readings = crate::book::cell::date_readings(s);
+    match readings.as_slice() {
+        [d] => bail!("{what} '{s}' is not an ISO date (YYYY-MM-DD): write {d} if that is the date meant"),
+        [a, b] => bail!(
+            "{what} '{s}' is not an ISO date (YYYY-MM-DD), and it reads as {a} (day first) or {b} (month first); the order is never guessed: write the one meant as YYYY-MM-DD"
+        ),
+        _ => bail!("{what} '{s}' is not an ISO date: write it as YYYY-MM-DD, for example 2026-11-30"),
+    }
 }
 
 /// Parses a strict ISO date (YYYY-MM-DD), nothing before or after.

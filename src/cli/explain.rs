@@ -10,11 +10,12 @@ use std::io::Write;
 use anyhow::{anyhow, bail, Result};
 use chrono::NaiveDate;
 
-use super::daycount::parse_iso_date;
+use super::daycount::parse_date_option;
 use super::inputs::check_books_exist;
 use super::settings::{Given, Settings, ToleranceArgs};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::book::{AccountEntry, Book};
+use crate::conventions::names::closest_id;
 use crate::explain::{explain, print};
 use crate::pipeline::Options;
 
@@ -47,8 +48,8 @@ fn parse_period(s: &str) -> Result<(NaiveDate, NaiveDate)> {
     let bad = || anyhow!("--period '{s}' is not START..END: write it like 2026-11-01..2026-11-30");
     let (a, b) = s.split_once("..").ok_or_else(bad)?;
     let (a, b) = (
-        parse_iso_date(a).ok_or_else(bad)?,
-        parse_iso_date(b).ok_or_else(bad)?,
+        parse_date_option("--period START", a)?,
+        parse_date_option("--period END", b)?,
     );
     if b < a {
         bail!("--period '{s}' ends before it starts");
@@ -83,7 +84,7 @@ fn find_account<'b>(books: &'b [Book], id: &str) -> Result<(&'b Book, &'b Accoun
                 .map(|p| format!("  {p}"))
                 .collect();
             if problems.is_empty() {
-                anyhow!("no account '{id}' in the books: check the id on the Accounts sheet")
+                no_such_account(books, id)
             } else {
                 anyhow!(
                     "the account '{id}' cannot be computed:\n{}",
@@ -91,6 +92,23 @@ fn find_account<'b>(books: &'b [Book], id: &str) -> Result<(&'b Book, &'b Accoun
                 )
             }
         })
+}
+
+/// The error for an id no book has, suggesting the id most likely meant
+/// (the same but for letter case, else a letter or two off).
+fn no_such_account(books: &[Book], id: &str) -> anyhow::Error {
+    let ids = books.iter().flat_map(|b| {
+        b.accounts
+            .iter()
+            .map(|a| a.terms.id.as_str())
+            .chain(b.problems.iter().filter_map(|p| p.account.as_deref()))
+    });
+    match closest_id(id, ids) {
+        Some(near) => anyhow!(
+            "no account '{id}' in the books; did you mean '{near}'? ids match exactly, letter case too: give --account {near}"
+        ),
+        None => anyhow!("no account '{id}' in the books: check the id on the Accounts sheet"),
+    }
 }
 
 /// The window, cut-off, tolerances and fixing fallback in force, resolved

@@ -146,14 +146,16 @@ fn read_books_showing(
     Ok(books)
 }
 
-/// The run time written in a workbook: `--fixed-time` (a timestamp, or a
-/// date at midnight), else the clock to the whole second.
+/// The run time written in a workbook: `--fixed-time` (a timestamp, an
+/// RFC 3339 timestamp with `Z` or an offset, or a date at midnight), else
+/// the clock to the whole second.
 fn run_time(fixed: Option<&str>) -> anyhow::Result<chrono::NaiveDateTime> {
     use chrono::{NaiveDateTime, Timelike};
     match fixed {
         Some(t) => NaiveDateTime::parse_from_str(t, "%Y-%m-%dT%H:%M:%S")
             .or_else(|_| NaiveDateTime::parse_from_str(&format!("{t}T00:00:00"), "%Y-%m-%dT%H:%M:%S"))
-            .map_err(|_| anyhow::anyhow!("--fixed-time '{t}' is not a timestamp: write it as YYYY-MM-DDTHH:MM:SS, for example 2026-12-01T09:00:00")),
+            .or_else(|_| settings::rfc3339_wall_time(t))
+            .map_err(|_| anyhow::anyhow!("--fixed-time '{t}' is not a timestamp: write it as YYYY-MM-DDTHH:MM:SS, for example 2026-12-01T09:00:00 (or 2026-12-01T09:00:00Z, or with an offset such as +01:00)")),
         // Whole seconds: the workbook has no finer time.
         None => {
             let now = chrono::Local::now().naive_local();

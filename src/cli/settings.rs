@@ -12,7 +12,7 @@ use anyhow::{anyhow, bail, Result};
 use chrono::{Datelike, NaiveDate};
 use rust_decimal::Decimal;
 
-use super::daycount::parse_iso_date;
+use super::daycount::{parse_date_option, parse_iso_date};
 use crate::batch::journal::JournalStyle;
 use crate::batch::BatchSettings;
 use crate::book::Book;
@@ -241,11 +241,7 @@ fn date(
 ) -> Result<Option<Resolved<NaiveDate>>> {
     let flag = format!("--{}", name.replace('_', "-"));
     if let Some(o) = option {
-        let Some(d) = parse_iso_date(o) else {
-            bail!(
-                "{flag} '{o}' is not an ISO date: write it as YYYY-MM-DD, for example 2026-11-30"
-            );
-        };
+        let d = parse_date_option(&flag, o)?;
         return Ok(Some(Resolved {
             value: d,
             source: SettingSource::Option,
@@ -438,3 +434,19 @@ fn month_start(d: NaiveDate) -> NaiveDate {
 
 #[cfg(test)]
 mod tests;
+
+/// The wall-clock time of an RFC 3339 timestamp (`2026-12-01T09:00:00Z`,
+/// `2026-12-01T09:00:00+01:00`) as written: 09:00:00 in both, the offset
+/// dropped and never converted to another zone, as a run's own clock time
+/// is the local time. Only whole seconds: the workbook keeps no finer time.
+///
+/// # Errors
+/// When `t` is not RFC 3339, or has a fraction of a second.
+pub(crate) fn rfc3339_wall_time(t: &str) -> Result<chrono::NaiveDateTime> {
+    use chrono::Timelike;
+    let at = chrono::DateTime::parse_from_rfc3339(t)?.naive_local();
+    if at.nanosecond() != 0 {
+        bail!("a fraction of a second in '{t}'");
+    }
+    Ok(at)
+}

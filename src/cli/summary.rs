@@ -11,7 +11,7 @@ use std::path::Path;
 use anyhow::Result;
 use rust_decimal::Decimal;
 
-use crate::problem::Severity;
+use crate::problem::{by_cause, counted, Problem, Severity};
 use crate::report::model::Report;
 
 /// The plain-text summary on standard output.
@@ -69,23 +69,35 @@ pub(crate) fn print_summary(out: &mut dyn Write, report: &Report, target: &Path)
     }
     writeln!(
         out,
-        "problems: {} errors, {} warnings, {} notes (all listed on the Problems sheet)",
-        count(Severity::Error),
-        count(Severity::Warning),
-        count(Severity::Note)
+        "problems: {}, {}, {} (all listed on the Problems sheet)",
+        counted(count(Severity::Error), "error"),
+        counted(count(Severity::Warning), "warning"),
+        counted(count(Severity::Note), "note")
     )?;
-    for p in report
-        .problems
-        .iter()
-        .filter(|p| p.severity == Severity::Error)
-        .take(10)
-    {
-        writeln!(out, "  {p}")?;
-    }
-    if count(Severity::Error) > 10 {
-        writeln!(out, "  ... and {} more errors", count(Severity::Error) - 10)?;
-    }
+    print_errors(out, &report.problems)?;
     writeln!(out, "workbook: {}", target.display())?;
     writeln!(out, "review these figures against the contract terms and the applicable standards before booking them")?;
+    Ok(())
+}
+
+/// How many lines of errors the summary prints; the rest are on the
+/// Problems sheet.
+const ERROR_LINES_SHOWN: usize = 10;
+
+/// The first errors, root causes first and the accounts that only follow
+/// from one folded into one line, then how many more there are.
+fn print_errors(out: &mut dyn Write, problems: &[Problem]) -> Result<()> {
+    let errors: Vec<&Problem> = problems
+        .iter()
+        .filter(|p| p.severity == Severity::Error)
+        .collect();
+    let lines = by_cause(&errors);
+    for line in lines.iter().take(ERROR_LINES_SHOWN) {
+        writeln!(out, "  {line}")?;
+    }
+    let more: usize = lines.iter().skip(ERROR_LINES_SHOWN).map(|l| l.len()).sum();
+    if more > 0 {
+        writeln!(out, "  ... and {} more", counted(more, "error"))?;
+    }
     Ok(())
 }

@@ -122,6 +122,42 @@ fn closest<T: Copy + PartialEq>(
         .find(|a| table.iter().any(|(n, v)| fold(n) == fold(a) && *v == value))
 }
 
+/// The most edits (letters added, removed or changed, letter case aside)
+/// between an id typed and an id of the books for [`closest_id`] to
+/// suggest it. Common practice, no source.
+pub const ID_EDITS_SUGGESTED: usize = 2;
+
+/// The id among `ids` that `found` most likely means, for a message: one
+/// equal to it but for letter case first; else the one fewest edits away
+/// (letter case aside), when at most [`ID_EDITS_SUGGESTED`]; on a tie the
+/// earlier one. Ids themselves always match exactly; this only suggests.
+///
+/// ```
+/// use ledgerate::conventions::names::closest_id;
+/// let ids = ["HM-LN-003", "HM-LN-030", "HM-SAV-001"];
+/// assert_eq!(closest_id("hm-ln-003", ids), Some("HM-LN-003"));
+/// assert_eq!(closest_id("HM-LN-03", ids), Some("HM-LN-003"));
+/// assert_eq!(closest_id("XX-99", ids), None);
+/// ```
+pub fn closest_id<'a>(found: &str, ids: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
+    let key = found.trim().to_lowercase();
+    if key.is_empty() {
+        return None;
+    }
+    let mut best: Option<(usize, &'a str)> = None;
+    for id in ids {
+        let folded = id.to_lowercase();
+        if folded == key {
+            return Some(id);
+        }
+        let d = strsim::levenshtein(&key, &folded);
+        if d <= ID_EDITS_SUGGESTED && best.is_none_or(|(b, _)| d < b) {
+            best = Some((d, id));
+        }
+    }
+    best.map(|(_, id)| id)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

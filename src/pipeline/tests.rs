@@ -36,6 +36,7 @@ fn entry() -> AccountEntry {
             book: "test.xlsx".into(),
             sheet: "Accounts".into(),
             cell: "A2".into(),
+            ..Default::default()
         },
     }
 }
@@ -55,6 +56,7 @@ fn row(start: &str, end: &str, posted: &str, cell: &str) -> StatementRow {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),
             cell: cell.into(),
+            ..Default::default()
         },
     }
 }

@@ -459,15 +459,12 @@ impl Written {
         for r in list.rows(&self.path) {
             let p = Problem {
                 severity: r.severity(0)?,
-                position: Position {
-                    book: r.text(1),
-                    sheet: r.text(2),
-                    cell: r.text(3),
-                },
+                position: Position::from_shown(&r.text(1), &r.text(2), &r.text(3)),
                 account: None,
                 found: r.text(4),
                 expected: r.text(5),
                 fix: r.text(6),
+                follows: None,
             };
             if !is_writer_note(&p) {
                 problems.push(p);

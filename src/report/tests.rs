@@ -415,11 +415,13 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
             book: "book.xlsx".into(),
             sheet: "Accounts".into(),
             cell: "C7".into(),
+            ..Default::default()
         },
         account: None,
         found: "'x'".into(),
         expected: "a name".into(),
         fix: "type one".into(),
+        follows: None,
     }];
     let limits = Limits {
         rows_per_sheet: 3,

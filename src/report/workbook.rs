@@ -586,8 +586,9 @@ fn problem_row(c: &mut Cells<'_>, p: &&Problem) -> Result<(), ReportError> {
         styles.severity(p.severity).unwrap_or(&styles.text),
     )?;
     c.text(1, &p.position.book)?;
-    c.text(2, &p.position.sheet)?;
-    c.text(3, &p.position.cell)?;
+    // A CSV book's file and line, as the terminal shows them.
+    c.text(2, &p.position.sheet_shown())?;
+    c.text(3, &p.position.cell_shown())?;
     // Long explanations wrap inside their capped columns.
     c.text_as(4, &p.found, &styles.wrap)?;
     c.text_as(5, &p.expected, &styles.wrap)?;
@@ -608,6 +609,7 @@ fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             book: output_name(target),
             sheet: first.sheet.clone(),
             cell: first.cell.clone(),
+            ..Position::default()
         },
         account: None,
         found: first.text.clone(),
@@ -619,6 +621,7 @@ fn text_figure_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             if texts.count == 1 { " is" } else { "s are" },
             cells.join(", ")
         ),
+        follows: None,
     })
 }
 
@@ -633,6 +636,7 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             book: output_name(target),
             sheet: first.sheet.clone(),
             cell: first.cell.clone(),
+            ..Position::default()
         },
         account: None,
         found: format!("{}…", first.text),
@@ -643,6 +647,7 @@ fn cut_text_problem(texts: &TextFigures, target: &Path) -> Option<Problem> {
             if texts.cut_count == 1 { " is" } else { "s are" },
             cells.join(", ")
         ),
+        follows: None,
     })
 }
 

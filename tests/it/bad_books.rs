@@ -140,7 +140,12 @@ struct Seen {
 fn printed(output: &str, book: &str) -> Vec<Seen> {
     let mut out = Vec::new();
     for line in output.lines() {
-        let Some(rest) = line.strip_prefix("  ") else {
+        // A problem that follows from another is indented under the
+        // line that folds it.
+        let Some(rest) = line
+            .strip_prefix("    ")
+            .or_else(|| line.strip_prefix("  "))
+        else {
             continue;
         };
         let Some((kind, rest)) = rest.split_once(": ") else {
@@ -152,7 +157,16 @@ fn printed(output: &str, book: &str) -> Vec<Seen> {
         let Some(rest) = rest.strip_prefix(book) else {
             continue;
         };
-        let (sheet, cell, text) = if let Some(text) = rest.strip_prefix(": ") {
+        // A CSV folder's problems name the file and line:
+        // `BOOK/accounts.csv, line 3, column balance: found ...`.
+        let csv_file = rest
+            .strip_prefix(std::path::MAIN_SEPARATOR)
+            .and_then(|r| r.split_once(": "))
+            .filter(|(at, _)| at.ends_with(".csv") || at.contains(".csv, line "));
+        let (sheet, cell, text) = if let Some((at, text)) = csv_file {
+            let (file, line) = at.split_once(", ").unwrap_or((at, ""));
+            (file.to_string(), line.to_string(), text)
+        } else if let Some(text) = rest.strip_prefix(": ") {
             (String::new(), String::new(), text)
         } else if let Some(r) = rest.strip_prefix(" sheet ") {
             let (sheet, text) = r.split_once(": ").unwrap();

@@ -133,7 +133,9 @@ fn missing_terms_are_errors_that_say_how_to_fix_them() {
         .args(["daycount", "ACT/360", "01/11/2026", "2026-12-01"])
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("write it as YYYY-MM-DD"));
+        .stderr(predicate::str::contains(
+            "reads as 2026-11-01 (day first) or 2026-01-11 (month first); the order is never guessed: write the one meant as YYYY-MM-DD",
+        ));
 }
 
 #[test]

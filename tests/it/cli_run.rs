@@ -230,7 +230,9 @@ fn a_missing_book_or_cutoff_is_a_usage_error() {
         .args(["--cutoff", "30/11/2026"])
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("write it as YYYY-MM-DD"));
+        .stderr(predicate::str::contains(
+            "--cutoff '30/11/2026' is not an ISO date (YYYY-MM-DD): write 2026-11-30 if that is the date meant",
+        ));
 }
 
 #[test]
@@ -278,7 +280,7 @@ fn the_template_is_a_book_the_reader_accepts() {
         .arg("check")
         .arg(&t)
         .assert()
-        .stdout(predicate::str::contains("accounts ready"));
+        .stdout(predicate::str::contains("1 account ready, 0 problems"));
 }
 
 /// The sample statements carry planted mistakes; each is flagged and its

@@ -23,6 +23,7 @@ mod hostile_books;
 mod hostile_inputs;
 mod layers;
 mod merge_safety;
+mod messages;
 mod output_safety;
 mod quantlib_daycount;
 mod quantlib_overnight;

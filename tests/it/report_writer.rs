@@ -212,11 +212,13 @@ fn report() -> Report {
                 book: "harbourview.xlsx".into(),
                 sheet: "Accounts".into(),
                 cell: "D7".into(),
+                ..Position::default()
             },
             account: Some("HM-SAV-005".into()),
             found: "31/02/2024".into(),
             expected: "a date such as 2024-02-29".into(),
             fix: "type the date as YYYY-MM-DD or as a spreadsheet date".into(),
+            follows: None,
         }],
     }
 }

@@ -23,6 +23,7 @@ fn book(path: &str, rows: &[(&str, &str)]) -> Book {
                     book: path.into(),
                     sheet: "Settings".into(),
                     cell: format!("B{row}"),
+                    ..Default::default()
                 },
             })
             .collect(),
@@ -239,7 +240,7 @@ fn bad_values_are_refused_with_the_way_to_write_them() {
             cutoff: Some("30/11/2026"),
             ..Given::default()
         }),
-        "--cutoff '30/11/2026' is not an ISO date: write it as YYYY-MM-DD, for example 2026-11-30"
+        "--cutoff '30/11/2026' is not an ISO date (YYYY-MM-DD): write 2026-11-30 if that is the date meant"
     );
     assert_eq!(
         err(cutoff(Given {
