@@ -13,7 +13,7 @@ use std::collections::HashMap;
 use chrono::NaiveDateTime;
 
 use super::journal::Journal;
-use super::totals::{StatusCounts, Totals};
+use super::totals::{largest_variances, StatusCounts, Totals, LARGEST_PER_CURRENCY};
 use crate::problem::{sort_problems, Problem};
 use crate::report::model::{AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts, Setting};
 use crate::report::readback::RunRows;
@@ -64,6 +64,7 @@ pub fn merge(
     Ok(Report {
         totals: totals.rows(),
         status_counts: counts.rows(),
+        largest_variances: largest_variances(&rows.reconciliation, LARGEST_PER_CURRENCY),
         facts: RunFacts {
             command_line,
             settings,

@@ -173,6 +173,8 @@ fn report() -> Report {
                 rows: 1,
             },
         ],
+        // USD rows outside tolerance, largest variance first.
+        largest_variances: vec![1, 3],
         journal: vec![
             JournalLine {
                 date: date("2024-03-31"),
