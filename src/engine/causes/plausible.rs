@@ -15,9 +15,10 @@
 //!    changes or movements) moved or dropped; then the period a day off;
 //!    then a floating-rate term of the account; then another day-count
 //!    basis; then rounding; then compounding;
-//! 3. within a kind: an entry moved by fewer days first, a dropped entry
-//!    after any move; a basis closer in family to the account's first
-//!    ([`basis_distance`]);
+//! 3. within a kind: an entry dropped before one moved (when both give the
+//!    same amount, the move took the entry out of the period, which is what
+//!    dropping says), an entry moved by fewer days first; a basis closer in
+//!    family to the account's first ([`basis_distance`]);
 //! 4. the search's own order.
 
 use super::{ChangeKind, Found, LikelyCause};
@@ -102,9 +103,7 @@ fn kind_rank(kind: ChangeKind) -> u8 {
 /// Step 3 of the rule: the order within a kind.
 fn within(kind: ChangeKind, basis: Basis) -> (u64, usize) {
     match kind {
-        ChangeKind::RateChange { days } | ChangeKind::Movement { days } => {
-            (days.unwrap_or(u64::MAX), 0)
-        }
+        ChangeKind::RateChange { days } | ChangeKind::Movement { days } => (days.unwrap_or(0), 0),
         ChangeKind::Basis(to) => {
             let (apart, places) = basis_distance(basis, to);
             (u64::from(apart), places)
@@ -221,9 +220,9 @@ mod tests {
         assert_eq!(
             words(&c),
             [
+                "left out",
                 "rate 1",
                 "moved 3",
-                "left out",
                 "period",
                 "floating",
                 "basis",
