@@ -1054,6 +1054,10 @@ fn summary_largest_variances(
     }
     let styles = c.styles();
     let mut row = row + 2;
+    // The table, the gloss and the chart print together on a page of their own.
+    c.sheet()
+        .set_page_breaks(&[row])
+        .map_err(|e| ReportError::sheet("Summary", e))?;
     section(c, row, LARGEST_VARIANCES_TITLE, SUMMARY_COLS)?;
     if report.largest_variances.is_empty() {
         row += 1;
