@@ -14,6 +14,7 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use crate::book::{AccountEntry, Book};
+use crate::engine::causes::LikelyCause;
 use crate::engine::floating::FixingUsed;
 use crate::engine::reconcile::Status;
 use crate::engine::{DayRow, FloorOn, PostingRow};
@@ -349,7 +350,10 @@ fn print_statements(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
             writeln!(
                 out,
                 "  likely cause: {}",
-                c.likely_cause.as_deref().unwrap_or_default()
+                c.likely_cause
+                    .as_ref()
+                    .map(LikelyCause::text)
+                    .unwrap_or_default()
             )?;
         }
     }

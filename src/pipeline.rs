@@ -17,7 +17,7 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use crate::book::{AccountEntry, Book, StatementRow};
-use crate::engine::causes::likely_cause;
+use crate::engine::causes::{search, LikelyCause};
 use crate::engine::floating::{
     FixingFallback, FixingWarning, Fixings, FloatingRates, FloatingSchedule,
 };
@@ -101,7 +101,7 @@ pub struct CheckedRow {
     /// The period's figures and status.
     pub row: Reconciled,
     /// The likely cause, for a row over- or under-posted (else `None`).
-    pub likely_cause: Option<String>,
+    pub likely_cause: Option<LikelyCause>,
 }
 
 /// One account computed.
@@ -190,7 +190,7 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         .into_iter()
         .map(|row| CheckedRow {
             likely_cause: matches!(row.status, Status::OverPosted | Status::UnderPosted)
-                .then(|| likely_cause(t, &inputs, &result.states, &row, &options.tolerance)),
+                .then(|| search(t, &inputs, &result.states, &row, &options.tolerance)),
             row,
         })
         .collect();

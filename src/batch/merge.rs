@@ -14,7 +14,7 @@ use chrono::NaiveDateTime;
 
 use super::journal::Journal;
 use super::split::OneSplit;
-use super::totals::{StatusCounts, Totals};
+use super::totals::{largest_variances, StatusCounts, Totals, LARGEST_PER_CURRENCY};
 use crate::problem::{sort_problems, Problem};
 use crate::report::model::{AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts};
 use crate::report::readback::RunRows;
@@ -64,6 +64,7 @@ pub fn merge(
     Report {
         totals: totals.rows(),
         status_counts: counts.rows(),
+        largest_variances: largest_variances(&rows.reconciliation, LARGEST_PER_CURRENCY),
         facts: RunFacts {
             command_line,
             settings,

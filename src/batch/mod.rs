@@ -18,6 +18,7 @@ use rayon::prelude::*;
 use rust_decimal::Decimal;
 
 use crate::book::{AccountEntry, Book, StatementRow};
+use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
@@ -369,7 +370,7 @@ fn statements_by_account(book: &Book) -> HashMap<&str, Vec<&StatementRow>> {
 fn reconciliation_line(
     entry: &AccountEntry,
     row: &Reconciled,
-    likely_cause: Option<String>,
+    likely_cause: Option<LikelyCause>,
 ) -> ReconciliationLine {
     let t = &entry.terms;
     let cause = match row.status {
@@ -378,7 +379,10 @@ fn reconciliation_line(
         Status::UnexpectedPosting => {
             "no day of the period had a balance earning interest".to_string()
         }
-        Status::OverPosted | Status::UnderPosted => likely_cause.unwrap_or_default(),
+        // The most plausible change leads; explain prints the search's whole list.
+        Status::OverPosted | Status::UnderPosted => likely_cause
+            .map(|c| plausible::sheet_words(&c, &t.id))
+            .unwrap_or_default(),
     };
     ReconciliationLine {
         account: t.id.clone(),

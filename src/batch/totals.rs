@@ -1,5 +1,5 @@
 //! The Summary's sums: totals by currency and rows by status, added one line
-//! at a time.
+//! at a time; and its choice of the largest variances in money.
 //!
 //! The batch adds each account's line as it is computed; a merge of shard
 //! workbooks adds the lines it read back. Both go through these two types,
@@ -13,7 +13,7 @@ use std::collections::BTreeMap;
 use rust_decimal::Decimal;
 
 use crate::engine::reconcile::Status;
-use crate::report::model::{AccrualLine, CurrencyTotal, StatusCount, Word};
+use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, StatusCount, Word};
 
 /// Totals by currency: accounts, balance at cut-off, accrued at cut-off,
 /// posted in window and interest for window, each the sum of the accounts'
@@ -127,4 +127,67 @@ impl StatusCounts {
             })
             .collect()
     }
+}
+
+/// Rows of each currency named in the Summary's table of the largest
+/// variances in money.
+pub const LARGEST_PER_CURRENCY: usize = 5;
+
+/// The Summary's largest variances in money: for each currency (in code
+/// order), up to `per_currency` rows outside tolerance, the largest
+/// |variance| first and equal ones in row order. Indices into `rows`.
+///
+/// A variance in basis points makes a small miss on a small balance look
+/// large; this table ranks the misses in money, within one currency, where
+/// amounts compare.
+///
+/// ```
+/// use ledgerate::batch::totals::largest_variances;
+/// use ledgerate::engine::reconcile::Status;
+/// use ledgerate::report::model::ReconciliationLine;
+/// use rust_decimal::Decimal;
+///
+/// let day = chrono::NaiveDate::from_ymd_opt(2026, 11, 30).unwrap();
+/// let row = |ccy: &'static str, variance: i64, status: Status| ReconciliationLine {
+///     account: format!("{ccy}{variance}"),
+///     currency: ccy.into(),
+///     minor_units: 2,
+///     period_start: day,
+///     period_end: day,
+///     days: 1,
+///     balance_years: Decimal::ONE,
+///     expected: Decimal::ZERO,
+///     posted: Decimal::new(variance, 2),
+///     variance: Decimal::new(variance, 2),
+///     variance_bp: None,
+///     status,
+///     likely_cause: String::new(),
+/// };
+/// let rows = [
+///     row("USD", 2500, Status::OverPosted),
+///     row("GBP", -869, Status::UnderPosted),
+///     row("USD", -4000, Status::UnderPosted),
+///     row("USD", 1, Status::WithinTolerance),
+/// ];
+/// // GBP before USD; -40.00 before 25.00; the row within tolerance is left out.
+/// assert_eq!(largest_variances(&rows, 5), [1, 2, 0]);
+/// assert_eq!(largest_variances(&rows, 1), [1, 2]);
+/// ```
+pub fn largest_variances(rows: &[ReconciliationLine], per_currency: usize) -> Vec<usize> {
+    let mut by_currency: BTreeMap<&str, Vec<usize>> = BTreeMap::new();
+    for (i, r) in rows.iter().enumerate() {
+        if r.status.outside_tolerance() {
+            by_currency.entry(&r.currency).or_default().push(i);
+        }
+    }
+    let size = |i: &usize| rows.get(*i).map_or(Decimal::ZERO, |r| r.variance.abs());
+    by_currency
+        .into_values()
+        .flat_map(|mut indices| {
+            // Stable: equal variances stay in row order.
+            indices.sort_by_key(|i| std::cmp::Reverse(size(i)));
+            indices.truncate(per_currency);
+            indices
+        })
+        .collect()
 }

@@ -38,6 +38,3 @@ mod xlsx;
 
 pub use model::{AccountEntry, Book, GlCodes, SettingRow, StatementRow};
 pub use read::{check_unique_ids, contract_violations, read_book, ReadOptions};
-
-/// The book's format, described once (kept here too under its old path).
-pub use crate::schema;

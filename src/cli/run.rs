@@ -13,6 +13,7 @@ use super::inputs::{check_books_exist, check_output_is_not_an_input, fingerprint
 use super::settings::{Given, Settings, ToleranceArgs};
 use super::summary::print_summary;
 use super::{exit, progress, read_books_showing, refuse_unreadable, run_time, BookArgs};
+use crate::batch::totals::{largest_variances, LARGEST_PER_CURRENCY};
 use crate::batch::{run_books, BatchResult};
 use crate::book::Book;
 use crate::problem::{Problem, Severity};
@@ -214,6 +215,7 @@ fn report(
         },
         totals: batch.totals,
         accruals: batch.accruals,
+        largest_variances: largest_variances(&batch.reconciliation, LARGEST_PER_CURRENCY),
         reconciliation: batch.reconciliation,
         status_counts: batch.status_counts,
         journal: batch.journal,

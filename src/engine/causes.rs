@@ -27,6 +27,7 @@ use crate::conventions::rounding::RoundMode;
 #[derive(Debug, Clone)]
 struct Change {
     words: String,
+    kind: ChangeKind,
     terms: Option<AccountTerms>,
     rates: Option<RateSchedule>,
     movements: Option<Vec<Movement>>,
@@ -37,10 +38,11 @@ struct Change {
 }
 
 impl Change {
-    /// A change named `words` that touches nothing yet, from the period's start `from`.
-    fn new(words: String, from: NaiveDate) -> Change {
+    /// A change of `kind` named `words` that touches nothing yet, from the period's start `from`.
+    fn new(kind: ChangeKind, words: String, from: NaiveDate) -> Change {
         Change {
             words,
+            kind,
             terms: None,
             rates: None,
             movements: None,
@@ -111,12 +113,13 @@ fn changes(terms: &AccountTerms, inputs: &Inputs, row: &Reconciled) -> Vec<Chang
 /// Another basis, compounding, rounding point, rounding mode, or daily
 /// rounding to another number of places.
 fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
-    let with = |words: String, terms: AccountTerms| Change {
+    let with = |kind: ChangeKind, words: String, terms: AccountTerms| Change {
         terms: Some(terms),
-        ..Change::new(words, s)
+        ..Change::new(kind, words, s)
     };
     for b in Basis::ALL.into_iter().filter(|b| *b != t.basis) {
         out.push(with(
+            ChangeKind::Basis(b),
             format!("interest on {} instead of {}", b.name(), t.basis.name()),
             AccountTerms {
                 basis: b,
@@ -126,6 +129,7 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
     }
     for k in Compounding::ALL.into_iter().filter(|k| *k != t.compounding) {
         out.push(with(
+            ChangeKind::Compounding,
             format!(
                 "compounding {} instead of {}",
                 k.name(),
@@ -142,6 +146,7 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
         RoundAt::Daily => RoundAt::Posting,
     };
     out.push(with(
+        ChangeKind::Rounding,
         format!(
             "interest rounded {} instead of at {}",
             round_point_words(other_point, t),
@@ -154,6 +159,7 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
     ));
     for m in RoundMode::ALL.into_iter().filter(|m| *m != t.round_mode) {
         out.push(with(
+            ChangeKind::Rounding,
             format!("rounded {} instead of {}", m.name(), t.round_mode.name()),
             AccountTerms {
                 round_mode: m,
@@ -166,6 +172,7 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
         .filter(|p| t.round_at != RoundAt::Daily || *p != current_places)
     {
         out.push(with(
+            ChangeKind::Rounding,
             format!("each day's interest rounded to {places} places"),
             AccountTerms {
                 round_at: RoundAt::Daily,
@@ -188,6 +195,7 @@ fn period_changes(row: &Reconciled, out: &mut Vec<Change>) {
         if let (Some(ps), Some(pe)) = (ps, pe) {
             if ps <= pe {
                 let mut c = Change::new(
+                    ChangeKind::Period,
                     format!("{words}: {ps}..{pe} instead of {s}..{}", row.end),
                     ps.min(s),
                 );
@@ -228,6 +236,9 @@ fn rate_changes(rates: &RateSchedule, row: &Reconciled, out: &mut Vec<Change>) {
                 m.effective = moved;
             }
             let mut c = Change::new(
+                ChangeKind::RateChange {
+                    days: Some(k.unsigned_abs()),
+                },
                 format!("{what} applied from {moved} instead"),
                 moved.min(table.effective).min(s),
             );
@@ -236,7 +247,11 @@ fn rate_changes(rates: &RateSchedule, row: &Reconciled, out: &mut Vec<Change>) {
         }
         let mut without = tables.to_vec();
         without.remove(i);
-        let mut c = Change::new(format!("{what} not applied"), table.effective.min(s));
+        let mut c = Change::new(
+            ChangeKind::RateChange { days: None },
+            format!("{what} not applied"),
+            table.effective.min(s),
+        );
         c.rates = Some(RateSchedule::from_tables(without));
         out.push(c);
     }
@@ -280,6 +295,9 @@ fn movement_changes(
                 continue;
             }
             let mut c = Change::new(
+                ChangeKind::Movement {
+                    days: Some(k.unsigned_abs()),
+                },
                 format!("{what} taken from {v} instead"),
                 v.min(m.value_date).min(s),
             );
@@ -288,6 +306,13 @@ fn movement_changes(
         }
         if let Some(b) = m.booking_date.filter(|b| *b != m.value_date) {
             let mut c = Change::new(
+                ChangeKind::Movement {
+                    days: Some(
+                        b.signed_duration_since(m.value_date)
+                            .num_days()
+                            .unsigned_abs(),
+                    ),
+                },
                 format!("{what} taken from its booking date {b} instead"),
                 b.min(m.value_date).min(s),
             );
@@ -296,7 +321,11 @@ fn movement_changes(
         }
         let mut left = movements.to_vec();
         left.remove(i);
-        let mut c = Change::new(format!("{what} left out"), m.value_date.min(s));
+        let mut c = Change::new(
+            ChangeKind::Movement { days: None },
+            format!("{what} left out"),
+            m.value_date.min(s),
+        );
         c.movements = Some(left);
         out.push(c);
     }
@@ -306,7 +335,7 @@ fn movement_changes(
 /// days, the observation shift and the compounding of the spread the other
 /// way, and any floor or cap not applied.
 fn floating_changes(t: &AccountTerms, schedule: &FloatingSchedule, s: NaiveDate) -> Vec<Change> {
-    let base = |words: String| Change::new(words, s);
+    let base = |words: String| Change::new(ChangeKind::Floating, words, s);
     let mut out = Vec::new();
     let fl = t.floating;
     let with = |floating: FloatingTerms| AccountTerms {
@@ -412,6 +441,73 @@ fn state_for(states: &[AccrualState], terms: &AccountTerms, from: NaiveDate) -> 
     }
 }
 
+/// What kind of change reproduced an amount: what [`plausible`] ranks by.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ChangeKind {
+    /// Interest on this other basis.
+    Basis(Basis),
+    /// Another compounding.
+    Compounding,
+    /// Rounding at the other point, in another mode or to other places.
+    Rounding,
+    /// The period's start or end a day off.
+    Period,
+    /// A rate change of the account moved by `days`, or not applied (`None`).
+    RateChange {
+        /// Days moved; `None` when not applied at all.
+        days: Option<u64>,
+    },
+    /// A movement of the account moved by `days` (to its booking date or
+    /// another day), or left out (`None`).
+    Movement {
+        /// Days moved; `None` when left out.
+        days: Option<u64>,
+    },
+    /// A floating-rate term: the lookback, the observation shift, the
+    /// spread's compounding, a floor or cap.
+    Floating,
+}
+
+/// One change that reproduces the posted amount within tolerance.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Found {
+    /// The change and how close it comes, in plain words.
+    pub words: String,
+    /// |posted - expected with the change|.
+    pub gap: Decimal,
+    /// What kind of change it is.
+    pub kind: ChangeKind,
+}
+
+/// The cause search's finding for one row.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct LikelyCause {
+    /// The account's own basis (what a basis change is measured from).
+    pub basis: Basis,
+    /// Every change that reproduces the posted amount, in the search's own
+    /// order: closest first, equally close ones in the order of
+    /// behaviour.md, Likely causes.
+    pub found: Vec<Found>,
+    /// When no change does: the implied rate, in plain words.
+    pub implied: Option<String>,
+}
+
+impl LikelyCause {
+    /// The whole finding as one text: every change found, in the search's
+    /// own order, joined by "; or " (or the implied rate). `explain` prints it.
+    pub fn text(&self) -> String {
+        match &self.implied {
+            Some(words) if self.found.is_empty() => words.clone(),
+            _ => self
+                .found
+                .iter()
+                .map(|f| f.words.as_str())
+                .collect::<Vec<_>>()
+                .join("; or "),
+        }
+    }
+}
+
 /// The changes that reproduce `row`'s posted amount, closest first (equally
 /// close ones in list order), as plain words; or, when none does, the implied
 /// rate and its gap to the contract rate in basis points.
@@ -426,8 +522,20 @@ pub fn likely_cause(
     row: &Reconciled,
     tolerance: &Tolerance,
 ) -> String {
+    search(terms, inputs, states, row, tolerance).text()
+}
+
+/// [`likely_cause`] as a finding: each change found with its kind and gap,
+/// for [`plausible`] to rank.
+pub fn search(
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    tolerance: &Tolerance,
+) -> LikelyCause {
     let places = terms.minor_units;
-    let mut found: Vec<(Decimal, usize, String)> = Vec::new();
+    let mut found: Vec<(usize, Found)> = Vec::new();
     for (order, change) in changes(terms, inputs, row).into_iter().enumerate() {
         let Some((gap, balance_years)) = rerun(terms, inputs, states, row, &change) else {
             continue;
@@ -439,18 +547,23 @@ pub fn likely_cause(
             } else {
                 format!("comes within {}", money(gap.abs(), places))
             };
-            found.push((gap.abs(), order, format!("{} ({how})", change.words)));
+            found.push((
+                order,
+                Found {
+                    words: format!("{} ({how})", change.words),
+                    gap: gap.abs(),
+                    kind: change.kind,
+                },
+            ));
         }
     }
-    if found.is_empty() {
-        return implied_rate(row);
+    found.sort_by(|x, y| x.1.gap.cmp(&y.1.gap).then(x.0.cmp(&y.0)));
+    let found: Vec<Found> = found.into_iter().map(|(_, f)| f).collect();
+    LikelyCause {
+        basis: terms.basis,
+        implied: found.is_empty().then(|| implied_rate(row)),
+        found,
     }
-    found.sort_by(|x, y| x.0.cmp(&y.0).then(x.1.cmp(&y.1)));
-    found
-        .into_iter()
-        .map(|(_, _, w)| w)
-        .collect::<Vec<_>>()
-        .join("; or ")
 }
 
 /// The account re-run with `change` over the period it tries: the gap
@@ -508,6 +621,8 @@ fn implied_rate(row: &Reconciled) -> String {
         gap
     )
 }
+
+pub mod plausible;
 
 #[cfg(test)]
 mod tests;

@@ -188,7 +188,7 @@ fn only_rows_outside_tolerance_get_a_likely_cause() {
     assert_eq!(run.rows[0].row.status, Status::Agrees);
     assert_eq!(run.rows[0].likely_cause, None);
     assert_eq!(run.rows[1].row.status, Status::UnderPosted);
-    let cause = run.rows[1].likely_cause.as_deref().unwrap();
+    let cause = run.rows[1].likely_cause.as_ref().unwrap().text();
     assert!(!cause.is_empty());
 }
 

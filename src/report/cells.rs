@@ -292,7 +292,46 @@ pub struct Cells<'a> {
     /// format is written without one and takes the column's (the same style
     /// in the file, without looking the format up again for every cell).
     column_formats: Vec<Option<&'a Format>>,
+    /// The width, in characters, at which the text of a column wraps.
+    wrap_widths: Vec<Option<usize>>,
+    /// Lines the tallest wrapped text of the current row takes.
+    lines: u32,
     row: RowNum,
+}
+
+/// Lines a text takes when wrapped at `width` characters, word by word (a
+/// word longer than the width is broken). Counting every character as wide
+/// as a digit errs towards a row a little too tall, never one too short.
+///
+/// ```
+/// use ledgerate::report::cells::wrapped_lines;
+/// assert_eq!(wrapped_lines("period start a day late", 12), 2);
+/// assert_eq!(wrapped_lines("short", 12), 1);
+/// assert_eq!(wrapped_lines("", 12), 1);
+/// ```
+pub fn wrapped_lines(text: &str, width: usize) -> u32 {
+    let width = width.max(1);
+    let mut lines: u32 = 0;
+    for paragraph in text.split('\n') {
+        lines = lines.saturating_add(1);
+        let mut used = 0usize;
+        for word in paragraph.split(' ') {
+            let w = word.chars().count();
+            if used == 0 {
+                used = w;
+            } else if used + 1 + w <= width {
+                used += 1 + w;
+            } else {
+                lines = lines.saturating_add(1);
+                used = w;
+            }
+            while used > width {
+                lines = lines.saturating_add(1);
+                used -= width;
+            }
+        }
+    }
+    lines.max(1)
 }
 
 impl<'a> Cells<'a> {
@@ -310,8 +349,27 @@ impl<'a> Cells<'a> {
             texts,
             widths: Vec::new(),
             column_formats: Vec::new(),
+            wrap_widths: Vec::new(),
+            lines: 1,
             row: 0,
         }
+    }
+
+    /// Text written to column `col` in the wrapping format wraps at `width`
+    /// characters: [`Cells::lines`] counts its lines.
+    pub fn wrap_at(&mut self, col: ColNum, width: usize) {
+        let i = usize::from(col);
+        if self.wrap_widths.len() <= i {
+            self.wrap_widths.resize(i + 1, None);
+        }
+        if let Some(slot) = self.wrap_widths.get_mut(i) {
+            *slot = Some(width);
+        }
+    }
+
+    /// Lines the tallest wrapped text of the current row takes (1 when none wraps).
+    pub fn lines(&self) -> u32 {
+        self.lines
     }
 
     /// Gives column `col` the format `format` as a whole: the cells written
@@ -344,6 +402,7 @@ impl<'a> Cells<'a> {
     /// Moves to a 0-based row.
     pub fn at(&mut self, row: RowNum) -> &mut Self {
         self.row = row;
+        self.lines = 1;
         self
     }
 
@@ -389,6 +448,11 @@ impl<'a> Cells<'a> {
         }
         let text = cut.as_deref().unwrap_or(text);
         self.seen(col, text.chars().count());
+        if let Some(width) = self.wrap_widths.get(usize::from(col)).copied().flatten() {
+            if std::ptr::eq(format, &self.styles.wrap) {
+                self.lines = self.lines.max(wrapped_lines(text, width));
+            }
+        }
         if self.carried(col, format) {
             self.ws.write_string(row, col, text)
         } else {
@@ -412,6 +476,19 @@ impl<'a> Cells<'a> {
             };
             self.ws
                 .write_string_with_format(row, col, *label, format)
+                .map_err(at(self.sheet, row))?;
+        }
+        Ok(())
+    }
+
+    /// Header labels of an output list from column 0 of the current row, in
+    /// a format that wraps a label longer than its column.
+    pub fn list_header(&mut self, labels: &[&str]) -> Result<(), ReportError> {
+        let styles = self.styles;
+        let row = self.row;
+        for (col, label) in (0..).zip(labels) {
+            self.ws
+                .write_string_with_format(row, col, *label, &styles.list_header)
                 .map_err(at(self.sheet, row))?;
         }
         Ok(())
@@ -520,6 +597,21 @@ impl<'a> Cells<'a> {
             styles.amount(minor_units),
             len,
         )
+    }
+
+    /// An unrounded amount shown with `decimals` places (the Daily sheet's
+    /// interest and accrued); the cell holds the same number as
+    /// [`Cells::unrounded_amount`] would.
+    pub fn unrounded_amount_shown(
+        &mut self,
+        col: ColNum,
+        d: Decimal,
+        minor_units: u32,
+        decimals: u32,
+    ) -> Result<(), ReportError> {
+        let styles = self.styles;
+        let len = shown_len(d, decimals);
+        self.figure(col, unrounded(d, minor_units), styles.amount(decimals), len)
     }
 
     /// A rate given as a decimal (0.0512), shown as a percentage.

@@ -16,6 +16,12 @@ pub const SHEET_ROW_LIMIT: u32 = 1_048_576;
 /// still holds every digit).
 pub const MAX_FORMAT_DECIMALS: u32 = 8;
 
+/// Decimals the Daily sheet shows of a day's interest and the running
+/// accrued: both are unrounded (unless the account rounds daily), so they
+/// show as many places as `explain` prints, and a column of them adds up to
+/// what it shows.
+pub const UNROUNDED_DECIMALS: u32 = 8;
+
 /// Zip deflate level of the output. Level 3 saves about 1.8 times faster than
 /// the default 6 for about 5% more bytes; saving dominates the time of a large
 /// workbook, and the level never changes the bytes between two runs.
@@ -94,6 +100,31 @@ pub fn print_setup(ws: &mut Worksheet, list: bool, one_page_wide: bool) -> Resul
     Ok(())
 }
 
+/// Print setup of a sheet of the output workbook: A4 landscape, fitted to
+/// one page wide and as many pages tall as it takes, narrow margins, for a
+/// list the header row repeated on every page, and a footer with the
+/// sheet's name and page number, after `note` (a gloss of its terms) when
+/// there is one.
+pub fn report_page_setup(
+    ws: &mut Worksheet,
+    list: bool,
+    note: Option<&str>,
+) -> Result<(), XlsxError> {
+    ws.set_landscape();
+    ws.set_paper_size(9); // A4; a letter-size printer scales it
+    ws.set_print_fit_to_pages(1, 0);
+    ws.set_margins(0.4, 0.4, 0.5, 0.6, 0.3, 0.3);
+    if list {
+        ws.set_repeat_rows(0, 0)?;
+    }
+    let place = "&R&8&A, page &P of &N";
+    ws.set_footer(match note {
+        Some(note) => format!("&L&8{}{place}", note.replace('&', "&&")),
+        None => place.to_string(),
+    });
+    Ok(())
+}
+
 /// A sheet name as a formula reference: quoted when it holds anything but
 /// letters, digits and `_`.
 ///
@@ -123,6 +154,26 @@ pub fn sheet_ref(name: &str) -> String {
 pub fn column_width(header: &str, content: usize, cap: usize) -> u16 {
     let header = header.chars().count().saturating_add(3); // filter button
     let width = header.max(content).saturating_add(2).clamp(8, cap.max(8));
+    u16::try_from(width).unwrap_or(u16::MAX)
+}
+
+/// The width of a list column whose header wraps onto a second line when
+/// its figures are narrower: room for the longest word of the header and
+/// the filter button, or the widest value, plus padding, within `min..=cap`.
+///
+/// ```
+/// use ledgerate::report::layout::list_column_width;
+/// assert_eq!(list_column_width("Balance at cut-off", 9, 60), 12); // "Balance" and its filter button
+/// assert_eq!(list_column_width("Likely cause", 300, 48), 48); // wraps at its cap
+/// ```
+pub fn list_column_width(header: &str, content: usize, cap: usize) -> u16 {
+    let word = header
+        .split_whitespace()
+        .map(|w| w.chars().count())
+        .max()
+        .unwrap_or(0)
+        .saturating_add(3); // filter button
+    let width = word.max(content).saturating_add(2).clamp(8, cap.max(8));
     u16::try_from(width).unwrap_or(u16::MAX)
 }
 
@@ -197,6 +248,9 @@ pub struct Styles {
     pub header: Format,
     /// Header cells over figures: right-aligned like the figures.
     pub header_right: Format,
+    /// Header cells of an output list: they wrap onto a second line over a
+    /// column narrower than the label.
+    pub list_header: Format,
     /// Long text that wraps within its column (Problems).
     pub wrap: Format,
     /// Title of the Summary.
@@ -238,9 +292,27 @@ impl Default for Styles {
 }
 
 impl Styles {
-    /// The formats of the workbook.
+    /// The formats of the input books (template and sample books).
     pub fn new() -> Styles {
+        Styles::build(false)
+    }
+
+    /// The formats of the output workbook: like [`Styles::new`], but every
+    /// cell sits at the top of its row, so that the figures of a row line
+    /// up with the first line of a text that wraps beside them.
+    pub fn report() -> Styles {
+        Styles::build(true)
+    }
+
+    fn build(top: bool) -> Styles {
         let decimals = 0..=MAX_FORMAT_DECIMALS;
+        let cell = || {
+            if top {
+                Format::new().set_align(FormatAlign::Top)
+            } else {
+                Format::new()
+            }
+        };
         Styles {
             header: Format::new()
                 .set_bold()
@@ -250,6 +322,13 @@ impl Styles {
             header_right: Format::new()
                 .set_bold()
                 .set_align(FormatAlign::Right)
+                .set_background_color(Color::RGB(palette::HEADER))
+                .set_border_bottom(FormatBorder::Thin)
+                .set_border_bottom_color(Color::RGB(palette::RULE)),
+            list_header: Format::new()
+                .set_bold()
+                .set_text_wrap()
+                .set_align(FormatAlign::Top)
                 .set_background_color(Color::RGB(palette::HEADER))
                 .set_border_bottom(FormatBorder::Thin)
                 .set_border_bottom_color(Color::RGB(palette::RULE)),
@@ -267,25 +346,25 @@ impl Styles {
                 .set_border(FormatBorder::Thin)
                 .set_border_color(Color::RGB(palette::RULE)),
             text: Format::new().set_align(FormatAlign::Top),
-            text_figure: Format::new().set_align(FormatAlign::Right),
-            date: Format::new().set_num_format("yyyy-mm-dd"),
-            datetime: Format::new().set_num_format("yyyy-mm-dd hh:mm:ss"),
-            count: Format::new().set_num_format("#,##0"),
-            percent: Format::new().set_num_format("0.0000%"),
-            day_fraction: Format::new().set_num_format("0.000000000000"),
-            bp: Format::new().set_num_format("#,##0.00;-#,##0.00"),
+            text_figure: cell().set_align(FormatAlign::Right),
+            date: cell().set_num_format("yyyy-mm-dd"),
+            datetime: cell().set_num_format("yyyy-mm-dd hh:mm:ss"),
+            count: cell().set_num_format("#,##0"),
+            percent: cell().set_num_format("0.0000%"),
+            day_fraction: cell().set_num_format("0.000000000000"),
+            bp: cell().set_num_format("#,##0.00;-#,##0.00"),
             amounts: decimals
                 .clone()
-                .map(|d| Format::new().set_num_format(amount_format_code(d, false)))
+                .map(|d| cell().set_num_format(amount_format_code(d, false)))
                 .collect(),
             ledger: decimals
                 .clone()
-                .map(|d| Format::new().set_num_format(amount_format_code(d, true)))
+                .map(|d| cell().set_num_format(amount_format_code(d, true)))
                 .collect(),
             // Balance-years are currency-years: two more places than the currency shows.
             balance_years: decimals
                 .map(|d| {
-                    Format::new().set_num_format(amount_format_code(
+                    cell().set_num_format(amount_format_code(
                         d.saturating_add(2).min(MAX_FORMAT_DECIMALS),
                         false,
                     ))
@@ -293,7 +372,18 @@ impl Styles {
                 .collect(),
             statuses: STATUS_FILLS
                 .iter()
-                .map(|(s, c)| (*s, Format::new().set_background_color(Color::RGB(*c))))
+                .map(|(s, c)| {
+                    let fill = cell().set_background_color(Color::RGB(*c));
+                    // Apart from the figure on its left.
+                    (
+                        *s,
+                        if top {
+                            fill.set_align(FormatAlign::Left).set_indent(1)
+                        } else {
+                            fill
+                        },
+                    )
+                })
                 .collect(),
             error_row: Format::new()
                 .set_align(FormatAlign::Top)

@@ -228,6 +228,9 @@ pub struct Report {
     pub reconciliation: Vec<ReconciliationLine>,
     /// Counts by status (empty without statements).
     pub status_counts: Vec<StatusCount>,
+    /// The Summary's largest variances in money: indices into
+    /// `reconciliation`, by currency in code order, largest first.
+    pub largest_variances: Vec<usize>,
     /// Journal lines.
     pub journal: Vec<JournalLine>,
     /// Daily lines, when asked for.

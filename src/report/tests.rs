@@ -80,6 +80,7 @@ fn report() -> Report {
         accruals: vec![],
         reconciliation: vec![],
         status_counts: vec![],
+        largest_variances: vec![],
         journal: vec![],
         daily: None,
         problems: vec![],

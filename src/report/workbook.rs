@@ -15,13 +15,14 @@ use std::path::{Path, PathBuf};
 
 use rust_xlsxwriter::{
     Chart, ChartAxisLabelPosition, ChartFormat, ChartRange, ChartSolidFill, ColNum, Color,
-    DocProperties, Format, RowNum, Workbook, Worksheet,
+    DocProperties, Format, Note, RowNum, Workbook, Worksheet,
 };
 
 use super::cells::{Cells, TextFigure, TextFigures, EXACT_DIGITS};
 use super::error::ReportError;
 use super::layout::{
-    self, column_width, part_name, place, sheet_ref, Limits, Styles, MAX_FORMAT_DECIMALS,
+    self, column_width, list_column_width, part_name, place, sheet_ref, Limits, Styles,
+    MAX_FORMAT_DECIMALS, UNROUNDED_DECIMALS,
 };
 use super::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, Report, RunFacts,
@@ -128,6 +129,28 @@ pub const CAUTION: &str = "Caution: every figure here is worked out from the ter
     program helps with that review; it does not replace it, nor the judgement of the people \
     responsible for the books.";
 
+/// What balance-years are, in one line: on the Summary, in the note of the
+/// Reconciliation sheet's Balance-years header and in the footer of its
+/// printed pages.
+pub const BALANCE_YEARS_GLOSS: &str = "Balance-years: each day's interest-bearing balance \
+    times that day's fraction of a year, summed over the period (10,000 held for half a year \
+    is 5,000); expected interest is rate x balance-years, and Variance (bp) is variance / \
+    balance-years x 10,000.";
+
+/// [`BALANCE_YEARS_GLOSS`] short enough for the footer of a printed page.
+pub const BALANCE_YEARS_FOOTER: &str = "Balance-years: each day's balance x its fraction of a \
+    year, summed over the period. Variance (bp) = variance / balance-years x 10,000.";
+
+/// What a variance in basis points is, for the note of its header.
+pub const VARIANCE_BP_GLOSS: &str = "Variance (bp): the variance as a gap in the annual rate, \
+    variance / balance-years x 10,000. A small miss on a small balance is many basis points; \
+    the Summary ranks the misses in money too.";
+
+/// The Likely cause column, for the note of its header.
+pub const LIKELY_CAUSE_GLOSS: &str = "Likely cause: the most plausible single change that \
+    reproduces the posted amount (rule in the user guide), and how many do; \
+    ledgerate explain --account ID lists them all.";
+
 /// One sheet of the written workbook.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct SheetRows {
@@ -195,7 +218,7 @@ pub(crate) fn write_report_with(
     let dir = output::target_dir(target)?;
     output::check_not_input(target, &report.facts.inputs)?;
     let mut wb = new_workbook(report, target, &dir)?;
-    let styles = Styles::new();
+    let styles = Styles::report();
     let mut ctx = Ctx {
         styles: &styles,
         texts: TextFigures::default(),
@@ -326,7 +349,14 @@ struct Ctx<'s> {
 struct ListSheet<T> {
     name: &'static str,
     header: &'static [&'static str],
+    /// The widest each column gets; a column of long text (written in the
+    /// wrapping format) is that wide when any of its texts is longer, and
+    /// they wrap within it.
     caps: &'static [usize],
+    /// Notes on header cells: what the column means.
+    notes: &'static [(ColNum, &'static str)],
+    /// Printed under each page, before the page number.
+    footer: Option<&'static str>,
     row: fn(&mut Cells<'_>, &T) -> Result<(), ReportError>,
     /// The format each column carries as a whole, by column, for the rows of
     /// one part: the one most of its cells have (none where they differ).
@@ -336,7 +366,9 @@ struct ListSheet<T> {
 const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     name: "Accruals",
     header: &ACCRUALS_HEADER,
-    caps: &[30, 40, 10, 12, 16, 18, 24, 24, 24, 24, 22],
+    caps: &[24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22],
+    notes: &[],
+    footer: None,
     row: accrual_row,
     columns: accrual_columns,
 };
@@ -344,7 +376,13 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
 const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
     name: "Reconciliation",
     header: &RECONCILIATION_HEADER,
-    caps: &[30, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 80],
+    caps: &[24, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 48],
+    notes: &[
+        (5, BALANCE_YEARS_GLOSS),
+        (9, VARIANCE_BP_GLOSS),
+        (11, LIKELY_CAUSE_GLOSS),
+    ],
+    footer: Some(BALANCE_YEARS_FOOTER),
     row: reconciliation_row,
     columns: reconciliation_columns,
 };
@@ -352,7 +390,10 @@ const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
 const JOURNAL: ListSheet<JournalLine> = ListSheet {
     name: "Journal",
     header: &JOURNAL_HEADER,
-    caps: &[14, 30, 10, 24, 24, 24, 60],
+    // GL account: room for the longest default code, ACCRUED-INTEREST-RECEIVABLE.
+    caps: &[14, 24, 10, 32, 24, 24, 48],
+    notes: &[],
+    footer: None,
     row: journal_row,
     columns: journal_columns,
 };
@@ -360,21 +401,41 @@ const JOURNAL: ListSheet<JournalLine> = ListSheet {
 const DAILY: ListSheet<DailyLine> = ListSheet {
     name: "Daily",
     header: &DAILY_HEADER,
-    caps: &[30, 14, 24, 24, 12, 16, 24, 24],
+    caps: &[24, 14, 24, 24, 12, 16, 24, 24],
+    notes: &[(6, DAILY_INTEREST_GLOSS), (7, DAILY_ACCRUED_GLOSS)],
+    footer: Some(DAILY_FOOTER),
     row: daily_row,
     columns: daily_columns,
 };
+
+/// The Daily sheet's interest, for the note of its header.
+pub const DAILY_INTEREST_GLOSS: &str = "Interest: the day's interest, unrounded (unless the \
+    account rounds each day), shown to 8 places so that a column of them adds up to what it \
+    shows; postings round the sum.";
+
+/// The Daily sheet's accrued, for the note of its header.
+pub const DAILY_ACCRUED_GLOSS: &str = "Accrued: interest accrued since the last posting, \
+    unrounded, shown to 8 places; the posting rounds it to the currency's minor units.";
+
+/// Printed under each page of the Daily sheet.
+pub const DAILY_FOOTER: &str = "Interest and Accrued are unrounded, shown to 8 places; \
+    postings round them to the currency's minor units.";
 
 /// The Problems list (a function: its rows borrow the report).
 fn problems_sheet<'p>() -> ListSheet<&'p Problem> {
     ListSheet {
         name: "Problems",
         header: &PROBLEMS_HEADER,
-        caps: &[10, 40, 16, 10, 40, 50, 80],
+        caps: &[10, 28, 16, 10, 36, 36, 48],
+        notes: &[],
+        footer: None,
         row: problem_row,
         columns: problem_columns,
     }
 }
+
+/// The height of one line of text in points (the default row's).
+const LINE_HEIGHT: u32 = 15;
 
 /// Writes a list over as many sheets as it needs; returns how many.
 fn write_list<T>(
@@ -400,7 +461,8 @@ fn write_list<T>(
         // Sheet-wide settings first: the header row is flushed once row 1 starts.
         ws.set_freeze_panes(1, 0)
             .map_err(|e| ReportError::sheet(&name, e))?;
-        layout::print_setup(ws, true, true).map_err(|e| ReportError::sheet(&name, e))?;
+        layout::report_page_setup(ws, true, list.footer)
+            .map_err(|e| ReportError::sheet(&name, e))?;
         ws.autofilter(0, 0, last_row, last_col)
             .map_err(|e| ReportError::sheet(&name, e))?;
         let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
@@ -410,14 +472,43 @@ fn write_list<T>(
             }
         }
         // Left-aligned: a filter button sits at the right of each header cell.
-        cells.at(0).header(list.header, &[])?;
+        cells.at(0).list_header(list.header)?;
+        for (col, gloss) in list.notes {
+            let note = Note::new(*gloss)
+                .add_author_prefix(false)
+                .set_width(360)
+                .set_height(110);
+            cells
+                .sheet()
+                .insert_note(0, *col, &note)
+                .map_err(|e| ReportError::sheet(&name, e))?;
+        }
+        // Every header row two lines tall: a label wraps over a column of
+        // narrower figures (the spreadsheet does not size rows itself).
+        cells
+            .sheet()
+            .set_row_height(0, 2 * LINE_HEIGHT)
+            .map_err(|e| ReportError::sheet(&name, e))?;
+        for (col, cap) in (0..).zip(list.caps.iter()) {
+            // Prose is narrower than the digits a width counts: about 6
+            // letters take the room of 5 digits.
+            cells.wrap_at(col, cap.saturating_add(cap / 5));
+        }
         for (row, item) in (1..).zip(part.iter()) {
             cells.at(row);
             (list.row)(&mut cells, item)?;
+            // A row with a wrapped text is as tall as its lines.
+            let lines = cells.lines();
+            if lines > 1 {
+                cells
+                    .sheet()
+                    .set_row_height(row, lines.saturating_mul(LINE_HEIGHT))
+                    .map_err(|e| ReportError::sheet(&name, e))?;
+            }
         }
         let widths: Vec<u16> = (0..)
             .zip(list.header.iter().zip(list.caps.iter()))
-            .map(|(col, (label, cap))| column_width(label, cells.width(col), *cap))
+            .map(|(col, (label, cap))| list_column_width(label, cells.width(col), *cap))
             .collect();
         for (col, width) in (0..).zip(widths) {
             cells
@@ -457,7 +548,7 @@ fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Fo
     let text = Some(&s.text);
     vec![
         text,
-        text,
+        Some(&s.wrap),
         text,
         text,
         text,
@@ -489,18 +580,20 @@ fn reconciliation_columns<'s>(
         amount,
         Some(&s.bp),
         None, // each status has its own fill
-        text,
+        Some(&s.wrap),
     ]
 }
 
 fn journal_columns<'s>(s: &'s Styles, rows: &[JournalLine]) -> Vec<Option<&'s Format>> {
     let ledger = Some(s.ledger(usual_units(rows, |r| r.minor_units)));
     let text = Some(&s.text);
-    vec![Some(&s.date), text, text, text, ledger, ledger, text]
+    let wrap = Some(&s.wrap);
+    vec![Some(&s.date), wrap, text, text, ledger, ledger, wrap]
 }
 
 fn daily_columns<'s>(s: &'s Styles, rows: &[DailyLine]) -> Vec<Option<&'s Format>> {
     let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    let unrounded = Some(s.amount(UNROUNDED_DECIMALS));
     vec![
         Some(&s.text),
         Some(&s.date),
@@ -508,8 +601,8 @@ fn daily_columns<'s>(s: &'s Styles, rows: &[DailyLine]) -> Vec<Option<&'s Format
         amount,
         Some(&s.percent),
         Some(&s.day_fraction),
-        amount,
-        amount,
+        unrounded,
+        unrounded,
     ]
 }
 
@@ -520,7 +613,7 @@ fn problem_columns<'s>(_: &'s Styles, _: &[&Problem]) -> Vec<Option<&'s Format>>
 
 fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
     c.text(0, &a.account)?;
-    c.text(1, &a.name)?;
+    c.text_as(1, &a.name, &c.styles().wrap)?;
     c.text(2, &a.currency)?;
     c.text(3, &a.side)?;
     c.text(4, &a.day_count)?;
@@ -550,18 +643,18 @@ fn reconciliation_row(c: &mut Cells<'_>, r: &ReconciliationLine) -> Result<(), R
         c.bp(9, bp)?;
     }
     c.text_as(10, r.status.name(), styles.status(r.status))?;
-    c.text(11, &r.likely_cause)?;
+    c.text_as(11, &r.likely_cause, &styles.wrap)?;
     Ok(())
 }
 
 fn journal_row(c: &mut Cells<'_>, j: &JournalLine) -> Result<(), ReportError> {
     c.date(0, j.date)?;
-    c.text(1, &j.entity)?;
+    c.text_as(1, &j.entity, &c.styles().wrap)?;
     c.text(2, &j.currency)?;
     c.text(3, &j.gl_account)?;
     c.ledger_amount(4, j.debit, j.minor_units)?;
     c.ledger_amount(5, j.credit, j.minor_units)?;
-    c.text(6, &j.memo)?;
+    c.text_as(6, &j.memo, &c.styles().wrap)?;
     Ok(())
 }
 
@@ -572,8 +665,8 @@ fn daily_row(c: &mut Cells<'_>, d: &DailyLine) -> Result<(), ReportError> {
     c.unrounded_amount(3, d.base, d.minor_units)?;
     c.rate(4, d.rate)?;
     c.day_fraction(5, d.day_fraction)?;
-    c.unrounded_amount(6, d.interest, d.minor_units)?;
-    c.unrounded_amount(7, d.accrued, d.minor_units)?;
+    c.unrounded_amount_shown(6, d.interest, d.minor_units, UNROUNDED_DECIMALS)?;
+    c.unrounded_amount_shown(7, d.accrued, d.minor_units, UNROUNDED_DECIMALS)?;
     Ok(())
 }
 
@@ -585,7 +678,7 @@ fn problem_row(c: &mut Cells<'_>, p: &&Problem) -> Result<(), ReportError> {
         severity,
         styles.severity(p.severity).unwrap_or(&styles.text),
     )?;
-    c.text(1, &p.position.book)?;
+    c.text_as(1, &p.position.book, &styles.wrap)?;
     // A CSV book's file and line, as the terminal shows them.
     c.text(2, &p.position.sheet_shown())?;
     c.text(3, &p.position.cell_shown())?;
@@ -807,16 +900,19 @@ fn write_summary(
     styles: &Styles,
     texts: &mut TextFigures,
 ) -> Result<SummaryPlaces, ReportError> {
-    layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Summary", e))?;
+    layout::report_page_setup(ws, false, None).map_err(|e| ReportError::sheet("Summary", e))?;
     let mut c = Cells::new(ws, "Summary", styles, texts);
     summary_title(&mut c)?;
     let mut places = summary_facts(&mut c, &report.facts)?;
     let row = summary_totals(&mut c, places.text_figures, &report.totals)?;
     let row = summary_status_counts(&mut c, row, &report.status_counts)?;
+    let row = summary_largest_variances(&mut c, row, report)?;
     summary_widths(&mut c)?;
+    // The chart goes under the tables, within their width, so that the
+    // printed page keeps its size.
     if let Some(plan) = chart {
         c.sheet()
-            .insert_chart(6, SUMMARY_COLS + 1, &variance_chart(plan))
+            .insert_chart(row.saturating_add(2), 0, &variance_chart(plan))
             .map_err(|e| ReportError::sheet("Summary", e))?;
     }
     places.rows_used = row.saturating_add(1);
@@ -937,6 +1033,74 @@ fn summary_status_counts(
     Ok(row)
 }
 
+/// Header labels of the Summary's largest variances in money.
+pub const LARGEST_VARIANCES_HEADER: [&str; 6] = [
+    "Currency",
+    "Account",
+    "Period end",
+    "Variance",
+    "Variance (bp)",
+    "Status",
+];
+
+/// The title of the Summary's largest variances in money.
+pub const LARGEST_VARIANCES_TITLE: &str = "Largest variances in money, by currency";
+
+/// The largest variances in money by currency, as the report chose them,
+/// and the gloss of balance-years (none without reconciliation rows), from
+/// two rows below `row`; returns the last row written.
+fn summary_largest_variances(
+    c: &mut Cells<'_>,
+    row: RowNum,
+    report: &Report,
+) -> Result<RowNum, ReportError> {
+    if report.reconciliation.is_empty() {
+        return Ok(row);
+    }
+    let styles = c.styles();
+    let mut row = row + 2;
+    // The table, the gloss and the chart print together on a page of their own.
+    c.sheet()
+        .set_page_breaks(&[row])
+        .map_err(|e| ReportError::sheet("Summary", e))?;
+    section(c, row, LARGEST_VARIANCES_TITLE, SUMMARY_COLS)?;
+    if report.largest_variances.is_empty() {
+        row += 1;
+        c.at(row)
+            .text_spilling(0, "No row is outside tolerance.", &styles.text)?;
+    } else {
+        row += 1;
+        c.at(row).header(&LARGEST_VARIANCES_HEADER, &[2, 3, 4])?;
+        for r in report
+            .largest_variances
+            .iter()
+            .filter_map(|&i| report.reconciliation.get(i))
+        {
+            row += 1;
+            c.at(row).text(0, &r.currency)?;
+            c.text(1, &r.account)?;
+            c.date(2, r.period_end)?;
+            c.amount(3, r.variance, r.minor_units)?;
+            if let Some(bp) = r.variance_bp {
+                c.bp(4, bp)?;
+            }
+            c.text_as(5, r.status.name(), styles.status(r.status))?;
+        }
+    }
+    row += 2;
+    c.sheet()
+        .merge_range(
+            row,
+            0,
+            row.saturating_add(1),
+            SUMMARY_COLS - 1,
+            BALANCE_YEARS_GLOSS,
+            &styles.wrap,
+        )
+        .map_err(|e| ReportError::sheet("Summary", e))?;
+    Ok(row.saturating_add(1))
+}
+
 /// Widths: labels and codes in A, figures in B..F; and the caution's rows
 /// tall enough for its lines at these widths.
 fn summary_widths(c: &mut Cells<'_>) -> Result<(), ReportError> {
@@ -975,7 +1139,7 @@ fn variance_chart(plan: &ChartPlan) -> Chart {
         .set_invert_if_negative()
         .set_invert_if_negative_color(Color::RGB(layout::palette::BAR_NEGATIVE));
     let title = if plan.shown == plan.total {
-        "Variance (bp) of the rows outside tolerance".to_string()
+        "Variance (bp) of the rows outside tolerance (in money: the table above)".to_string()
     } else {
         format!(
             "Variance (bp): the first {} of {} rows outside tolerance",
@@ -1041,7 +1205,7 @@ fn write_run(
     texts: &mut TextFigures,
 ) -> Result<RowNum, ReportError> {
     let facts = &report.facts;
-    layout::print_setup(ws, false, true).map_err(|e| ReportError::sheet("Run", e))?;
+    layout::report_page_setup(ws, false, None).map_err(|e| ReportError::sheet("Run", e))?;
     let mut c = Cells::new(ws, "Run", styles, texts);
     c.at(0).header(&["Item", "Value"], &[])?;
     c.at(1).text(0, RUN_PROGRAM)?;

@@ -620,3 +620,55 @@ fn settings_from_a_books_settings_sheet_are_recorded_as_such() {
         );
     }
 }
+
+/// HM-LN-003 (ACT/360) was posted on ACT/365F; four bases reproduce the
+/// amount. The Reconciliation sheet leads with the basis nearest in family
+/// and says how many there are; `explain` keeps the search's whole list.
+#[test]
+fn the_sheet_leads_with_the_most_plausible_cause_and_counts_them() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("nov.xlsx");
+    run_to(&out, &[]).success();
+    let rows = sheet(&out, "Reconciliation");
+    let cause = |account: &str| -> String {
+        rows.iter()
+            .filter(|r| r[0] == account)
+            .map(|r| r[11].to_string())
+            .find(|c| !c.is_empty())
+            .unwrap_or_else(|| panic!("no cause for {account}"))
+    };
+    assert_eq!(
+        cause("HM-LN-003"),
+        "interest on ACT/365F instead of ACT/360 (reproduces the posted amount exactly). \
+         The most plausible of 4 single changes that reproduce the posted amount within \
+         tolerance; all 4: ledgerate explain --account HM-LN-003"
+    );
+    // An exact change leads one that only comes within a cent.
+    assert!(cause("HM-SAV-002").starts_with(
+        "rate change of 2026-11-16 (2.10% to 1.95%) not applied (reproduces the posted amount exactly). \
+         The most plausible of 2 single changes"
+    ));
+    assert!(cause("HM-SAV-004")
+        .ends_with("The only single change that reproduces the posted amount within tolerance"));
+    let explained = ledgerate()
+        .args([
+            "explain",
+            "sample-books/harbourview-2026-11.xlsx",
+            "--account",
+            "HM-LN-003",
+        ])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap();
+    let text = String::from_utf8(explained.stdout).unwrap();
+    let line = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("likely cause:"))
+        .expect("a likely cause line");
+    for basis in ["ACT/365F", "ACT/365L", "ACT/ACT ISDA", "NL/365"] {
+        assert!(
+            line.contains(&format!("interest on {basis} instead of ACT/360")),
+            "{line}"
+        );
+    }
+}

@@ -173,6 +173,8 @@ fn report() -> Report {
                 rows: 1,
             },
         ],
+        // USD rows outside tolerance, largest variance first.
+        largest_variances: vec![1, 3],
         journal: vec![
             JournalLine {
                 date: date("2024-03-31"),
@@ -804,4 +806,167 @@ fn a_new_workbook_is_readable_like_any_new_file() {
     let (_d, target) = write(&report());
     let mode = |p: &Path| std::fs::metadata(p).unwrap().permissions().mode() & 0o777;
     assert_eq!(mode(&target), mode(&plain));
+}
+
+/// The XML of the `index`th sheet (0-based, workbook order).
+fn sheet_xml(path: &Path, index: usize) -> String {
+    zip_text(path, &format!("xl/worksheets/sheet{}.xml", index + 1))
+}
+
+/// The width of 1-based column `col` in a sheet's XML.
+fn col_width(xml: &str, col: u32) -> f64 {
+    let attr = |tag: &str, name: &str| -> String {
+        let key = format!(r#"{name}=""#);
+        let at = tag.find(&key).unwrap() + key.len();
+        tag[at..].split('"').next().unwrap().to_string()
+    };
+    xml.split("<col ")
+        .skip(1)
+        .find(|tag| {
+            let (min, max): (u32, u32) = (
+                attr(tag, "min").parse().unwrap(),
+                attr(tag, "max").parse().unwrap(),
+            );
+            (min..=max).contains(&col)
+        })
+        .map(|tag| attr(tag, "width").parse().unwrap())
+        .unwrap_or_else(|| panic!("no width for column {col}"))
+}
+
+/// Every sheet prints landscape on A4, one page wide, with a footer naming
+/// it and its page; every list repeats its header row on each page.
+#[test]
+fn every_sheet_prints_one_page_wide_and_lists_repeat_their_header() {
+    let (_dir, target) = write(&report());
+    let sheets = names(&target);
+    let workbook = zip_text(&target, "xl/workbook.xml");
+    for (i, name) in sheets.iter().enumerate() {
+        let xml = sheet_xml(&target, i);
+        assert!(xml.contains(r#"<pageSetUpPr fitToPage="1"/>"#), "{name}");
+        assert!(
+            xml.contains(r#"paperSize="9" fitToHeight="0" orientation="landscape""#),
+            "{name}: {xml}"
+        );
+        assert!(xml.contains("&amp;A, page &amp;P of &amp;N"), "{name}");
+        let titles = format!(r#"<definedName name="_xlnm.Print_Titles" localSheetId="{i}">"#);
+        let list = !matches!(name.as_str(), "Summary" | "Run");
+        assert_eq!(workbook.contains(&titles), list, "{name}");
+    }
+}
+
+/// The Reconciliation sheet: the likely cause wraps in a column of fixed
+/// width and the row is tall enough for it; the figures keep narrow columns;
+/// the header row is two lines tall, and balance-years is glossed in its
+/// header's note and in the printed footer.
+#[test]
+fn the_reconciliation_sheet_wraps_its_causes_and_glosses_balance_years() {
+    let mut r = report();
+    r.reconciliation[1].likely_cause = "interest on ACT/360 instead of ACT/365F (reproduces the \
+        posted amount exactly). The most plausible of 3 single changes that reproduce the posted \
+        amount within tolerance; all 3: ledgerate explain --account HM-SAV-002"
+        .into();
+    let (_dir, target) = write(&r);
+    let index = sheet_index(&target, "Reconciliation") - 1;
+    let xml = sheet_xml(&target, index);
+    let cause = col_width(&xml, 12);
+    assert!((45.0..50.0).contains(&cause), "{cause}");
+    for col in 3..=11 {
+        let w = col_width(&xml, col);
+        assert!(w <= 20.0, "column {col} is {w} wide");
+    }
+    assert!(xml.contains(r#"<row r="1" "#) && xml.contains(r#"ht="30" customHeight="1""#));
+    // Row 3 holds the long cause: more than one line tall.
+    let row3 = xml.split(r#"<row r="3" "#).nth(1).unwrap();
+    let height: f64 = row3
+        .split(r#"ht=""#)
+        .nth(1)
+        .unwrap()
+        .split('"')
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert!(height >= 45.0, "{height}");
+    assert!(
+        xml.contains("Balance-years: each day&apos;s balance x its fraction of a year")
+            || xml.contains("Balance-years: each day's balance x its fraction of a year")
+    );
+    let wraps = number_wraps(&target, "Reconciliation", 2, 11);
+    assert!(wraps, "the cause wraps");
+    let notes = zip_text(&target, "xl/comments1.xml");
+    assert!(
+        notes.contains("Balance-years: each day") && notes.contains("Variance (bp): the variance"),
+        "{notes}"
+    );
+}
+
+fn number_wraps(path: &Path, name: &str, row: u32, col: u32) -> bool {
+    let mut wb: Xlsx<_> = open_workbook(path).unwrap();
+    let styles = wb.worksheet_style(name).unwrap();
+    styles
+        .get((row, col))
+        .and_then(|s| s.alignment.clone())
+        .is_some_and(|a| a.wrap_text)
+}
+
+/// Daily shows a day's interest and the accrued to 8 places, so that a
+/// column of them adds up to what it shows.
+#[test]
+fn daily_interest_and_accrued_show_eight_places() {
+    let (_dir, target) = write(&report());
+    for col in [6, 7] {
+        assert_eq!(
+            number_format(&target, "Daily", 1, col),
+            "#,##0.00000000;-#,##0.00000000"
+        );
+    }
+    assert_eq!(number_format(&target, "Daily", 1, 2), "#,##0.00;-#,##0.00");
+}
+
+/// The GL account column holds the longest default code on one line.
+#[test]
+fn the_gl_column_fits_the_default_codes() {
+    let mut r = report();
+    r.journal[0].gl_account = "ACCRUED-INTEREST-RECEIVABLE".into();
+    let (_dir, target) = write(&r);
+    let xml = sheet_xml(&target, sheet_index(&target, "Journal") - 1);
+    assert!(col_width(&xml, 4) >= 29.0, "{}", col_width(&xml, 4));
+}
+
+/// The Summary ranks the variances in money, by currency, beside the
+/// basis-point chart, and says what balance-years are.
+#[test]
+fn the_summary_lists_the_largest_variances_in_money_and_glosses_balance_years() {
+    let (_dir, target) = write(&report());
+    let rows = sheet(&target, "Summary");
+    let title = rows
+        .iter()
+        .position(|r| r[0] == Data::String("Largest variances in money, by currency".into()))
+        .expect("the table's title");
+    assert_eq!(
+        header(&rows[title + 1..]),
+        [
+            "Currency",
+            "Account",
+            "Period end",
+            "Variance",
+            "Variance (bp)",
+            "Status"
+        ]
+    );
+    let listed: Vec<(String, Decimal)> = rows[title + 2..title + 4]
+        .iter()
+        .map(|r| (r[1].to_string(), number(&r[3])))
+        .collect();
+    assert_eq!(
+        listed,
+        [
+            ("HM-SAV-002".to_string(), dec("-0.62")),
+            ("HM-SAV-004".to_string(), dec("0.40"))
+        ]
+    );
+    assert!(rows[title + 4].iter().all(|c| c == &Data::Empty) || rows.len() == title + 4);
+    assert!(rows.iter().flat_map(|r| r.iter()).any(|c| c
+        .to_string()
+        .starts_with("Balance-years: each day's interest-bearing balance")));
 }
