@@ -81,8 +81,20 @@ fn read_shards(shards: &[PathBuf]) -> Result<Vec<Shard>> {
     shards
         .iter()
         .map(|s| {
+            if let Some(kind) = crate::files::special_kind(s) {
+                bail!(
+                    "the shard workbook {} is {kind}: give the .xlsx files that `ledgerate run --shard K/N` wrote",
+                    s.display()
+                );
+            }
             if !s.exists() {
                 bail!("the shard workbook {} does not exist", s.display());
+            }
+            if s.is_dir() {
+                bail!(
+                    "the shard workbook {} is a folder: give the .xlsx files that `ledgerate run --shard K/N` wrote",
+                    s.display()
+                );
             }
             let rows = read_workbook(s).map_err(|e| anyhow!("{e}"))?;
             Ok(Shard {

@@ -171,3 +171,30 @@ fn only_the_sheet_files_of_a_csv_book_are_hashed_for_the_run_sheet() {
     std::fs::write(book.join("holidays.csv"), holidays).unwrap();
     assert_ne!(run("changed.xlsx"), before);
 }
+
+#[test]
+fn a_shard_that_is_a_fifo_a_dangling_link_or_a_folder_is_refused_without_waiting() {
+    let dir = tempfile::tempdir().unwrap();
+    let fifo = dir.path().join("shard-1.xlsx");
+    mkfifo(&fifo);
+    let dangling = dir.path().join("shard-2.xlsx");
+    std::os::unix::fs::symlink(dir.path().join("lost/shard-2.xlsx"), &dangling).unwrap();
+    let folder = dir.path().join("shard-3.xlsx");
+    std::fs::create_dir(&folder).unwrap();
+    for (shard, says) in [
+        (&fifo, "is a FIFO (named pipe)"),
+        (&dangling, "is a link to nothing"),
+        (&folder, "is a folder"),
+    ] {
+        ledgerate()
+            .arg("merge")
+            .arg(shard)
+            .arg("--out")
+            .arg(dir.path().join("merged.xlsx"))
+            .timeout(DEADLINE)
+            .assert()
+            .code(2)
+            .stderr(predicate::str::contains(says));
+    }
+    assert!(!dir.path().join("merged.xlsx").exists());
+}
