@@ -60,9 +60,9 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         run_time(args.fixed_time.as_deref())?,
         format!("ledgerate merge {}", shards.join(" ")),
     );
-    crate::report::write_report(&report, &args.out)
+    let written = crate::report::write_report(&report, &args.out)
         .with_context(|| format!("cannot write the workbook {}", args.out.display()))?;
-    print_summary(out, &report, &args.out)?;
+    print_summary(out, &report, &written)?;
     Ok(
         if report
             .problems

@@ -154,12 +154,12 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let fail_on_variance = settings.fail_on_variance;
     let report = report(&books, batch, settings, inputs, run_time);
     let writing = progress::step(format!("writing the workbook {}", target.display()));
-    crate::report::write_report(&report, &target)
+    let written = crate::report::write_report(&report, &target)
         .with_context(|| format!("cannot write the workbook {}", target.display()))?;
     writing.finish_and_clear();
     clock.lap("write the workbook");
     clock.report();
-    print_summary(out, &report, &target)?;
+    print_summary(out, &report, &written)?;
     Ok(exit_status(&report, fail_on_variance))
 }
 

@@ -6,18 +6,32 @@
 //! beyond padding an amount to its currency's places, or reads a file.
 
 use std::io::Write;
-use std::path::Path;
 
 use anyhow::Result;
 use rust_decimal::Decimal;
 
 use crate::problem::{by_cause, counted, Problem, Severity};
 use crate::report::model::Report;
+use crate::report::WriteOutcome;
 
 /// The plain-text summary on standard output.
-pub(crate) fn print_summary(out: &mut dyn Write, report: &Report, target: &Path) -> Result<()> {
+pub(crate) fn print_summary(
+    out: &mut dyn Write,
+    report: &Report,
+    written: &WriteOutcome,
+) -> Result<()> {
     let f = &report.facts;
-    let count = |s: Severity| report.problems.iter().filter(|p| p.severity == s).count();
+    let target = &written.path;
+    // The writer's own warnings (figures written as text, text cut to fit)
+    // are rows of the Problems sheet too: the counts printed are the sheet's.
+    let from_writer = [&written.text_figure_problem, &written.cut_text_problem];
+    let count = |s: Severity| {
+        report.problems.iter().filter(|p| p.severity == s).count()
+            + from_writer
+                .iter()
+                .filter(|p| p.as_ref().is_some_and(|p| p.severity == s))
+                .count()
+    };
     writeln!(
         out,
         "cut-off {}, window {}..{}",

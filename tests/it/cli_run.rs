@@ -2,7 +2,7 @@
 //! binary on the shipped sample books, the workbook read back with calamine,
 //! and figures worked out by hand beside each check.
 
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use crate::common::{ledgerate, sample, sample_csv, sheet};
 use calamine::{open_workbook_auto, Data, DataType, Reader};
@@ -671,4 +671,67 @@ fn the_sheet_leads_with_the_most_plausible_cause_and_counts_them() {
             "{line}"
         );
     }
+}
+
+/// Copies the sample CSV book into `dir`, with `edit` applied to accounts.csv.
+fn sample_csv_edited(dir: &Path, edit: impl Fn(&str) -> String) -> PathBuf {
+    let book = dir.join("book");
+    std::fs::create_dir_all(&book).unwrap();
+    for entry in std::fs::read_dir(sample_csv()).unwrap() {
+        let from = entry.unwrap().path();
+        let name = from.file_name().unwrap().to_owned();
+        let text = std::fs::read_to_string(&from).unwrap();
+        let text = if name == "accounts.csv" {
+            edit(&text)
+        } else {
+            text
+        };
+        std::fs::write(book.join(name), text).unwrap();
+    }
+    book
+}
+
+#[test]
+fn the_printed_problem_counts_are_the_problems_sheets_including_the_writers_own_warnings() {
+    // A balance of 19 significant digits is written as text (a spreadsheet
+    // number holds 15 exactly); the writer adds a warning row for it.
+    let dir = tempfile::tempdir().unwrap();
+    let book = sample_csv_edited(dir.path(), |t| {
+        t.replacen(",18250.00,", ",1000000000000000.55,", 1)
+    });
+    let out = dir.path().join("out.xlsx");
+    let assert = ledgerate()
+        .arg("run")
+        .arg(&book)
+        .args(["--cutoff", "2026-11-30", "--out"])
+        .arg(&out)
+        .assert();
+    let stdout = String::from_utf8_lossy(&assert.get_output().stdout).into_owned();
+    let problems = sheet(&out, "Problems");
+    let on_sheet = |word: &str| {
+        problems
+            .iter()
+            .skip(1)
+            .filter(|r| r.first().is_some_and(|c| c.to_string() == word))
+            .count()
+    };
+    let warnings = on_sheet("warning");
+    assert!(
+        warnings >= 1,
+        "the writer's warning is on the sheet: {problems:?}"
+    );
+    let plural = |n: usize, word: &str| {
+        if n == 1 {
+            format!("{n} {word}")
+        } else {
+            format!("{n} {word}s")
+        }
+    };
+    let line = format!(
+        "problems: {}, {}, {}",
+        plural(on_sheet("error"), "error"),
+        plural(warnings, "warning"),
+        plural(on_sheet("note"), "note")
+    );
+    assert!(stdout.contains(&line), "expected '{line}' in:\n{stdout}");
 }
