@@ -712,7 +712,7 @@ fn the_printed_problem_counts_are_the_problems_sheets_including_the_writers_own_
         problems
             .iter()
             .skip(1)
-            .filter(|r| r.first().is_some_and(|c| c.to_string() == word))
+            .filter(|r| r.first().is_some_and(|c| *c == word))
             .count()
     };
     let warnings = on_sheet("warning");
