@@ -11,7 +11,7 @@
 use std::path::Path;
 
 use super::limits::{grouped, Refusal, Spans, DAMAGED, XLS_COLUMNS, XLS_ROWS};
-use super::ole::workbook_stream;
+use super::ole::{u16_at, u32_at, workbook_stream};
 use super::sniff::Format;
 
 const BOF: u16 = 0x0809;
@@ -25,20 +25,6 @@ const MUL_RK: u16 = 0x00BD;
 const CELLS: [u16; 8] = [
     0x0203, 0x0204, 0x00D6, 0x0205, 0x027E, 0x00FD, 0x0006, MUL_RK,
 ];
-
-fn u16_at(b: &[u8], at: usize) -> u16 {
-    match b.get(at..at + 2) {
-        Some(&[x, y]) => u16::from_le_bytes([x, y]),
-        _ => 0,
-    }
-}
-
-fn u32_at(b: &[u8], at: usize) -> u32 {
-    match b.get(at..at + 4) {
-        Some(&[a, b1, c, d]) => u32::from_le_bytes([a, b1, c, d]),
-        _ => 0,
-    }
-}
 
 /// The records of a stream from its start: (type, data). A record cut
 /// short ends them (the library then says the file is damaged).

@@ -19,14 +19,16 @@ const MINI_CUTOFF: usize = 4096;
 /// The size of a mini sector.
 const MINI_SECTOR: usize = 64;
 
-fn u16_at(b: &[u8], at: usize) -> u16 {
+/// The little-endian u16 at `at`, or 0 past the end.
+pub(super) fn u16_at(b: &[u8], at: usize) -> u16 {
     match b.get(at..at + 2) {
         Some(&[x, y]) => u16::from_le_bytes([x, y]),
         _ => 0,
     }
 }
 
-fn u32_at(b: &[u8], at: usize) -> u32 {
+/// The little-endian u32 at `at`, or 0 past the end.
+pub(super) fn u32_at(b: &[u8], at: usize) -> u32 {
     match b.get(at..at + 4) {
         Some(&[a, b1, c, d]) => u32::from_le_bytes([a, b1, c, d]),
         _ => 0,

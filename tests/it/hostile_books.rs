@@ -9,7 +9,6 @@
 //! says it), read in process and by the real program, which must end with
 //! an exit status, not a signal, inside a memory limit.
 
-use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::Command as Process;
 use std::time::Duration;
@@ -17,32 +16,7 @@ use std::time::Duration;
 use ledgerate::book::{read_book, Book, ReadOptions};
 use ledgerate::problem::Severity;
 
-use crate::common::fixture;
-
-/// The parts of a zip archive, by name, in archive order.
-fn unzip(data: &[u8]) -> Vec<(String, Vec<u8>)> {
-    let mut archive = zip::ZipArchive::new(std::io::Cursor::new(data)).unwrap();
-    (0..archive.len())
-        .map(|i| {
-            let mut entry = archive.by_index(i).unwrap();
-            let mut content = Vec::new();
-            entry.read_to_end(&mut content).unwrap();
-            (entry.name().unwrap().to_string(), content)
-        })
-        .collect()
-}
-
-fn rezip(parts: &[(String, Vec<u8>)]) -> Vec<u8> {
-    let mut out = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
-    let options = zip::write::SimpleFileOptions::default()
-        .compression_method(zip::CompressionMethod::Deflated)
-        .last_modified_time(zip::DateTime::default());
-    for (name, content) in parts {
-        out.start_file(name.as_str(), options).unwrap();
-        out.write_all(content).unwrap();
-    }
-    out.finish().unwrap().into_inner()
-}
+use crate::common::{fixture, rezip, unzip};
 
 /// The fixture `name` with its part `part` edited by `edit`, written as
 /// `out` in `dir`.

@@ -8,13 +8,14 @@
 //! under `fuzz/` run the same reader for as long as one likes. Inputs that
 //! once broke a promise are kept under `tests/fixtures/fuzz/` and read here.
 
-use std::io::{Read, Write};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
 
 use ledgerate::book::{contract_violations, read_book, Book, ReadOptions};
 use ledgerate::problem::Severity;
 use proptest::prelude::*;
+
+use crate::common::{rezip, unzip};
 
 fn fixture(rel: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
@@ -87,31 +88,6 @@ fn read_survives(path: &Path, options: &ReadOptions) -> Result<Book, TestCaseErr
     let broken = contract_violations(&book);
     prop_assert!(broken.is_empty(), "{}", broken.join("\n"));
     Ok(book)
-}
-
-/// The parts of an xlsx archive, by name, in archive order.
-fn unzip(data: &[u8]) -> Vec<(String, Vec<u8>)> {
-    let mut archive = zip::ZipArchive::new(std::io::Cursor::new(data)).unwrap();
-    (0..archive.len())
-        .map(|i| {
-            let mut entry = archive.by_index(i).unwrap();
-            let mut content = Vec::new();
-            entry.read_to_end(&mut content).unwrap();
-            (entry.name().unwrap().to_string(), content)
-        })
-        .collect()
-}
-
-fn rezip(parts: &[(String, Vec<u8>)]) -> Vec<u8> {
-    let mut out = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
-    let options = zip::write::SimpleFileOptions::default()
-        .compression_method(zip::CompressionMethod::Deflated)
-        .last_modified_time(zip::DateTime::default());
-    for (name, content) in parts {
-        out.start_file(name.as_str(), options).unwrap();
-        out.write_all(content).unwrap();
-    }
-    out.finish().unwrap().into_inner()
 }
 
 const WORKBOOKS: &[&str] = &[

@@ -1,6 +1,7 @@
 //! Helpers shared by the integration tests: the program, the shipped books,
 //! and reading a written workbook back. Tests only; they may unwrap.
 
+use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 
 use assert_cmd::Command;
@@ -45,4 +46,32 @@ pub fn dec(s: &str) -> Decimal {
 /// A date from ISO text.
 pub fn date(s: &str) -> NaiveDate {
     s.parse().unwrap()
+}
+
+/// The parts of a zip archive (an xlsx or ods workbook), by name, in
+/// archive order.
+pub fn unzip(data: &[u8]) -> Vec<(String, Vec<u8>)> {
+    let mut archive = zip::ZipArchive::new(std::io::Cursor::new(data)).unwrap();
+    (0..archive.len())
+        .map(|i| {
+            let mut entry = archive.by_index(i).unwrap();
+            let mut content = Vec::new();
+            entry.read_to_end(&mut content).unwrap();
+            (entry.name().unwrap().to_string(), content)
+        })
+        .collect()
+}
+
+/// A zip archive of `parts`, in their order, with fixed times so that the
+/// same parts give the same bytes.
+pub fn rezip(parts: &[(String, Vec<u8>)]) -> Vec<u8> {
+    let mut out = zip::ZipWriter::new(std::io::Cursor::new(Vec::new()));
+    let options = zip::write::SimpleFileOptions::default()
+        .compression_method(zip::CompressionMethod::Deflated)
+        .last_modified_time(zip::DateTime::default());
+    for (name, content) in parts {
+        out.start_file(name.as_str(), options).unwrap();
+        out.write_all(content).unwrap();
+    }
+    out.finish().unwrap().into_inner()
 }
