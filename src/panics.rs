@@ -6,6 +6,10 @@
 //! [`install_hook`] sets prints nothing, so the user sees the program's own
 //! message rather than a library's panic text and backtrace.
 //!
+//! The quiet is process-wide while any [`quietly`] call runs, so a panic on
+//! another thread in that time prints nothing either; the reader and the
+//! writer, the two callers, run while nothing else of the program does.
+//!
 //! This module never decides what a caught panic means: its caller turns the
 //! message into a problem or an error naming the file.
 
