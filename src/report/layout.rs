@@ -332,7 +332,10 @@ impl Styles {
                 .set_background_color(Color::RGB(palette::HEADER))
                 .set_border_bottom(FormatBorder::Thin)
                 .set_border_bottom_color(Color::RGB(palette::RULE)),
-            wrap: Format::new().set_text_wrap().set_align(FormatAlign::Top),
+            wrap: Format::new()
+                .set_text_wrap()
+                .set_align(FormatAlign::Top)
+                .set_indent(1),
             title: Format::new().set_bold().set_font_size(14),
             section: Format::new()
                 .set_bold()
