@@ -4,7 +4,7 @@
 
 use std::path::{Path, PathBuf};
 
-use crate::common::{ledgerate, sample, sample_csv, sheet};
+use crate::common::{copy_dir, ledgerate, sample, sample_csv, sheet};
 use calamine::{open_workbook_auto, Data, DataType, Reader};
 use predicates::prelude::*;
 
@@ -676,18 +676,10 @@ fn the_sheet_leads_with_the_most_plausible_cause_and_counts_them() {
 /// Copies the sample CSV book into `dir`, with `edit` applied to accounts.csv.
 fn sample_csv_edited(dir: &Path, edit: impl Fn(&str) -> String) -> PathBuf {
     let book = dir.join("book");
-    std::fs::create_dir_all(&book).unwrap();
-    for entry in std::fs::read_dir(sample_csv()).unwrap() {
-        let from = entry.unwrap().path();
-        let name = from.file_name().unwrap().to_owned();
-        let text = std::fs::read_to_string(&from).unwrap();
-        let text = if name == "accounts.csv" {
-            edit(&text)
-        } else {
-            text
-        };
-        std::fs::write(book.join(name), text).unwrap();
-    }
+    copy_dir(&sample_csv(), &book);
+    let accounts = book.join("accounts.csv");
+    let text = std::fs::read_to_string(&accounts).unwrap();
+    std::fs::write(&accounts, edit(&text)).unwrap();
     book
 }
 

@@ -76,11 +76,7 @@ fn a_calendar_that_is_a_fifo_a_device_or_too_big_is_refused() {
 /// The good CSV book copied into `dir`.
 fn csv_book(dir: &Path) -> std::path::PathBuf {
     let book = dir.join("book");
-    std::fs::create_dir(&book).unwrap();
-    for entry in std::fs::read_dir(crate::common::fixture("harbourview_good_csv")).unwrap() {
-        let path = entry.unwrap().path();
-        std::fs::copy(&path, book.join(path.file_name().unwrap())).unwrap();
-    }
+    crate::common::copy_dir(&crate::common::fixture("harbourview_good_csv"), &book);
     book
 }
 

@@ -12,6 +12,8 @@ use std::time::{Duration, Instant};
 
 use sha2::{Digest, Sha256};
 
+use crate::common::copy_dir;
+
 fn ledgerate() -> Command {
     Command::new(env!("CARGO_BIN_EXE_ledgerate"))
 }
@@ -38,14 +40,6 @@ fn hashes(root: &Path) -> BTreeMap<PathBuf, String> {
         }
     }
     out
-}
-
-fn copy_dir(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).unwrap();
-    for e in std::fs::read_dir(from).unwrap() {
-        let p = e.unwrap().path();
-        std::fs::copy(&p, to.join(p.file_name().unwrap())).unwrap();
-    }
 }
 
 #[test]
