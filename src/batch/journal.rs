@@ -392,6 +392,7 @@ mod tests {
             interest: Some("6100".into()),
             accrued: Some("2300".into()),
             settlement: None,
+            prior_period: None,
         };
         let mut j = Journal::new();
         for amount in ["10.00", "15.50", "-30.00"] {

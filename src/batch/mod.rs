@@ -350,6 +350,7 @@ fn outcome(entry: &AccountEntry, run: AccountRun, options: &Options) -> Outcome 
             posted_in_window: r.posted_in_window,
             interest_for_window: r.interest_for_window,
             effective_annual_rate: r.effective_annual_rate,
+            ledger: crate::report::model::LedgerLine::default(),
         },
         postings,
         daily,

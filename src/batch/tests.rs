@@ -194,6 +194,7 @@ fn statements_are_reconciled_with_causes() {
         period_end: d(end),
         posted: n(posted),
         reference: None,
+        posting_date: None,
         position: Position {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),
@@ -241,6 +242,7 @@ fn book_with_statements(count: usize) -> Book {
             period_end: d("2026-11-30"),
             posted: n(posted),
             reference: None,
+            posting_date: None,
             position: Position {
                 book: "test.xlsx".into(),
                 sheet: "Statements".into(),

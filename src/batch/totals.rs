@@ -37,6 +37,7 @@ use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, Statu
 ///     posted_in_window: Decimal::ZERO,
 ///     interest_for_window: Decimal::new(accrued, 2),
 ///     effective_annual_rate: None,
+///     ledger: Default::default(),
 /// };
 /// let mut totals = Totals::default();
 /// totals.add(&line("USD", 125));

@@ -278,6 +278,7 @@ fn account(
         interest: f.text(GL_INTEREST),
         accrued: f.text(GL_ACCRUED),
         settlement: f.text(GL_SETTLEMENT),
+        prior_period: None,
     };
     let floating = floating_terms(f);
 

@@ -17,6 +17,7 @@ mod csv_folder;
 mod csv_records;
 mod fixings;
 mod holidays;
+pub mod known;
 mod limits;
 pub mod model;
 mod movements;
@@ -36,5 +37,7 @@ mod table;
 mod workbook;
 mod xlsx;
 
-pub use model::{AccountEntry, Book, GlCodes, SettingRow, StatementRow};
+pub use model::{
+    AccountEntry, Book, BookedRow, GlCodes, SettingRow, StatementRow, TrialBalanceRow,
+};
 pub use read::{check_unique_ids, contract_violations, read_book, ReadOptions};

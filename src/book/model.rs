@@ -23,6 +23,8 @@ pub struct GlCodes {
     pub accrued: Option<String>,
     /// Where postings settle (the customer account, cash...).
     pub settlement: Option<String>,
+    /// Where a prior-period interest adjustment is booked (default: `interest`).
+    pub prior_period: Option<String>,
 }
 
 /// One row of the Accounts sheet, resolved.
@@ -55,7 +57,41 @@ pub struct StatementRow {
     pub posted: Decimal,
     /// The statement's reference.
     pub reference: Option<String>,
+    /// The day the posting was booked to the customer's account, if given
+    /// (a row is known to a run as at A when this is on or before A).
+    pub posting_date: Option<NaiveDate>,
     /// The row's position (cell of the account id).
+    pub position: Position,
+}
+
+/// One row of the Booked sheet: the open item the institution's books held
+/// for an account at the end of a day.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct BookedRow {
+    /// The account id.
+    pub account: String,
+    /// The day.
+    pub date: NaiveDate,
+    /// The open item, in the account's normal direction.
+    pub open_item: Decimal,
+    /// The row's position (cell of the account id).
+    pub position: Position,
+}
+
+/// One row of the Trial balance sheet.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct TrialBalanceRow {
+    /// The entity whose ledger it is.
+    pub entity: String,
+    /// ISO 4217 code.
+    pub currency: String,
+    /// The GL account.
+    pub gl_account: String,
+    /// The day the balance stands at the end of.
+    pub date: NaiveDate,
+    /// Signed as a trial balance prints it: debit positive, credit negative.
+    pub balance: Decimal,
+    /// The row's position (cell of the GL account).
     pub position: Position,
 }
 
@@ -91,6 +127,13 @@ pub struct Book {
     pub statements: Vec<StatementRow>,
     /// Settings rows in sheet order.
     pub settings: Vec<SettingRow>,
+    /// Booked rows in sheet order (at most one per account and date).
+    pub booked: Vec<BookedRow>,
+    /// Trial balance rows in sheet order.
+    pub trial_balance: Vec<TrialBalanceRow>,
+    /// Per rate_ref, the effective date of each rate table booked later than
+    /// it took effect, with its booking date (the `booked` column).
+    pub rate_bookings: BTreeMap<String, Vec<(NaiveDate, NaiveDate)>>,
     /// Everything found wrong or worth saying.
     pub problems: Vec<Problem>,
 }

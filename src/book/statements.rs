@@ -127,6 +127,7 @@ pub(crate) fn read(
             period_end,
             posted,
             reference,
+            posting_date: None,
             position,
         });
     }

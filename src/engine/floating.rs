@@ -95,6 +95,19 @@ pub struct FloatingSchedule {
 }
 
 impl FloatingSchedule {
+    /// The schedule without the tables whose effective date `drop` says to
+    /// leave out (tables not yet booked at a knowledge date).
+    pub fn without(&self, drop: impl Fn(NaiveDate) -> bool) -> FloatingSchedule {
+        FloatingSchedule {
+            tables: self
+                .tables
+                .iter()
+                .filter(|t| !drop(t.effective))
+                .cloned()
+                .collect(),
+        }
+    }
+
     /// Builds a schedule from rows of (effective date, tier rate, tier
     /// threshold). Rows with the same effective date form one table.
     ///

@@ -14,6 +14,7 @@ pub mod causes;
 pub mod error;
 pub mod floating;
 pub mod inputs;
+pub mod ledger;
 pub mod rates;
 pub mod reconcile;
 pub mod run;

@@ -134,6 +134,19 @@ impl RateSchedule {
         &self.tables
     }
 
+    /// The schedule without the tables whose effective date `drop` says to
+    /// leave out (tables not yet booked at a knowledge date).
+    pub fn without(&self, drop: impl Fn(NaiveDate) -> bool) -> RateSchedule {
+        RateSchedule {
+            tables: self
+                .tables
+                .iter()
+                .filter(|t| !drop(t.effective))
+                .cloned()
+                .collect(),
+        }
+    }
+
     /// A schedule of whole tables (sorted here by effective date; of two
     /// tables on one date, the later in the list wins).
     pub fn from_tables(mut tables: Vec<RateTable>) -> RateSchedule {

@@ -52,6 +52,7 @@ fn row(start: &str, end: &str, posted: &str, cell: &str) -> StatementRow {
         period_end: d(end),
         posted: n(posted),
         reference: None,
+        posting_date: None,
         position: Position {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),

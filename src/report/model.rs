@@ -110,6 +110,35 @@ pub struct AccrualLine {
     pub interest_for_window: Decimal,
     /// Effective annual rate as a decimal (0.0512 for 5.12%), blank when the account does not earn on the cut-off date.
     pub effective_annual_rate: Option<Decimal>,
+    /// Its GL accounts and what the ledger holds for it (behaviour.md, Books that tie).
+    pub ledger: LedgerLine,
+}
+
+/// An account's GL accounts (defaults resolved) and its ledger figures.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct LedgerLine {
+    /// The entity that books it.
+    pub entity: Word,
+    /// Interest expense or income.
+    pub gl_interest: Word,
+    /// Accrued interest payable or receivable.
+    pub gl_accrued: Word,
+    /// Where postings settle.
+    pub gl_settlement: Word,
+    /// Where a prior-period adjustment is booked.
+    pub gl_prior_period: Word,
+    /// Posted in window + accrued at cut-off - accrued before the window, all known now.
+    pub window_days_interest: Decimal,
+    /// BO: the open item the books held at the end of the day before the window.
+    pub booked_opening: Decimal,
+    /// Where the booked opening came from.
+    pub opening_source: Word,
+    /// Prior-period adjustment: the open item before the window known now, less BO.
+    pub prior_period: Decimal,
+    /// O(C): the open item at cut-off.
+    pub open_item: Decimal,
+    /// Postings settled in the window, whichever run journals them.
+    pub settled_in_window: Decimal,
 }
 
 /// Totals of one currency (Summary sheet).

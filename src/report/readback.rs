@@ -368,6 +368,7 @@ impl Written {
                     posted_in_window: r.amount(8, places)?,
                     interest_for_window: r.amount(9, places)?,
                     effective_annual_rate: r.decimal(10)?,
+                    ledger: Default::default(),
                 })
             })
             .collect()

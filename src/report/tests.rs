@@ -345,6 +345,7 @@ fn accrual(account: &str, currency: &'static str, minor_units: u32, balance: &st
         posted_in_window: dec("-12"),
         interest_for_window: dec("0.25"),
         effective_annual_rate: Some(dec("0.0512")),
+        ledger: Default::default(),
     }
 }
 

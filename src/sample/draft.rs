@@ -627,6 +627,7 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
                 interest: Some(more.gl.0.to_string()),
                 accrued: Some(more.gl.1.to_string()),
                 settlement: None,
+                prior_period: None,
             },
             position: Position::default(),
             terms: t,

@@ -68,6 +68,7 @@ fn report() -> Report {
             posted_in_window: dec("71.37"),
             interest_for_window: dec("-12.5"),
             effective_annual_rate: Some(dec("0.0330286")),
+            ledger: Default::default(),
         };
     let mut big = accrual("HM-BIG-001", "USD", 2, "1000000000000000.55", "0.00");
     big.effective_annual_rate = None;
