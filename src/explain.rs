@@ -16,6 +16,7 @@ use rust_decimal::Decimal;
 use crate::book::{AccountEntry, Book};
 use crate::engine::causes::LikelyCause;
 use crate::engine::floating::FixingUsed;
+use crate::engine::ledger::LedgerFigures;
 use crate::engine::reconcile::Status;
 use crate::engine::{DayRow, FloorOn, PostingRow};
 use crate::pipeline::{
@@ -42,6 +43,13 @@ pub struct Explanation {
     pub notes: Vec<Problem>,
     /// Interest earned since the last posting and not posted, rounded.
     pub accrued_at_cutoff: Decimal,
+    /// Posting periods no statement row covers: not made, so they stay in
+    /// the open item.
+    pub not_made: Vec<(NaiveDate, NaiveDate)>,
+    /// The booked opening, the prior-period adjustment, the open item.
+    pub ledger: LedgerFigures,
+    /// The first day of the window.
+    pub window_start: NaiveDate,
 }
 
 /// The account's terms as explain's first lines name them.
@@ -155,6 +163,9 @@ impl Explanation {
             has_statements: !run.periods.is_empty(),
             notes: run.notes,
             accrued_at_cutoff: r.accrued_at_cutoff,
+            not_made: run.not_made,
+            ledger: run.ledger,
+            window_start: options.window_start,
         }
     }
 }
@@ -204,6 +215,32 @@ pub fn print(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
         out,
         "accrued at cut-off {}",
         fmt_amount(x.accrued_at_cutoff, x.header.minor_units)
+    )?;
+    print_ledger(x, out)
+}
+
+/// The ledger's figures: the booked opening and where it came from, the
+/// prior-period adjustment, the interest for the window and the open item.
+fn print_ledger(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
+    let l = &x.ledger;
+    let a = |v: Decimal| fmt_amount(v, x.header.minor_units);
+    let eve = x.window_start.pred_opt().unwrap_or(x.window_start);
+    writeln!(
+        out,
+        "booked opening at {eve} {} ({}); open item at {eve} known now {}; prior-period adjustment {}",
+        a(l.booked_opening),
+        l.opening_source.words(),
+        a(l.open_item_before),
+        a(l.prior_period)
+    )?;
+    writeln!(
+        out,
+        "interest for window {} (window days {} + prior-period {}); settled in window {}; open item at cut-off {}",
+        a(l.interest_for_window),
+        a(l.window_days_interest),
+        a(l.prior_period),
+        a(l.settled_in_window),
+        a(l.open_item)
     )
 }
 
@@ -319,7 +356,9 @@ fn print_postings(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
                     fmt_amount(p.back_value, places)
                 )
             },
-            if p.actual_given {
+            if x.not_made.contains(&(p.start, p.end)) {
+                ", not made: no statement row covers it, so it stays in the open item and is not settled".to_string()
+            } else if p.actual_given {
                 format!(", statement posted {}", fmt_amount(p.posted, places))
             } else {
                 String::new()

@@ -16,10 +16,16 @@ use std::collections::BTreeMap;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
-use crate::book::{AccountEntry, Book, StatementRow};
+use chrono::Datelike;
+
+use crate::book::{known, AccountEntry, Book, BookedRow, StatementRow};
 use crate::engine::causes::{search, LikelyCause};
 use crate::engine::floating::{
     FixingFallback, FixingWarning, Fixings, FloatingRates, FloatingSchedule,
+};
+use crate::engine::ledger::{
+    figures, ledger_postings, open_item, open_item_before_window, LedgerFigures, LedgerPosting,
+    OpeningSource, SettlementLines,
 };
 use crate::engine::rates::RateSchedule;
 use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, Tolerance};
@@ -44,6 +50,11 @@ pub struct BookAccount<'a> {
     pub movements: &'a [Movement],
     /// Its statement rows, in sheet order.
     pub statements: &'a [&'a StatementRow],
+    /// Its Booked row dated the day before the window, if any.
+    pub booked_opening: Option<&'a BookedRow>,
+    /// When the tables of its `rate_ref` and `debit_rate_ref` were booked,
+    /// where later than they took effect (effective, booked).
+    pub rate_bookings: [&'a [(NaiveDate, NaiveDate)]; 2],
 }
 
 impl<'a> BookAccount<'a> {
@@ -68,6 +79,89 @@ impl<'a> BookAccount<'a> {
                 .get(&entry.terms.id)
                 .map_or(&[][..], Vec::as_slice),
             statements,
+            booked_opening: None,
+            rate_bookings: [
+                known::bookings_of(book, &entry.rate_ref),
+                entry
+                    .debit_rate_ref
+                    .as_ref()
+                    .map_or(&[][..], |r| known::bookings_of(book, r)),
+            ],
+        }
+    }
+
+    /// The same account with `row` as the books' open item at the end of
+    /// the day before the window.
+    pub fn with_booked_opening(self, row: Option<&'a BookedRow>) -> BookAccount<'a> {
+        BookAccount {
+            booked_opening: row,
+            ..self
+        }
+    }
+
+    /// The account's rows as known at the end of `day`, or `None` when it
+    /// knew them all by then.
+    fn known_at(&self, day: NaiveDate) -> Option<KnownRows<'a>> {
+        let [own, debit] = self.rate_bookings;
+        let later = !self.movements.iter().all(|m| known::movement_known(m, day))
+            || !self
+                .statements
+                .iter()
+                .all(|s| known::statement_known(s, day))
+            || known::booked_after(own, day)
+            || known::booked_after(debit, day);
+        later.then(|| KnownRows {
+            movements: self
+                .movements
+                .iter()
+                .filter(|m| known::movement_known(m, day))
+                .cloned()
+                .collect(),
+            statements: self
+                .statements
+                .iter()
+                .copied()
+                .filter(|s| known::statement_known(s, day))
+                .collect(),
+            rates: self
+                .rates
+                .map(|r| r.without(|e| !known::table_known(own, e, day))),
+            debit_rates: self
+                .debit_rates
+                .map(|r| r.without(|e| !known::table_known(debit, e, day))),
+            floating: self
+                .floating
+                .map(|r| r.without(|e| !known::table_known(own, e, day))),
+        })
+    }
+}
+
+/// An account's rows as known at an earlier day.
+struct KnownRows<'a> {
+    movements: Vec<Movement>,
+    statements: Vec<&'a StatementRow>,
+    rates: Option<RateSchedule>,
+    debit_rates: Option<RateSchedule>,
+    floating: Option<FloatingSchedule>,
+}
+
+impl<'a> KnownRows<'a> {
+    /// The account as it stood with these rows.
+    fn account<'k>(
+        &'k self,
+        now: &BookAccount<'k>,
+        statements: &'k [&'k StatementRow],
+    ) -> BookAccount<'k> {
+        BookAccount {
+            entry: now.entry,
+            rates: self.rates.as_ref(),
+            debit_rates: self.debit_rates.as_ref(),
+            floating: self.floating.as_ref(),
+            fixings: now.fixings,
+            movements: &self.movements,
+            statements,
+            booked_opening: None,
+            rate_bookings: [&[], &[]],
         }
     }
 }
@@ -92,6 +186,11 @@ pub struct Options {
     pub keep_days: bool,
     /// Accrue unchanging runs of days in one step (identical figures).
     pub fast_path: bool,
+    /// The day the previous close was run, if given: the booked opening is
+    /// that close re-run as known then.
+    pub previous_as_at: Option<NaiveDate>,
+    /// When postings settle against the accrual account.
+    pub settlement_lines: SettlementLines,
 }
 
 /// One reconciled statement period and, when it is over- or under-posted,
@@ -116,8 +215,15 @@ pub struct AccountRun {
     /// periods no statement covers.
     pub rows: Vec<CheckedRow>,
     /// Notes and warnings: rows ending after the cut-off, rows summed into
-    /// one posting, fixings a fallback stood in for.
+    /// one posting, fixings a fallback stood in for, back-value interest
+    /// the booked opening assumes.
     pub notes: Vec<Problem>,
+    /// Posting periods no statement row covers: not made.
+    pub not_made: Vec<(NaiveDate, NaiveDate)>,
+    /// The postings to the cut-off as the ledger sees them (made or not).
+    pub postings: Vec<LedgerPosting>,
+    /// What the ledger books and holds for the account.
+    pub ledger: LedgerFigures,
 }
 
 /// An account the engine could not compute.
@@ -131,21 +237,63 @@ pub struct Failed {
 
 /// Computes one account: its statement periods, its run (broken at every
 /// period's ends, with the states the cause search needs), its
-/// reconciliation with the likely cause of each row outside tolerance, and
-/// its notes.
+/// reconciliation with the likely cause of each row outside tolerance, its
+/// ledger figures (behaviour.md, Books that tie) and its notes.
 ///
 /// # Errors
 /// [`Failed`] when the account's rates are missing or the engine stops.
 pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRun, Box<Failed>> {
     let entry = account.entry;
-    let t = &entry.terms;
     let fail = |error: EngineError| {
         Box::new(Failed {
             problem: engine_problem(entry, &error),
             error,
         })
     };
+    let mut close = close(account, options).map_err(fail)?;
+    let opening = booked_opening(account, options, &close).map_err(fail)?;
+    let postings = ledger_postings(&close.result, &close.not_made);
+    let r = &close.result;
+    let ledger = figures(
+        &postings,
+        r.accrued_before_window,
+        r.accrued_at_cutoff,
+        options.window_start,
+        options.cutoff,
+        options.settlement_lines,
+        opening.figure,
+    );
+    close.notes.extend(opening.notes);
+    Ok(AccountRun {
+        result: close.result,
+        periods: close.periods,
+        rows: close.rows,
+        notes: close.notes,
+        not_made: close.not_made,
+        postings,
+        ledger,
+    })
+}
+
+/// An account closed for one window: its run, statement periods,
+/// reconciliation and notes, and the posting periods no statement covers.
+struct Close {
+    result: AccountResult,
+    periods: Vec<StatementPeriod>,
+    rows: Vec<CheckedRow>,
+    notes: Vec<Problem>,
+    not_made: Vec<(NaiveDate, NaiveDate)>,
+}
+
+/// Runs and reconciles `account` for the window of `options`. A posting
+/// period of an account with statement rows that no row covers is not made
+/// (behaviour.md, Completeness and presentation): a capitalising account is
+/// run again with nothing posted for it, so its balance never takes it.
+fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError> {
+    let entry = account.entry;
+    let t = &entry.terms;
     let actual = actual_postings(account.statements);
+    let with_nothing_posted: Vec<ActualPosting>;
     let (periods, mut notes) = statement_periods(account.statements, entry, options.cutoff);
     // Reconciliation sums spans of days broken at each statement period's
     // ends; states let the cause search re-run a period.
@@ -163,10 +311,10 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         .flatten()
         .collect();
     let empty = RateSchedule::default();
-    let rates = rates_of(account, &empty).map_err(fail)?;
-    let inputs = Inputs {
+    let rates = rates_of(account, &empty)?;
+    let mut inputs = Inputs {
         rates,
-        debit_rates: debit_rates_of(account).map_err(fail)?,
+        debit_rates: debit_rates_of(account)?,
         movements: account.movements,
         actual: &actual,
         breaks: &breaks,
@@ -176,16 +324,37 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
             fallback: options.fixing_fallback,
         }),
     };
-    let result = accrue(t, inputs, run_options).map_err(fail)?;
-    let reconciled = reconcile(
-        t,
-        &result,
-        &periods,
-        options.window_start,
-        options.cutoff,
-        &options.tolerance,
-    )
-    .map_err(fail)?;
+    let reconcile_with = |result: &AccountResult| {
+        reconcile(
+            t,
+            result,
+            &periods,
+            options.window_start,
+            options.cutoff,
+            &options.tolerance,
+        )
+    };
+    let mut result = accrue(t, inputs, run_options)?;
+    let mut reconciled = reconcile_with(&result)?;
+    let not_made: Vec<(NaiveDate, NaiveDate)> = reconciled
+        .iter()
+        .filter(|r| r.status == Status::NotPosted)
+        .map(|r| (r.start, r.end))
+        .collect();
+    if t.capitalise && !not_made.is_empty() {
+        with_nothing_posted = actual
+            .iter()
+            .copied()
+            .chain(not_made.iter().map(|&(start, end)| ActualPosting {
+                start,
+                end,
+                amount: Decimal::ZERO,
+            }))
+            .collect();
+        inputs.actual = &with_nothing_posted;
+        result = accrue(t, inputs, run_options)?;
+        reconciled = reconcile_with(&result)?;
+    }
     let rows = reconciled
         .into_iter()
         .map(|row| CheckedRow {
@@ -195,12 +364,131 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         })
         .collect();
     notes.extend(fixing_warnings(entry, &result.fixing_warnings));
-    Ok(AccountRun {
+    Ok(Close {
         result,
         periods,
         rows,
         notes,
+        not_made,
     })
+}
+
+/// The booked opening and the notes it gives.
+struct Opening {
+    /// BO and its source; `None`: O(F-1) known now, with its warnings.
+    figure: Option<(Decimal, OpeningSource)>,
+    notes: Vec<Problem>,
+}
+
+/// The account's booked opening BO (behaviour.md, The booked opening): its
+/// Booked row at F-1, else the previous close re-run as known at
+/// `previous_as_at`, else the open item known now, with a warning for each
+/// movement booked in or after the window whose back-value interest for the
+/// days before it the books are assumed to hold already.
+fn booked_opening(
+    account: &BookAccount,
+    options: &Options,
+    close: &Close,
+) -> Result<Opening, EngineError> {
+    let t = &account.entry.terms;
+    let f = options.window_start;
+    let eve = f.pred_opt().unwrap_or(f);
+    let mut notes = Vec::new();
+    if t.open_date >= f {
+        let now =
+            open_item_before_window(&close.result, &close.not_made, f, options.settlement_lines);
+        return Ok(Opening {
+            figure: Some((now, OpeningSource::OpensInWindow)),
+            notes,
+        });
+    }
+    if let Some(row) = account.booked_opening {
+        return Ok(Opening {
+            figure: Some((row.open_item, OpeningSource::BookedRow)),
+            notes,
+        });
+    }
+    if let Some(p) = options.previous_as_at {
+        let bo = match account.known_at(p) {
+            None => {
+                open_item_before_window(&close.result, &close.not_made, f, options.settlement_lines)
+            }
+            Some(known) => {
+                let statements: Vec<&StatementRow> = known.statements.clone();
+                let then = known.account(account, &statements);
+                let previous = Options {
+                    window_start: month_start(eve),
+                    cutoff: eve,
+                    keep_days: false,
+                    ..*options
+                };
+                let c = self::close(&then, &previous).map_err(|e| previous_close_error(p, &e))?;
+                let postings = ledger_postings(&c.result, &c.not_made);
+                open_item(
+                    c.result.accrued_at_cutoff,
+                    &postings,
+                    eve,
+                    options.settlement_lines,
+                )
+            }
+        };
+        return Ok(Opening {
+            figure: Some((bo, OpeningSource::PreviousClose)),
+            notes,
+        });
+    }
+    for &(i, owed) in &close.result.back_value_before_window {
+        let Some(m) = account.movements.get(i) else {
+            continue;
+        };
+        let booked = m.booking_date.unwrap_or(m.value_date);
+        if booked >= f && !owed.is_zero() {
+            notes.push(assumed_back_value(account.entry, m, owed, eve));
+        }
+    }
+    Ok(Opening {
+        figure: None,
+        notes,
+    })
+}
+
+/// The first day of `day`'s month: the start of the previous close's
+/// window when it is re-run (a monthly close; docs/decisions.md).
+fn month_start(day: NaiveDate) -> NaiveDate {
+    day.with_day(1).unwrap_or(day)
+}
+
+fn previous_close_error(previous_as_at: NaiveDate, e: &EngineError) -> EngineError {
+    EngineError::Unsupported(format!(
+        "the previous close as known at {previous_as_at} (previous_as_at) cannot be computed: {e}"
+    ))
+}
+
+/// The warning that the booked opening assumes the books already held a
+/// movement's back-value interest for the days before the window.
+fn assumed_back_value(
+    entry: &AccountEntry,
+    m: &Movement,
+    owed: Decimal,
+    eve: NaiveDate,
+) -> Problem {
+    let reference = m
+        .reference
+        .clone()
+        .unwrap_or_else(|| format!("{} valued {}", m.amount, m.value_date));
+    let booked = m.booking_date.unwrap_or(m.value_date);
+    Problem {
+        severity: Severity::Warning,
+        position: entry.position.clone(),
+        account: Some(entry.terms.id.clone()),
+        found: format!(
+            "account {}: the opening assumes the books at {eve} already held {owed} of back-value interest for movement {reference} booked {booked}",
+            entry.terms.id
+        ),
+        expected: format!("what the books held for the account at the end of {eve}"),
+        fix: format!("give previous_as_at (the day the previous close was run) or a Booked row for {eve}, so that the back-value interest is booked as a prior-period adjustment"),
+        follows: None,
+    }
 }
 
 /// The table the account earns: its Rates rows, or `empty` for a floating

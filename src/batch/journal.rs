@@ -12,7 +12,7 @@ use rust_decimal::Decimal;
 
 use crate::book::GlCodes;
 use crate::engine::Side;
-use crate::report::model::JournalLine;
+use crate::report::model::{JournalLine, Word};
 
 /// How accruals are booked.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -65,6 +65,65 @@ pub mod defaults {
     pub const SETTLEMENT: &str = "INTEREST-SETTLEMENT";
 }
 
+/// An account's GL accounts, the defaults filled in.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ResolvedGl {
+    /// Interest expense (liability) or income (asset).
+    pub interest: Word,
+    /// Accrued interest payable (liability) or receivable (asset).
+    pub accrued: Word,
+    /// Where postings settle.
+    pub settlement: Word,
+    /// Where a prior-period adjustment is booked (default: `interest`).
+    pub prior_period: Word,
+}
+
+impl ResolvedGl {
+    /// The book's GL codes for an account of `side`, defaults filled in.
+    ///
+    /// ```
+    /// use ledgerate::batch::journal::ResolvedGl;
+    /// use ledgerate::book::GlCodes;
+    /// use ledgerate::engine::Side;
+    /// let gl = GlCodes { interest: Some("6100".into()), ..GlCodes::default() };
+    /// let r = ResolvedGl::of(Side::Liability, &gl);
+    /// assert_eq!((r.interest.as_ref(), r.prior_period.as_ref()), ("6100", "6100"));
+    /// assert_eq!(r.accrued, "ACCRUED-INTEREST-PAYABLE");
+    /// ```
+    pub fn of(side: Side, gl: &GlCodes) -> ResolvedGl {
+        let liability = side == Side::Liability;
+        let or = |given: &Option<String>, default: &'static str| -> Word {
+            given
+                .as_ref()
+                .map_or(Word::Borrowed(default), |g| Word::Owned(g.clone()))
+        };
+        let interest = or(
+            &gl.interest,
+            if liability {
+                defaults::INTEREST_EXPENSE
+            } else {
+                defaults::INTEREST_INCOME
+            },
+        );
+        ResolvedGl {
+            accrued: or(
+                &gl.accrued,
+                if liability {
+                    defaults::ACCRUED_PAYABLE
+                } else {
+                    defaults::ACCRUED_RECEIVABLE
+                },
+            ),
+            settlement: or(&gl.settlement, defaults::SETTLEMENT),
+            prior_period: gl
+                .prior_period
+                .as_ref()
+                .map_or_else(|| interest.clone(), |g| Word::Owned(g.clone())),
+            interest,
+        }
+    }
+}
+
 /// One account's figures as the journal needs them.
 #[derive(Debug, Clone)]
 pub struct AccountEntries<'a> {
@@ -76,19 +135,21 @@ pub struct AccountEntries<'a> {
     pub minor_units: u32,
     /// Asset or liability.
     pub side: Side,
-    /// GL codes from the book.
-    pub gl: &'a GlCodes,
-    /// Interest for the window (incremental style).
-    pub interest_for_window: Decimal,
-    /// Accrued at cut-off (reversing style).
-    pub accrued_at_cutoff: Decimal,
-    /// Postings in the window: payment date and amount.
-    pub postings: Vec<(NaiveDate, Decimal)>,
+    /// Its GL accounts.
+    pub gl: &'a ResolvedGl,
+    /// The window days' interest (incremental style).
+    pub window_days_interest: Decimal,
+    /// The prior-period adjustment (incremental style: its own line).
+    pub prior_period: Decimal,
+    /// The open item at cut-off (reversing style).
+    pub open_item: Decimal,
+    /// The postings this run settles: settlement date and amount.
+    pub settlements: Vec<(NaiveDate, Decimal)>,
 }
 
 /// Where a line sorts within its date: accruals, then postings, then reversals.
 fn purpose(memo: &str) -> u8 {
-    if memo.starts_with("interest accrued") {
+    if memo.starts_with("interest accrued") || memo.starts_with("prior-period") {
         0
     } else if memo.starts_with("reversal") {
         2
@@ -173,7 +234,8 @@ impl Journal {
         slot.1 += line.debit - line.credit;
     }
 
-    /// Adds one account's entries for the window `from..=to`.
+    /// Adds one account's entries for the window `from..=to`
+    /// (behaviour.md, Journal dates and lines).
     pub fn add_account(
         &mut self,
         a: &AccountEntries,
@@ -182,88 +244,80 @@ impl Journal {
         to: NaiveDate,
     ) {
         let liability = a.side == Side::Liability;
-        let interest_gl = a.gl.interest.clone().unwrap_or_else(|| {
-            if liability {
-                defaults::INTEREST_EXPENSE
-            } else {
-                defaults::INTEREST_INCOME
-            }
-            .to_string()
-        });
-        let accrued_gl = a.gl.accrued.clone().unwrap_or_else(|| {
-            if liability {
-                defaults::ACCRUED_PAYABLE
-            } else {
-                defaults::ACCRUED_RECEIVABLE
-            }
-            .to_string()
-        });
-        let settle_gl =
-            a.gl.settlement
-                .clone()
-                .unwrap_or_else(|| defaults::SETTLEMENT.to_string());
-        // Liability: Dr expense / Cr payable. Asset: Dr receivable / Cr income.
-        let (accrue_dr, accrue_cr) = if liability {
-            (&interest_gl, &accrued_gl)
+        let gl = a.gl;
+        let (accrue_dr, accrue_cr): (&str, &str) = if liability {
+            (&gl.interest, &gl.accrued)
         } else {
-            (&accrued_gl, &interest_gl)
+            (&gl.accrued, &gl.interest)
         };
-        // Incremental books the window's interest and settles postings against the
-        // accrual account; reversing books the whole accrued, reverses it the next
-        // day, and books postings straight to interest expense or income.
-        let (accrued, memo, postings_against) = match style {
-            JournalStyle::Incremental => (
-                a.interest_for_window,
-                format!("interest accrued {from}..{to}"),
-                &accrued_gl,
-            ),
-            JournalStyle::Reversing => (
-                a.accrued_at_cutoff,
-                format!("interest accrued at {to}"),
-                &interest_gl,
-            ),
-        };
-        self.entry(
-            to,
-            a.entity,
-            a.currency,
-            a.minor_units,
-            accrue_dr,
-            accrue_cr,
-            &memo,
-            accrued,
-        );
-        if style == JournalStyle::Reversing {
-            if let Some(next) = to.succ_opt() {
-                self.entry(
-                    next,
-                    a.entity,
-                    a.currency,
-                    a.minor_units,
-                    accrue_cr,
-                    accrue_dr,
-                    &format!("reversal of interest accrued at {to}"),
-                    accrued,
-                );
-            }
-        }
-        // A posting: liability Dr (payable or expense) / Cr settlement; asset the other way.
-        let (dr, cr) = if liability {
-            (postings_against, &settle_gl)
-        } else {
-            (&settle_gl, postings_against)
-        };
-        for (date, amount) in &a.postings {
+        let mut book = |date: NaiveDate, dr: &str, cr: &str, memo: &str, amount: Decimal| {
             self.entry(
-                *date,
+                date,
                 a.entity,
                 a.currency,
                 a.minor_units,
                 dr,
                 cr,
-                "interest posted",
-                *amount,
+                memo,
+                amount,
             );
+        };
+        // Incremental books the window days' interest and the prior-period
+        // adjustment, and settles postings against the accrual account;
+        // reversing books the open item, reverses it the next day, and books
+        // postings straight to interest expense or income.
+        let postings_against: &str = match style {
+            JournalStyle::Incremental => {
+                book(
+                    to,
+                    accrue_dr,
+                    accrue_cr,
+                    &format!("interest accrued {from}..{to}"),
+                    a.window_days_interest,
+                );
+                let (dr, cr): (&str, &str) = if liability {
+                    (&gl.prior_period, &gl.accrued)
+                } else {
+                    (&gl.accrued, &gl.prior_period)
+                };
+                let eve = from.pred_opt().unwrap_or(from);
+                book(
+                    to,
+                    dr,
+                    cr,
+                    &format!("prior-period interest adjustment to {eve}"),
+                    a.prior_period,
+                );
+                &gl.accrued
+            }
+            JournalStyle::Reversing => {
+                book(
+                    to,
+                    accrue_dr,
+                    accrue_cr,
+                    &format!("interest accrued at {to}"),
+                    a.open_item,
+                );
+                if let Some(next) = to.succ_opt() {
+                    book(
+                        next,
+                        accrue_cr,
+                        accrue_dr,
+                        &format!("reversal of interest accrued at {to}"),
+                        a.open_item,
+                    );
+                }
+                &gl.interest
+            }
+        };
+        // A posting: liability Dr (payable or expense) / Cr settlement; asset the other way.
+        let (dr, cr): (&str, &str) = if liability {
+            (postings_against, &gl.settlement)
+        } else {
+            (&gl.settlement, postings_against)
+        };
+        for (date, amount) in &a.settlements {
+            book(*date, dr, cr, "interest posted", *amount);
         }
     }
 
@@ -324,7 +378,8 @@ mod tests {
     /// receivable / Cr interest income; postings settle the accrual account.
     #[test]
     fn incremental_entries_by_side() {
-        let gl = GlCodes::default();
+        let gl = ResolvedGl::of(Side::Liability, &GlCodes::default());
+        let loan_gl = ResolvedGl::of(Side::Asset, &GlCodes::default());
         let mut j = Journal::new();
         let deposit = AccountEntries {
             entity: "HM",
@@ -332,14 +387,16 @@ mod tests {
             minor_units: 2,
             side: Side::Liability,
             gl: &gl,
-            interest_for_window: n("222.91"),
-            accrued_at_cutoff: n("111.63"),
-            postings: vec![(d("2026-11-16"), n("229.99"))],
+            window_days_interest: n("222.91"),
+            prior_period: Decimal::ZERO,
+            open_item: n("111.63"),
+            settlements: vec![(d("2026-11-16"), n("229.99"))],
         };
         let loan = AccountEntries {
             side: Side::Asset,
-            interest_for_window: n("20.00"),
-            postings: vec![],
+            gl: &loan_gl,
+            window_days_interest: n("20.00"),
+            settlements: vec![],
             ..deposit.clone()
         };
         j.add_account(
@@ -388,12 +445,15 @@ mod tests {
 
     #[test]
     fn lines_are_summed_by_gl_and_negative_amounts_swap_sides() {
-        let gl = GlCodes {
-            interest: Some("6100".into()),
-            accrued: Some("2300".into()),
-            settlement: None,
-            prior_period: None,
-        };
+        let gl = ResolvedGl::of(
+            Side::Liability,
+            &GlCodes {
+                interest: Some("6100".into()),
+                accrued: Some("2300".into()),
+                settlement: None,
+                prior_period: None,
+            },
+        );
         let mut j = Journal::new();
         for amount in ["10.00", "15.50", "-30.00"] {
             let a = AccountEntries {
@@ -402,9 +462,10 @@ mod tests {
                 minor_units: 2,
                 side: Side::Liability,
                 gl: &gl,
-                interest_for_window: n(amount),
-                accrued_at_cutoff: Decimal::ZERO,
-                postings: vec![],
+                window_days_interest: n(amount),
+                prior_period: Decimal::ZERO,
+                open_item: Decimal::ZERO,
+                settlements: vec![],
             };
             j.add_account(
                 &a,
@@ -424,7 +485,7 @@ mod tests {
     /// cut-off is reversed on the first day of the next period.
     #[test]
     fn reversing_style_books_and_reverses_the_accrued() {
-        let gl = GlCodes::default();
+        let gl = ResolvedGl::of(Side::Asset, &GlCodes::default());
         let mut j = Journal::new();
         let a = AccountEntries {
             entity: "HM",
@@ -432,9 +493,10 @@ mod tests {
             minor_units: 0,
             side: Side::Asset,
             gl: &gl,
-            interest_for_window: n("900"),
-            accrued_at_cutoff: n("500"),
-            postings: vec![(d("2026-11-15"), n("400"))],
+            window_days_interest: n("900"),
+            prior_period: n("7"),
+            open_item: n("500"),
+            settlements: vec![(d("2026-11-15"), n("400"))],
         };
         j.add_account(
             &a,
@@ -454,5 +516,99 @@ mod tests {
             .find(|l| l.date == d("2026-11-15") && l.gl_account == defaults::INTEREST_INCOME)
             .unwrap();
         assert_eq!(posted.credit, n("400"));
+    }
+
+    /// behaviour.md example A1: the window days' interest and the
+    /// prior-period adjustment are two lines on the cut-off, the second to
+    /// the prior-period GL account; the posting settles the payable when paid.
+    #[test]
+    fn the_prior_period_adjustment_is_its_own_line() {
+        let gl = ResolvedGl::of(
+            Side::Liability,
+            &GlCodes {
+                prior_period: Some("6190".into()),
+                ..GlCodes::default()
+            },
+        );
+        let mut j = Journal::new();
+        let a = AccountEntries {
+            entity: "HM",
+            currency: "USD",
+            minor_units: 2,
+            side: Side::Liability,
+            gl: &gl,
+            window_days_interest: n("410.43"),
+            prior_period: n("43.80"),
+            open_item: n("454.23"),
+            settlements: vec![(d("2026-12-01"), n("454.23"))],
+        };
+        j.add_account(
+            &a,
+            JournalStyle::Incremental,
+            d("2026-11-01"),
+            d("2026-11-30"),
+        );
+        let lines = j.lines();
+        balanced(&lines);
+        let line = |gl: &str, memo: &str| {
+            lines
+                .iter()
+                .find(|l| l.gl_account == gl && l.memo.starts_with(memo))
+                .unwrap()
+        };
+        assert_eq!(
+            line(defaults::INTEREST_EXPENSE, "interest accrued").debit,
+            n("410.43")
+        );
+        let ppa = line("6190", "prior-period");
+        assert_eq!((ppa.debit, ppa.date), (n("43.80"), d("2026-11-30")));
+        assert_eq!(ppa.memo, "prior-period interest adjustment to 2026-10-31");
+        assert_eq!(
+            line(defaults::ACCRUED_PAYABLE, "prior-period").credit,
+            n("43.80")
+        );
+        let settled = line(defaults::ACCRUED_PAYABLE, "interest posted");
+        assert_eq!(
+            (settled.debit, settled.date),
+            (n("454.23"), d("2026-12-01"))
+        );
+    }
+
+    /// Reversing: the accrual on the cut-off is the open item, so a posting
+    /// that ends on the cut-off and is paid the next day is the window's
+    /// expense (the reversal and the posting cancel on the next day).
+    #[test]
+    fn reversing_books_the_open_item() {
+        let gl = ResolvedGl::of(Side::Liability, &GlCodes::default());
+        let mut j = Journal::new();
+        let a = AccountEntries {
+            entity: "HM",
+            currency: "USD",
+            minor_units: 2,
+            side: Side::Liability,
+            gl: &gl,
+            window_days_interest: n("410.43"),
+            prior_period: n("43.80"),
+            open_item: n("454.23"),
+            settlements: vec![(d("2026-12-01"), n("454.23"))],
+        };
+        j.add_account(
+            &a,
+            JournalStyle::Reversing,
+            d("2026-11-01"),
+            d("2026-11-30"),
+        );
+        let lines = j.lines();
+        balanced(&lines);
+        let on = |date: &str| -> Decimal {
+            lines
+                .iter()
+                .filter(|l| l.gl_account == defaults::INTEREST_EXPENSE && l.date == d(date))
+                .map(|l| l.debit - l.credit)
+                .sum()
+        };
+        assert_eq!(on("2026-11-30"), n("454.23"));
+        assert_eq!(on("2026-12-01"), n("0.00"));
+        assert!(lines.iter().all(|l| !l.memo.starts_with("prior-period")));
     }
 }

@@ -17,16 +17,18 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
-use crate::book::{AccountEntry, Book, StatementRow};
+use crate::book::{AccountEntry, Book, BookedRow, StatementRow};
 use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
+use crate::engine::ledger::SettlementLines;
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{Problem, Severity};
 use crate::report::model::{
-    AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount, Word,
+    AccrualLine, CurrencyTotal, DailyLine, JournalLine, LedgerLine, ReconciliationLine,
+    StatusCount, Word,
 };
-use journal::{AccountEntries, Journal, JournalStyle};
+use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl};
 use totals::{StatusCounts, Totals};
 
 /// What the batch needs besides the books.
@@ -50,6 +52,12 @@ pub struct BatchSettings {
     pub shard: Option<(u32, u32)>,
     /// What a floating account does about a missing fixing.
     pub fixing_fallback: FixingFallback,
+    /// The knowledge date: rows booked after it are not in the books given.
+    pub as_at: Option<NaiveDate>,
+    /// The day the previous close was run, if given.
+    pub previous_as_at: Option<NaiveDate>,
+    /// When postings settle against the accrual account.
+    pub settlement_lines: SettlementLines,
 }
 
 /// The shard (1..=N) an account id belongs to: a stable hash of the id, the
@@ -106,21 +114,48 @@ const PART: usize = 4096;
 /// One account's outcome.
 struct Outcome {
     line: AccrualLine,
-    /// Postings in the window: payment date and amount.
-    postings: Vec<(NaiveDate, Decimal)>,
+    /// Its GL accounts.
+    gl: ResolvedGl,
+    /// The postings this run settles: settlement date and amount.
+    settlements: Vec<(NaiveDate, Decimal)>,
     daily: Vec<DailyLine>,
     reconciliation: Vec<(Status, ReconciliationLine)>,
     notes: Vec<Problem>,
 }
 
-/// One account to accrue: its book's index, the book, the book's statement
-/// rows by account, and the account.
-type Work<'b> = (
-    usize,
-    &'b Book,
-    &'b HashMap<&'b str, Vec<&'b StatementRow>>,
-    &'b AccountEntry,
-);
+/// One account to accrue: its book's index, the book, the book's rows by
+/// account, and the account.
+type Work<'b> = (usize, &'b Book, &'b Rows<'b>, &'b AccountEntry);
+
+/// A book's rows found once per book rather than per account: statement
+/// rows by account (each account's in sheet order), the Booked row of each
+/// account dated the day before the window, and the book's entity.
+struct Rows<'b> {
+    statements: HashMap<&'b str, Vec<&'b StatementRow>>,
+    booked_opening: HashMap<&'b str, &'b BookedRow>,
+    entity: &'b str,
+}
+
+impl<'b> Rows<'b> {
+    fn of(book: &'b Book, entity: &'b str, window_start: NaiveDate) -> Rows<'b> {
+        let mut statements: HashMap<&str, Vec<&StatementRow>> = HashMap::new();
+        for s in &book.statements {
+            statements.entry(s.account.as_str()).or_default().push(s);
+        }
+        let eve = window_start.pred_opt();
+        let booked_opening = book
+            .booked
+            .iter()
+            .filter(|b| Some(b.date) == eve)
+            .map(|b| (b.account.as_str(), b))
+            .collect();
+        Rows {
+            statements,
+            booked_opening,
+            entity,
+        }
+    }
+}
 
 /// Accrues every account of `books` (in parallel on rayon's pool) and sums
 /// the results. `tick` is called once per account, from any thread, for a
@@ -137,10 +172,17 @@ pub fn run_books(
         fixing_fallback: settings.fixing_fallback,
         keep_days: settings.daily,
         fast_path: settings.fast_path,
+        previous_as_at: settings.previous_as_at,
+        settlement_lines: settings.settlement_lines,
     };
-    // Each account's statement rows, found once per book rather than per account.
-    let rows: Vec<HashMap<&str, Vec<&StatementRow>>> =
-        books.iter().map(statements_by_account).collect();
+    let rows: Vec<Rows> = books
+        .iter()
+        .enumerate()
+        .map(|(bi, b)| {
+            let entity = settings.entities.get(bi).map_or("default", String::as_str);
+            Rows::of(b, entity, settings.window_start)
+        })
+        .collect();
     let work = work_in_book_order(books, &rows, settings.shard);
     let accounts_read = work.len()
         + books
@@ -153,9 +195,9 @@ pub fn run_books(
     // outcomes (day rows, postings, notes) are held at a time.
     for part in work.chunks(PART) {
         let outcomes = accrue_part(part, &options, tick);
-        for (&(bi, _, _, entry), outcome) in part.iter().zip(outcomes) {
+        for (&(_, _, _, entry), outcome) in part.iter().zip(outcomes) {
             match outcome {
-                Ok(o) => sums.add(bi, entry, o),
+                Ok(o) => sums.add(entry, o),
                 Err(p) => sums.result.problems.push(*p),
             }
         }
@@ -166,7 +208,7 @@ pub fn run_books(
 /// Every account of the books (of the shard, if any), in book order.
 fn work_in_book_order<'b>(
     books: &'b [Book],
-    rows: &'b [HashMap<&'b str, Vec<&'b StatementRow>>],
+    rows: &'b [Rows<'b>],
     shard: Option<(u32, u32)>,
 ) -> Vec<Work<'b>> {
     books
@@ -187,13 +229,7 @@ fn accrue_part(
     part.par_iter()
         .with_min_len(64)
         .map(|&(_, book, rows, entry)| {
-            let r = accrue_one(
-                book,
-                entry,
-                rows.get(entry.terms.id.as_str())
-                    .map_or(&[][..], Vec::as_slice),
-                options,
-            );
+            let r = accrue_one(book, rows, entry, options);
             tick();
             r
         })
@@ -228,22 +264,23 @@ impl<'s> Sums<'s> {
         }
     }
 
-    /// Adds one computed account of book `bi`: its totals, journal lines,
+    /// Adds one computed account: its totals, journal lines,
     /// day rows, reconciliation rows, notes and accrual line.
-    fn add(&mut self, bi: usize, entry: &AccountEntry, o: Outcome) {
+    fn add(&mut self, entry: &AccountEntry, o: Outcome) {
         let settings = self.settings;
         self.totals.add(&o.line);
-        let entity = settings.entities.get(bi).map_or("default", String::as_str);
+        let l = &o.line.ledger;
         self.journal.add_account(
             &AccountEntries {
-                entity,
+                entity: &l.entity,
                 currency: &o.line.currency,
                 minor_units: o.line.minor_units,
                 side: entry.terms.side,
-                gl: &entry.gl,
-                interest_for_window: o.line.interest_for_window,
-                accrued_at_cutoff: o.line.accrued_at_cutoff,
-                postings: o.postings,
+                gl: &o.gl,
+                window_days_interest: l.window_days_interest,
+                prior_period: l.prior_period,
+                open_item: l.open_item,
+                settlements: o.settlements,
             },
             settings.journal_style,
             settings.window_start,
@@ -289,19 +326,22 @@ fn left_out_accounts(book: &Book, shard: Option<(u32, u32)>) -> usize {
 /// One account through the pipeline, turned into the batch's rows.
 fn accrue_one(
     book: &Book,
+    rows: &Rows,
     entry: &AccountEntry,
-    statements: &[&StatementRow],
     options: &Options,
 ) -> Result<Outcome, Box<Problem>> {
-    let account = BookAccount::from_book(book, entry, statements);
+    let id = entry.terms.id.as_str();
+    let statements = rows.statements.get(id).map_or(&[][..], Vec::as_slice);
+    let account = BookAccount::from_book(book, entry, statements)
+        .with_booked_opening(rows.booked_opening.get(id).copied());
     let run = run_account(&account, options).map_err(|f| Box::new(f.problem))?;
-    Ok(outcome(entry, run, options))
+    Ok(outcome(entry, rows.entity, run, options))
 }
 
 /// The rows of an account computed: its accrual line, the postings of the
 /// window for the journal, its day lines when kept, its reconciliation
 /// lines and its notes.
-fn outcome(entry: &AccountEntry, run: AccountRun, options: &Options) -> Outcome {
+fn outcome(entry: &AccountEntry, entity: &str, run: AccountRun, options: &Options) -> Outcome {
     let t = &entry.terms;
     let r = run.result;
     let reconciliation = run
@@ -314,12 +354,15 @@ fn outcome(entry: &AccountEntry, run: AccountRun, options: &Options) -> Outcome 
             )
         })
         .collect();
-    let postings = r
+    let mode = options.settlement_lines;
+    let settlements = run
         .postings
         .iter()
-        .filter(|p| p.end >= options.window_start && p.end <= options.cutoff)
-        .map(|p| (p.payment, p.posted))
+        .filter(|p| mode.journals(p, options.window_start, options.cutoff))
+        .filter_map(|p| Some((mode.settlement_date(p)?, p.amount)))
         .collect();
+    let gl = ResolvedGl::of(t.side, &entry.gl);
+    let f = &run.ledger;
     let daily = r
         .days
         .iter()
@@ -347,25 +390,34 @@ fn outcome(entry: &AccountEntry, run: AccountRun, options: &Options) -> Outcome 
             compounding: t.compounding.name().into(),
             balance_at_cutoff: r.balance_at_cutoff,
             accrued_at_cutoff: r.accrued_at_cutoff,
-            posted_in_window: r.posted_in_window,
-            interest_for_window: r.interest_for_window,
+            posted_in_window: run
+                .postings
+                .iter()
+                .filter(|p| p.made && p.end >= options.window_start && p.end <= options.cutoff)
+                .map(|p| p.amount)
+                .sum(),
+            interest_for_window: f.interest_for_window,
             effective_annual_rate: r.effective_annual_rate,
-            ledger: crate::report::model::LedgerLine::default(),
+            ledger: LedgerLine {
+                entity: Word::Owned(entity.to_string()),
+                gl_interest: gl.interest.clone(),
+                gl_accrued: gl.accrued.clone(),
+                gl_settlement: gl.settlement.clone(),
+                gl_prior_period: gl.prior_period.clone(),
+                window_days_interest: f.window_days_interest,
+                booked_opening: f.booked_opening,
+                opening_source: Word::Borrowed(f.opening_source.words()),
+                prior_period: f.prior_period,
+                open_item: f.open_item,
+                settled_in_window: f.settled_in_window,
+            },
         },
-        postings,
+        gl,
+        settlements,
         daily,
         reconciliation,
         notes: run.notes,
     }
-}
-
-/// A book's statement rows by account, each account's in sheet order.
-fn statements_by_account(book: &Book) -> HashMap<&str, Vec<&StatementRow>> {
-    let mut out: HashMap<&str, Vec<&StatementRow>> = HashMap::new();
-    for s in &book.statements {
-        out.entry(s.account.as_str()).or_default().push(s);
-    }
-    out
 }
 
 fn reconciliation_line(

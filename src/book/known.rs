@@ -28,16 +28,35 @@ pub fn statement_known(s: &StatementRow, day: NaiveDate) -> bool {
 /// by the end of `day` (a table without a `booked` date is booked on its
 /// effective date).
 pub fn rate_table_known(book: &Book, rate_ref: &str, effective: NaiveDate, day: NaiveDate) -> bool {
-    book.rate_bookings
-        .get(rate_ref)
-        .and_then(|tables| tables.iter().find(|(e, _)| *e == effective))
-        .map_or(effective, |(_, booked)| *booked)
-        <= day
+    table_known(bookings_of(book, rate_ref), effective, day)
 }
 
 /// Whether any rate table of `rate_ref` was booked after the end of `day`.
 pub fn rates_booked_after(book: &Book, rate_ref: &str, day: NaiveDate) -> bool {
-    book.rate_bookings
-        .get(rate_ref)
-        .is_some_and(|tables| tables.iter().any(|(_, booked)| *booked > day))
+    booked_after(bookings_of(book, rate_ref), day)
+}
+
+/// The (effective, booked) dates of the tables of `rate_ref` booked later
+/// than they took effect.
+pub fn bookings_of<'b>(book: &'b Book, rate_ref: &str) -> &'b [(NaiveDate, NaiveDate)] {
+    book.rate_bookings.get(rate_ref).map_or(&[], Vec::as_slice)
+}
+
+/// Whether the table effective on `effective` was booked by the end of
+/// `day`, given the `bookings` of its schedule.
+pub fn table_known(
+    bookings: &[(NaiveDate, NaiveDate)],
+    effective: NaiveDate,
+    day: NaiveDate,
+) -> bool {
+    bookings
+        .iter()
+        .find(|(e, _)| *e == effective)
+        .map_or(effective, |(_, booked)| *booked)
+        <= day
+}
+
+/// Whether any table of a schedule with `bookings` was booked after the end of `day`.
+pub fn booked_after(bookings: &[(NaiveDate, NaiveDate)], day: NaiveDate) -> bool {
+    bookings.iter().any(|(_, booked)| *booked > day)
 }

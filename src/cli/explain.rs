@@ -133,5 +133,7 @@ fn options(args: &Args, books: &[Book], period: Option<(NaiveDate, NaiveDate)>) 
         fixing_fallback: settings.fixing_fallback,
         keep_days: true,
         fast_path: true,
+        previous_as_at: None,
+        settlement_lines: Default::default(),
     })
 }

@@ -186,6 +186,9 @@ impl Settings {
             fast_path: self.fast_path,
             shard: self.shard,
             fixing_fallback: self.fixing_fallback,
+            as_at: None,
+            previous_as_at: None,
+            settlement_lines: Default::default(),
         }
     }
 }

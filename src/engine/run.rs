@@ -179,6 +179,9 @@ pub struct AccountResult {
     pub accrued_at_cutoff: Decimal,
     /// The same at the end of F-1.
     pub accrued_before_window: Decimal,
+    /// Of that, the back-value interest owed per movement (an index into
+    /// the movements) at the end of F-1, each rounded.
+    pub back_value_before_window: Vec<(usize, Decimal)>,
     /// Postings whose end lies in F..C.
     pub posted_in_window: Decimal,
     /// posted in window + accrued at cut-off - accrued before window.
@@ -371,6 +374,7 @@ struct Report {
     spans: Vec<Span>,
     states: Vec<AccrualState>,
     accrued_before_window: Option<Decimal>,
+    back_value_before_window: Vec<(usize, Decimal)>,
     rate_at_cutoff: Option<Decimal>,
 }
 
@@ -865,6 +869,12 @@ impl<'a> Loop<'a> {
             let accrued = self.accrued(d)?;
             if is_window_eve {
                 report.accrued_before_window = Some(self.round(accrued));
+                for (i, owed) in &self.state.back_value_owed {
+                    let v = owed
+                        .value()
+                        .map_err(overflow("the back-value interest", d))?;
+                    report.back_value_before_window.push((*i, self.round(v)));
+                }
             }
             if opts.keep_days {
                 report.days.push(DayRow {
@@ -949,6 +959,7 @@ impl<'a> Loop<'a> {
             balance_at_cutoff,
             accrued_at_cutoff,
             accrued_before_window: before,
+            back_value_before_window: report.back_value_before_window,
             posted_in_window,
             interest_for_window,
             rate_at_cutoff: report.rate_at_cutoff,

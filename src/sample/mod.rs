@@ -474,6 +474,8 @@ impl Generator {
             fixings: &fixings,
             movements: &d.movements,
             statements: &[],
+            booked_opening: None,
+            rate_bookings: [&[], &[]],
         };
         let right = run_account(&inputs, &run_options(d.plant.is_some()))
             .map_err(|f| fail(f.error))?
@@ -538,6 +540,8 @@ fn run_options(keep_days: bool) -> Options {
         fixing_fallback: FixingFallback::None,
         keep_days,
         fast_path: true,
+        previous_as_at: None,
+        settlement_lines: Default::default(),
     }
 }
 
