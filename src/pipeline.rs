@@ -28,7 +28,9 @@ use crate::engine::ledger::{
     OpeningSource, SettlementLines,
 };
 use crate::engine::rates::RateSchedule;
-use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, Tolerance};
+use crate::engine::reconcile::{
+    expected_over, reconcile, variance_bp, Reconciled, StatementPeriod, Status, Tolerance,
+};
 use crate::engine::run::{accrue, AccountResult, RunOptions};
 use crate::engine::{ActualPosting, EngineError, Inputs, Movement};
 use crate::problem::{Position, Problem, Severity};
@@ -52,6 +54,9 @@ pub struct BookAccount<'a> {
     pub statements: &'a [&'a StatementRow],
     /// Its Booked row dated the day before the window, if any.
     pub booked_opening: Option<&'a BookedRow>,
+    /// Its Booked row dated the cut-off, if any: the core system's open
+    /// item, checked against ours.
+    pub booked_close: Option<&'a BookedRow>,
     /// When the tables of its `rate_ref` and `debit_rate_ref` were booked,
     /// where later than they took effect (effective, booked).
     pub rate_bookings: [&'a [(NaiveDate, NaiveDate)]; 2],
@@ -80,6 +85,7 @@ impl<'a> BookAccount<'a> {
                 .map_or(&[][..], Vec::as_slice),
             statements,
             booked_opening: None,
+            booked_close: None,
             rate_bookings: [
                 known::bookings_of(book, &entry.rate_ref),
                 entry
@@ -95,6 +101,15 @@ impl<'a> BookAccount<'a> {
     pub fn with_booked_opening(self, row: Option<&'a BookedRow>) -> BookAccount<'a> {
         BookAccount {
             booked_opening: row,
+            ..self
+        }
+    }
+
+    /// The same account with `row` as the core system's open item at the
+    /// end of the cut-off.
+    pub fn with_booked_close(self, row: Option<&'a BookedRow>) -> BookAccount<'a> {
+        BookAccount {
+            booked_close: row,
             ..self
         }
     }
@@ -161,6 +176,7 @@ impl<'a> KnownRows<'a> {
             movements: &self.movements,
             statements,
             booked_opening: None,
+            booked_close: None,
             rate_bookings: [&[], &[]],
         }
     }
@@ -224,6 +240,9 @@ pub struct AccountRun {
     pub postings: Vec<LedgerPosting>,
     /// What the ledger books and holds for the account.
     pub ledger: LedgerFigures,
+    /// The core system's open item at cut-off (a Booked row) checked
+    /// against ours: expected O(C), "posted" the booked figure.
+    pub accrued_check: Option<CheckedRow>,
 }
 
 /// An account the engine could not compute.
@@ -272,6 +291,7 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         not_made: close.not_made,
         postings,
         ledger,
+        accrued_check: close.accrued_check,
     })
 }
 
@@ -283,6 +303,7 @@ struct Close {
     rows: Vec<CheckedRow>,
     notes: Vec<Problem>,
     not_made: Vec<(NaiveDate, NaiveDate)>,
+    accrued_check: Option<CheckedRow>,
 }
 
 /// Runs and reconciles `account` for the window of `options`. A posting
@@ -297,12 +318,13 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
     let (periods, mut notes) = statement_periods(account.statements, entry, options.cutoff);
     // Reconciliation sums spans of days broken at each statement period's
     // ends; states let the cause search re-run a period.
+    let checked = !periods.is_empty() || account.booked_close.is_some();
     let run_options = RunOptions {
         window_start: options.window_start,
         cutoff: options.cutoff,
         keep_days: options.keep_days,
-        keep_states: !periods.is_empty(),
-        keep_spans: !periods.is_empty(),
+        keep_states: checked,
+        keep_spans: checked,
         fast_path: options.fast_path,
     };
     let breaks: Vec<NaiveDate> = periods
@@ -364,12 +386,89 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         })
         .collect();
     notes.extend(fixing_warnings(entry, &result.fixing_warnings));
+    let accrued_check = match account.booked_close {
+        Some(booked) => Some(check_accrued(
+            t, &inputs, &result, &not_made, booked, options,
+        )?),
+        None => None,
+    };
     Ok(Close {
         result,
         periods,
         rows,
         notes,
         not_made,
+        accrued_check,
+    })
+}
+
+/// The core system's open item at cut-off checked against ours
+/// (behaviour.md, System accrued check): over the days since the last
+/// posting, with status and likely cause as a statement row's, the booked
+/// figure in place of the posted one.
+fn check_accrued(
+    t: &crate::engine::AccountTerms,
+    inputs: &Inputs,
+    result: &AccountResult,
+    not_made: &[(NaiveDate, NaiveDate)],
+    booked: &BookedRow,
+    options: &Options,
+) -> Result<CheckedRow, EngineError> {
+    let c = options.cutoff;
+    let from = result
+        .postings
+        .iter()
+        .filter(|p| p.end <= c)
+        .map(|p| p.end)
+        .max()
+        .and_then(|e| e.succ_opt())
+        .unwrap_or(t.open_date);
+    let postings = ledger_postings(result, not_made);
+    let expected = open_item(
+        result.accrued_at_cutoff,
+        &postings,
+        c,
+        options.settlement_lines,
+    );
+    let e = expected_over(t, result, from, c)?;
+    let variance = booked.open_item - expected;
+    let variance_bp = variance_bp(variance, e.balance_years);
+    let status = if variance.is_zero() {
+        Status::Agrees
+    } else if options
+        .tolerance
+        .accepts(variance, variance_bp, t.minor_units)
+    {
+        Status::WithinTolerance
+    } else if variance.is_sign_positive() {
+        Status::OverPosted
+    } else {
+        Status::UnderPosted
+    };
+    // The cause search compares like with like: the days' interest it
+    // re-runs against the booked figure less what is not accrual.
+    let searched = Reconciled {
+        start: from,
+        end: c,
+        days: (c - from).num_days() + 1,
+        balance_years: e.balance_years,
+        expected: e.amount,
+        posted: e.amount + variance,
+        variance,
+        variance_bp,
+        status,
+        rows: 1,
+    };
+    let likely_cause = status
+        .outside_tolerance()
+        .then(|| search(t, inputs, &result.states, &searched, &options.tolerance));
+    Ok(CheckedRow {
+        row: Reconciled {
+            expected,
+            posted: booked.open_item,
+            ..searched
+        },
+        likely_cause,
     })
 }
 

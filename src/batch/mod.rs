@@ -9,15 +9,16 @@
 pub mod journal;
 pub mod merge;
 pub mod split;
+pub mod tie_out;
 pub mod totals;
 
-use std::collections::HashMap;
+use std::collections::{HashMap, HashSet};
 
 use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
-use crate::book::{AccountEntry, Book, BookedRow, StatementRow};
+use crate::book::{AccountEntry, Book, BookedRow, StatementRow, TrialBalanceRow};
 use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
 use crate::engine::ledger::SettlementLines;
@@ -26,9 +27,10 @@ use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{Problem, Severity};
 use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalLine, LedgerLine, ReconciliationLine,
-    StatusCount, Word,
+    StatusCount, TieOutLine, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl};
+use tie_out::TieOut;
 use totals::{StatusCounts, Totals};
 
 /// What the batch needs besides the books.
@@ -99,6 +101,11 @@ pub struct BatchResult {
     pub reconciliation: Vec<ReconciliationLine>,
     /// Rows by status, in the order of [`Status::ALL`] (statuses with rows only).
     pub status_counts: Vec<StatusCount>,
+    /// The core system's open items at cut-off checked against ours (Booked
+    /// rows dated the cut-off), by account in book order.
+    pub accrued_check: Vec<ReconciliationLine>,
+    /// The Tie-out, when a book has Trial balance rows.
+    pub tie_out: Option<Vec<TieOutLine>>,
     /// Problems the engine found (book problems stay with their books).
     pub problems: Vec<Problem>,
     /// Accounts in the books, counting those the reader left out.
@@ -120,6 +127,8 @@ struct Outcome {
     settlements: Vec<(NaiveDate, Decimal)>,
     daily: Vec<DailyLine>,
     reconciliation: Vec<(Status, ReconciliationLine)>,
+    /// The core system's open item checked against ours, when a Booked row gives it.
+    accrued_check: Option<ReconciliationLine>,
     notes: Vec<Problem>,
 }
 
@@ -133,25 +142,27 @@ type Work<'b> = (usize, &'b Book, &'b Rows<'b>, &'b AccountEntry);
 struct Rows<'b> {
     statements: HashMap<&'b str, Vec<&'b StatementRow>>,
     booked_opening: HashMap<&'b str, &'b BookedRow>,
+    booked_close: HashMap<&'b str, &'b BookedRow>,
     entity: &'b str,
 }
 
 impl<'b> Rows<'b> {
-    fn of(book: &'b Book, entity: &'b str, window_start: NaiveDate) -> Rows<'b> {
+    fn of(book: &'b Book, entity: &'b str, window_start: NaiveDate, cutoff: NaiveDate) -> Rows<'b> {
         let mut statements: HashMap<&str, Vec<&StatementRow>> = HashMap::new();
         for s in &book.statements {
             statements.entry(s.account.as_str()).or_default().push(s);
         }
-        let eve = window_start.pred_opt();
-        let booked_opening = book
-            .booked
-            .iter()
-            .filter(|b| Some(b.date) == eve)
-            .map(|b| (b.account.as_str(), b))
-            .collect();
+        let on = |day: Option<NaiveDate>| -> HashMap<&'b str, &'b BookedRow> {
+            book.booked
+                .iter()
+                .filter(|b| Some(b.date) == day)
+                .map(|b| (b.account.as_str(), b))
+                .collect()
+        };
         Rows {
             statements,
-            booked_opening,
+            booked_opening: on(window_start.pred_opt()),
+            booked_close: on(Some(cutoff)),
             entity,
         }
     }
@@ -180,7 +191,7 @@ pub fn run_books(
         .enumerate()
         .map(|(bi, b)| {
             let entity = settings.entities.get(bi).map_or("default", String::as_str);
-            Rows::of(b, entity, settings.window_start)
+            Rows::of(b, entity, settings.window_start, settings.cutoff)
         })
         .collect();
     let work = work_in_book_order(books, &rows, settings.shard);
@@ -202,7 +213,7 @@ pub fn run_books(
             }
         }
     }
-    sums.finish()
+    sums.finish(books)
 }
 
 /// Every account of the books (of the shard, if any), in book order.
@@ -243,6 +254,7 @@ struct Sums<'s> {
     journal: Journal,
     totals: Totals,
     counts: StatusCounts,
+    tie_out: TieOut,
     daily: Vec<DailyLine>,
 }
 
@@ -260,6 +272,7 @@ impl<'s> Sums<'s> {
             journal: Journal::new(),
             totals: Totals::default(),
             counts: StatusCounts::default(),
+            tie_out: TieOut::default(),
             daily: Vec::new(),
         }
     }
@@ -292,18 +305,98 @@ impl<'s> Sums<'s> {
             self.result.reconciliation.push(line);
         }
         self.result.problems.extend(o.notes);
+        self.result.accrued_check.extend(o.accrued_check);
+        self.tie_out.add(&o.line);
         self.result.accruals.push(o.line);
         self.result.accounts_computed += 1;
     }
 
-    fn finish(self) -> BatchResult {
+    fn finish(self, books: &[Book]) -> BatchResult {
+        let settings = self.settings;
+        let tb: Vec<&TrialBalanceRow> = books.iter().flat_map(|b| &b.trial_balance).collect();
+        let mut result = self.result;
+        if !tb.is_empty() {
+            let used: HashSet<(String, String, String)> = result
+                .accruals
+                .iter()
+                .map(|a| {
+                    (
+                        a.ledger.entity.to_string(),
+                        a.currency.to_string(),
+                        a.ledger.gl_accrued.to_string(),
+                    )
+                })
+                .collect();
+            result
+                .problems
+                .extend(unused_trial_balance_rows(&tb, &used, settings));
+            let (lines, mixed) = self.tie_out.rows(
+                &tb,
+                settings.window_start,
+                settings.cutoff,
+                &settings.tolerance,
+            );
+            result
+                .problems
+                .extend(mixed.iter().map(|m| mixed_sides(books, m)));
+            result.tie_out = Some(lines);
+        }
         BatchResult {
             totals: self.totals.rows(),
             status_counts: self.counts.rows(),
             journal: self.journal.lines(),
-            daily: self.settings.daily.then_some(self.daily),
-            ..self.result
+            daily: settings.daily.then_some(self.daily),
+            ..result
         }
+    }
+}
+
+/// A note for each Trial balance row (at the opening or the cut-off) of a
+/// GL account no computed account uses.
+fn unused_trial_balance_rows(
+    tb: &[&TrialBalanceRow],
+    used: &HashSet<(String, String, String)>,
+    settings: &BatchSettings,
+) -> Vec<Problem> {
+    let eve = settings.window_start.pred_opt();
+    tb.iter()
+        .filter(|r| Some(r.date) == eve || r.date == settings.cutoff)
+        .filter(|r| !used.contains(&(r.entity.clone(), r.currency.clone(), r.gl_account.clone())))
+        .map(|r| Problem {
+            severity: Severity::Note,
+            position: r.position.clone(),
+            account: None,
+            found: format!(
+                "a trial balance row for GL account {} ({}, {}) that no account of the books uses as its accrued-interest account",
+                r.gl_account, r.entity, r.currency
+            ),
+            expected: "the accrued-interest GL accounts (gl_accrued) of the accounts computed".to_string(),
+            fix: "nothing to tie it to: it is not used; check the GL account, entity and currency if it should be".to_string(),
+            follows: None,
+        })
+        .collect()
+}
+
+/// The error for a GL account that accounts of both sides use.
+fn mixed_sides(books: &[Book], m: &tie_out::MixedSides) -> Problem {
+    Problem {
+        severity: Severity::Error,
+        position: crate::problem::Position {
+            book: books
+                .first()
+                .map(|b| b.path.display().to_string())
+                .unwrap_or_default(),
+            sheet: "Accounts".to_string(),
+            ..Default::default()
+        },
+        account: None,
+        found: format!(
+            "GL account {} ({}, {}) is the accrued-interest account of both deposits (liability) and loans (asset)",
+            m.gl_account, m.entity, m.currency
+        ),
+        expected: "one side per accrued-interest GL account: interest payable and receivable are separate accounts".to_string(),
+        fix: "give the accounts of one side another gl_accrued; the Tie-out has no row for this GL account until then".to_string(),
+        follows: None,
     }
 }
 
@@ -333,7 +426,8 @@ fn accrue_one(
     let id = entry.terms.id.as_str();
     let statements = rows.statements.get(id).map_or(&[][..], Vec::as_slice);
     let account = BookAccount::from_book(book, entry, statements)
-        .with_booked_opening(rows.booked_opening.get(id).copied());
+        .with_booked_opening(rows.booked_opening.get(id).copied())
+        .with_booked_close(rows.booked_close.get(id).copied());
     let run = run_account(&account, options).map_err(|f| Box::new(f.problem))?;
     Ok(outcome(entry, rows.entity, run, options))
 }
@@ -344,6 +438,11 @@ fn accrue_one(
 fn outcome(entry: &AccountEntry, entity: &str, run: AccountRun, options: &Options) -> Outcome {
     let t = &entry.terms;
     let r = run.result;
+    let accrued_check = run.accrued_check.as_ref().map(|c| {
+        let mut line = reconciliation_line(entry, &c.row, c.likely_cause.clone());
+        line.likely_cause = line.likely_cause.replace("posted amount", "booked amount");
+        line
+    });
     let reconciliation = run
         .rows
         .into_iter()
@@ -416,6 +515,7 @@ fn outcome(entry: &AccountEntry, entity: &str, run: AccountRun, options: &Option
         settlements,
         daily,
         reconciliation,
+        accrued_check,
         notes: run.notes,
     }
 }

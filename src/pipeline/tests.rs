@@ -90,6 +90,7 @@ fn account<'a>(
         movements: &[],
         statements,
         booked_opening: None,
+        booked_close: None,
         rate_bookings: [&[], &[]],
     }
 }

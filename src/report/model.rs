@@ -235,6 +235,67 @@ pub struct ReconciliationLine {
     pub likely_cause: String,
 }
 
+/// How a Tie-out row's closing difference stands.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TieStatus {
+    /// No difference.
+    Agrees,
+    /// A difference within the tolerance amount.
+    WithinTolerance,
+    /// A difference beyond it.
+    Differs,
+}
+
+impl TieStatus {
+    /// The word written in reports.
+    pub fn name(self) -> &'static str {
+        match self {
+            TieStatus::Agrees => "agrees",
+            TieStatus::WithinTolerance => "within tolerance",
+            TieStatus::Differs => "differs",
+        }
+    }
+}
+
+/// One row of the Tie-out sheet: an accrued-interest GL account of one
+/// entity and currency, its trial balance against the sub-ledger
+/// (behaviour.md, Tie-out). Amounts are in the GL's normal direction.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct TieOutLine {
+    /// The entity.
+    pub entity: String,
+    /// ISO 4217 code.
+    pub currency: String,
+    /// Minor units.
+    pub minor_units: u32,
+    /// The accrued-interest GL account.
+    pub gl_account: String,
+    /// The side of its accounts (`liability`: payable, credit normal; `asset`: receivable).
+    pub side: Word,
+    /// Accounts of the sub-ledger in it.
+    pub accounts: usize,
+    /// Trial balance at the day before the window (zero without a row).
+    pub opening_tb: Decimal,
+    /// Sum of the accounts' booked openings.
+    pub opening_sub_ledger: Decimal,
+    /// Opening per trial balance less per sub-ledger.
+    pub opening_difference: Decimal,
+    /// Sum of interest for window (prior-period adjustment included).
+    pub interest_for_window: Decimal,
+    /// Sum of postings settled in the window, whichever run journals them.
+    pub settled_in_window: Decimal,
+    /// Opening per trial balance + interest for window - settled in window.
+    pub closing_roll_forward: Decimal,
+    /// Sum of the accounts' open items at cut-off.
+    pub closing_sub_ledger: Decimal,
+    /// Trial balance at cut-off, when a row gives it.
+    pub closing_tb: Option<Decimal>,
+    /// Closing per trial balance (else roll-forward) less per sub-ledger.
+    pub closing_difference: Decimal,
+    /// How the closing difference stands.
+    pub status: TieStatus,
+}
+
 /// Counts of one status (Summary sheet).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct StatusCount {

@@ -475,6 +475,7 @@ impl Generator {
             movements: &d.movements,
             statements: &[],
             booked_opening: None,
+            booked_close: None,
             rate_bookings: [&[], &[]],
         };
         let right = run_account(&inputs, &run_options(d.plant.is_some()))
