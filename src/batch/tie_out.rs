@@ -253,7 +253,10 @@ mod tests {
             r.closing_roll_forward - r.closing_sub_ledger,
             r.opening_difference
         );
-        assert_eq!((r.closing_difference, r.status), (n("-1.00"), TieStatus::Differs));
+        assert_eq!(
+            (r.closing_difference, r.status),
+            (n("-1.00"), TieStatus::Differs)
+        );
         let r = &rows(Some("75.00"))[0];
         assert_eq!(
             (r.closing_difference, r.status),
