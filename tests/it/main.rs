@@ -23,6 +23,7 @@ mod hostile_books;
 mod hostile_inputs;
 mod layers;
 mod ledger_examples;
+mod ledger_law;
 mod merge_safety;
 mod messages;
 mod output_safety;
