@@ -528,13 +528,14 @@ fn reconciliation_line(
     let t = &entry.terms;
     let cause = match row.status {
         Status::Agrees | Status::WithinTolerance => String::new(),
-        Status::NotPosted => "no statement row covers this posting period".to_string(),
+        Status::NotPosted => "no statement row covers this posting period: treated as not made (it stays in the open item and no journal line settles it)".to_string(),
         Status::UnexpectedPosting => {
             "no day of the period had a balance earning interest".to_string()
         }
         // The most plausible change leads; explain prints the search's whole list.
         Status::OverPosted | Status::UnderPosted => likely_cause
             .map(|c| plausible::sheet_words(&c, &t.id))
+            .map(|words| format!("{words}; booked at the amount posted"))
             .unwrap_or_default(),
     };
     ReconciliationLine {
