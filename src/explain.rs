@@ -50,6 +50,9 @@ pub struct Explanation {
     pub ledger: LedgerFigures,
     /// The first day of the window.
     pub window_start: NaiveDate,
+    /// The core system's open item at cut-off checked against ours, when a
+    /// Booked row gives it.
+    pub accrued_check: Option<CheckedRow>,
 }
 
 /// The account's terms as explain's first lines name them.
@@ -113,8 +116,16 @@ pub fn explain(
     options: &Options,
     period: Option<(NaiveDate, NaiveDate)>,
 ) -> Result<Explanation, Box<Failed>> {
-    let statements = statements_of(book, &entry.terms.id);
-    let account = BookAccount::from_book(book, entry, &statements);
+    let id = &entry.terms.id;
+    let statements = statements_of(book, id);
+    let booked_on = |day: Option<NaiveDate>| {
+        book.booked
+            .iter()
+            .find(|b| &b.account == id && Some(b.date) == day)
+    };
+    let account = BookAccount::from_book(book, entry, &statements)
+        .with_booked_opening(booked_on(options.window_start.pred_opt()))
+        .with_booked_close(booked_on(Some(options.cutoff)));
     let options = Options {
         keep_days: true,
         ..*options
@@ -166,6 +177,7 @@ impl Explanation {
             not_made: run.not_made,
             ledger: run.ledger,
             window_start: options.window_start,
+            accrued_check: run.accrued_check,
         }
     }
 }
@@ -241,7 +253,31 @@ fn print_ledger(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
         a(l.prior_period),
         a(l.settled_in_window),
         a(l.open_item)
-    )
+    )?;
+    if let Some(c) = &x.accrued_check {
+        let row = &c.row;
+        let bp = row
+            .variance_bp
+            .map_or_else(|| "n/a".to_string(), |b| format!("{:.2}", b.round_dp(2)));
+        writeln!(
+            out,
+            "accrued check {}..{}: booked {}, expected open item {}, variance {} ({bp} bp): {}",
+            row.start,
+            row.end,
+            a(row.posted),
+            a(row.expected),
+            a(row.variance),
+            row.status.name()
+        )?;
+        if let Some(cause) = &c.likely_cause {
+            writeln!(
+                out,
+                "  likely cause: {}",
+                cause.text().replace("posted amount", "booked amount")
+            )?;
+        }
+    }
+    Ok(())
 }
 
 fn print_header(h: &Header, out: &mut dyn Write) -> io::Result<()> {
