@@ -4,19 +4,26 @@
 //! Takes the rows each shard's workbook holds (read back by
 //! `report::readback`) once `split` has proven them one complete split of
 //! one run, puts the rows back in book order and adds them up again through
-//! the batch's own [`Totals`], [`StatusCounts`] and [`Journal`]. It never
-//! changes a figure of a row, never reads or writes a file, and never keeps
-//! a problem twice.
+//! the batch's own [`Totals`], [`StatusCounts`], [`Journal`] and [`TieOut`]
+//! (the Tie-out's sub-ledger sums from the merged Accruals rows, its trial
+//! balance figures from the shards' Tie-out rows, which all read the same
+//! books). It never changes a figure of a row, never reads or writes a
+//! file, and never keeps a problem twice.
 
 use std::collections::HashMap;
 
 use chrono::NaiveDateTime;
+use rust_decimal::Decimal;
 
 use super::journal::Journal;
 use super::split::OneSplit;
+use super::tie_out::{is_unused_row_note, GlKey, TieOut};
 use super::totals::{largest_variances, StatusCounts, Totals, LARGEST_PER_CURRENCY};
+use crate::engine::reconcile::Tolerance;
 use crate::problem::{sort_problems, Problem};
-use crate::report::model::{AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts};
+use crate::report::model::{
+    AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts, Setting, TieOutLine,
+};
 use crate::report::readback::RunRows;
 
 /// Shards that cannot be combined.
@@ -32,10 +39,10 @@ pub enum MergeError {
 }
 
 /// Merges shards proven to be one split: rows put back in book order
-/// (`order`: account id to its position across the books), totals, counts
-/// and journal added up again, problems listed once each in the order every
-/// report lists them. `accounts_read` and `accounts_failed` are the sums
-/// over the shards.
+/// (`order`: account id to its position across the books), totals, counts,
+/// journal and Tie-out added up again, problems listed once each in the
+/// order every report lists them. `accounts_read` and `accounts_failed` are
+/// the sums over the shards.
 pub fn merge(
     split: OneSplit,
     order: &HashMap<String, usize>,
@@ -55,6 +62,8 @@ pub fn merge(
     }
     rows.put_in_book_order(order);
     let books: Vec<String> = facts.inputs.iter().map(|i| i.path.clone()).collect();
+    let tie_out = rows.tie_out(&settings, books.first().map_or("", String::as_str));
+    rows.keep_unused_row_notes_of_every_shard();
     sort_problems(&mut rows.problems, &books);
     let totals = Totals::of(&rows.accruals);
     let mut counts = StatusCounts::default();
@@ -76,6 +85,8 @@ pub fn merge(
         },
         accruals: rows.accruals,
         reconciliation: rows.reconciliation,
+        accrued_check: rows.accrued_check,
+        tie_out,
         journal: rows.journal.lines(),
         daily: rows.daily,
         problems: rows.problems,
@@ -87,29 +98,52 @@ pub fn merge(
 struct Combined {
     accruals: Vec<AccrualLine>,
     reconciliation: Vec<ReconciliationLine>,
+    accrued_check: Vec<ReconciliationLine>,
+    /// The shards' Tie-out rows, `None` when no shard has the sheet.
+    tie_out: Option<Vec<TieOutLine>>,
     daily: Option<Vec<DailyLine>>,
     journal: Journal,
     problems: Vec<Problem>,
+    /// Each note on a trial balance row no account uses, with how many
+    /// shards have it.
+    unused_row_notes: Vec<(Problem, usize)>,
+    shards: usize,
     accounts_read: usize,
     accounts_failed: usize,
 }
 
 impl Combined {
     fn add(&mut self, part: RunRows) {
+        self.shards += 1;
         self.accounts_read += part.facts.accounts_read;
         self.accounts_failed += part.facts.accounts_failed;
         self.accruals.extend(part.accruals);
         self.reconciliation.extend(part.reconciliation);
+        self.accrued_check.extend(part.accrued_check);
+        if let Some(t) = part.tie_out {
+            self.tie_out.get_or_insert_with(Vec::new).extend(t);
+        }
         if let Some(d) = part.daily {
             self.daily.get_or_insert_with(Vec::new).extend(d);
         }
         for line in &part.journal {
             self.journal.add_line(line);
         }
+        let mut noted: Vec<Problem> = Vec::new();
         // Book problems are in every shard; each is kept once.
         for q in part.problems {
-            if !self.problems.contains(&q) {
+            if is_unused_row_note(&q) {
+                if !noted.contains(&q) {
+                    noted.push(q);
+                }
+            } else if !self.problems.contains(&q) {
                 self.problems.push(q);
+            }
+        }
+        for q in noted {
+            match self.unused_row_notes.iter_mut().find(|(p, _)| *p == q) {
+                Some((_, shards)) => *shards += 1,
+                None => self.unused_row_notes.push((q, 1)),
             }
         }
     }
@@ -120,8 +154,69 @@ impl Combined {
         let rank = |id: &str| order.get(id).copied().unwrap_or(usize::MAX);
         self.accruals.sort_by_key(|a| rank(&a.account));
         self.reconciliation.sort_by_key(|r| rank(&r.account));
+        self.accrued_check.sort_by_key(|r| rank(&r.account));
         if let Some(d) = self.daily.as_mut() {
             d.sort_by_key(|r| rank(&r.account));
         }
     }
+
+    /// The whole run's Tie-out (when the shards have one): the sub-ledger
+    /// summed from every shard's Accruals rows through [`TieOut`], the trial
+    /// balance figures of each GL account from a shard that has its row,
+    /// the status against the run's tolerance amount. A GL account whose
+    /// accounts of both sides fell in different shards has no row, and its
+    /// error (on the Accounts sheet of `first_book`) is added as the single
+    /// run adds it.
+    fn tie_out(&mut self, settings: &[Setting], first_book: &str) -> Option<Vec<TieOutLine>> {
+        let shard_rows = self.tie_out.take()?;
+        let mut sums = TieOut::default();
+        for line in &self.accruals {
+            sums.add(line);
+        }
+        let balances = |key: GlKey<'_>, _side: &str| {
+            shard_rows
+                .iter()
+                .find(|t| {
+                    t.entity == key.entity
+                        && t.currency == key.currency
+                        && t.gl_account == key.gl_account
+                })
+                .map_or((None, None), |t| (Some(t.opening_tb), t.closing_tb))
+        };
+        let tolerance = Tolerance {
+            amount: tolerance_amount(settings),
+            bp: Decimal::ZERO,
+        };
+        let (lines, mixed) = sums.rows_with(balances, &tolerance);
+        for m in mixed {
+            let p = m.problem(first_book);
+            if !self.problems.contains(&p) {
+                self.problems.push(p);
+            }
+        }
+        Some(lines)
+    }
+
+    /// The notes on trial balance rows that every shard has: a row no
+    /// account of the whole run uses (a shard notes also the rows that only
+    /// other shards' accounts use).
+    fn keep_unused_row_notes_of_every_shard(&mut self) {
+        let shards = self.shards;
+        let notes = std::mem::take(&mut self.unused_row_notes);
+        self.problems.extend(
+            notes
+                .into_iter()
+                .filter(|(_, n)| *n == shards)
+                .map(|(p, _)| p),
+        );
+    }
+}
+
+/// The run's tolerance amount as the Run sheet records it: a decimal, or
+/// words for the default (one minor unit of each row's currency).
+fn tolerance_amount(settings: &[Setting]) -> Option<Decimal> {
+    settings
+        .iter()
+        .find(|s| s.name == "tolerance_amount")
+        .and_then(|s| s.value.trim().parse().ok())
 }

@@ -327,18 +327,25 @@ impl<'s> Sums<'s> {
                     )
                 })
                 .collect();
-            result
-                .problems
-                .extend(unused_trial_balance_rows(&tb, &used, settings));
+            result.problems.extend(tie_out::unused_row_notes(
+                &tb,
+                &used,
+                settings.window_start,
+                settings.cutoff,
+            ));
             let (lines, mixed) = self.tie_out.rows(
                 &tb,
                 settings.window_start,
                 settings.cutoff,
                 &settings.tolerance,
             );
+            let first_book = books
+                .first()
+                .map(|b| b.path.display().to_string())
+                .unwrap_or_default();
             result
                 .problems
-                .extend(mixed.iter().map(|m| mixed_sides(books, m)));
+                .extend(mixed.iter().map(|m| m.problem(&first_book)));
             result.tie_out = Some(lines);
         }
         BatchResult {
@@ -348,55 +355,6 @@ impl<'s> Sums<'s> {
             daily: settings.daily.then_some(self.daily),
             ..result
         }
-    }
-}
-
-/// A note for each Trial balance row (at the opening or the cut-off) of a
-/// GL account no computed account uses.
-fn unused_trial_balance_rows(
-    tb: &[&TrialBalanceRow],
-    used: &HashSet<(String, String, String)>,
-    settings: &BatchSettings,
-) -> Vec<Problem> {
-    let eve = settings.window_start.pred_opt();
-    tb.iter()
-        .filter(|r| Some(r.date) == eve || r.date == settings.cutoff)
-        .filter(|r| !used.contains(&(r.entity.clone(), r.currency.clone(), r.gl_account.clone())))
-        .map(|r| Problem {
-            severity: Severity::Note,
-            position: r.position.clone(),
-            account: None,
-            found: format!(
-                "a trial balance row for GL account {} ({}, {}) that no account of the books uses as its accrued-interest account",
-                r.gl_account, r.entity, r.currency
-            ),
-            expected: "the accrued-interest GL accounts (gl_accrued) of the accounts computed".to_string(),
-            fix: "nothing to tie it to: it is not used; check the GL account, entity and currency if it should be".to_string(),
-            follows: None,
-        })
-        .collect()
-}
-
-/// The error for a GL account that accounts of both sides use.
-fn mixed_sides(books: &[Book], m: &tie_out::MixedSides) -> Problem {
-    Problem {
-        severity: Severity::Error,
-        position: crate::problem::Position {
-            book: books
-                .first()
-                .map(|b| b.path.display().to_string())
-                .unwrap_or_default(),
-            sheet: "Accounts".to_string(),
-            ..Default::default()
-        },
-        account: None,
-        found: format!(
-            "GL account {} ({}, {}) is the accrued-interest account of both deposits (liability) and loans (asset)",
-            m.gl_account, m.entity, m.currency
-        ),
-        expected: "one side per accrued-interest GL account: interest payable and receivable are separate accounts".to_string(),
-        fix: "give the accounts of one side another gl_accrued; the Tie-out has no row for this GL account until then".to_string(),
-        follows: None,
     }
 }
 

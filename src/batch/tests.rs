@@ -9,6 +9,7 @@ use crate::conventions::daycount::Basis;
 use crate::engine::rates::RateSchedule;
 use crate::engine::{AccountTerms, Movement, Side};
 use crate::problem::Position;
+use crate::report::model::TieStatus;
 
 fn d(s: &str) -> NaiveDate {
     s.parse().unwrap()
@@ -292,6 +293,8 @@ fn read_back(file: &str, shard: Option<(u32, u32)>, r: BatchResult) -> split::Sh
         },
         accruals: r.accruals,
         reconciliation: r.reconciliation,
+        accrued_check: r.accrued_check,
+        tie_out: r.tie_out,
         journal: r.journal,
         daily: r.daily,
         problems: r.problems,
@@ -348,6 +351,142 @@ fn shards_merged_equal_the_single_run() {
     assert_eq!(merged.facts.accounts_computed, single.accounts_computed);
     assert_eq!(merged.facts.run_time, time);
     assert!(merged.facts.settings.iter().all(|s| s.name != "shard"));
+}
+
+/// A book whose accounts tie to a trial balance: Booked rows at the day
+/// before the window and at the cut-off, a GL account that deposits and
+/// loans share (their accounts in different shards of 3), a GL account of
+/// one account only, a trial balance row no account uses, and a closing
+/// row one minor unit off.
+fn book_that_ties() -> Book {
+    let mut b = book_with_statements(120);
+    b.path = "test.xlsx".into();
+    let position = |sheet: &str| Position {
+        book: "test.xlsx".into(),
+        sheet: sheet.into(),
+        cell: "A2".into(),
+        ..Default::default()
+    };
+    let booked = |account: &str, date: &str, open_item: &str| BookedRow {
+        account: account.into(),
+        date: d(date),
+        open_item: n(open_item),
+        position: position("Booked"),
+    };
+    for (i, a) in b.accounts.iter().enumerate().step_by(5) {
+        let id = a.terms.id.clone();
+        b.booked.push(booked(&id, "2026-10-31", "0"));
+        if i % 10 == 0 {
+            b.booked.push(booked(&id, "2026-11-30", "1"));
+        }
+    }
+    // Account 0 is a USD deposit; 3, 9, 15... are USD loans.
+    let liability = 0;
+    let shard = |i: usize| shard_of(&b.accounts[i].terms.id, 3);
+    let asset = (3..b.accounts.len())
+        .step_by(6)
+        .find(|&i| shard(i) != shard(liability))
+        .unwrap();
+    for i in [liability, asset] {
+        b.accounts[i].gl.accrued = Some("MIXED".into());
+    }
+    b.accounts[6].gl.accrued = Some("ONLY-ONE".into());
+    let tb = |ccy: &str, gl: &str, date: &str, balance: &str| TrialBalanceRow {
+        entity: "HM".into(),
+        currency: ccy.into(),
+        gl_account: gl.into(),
+        date: d(date),
+        balance: n(balance),
+        position: position("Trial balance"),
+    };
+    b.trial_balance = vec![
+        tb(
+            "USD",
+            journal::defaults::ACCRUED_PAYABLE,
+            "2026-10-31",
+            "-12.34",
+        ),
+        tb(
+            "JPY",
+            journal::defaults::ACCRUED_RECEIVABLE,
+            "2026-10-31",
+            "56",
+        ),
+        tb("USD", "ONLY-ONE", "2026-10-31", "-1.00"),
+        tb("USD", "NOBODY", "2026-11-30", "5.00"),
+    ];
+    b
+}
+
+/// Shards merged give the single run's Tie-out, Accrued check and the
+/// problems about both (behaviour.md, Tie-out; System accrued check): the
+/// sub-ledger summed anew, the trial balance taken from the shards, a GL
+/// account shared by sides across shards refused, and a trial balance row
+/// noted only when no account of the whole run uses it.
+#[test]
+fn shards_merged_give_the_single_runs_tie_out_and_accrued_check() {
+    let mut books = [book_that_ties()];
+    // The closing trial balance of the USD payable one cent off the sub-ledger.
+    let first = run_books(&books, &settings(), &|| {});
+    let payable = first
+        .tie_out
+        .unwrap()
+        .into_iter()
+        .find(|t| t.currency == "USD" && t.gl_account == journal::defaults::ACCRUED_PAYABLE)
+        .unwrap();
+    let mut closing = books[0].trial_balance[0].clone();
+    closing.date = d("2026-11-30");
+    closing.balance = -(payable.closing_sub_ledger + n("0.01"));
+    books[0].trial_balance.push(closing);
+
+    let single = run_books(&books, &settings(), &|| {});
+    let tie_out = single.tie_out.clone().unwrap();
+    let statuses: Vec<TieStatus> = tie_out.iter().map(|t| t.status).collect();
+    assert!(
+        statuses.contains(&TieStatus::WithinTolerance),
+        "{tie_out:?}"
+    );
+    assert!(statuses.contains(&TieStatus::Differs), "{tie_out:?}");
+    assert!(tie_out.iter().any(|t| t.gl_account == "ONLY-ONE"));
+    assert!(!tie_out.iter().any(|t| t.gl_account == "MIXED"));
+    assert!(single.accrued_check.len() > 1, "{:?}", single.accrued_check);
+    let found = |p: &[Problem], what: &str| p.iter().filter(|p| p.found.contains(what)).count();
+    assert_eq!(found(&single.problems, "GL account MIXED"), 1);
+    assert_eq!(found(&single.problems, "GL account NOBODY"), 1);
+    assert_eq!(found(&single.problems, "GL account ONLY-ONE"), 0);
+
+    let parts: Vec<_> = (1..=3)
+        .map(|k| shard_of_books(&books, &format!("s{k}.xlsx"), k, 3))
+        .collect();
+    // Each shard alone sees neither the shared GL account nor every use.
+    for p in &parts {
+        assert_eq!(found(&p.rows.problems, "GL account MIXED"), 0);
+    }
+    assert_eq!(
+        parts
+            .iter()
+            .filter(|p| found(&p.rows.problems, "GL account ONLY-ONE") == 1)
+            .count(),
+        2
+    );
+    let order: HashMap<String, usize> = books[0]
+        .accounts
+        .iter()
+        .enumerate()
+        .map(|(i, a)| (a.terms.id.clone(), i))
+        .collect();
+    let time = d("2026-12-02").and_hms_opt(8, 0, 0).unwrap();
+    let merged = merge::merge(
+        split::check(parts).unwrap(),
+        &order,
+        time,
+        "ledgerate merge".into(),
+    );
+    assert_eq!(merged.tie_out, single.tie_out);
+    assert_eq!(merged.accrued_check, single.accrued_check);
+    let mut problems = single.problems.clone();
+    crate::problem::sort_problems(&mut problems, &["test.xlsx".to_string()]);
+    assert_eq!(merged.problems, problems);
 }
 
 /// What the split check says of a set of shards (empty when it passes).

@@ -4,16 +4,19 @@
 //!
 //! Adds up figures already computed per account and the book's Trial
 //! balance rows; it never rounds, and never decides an account's figure.
-//! A GL account that accounts of both sides use has no row: the caller
-//! reports it as an error.
+//! The roll-forward, the differences and the status are worked out in one
+//! place ([`TieOut::rows_with`]), for a run and for a merge of shards alike.
+//! A GL account that accounts of both sides use has no row: it is an error
+//! ([`MixedSides::problem`]).
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashSet};
 
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use crate::book::TrialBalanceRow;
 use crate::engine::reconcile::Tolerance;
+use crate::problem::{Position, Problem, Severity};
 use crate::report::model::{AccrualLine, TieOutLine, TieStatus, Word};
 
 /// (entity, currency, GL account).
@@ -80,13 +83,40 @@ impl TieOut {
         tolerance: &Tolerance,
     ) -> (Vec<TieOutLine>, Vec<MixedSides>) {
         let eve = window_start.pred_opt().unwrap_or(window_start);
-        let balance_on = |key: &Key, date: NaiveDate| -> Option<Decimal> {
+        let balance_on = |key: GlKey<'_>, date: NaiveDate| -> Option<Decimal> {
             let mut found = tb.iter().filter(|r| {
-                r.date == date && r.entity == key.0 && r.currency == key.1 && r.gl_account == key.2
+                r.date == date
+                    && r.entity == key.entity
+                    && r.currency == key.currency
+                    && r.gl_account == key.gl_account
             });
             let first = found.next()?;
             Some(found.fold(first.balance, |sum, r| sum + r.balance))
         };
+        self.rows_with(
+            |key, side| {
+                // A trial balance prints debits positive: a payable's normal
+                // (credit) balance is the negative of its trial-balance figure.
+                let normal = |tb: Decimal| if side == "liability" { -tb } else { tb };
+                (
+                    balance_on(key, eve).map(normal),
+                    balance_on(key, cutoff).map(normal),
+                )
+            },
+            tolerance,
+        )
+    }
+
+    /// The Tie-out rows with the trial balance figures `balances` gives for
+    /// a GL account and its side, already in the GL's normal direction:
+    /// (opening, closing), each `None` without a row (an opening without a
+    /// row counts as zero). The one place that rolls forward, takes the
+    /// differences and decides the status.
+    pub fn rows_with(
+        self,
+        balances: impl Fn(GlKey<'_>, &str) -> (Option<Decimal>, Option<Decimal>),
+        tolerance: &Tolerance,
+    ) -> (Vec<TieOutLine>, Vec<MixedSides>) {
         let mut lines = Vec::new();
         let mut mixed = Vec::new();
         for (key, s) in self.rows {
@@ -98,11 +128,13 @@ impl TieOut {
                 });
                 continue;
             };
-            // A trial balance prints debits positive: a payable's normal
-            // (credit) balance is the negative of its trial-balance figure.
-            let normal = |tb: Decimal| if side == "liability" { -tb } else { tb };
-            let opening_tb = balance_on(&key, eve).map_or(Decimal::ZERO, normal);
-            let closing_tb = balance_on(&key, cutoff).map(normal);
+            let gl = GlKey {
+                entity: &key.0,
+                currency: &key.1,
+                gl_account: &key.2,
+            };
+            let (opening_tb, closing_tb) = balances(gl, side);
+            let opening_tb = opening_tb.unwrap_or(Decimal::ZERO);
             let roll_forward = opening_tb + s.interest - s.settled;
             let closing_difference = closing_tb.unwrap_or(roll_forward) - s.closing;
             let status = if closing_difference.is_zero() {
@@ -135,10 +167,82 @@ impl TieOut {
     }
 }
 
+/// One accrued-interest GL account of an entity and currency: a Tie-out
+/// row's key.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct GlKey<'a> {
+    /// The entity.
+    pub entity: &'a str,
+    /// ISO 4217 code.
+    pub currency: &'a str,
+    /// The GL account.
+    pub gl_account: &'a str,
+}
+
+impl MixedSides {
+    /// The error on the Accounts sheet of `book` (the run's first book).
+    pub fn problem(&self, book: &str) -> Problem {
+        Problem {
+            severity: Severity::Error,
+            position: Position {
+                book: book.to_string(),
+                sheet: "Accounts".to_string(),
+                ..Default::default()
+            },
+            account: None,
+            found: format!(
+                "GL account {} ({}, {}) is the accrued-interest account of both deposits (liability) and loans (asset)",
+                self.gl_account, self.entity, self.currency
+            ),
+            expected: "one side per accrued-interest GL account: interest payable and receivable are separate accounts".to_string(),
+            fix: "give the accounts of one side another gl_accrued; the Tie-out has no row for this GL account until then".to_string(),
+            follows: None,
+        }
+    }
+}
+
+/// What the note on a Trial balance row no account uses expects.
+const UNUSED_ROW_EXPECTED: &str =
+    "the accrued-interest GL accounts (gl_accrued) of the accounts computed";
+
+/// A note for each Trial balance row (at the opening `window_start - 1` or
+/// the `cutoff`) of a GL account that no computed account uses: `used`
+/// holds the (entity, currency, GL account) of every computed account.
+pub fn unused_row_notes(
+    tb: &[&TrialBalanceRow],
+    used: &HashSet<(String, String, String)>,
+    window_start: NaiveDate,
+    cutoff: NaiveDate,
+) -> Vec<Problem> {
+    let eve = window_start.pred_opt();
+    tb.iter()
+        .filter(|r| Some(r.date) == eve || r.date == cutoff)
+        .filter(|r| !used.contains(&(r.entity.clone(), r.currency.clone(), r.gl_account.clone())))
+        .map(|r| Problem {
+            severity: Severity::Note,
+            position: r.position.clone(),
+            account: None,
+            found: format!(
+                "a trial balance row for GL account {} ({}, {}) that no account of the books uses as its accrued-interest account",
+                r.gl_account, r.entity, r.currency
+            ),
+            expected: UNUSED_ROW_EXPECTED.to_string(),
+            fix: "nothing to tie it to: it is not used; check the GL account, entity and currency if it should be".to_string(),
+            follows: None,
+        })
+        .collect()
+}
+
+/// Whether `p` is a note of [`unused_row_notes`]. A shard notes a row no
+/// account of its own uses; the whole run notes it only when no shard's
+/// account does, so a merge keeps the notes every shard has.
+pub fn is_unused_row_note(p: &Problem) -> bool {
+    p.severity == Severity::Note && p.expected == UNUSED_ROW_EXPECTED
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::problem::Position;
     use crate::report::model::LedgerLine;
 
     fn d(s: &str) -> NaiveDate {

@@ -217,6 +217,8 @@ fn report(
         accruals: batch.accruals,
         largest_variances: largest_variances(&batch.reconciliation, LARGEST_PER_CURRENCY),
         reconciliation: batch.reconciliation,
+        accrued_check: batch.accrued_check,
+        tie_out: batch.tie_out,
         status_counts: batch.status_counts,
         journal: batch.journal,
         daily: batch.daily,

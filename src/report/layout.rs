@@ -6,6 +6,7 @@
 
 use rust_xlsxwriter::{Color, Format, FormatAlign, FormatBorder, Worksheet, XlsxError};
 
+use super::model::TieStatus;
 use crate::engine::reconcile::Status;
 
 /// Rows a worksheet holds, header included (the spreadsheet format's limit).
@@ -219,6 +220,15 @@ const STATUS_FILLS: [(Status, u32); 6] = [
     (Status::UnexpectedPosting, palette::UNEXPECTED),
 ];
 
+/// Each Tie-out status's fill: those of the statement statuses that mean
+/// the same, and a vermilion tint for a GL account that differs. The word
+/// in the cell is [`TieStatus::name`].
+const TIE_FILLS: [(TieStatus, u32); 3] = [
+    (TieStatus::Agrees, palette::AGREES),
+    (TieStatus::WithinTolerance, palette::WITHIN),
+    (TieStatus::Differs, palette::UNDER),
+];
+
 /// The amount format for `decimals` places: thousands separated, a minus sign
 /// for negatives (`#,##0.00;-#,##0.00`). With `blank_zero`, zero shows as an
 /// empty cell (the other column of a journal line); the cell still holds 0.
@@ -281,6 +291,7 @@ pub struct Styles {
     ledger: Vec<Format>,
     balance_years: Vec<Format>,
     statuses: Vec<(Status, Format)>,
+    tie_statuses: Vec<(TieStatus, Format)>,
     error_row: Format,
     warning_row: Format,
 }
@@ -375,18 +386,11 @@ impl Styles {
                 .collect(),
             statuses: STATUS_FILLS
                 .iter()
-                .map(|(s, c)| {
-                    let fill = cell().set_background_color(Color::RGB(*c));
-                    // Apart from the figure on its left.
-                    (
-                        *s,
-                        if top {
-                            fill.set_align(FormatAlign::Left).set_indent(1)
-                        } else {
-                            fill
-                        },
-                    )
-                })
+                .map(|(s, c)| (*s, status_fill(cell(), *c, top)))
+                .collect(),
+            tie_statuses: TIE_FILLS
+                .iter()
+                .map(|(s, c)| (*s, status_fill(cell(), *c, top)))
                 .collect(),
             error_row: Format::new()
                 .set_align(FormatAlign::Top)
@@ -420,6 +424,14 @@ impl Styles {
             .map_or(&self.text, |(_, f)| f)
     }
 
+    /// The fill of a Tie-out status's cell.
+    pub fn tie_status(&self, status: TieStatus) -> &Format {
+        self.tie_statuses
+            .iter()
+            .find(|(s, _)| *s == status)
+            .map_or(&self.text, |(_, f)| f)
+    }
+
     /// The fill of a Problems severity cell, if it has one.
     pub fn severity(&self, severity: crate::problem::Severity) -> Option<&Format> {
         match severity {
@@ -427,6 +439,17 @@ impl Styles {
             crate::problem::Severity::Warning => Some(&self.warning_row),
             crate::problem::Severity::Note => None,
         }
+    }
+}
+
+/// A status cell of `colour`; in the output workbook set apart from the
+/// figure on its left.
+fn status_fill(cell: Format, colour: u32, top: bool) -> Format {
+    let fill = cell.set_background_color(Color::RGB(colour));
+    if top {
+        fill.set_align(FormatAlign::Left).set_indent(1)
+    } else {
+        fill
     }
 }
 
@@ -482,6 +505,22 @@ mod tests {
         colours.sort_unstable();
         colours.dedup();
         assert_eq!(colours.len(), Status::ALL.len());
+    }
+
+    #[test]
+    fn every_tie_out_status_has_a_fill() {
+        let styles = Styles::report();
+        for status in TieStatus::ALL {
+            assert_ne!(*styles.tie_status(status), styles.text, "{}", status.name());
+        }
+        assert_eq!(
+            *styles.tie_status(TieStatus::Agrees),
+            *styles.status(Status::Agrees)
+        );
+        assert_ne!(
+            *styles.tie_status(TieStatus::Differs),
+            *styles.tie_status(TieStatus::WithinTolerance)
+        );
     }
 
     #[test]

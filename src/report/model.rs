@@ -247,6 +247,13 @@ pub enum TieStatus {
 }
 
 impl TieStatus {
+    /// Every status, in the order a reader meets them.
+    pub const ALL: [TieStatus; 3] = [
+        TieStatus::Agrees,
+        TieStatus::WithinTolerance,
+        TieStatus::Differs,
+    ];
+
     /// The word written in reports.
     pub fn name(self) -> &'static str {
         match self {
@@ -316,6 +323,13 @@ pub struct Report {
     pub accruals: Vec<AccrualLine>,
     /// Reconciliation rows (empty without statements).
     pub reconciliation: Vec<ReconciliationLine>,
+    /// The core system's open items at cut-off against ours, one row per
+    /// account with a Booked row dated the cut-off (behaviour.md, System
+    /// accrued check): period start is "Accrual from", period end the
+    /// cut-off, posted the booked figure, expected our open item.
+    pub accrued_check: Vec<ReconciliationLine>,
+    /// The Tie-out, when the books have Trial balance rows.
+    pub tie_out: Option<Vec<TieOutLine>>,
     /// Counts by status (empty without statements).
     pub status_counts: Vec<StatusCount>,
     /// The Summary's largest variances in money: indices into

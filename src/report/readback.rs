@@ -1,6 +1,7 @@
 //! Reading a workbook this program wrote back into its rows: the Run
-//! sheet's facts, the Accruals, Reconciliation, Journal, Daily and Problems
-//! lists (with their continuation sheets) and the Summary's account counts.
+//! sheet's facts, the Accruals, Reconciliation, Accrued check, Tie-out,
+//! Journal, Daily and Problems lists (with their continuation sheets) and
+//! the Summary's account counts.
 //! `ledgerate merge` combines shard runs from them.
 //!
 //! Sheets and columns are found by the writer's own header labels, and every
@@ -24,13 +25,13 @@ use rust_decimal::Decimal;
 use super::error::ReportError;
 use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
-    AccrualLine, DailyLine, InputFile, JournalLine, ReconciliationLine, RunFacts, Setting,
-    SettingSource,
+    AccrualLine, DailyLine, InputFile, JournalLine, LedgerLine, ReconciliationLine, RunFacts,
+    Setting, SettingSource, TieOutLine, TieStatus,
 };
 use super::workbook::{
-    is_writer_note, ACCOUNTS_LEFT_OUT, ACCOUNTS_READ, ACCRUALS_HEADER, DAILY_HEADER, INPUTS_HEADER,
-    JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM,
-    RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS,
+    is_writer_note, ACCOUNTS_LEFT_OUT, ACCOUNTS_READ, ACCRUALS_HEADER, ACCRUED_CHECK_HEADER,
+    DAILY_HEADER, INPUTS_HEADER, JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER,
+    RUN_COMMAND_LINE, RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -48,6 +49,11 @@ pub struct RunRows {
     pub accruals: Vec<AccrualLine>,
     /// Reconciliation rows (none without the sheet).
     pub reconciliation: Vec<ReconciliationLine>,
+    /// Accrued check rows (none without the sheet).
+    pub accrued_check: Vec<ReconciliationLine>,
+    /// Tie-out rows, when the workbook has the sheet. A shard's rows sum
+    /// only its own accounts.
+    pub tie_out: Option<Vec<TieOutLine>>,
     /// Journal rows.
     pub journal: Vec<JournalLine>,
     /// Daily rows, when the workbook has the sheet.
@@ -66,7 +72,9 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
     let mut book = Written::open(path)?;
     let facts = book.run_facts()?;
     let accruals = book.accruals()?;
-    let reconciliation = book.reconciliation()?;
+    let reconciliation = book.checks("Reconciliation", &RECONCILIATION_HEADER)?;
+    let accrued_check = book.checks("Accrued check", &ACCRUED_CHECK_HEADER)?;
+    let tie_out = book.tie_out()?;
     let journal = book.journal()?;
     let daily = book.daily(&accruals)?;
     let problems = book.problems()?;
@@ -80,6 +88,8 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
         },
         accruals,
         reconciliation,
+        accrued_check,
+        tie_out,
         journal,
         daily,
         problems,
@@ -368,14 +378,32 @@ impl Written {
                     posted_in_window: r.amount(8, places)?,
                     interest_for_window: r.amount(9, places)?,
                     effective_annual_rate: r.decimal(10)?,
-                    ledger: Default::default(),
+                    ledger: LedgerLine {
+                        window_days_interest: r.amount(11, places)?,
+                        booked_opening: r.amount(12, places)?,
+                        opening_source: r.text(13).into(),
+                        prior_period: r.amount(14, places)?,
+                        open_item: r.amount(15, places)?,
+                        settled_in_window: r.amount(16, places)?,
+                        entity: r.text(17).into(),
+                        gl_interest: r.text(18).into(),
+                        gl_accrued: r.text(19).into(),
+                        gl_settlement: r.text(20).into(),
+                        gl_prior_period: r.text(21).into(),
+                    },
                 })
             })
             .collect()
     }
 
-    fn reconciliation(&mut self) -> Result<Vec<ReconciliationLine>, ReportError> {
-        let Some(list) = self.list("Reconciliation", &RECONCILIATION_HEADER)? else {
+    /// The Reconciliation, or the Accrued check laid out like it (`base`
+    /// and its `header`); no rows without the sheet.
+    fn checks(
+        &mut self,
+        base: &str,
+        header: &[&str],
+    ) -> Result<Vec<ReconciliationLine>, ReportError> {
+        let Some(list) = self.list(base, header)? else {
             return Ok(Vec::new());
         };
         list.rows(&self.path)
@@ -402,6 +430,38 @@ impl Written {
                 })
             })
             .collect()
+    }
+
+    /// The Tie-out rows; `None` without the sheet.
+    fn tie_out(&mut self) -> Result<Option<Vec<TieOutLine>>, ReportError> {
+        let Some(list) = self.list("Tie-out", &TIE_OUT_HEADER)? else {
+            return Ok(None);
+        };
+        list.rows(&self.path)
+            .map(|r| {
+                let currency = r.text(1);
+                let places = minor_units(&currency);
+                Ok(TieOutLine {
+                    entity: r.text(0),
+                    currency,
+                    minor_units: places,
+                    gl_account: r.text(2),
+                    side: r.text(3).into(),
+                    accounts: r.count(4)?,
+                    opening_tb: r.amount(5, places)?,
+                    opening_sub_ledger: r.amount(6, places)?,
+                    opening_difference: r.amount(7, places)?,
+                    interest_for_window: r.amount(8, places)?,
+                    settled_in_window: r.amount(9, places)?,
+                    closing_roll_forward: r.amount(10, places)?,
+                    closing_sub_ledger: r.amount(11, places)?,
+                    closing_tb: r.optional_amount(12, places)?,
+                    closing_difference: r.amount(13, places)?,
+                    status: r.tie_status(14)?,
+                })
+            })
+            .collect::<Result<_, _>>()
+            .map(Some)
     }
 
     fn journal(&mut self) -> Result<Vec<JournalLine>, ReportError> {
@@ -587,13 +647,40 @@ impl Row<'_> {
     /// An amount, with at least the currency's `places` decimals (a number
     /// cell drops trailing zeros).
     fn amount(&self, col: usize, places: u32) -> Result<Decimal, ReportError> {
-        let mut x = self
-            .decimal(col)?
-            .ok_or_else(|| self.error(col, "a blank cell", "an amount"))?;
-        if x.scale() < places {
-            x.rescale(places);
-        }
-        Ok(x)
+        self.optional_amount(col, places)?
+            .ok_or_else(|| self.error(col, "a blank cell", "an amount"))
+    }
+
+    /// An amount the writer leaves blank when there is none.
+    fn optional_amount(&self, col: usize, places: u32) -> Result<Option<Decimal>, ReportError> {
+        Ok(self.decimal(col)?.map(|mut x| {
+            if x.scale() < places {
+                x.rescale(places);
+            }
+            x
+        }))
+    }
+
+    /// A count: a whole number, not negative.
+    fn count(&self, col: usize) -> Result<usize, ReportError> {
+        whole(self.cells, col).ok_or_else(|| {
+            let found = match self.text(col) {
+                t if t.is_empty() => "a blank cell".to_string(),
+                t => t,
+            };
+            self.error(col, &found, "a count (a whole number)")
+        })
+    }
+
+    fn tie_status(&self, col: usize) -> Result<TieStatus, ReportError> {
+        let word = self.text(col);
+        TieStatus::ALL
+            .into_iter()
+            .find(|s| s.name() == word)
+            .ok_or_else(|| {
+                let words: Vec<&str> = TieStatus::ALL.iter().map(|s| s.name()).collect();
+                self.error(col, &word, &format!("a status ({})", words.join(", ")))
+            })
     }
 
     fn date(&self, col: usize) -> Result<NaiveDate, ReportError> {

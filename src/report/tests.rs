@@ -79,6 +79,8 @@ fn report() -> Report {
         totals: vec![],
         accruals: vec![],
         reconciliation: vec![],
+        accrued_check: vec![],
+        tie_out: None,
         status_counts: vec![],
         largest_variances: vec![],
         journal: vec![],
@@ -439,6 +441,8 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
     assert_eq!(back.facts, r.facts);
     assert_eq!(back.accruals, r.accruals);
     assert_eq!(back.reconciliation, r.reconciliation);
+    assert_eq!(back.accrued_check, []);
+    assert_eq!(back.tie_out, None);
     assert_eq!(back.journal, r.journal);
     assert_eq!(back.daily, r.daily);
     assert_eq!(back.problems, r.problems);
@@ -544,4 +548,292 @@ fn each_status_is_written_as_its_word() {
     let plan = super::workbook::chart_plan_for_tests(&r.reconciliation, &Limits::default());
     // Rows 4 to 7 (over-posted .. unexpected posting) are charted.
     assert_eq!(plan.unwrap().1, "Reconciliation!$J$4:$J$7");
+}
+
+/// An account's ledger figures and GL codes, as the batch gives them.
+fn ledger(entity: &str, gl: &str, opening: &str, open_item: &str) -> LedgerLine {
+    LedgerLine {
+        entity: entity.to_string().into(),
+        gl_interest: "INTEREST-EXPENSE".into(),
+        gl_accrued: gl.to_string().into(),
+        gl_settlement: "CUSTOMER-DEPOSITS".into(),
+        gl_prior_period: "PRIOR-PERIOD-INTEREST".into(),
+        window_days_interest: dec("410.43"),
+        booked_opening: dec(opening),
+        opening_source: "previous close".into(),
+        prior_period: dec("43.8"),
+        open_item: dec(open_item),
+        settled_in_window: dec("310"),
+    }
+}
+
+/// One Tie-out row: opening per TB and sub-ledger, interest, settled,
+/// closing per sub-ledger and per TB; the rest follows from them.
+fn tie(
+    gl: &str,
+    currency: &str,
+    minor_units: u32,
+    figures: [&str; 5],
+    closing_tb: Option<&str>,
+) -> TieOutLine {
+    let [tb, sub, interest, settled, closing] = figures.map(dec);
+    let roll = tb + interest - settled;
+    let closing_tb = closing_tb.map(dec);
+    let difference = closing_tb.unwrap_or(roll) - closing;
+    TieOutLine {
+        entity: "Harbourview Mutual".into(),
+        currency: currency.into(),
+        minor_units,
+        gl_account: gl.into(),
+        side: "liability".into(),
+        accounts: 3,
+        opening_tb: tb,
+        opening_sub_ledger: sub,
+        opening_difference: tb - sub,
+        interest_for_window: interest,
+        settled_in_window: settled,
+        closing_roll_forward: roll,
+        closing_sub_ledger: closing,
+        closing_tb,
+        closing_difference: difference,
+        status: if difference.is_zero() {
+            TieStatus::Agrees
+        } else {
+            TieStatus::Differs
+        },
+    }
+}
+
+/// An accrued check row (behaviour.md, example A3): TD-3's open item at
+/// cut-off, booked 3,285.00 against 3,321.50 expected.
+fn accrued_check() -> ReconciliationLine {
+    ReconciliationLine {
+        account: "TD-3".into(),
+        currency: "USD".into(),
+        minor_units: 2,
+        period_start: NaiveDate::from_ymd_opt(2026, 9, 1).unwrap(),
+        period_end: NaiveDate::from_ymd_opt(2026, 11, 30).unwrap(),
+        days: 91,
+        balance_years: dec("91000"),
+        expected: dec("3321.50"),
+        posted: dec("3285.00"),
+        variance: dec("-36.50"),
+        variance_bp: Some(dec("-4.011")),
+        status: Status::UnderPosted,
+        likely_cause: "period start a day late: 2026-09-02..2026-11-30 instead of \
+                       2026-09-01..2026-11-30 (reproduces the booked amount exactly)"
+            .into(),
+    }
+}
+
+/// Output workbook: Accrued check right after Reconciliation, then the
+/// Tie-out, before the Journal; each only when it has something to show.
+#[test]
+fn the_accrued_check_and_tie_out_sheets_come_after_reconciliation_when_there_is_something_to_show()
+{
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    r.reconciliation = vec![recon("agrees", Some("0"))];
+    r.accrued_check = vec![accrued_check()];
+    r.tie_out = Some(vec![tie(
+        "ACCRUED-INTEREST-PAYABLE",
+        "USD",
+        2,
+        ["310.00", "310.00", "454.23", "310.00", "454.23"],
+        None,
+    )]);
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    assert_eq!(
+        sheet_names(&target),
+        vec![
+            "Summary",
+            "Accruals",
+            "Reconciliation",
+            "Accrued check",
+            "Tie-out",
+            "Journal",
+            "Problems",
+            "Run"
+        ]
+    );
+    let check = rows(&target, "Accrued check");
+    assert_eq!(header(&check), super::workbook::ACCRUED_CHECK_HEADER);
+    assert_eq!(check[1][7], Data::Float(3285.0));
+    assert_eq!(check[1][10], Data::String("under-posted".into()));
+    let tie_out = rows(&target, "Tie-out");
+    assert_eq!(header(&tie_out), super::workbook::TIE_OUT_HEADER);
+    assert_eq!(
+        tie_out[1][12],
+        Data::Empty,
+        "no closing trial balance: blank"
+    );
+    assert_eq!(tie_out[1][14], Data::String("agrees".into()));
+
+    // No Booked row at the cut-off, no trial balance: neither sheet.
+    r.accrued_check.clear();
+    r.tie_out = None;
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    let names = sheet_names(&target);
+    assert!(
+        !names.iter().any(|n| n == "Accrued check" || n == "Tie-out"),
+        "{names:?}"
+    );
+
+    // A trial balance that no account's GL account meets: the sheet and its header.
+    r.tie_out = Some(vec![]);
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    assert_eq!(
+        header(&rows(&target, "Tie-out")),
+        super::workbook::TIE_OUT_HEADER
+    );
+}
+
+/// The Summary says in one line how the Tie-out stands.
+#[test]
+fn the_summary_says_how_the_tie_out_stands() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    let agrees = ["310.00", "310.00", "454.23", "310.00", "454.23"];
+    r.tie_out = Some(vec![
+        tie("2300", "USD", 2, agrees, None),
+        tie("2310", "USD", 2, agrees, Some("454.24")),
+        tie("2320", "USD", 2, agrees, None),
+    ]);
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    let summary = rows(&target, "Summary");
+    let line = |label: &str| {
+        summary
+            .iter()
+            .find(|row| row[0] == Data::String(label.into()))
+            .map(|row| row[1].clone())
+    };
+    assert_eq!(
+        line("Tie-out"),
+        Some(Data::String("3 GL accounts: 1 differs, 2 agree".into()))
+    );
+    // The counts around it are still labelled and filled in.
+    assert_eq!(line("Accounts left out by errors"), Some(Data::Float(0.0)));
+    assert_eq!(line("Problems: errors"), Some(Data::Float(0.0)));
+    r.tie_out = None;
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    assert_eq!(
+        rows(&target, "Summary")
+            .iter()
+            .find(|row| row[0] == Data::String("Tie-out".into())),
+        None
+    );
+}
+
+/// The Accruals' ledger columns, the Accrued check and the Tie-out read
+/// back as they were written, over continuation sheets, a blank closing
+/// trial balance and a figure written as text.
+#[test]
+fn ledger_columns_accrued_check_and_tie_out_read_back_as_written() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("shard.xlsx");
+    let mut r = report();
+    r.facts.settings = ["cutoff", "window_start"]
+        .iter()
+        .map(|name| Setting {
+            name: (*name).into(),
+            value: "2024-03-31".into(),
+            source: SettingSource::Option,
+        })
+        .collect();
+    let mut usd = accrual("A-1", "USD", 2, "136810.00");
+    usd.ledger = ledger("HM", "ACCRUED-INTEREST-PAYABLE", "310.00", "454.23");
+    let mut kwd = accrual("A-2", "KWD", 3, "-1250.125");
+    kwd.ledger = ledger("HM Gulf", "1400", "1.125", "2.250");
+    kwd.ledger.opening_source = "Booked row".into();
+    let mut jpy = accrual("A-3", "JPY", 0, "5000000");
+    jpy.ledger = ledger("HM", "2300", "0", "411");
+    jpy.ledger.opening_source = "opens in window".into();
+    jpy.ledger.prior_period = dec("0");
+    r.accruals = vec![usd, kwd, jpy];
+    r.facts.accounts_computed = 3;
+    r.facts.accounts_read = 3;
+    let mut second = accrued_check();
+    second.account = "TD-4".into();
+    second.status = Status::Agrees;
+    second.likely_cause = String::new();
+    r.accrued_check = vec![accrued_check(), second.clone(), second];
+    r.tie_out = Some(vec![
+        tie(
+            "ACCRUED-INTEREST-PAYABLE",
+            "USD",
+            2,
+            ["310.00", "310.00", "454.23", "310.00", "454.23"],
+            Some("454.23"),
+        ),
+        tie("2300", "JPY", 0, ["0", "0", "411", "0", "411"], None),
+        tie(
+            "2300",
+            "USD",
+            2,
+            ["1000000000000000.55", "0.00", "1.00", "0.00", "1.00"],
+            None,
+        ),
+    ]);
+    let limits = Limits {
+        rows_per_sheet: 3,
+        ..Limits::default()
+    };
+    let outcome = write_report_with(&r, &target, &limits).unwrap();
+    let names: Vec<&str> = outcome.sheets.iter().map(|s| s.name.as_str()).collect();
+    assert!(
+        names.contains(&"Accrued check 2") && names.contains(&"Tie-out 2"),
+        "{names:?}"
+    );
+    assert!(outcome
+        .text_figures
+        .iter()
+        .any(|t| t.sheet == "Tie-out 2" && t.text == "1,000,000,000,000,000.55"));
+
+    let back = super::readback::read_workbook(&target).unwrap();
+    assert_eq!(back.accruals, r.accruals);
+    assert_eq!(back.accrued_check, r.accrued_check);
+    assert_eq!(back.tie_out, r.tie_out);
+    // Amounts come back with the currency's places.
+    assert_eq!(back.accruals[1].ledger.booked_opening.to_string(), "1.125");
+    assert_eq!(
+        back.accruals[0].ledger.settled_in_window.to_string(),
+        "310.00"
+    );
+}
+
+/// A Tie-out status word the writer never writes names its cell.
+#[test]
+fn a_tie_out_status_the_writer_never_writes_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("shard.xlsx");
+    let mut r = report();
+    r.facts.settings = ["cutoff", "window_start"]
+        .iter()
+        .map(|name| Setting {
+            name: (*name).into(),
+            value: "2024-03-31".into(),
+            source: SettingSource::Option,
+        })
+        .collect();
+    r.tie_out = Some(vec![tie(
+        "2300",
+        "USD",
+        2,
+        ["1.00", "1.00", "0.00", "0.00", "1.00"],
+        None,
+    )]);
+    write_report_with(&r, &target, &Limits::default()).unwrap();
+    let edited = replace_in_zip(&std::fs::read(&target).unwrap(), "agrees", "ties");
+    std::fs::write(&target, edited).unwrap();
+    match super::readback::read_workbook(&target).unwrap_err() {
+        super::ReportError::NotWritten {
+            sheet, cell, found, ..
+        } => assert_eq!(
+            (sheet.as_str(), cell.as_str(), found.as_str()),
+            ("Tie-out", "O2", "ties")
+        ),
+        other => panic!("{other}"),
+    }
 }

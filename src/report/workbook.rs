@@ -2,7 +2,9 @@
 //! columns, and where each figure of a [`Report`] goes.
 //!
 //! Sheets: Summary, Accruals, Reconciliation (when there are reconciliation
-//! rows), Journal, Daily (when asked for), Problems, Run. Every list sheet has
+//! rows), Accrued check (when Booked rows give the core system's open items
+//! at cut-off), Tie-out (when the books have a trial balance), Journal, Daily
+//! (when asked for), Problems, Run. Every list sheet has
 //! a frozen header row and a filter over its header and data, and continues on
 //! "Name 2", "Name 3"... past the spreadsheet's row limit, never truncated.
 //!
@@ -26,13 +28,15 @@ use super::layout::{
 };
 use super::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, Report, RunFacts,
-    StatusCount,
+    StatusCount, TieOutLine, TieStatus,
 };
 use super::output;
 use crate::problem::{Position, Problem, Severity};
 
-/// Header labels of the Accruals sheet.
-pub const ACCRUALS_HEADER: [&str; 11] = [
+/// Header labels of the Accruals sheet: the account and its interest, then
+/// what the ledger holds for it (behaviour.md, Books that tie) and the GL
+/// accounts its journal lines go to.
+pub const ACCRUALS_HEADER: [&str; 22] = [
     "Account",
     "Name",
     "Currency",
@@ -44,6 +48,17 @@ pub const ACCRUALS_HEADER: [&str; 11] = [
     "Posted in window",
     "Interest for window",
     "Effective annual rate",
+    "Window days' interest",
+    "Booked opening",
+    "Opening from",
+    "Prior-period adjustment",
+    "Open item at cut-off",
+    "Settled in window",
+    "Entity",
+    "GL interest",
+    "GL accrued",
+    "GL settlement",
+    "GL prior period",
 ];
 
 /// Header labels of the Reconciliation sheet.
@@ -60,6 +75,43 @@ pub const RECONCILIATION_HEADER: [&str; 12] = [
     "Variance (bp)",
     "Status",
     "Likely cause",
+];
+
+/// Header labels of the Accrued check sheet: the Reconciliation's columns,
+/// with the core system's booked open item in place of a posted amount
+/// (behaviour.md, System accrued check).
+pub const ACCRUED_CHECK_HEADER: [&str; 12] = [
+    "Account",
+    "Currency",
+    "Accrual from",
+    "Cut-off",
+    "Days",
+    "Balance-years",
+    "Expected",
+    "Booked",
+    "Variance",
+    "Variance (bp)",
+    "Status",
+    "Likely cause",
+];
+
+/// Header labels of the Tie-out sheet (behaviour.md, Tie-out).
+pub const TIE_OUT_HEADER: [&str; 15] = [
+    "Entity",
+    "Currency",
+    "GL account",
+    "Side",
+    "Accounts",
+    "Opening per trial balance",
+    "Opening per sub-ledger",
+    "Opening difference",
+    "Interest for window",
+    "Settled in window",
+    "Closing roll-forward",
+    "Closing per sub-ledger",
+    "Closing per trial balance",
+    "Closing difference",
+    "Status",
 ];
 
 /// Header labels of the Journal sheet.
@@ -99,6 +151,9 @@ pub const TOTALS_HEADER: [&str; 6] = [
     "Posted in window",
     "Interest for window",
 ];
+
+/// Label of the Summary's line on the Tie-out.
+pub const TIE_OUT_LABEL: &str = "Tie-out";
 
 /// Labels of the Summary's account counts.
 pub const ACCOUNTS_READ: &str = "Accounts read";
@@ -150,6 +205,60 @@ pub const VARIANCE_BP_GLOSS: &str = "Variance (bp): the variance as a gap in the
 pub const LIKELY_CAUSE_GLOSS: &str = "Likely cause: the most plausible single change that \
     reproduces the posted amount (rule in the user guide), and how many do; \
     ledgerate explain --account ID lists them all.";
+
+/// The Accrued check's Likely cause column, for the note of its header.
+pub const BOOKED_CAUSE_GLOSS: &str = "Likely cause: the most plausible single change that \
+    reproduces the booked amount (rule in the user guide), and how many do; \
+    ledgerate explain --account ID lists them all.";
+
+/// What the Accrued check's Expected and Booked are, for the note of the
+/// Expected header.
+pub const ACCRUED_CHECK_GLOSS: &str = "Expected: our open item at the cut-off, the interest \
+    accrued since the last posting plus postings not yet settled. Booked: the core system's \
+    figure for the same day, from the Booked sheet. Accrual from is the day after the last \
+    posting period ended (else the open date).";
+
+/// The Accruals' window days' interest, for the note of its header.
+pub const WINDOW_DAYS_GLOSS: &str = "Window days' interest: the interest of the window's own \
+    days, posted in window + accrued at cut-off - accrued the day before the window, all as \
+    known now. Interest for window adds the prior-period adjustment.";
+
+/// The Accruals' booked opening, for the note of its header.
+pub const BOOKED_OPENING_GLOSS: &str = "Booked opening: what the books held for the account \
+    (accrued interest plus postings not yet settled) at the end of the day before the \
+    window. Opening from says where it came from: a Booked row, the previous close re-run as \
+    it was, the books as known now, or none (the account opens in the window).";
+
+/// The Accruals' prior-period adjustment, for the note of its header.
+pub const PRIOR_PERIOD_GLOSS: &str = "Prior-period adjustment: the open item at the day before \
+    the window as known now, less the booked opening: interest for days before the window \
+    that reached the books only now (a back-valued movement, say). It is booked in this \
+    window on a line of its own.";
+
+/// The Accruals' open item, for the note of its header.
+pub const OPEN_ITEM_GLOSS: &str = "Open item at cut-off: what the accrued-interest GL account \
+    should hold for the account at the cut-off, accrued at cut-off plus postings of the \
+    window not yet settled.";
+
+/// The Tie-out's opening difference, for the note of its header.
+pub const OPENING_DIFFERENCE_GLOSS: &str = "Opening difference: the trial balance at the day \
+    before the window less the sum of the accounts' booked openings. Not zero: the GL held \
+    at the last close something the sub-ledger does not explain.";
+
+/// The Tie-out's roll-forward, for the note of its header.
+pub const ROLL_FORWARD_GLOSS: &str = "Closing roll-forward: opening per trial balance + \
+    interest for window - settled in window, where this run's journal takes the GL. Less \
+    closing per sub-ledger it is always the opening difference.";
+
+/// The Tie-out's closing difference, for the note of its header.
+pub const CLOSING_DIFFERENCE_GLOSS: &str = "Closing difference: closing per trial balance \
+    (the roll-forward when there is no trial balance row at the cut-off) less closing per \
+    sub-ledger. One other than the opening difference comes from GL lines this run did not \
+    make.";
+
+/// Printed under each page of the Tie-out.
+pub const TIE_OUT_FOOTER: &str = "Amounts in each GL account's normal direction: interest \
+    payable (deposits) a credit, receivable (loans) a debit, both shown positive.";
 
 /// One sheet of the written workbook.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -310,8 +419,10 @@ fn new_workbook(report: &Report, target: &Path, dir: &Path) -> Result<Workbook, 
     Ok(wb)
 }
 
-/// The Accruals, Reconciliation (when there are rows), Journal and Daily
-/// (when asked for) lists; returns how many Reconciliation sheets there are.
+/// The Accruals, Reconciliation (when there are rows), Accrued check (when
+/// there are rows), Tie-out (when the books have a trial balance), Journal
+/// and Daily (when asked for) lists; returns how many Reconciliation sheets
+/// there are.
 fn write_lists(
     wb: &mut Workbook,
     report: &Report,
@@ -323,6 +434,12 @@ fn write_lists(
     } else {
         write_list(wb, &RECONCILIATION, &report.reconciliation, ctx)?
     };
+    if !report.accrued_check.is_empty() {
+        write_list(wb, &ACCRUED_CHECK, &report.accrued_check, ctx)?;
+    }
+    if let Some(tie_out) = &report.tie_out {
+        write_list(wb, &TIE_OUT, tie_out, ctx)?;
+    }
     write_list(wb, &JOURNAL, &report.journal, ctx)?;
     if let Some(daily) = &report.daily {
         write_list(wb, &DAILY, daily, ctx)?;
@@ -366,17 +483,29 @@ struct ListSheet<T> {
 const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     name: "Accruals",
     header: &ACCRUALS_HEADER,
-    caps: &[24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22],
-    notes: &[],
+    // GL codes: room for the longest default, ACCRUED-INTEREST-RECEIVABLE.
+    caps: &[
+        24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22, 24, 24, 18, 24, 24, 24, 24, 32, 32, 32, 32,
+    ],
+    notes: &[
+        (11, WINDOW_DAYS_GLOSS),
+        (12, BOOKED_OPENING_GLOSS),
+        (14, PRIOR_PERIOD_GLOSS),
+        (15, OPEN_ITEM_GLOSS),
+    ],
     footer: None,
     row: accrual_row,
     columns: accrual_columns,
 };
 
+/// Widest widths of the Reconciliation's columns, and of the Accrued
+/// check's, laid out alike.
+const RECONCILIATION_CAPS: [usize; 12] = [24, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 48];
+
 const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
     name: "Reconciliation",
     header: &RECONCILIATION_HEADER,
-    caps: &[24, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 48],
+    caps: &RECONCILIATION_CAPS,
     notes: &[
         (5, BALANCE_YEARS_GLOSS),
         (9, VARIANCE_BP_GLOSS),
@@ -385,6 +514,34 @@ const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
     footer: Some(BALANCE_YEARS_FOOTER),
     row: reconciliation_row,
     columns: reconciliation_columns,
+};
+
+/// The Reconciliation's layout and row writer under the Accrued check's
+/// labels: a row is the account's open item at cut-off, booked against expected.
+const ACCRUED_CHECK: ListSheet<ReconciliationLine> = ListSheet {
+    name: "Accrued check",
+    header: &ACCRUED_CHECK_HEADER,
+    notes: &[
+        (5, BALANCE_YEARS_GLOSS),
+        (6, ACCRUED_CHECK_GLOSS),
+        (9, VARIANCE_BP_GLOSS),
+        (11, BOOKED_CAUSE_GLOSS),
+    ],
+    ..RECONCILIATION
+};
+
+const TIE_OUT: ListSheet<TieOutLine> = ListSheet {
+    name: "Tie-out",
+    header: &TIE_OUT_HEADER,
+    caps: &[24, 10, 32, 12, 10, 24, 24, 24, 24, 24, 24, 24, 24, 24, 18],
+    notes: &[
+        (7, OPENING_DIFFERENCE_GLOSS),
+        (10, ROLL_FORWARD_GLOSS),
+        (13, CLOSING_DIFFERENCE_GLOSS),
+    ],
+    footer: Some(TIE_OUT_FOOTER),
+    row: tie_out_row,
+    columns: tie_out_columns,
 };
 
 const JOURNAL: ListSheet<JournalLine> = ListSheet {
@@ -544,20 +701,32 @@ fn usual_units<T>(rows: &[T], units: impl Fn(&T) -> u32) -> u32 {
 }
 
 fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
-    let amount = s.amount(usual_units(rows, |r| r.minor_units));
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
     let text = Some(&s.text);
+    let wrap = Some(&s.wrap);
     vec![
         text,
-        Some(&s.wrap),
+        wrap,
         text,
         text,
         text,
         text,
-        Some(amount),
-        Some(amount),
-        Some(amount),
-        Some(amount),
+        amount,
+        amount,
+        amount,
+        amount,
         Some(&s.percent),
+        amount,
+        amount,
+        text,
+        amount,
+        amount,
+        amount,
+        wrap,
+        text,
+        text,
+        text,
+        text,
     ]
 }
 
@@ -582,6 +751,15 @@ fn reconciliation_columns<'s>(
         None, // each status has its own fill
         Some(&s.wrap),
     ]
+}
+
+fn tie_out_columns<'s>(s: &'s Styles, rows: &[TieOutLine]) -> Vec<Option<&'s Format>> {
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    let text = Some(&s.text);
+    let mut columns = vec![Some(&s.wrap), text, text, text, Some(&s.count)];
+    columns.extend([amount; 9]);
+    columns.push(None); // each status has its own fill
+    columns
 }
 
 fn journal_columns<'s>(s: &'s Styles, rows: &[JournalLine]) -> Vec<Option<&'s Format>> {
@@ -625,6 +803,43 @@ fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
     if let Some(rate) = a.effective_annual_rate {
         c.rate(10, rate)?;
     }
+    let l = &a.ledger;
+    let units = a.minor_units;
+    c.amount(11, l.window_days_interest, units)?;
+    c.amount(12, l.booked_opening, units)?;
+    c.text(13, &l.opening_source)?;
+    c.amount(14, l.prior_period, units)?;
+    c.amount(15, l.open_item, units)?;
+    c.amount(16, l.settled_in_window, units)?;
+    c.text_as(17, &l.entity, &c.styles().wrap)?;
+    c.text(18, &l.gl_interest)?;
+    c.text(19, &l.gl_accrued)?;
+    c.text(20, &l.gl_settlement)?;
+    c.text(21, &l.gl_prior_period)?;
+    Ok(())
+}
+
+fn tie_out_row(c: &mut Cells<'_>, t: &TieOutLine) -> Result<(), ReportError> {
+    let styles = c.styles();
+    let units = t.minor_units;
+    c.text_as(0, &t.entity, &styles.wrap)?;
+    c.text(1, &t.currency)?;
+    c.text(2, &t.gl_account)?;
+    c.text(3, &t.side)?;
+    c.count(4, int(t.accounts))?;
+    c.amount(5, t.opening_tb, units)?;
+    c.amount(6, t.opening_sub_ledger, units)?;
+    c.amount(7, t.opening_difference, units)?;
+    c.amount(8, t.interest_for_window, units)?;
+    c.amount(9, t.settled_in_window, units)?;
+    c.amount(10, t.closing_roll_forward, units)?;
+    c.amount(11, t.closing_sub_ledger, units)?;
+    // Blank without a trial balance row at the cut-off.
+    if let Some(tb) = t.closing_tb {
+        c.amount(12, tb, units)?;
+    }
+    c.amount(13, t.closing_difference, units)?;
+    c.text_as(14, t.status.name(), styles.tie_status(t.status))?;
     Ok(())
 }
 
@@ -903,7 +1118,7 @@ fn write_summary(
     layout::report_page_setup(ws, false, None).map_err(|e| ReportError::sheet("Summary", e))?;
     let mut c = Cells::new(ws, "Summary", styles, texts);
     summary_title(&mut c)?;
-    let mut places = summary_facts(&mut c, &report.facts)?;
+    let mut places = summary_facts(&mut c, &report.facts, report.tie_out.as_deref())?;
     let row = summary_totals(&mut c, places.text_figures, &report.totals)?;
     let row = summary_status_counts(&mut c, row, &report.status_counts)?;
     let row = summary_largest_variances(&mut c, row, report)?;
@@ -933,10 +1148,14 @@ fn summary_title(c: &mut Cells<'_>) -> Result<(), ReportError> {
     Ok(())
 }
 
-/// The Run section: the window, the books and the account counts, and the
-/// labels of the counts [`finish_summary`] fills in. `rows_used` is the last
-/// row written.
-fn summary_facts(c: &mut Cells<'_>, facts: &RunFacts) -> Result<SummaryPlaces, ReportError> {
+/// The Run section: the window, the books and the account counts, how the
+/// Tie-out stands (when there is one), and the labels of the counts
+/// [`finish_summary`] fills in. `rows_used` is the last row written.
+fn summary_facts(
+    c: &mut Cells<'_>,
+    facts: &RunFacts,
+    tie_out: Option<&[TieOutLine]>,
+) -> Result<SummaryPlaces, ReportError> {
     let styles = c.styles();
     let mut row: RowNum = 6;
     section(c, row, "Run", SUMMARY_COLS)?;
@@ -969,6 +1188,11 @@ fn summary_facts(c: &mut Cells<'_>, facts: &RunFacts) -> Result<SummaryPlaces, R
     row += 1;
     label(c, row, ACCOUNTS_LEFT_OUT)?;
     c.count(1, int(facts.accounts_failed))?;
+    if let Some(lines) = tie_out {
+        row += 1;
+        label(c, row, TIE_OUT_LABEL)?;
+        c.text_spilling(1, &tie_out_in_words(lines), &styles.text)?;
+    }
     let mut late = |text: &str| -> Result<RowNum, ReportError> {
         row += 1;
         label(c, row, text)?;
@@ -985,6 +1209,59 @@ fn summary_facts(c: &mut Cells<'_>, facts: &RunFacts) -> Result<SummaryPlaces, R
         text_figures,
         rows_used: text_figures,
     })
+}
+
+/// How the Tie-out stands, in a few words: how many GL accounts, and how
+/// many of them differ or are within tolerance.
+///
+/// ```
+/// use ledgerate::report::workbook::tie_out_words;
+/// use ledgerate::report::model::TieStatus::*;
+/// assert_eq!(tie_out_words(&[Agrees, Agrees, Agrees]), "3 GL accounts, all agree");
+/// assert_eq!(tie_out_words(&[Agrees]), "1 GL account, agrees");
+/// assert_eq!(
+///     tie_out_words(&[Differs, WithinTolerance, Agrees]),
+///     "3 GL accounts: 1 differs, 1 within tolerance, 1 agrees"
+/// );
+/// assert_eq!(
+///     tie_out_words(&[Differs, Agrees, Differs, Agrees]),
+///     "4 GL accounts: 2 differ, 2 agree"
+/// );
+/// assert_eq!(tie_out_words(&[]), "no GL account to tie");
+/// ```
+pub fn tie_out_words(statuses: &[TieStatus]) -> String {
+    let n = statuses.len();
+    if n == 0 {
+        return "no GL account to tie".to_string();
+    }
+    let accounts = format!("{n} GL account{}", if n == 1 { "" } else { "s" });
+    if statuses.iter().all(|s| *s == TieStatus::Agrees) {
+        let all = if n == 1 { "agrees" } else { "all agree" };
+        return format!("{accounts}, {all}");
+    }
+    // The ones to look at first.
+    let counts: Vec<String> = [
+        TieStatus::Differs,
+        TieStatus::WithinTolerance,
+        TieStatus::Agrees,
+    ]
+    .into_iter()
+    .filter_map(|status| {
+        let k = statuses.iter().filter(|s| **s == status).count();
+        let word = match (status, k) {
+            (TieStatus::Differs, 2..) => "differ",
+            (TieStatus::Agrees, 2..) => "agree",
+            _ => status.name(),
+        };
+        (k > 0).then(|| format!("{k} {word}"))
+    })
+    .collect();
+    format!("{accounts}: {}", counts.join(", "))
+}
+
+fn tie_out_in_words(lines: &[TieOutLine]) -> String {
+    let statuses: Vec<TieStatus> = lines.iter().map(|l| l.status).collect();
+    tie_out_words(&statuses)
 }
 
 /// Totals by currency, from two rows below `row`; returns the last row written.

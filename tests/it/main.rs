@@ -33,3 +33,4 @@ mod reader_mutations;
 mod report_writer;
 mod sample_books;
 mod spec_examples;
+mod tie_out_sheets;

@@ -156,6 +156,8 @@ fn report() -> Report {
                 "over-posted",
             ),
         ],
+        accrued_check: vec![],
+        tie_out: None,
         status_counts: vec![
             StatusCount {
                 status: Status::Agrees,
@@ -319,6 +321,17 @@ fn sheets_come_in_order_with_the_header_labels_of_the_spec() {
                 "Posted in window",
                 "Interest for window",
                 "Effective annual rate",
+                "Window days' interest",
+                "Booked opening",
+                "Opening from",
+                "Prior-period adjustment",
+                "Open item at cut-off",
+                "Settled in window",
+                "Entity",
+                "GL interest",
+                "GL accrued",
+                "GL settlement",
+                "GL prior period",
             ],
         ),
         (
@@ -894,7 +907,18 @@ fn the_reconciliation_sheet_wraps_its_causes_and_glosses_balance_years() {
     );
     let wraps = number_wraps(&target, "Reconciliation", 2, 11);
     assert!(wraps, "the cause wraps");
-    let notes = zip_text(&target, "xl/comments1.xml");
+    // The sheet's notes: the comments part its relationships name.
+    let rels = zip_text(
+        &target,
+        &format!("xl/worksheets/_rels/sheet{}.xml.rels", index + 1),
+    );
+    let comments = rels
+        .split("Target=\"../")
+        .skip(1)
+        .map(|t| t.split('"').next().unwrap())
+        .find(|t| t.starts_with("comments"))
+        .unwrap();
+    let notes = zip_text(&target, &format!("xl/{comments}"));
     assert!(
         notes.contains("Balance-years: each day") && notes.contains("Variance (bp): the variance"),
         "{notes}"

@@ -85,3 +85,28 @@ pub fn copy_dir(from: &Path, to: &Path) {
         std::fs::copy(&p, to.join(p.file_name().unwrap())).unwrap();
     }
 }
+
+/// The number format of one cell of a written workbook (empty when it has
+/// none), 0-based row and column.
+pub fn number_format(path: &Path, name: &str, row: u32, col: u32) -> String {
+    let mut wb: calamine::Xlsx<_> = calamine::open_workbook(path).unwrap();
+    let styles = wb.worksheet_style(name).unwrap();
+    styles
+        .get((row, col))
+        .and_then(|s| s.number_format.clone())
+        .map(|n| n.format_code)
+        .unwrap_or_default()
+}
+
+/// The exact value of a number cell.
+pub fn number(d: &Data) -> Decimal {
+    match d {
+        Data::Float(f) => f.to_string().parse().unwrap(),
+        other => panic!("not a number: {other:?}"),
+    }
+}
+
+/// The sheet names of a workbook, in order.
+pub fn sheet_names(path: &Path) -> Vec<String> {
+    open_workbook_auto(path).unwrap().sheet_names()
+}
