@@ -21,6 +21,7 @@ use crate::engine::causes::{search, LikelyCause};
 use crate::engine::floating::{
     FixingFallback, FixingWarning, Fixings, FloatingRates, FloatingSchedule,
 };
+use crate::engine::ledger::SettlementLines;
 use crate::engine::rates::RateSchedule;
 use crate::engine::reconcile::{reconcile, Reconciled, StatementPeriod, Status, Tolerance};
 use crate::engine::run::{accrue, AccountResult, RunOptions};
@@ -92,6 +93,11 @@ pub struct Options {
     pub keep_days: bool,
     /// Accrue unchanging runs of days in one step (identical figures).
     pub fast_path: bool,
+    /// P, the as-at date of the previous close, when given (behaviour.md,
+    /// Knowledge date).
+    pub previous_as_at: Option<NaiveDate>,
+    /// When the journal settles a posting against the accrual account.
+    pub settlement_lines: SettlementLines,
 }
 
 /// One reconciled statement period and, when it is over- or under-posted,

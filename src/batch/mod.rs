@@ -20,6 +20,7 @@ use rust_decimal::Decimal;
 use crate::book::{AccountEntry, Book, StatementRow};
 use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
+use crate::engine::ledger::SettlementLines;
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{Problem, Severity};
@@ -50,6 +51,13 @@ pub struct BatchSettings {
     pub shard: Option<(u32, u32)>,
     /// What a floating account does about a missing fixing.
     pub fixing_fallback: FixingFallback,
+    /// The knowledge date A (behaviour.md, Knowledge date): the books are
+    /// already cut to what was booked by its end; `None` for no limit.
+    pub as_at: Option<NaiveDate>,
+    /// P, the as-at date of the previous close, when given.
+    pub previous_as_at: Option<NaiveDate>,
+    /// When the journal settles a posting against the accrual account.
+    pub settlement_lines: SettlementLines,
 }
 
 /// The shard (1..=N) an account id belongs to: a stable hash of the id, the
@@ -137,6 +145,8 @@ pub fn run_books(
         fixing_fallback: settings.fixing_fallback,
         keep_days: settings.daily,
         fast_path: settings.fast_path,
+        previous_as_at: settings.previous_as_at,
+        settlement_lines: settings.settlement_lines,
     };
     // Each account's statement rows, found once per book rather than per account.
     let rows: Vec<HashMap<&str, Vec<&StatementRow>>> =

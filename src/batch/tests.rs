@@ -87,6 +87,9 @@ fn settings() -> BatchSettings {
         tolerance: Tolerance::default(),
         fast_path: true,
         shard: None,
+        as_at: None,
+        previous_as_at: None,
+        settlement_lines: Default::default(),
     }
 }
 

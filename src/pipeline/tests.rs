@@ -70,6 +70,8 @@ fn options() -> Options {
         fixing_fallback: FixingFallback::None,
         keep_days: false,
         fast_path: true,
+        previous_as_at: None,
+        settlement_lines: Default::default(),
     }
 }
 

@@ -71,6 +71,8 @@ fn options(book: &Book) -> Options {
         fixing_fallback: FixingFallback::None,
         keep_days: false,
         fast_path: true,
+        previous_as_at: None,
+        settlement_lines: Default::default(),
     }
 }
 
@@ -85,6 +87,9 @@ fn batch(book: &Book, o: &Options) -> BatchResult {
         fast_path: o.fast_path,
         shard: None,
         fixing_fallback: o.fixing_fallback,
+        as_at: None,
+        previous_as_at: o.previous_as_at,
+        settlement_lines: o.settlement_lines,
     };
     run_books(std::slice::from_ref(book), &settings, &|| {})
 }

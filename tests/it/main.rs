@@ -22,6 +22,7 @@ mod explain_matches_run;
 mod hostile_books;
 mod hostile_inputs;
 mod layers;
+mod ledger_inputs;
 mod merge_safety;
 mod messages;
 mod output_safety;
