@@ -202,10 +202,10 @@ pub struct Options {
     pub keep_days: bool,
     /// Accrue unchanging runs of days in one step (identical figures).
     pub fast_path: bool,
-    /// The day the previous close was run, if given: the booked opening is
-    /// that close re-run as known then.
+    /// P, the as-at date of the previous close, when given (behaviour.md,
+    /// Knowledge date).
     pub previous_as_at: Option<NaiveDate>,
-    /// When postings settle against the accrual account.
+    /// When the journal settles a posting against the accrual account.
     pub settlement_lines: SettlementLines,
 }
 

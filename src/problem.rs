@@ -8,6 +8,7 @@
 
 use std::fmt;
 
+use crate::conventions::names::fold;
 use crate::schema::SheetKind;
 
 /// Where something is in the input: book file, sheet, cell.
@@ -324,6 +325,7 @@ pub fn parse_a1(cell: &str) -> (u64, u64) {
 /// keeping the order found among problems of one cell. A shard run and a
 /// merge of shards list them the same way as one run.
 pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
+    let labels: Vec<String> = SheetKind::ALL.iter().map(|k| fold(k.label())).collect();
     let key = |p: &Problem| {
         let book = books
             .iter()
@@ -331,16 +333,13 @@ pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
             .unwrap_or(books.len());
         let sheet = p.position.sheet.to_lowercase();
         // A sheet whose name begins with one of the book format's sheet
-        // names ranks in the format's order; any other comes after them.
-        let rank = SheetKind::ALL
+        // names (case, spaces, `_` and `-` ignored) ranks in the format's
+        // order; any other comes after them.
+        let folded = fold(&sheet);
+        let rank = labels
             .iter()
-            .position(|k| {
-                let label = k.label();
-                sheet
-                    .get(..label.len())
-                    .is_some_and(|start| start.eq_ignore_ascii_case(label))
-            })
-            .unwrap_or(SheetKind::ALL.len());
+            .position(|label| folded.starts_with(label.as_str()))
+            .unwrap_or(labels.len());
         let (row, col) = parse_a1(&p.position.cell);
         (book, rank, sheet, row, col)
     };

@@ -20,6 +20,7 @@ use crate::conventions::daycount::Basis;
 use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{AnchorKind, Posting};
+use crate::engine::ledger::SettlementLines;
 use crate::engine::terms::{RoundAt, Side, TierMethod};
 
 /// The sheets a book may hold.
@@ -33,6 +34,10 @@ pub enum SheetKind {
     Movements,
     /// Postings as statements show them.
     Statements,
+    /// The open item the institution's books held for an account at the end of a day.
+    Booked,
+    /// General-ledger balances at the end of a day.
+    TrialBalance,
     /// Index fixings (floating rates).
     Fixings,
     /// Holiday calendars.
@@ -44,11 +49,13 @@ pub enum SheetKind {
 impl SheetKind {
     /// Every sheet, in the order of the book format (the template's order,
     /// and the order problems are listed in).
-    pub const ALL: [SheetKind; 7] = [
+    pub const ALL: [SheetKind; 9] = [
         SheetKind::Accounts,
         SheetKind::Rates,
         SheetKind::Movements,
         SheetKind::Statements,
+        SheetKind::Booked,
+        SheetKind::TrialBalance,
         SheetKind::Fixings,
         SheetKind::Holidays,
         SheetKind::Settings,
@@ -61,6 +68,8 @@ impl SheetKind {
             SheetKind::Rates => &RATES,
             SheetKind::Movements => &MOVEMENTS,
             SheetKind::Statements => &STATEMENTS,
+            SheetKind::Booked => &BOOKED,
+            SheetKind::TrialBalance => &TRIAL_BALANCE,
             SheetKind::Fixings => &FIXINGS,
             SheetKind::Holidays => &HOLIDAYS,
             SheetKind::Settings => &SETTINGS,
@@ -87,6 +96,7 @@ impl SheetKind {
     /// ```
     /// use ledgerate::schema::SheetKind;
     /// assert_eq!(SheetKind::from_name("hol-i_days"), Some(SheetKind::Holidays));
+    /// assert_eq!(SheetKind::from_name("trial_balance"), Some(SheetKind::TrialBalance));
     /// assert_eq!(SheetKind::from_name("Accounts 2"), None);
     /// ```
     pub fn from_name(name: &str) -> Option<SheetKind> {
@@ -100,7 +110,8 @@ impl SheetKind {
 pub struct SheetSpec {
     /// Which sheet it is.
     pub kind: SheetKind,
-    /// Its name (a CSV book's file is this in lower case plus `.csv`).
+    /// Its name (a CSV book's file is this in lower case, spaces as `_`,
+    /// plus `.csv`).
     pub name: &'static str,
     /// Whether a book must have it.
     pub required: bool,
@@ -300,11 +311,13 @@ pub enum Choice {
     JournalStyle,
     /// inclusive / exclusive.
     StatementEnd,
+    /// payment-date / in-window / period-end.
+    SettlementLines,
 }
 
 impl Choice {
     /// Every choice.
-    pub const ALL: [Choice; 13] = [
+    pub const ALL: [Choice; 14] = [
         Choice::Side,
         Choice::Compounding,
         Choice::Posting,
@@ -318,6 +331,7 @@ impl Choice {
         Choice::RateMethod,
         Choice::JournalStyle,
         Choice::StatementEnd,
+        Choice::SettlementLines,
     ];
 
     /// The canonical names offered, in their usual order.
@@ -342,6 +356,7 @@ impl Choice {
             Choice::RateMethod => vec!["fixed", "simple-daily", "compounded-in-arrears"],
             Choice::JournalStyle => vec!["incremental", "reversing"],
             Choice::StatementEnd => vec!["inclusive", "exclusive"],
+            Choice::SettlementLines => SettlementLines::ALL.iter().map(|c| c.name()).collect(),
         }
     }
 }
@@ -678,6 +693,13 @@ pub const ACCOUNTS: SheetSpec = SheetSpec {
             "GL account where postings settle: the member's account, cash...",
             Text("2100-MBR-SAV"),
         ),
+        optional(
+            "gl_prior_period",
+            Id,
+            Derived("the account's interest GL account (gl_interest, else the journal's)"),
+            "GL account of a prior-period interest adjustment: interest of days before the window that the last close did not book. Default: the interest GL account.",
+            Text("5190-INT-PRIOR"),
+        ),
     ],
 };
 
@@ -748,6 +770,13 @@ pub const RATES: SheetSpec = SheetSpec {
             Nothing,
             "Highest fixing used, in percent.",
             Blank,
+        ),
+        optional(
+            "booked",
+            Kind::Date,
+            Derived("the row's effective date"),
+            "Date the table was booked, when not its effective date. A run as at an earlier day leaves the whole table out; every row of one table has the same date. Default: effective.",
+            Date(2024, 1, 1),
         ),
     ],
 };
@@ -824,6 +853,81 @@ pub const STATEMENTS: SheetSpec = SheetSpec {
             Nothing,
             "The statement's reference.",
             Text("STMT-2024-01"),
+        ),
+        optional(
+            "posting_date",
+            Kind::Date,
+            Nothing,
+            "Date the posting was booked to the customer's account. A run as at an earlier day leaves the row out. Blank: known to every run.",
+            Date(2024, 1, 31),
+        ),
+    ],
+};
+
+/// The Booked sheet: the open item the institution's books held for an
+/// account at the end of a day (the day before the window, or the cut-off).
+pub const BOOKED: SheetSpec = SheetSpec {
+    kind: SheetKind::Booked,
+    name: "Booked",
+    required: false,
+    columns: &[
+        required(
+            "account",
+            Id,
+            "Account id (required).",
+            Text("HM-SAV-001"),
+        ),
+        required(
+            "date",
+            Kind::Date,
+            "The day the open item stands at the end of (required): the day before the window (the opening the last close booked) or the cut-off (the core system's accrued interest). Other days are not used.",
+            Date(2024, 1, 31),
+        ),
+        required(
+            "open_item",
+            Amount,
+            "Accrued interest plus postings not yet settled, as the books held it, positive in the account's normal direction (required).",
+            Number(7_137, 2),
+        ),
+    ],
+};
+
+/// The Trial balance sheet: GL balances at the end of a day, as the general
+/// ledger prints them.
+pub const TRIAL_BALANCE: SheetSpec = SheetSpec {
+    kind: SheetKind::TrialBalance,
+    name: "Trial balance",
+    required: false,
+    columns: &[
+        required(
+            "entity",
+            Kind::Text,
+            "Legal entity or ledger, as the journal names it (required).",
+            Text("Harbourview Mutual"),
+        ),
+        required(
+            "currency",
+            Id,
+            "ISO 4217 currency code of the balance (required).",
+            Text("USD"),
+        ),
+        required(
+            "gl_account",
+            Id,
+            "GL account, as in the Accounts sheet's gl_accrued (required).",
+            Text("2310-ACCR-INT"),
+        ),
+        required(
+            "date",
+            Kind::Date,
+            "The day the balance stands at the end of (required): the day before the window (the opening) or the cut-off (after this run's journal is booked). Other days are not used.",
+            Date(2024, 1, 31),
+        ),
+        required(
+            "balance",
+            Amount,
+            "The balance as a trial balance prints it (required): debit positive, credit negative.",
+            Number(-7_137, 2),
         ),
     ],
 };
@@ -942,6 +1046,24 @@ pub const SETTING_ROWS: &[SettingSpec] = &[
         kind: Kind::Choice(Choice::StatementEnd),
         note: "inclusive: period_end is the last day of the period (default). exclusive: it is the first day after it.",
         example: Text("inclusive"),
+    },
+    SettingSpec {
+        name: "as_at",
+        kind: Kind::Date,
+        note: "Knowledge date: the run uses only what was booked by the end of this day (movements by booking_date, Rates by booked, Statements by posting_date). On or after the cut-off. Default: no limit.",
+        example: Date(2024, 2, 3),
+    },
+    SettingSpec {
+        name: "previous_as_at",
+        kind: Kind::Date,
+        note: "The as_at of the last close: the opening of the window is worked out with what was booked by then, unless a Booked row gives it. From the day before the window to as_at.",
+        example: Date(2024, 1, 3),
+    },
+    SettingSpec {
+        name: "settlement_lines",
+        kind: Kind::Choice(Choice::SettlementLines),
+        note: "When the journal settles a posting: payment-date (default: postings ending in the window, on their payment date), in-window (postings paid in the window) or period-end (on their end date).",
+        example: Text("payment-date"),
     },
 ];
 

@@ -54,11 +54,12 @@ pub struct BatchSettings {
     pub shard: Option<(u32, u32)>,
     /// What a floating account does about a missing fixing.
     pub fixing_fallback: FixingFallback,
-    /// The knowledge date: rows booked after it are not in the books given.
+    /// The knowledge date A (behaviour.md, Knowledge date): the books are
+    /// already cut to what was booked by its end; `None` for no limit.
     pub as_at: Option<NaiveDate>,
-    /// The day the previous close was run, if given.
+    /// P, the as-at date of the previous close, when given.
     pub previous_as_at: Option<NaiveDate>,
-    /// When postings settle against the accrual account.
+    /// When the journal settles a posting against the accrual account.
     pub settlement_lines: SettlementLines,
 }
 
@@ -493,7 +494,6 @@ fn reconciliation_line(
         // The most plausible change leads; explain prints the search's whole list.
         Status::OverPosted | Status::UnderPosted => likely_cause
             .map(|c| plausible::sheet_words(&c, &t.id))
-            .map(|words| format!("{words}; booked at the amount posted"))
             .unwrap_or_default(),
     };
     ReconciliationLine {

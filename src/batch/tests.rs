@@ -80,9 +80,6 @@ fn book(count: usize) -> Book {
 fn settings() -> BatchSettings {
     BatchSettings {
         fixing_fallback: crate::engine::floating::FixingFallback::None,
-        as_at: None,
-        previous_as_at: None,
-        settlement_lines: Default::default(),
         cutoff: d("2026-11-30"),
         window_start: d("2026-11-01"),
         daily: false,
@@ -91,6 +88,9 @@ fn settings() -> BatchSettings {
         tolerance: Tolerance::default(),
         fast_path: true,
         shard: None,
+        as_at: None,
+        previous_as_at: None,
+        settlement_lines: Default::default(),
     }
 }
 

@@ -63,6 +63,7 @@ const FLOOR_ON: usize = column!(ACCOUNTS, "floor_on");
 const GL_INTEREST: usize = column!(ACCOUNTS, "gl_interest");
 const GL_ACCRUED: usize = column!(ACCOUNTS, "gl_accrued");
 const GL_SETTLEMENT: usize = column!(ACCOUNTS, "gl_settlement");
+const GL_PRIOR_PERIOD: usize = column!(ACCOUNTS, "gl_prior_period");
 
 /// The name of the Accounts column at place `i`, for messages.
 fn column_name(i: usize) -> &'static str {
@@ -278,7 +279,7 @@ fn account(
         interest: f.text(GL_INTEREST),
         accrued: f.text(GL_ACCRUED),
         settlement: f.text(GL_SETTLEMENT),
-        prior_period: None,
+        prior_period: f.text(GL_PRIOR_PERIOD),
     };
     let floating = floating_terms(f);
 
@@ -364,10 +365,7 @@ fn currency_of(f: &mut Fields<'_, '_, '_>) -> Option<(String, u32)> {
             }
         },
         None => {
-            let fix = match currency::suggest(&code) {
-                Some(s) => format!("did you mean {s}? write the ISO 4217 code"),
-                None => "write the ISO 4217 code, for example USD, EUR or JPY".to_string(),
-            };
+            let fix = unknown_currency_fix(&code);
             f.report(
                 Severity::Error,
                 CURRENCY,
@@ -377,6 +375,15 @@ fn currency_of(f: &mut Fields<'_, '_, '_>) -> Option<(String, u32)> {
             );
             None
         }
+    }
+}
+
+/// How to fix an unknown currency code: the code probably meant, else an
+/// example of ISO 4217 codes.
+pub(crate) fn unknown_currency_fix(code: &str) -> String {
+    match currency::suggest(code) {
+        Some(s) => format!("did you mean {s}? write the ISO 4217 code"),
+        None => "write the ISO 4217 code, for example USD, EUR or JPY".to_string(),
     }
 }
 

@@ -12,6 +12,7 @@
 
 mod accounts;
 mod biff;
+pub mod booked;
 pub(crate) mod cell;
 mod csv_folder;
 mod csv_records;
@@ -34,6 +35,7 @@ mod sheet;
 mod sniff;
 mod statements;
 mod table;
+pub mod trial_balance;
 mod workbook;
 mod xlsx;
 

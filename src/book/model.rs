@@ -13,6 +13,7 @@ use crate::engine::floating::{Fixings, FloatingSchedule};
 use crate::engine::rates::RateSchedule;
 use crate::engine::{AccountTerms, Movement};
 use crate::problem::{Position, Problem, Severity};
+use crate::schema::SheetKind;
 
 /// General-ledger accounts of an account's journal lines.
 #[derive(Debug, Clone, PartialEq, Eq, Default)]
@@ -134,6 +135,9 @@ pub struct Book {
     /// Per rate_ref, the effective date of each rate table booked later than
     /// it took effect, with its booking date (the `booked` column).
     pub rate_bookings: BTreeMap<String, Vec<(NaiveDate, NaiveDate)>>,
+    /// Where each sheet read is (book, sheet name as the book writes it,
+    /// no cell), for a problem about a whole sheet.
+    pub sheets: BTreeMap<SheetKind, Position>,
     /// Everything found wrong or worth saying.
     pub problems: Vec<Problem>,
 }
@@ -150,5 +154,15 @@ impl Book {
         self.problems
             .iter()
             .any(|p| p.severity == Severity::Error && p.position.sheet.is_empty())
+    }
+
+    /// Where the sheet of kind `kind` is, for a problem about the whole
+    /// sheet: as read, else as the book format names it.
+    pub fn sheet_position(&self, kind: SheetKind) -> Position {
+        self.sheets.get(&kind).cloned().unwrap_or_else(|| Position {
+            book: self.path.display().to_string(),
+            sheet: kind.label().to_string(),
+            ..Position::default()
+        })
     }
 }

@@ -62,11 +62,12 @@ pub(crate) fn unused_sheet(name: &str, at: Position, loaded: &mut Loaded) {
         ),
         None => "it is not read; nothing to do if it is not part of the book".to_string(),
     };
+    let sheets: Vec<&str> = SheetKind::ALL.iter().map(|k| k.label()).collect();
     loaded.problem(
         Severity::Note,
         at,
         name,
-        "one of the sheets Accounts, Rates, Movements, Statements, Fixings, Holidays, Settings",
+        &format!("one of the sheets {}", sheets.join(", ")),
         &fix,
     );
 }

@@ -7,7 +7,10 @@
 //! `floor_percent` and `cap_percent`); a schedule with such a row is a
 //! floating schedule, its other rows fixed tiers of it. A schedule with a bad
 //! row is kept out of the book; the accounts that use it get an error.
-//! Nothing here decides which table applies on a day; that is the engine's.
+//! A table is booked whole: its rows share one `booked` date (blank means
+//! its effective date), and rows that do not are an error on the schedule.
+//! Nothing here decides which table applies on a day (the engine's), nor
+//! which tables a run knows (`known`'s).
 
 use std::collections::BTreeMap;
 
@@ -30,6 +33,7 @@ const INDEX: usize = column!(RATES, "index");
 const SPREAD_BP: usize = column!(RATES, "spread_bp");
 const FLOOR_PERCENT: usize = column!(RATES, "floor_percent");
 const CAP_PERCENT: usize = column!(RATES, "cap_percent");
+const BOOKED: usize = column!(RATES, "booked");
 
 /// A percent column whose every value is below this (in size) may hold decimals.
 const PERCENT_LOOKS_DECIMAL: Decimal = Decimal::from_parts(2, 0, 0, false, 1);
@@ -51,6 +55,9 @@ pub(crate) struct Rates {
     pub read: bool,
     /// The name of the sheet, when the book has one.
     pub sheet: Option<String>,
+    /// Per usable schedule, each table booked on another day than its
+    /// effective date: (effective, booked).
+    pub bookings: BTreeMap<String, Vec<(NaiveDate, NaiveDate)>>,
 }
 
 /// One good row, kept for the tier checks.
@@ -60,6 +67,9 @@ struct RateRow {
     tier_from: Decimal,
     tier_cell: String,
     effective_cell: String,
+    /// The day the row's table was booked (its effective date when blank).
+    booked: NaiveDate,
+    booked_cell: String,
 }
 
 /// Reads the Rates sheet.
@@ -101,6 +111,10 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
     unit_warnings(ctx, &table, &percents, &decimals, problems);
     for (rate_ref, rows) in rows {
         if let Some(cell) = check_tiers(ctx, &sheet.name, &rate_ref, &rows, problems) {
+            out.broken.entry(rate_ref).or_insert(cell);
+            continue;
+        }
+        if let Some(cell) = check_booked(ctx, &sheet.name, &rate_ref, &rows, problems) {
             out.broken.entry(rate_ref).or_insert(cell);
             continue;
         }
@@ -157,6 +171,7 @@ fn read_row(
         }
         fixed_rate(f, percent, decimal, percents, decimals).map(TierRate::Fixed)
     };
+    let booked = f.date(BOOKED);
     let tier_from = f.decimal(TIER_FROM).unwrap_or(Decimal::ZERO);
     if tier_from.is_sign_negative() && !tier_from.is_zero() {
         f.report(
@@ -180,6 +195,8 @@ fn read_row(
             tier_from,
             tier_cell: f.cell_ref(TIER_FROM),
             effective_cell: f.cell_ref(EFFECTIVE),
+            booked: booked.unwrap_or(effective),
+            booked_cell: f.cell_ref(BOOKED),
         });
     }
 }
@@ -189,6 +206,16 @@ fn read_row(
 fn add_schedule(out: &mut Rates, rate_ref: String, rows: Vec<RateRow>) {
     if out.broken.contains_key(&rate_ref) {
         return;
+    }
+    let mut bookings: Vec<(NaiveDate, NaiveDate)> = rows
+        .iter()
+        .filter(|r| r.booked != r.effective)
+        .map(|r| (r.effective, r.booked))
+        .collect();
+    bookings.sort();
+    bookings.dedup();
+    if !bookings.is_empty() {
+        out.bookings.insert(rate_ref.clone(), bookings);
     }
     if let Some(first) = rows.iter().min_by_key(|r| r.effective) {
         out.first.insert(
@@ -366,6 +393,43 @@ fn check_tiers(
             }
         }
         last.insert(r.effective, (r.tier_from, r.tier_cell.as_str()));
+    }
+    first_bad
+}
+
+/// Every row of one table (one effective date) must have the table's
+/// booked date: a table is known to a run whole or not at all. Returns the
+/// cell of the first row that differs, after reporting each.
+fn check_booked(
+    ctx: Ctx<'_>,
+    sheet: &str,
+    rate_ref: &str,
+    rows: &[RateRow],
+    problems: &mut Vec<Problem>,
+) -> Option<String> {
+    let mut first: BTreeMap<NaiveDate, &RateRow> = BTreeMap::new();
+    let mut first_bad = None;
+    for r in rows {
+        let table = *first.entry(r.effective).or_insert(r);
+        if r.booked == table.booked {
+            continue;
+        }
+        problems.push(ctx.problem(
+            Severity::Error,
+            sheet,
+            r.booked_cell.clone(),
+            None,
+            &r.booked.to_string(),
+            &format!(
+                "the booked date of the other rows of the {rate_ref} table effective {}: {} ({}; a blank booked is the effective date)",
+                r.effective, table.booked, table.booked_cell
+            ),
+            &format!(
+                "a table is booked whole: give every row of {rate_ref} effective {} the same booked date; the schedule is not used until then",
+                r.effective
+            ),
+        ));
+        first_bad.get_or_insert_with(|| r.booked_cell.clone());
     }
     first_bad
 }

@@ -9,6 +9,7 @@ use std::collections::{BTreeSet, HashMap, HashSet};
 use std::path::Path;
 
 use super::accounts::{self, Known, Others};
+use super::booked::{self, Booked};
 use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
@@ -20,7 +21,7 @@ use super::settings::{self, Settings, StatementEnd};
 use super::sheet::Sheet;
 use super::statements::Statements;
 use super::table::Ctx;
-use super::{movements, statements};
+use super::{movements, statements, trial_balance};
 use crate::problem::{a1_row, FollowOn, Position, Problem, Severity};
 use crate::schema::SheetKind;
 
@@ -89,6 +90,15 @@ fn mark_csv(book: &mut Book) {
     for s in &mut book.settings {
         s.position.csv = true;
     }
+    for b in &mut book.booked {
+        b.position.csv = true;
+    }
+    for t in &mut book.trial_balance {
+        t.position.csv = true;
+    }
+    for s in book.sheets.values_mut() {
+        s.csv = true;
+    }
 }
 
 /// The book at `path`, its positions as the sheets name them.
@@ -109,6 +119,10 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     // Each sheet is dropped as soon as it is typed: a CSV sheet's text is
     // the largest thing the reader holds.
     let mut sheets = loaded.sheets;
+    book.sheets = sheets
+        .iter()
+        .map(|s| (s.kind, ctx.at(&s.name, String::new())))
+        .collect();
     let mut sheet = |kind: SheetKind| {
         let i = sheets.iter().position(|s| s.kind == kind)?;
         Some(sheets.swap_remove(i))
@@ -133,6 +147,10 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         .as_ref()
         .and_then(|s| accounts::read(ctx, s, &others, problems));
     let Some(found) = found else {
+        // The Trial balance names no account: it is read all the same.
+        book.trial_balance = sheet(SheetKind::TrialBalance)
+            .map(|s| trial_balance::read(ctx, &s, problems))
+            .unwrap_or_default();
         keep_tables(&mut book, rates, fixings, settings);
         return book;
     };
@@ -156,12 +174,25 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         rejected.extend(st.spoiled);
         book.statements = st.rows;
     }
+    let booked_sheet = sheet(SheetKind::Booked).map(|s| {
+        let mut met = Vec::new();
+        let typed = booked::read(ctx, &s, &found.known, &mut met);
+        (s, typed, met)
+    });
+    if let Some(b) = take_typed::<Booked>(booked_sheet, &entries, problems, &mut rejected) {
+        rejected.extend(b.spoiled);
+        book.booked = b.rows;
+    }
+    book.trial_balance = sheet(SheetKind::TrialBalance)
+        .map(|s| trial_balance::read(ctx, &s, problems))
+        .unwrap_or_default();
 
     entries.retain(|e| !rejected.contains(&e.terms.id));
     let kept: HashSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
     book.movements.retain(|id, _| kept.contains(id.as_str()));
     book.statements
         .retain(|s| kept.contains(s.account.as_str()));
+    book.booked.retain(|b| kept.contains(b.account.as_str()));
     fixing_holiday_warnings(ctx, &entries, &rates, &fixings, problems);
     book.accounts = entries;
     keep_tables(&mut book, rates, fixings, settings);
@@ -174,6 +205,7 @@ fn keep_tables(book: &mut Book, rates: Rates, fixings: FixingsSheet, settings: S
     book.floating_rates = rates.floating;
     book.fixings = fixings.fixings;
     book.settings = settings.rows;
+    book.rate_bookings = rates.bookings;
 }
 
 /// A typed sheet: the sheet, what it gives (`None` when it cannot be read
@@ -208,7 +240,7 @@ fn type_postings(
     )
 }
 
-/// What a typed Movements or Statements sheet gives, its problems added to
+/// What a typed Movements, Statements or Booked sheet gives, its problems added to
 /// the book's; a sheet that cannot be read as a table keeps every account
 /// out.
 fn take_typed<T>(
@@ -271,8 +303,9 @@ fn no_account_rows(book: &str, sheet: &Sheet, problems: &mut Vec<Problem>) {
     });
 }
 
-/// A Movements or Statements sheet that cannot be read as a table leaves
-/// every account's balance or postings unknown: each account gets an error.
+/// A Movements, Statements or Booked sheet that cannot be read as a table
+/// leaves every account's balance, postings or opening unknown: each account
+/// gets an error.
 fn unusable_sheet(
     sheet: &Sheet,
     entries: &[AccountEntry],
@@ -314,7 +347,8 @@ fn row_of(cell: &str) -> Option<&str> {
 /// What [`read_book`] promises about any book it returns, checked: every
 /// problem names the book it was given; an account that an error names is
 /// not in `accounts`, except for the error on a second row with its id (the
-/// first row stands); movements and statement rows belong to kept accounts.
+/// first row stands); movements, statement rows and Booked rows belong to
+/// kept accounts.
 /// Returns one line per broken promise, so fuzzing and tests can assert
 /// the list is empty.
 ///
@@ -368,12 +402,22 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
             s.account
         ));
     }
+    for b in book
+        .booked
+        .iter()
+        .filter(|b| !kept.contains_key(b.account.as_str()))
+    {
+        out.push(format!(
+            "a Booked row of an account left out: {}",
+            b.account
+        ));
+    }
     out
 }
 
 /// Makes account ids unique across the books of a run: the second and later
 /// books holding an id get an error on that account, which is dropped from
-/// them with its movements and statements. The first book keeps it.
+/// them with its movements, statements and Booked rows. The first book keeps it.
 ///
 /// ```
 /// use std::path::Path;
@@ -434,5 +478,6 @@ pub fn check_unique_ids(books: &mut [Book]) {
         book.accounts.retain(|e| !dropped.contains(&e.terms.id));
         book.movements.retain(|id, _| !dropped.contains(id));
         book.statements.retain(|s| !dropped.contains(&s.account));
+        book.booked.retain(|b| !dropped.contains(&b.account));
     }
 }

@@ -1,6 +1,7 @@
 //! The Settings sheet: one row per setting (cutoff, window_start,
-//! tolerance_amount, tolerance_bp, entity, journal_style, statement_end, as
-//! the book schema lists them), each value checked against its kind.
+//! tolerance_amount, tolerance_bp, entity, journal_style, statement_end,
+//! as_at, previous_as_at, settlement_lines, as the book schema lists them),
+//! each value checked against its kind.
 //!
 //! Settings are book-wide: a bad one is an error of the book, not of an
 //! account. This module never applies a setting except `statement_end`,
@@ -10,6 +11,7 @@ use super::model::SettingRow;
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
 use crate::conventions::names::{fold, lookup, UnknownName};
+use crate::engine::ledger::SettlementLines;
 use crate::problem::{Problem, Severity};
 use crate::schema::{column, Choice, Kind, SETTINGS, SETTING_ROWS};
 
@@ -133,6 +135,9 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
                 other => other.map(|d| d.to_string()),
             },
             Kind::Choice(Choice::JournalStyle) => f.named(VALUE, journal_style).map(str::to_string),
+            Kind::Choice(Choice::SettlementLines) => f
+                .named(VALUE, SettlementLines::parse)
+                .map(|s| s.name().to_string()),
             Kind::Choice(Choice::StatementEnd) => f.named(VALUE, StatementEnd::parse).map(|s| {
                 out.statement_end = s;
                 s.name().to_string()

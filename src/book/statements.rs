@@ -23,6 +23,7 @@ const PERIOD_START: usize = column!(STATEMENTS, "period_start");
 const PERIOD_END: usize = column!(STATEMENTS, "period_end");
 const POSTED: usize = column!(STATEMENTS, "posted_interest");
 const REFERENCE: usize = column!(STATEMENTS, "reference");
+const POSTING_DATE: usize = column!(STATEMENTS, "posting_date");
 
 /// What the Statements sheet gives.
 #[derive(Debug, Default)]
@@ -56,6 +57,7 @@ pub(crate) fn read(
         let written_end = f.required_date(PERIOD_END);
         let posted = f.required_decimal(POSTED);
         let reference = f.text(REFERENCE);
+        let posting_date = f.date(POSTING_DATE);
         let (Some(start), Some(written_end), Some(posted), false) =
             (start, written_end, posted, f.failed)
         else {
@@ -127,7 +129,7 @@ pub(crate) fn read(
             period_end,
             posted,
             reference,
-            posting_date: None,
+            posting_date,
             position,
         });
     }

@@ -2,14 +2,15 @@
 //! problem, writing nothing. With a cut-off (option or Settings sheet) it
 //! also accrues every account with the settings a run would use, so
 //! problems only the engine meets (a day without a rate, a statement after
-//! the cut-off) are listed too.
+//! the cut-off) are listed too, and cuts the books to what such a run knows
+//! (an as-at date leaves rows out, with a note per sheet).
 
 use std::io::Write;
 
 use anyhow::Result;
 
-use super::inputs::check_books_exist;
-use super::settings::{Given, Settings};
+use super::inputs::{check_books_exist, known_to_run};
+use super::settings::{Given, KnowledgeArgs, Settings};
 use super::{exit, read_books, BookArgs};
 use crate::batch::run_books;
 use crate::problem::{by_cause, counted, Listed, Problem, Severity};
@@ -22,12 +23,26 @@ pub struct Args {
     /// Also accrue every account to this cut-off (else the Settings sheet's cutoff, if any).
     #[arg(long, value_name = "DATE")]
     cutoff: Option<String>,
+    #[command(flatten)]
+    knowledge: KnowledgeArgs,
 }
 
 /// Runs the command.
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_books_exist(&args.books.books)?;
-    let books = read_books(&args.books)?;
+    let mut books = read_books(&args.books)?;
+    let given = Given {
+        cutoff: args.cutoff.as_deref(),
+        decimal_comma: args.books.decimal_comma,
+        ..Given::default()
+    }
+    .with_knowledge(&args.knowledge);
+    // Settings that cannot be used stop the check after the books'
+    // problems are listed; those that can cut the books first.
+    let resolved = Settings::resolve(&books, &given);
+    if let Ok(Some(settings)) = &resolved {
+        known_to_run(&mut books, settings);
+    }
     let mut errors = 0;
     let mut total = 0;
     let mut print = |problems: &[Problem], out: &mut dyn Write| -> Result<()> {
@@ -58,12 +73,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         )?;
         print(&b.problems, out)?;
     }
-    let given = Given {
-        cutoff: args.cutoff.as_deref(),
-        decimal_comma: args.books.decimal_comma,
-        ..Given::default()
-    };
-    if let Some(settings) = Settings::resolve(&books, &given)? {
+    if let Some(settings) = resolved? {
         let result = run_books(&books, &settings.batch(), &|| {});
         writeln!(
             out,

@@ -11,8 +11,8 @@ use anyhow::{anyhow, bail, Result};
 use chrono::NaiveDate;
 
 use super::daycount::parse_date_option;
-use super::inputs::check_books_exist;
-use super::settings::{Given, Settings, ToleranceArgs};
+use super::inputs::{check_books_exist, known_to_run};
+use super::settings::{Given, KnowledgeArgs, Settings, ToleranceArgs};
 use super::{exit, read_books, refuse_unreadable, BookArgs};
 use crate::book::{AccountEntry, Book};
 use crate::conventions::names::closest_id;
@@ -42,6 +42,12 @@ pub struct Args {
     /// last published fixing, with a warning).
     #[arg(long, value_name = "FALLBACK")]
     fixing_fallback: Option<String>,
+    #[command(flatten)]
+    knowledge: KnowledgeArgs,
+    /// When the journal settles a posting: payment-date (the default),
+    /// in-window or period-end (else the Settings sheet's settlement_lines).
+    #[arg(long, value_name = "WORD")]
+    settlement_lines: Option<String>,
 }
 
 fn parse_period(s: &str) -> Result<(NaiveDate, NaiveDate)> {
@@ -60,11 +66,24 @@ fn parse_period(s: &str) -> Result<(NaiveDate, NaiveDate)> {
 /// Runs the command.
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_books_exist(&args.books.books)?;
-    let books = read_books(&args.books)?;
+    let mut books = read_books(&args.books)?;
     refuse_unreadable(&books)?;
-    let (book, entry) = find_account(&books, &args.account)?;
+    find_account(&books, &args.account)?;
     let period = args.period.as_deref().map(parse_period).transpose()?;
-    let options = options(args, &books, period)?;
+    let settings = settings(args, &books, period)?;
+    // What the run knows leaves rows out; the account itself stays.
+    known_to_run(&mut books, &settings);
+    let (book, entry) = find_account(&books, &args.account)?;
+    let options = Options {
+        window_start: settings.window_start,
+        cutoff: settings.cutoff,
+        tolerance: settings.tolerance,
+        fixing_fallback: settings.fixing_fallback,
+        keep_days: true,
+        fast_path: true,
+        previous_as_at: settings.previous_as_at,
+        settlement_lines: settings.settlement_lines,
+    };
     let x = explain(book, entry, &options, period).map_err(|f| anyhow!("{}", f.problem))?;
     print(&x, out)?;
     Ok(exit::OK)
@@ -111,29 +130,25 @@ fn no_such_account(books: &[Book], id: &str) -> anyhow::Error {
     }
 }
 
-/// The window, cut-off, tolerances and fixing fallback in force, resolved
-/// as for a run (command line, else the books' Settings sheets, else the
-/// default; the cut-off defaults to the end of `--period`).
-fn options(args: &Args, books: &[Book], period: Option<(NaiveDate, NaiveDate)>) -> Result<Options> {
+/// The window, cut-off, tolerances, fixing fallback and knowledge dates in
+/// force, resolved as for a run (command line, else the books' Settings
+/// sheets, else the default; the cut-off defaults to the end of `--period`).
+fn settings(
+    args: &Args,
+    books: &[Book],
+    period: Option<(NaiveDate, NaiveDate)>,
+) -> Result<Settings> {
     let given = Given {
         cutoff: args.cutoff.as_deref(),
         cutoff_default: period.map(|p| p.1),
         window_start: args.window_start.as_deref(),
         fixing_fallback: args.fixing_fallback.as_deref(),
+        settlement_lines: args.settlement_lines.as_deref(),
         decimal_comma: args.books.decimal_comma,
         ..Given::default()
     }
-    .with_tolerance(&args.tolerance);
-    let settings = Settings::resolve(books, &given)?
-        .ok_or_else(|| anyhow!("no cut-off: give --cutoff YYYY-MM-DD or --period START..END"))?;
-    Ok(Options {
-        window_start: settings.window_start,
-        cutoff: settings.cutoff,
-        tolerance: settings.tolerance,
-        fixing_fallback: settings.fixing_fallback,
-        keep_days: true,
-        fast_path: true,
-        previous_as_at: None,
-        settlement_lines: Default::default(),
-    })
+    .with_tolerance(&args.tolerance)
+    .with_knowledge(&args.knowledge);
+    Settings::resolve(books, &given)?
+        .ok_or_else(|| anyhow!("no cut-off: give --cutoff YYYY-MM-DD or --period START..END"))
 }

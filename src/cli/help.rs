@@ -32,7 +32,8 @@ Exit status:
   {errors}  some account had an error and was left out, or some book has an error
      (run still writes the workbook)
   {usage}  the command line or a file could not be used: a bad option or date, a
-     missing book, an output that would overwrite an input, no cut-off
+     missing book, an output that would overwrite an input, no cut-off, an as-at
+     date before the cut-off
   {variance}  run --fail-on-variance: some statement row is outside tolerance and
      there is no error",
         ok = exit::OK,
@@ -51,6 +52,8 @@ Examples:
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --daily --fail-on-variance --out november-daily.xlsx
   Accept up to half a basis point, and book reversing journal entries:
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --tolerance-bp 0.5 --journal-style reversing --out november-reversing.xlsx
+  What was known at the close on 3 December, postings settled on their end dates:
+    ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --as-at 2026-12-03 --settlement-lines period-end --out november-as-at.xlsx
   Shard 1 of 2 of a month end split across machines (combine with 'ledgerate merge'):
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --shard 1/2 --out shard-1.xlsx";
 
@@ -60,7 +63,9 @@ Examples:
   Every problem of reading the sample book:
     ledgerate check sample-books/harbourview-2026-11.xlsx
   Also what accruing every account to the cut-off finds:
-    ledgerate check sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30";
+    ledgerate check sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30
+  The same with only what was booked by 3 December:
+    ledgerate check sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --as-at 2026-12-03";
 
 /// `ledgerate merge --help`.
 pub const MERGE: &str = "\

@@ -1,5 +1,6 @@
-//! Input files of a run: existence, fingerprints for the audit trail, and the
-//! rule that the output may not overwrite an input.
+//! Input files of a run: existence, fingerprints for the audit trail, the
+//! rule that the output may not overwrite an input, and the books cut to
+//! what the run knows once its settings are resolved ([`known_to_run`]).
 
 use std::io::Read;
 use std::path::{Path, PathBuf};
@@ -7,6 +8,8 @@ use std::path::{Path, PathBuf};
 use anyhow::{bail, Context, Result};
 use sha2::{Digest, Sha256};
 
+use super::settings::Settings;
+use crate::book::{booked, known, trial_balance, Book};
 use crate::report::model::InputFile;
 use crate::schema::SheetKind;
 
@@ -88,6 +91,32 @@ fn sheet_files(dir: &Path) -> Result<Vec<PathBuf>> {
         .collect();
     files.sort();
     Ok(files)
+}
+
+/// The books as a run with `settings` reads them, the one place run, check
+/// and explain apply what the settings say of the books' rows: with an
+/// as-at date, every row booked after it left out, one note per sheet
+/// counting them (behaviour.md, Knowledge date); and a warning for each
+/// Booked or Trial balance row that no run of the window uses. The notes
+/// and warnings join each book's problems.
+pub fn known_to_run(books: &mut [Book], settings: &Settings) {
+    for book in books {
+        let mut found = match settings.as_at {
+            Some(as_at) => known::keep_known(book, as_at),
+            None => Vec::new(),
+        };
+        found.extend(booked::dates_not_used(
+            book,
+            settings.window_start,
+            settings.cutoff,
+        ));
+        found.extend(trial_balance::dates_not_used(
+            book,
+            settings.window_start,
+            settings.cutoff,
+        ));
+        book.problems.append(&mut found);
+    }
 }
 
 /// Checks that every book exists and is a file or a folder: reading a FIFO

@@ -9,8 +9,8 @@ use std::path::PathBuf;
 use anyhow::{anyhow, Context, Result};
 use chrono::NaiveDateTime;
 
-use super::inputs::{check_books_exist, check_output_is_not_an_input, fingerprint};
-use super::settings::{Given, Settings, ToleranceArgs};
+use super::inputs::{check_books_exist, check_output_is_not_an_input, fingerprint, known_to_run};
+use super::settings::{Given, KnowledgeArgs, Settings, ToleranceArgs};
 use super::summary::print_summary;
 use super::{exit, progress, read_books_showing, refuse_unreadable, run_time, BookArgs};
 use crate::batch::totals::{largest_variances, LARGEST_PER_CURRENCY};
@@ -68,6 +68,12 @@ pub struct Args {
     /// last (use the last published fixing, with a warning).
     #[arg(long, value_name = "FALLBACK")]
     fixing_fallback: Option<String>,
+    #[command(flatten)]
+    knowledge: KnowledgeArgs,
+    /// When the journal settles a posting: payment-date (the default),
+    /// in-window or period-end (else the Settings sheet's settlement_lines).
+    #[arg(long, value_name = "WORD")]
+    settlement_lines: Option<String>,
 }
 
 impl Args {
@@ -79,6 +85,7 @@ impl Args {
             entity: self.entity.as_deref(),
             journal_style: self.journal_style.as_deref(),
             fixing_fallback: self.fixing_fallback.as_deref(),
+            settlement_lines: self.settlement_lines.as_deref(),
             shard: self.shard.as_deref(),
             daily: self.daily,
             decimal_comma: self.books.decimal_comma,
@@ -87,6 +94,7 @@ impl Args {
             ..Given::default()
         }
         .with_tolerance(&self.tolerance)
+        .with_knowledge(&self.knowledge)
     }
 }
 
@@ -125,13 +133,14 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_books_exist(&args.books.books)?;
     let mut clock = Timings::start(args.timings);
     let reading = progress::step("reading the books");
-    let books = read_books_showing(&args.books, &reading)?;
+    let mut books = read_books_showing(&args.books, &reading)?;
     reading.finish_and_clear();
     clock.lap("read and check the books");
     refuse_unreadable(&books)?;
     let settings = Settings::resolve(&books, &args.given())?.ok_or_else(|| {
         anyhow!("no cut-off: give --cutoff YYYY-MM-DD (or a cutoff row on a book's Settings sheet)")
     })?;
+    known_to_run(&mut books, &settings);
     let target = args
         .out
         .clone()

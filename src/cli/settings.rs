@@ -17,6 +17,7 @@ use crate::batch::journal::JournalStyle;
 use crate::batch::BatchSettings;
 use crate::book::Book;
 use crate::engine::floating::FixingFallback;
+use crate::engine::ledger::SettlementLines;
 use crate::engine::reconcile::Tolerance;
 use crate::report::model::{Setting, SettingSource};
 
@@ -29,6 +30,21 @@ pub struct ToleranceArgs {
     /// Variance accepted as an annual rate gap in basis points (default: 0).
     #[arg(long, value_name = "BP", allow_hyphen_values = true)]
     pub tolerance_bp: Option<String>,
+}
+
+/// What a run knows, as `run`, `check` and `explain` take it (behaviour.md,
+/// Knowledge date).
+#[derive(Debug, Default, clap::Args)]
+pub struct KnowledgeArgs {
+    /// Use only what was booked by the end of this day: movements by
+    /// booking_date, Rates by booked, Statements by posting_date (else the
+    /// Settings sheet's as_at, else no limit). On or after the cut-off.
+    #[arg(long, value_name = "DATE")]
+    pub as_at: Option<String>,
+    /// The as-at date of the previous close, from the day before the window
+    /// to the as-at date (else the Settings sheet's previous_as_at).
+    #[arg(long, value_name = "DATE")]
+    pub previous_as_at: Option<String>,
 }
 
 /// What a command's options give. `None` (or `false`) for an option not
@@ -52,6 +68,12 @@ pub struct Given<'a> {
     pub tolerance_bp: Option<&'a str>,
     /// `--fixing-fallback`.
     pub fixing_fallback: Option<&'a str>,
+    /// `--as-at`.
+    pub as_at: Option<&'a str>,
+    /// `--previous-as-at`.
+    pub previous_as_at: Option<&'a str>,
+    /// `--settlement-lines`.
+    pub settlement_lines: Option<&'a str>,
     /// `--shard`.
     pub shard: Option<&'a str>,
     /// `--daily`.
@@ -65,6 +87,15 @@ pub struct Given<'a> {
 }
 
 impl<'a> Given<'a> {
+    /// The knowledge-date options of `args`.
+    pub fn with_knowledge(self, args: &'a KnowledgeArgs) -> Given<'a> {
+        Given {
+            as_at: args.as_at.as_deref(),
+            previous_as_at: args.previous_as_at.as_deref(),
+            ..self
+        }
+    }
+
     /// The tolerance options of `args`.
     pub fn with_tolerance(self, args: &'a ToleranceArgs) -> Given<'a> {
         Given {
@@ -90,6 +121,13 @@ pub struct Settings {
     pub tolerance: Tolerance,
     /// What a floating account does about a missing fixing.
     pub fixing_fallback: FixingFallback,
+    /// The knowledge date A: only rows booked by its end are known (`None`:
+    /// no limit, every row is known).
+    pub as_at: Option<NaiveDate>,
+    /// The as-at date of the previous close, in F-1..A.
+    pub previous_as_at: Option<NaiveDate>,
+    /// When the journal settles a posting against the accrual account.
+    pub settlement_lines: SettlementLines,
     /// Only the accounts of shard K of N (`(K, N)`, K from 1).
     pub shard: Option<(u32, u32)>,
     /// Keep the day-by-day lines.
@@ -107,8 +145,10 @@ impl Settings {
     /// else the defaults; `None` when no cut-off date is given anywhere.
     ///
     /// # Errors
-    /// A value that does not parse, books that disagree on a setting, or a
-    /// window that starts after the cut-off.
+    /// A value that does not parse, books that disagree on a setting, a
+    /// window that starts after the cut-off, an as-at date before the
+    /// cut-off, or a previous as-at date outside the day before the window
+    /// to the as-at date.
     pub fn resolve(books: &[Book], given: &Given<'_>) -> Result<Option<Settings>> {
         let Some(cutoff) = date(books, "cutoff", given.cutoff, given.cutoff_default)? else {
             return Ok(None);
@@ -159,6 +199,8 @@ impl Settings {
             );
         }
         let fixing_fallback = fixing_fallback(given.fixing_fallback, &mut listed)?;
+        let known = knowledge(books, given, window.value, cutoff.value, &mut listed)?;
+        let settlement_lines = settlement_lines(books, given.settlement_lines, &mut listed)?;
         Ok(Some(Settings {
             cutoff: cutoff.value,
             window_start: window.value,
@@ -166,6 +208,9 @@ impl Settings {
             entities: entities.into_iter().map(|e| e.value).collect(),
             tolerance,
             fixing_fallback,
+            as_at: known.as_at,
+            previous_as_at: known.previous_as_at,
+            settlement_lines,
             shard,
             daily: given.daily,
             fast_path: !given.no_fast_path,
@@ -186,9 +231,9 @@ impl Settings {
             fast_path: self.fast_path,
             shard: self.shard,
             fixing_fallback: self.fixing_fallback,
-            as_at: None,
-            previous_as_at: None,
-            settlement_lines: Default::default(),
+            as_at: self.as_at,
+            previous_as_at: self.previous_as_at,
+            settlement_lines: self.settlement_lines,
         }
     }
 }
@@ -217,6 +262,11 @@ impl Listed {
 /// The one value the books' Settings sheets give for `name` (folded), with
 /// an error when two books disagree.
 fn from_books(books: &[Book], name: &str) -> Result<Option<String>> {
+    Ok(from_books_at(books, name)?.map(|(v, _)| v))
+}
+
+/// [`from_books`], with the cell the value was found in.
+fn from_books_at(books: &[Book], name: &str) -> Result<Option<(String, String)>> {
     let mut found: Option<(String, String)> = None;
     for b in books {
         for s in b.settings.iter().filter(|s| s.name == name) {
@@ -232,7 +282,7 @@ fn from_books(books: &[Book], name: &str) -> Result<Option<String>> {
             }
         }
     }
-    Ok(found.map(|(v, _)| v))
+    Ok(found)
 }
 
 /// A date setting: the option, else the books, else `default`.
@@ -428,6 +478,112 @@ fn fixing_fallback(given: Option<&str>, listed: &mut Listed) -> Result<FixingFal
         },
     );
     Ok(fallback)
+}
+
+/// What a run knows: the as-at date and the previous close's.
+#[derive(Debug, Clone, Copy)]
+struct Knowledge {
+    as_at: Option<NaiveDate>,
+    previous_as_at: Option<NaiveDate>,
+}
+
+/// A date setting given by the option or the books (no default), with
+/// where it was given, for a message: `--as-at`, or the Settings cell.
+fn given_date(
+    books: &[Book],
+    name: &str,
+    option: Option<&str>,
+) -> Result<Option<(Resolved<NaiveDate>, String)>> {
+    let Some(r) = date(books, name, option, None)? else {
+        return Ok(None);
+    };
+    let place = match r.source {
+        SettingSource::Option => format!("--{}", name.replace('_', "-")),
+        _ => match from_books_at(books, &name.replace('_', ""))? {
+            Some((_, at)) => format!("the Settings sheet's {name} ({at})"),
+            None => format!("the Settings sheet's {name}"),
+        },
+    };
+    Ok(Some((r, place)))
+}
+
+/// The as-at date A and the previous close's P, checked against the window
+/// F..C (behaviour.md, Knowledge date): A on or after C, P in F-1..A (A
+/// unlimited when not given). Recorded for the Run sheet.
+fn knowledge(
+    books: &[Book],
+    given: &Given<'_>,
+    window_start: NaiveDate,
+    cutoff: NaiveDate,
+    listed: &mut Listed,
+) -> Result<Knowledge> {
+    let as_at = given_date(books, "as_at", given.as_at)?;
+    if let Some((a, place)) = &as_at {
+        if a.value < cutoff {
+            bail!(
+                "{place}: the as-at date {} is before the cut-off {cutoff}: a close cannot know less than its period; give an as-at date on or after {cutoff}, or leave it out to use every row",
+                a.value
+            );
+        }
+    }
+    let previous = given_date(books, "previous_as_at", given.previous_as_at)?;
+    let opening = window_start.pred_opt().unwrap_or(window_start);
+    if let Some((p, place)) = &previous {
+        let upto = as_at.as_ref().map(|(a, _)| a.value);
+        if p.value < opening || upto.is_some_and(|a| p.value > a) {
+            let range = match upto {
+                Some(a) => format!("{opening}..{a} (the day before the window to the as-at date)"),
+                None => format!("{opening} or later (the day before the window onwards)"),
+            };
+            bail!(
+                "{place}: the previous as-at date {} is outside {range}: the previous close was made at the earliest on the day before this window and cannot know more than this run; give a date in that range, or leave it out",
+                p.value
+            );
+        }
+    }
+    let shown = |r: &Option<(Resolved<NaiveDate>, String)>, none: &str| match r {
+        Some((r, _)) => Resolved {
+            value: r.value.to_string(),
+            source: r.source,
+        },
+        None => Resolved {
+            value: none.to_string(),
+            source: SettingSource::Default,
+        },
+    };
+    listed.record("as_at", &shown(&as_at, "no limit: every row is known"));
+    listed.record("previous_as_at", &shown(&previous, "none"));
+    Ok(Knowledge {
+        as_at: as_at.map(|(a, _)| a.value),
+        previous_as_at: previous.map(|(p, _)| p.value),
+    })
+}
+
+/// When the journal settles a posting: the option, else the books, else
+/// `payment-date`; recorded for the Run sheet.
+fn settlement_lines(
+    books: &[Book],
+    option: Option<&str>,
+    listed: &mut Listed,
+) -> Result<SettlementLines> {
+    let r = text(
+        books,
+        "settlement_lines",
+        option,
+        SettlementLines::default().name(),
+    )?;
+    let lines = SettlementLines::parse(&r.value).map_err(|e| match r.source {
+        SettingSource::Option => anyhow!("--settlement-lines: {e}"),
+        _ => anyhow!("the Settings sheet's settlement_lines: {e}"),
+    })?;
+    listed.record(
+        "settlement_lines",
+        &Resolved {
+            value: lines.name(),
+            source: r.source,
+        },
+    );
+    Ok(lines)
 }
 
 /// The first day of `d`'s month.

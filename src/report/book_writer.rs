@@ -115,13 +115,16 @@ fn csv_error(path: &Path) -> impl FnOnce(csv::Error) -> ReportError {
     }
 }
 
-/// The file name of a sheet in a CSV book.
+/// The file name of a sheet in a CSV book: its name in lower case, spaces
+/// as `_`.
 ///
 /// ```
-/// assert_eq!(ledgerate::report::book_writer::csv_name("Movements"), "movements.csv");
+/// use ledgerate::report::book_writer::csv_name;
+/// assert_eq!(csv_name("Movements"), "movements.csv");
+/// assert_eq!(csv_name("Trial balance"), "trial_balance.csv");
 /// ```
 pub fn csv_name(sheet: &str) -> String {
-    format!("{}.csv", sheet.to_lowercase())
+    format!("{}.csv", sheet.to_lowercase().replace(' ', "_"))
 }
 
 impl BookWriter {

@@ -34,12 +34,13 @@ use rust_decimal::Decimal;
 use crate::book::AccountEntry;
 use crate::conventions::calendar::Calendar;
 use crate::engine::floating::{FixingFallback, Fixings};
+use crate::engine::ledger::SettlementLines;
 use crate::engine::rates::RateSchedule;
 use crate::engine::reconcile::Tolerance;
 use crate::engine::{EngineError, Movement, RoundAt, TierMethod};
 use crate::pipeline::{run_account, BookAccount, Options};
 use crate::report::book_writer::Value;
-use crate::schema::{layout, Layout, SheetKind, ACCOUNTS, RATES};
+use crate::schema::{layout, Layout, SheetKind, ACCOUNTS, RATES, STATEMENTS};
 
 use catalogue::Product;
 use draft::Draft;
@@ -112,7 +113,14 @@ pub const SHEETS: [Layout; 6] = [
     ),
     layout!(RATES, "rate_ref", "effective", "rate_percent", "tier_from"),
     Layout::every(SheetKind::Movements),
-    Layout::every(SheetKind::Statements),
+    layout!(
+        STATEMENTS,
+        "account",
+        "period_start",
+        "period_end",
+        "posted_interest",
+        "reference"
+    ),
     Layout::every(SheetKind::Holidays),
     Layout::every(SheetKind::Settings),
 ];
@@ -542,7 +550,7 @@ fn run_options(keep_days: bool) -> Options {
         keep_days,
         fast_path: true,
         previous_as_at: None,
-        settlement_lines: Default::default(),
+        settlement_lines: SettlementLines::default(),
     }
 }
 

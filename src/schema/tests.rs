@@ -52,6 +52,8 @@ fn the_sheets_are_those_of_books_md_in_order() {
             "Rates",
             "Movements",
             "Statements",
+            "Booked",
+            "Trial balance",
             "Fixings",
             "Holidays",
             "Settings"
@@ -101,6 +103,14 @@ fn the_required_columns_are_those_of_books_md() {
     assert_eq!(
         required(SheetKind::Statements),
         ["account", "period_start", "period_end", "posted_interest"]
+    );
+    assert_eq!(
+        required(SheetKind::Booked),
+        ["account", "date", "open_item"]
+    );
+    assert_eq!(
+        required(SheetKind::TrialBalance),
+        ["entity", "currency", "gl_account", "date", "balance"]
     );
     assert_eq!(
         required(SheetKind::Fixings),
@@ -197,7 +207,10 @@ fn the_settings_are_those_of_books_md() {
             "tolerance_bp",
             "entity",
             "journal_style",
-            "statement_end"
+            "statement_end",
+            "as_at",
+            "previous_as_at",
+            "settlement_lines"
         ]
     );
 }
@@ -259,6 +272,10 @@ fn the_lists_offer_the_canonical_names() {
         vec!["half-up", "half-even", "down", "up"]
     );
     assert_eq!(Choice::Side.names(), vec!["liability", "asset"]);
+    assert_eq!(
+        Choice::SettlementLines.names(),
+        vec!["payment-date", "in-window", "period-end"]
+    );
 }
 
 #[test]

@@ -576,6 +576,9 @@ fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time()
         ),
         ("tolerance_bp", "0.5", "command line"),
         ("fixing_fallback", "none", "default"),
+        ("as_at", "no limit: every row is known", "default"),
+        ("previous_as_at", "none", "default"),
+        ("settlement_lines", "payment-date", "default"),
     ];
     for (name, value, source) in want {
         assert_eq!(

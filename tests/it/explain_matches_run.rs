@@ -88,8 +88,8 @@ fn batch(book: &Book, o: &Options) -> BatchResult {
         shard: None,
         fixing_fallback: o.fixing_fallback,
         as_at: None,
-        previous_as_at: None,
-        settlement_lines: Default::default(),
+        previous_as_at: o.previous_as_at,
+        settlement_lines: o.settlement_lines,
     };
     run_books(std::slice::from_ref(book), &settings, &|| {})
 }

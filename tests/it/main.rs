@@ -24,6 +24,7 @@ mod hostile_inputs;
 mod layers;
 mod ledger_examples;
 mod ledger_law;
+mod ledger_inputs;
 mod merge_safety;
 mod messages;
 mod output_safety;

@@ -769,9 +769,16 @@ fn the_template_has_every_sheet_and_column_of_an_account_book() {
     assert!(xml.contains("unadjusted,following,modified-following,preceding,modified-preceding"));
     assert!(xml.contains("fixed,simple-daily,compounded-in-arrears"));
     assert!(xml.contains("half-up,half-even,down,up"));
-    let settings_xml = zip_text(&target, "xl/worksheets/sheet7.xml");
+    let settings_xml = zip_text(
+        &target,
+        &format!(
+            "xl/worksheets/sheet{}.xml",
+            sheet_index(&target, "Settings")
+        ),
+    );
     assert!(settings_xml.contains("incremental,reversing"));
     assert!(settings_xml.contains("inclusive,exclusive"));
+    assert!(settings_xml.contains("payment-date,in-window,period-end"));
     assert_eq!(number_format(&target, "Accounts", 1, 3), "yyyy-mm-dd");
 
     // The template is the same bytes every time.

@@ -154,8 +154,14 @@ fn without_either_the_default_holds_and_is_listed_as_such() {
             ("tolerance_amount", "default"),
             ("tolerance_bp", "default"),
             ("fixing_fallback", "default"),
+            ("as_at", "default"),
+            ("previous_as_at", "default"),
+            ("settlement_lines", "default"),
         ]
     );
+    assert_eq!(s.as_at, None);
+    assert_eq!(s.previous_as_at, None);
+    assert_eq!(s.settlement_lines, SettlementLines::PaymentDate);
     assert_eq!(
         listed(&s, "tolerance_amount").0,
         "one minor unit of each row's currency"
@@ -287,4 +293,159 @@ fn a_shard_is_listed_and_handed_to_the_batch() {
         (batch.cutoff, batch.window_start),
         (day("2026-11-30"), day("2026-11-01"))
     );
+}
+
+/// Knowledge date: the as-at date and the previous close's come from the
+/// command line, else the Settings sheet, and are listed with their source.
+#[test]
+fn the_knowledge_dates_and_settlement_lines_resolve_like_any_setting() {
+    let books = [book(
+        "a.xlsx",
+        &[
+            ("cutoff", "2026-11-30"),
+            ("asat", "2026-12-03"),
+            ("previousasat", "2026-11-03"),
+            ("settlementlines", "period-end"),
+        ],
+    )];
+    let s = resolve(&books, Given::default());
+    assert_eq!(s.as_at, Some(day("2026-12-03")));
+    assert_eq!(s.previous_as_at, Some(day("2026-11-03")));
+    assert_eq!(s.settlement_lines, SettlementLines::PeriodEnd);
+    assert_eq!(
+        listed(&s, "as_at"),
+        ("2026-12-03".into(), SettingSource::Book)
+    );
+    assert_eq!(
+        listed(&s, "settlement_lines"),
+        ("period-end".into(), SettingSource::Book)
+    );
+    let s = resolve(
+        &books,
+        Given {
+            as_at: Some("2026-12-05"),
+            previous_as_at: Some("2026-10-31"),
+            settlement_lines: Some("in-window"),
+            ..Given::default()
+        },
+    );
+    assert_eq!(s.as_at, Some(day("2026-12-05")));
+    assert_eq!(s.previous_as_at, Some(day("2026-10-31")), "F-1 itself");
+    assert_eq!(s.settlement_lines, SettlementLines::InWindow);
+    let batch = s.batch();
+    assert_eq!(
+        (batch.as_at, batch.previous_as_at, batch.settlement_lines),
+        (s.as_at, s.previous_as_at, s.settlement_lines)
+    );
+    assert_eq!(
+        listed(&s, "previous_as_at"),
+        ("2026-10-31".into(), SettingSource::Option)
+    );
+}
+
+/// Knowledge date: an as-at date before the cut-off is a usage error naming
+/// the option or the Settings cell: a close cannot know less than its period.
+#[test]
+fn an_as_at_date_before_the_cutoff_is_refused_where_it_was_given() {
+    let books = [book("a.xlsx", &[("cutoff", "2026-11-30")])];
+    let e = Settings::resolve(
+        &books,
+        &Given {
+            as_at: Some("2026-11-29"),
+            ..Given::default()
+        },
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.starts_with("--as-at: the as-at date 2026-11-29 is before the cut-off 2026-11-30"),
+        "{e}"
+    );
+    assert!(
+        e.contains("a close cannot know less than its period"),
+        "{e}"
+    );
+    assert!(e.contains("on or after 2026-11-30"), "{e}");
+
+    let books = [book(
+        "a.xlsx",
+        &[("cutoff", "2026-11-30"), ("asat", "2026-11-15")],
+    )];
+    let e = Settings::resolve(&books, &Given::default())
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.starts_with("the Settings sheet's as_at (a.xlsx Settings!B3): the as-at date 2026-11-15"),
+        "{e}"
+    );
+    // The cut-off itself is a close on its own last day.
+    let s = resolve(
+        &books,
+        Given {
+            as_at: Some("2026-11-30"),
+            ..Given::default()
+        },
+    );
+    assert_eq!(s.as_at, Some(day("2026-11-30")));
+}
+
+/// Knowledge date: the previous close's as-at date lies in F-1..A; without
+/// an as-at date only F-1 bounds it.
+#[test]
+fn a_previous_as_at_date_outside_the_day_before_the_window_to_as_at_is_refused() {
+    let books = [book("a.xlsx", &[("cutoff", "2026-11-30")])];
+    let try_with = |previous: &'static str, as_at: Option<&'static str>| {
+        Settings::resolve(
+            &books,
+            &Given {
+                previous_as_at: Some(previous),
+                as_at,
+                ..Given::default()
+            },
+        )
+        .map(|s| s.unwrap().previous_as_at)
+        .map_err(|e| e.to_string())
+    };
+    let early = try_with("2026-10-30", None).unwrap_err();
+    assert!(
+        early.starts_with(
+            "--previous-as-at: the previous as-at date 2026-10-30 is outside 2026-10-31 or later"
+        ),
+        "{early}"
+    );
+    let late = try_with("2026-12-04", Some("2026-12-03")).unwrap_err();
+    assert!(
+        late.contains(
+            "is outside 2026-10-31..2026-12-03 (the day before the window to the as-at date)"
+        ),
+        "{late}"
+    );
+    assert!(late.contains("leave it out"), "{late}");
+    assert_eq!(
+        try_with("2026-10-31", Some("2026-12-03")),
+        Ok(Some(day("2026-10-31")))
+    );
+    assert_eq!(
+        try_with("2026-12-03", Some("2026-12-03")),
+        Ok(Some(day("2026-12-03")))
+    );
+    assert_eq!(try_with("2027-03-01", None), Ok(Some(day("2027-03-01"))));
+}
+
+#[test]
+fn an_unknown_settlement_lines_word_names_the_option_and_the_words() {
+    let books = [book("a.xlsx", &[("cutoff", "2026-11-30")])];
+    let e = Settings::resolve(
+        &books,
+        &Given {
+            settlement_lines: Some("payment"),
+            ..Given::default()
+        },
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(e.starts_with("--settlement-lines: "), "{e}");
+    for word in ["payment-date", "in-window", "period-end"] {
+        assert!(e.contains(word), "{word} missing from {e}");
+    }
 }
