@@ -13,10 +13,13 @@ use std::collections::HashMap;
 use chrono::NaiveDateTime;
 
 use super::journal::Journal;
+use super::sort_left_out;
 use super::split::OneSplit;
 use super::totals::{largest_variances, StatusCounts, Totals, LARGEST_PER_CURRENCY};
 use crate::problem::{sort_problems, Problem};
-use crate::report::model::{AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts};
+use crate::report::model::{
+    AccrualLine, DailyLine, LeftOutLine, ReconciliationLine, Report, RunFacts,
+};
 use crate::report::readback::RunRows;
 
 /// Shards that cannot be combined.
@@ -34,8 +37,10 @@ pub enum MergeError {
 /// Merges shards proven to be one split: rows put back in book order
 /// (`order`: account id to its position across the books), totals, counts
 /// and journal added up again, problems listed once each in the order every
-/// report lists them. `accounts_read` and `accounts_failed` are the sums
-/// over the shards.
+/// report lists them. The account counts (read, left out, failed) are the
+/// sums over the shards, and the accounts left out that the shards name
+/// are listed in the order one run lists them: each shard names its first
+/// ones, so the first of all are among them.
 pub fn merge(
     split: OneSplit,
     order: &HashMap<String, usize>,
@@ -56,6 +61,7 @@ pub fn merge(
     rows.put_in_book_order(order);
     let books: Vec<String> = facts.inputs.iter().map(|i| i.path.clone()).collect();
     sort_problems(&mut rows.problems, &books);
+    sort_left_out(&mut rows.left_out, &books);
     let totals = Totals::of(&rows.accruals);
     let mut counts = StatusCounts::default();
     for r in &rows.reconciliation {
@@ -71,9 +77,11 @@ pub fn merge(
             run_time,
             accounts_read: rows.accounts_read,
             accounts_computed: rows.accruals.len(),
+            accounts_left_out: rows.accounts_left_out,
             accounts_failed: rows.accounts_failed,
             ..facts
         },
+        left_out: rows.left_out,
         accruals: rows.accruals,
         reconciliation: rows.reconciliation,
         journal: rows.journal.lines(),
@@ -90,14 +98,18 @@ struct Combined {
     daily: Option<Vec<DailyLine>>,
     journal: Journal,
     problems: Vec<Problem>,
+    left_out: Vec<LeftOutLine>,
     accounts_read: usize,
+    accounts_left_out: usize,
     accounts_failed: usize,
 }
 
 impl Combined {
     fn add(&mut self, part: RunRows) {
         self.accounts_read += part.facts.accounts_read;
+        self.accounts_left_out += part.facts.accounts_left_out;
         self.accounts_failed += part.facts.accounts_failed;
+        self.left_out.extend(part.left_out);
         self.accruals.extend(part.accruals);
         self.reconciliation.extend(part.reconciliation);
         if let Some(d) = part.daily {

@@ -18,6 +18,7 @@ mod cli_formats;
 mod cli_many_accounts;
 mod cli_run;
 mod cli_shards;
+mod completeness;
 mod explain_matches_run;
 mod hostile_books;
 mod hostile_inputs;
