@@ -1,8 +1,9 @@
 //! One account explained: what `ledgerate explain` shows (the account's
 //! terms, its days, its postings, its statement periods with expected,
-//! posted, variance, status and likely cause, its notes, and the accrued
-//! interest at the cut-off), built from the pipeline's run of the account,
-//! and the printer that lays it out as text.
+//! posted, variance, status and likely cause, its statement rows that could
+//! not be read, its notes, and the accrued interest at the cut-off), built
+//! from the pipeline's run of the account, and the printer that lays it out
+//! as text.
 //!
 //! The figures are the pipeline's, the same the month-end run reports. This
 //! module reads no file, resolves no setting and looks for no account (the
@@ -13,7 +14,7 @@ use std::io::{self, Write};
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
-use crate::book::{AccountEntry, Book};
+use crate::book::{AccountEntry, Book, UnreadableStatement};
 use crate::engine::causes::LikelyCause;
 use crate::engine::floating::FixingUsed;
 use crate::engine::ledger::LedgerFigures;
@@ -39,6 +40,9 @@ pub struct Explanation {
     pub statements: Vec<CheckedRow>,
     /// Whether the account has statement rows for periods ending by the cut-off.
     pub has_statements: bool,
+    /// Its statement rows that could not be read (the run's "statement
+    /// unreadable" rows), in sheet order.
+    pub unreadable: Vec<UnreadableStatement>,
     /// The pipeline's notes and warnings on the account.
     pub notes: Vec<Problem>,
     /// Interest earned since the last posting and not posted, rounded.
@@ -123,15 +127,30 @@ pub fn explain(
             .iter()
             .find(|b| &b.account == id && Some(b.date) == day)
     };
+    let unreadable: Vec<&UnreadableStatement> = book
+        .unreadable_statements
+        .iter()
+        .filter(|u| &u.account == id)
+        .collect();
     let account = BookAccount::from_book(book, entry, &statements)
         .with_booked_opening(booked_on(options.window_start.pred_opt()))
-        .with_booked_close(booked_on(Some(options.cutoff)));
+        .with_booked_close(booked_on(Some(options.cutoff)))
+        .with_unreadable(&unreadable);
     let options = Options {
         keep_days: true,
         ..*options
     };
     let run = run_account(&account, &options)?;
-    Ok(Explanation::new(&account, run, &options, period))
+    let mut x = Explanation::new(&account, run, &options, period);
+    x.unreadable = unreadable.into_iter().cloned().collect();
+    // As in the run: a posting period whose statement row could not be
+    // read is not "not posted".
+    let unreadable = &x.unreadable;
+    x.statements.retain(|c| {
+        c.row.status != Status::NotPosted
+            || !unreadable.iter().any(|u| u.covers(c.row.start, c.row.end))
+    });
+    Ok(x)
 }
 
 impl Explanation {
@@ -172,6 +191,7 @@ impl Explanation {
                 .filter(|c| c.row.end >= shown.0 && c.row.start <= shown.1)
                 .collect(),
             has_statements: !run.periods.is_empty(),
+            unreadable: Vec::new(),
             notes: run.notes,
             accrued_at_cutoff: r.accrued_at_cutoff,
             not_made: run.not_made,
@@ -432,7 +452,16 @@ fn print_statements(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
             )?;
         }
     }
-    if !x.has_statements {
+    for u in &x.unreadable {
+        writeln!(
+            out,
+            "statement row {} could not be read: {}: {}",
+            u.error.position,
+            u.error.words(),
+            Status::StatementUnreadable.name()
+        )?;
+    }
+    if !x.has_statements && x.unreadable.is_empty() {
         writeln!(out, "no statement rows for this account")?;
     }
     Ok(())

@@ -18,7 +18,7 @@ use rust_decimal::Decimal;
 
 use chrono::Datelike;
 
-use crate::book::{known, AccountEntry, Book, BookedRow, StatementRow};
+use crate::book::{known, AccountEntry, Book, BookedRow, StatementRow, UnreadableStatement};
 use crate::engine::causes::{search, LikelyCause};
 use crate::engine::floating::{
     FixingFallback, FixingWarning, Fixings, FloatingRates, FloatingSchedule,
@@ -57,6 +57,9 @@ pub struct BookAccount<'a> {
     /// Its Booked row dated the cut-off, if any: the core system's open
     /// item, checked against ours.
     pub booked_close: Option<&'a BookedRow>,
+    /// Its statement rows that could not be read: a posting period one of
+    /// them was for is not taken as "not made".
+    pub unreadable: &'a [&'a UnreadableStatement],
     /// When the tables of its `rate_ref` and `debit_rate_ref` were booked,
     /// where later than they took effect (effective, booked).
     pub rate_bookings: [&'a [(NaiveDate, NaiveDate)]; 2],
@@ -86,6 +89,7 @@ impl<'a> BookAccount<'a> {
             statements,
             booked_opening: None,
             booked_close: None,
+            unreadable: &[],
             rate_bookings: [
                 known::bookings_of(book, &entry.rate_ref),
                 entry
@@ -101,6 +105,14 @@ impl<'a> BookAccount<'a> {
     pub fn with_booked_opening(self, row: Option<&'a BookedRow>) -> BookAccount<'a> {
         BookAccount {
             booked_opening: row,
+            ..self
+        }
+    }
+
+    /// The same account with `rows` as its statement rows that could not be read.
+    pub fn with_unreadable(self, rows: &'a [&'a UnreadableStatement]) -> BookAccount<'a> {
+        BookAccount {
+            unreadable: rows,
             ..self
         }
     }
@@ -177,6 +189,7 @@ impl<'a> KnownRows<'a> {
             statements,
             booked_opening: None,
             booked_close: None,
+            unreadable: now.unreadable,
             rate_bookings: [&[], &[]],
         }
     }
@@ -361,6 +374,7 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
     let not_made: Vec<(NaiveDate, NaiveDate)> = reconciled
         .iter()
         .filter(|r| r.status == Status::NotPosted)
+        .filter(|r| !account.unreadable.iter().any(|u| u.covers(r.start, r.end)))
         .map(|r| (r.start, r.end))
         .collect();
     if t.capitalise && !not_made.is_empty() {

@@ -240,13 +240,27 @@ impl FollowOn {
     }
 }
 
-impl fmt::Display for Problem {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(
-            f,
-            "{}: {}: found {}; expected {}; {}",
-            self.severity.name(),
-            self.position,
+impl Problem {
+    /// What the problem says, without its severity and position: `found
+    /// 'x'; expected y; fix`.
+    ///
+    /// ```
+    /// use ledgerate::problem::{Position, Problem, Severity};
+    /// let p = Problem {
+    ///     severity: Severity::Error,
+    ///     position: Position { book: "b.xlsx".into(), sheet: "Movements".into(), cell: "C5".into(), ..Position::default() },
+    ///     account: Some("SAV-1".into()),
+    ///     found: "12,5O".into(),
+    ///     expected: "an amount".into(),
+    ///     fix: "correct the amount".into(),
+    ///     follows: None,
+    /// };
+    /// assert_eq!(p.words(), "found '12,5O'; expected an amount; correct the amount");
+    /// assert_eq!(p.to_string(), "error: b.xlsx Movements!C5: found '12,5O'; expected an amount; correct the amount");
+    /// ```
+    pub fn words(&self) -> String {
+        format!(
+            "found {}; expected {}; {}",
             if self.found.is_empty() {
                 "nothing".to_string()
             } else {
@@ -254,6 +268,18 @@ impl fmt::Display for Problem {
             },
             self.expected,
             self.fix
+        )
+    }
+}
+
+impl fmt::Display for Problem {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "{}: {}: {}",
+            self.severity.name(),
+            self.position,
+            self.words()
         )
     }
 }
@@ -325,25 +351,29 @@ pub fn parse_a1(cell: &str) -> (u64, u64) {
 /// keeping the order found among problems of one cell. A shard run and a
 /// merge of shards list them the same way as one run.
 pub fn sort_problems(problems: &mut [Problem], books: &[String]) {
-    let labels: Vec<String> = SheetKind::ALL.iter().map(|k| fold(k.label())).collect();
-    let key = |p: &Problem| {
-        let book = books
-            .iter()
-            .position(|b| *b == p.position.book)
-            .unwrap_or(books.len());
-        let sheet = p.position.sheet.to_lowercase();
-        // A sheet whose name begins with one of the book format's sheet
-        // names (case, spaces, `_` and `-` ignored) ranks in the format's
-        // order; any other comes after them.
-        let folded = fold(&sheet);
-        let rank = labels
-            .iter()
-            .position(|label| folded.starts_with(label.as_str()))
-            .unwrap_or(labels.len());
-        let (row, col) = parse_a1(&p.position.cell);
-        (book, rank, sheet, row, col)
-    };
-    problems.sort_by_cached_key(key);
+    problems.sort_by_cached_key(|p| report_order(&p.position, books));
+}
+
+/// Where a position comes in the order every report lists problems (see
+/// [`sort_problems`]): by book (in the order of `books`), sheet (in the
+/// order of the book format), row and column. Lists that follow the
+/// Problems sheet (the accounts left out) sort by it too.
+pub fn report_order(position: &Position, books: &[String]) -> (usize, usize, String, u64, u64) {
+    let book = books
+        .iter()
+        .position(|b| *b == position.book)
+        .unwrap_or(books.len());
+    let sheet = position.sheet.to_lowercase();
+    // A sheet whose name begins with one of the book format's sheet
+    // names (case, spaces, `_` and `-` ignored) ranks in the format's
+    // order; any other comes after them.
+    let folded = fold(&sheet);
+    let rank = SheetKind::ALL
+        .iter()
+        .position(|k| folded.starts_with(fold(k.label()).as_str()))
+        .unwrap_or(SheetKind::ALL.len());
+    let (row, col) = parse_a1(&position.cell);
+    (book, rank, sheet, row, col)
 }
 
 /// `n` and the noun, plural unless `n` is 1: `1 problem`, `3 problems`,

@@ -16,13 +16,14 @@ use chrono::NaiveDateTime;
 use rust_decimal::Decimal;
 
 use super::journal::Journal;
+use super::sort_left_out;
 use super::split::OneSplit;
 use super::tie_out::{is_unused_row_note, GlKey, TieOut};
 use super::totals::{largest_variances, StatusCounts, Totals, LARGEST_PER_CURRENCY};
 use crate::engine::reconcile::Tolerance;
 use crate::problem::{sort_problems, Problem};
 use crate::report::model::{
-    AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts, Setting, TieOutLine,
+    AccrualLine, DailyLine, LeftOutLine, ReconciliationLine, Report, RunFacts, Setting, TieOutLine,
 };
 use crate::report::readback::RunRows;
 
@@ -41,8 +42,10 @@ pub enum MergeError {
 /// Merges shards proven to be one split: rows put back in book order
 /// (`order`: account id to its position across the books), totals, counts,
 /// journal and Tie-out added up again, problems listed once each in the
-/// order every report lists them. `accounts_read` and `accounts_failed` are
-/// the sums over the shards.
+/// order every report lists them. The account counts (read, left out,
+/// failed) are the sums over the shards, and the accounts left out that the
+/// shards name are listed in the order one run lists them: each shard names
+/// its first ones, so the first of all are among them.
 pub fn merge(
     split: OneSplit,
     order: &HashMap<String, usize>,
@@ -65,6 +68,7 @@ pub fn merge(
     let tie_out = rows.tie_out(&settings, books.first().map_or("", String::as_str));
     rows.keep_unused_row_notes_of_every_shard();
     sort_problems(&mut rows.problems, &books);
+    sort_left_out(&mut rows.left_out, &books);
     let totals = Totals::of(&rows.accruals);
     let mut counts = StatusCounts::default();
     for r in &rows.reconciliation {
@@ -80,9 +84,11 @@ pub fn merge(
             run_time,
             accounts_read: rows.accounts_read,
             accounts_computed: rows.accruals.len(),
+            accounts_left_out: rows.accounts_left_out,
             accounts_failed: rows.accounts_failed,
             ..facts
         },
+        left_out: rows.left_out,
         accruals: rows.accruals,
         reconciliation: rows.reconciliation,
         accrued_check: rows.accrued_check,
@@ -108,7 +114,9 @@ struct Combined {
     /// shards have it.
     unused_row_notes: Vec<(Problem, usize)>,
     shards: usize,
+    left_out: Vec<LeftOutLine>,
     accounts_read: usize,
+    accounts_left_out: usize,
     accounts_failed: usize,
 }
 
@@ -116,7 +124,9 @@ impl Combined {
     fn add(&mut self, part: RunRows) {
         self.shards += 1;
         self.accounts_read += part.facts.accounts_read;
+        self.accounts_left_out += part.facts.accounts_left_out;
         self.accounts_failed += part.facts.accounts_failed;
+        self.left_out.extend(part.left_out);
         self.accruals.extend(part.accruals);
         self.reconciliation.extend(part.reconciliation);
         self.accrued_check.extend(part.accrued_check);

@@ -1,10 +1,13 @@
 //! A month-end batch: every account of the books accrued in parallel, then
-//! the totals, the journal and the daily lines, in book order.
+//! the totals, the journal and the daily lines, in book order; and every
+//! account read counted once, as computed, left out by the books' errors or
+//! failed in the computation (behaviour.md, Completeness and presentation).
 //!
 //! Takes books already read and returns report rows; it reads no file and
 //! prints nothing (the command line does both). Results are collected in book
 //! order whatever the thread count, and every total is a sum of rounded
-//! amounts, so the output is the same on one thread or many.
+//! amounts, so the output is the same on one thread or many. It never
+//! decides which accounts the reader left out: the books say so.
 
 pub mod journal;
 pub mod merge;
@@ -18,16 +21,18 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
-use crate::book::{AccountEntry, Book, BookedRow, StatementRow, TrialBalanceRow};
+use crate::book::{
+    AccountEntry, Book, BookedRow, StatementRow, TrialBalanceRow, UnreadableStatement,
+};
 use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
 use crate::engine::ledger::SettlementLines;
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
-use crate::problem::{Problem, Severity};
+use crate::problem::{report_order, Position, Problem};
 use crate::report::model::{
-    AccrualLine, CurrencyTotal, DailyLine, JournalLine, LedgerLine, ReconciliationLine,
-    StatusCount, TieOutLine, Word,
+    AccrualLine, CurrencyTotal, DailyLine, JournalLine, LedgerLine, LeftOutLine,
+    ReconciliationLine, StatusCount, TieOutLine, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl};
 use tie_out::TieOut;
@@ -92,7 +97,7 @@ fn in_shard(id: &str, shard: Option<(u32, u32)>) -> bool {
 pub struct BatchResult {
     /// One line per computed account, in book order.
     pub accruals: Vec<AccrualLine>,
-    /// Totals by currency, in code order.
+    /// Totals by currency and side, in code order, asset before liability.
     pub totals: Vec<CurrencyTotal>,
     /// Journal lines.
     pub journal: Vec<JournalLine>,
@@ -109,10 +114,18 @@ pub struct BatchResult {
     pub tie_out: Option<Vec<TieOutLine>>,
     /// Problems the engine found (book problems stay with their books).
     pub problems: Vec<Problem>,
-    /// Accounts in the books, counting those the reader left out.
+    /// Accounts in the books (of the shard), counting those the reader
+    /// left out: computed + left out + failed.
     pub accounts_read: usize,
     /// Accounts computed.
     pub accounts_computed: usize,
+    /// Accounts the reader left out by errors in the books.
+    pub accounts_left_out: usize,
+    /// Accounts the computation stopped on.
+    pub accounts_failed: usize,
+    /// Every account left out or failed, with its error, in the order of
+    /// the Problems sheet (then by id).
+    pub left_out: Vec<LeftOutLine>,
 }
 
 /// Accounts accrued together before their rows are added up: enough for
@@ -138,10 +151,12 @@ struct Outcome {
 type Work<'b> = (usize, &'b Book, &'b Rows<'b>, &'b AccountEntry);
 
 /// A book's rows found once per book rather than per account: statement
-/// rows by account (each account's in sheet order), the Booked row of each
-/// account dated the day before the window, and the book's entity.
+/// rows and unreadable statement rows by account (each account's in sheet
+/// order), the Booked rows of each account dated the day before the window
+/// and the cut-off, and the book's entity.
 struct Rows<'b> {
     statements: HashMap<&'b str, Vec<&'b StatementRow>>,
+    unreadable: HashMap<&'b str, Vec<&'b UnreadableStatement>>,
     booked_opening: HashMap<&'b str, &'b BookedRow>,
     booked_close: HashMap<&'b str, &'b BookedRow>,
     entity: &'b str,
@@ -153,6 +168,10 @@ impl<'b> Rows<'b> {
         for s in &book.statements {
             statements.entry(s.account.as_str()).or_default().push(s);
         }
+        let mut unreadable: HashMap<&str, Vec<&UnreadableStatement>> = HashMap::new();
+        for u in &book.unreadable_statements {
+            unreadable.entry(u.account.as_str()).or_default().push(u);
+        }
         let on = |day: Option<NaiveDate>| -> HashMap<&'b str, &'b BookedRow> {
             book.booked
                 .iter()
@@ -162,6 +181,7 @@ impl<'b> Rows<'b> {
         };
         Rows {
             statements,
+            unreadable,
             booked_opening: on(window_start.pred_opt()),
             booked_close: on(Some(cutoff)),
             entity,
@@ -196,12 +216,10 @@ pub fn run_books(
         })
         .collect();
     let work = work_in_book_order(books, &rows, settings.shard);
-    let accounts_read = work.len()
-        + books
-            .iter()
-            .map(|b| left_out_accounts(b, settings.shard))
-            .sum::<usize>();
-    let mut sums = Sums::new(settings, accounts_read, work.len());
+    let left_out = left_out_by_books(books, settings.shard);
+    let mut sums = Sums::new(settings, work.len() + left_out.len(), work.len());
+    sums.result.accounts_left_out = left_out.len();
+    sums.result.left_out = left_out;
     // Accounts go through in parts of book order: each part accrued in
     // parallel, then added to the rows and sums, so that only one part's
     // outcomes (day rows, postings, notes) are held at a time.
@@ -210,11 +228,60 @@ pub fn run_books(
         for (&(_, _, _, entry), outcome) in part.iter().zip(outcomes) {
             match outcome {
                 Ok(o) => sums.add(entry, o),
-                Err(p) => sums.result.problems.push(*p),
+                Err(p) => sums.failed(&entry.terms.id, *p),
             }
         }
     }
+    let names: Vec<String> = books.iter().map(|b| b.path.display().to_string()).collect();
+    sort_left_out(&mut sums.result.left_out, &names);
     sums.finish(books)
+}
+
+/// The accounts each book's reader left out (of the shard, if any), each
+/// with the error that kept it out.
+fn left_out_by_books(books: &[Book], shard: Option<(u32, u32)>) -> Vec<LeftOutLine> {
+    books
+        .iter()
+        .flat_map(|b| {
+            b.left_out
+                .iter()
+                .filter(move |l| in_shard(&l.account, shard))
+                .map(move |l| match b.left_out_error(l) {
+                    Some(p) => left_out_line(&l.account, p),
+                    // Never the case for a book the reader returned, but an
+                    // account left out is counted and named all the same.
+                    None => LeftOutLine {
+                        account: l.account.clone(),
+                        position: Position {
+                            book: b.path.display().to_string(),
+                            ..Position::default()
+                        },
+                        error: "left out by an error of the book".to_string(),
+                    },
+                })
+        })
+        .collect()
+}
+
+/// An account left out, with the words of the error that kept it out: what
+/// the error only follows from (a sheet missing or unreadable), else what
+/// it found, expected and how to fix it.
+pub fn left_out_line(account: &str, p: &Problem) -> LeftOutLine {
+    LeftOutLine {
+        account: account.to_string(),
+        position: p.position.clone(),
+        error: match &p.follows {
+            Some(f) => format!("left out because {}", f.because()),
+            None => p.words(),
+        },
+    }
+}
+
+/// Accounts left out in the order of the Problems sheet (book, sheet, row,
+/// column of their error), then by id: the order one run and a merge of its
+/// shards both give.
+pub fn sort_left_out(lines: &mut [LeftOutLine], books: &[String]) {
+    lines.sort_by_cached_key(|l| (report_order(&l.position, books), l.account.clone()));
 }
 
 /// Every account of the books (of the shard, if any), in book order.
@@ -312,6 +379,13 @@ impl<'s> Sums<'s> {
         self.result.accounts_computed += 1;
     }
 
+    /// Counts an account the computation stopped on, with its problem.
+    fn failed(&mut self, account: &str, p: Problem) {
+        self.result.left_out.push(left_out_line(account, &p));
+        self.result.problems.push(p);
+        self.result.accounts_failed += 1;
+    }
+
     fn finish(self, books: &[Book]) -> BatchResult {
         let settings = self.settings;
         let tb: Vec<&TrialBalanceRow> = books.iter().flat_map(|b| &b.trial_balance).collect();
@@ -359,22 +433,6 @@ impl<'s> Sums<'s> {
     }
 }
 
-/// Accounts the reader kept out because of errors (each error names its account).
-fn left_out_accounts(book: &Book, shard: Option<(u32, u32)>) -> usize {
-    let mut ids: Vec<&str> = book
-        .problems
-        .iter()
-        .filter(|p| {
-            p.severity == Severity::Error && p.position.sheet.eq_ignore_ascii_case("accounts")
-        })
-        .filter_map(|p| p.account.as_deref())
-        .collect();
-    ids.sort_unstable();
-    ids.dedup();
-    ids.retain(|id| in_shard(id, shard) && !book.accounts.iter().any(|a| a.terms.id == *id));
-    ids.len()
-}
-
 /// One account through the pipeline, turned into the batch's rows.
 fn accrue_one(
     book: &Book,
@@ -384,17 +442,26 @@ fn accrue_one(
 ) -> Result<Outcome, Box<Problem>> {
     let id = entry.terms.id.as_str();
     let statements = rows.statements.get(id).map_or(&[][..], Vec::as_slice);
+    let unreadable = rows.unreadable.get(id).map_or(&[][..], Vec::as_slice);
     let account = BookAccount::from_book(book, entry, statements)
         .with_booked_opening(rows.booked_opening.get(id).copied())
-        .with_booked_close(rows.booked_close.get(id).copied());
+        .with_booked_close(rows.booked_close.get(id).copied())
+        .with_unreadable(unreadable);
     let run = run_account(&account, options).map_err(|f| Box::new(f.problem))?;
-    Ok(outcome(entry, rows.entity, run, options))
+    Ok(outcome(entry, rows.entity, run, unreadable, options))
 }
 
 /// The rows of an account computed: its accrual line, the postings of the
 /// window for the journal, its day lines when kept, its reconciliation
-/// lines and its notes.
-fn outcome(entry: &AccountEntry, entity: &str, run: AccountRun, options: &Options) -> Outcome {
+/// lines (a row for each statement row that could not be read last) and
+/// its notes.
+fn outcome(
+    entry: &AccountEntry,
+    entity: &str,
+    run: AccountRun,
+    unreadable: &[&UnreadableStatement],
+    options: &Options,
+) -> Outcome {
     let t = &entry.terms;
     let r = run.result;
     let accrued_check = run.accrued_check.as_ref().map(|c| {
@@ -402,15 +469,27 @@ fn outcome(entry: &AccountEntry, entity: &str, run: AccountRun, options: &Option
         line.likely_cause = line.likely_cause.replace("posted amount", "booked amount");
         line
     });
+    // A posting period whose statement row could not be read is not "not
+    // posted": the unreadable row's own line stands for it.
+    let covered = |c: &crate::pipeline::CheckedRow| {
+        c.row.status == Status::NotPosted
+            && unreadable.iter().any(|u| u.covers(c.row.start, c.row.end))
+    };
     let reconciliation = run
         .rows
         .into_iter()
+        .filter(|c| !covered(c))
         .map(|c| {
             (
                 c.row.status,
                 reconciliation_line(entry, &c.row, c.likely_cause),
             )
         })
+        .chain(
+            unreadable
+                .iter()
+                .map(|u| (Status::StatementUnreadable, unreadable_line(entry, u))),
+        )
         .collect();
     let mode = options.settlement_lines;
     let settlements = run
@@ -479,6 +558,42 @@ fn outcome(entry: &AccountEntry, entity: &str, run: AccountRun, options: &Option
     }
 }
 
+/// The Reconciliation line of a statement row that could not be read: its
+/// period when its dates could be read, no figures, and the error in the
+/// likely cause (behaviour.md, Completeness and presentation).
+fn unreadable_line(entry: &AccountEntry, u: &UnreadableStatement) -> ReconciliationLine {
+    let t = &entry.terms;
+    ReconciliationLine {
+        account: t.id.clone(),
+        currency: currency_word(&t.currency),
+        minor_units: t.minor_units,
+        period_start: u.period.map(|(s, _)| s),
+        period_end: u.period.map(|(_, e)| e),
+        days: 0,
+        balance_years: Decimal::ZERO,
+        expected: Decimal::ZERO,
+        posted: Decimal::ZERO,
+        variance: Decimal::ZERO,
+        variance_bp: None,
+        status: Status::StatementUnreadable,
+        likely_cause: format!(
+            "the statement row at {} could not be read, so this period is not reconciled: {}",
+            row_named(&u.error.position),
+            u.error.words()
+        ),
+    }
+}
+
+/// A row of a sheet as a reader finds it: `Statements!C7`, or
+/// `statements.csv, line 7, column posted_interest`.
+fn row_named(p: &Position) -> String {
+    if p.csv {
+        format!("{}, {}", p.sheet_shown(), p.cell_shown())
+    } else {
+        format!("{}!{}", p.sheet, p.cell)
+    }
+}
+
 fn reconciliation_line(
     entry: &AccountEntry,
     row: &Reconciled,
@@ -495,13 +610,15 @@ fn reconciliation_line(
         Status::OverPosted | Status::UnderPosted => likely_cause
             .map(|c| plausible::sheet_words(&c, &t.id))
             .unwrap_or_default(),
+        // Made by `unreadable_line`, never by the reconciliation.
+        Status::StatementUnreadable => "the statement row could not be read".to_string(),
     };
     ReconciliationLine {
         account: t.id.clone(),
         currency: currency_word(&t.currency),
         minor_units: t.minor_units,
-        period_start: row.start,
-        period_end: row.end,
+        period_start: Some(row.start),
+        period_end: Some(row.end),
         days: row.days,
         balance_years: row.balance_years,
         expected: row.expected,

@@ -3,12 +3,13 @@
 
 use std::collections::BTreeMap;
 
+use super::totals::largest_variances;
 use super::*;
 use crate::book::GlCodes;
 use crate::conventions::daycount::Basis;
 use crate::engine::rates::RateSchedule;
 use crate::engine::{AccountTerms, Movement, Side};
-use crate::problem::Position;
+use crate::problem::{Position, Severity};
 use crate::report::model::TieStatus;
 
 fn d(s: &str) -> NaiveDate {
@@ -140,25 +141,43 @@ fn results_do_not_depend_on_the_thread_count() {
     assert_eq!(ids, sorted);
 }
 
-/// Each currency's totals are the sums of its accounts' rounded amounts, and
-/// adding the accrual lines one by one into [`Totals`] gives the batch's.
+/// Each currency and side's totals are the sums of its accounts' rounded
+/// amounts (Completeness and presentation: totals by currency and side),
+/// and adding the accrual lines one by one into [`Totals`] gives the batch's.
 #[test]
 fn totals_are_the_sum_of_the_accounts() {
     let r = run_books(&[book(30)], &settings(), &|| {});
-    assert_eq!(r.totals.len(), 3);
+    // Three currencies, each with deposits (liability) and loans (asset).
+    let keys: Vec<(&str, &str)> = r
+        .totals
+        .iter()
+        .map(|t| (t.currency.as_str(), t.side.as_str()))
+        .collect();
+    assert_eq!(
+        keys,
+        [
+            ("JPY", "asset"),
+            ("JPY", "liability"),
+            ("KWD", "asset"),
+            ("KWD", "liability"),
+            ("USD", "asset"),
+            ("USD", "liability")
+        ]
+    );
     for t in &r.totals {
         let lines: Vec<&AccrualLine> = r
             .accruals
             .iter()
-            .filter(|a| a.currency == t.currency)
+            .filter(|a| a.currency == t.currency && a.side == t.side)
             .collect();
         let sum = |f: fn(&AccrualLine) -> Decimal| lines.iter().map(|a| f(a)).sum::<Decimal>();
-        assert_eq!(t.accounts, 10);
+        assert_eq!(t.accounts, 5);
         assert_eq!(t.accounts, lines.len());
         assert_eq!(t.balance_at_cutoff, sum(|a| a.balance_at_cutoff));
         assert_eq!(t.accrued_at_cutoff, sum(|a| a.accrued_at_cutoff));
         assert_eq!(t.posted_in_window, sum(|a| a.posted_in_window));
         assert_eq!(t.interest_for_window, sum(|a| a.interest_for_window));
+        assert_eq!(t.prior_period, sum(|a| a.ledger.prior_period));
         assert!(lines.iter().all(|a| a.minor_units == t.minor_units));
     }
     let mut by_line = Totals::default();
@@ -174,6 +193,17 @@ fn an_account_without_rates_is_a_problem_on_its_row() {
     b.accounts[1].rate_ref = "MISSING".into();
     let r = run_books(&[b], &settings(), &|| {});
     assert_eq!(r.accounts_computed, 1);
+    // Completeness and presentation: read = computed + left out + failed,
+    // and the account the computation stopped on is named with its error.
+    assert_eq!(
+        (r.accounts_read, r.accounts_left_out, r.accounts_failed),
+        (2, 0, 1)
+    );
+    assert_eq!(r.left_out.len(), 1);
+    assert_eq!(r.left_out[0].account, "B-0001");
+    assert!(r.left_out[0]
+        .error
+        .contains("no Rates rows for rate_ref 'MISSING'"));
     assert_eq!(r.problems.len(), 1);
     assert_eq!(r.problems[0].position.cell, "A2");
     assert!(
@@ -258,6 +288,154 @@ fn book_with_statements(count: usize) -> Book {
     b
 }
 
+/// `b` with accounts the reader left out: `count` more ids, each with an
+/// error on its own Accounts row (in sheet order, after the kept ones).
+fn with_left_out(mut b: Book, count: usize) -> Book {
+    for i in 0..count {
+        let id = format!("L-{i:03}");
+        b.left_out.push(crate::book::LeftOut {
+            account: id.clone(),
+            problem: b.problems.len(),
+        });
+        b.problems.push(Problem {
+            severity: Severity::Error,
+            position: Position {
+                book: "test.xlsx".into(),
+                sheet: "Accounts".into(),
+                cell: format!("E{}", 1000 + i),
+                ..Default::default()
+            },
+            account: Some(id),
+            found: "31/02/2026".into(),
+            expected: "a date".into(),
+            fix: "correct the date".into(),
+            follows: None,
+        });
+    }
+    b
+}
+
+/// Completeness and presentation: an account the reader left out is read
+/// and not computed, named with its error; shards count only their own.
+#[test]
+fn accounts_left_out_by_the_books_are_counted_and_named() {
+    let books = [with_left_out(book(4), 3)];
+    let r = run_books(&books, &settings(), &|| {});
+    assert_eq!(
+        (
+            r.accounts_read,
+            r.accounts_computed,
+            r.accounts_left_out,
+            r.accounts_failed
+        ),
+        (7, 4, 3, 0)
+    );
+    let named: Vec<String> = r.left_out.iter().map(ToString::to_string).collect();
+    assert_eq!(
+        named[0],
+        "L-000: test.xlsx Accounts!E1000: found '31/02/2026'; expected a date; correct the date"
+    );
+    assert_eq!(named.len(), 3);
+    let mut read = 0;
+    let mut left = Vec::new();
+    for k in 1..=2 {
+        let s = BatchSettings {
+            shard: Some((k, 2)),
+            ..settings()
+        };
+        let part = run_books(&books, &s, &|| {});
+        assert_eq!(
+            part.accounts_read,
+            part.accounts_computed + part.accounts_left_out + part.accounts_failed
+        );
+        assert!(part.left_out.iter().all(|l| shard_of(&l.account, 2) == k));
+        read += part.accounts_read;
+        left.extend(part.left_out);
+    }
+    assert_eq!(read, 7);
+    assert_eq!(left.len(), 3);
+}
+
+/// Completeness and presentation: an account whose statement row alone
+/// could not be read is computed; its reconciliation has a row saying so,
+/// an exception without figures, which takes the place of the "not posted"
+/// row of the period it was for.
+#[test]
+fn an_unreadable_statement_row_is_an_exception_of_a_computed_account() {
+    let mut b = book(1);
+    b.accounts[0].terms.basis = Basis::Act360;
+    b.movements.clear();
+    let error = Problem {
+        severity: Severity::Error,
+        position: Position {
+            book: "test.xlsx".into(),
+            sheet: "Statements".into(),
+            cell: "D3".into(),
+            ..Default::default()
+        },
+        account: Some("B-0000".into()),
+        found: "3.4O".into(),
+        expected: "a number".into(),
+        fix: "correct the amount".into(),
+        follows: None,
+    };
+    b.statements = vec![StatementRow {
+        account: "B-0000".into(),
+        period_start: d("2026-10-01"),
+        period_end: d("2026-10-31"),
+        posted: n("3.66"),
+        reference: None,
+        posting_date: None,
+        position: error.position.clone(),
+    }];
+    b.unreadable_statements = vec![UnreadableStatement {
+        account: "B-0000".into(),
+        period: Some((d("2026-11-01"), d("2026-11-30"))),
+        error: error.clone(),
+    }];
+    b.problems.push(error);
+    let r = run_books(&[b.clone()], &settings(), &|| {});
+    assert_eq!(r.accounts_computed, 1);
+    let statuses: Vec<Status> = r.reconciliation.iter().map(|l| l.status).collect();
+    // October agrees; November's posting is not "not posted": its row is unreadable.
+    assert_eq!(statuses, [Status::Agrees, Status::StatementUnreadable]);
+    let line = &r.reconciliation[1];
+    assert_eq!(
+        (line.period_start, line.period_end),
+        (Some(d("2026-11-01")), Some(d("2026-11-30")))
+    );
+    assert_eq!(
+        (line.expected, line.posted, line.variance, line.variance_bp),
+        (Decimal::ZERO, Decimal::ZERO, Decimal::ZERO, None)
+    );
+    assert_eq!(
+        line.likely_cause,
+        "the statement row at Statements!D3 could not be read, so this period is not reconciled: \
+         found '3.4O'; expected a number; correct the amount"
+    );
+    assert!(line.status.outside_tolerance());
+    // Counted by status, never ranked by money.
+    assert_eq!(
+        r.status_counts.last().map(|c| c.status),
+        Some(Status::StatementUnreadable)
+    );
+    assert!(largest_variances(&r.reconciliation, 5)
+        .iter()
+        .all(|&i| i != 1));
+    // A row whose dates could not be read does not stand for a period.
+    b.unreadable_statements[0].period = None;
+    let r = run_books(&[b], &settings(), &|| {});
+    let statuses: Vec<Status> = r.reconciliation.iter().map(|l| l.status).collect();
+    assert_eq!(
+        statuses,
+        [
+            Status::Agrees,
+            Status::NotPosted,
+            Status::StatementUnreadable
+        ]
+    );
+}
+
 /// What shard `k` of `n` (a whole run for `None`) gives back of a batch,
 /// from the workbook `file`.
 fn read_back(file: &str, shard: Option<(u32, u32)>, r: BatchResult) -> split::Shard {
@@ -289,8 +467,10 @@ fn read_back(file: &str, shard: Option<(u32, u32)>, r: BatchResult) -> split::Sh
             window_start: d("2026-11-01"),
             accounts_read: r.accounts_read,
             accounts_computed: r.accounts_computed,
-            accounts_failed: r.accounts_read - r.accounts_computed,
+            accounts_left_out: r.accounts_left_out,
+            accounts_failed: r.accounts_failed,
         },
+        left_out: r.left_out,
         accruals: r.accruals,
         reconciliation: r.reconciliation,
         accrued_check: r.accrued_check,
@@ -314,12 +494,15 @@ fn shard_of_books(books: &[Book], file: &str, k: u32, n: u32) -> split::Shard {
     read_back(file, Some((k, n)), run_books(books, &s, &|| {}))
 }
 
-/// Shards of a run, merged in any order, give the single run's rows, totals,
-/// counts by status and journal.
+/// Shards of a run, merged in any order, give the single run's rows, totals
+/// (by currency and side), counts by status, journal, account counts and
+/// accounts left out.
 #[test]
 fn shards_merged_equal_the_single_run() {
-    let books = [book_with_statements(120)];
+    let books = [with_left_out(book_with_statements(120), 14)];
     let single = run_books(&books, &settings(), &|| {});
+    // Deposits and loans of each currency stay apart.
+    assert_eq!(single.totals.len(), 6);
     assert!(single.status_counts.len() > 1, "{:?}", single.status_counts);
     let mut parts: Vec<_> = (1..=3)
         .map(|k| shard_of_books(&books, &format!("s{k}.xlsx"), k, 3))
@@ -349,6 +532,10 @@ fn shards_merged_equal_the_single_run() {
     assert_eq!(merged.journal, single.journal);
     assert_eq!(merged.facts.accounts_read, single.accounts_read);
     assert_eq!(merged.facts.accounts_computed, single.accounts_computed);
+    assert_eq!(merged.facts.accounts_left_out, single.accounts_left_out);
+    assert_eq!(merged.facts.accounts_failed, single.accounts_failed);
+    assert_eq!(single.accounts_read, 134);
+    assert_eq!(merged.left_out, single.left_out);
     assert_eq!(merged.facts.run_time, time);
     assert!(merged.facts.settings.iter().all(|s| s.name != "shard"));
 }

@@ -1,12 +1,14 @@
-//! The Summary's sums: totals by currency and rows by status, added one line
-//! at a time; and its choice of the largest variances in money.
+//! The Summary's sums: totals by currency and side and rows by status,
+//! added one line at a time; and its choice of the largest variances in
+//! money.
 //!
 //! The batch adds each account's line as it is computed; a merge of shard
 //! workbooks adds the lines it read back. Both go through these two types,
 //! so a merged run's totals are the single run's to the last digit. They
 //! only add what they are given: they never round, convert or skip a line,
-//! and never look at anything but the line's currency, its four amounts and
-//! the row's status.
+//! never add a deposit to a loan (behaviour.md, Completeness and
+//! presentation), and never look at anything but the line's currency, side,
+//! its amounts and the row's status.
 
 use std::collections::BTreeMap;
 
@@ -15,21 +17,22 @@ use rust_decimal::Decimal;
 use crate::engine::reconcile::Status;
 use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, StatusCount, Word};
 
-/// Totals by currency: accounts, balance at cut-off, accrued at cut-off,
-/// posted in window and interest for window, each the sum of the accounts'
-/// rounded amounts.
+/// Totals by currency and side: accounts, balance at cut-off, accrued at
+/// cut-off, posted in window, interest for window (expense on the liability
+/// side, income on the asset side) and prior-period adjustment, each the sum
+/// of the accounts' rounded amounts.
 ///
 /// ```
 /// use ledgerate::batch::totals::Totals;
 /// use ledgerate::report::model::AccrualLine;
 /// use rust_decimal::Decimal;
 ///
-/// let line = |ccy: &'static str, accrued: i64| AccrualLine {
-///     account: format!("{ccy}-{accrued}"),
+/// let line = |ccy: &'static str, side: &'static str, accrued: i64| AccrualLine {
+///     account: format!("{ccy}-{side}-{accrued}"),
 ///     name: String::new(),
 ///     currency: ccy.into(),
 ///     minor_units: 2,
-///     side: "liability".into(),
+///     side: side.into(),
 ///     day_count: "ACT/365F".into(),
 ///     compounding: "simple".into(),
 ///     balance_at_cutoff: Decimal::new(100_000, 2),
@@ -40,41 +43,60 @@ use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, Statu
 ///     ledger: Default::default(),
 /// };
 /// let mut totals = Totals::default();
-/// totals.add(&line("USD", 125));
-/// totals.add(&line("EUR", 300));
-/// totals.add(&line("USD", 1));
+/// totals.add(&line("USD", "liability", 125));
+/// totals.add(&line("EUR", "liability", 300));
+/// totals.add(&line("USD", "liability", 1));
+/// totals.add(&line("USD", "asset", 40));
 /// let rows = totals.rows();
-/// // In currency-code order.
-/// assert_eq!(rows[0].currency, "EUR");
-/// assert_eq!((rows[1].currency.as_str(), rows[1].accounts), ("USD", 2));
-/// assert_eq!(rows[1].accrued_at_cutoff, Decimal::new(126, 2));
-/// assert_eq!(rows[1].balance_at_cutoff, Decimal::new(200_000, 2));
+/// // In currency-code order, asset before liability: the USD loan is not
+/// // added to the USD deposits.
+/// let keys: Vec<(&str, &str, usize)> =
+///     rows.iter().map(|t| (t.currency.as_str(), t.side.as_str(), t.accounts)).collect();
+/// assert_eq!(keys, [("EUR", "liability", 1), ("USD", "asset", 1), ("USD", "liability", 2)]);
+/// assert_eq!(rows[2].accrued_at_cutoff, Decimal::new(126, 2));
+/// assert_eq!(rows[2].balance_at_cutoff, Decimal::new(200_000, 2));
+/// assert_eq!(rows[1].interest_for_window, Decimal::new(40, 2));
 /// ```
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
 pub struct Totals {
-    by_currency: BTreeMap<Word, CurrencyTotal>,
+    by_key: BTreeMap<(Word, u8, Word), CurrencyTotal>,
+}
+
+/// Where a side's totals go within a currency: asset, then liability (the
+/// order of a balance sheet), then any other word read back.
+fn side_rank(side: &str) -> u8 {
+    match side {
+        "asset" => 0,
+        "liability" => 1,
+        _ => 2,
+    }
 }
 
 impl Totals {
-    /// Adds one account's line to its currency's totals.
+    /// Adds one account's line to its currency and side's totals.
     pub fn add(&mut self, line: &AccrualLine) {
-        let t = self
-            .by_currency
-            .entry(line.currency.clone())
-            .or_insert_with(|| CurrencyTotal {
-                currency: line.currency.to_string(),
-                minor_units: line.minor_units,
-                accounts: 0,
-                balance_at_cutoff: Decimal::ZERO,
-                accrued_at_cutoff: Decimal::ZERO,
-                posted_in_window: Decimal::ZERO,
-                interest_for_window: Decimal::ZERO,
-            });
+        let key = (
+            line.currency.clone(),
+            side_rank(&line.side),
+            line.side.clone(),
+        );
+        let t = self.by_key.entry(key).or_insert_with(|| CurrencyTotal {
+            currency: line.currency.to_string(),
+            side: line.side.to_string(),
+            minor_units: line.minor_units,
+            accounts: 0,
+            balance_at_cutoff: Decimal::ZERO,
+            accrued_at_cutoff: Decimal::ZERO,
+            posted_in_window: Decimal::ZERO,
+            interest_for_window: Decimal::ZERO,
+            prior_period: Decimal::ZERO,
+        });
         t.accounts += 1;
         t.balance_at_cutoff += line.balance_at_cutoff;
         t.accrued_at_cutoff += line.accrued_at_cutoff;
         t.posted_in_window += line.posted_in_window;
         t.interest_for_window += line.interest_for_window;
+        t.prior_period += line.ledger.prior_period;
     }
 
     /// The totals of every line of `lines`.
@@ -86,9 +108,9 @@ impl Totals {
         totals
     }
 
-    /// One row per currency, in code order.
+    /// One row per currency and side, in code order, asset before liability.
     pub fn rows(&self) -> Vec<CurrencyTotal> {
-        self.by_currency.values().cloned().collect()
+        self.by_key.values().cloned().collect()
     }
 }
 
@@ -136,7 +158,9 @@ pub const LARGEST_PER_CURRENCY: usize = 5;
 
 /// The Summary's largest variances in money: for each currency (in code
 /// order), up to `per_currency` rows outside tolerance, the largest
-/// |variance| first and equal ones in row order. Indices into `rows`.
+/// |variance| first and equal ones in row order. Indices into `rows`. A row
+/// whose statement could not be read has no variance to rank and is left
+/// out (it is counted by status and listed on Reconciliation).
 ///
 /// A variance in basis points makes a small miss on a small balance look
 /// large; this table ranks the misses in money, within one currency, where
@@ -153,8 +177,8 @@ pub const LARGEST_PER_CURRENCY: usize = 5;
 ///     account: format!("{ccy}{variance}"),
 ///     currency: ccy.into(),
 ///     minor_units: 2,
-///     period_start: day,
-///     period_end: day,
+///     period_start: Some(day),
+///     period_end: Some(day),
 ///     days: 1,
 ///     balance_years: Decimal::ONE,
 ///     expected: Decimal::ZERO,
@@ -169,15 +193,17 @@ pub const LARGEST_PER_CURRENCY: usize = 5;
 ///     row("GBP", -869, Status::UnderPosted),
 ///     row("USD", -4000, Status::UnderPosted),
 ///     row("USD", 1, Status::WithinTolerance),
+///     row("USD", 0, Status::StatementUnreadable),
 /// ];
-/// // GBP before USD; -40.00 before 25.00; the row within tolerance is left out.
+/// // GBP before USD; -40.00 before 25.00; the row within tolerance and the
+/// // unreadable statement row are left out.
 /// assert_eq!(largest_variances(&rows, 5), [1, 2, 0]);
 /// assert_eq!(largest_variances(&rows, 1), [1, 2]);
 /// ```
 pub fn largest_variances(rows: &[ReconciliationLine], per_currency: usize) -> Vec<usize> {
     let mut by_currency: BTreeMap<&str, Vec<usize>> = BTreeMap::new();
     for (i, r) in rows.iter().enumerate() {
-        if r.status.outside_tolerance() {
+        if r.status.outside_tolerance() && r.status != Status::StatementUnreadable {
             by_currency.entry(&r.currency).or_default().push(i);
         }
     }

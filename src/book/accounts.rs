@@ -124,6 +124,11 @@ impl Known {
         self.by_id.get(id)
     }
 
+    /// The place of account `id` among the sheet's ids (its first row).
+    pub(crate) fn place(&self, id: &str) -> Option<u32> {
+        self.by_id.get(id).map(|l| l.seq)
+    }
+
     /// Ids by folded id; of ids that fold alike, the first in the sheet.
     fn folded(&self) -> &HashMap<String, String> {
         self.folded.get_or_init(|| {

@@ -40,6 +40,7 @@ mod workbook;
 mod xlsx;
 
 pub use model::{
-    AccountEntry, Book, BookedRow, GlCodes, SettingRow, StatementRow, TrialBalanceRow,
+    AccountEntry, Book, BookedRow, GlCodes, LeftOut, SettingRow, StatementRow, TrialBalanceRow,
+    UnreadableStatement,
 };
 pub use read::{check_unique_ids, contract_violations, read_book, ReadOptions};

@@ -65,6 +65,40 @@ pub struct StatementRow {
     pub position: Position,
 }
 
+/// An account of the Accounts sheet that the reader kept out of `accounts`,
+/// and the error that kept it out (behaviour.md, Completeness and
+/// presentation: no account vanishes).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct LeftOut {
+    /// The account id.
+    pub account: String,
+    /// The index in the book's `problems` of the first error naming it: on
+    /// its Accounts row (a Rates schedule it needs is named there), on a
+    /// Movements row, or the sheet it needs that cannot be read.
+    pub problem: usize,
+}
+
+/// A Statements row of a kept account that could not be read (or used):
+/// the account is still computed, and its reconciliation gets a row saying
+/// the statement row could not be read.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct UnreadableStatement {
+    /// The account id.
+    pub account: String,
+    /// The row's period, when both its dates could be read as one.
+    pub period: Option<(NaiveDate, NaiveDate)>,
+    /// The first error found on the row (its position names the row).
+    pub error: Problem,
+}
+
+impl UnreadableStatement {
+    /// Whether the row was for the period `start..=end`: a posting period
+    /// it covers is not "not posted", the row could not be read.
+    pub fn covers(&self, start: NaiveDate, end: NaiveDate) -> bool {
+        self.period == Some((start, end))
+    }
+}
+
 /// One row of the Booked sheet: the open item the institution's books held
 /// for an account at the end of a day.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -109,7 +143,7 @@ pub struct SettingRow {
 
 /// A book that was read: every account that could be typed, plus the
 /// problems found. Accounts with an error problem are left out of
-/// `accounts` (their problems name them).
+/// `accounts` and listed in `left_out` (their problems name them).
 #[derive(Debug, Clone, Default)]
 pub struct Book {
     /// The path given.
@@ -126,6 +160,8 @@ pub struct Book {
     pub movements: BTreeMap<String, Vec<Movement>>,
     /// Statement rows in sheet order.
     pub statements: Vec<StatementRow>,
+    /// Statement rows of kept accounts that could not be read, in sheet order.
+    pub unreadable_statements: Vec<UnreadableStatement>,
     /// Settings rows in sheet order.
     pub settings: Vec<SettingRow>,
     /// Booked rows in sheet order (at most one per account and date).
@@ -140,12 +176,22 @@ pub struct Book {
     pub sheets: BTreeMap<SheetKind, Position>,
     /// Everything found wrong or worth saying.
     pub problems: Vec<Problem>,
+    /// Accounts of the Accounts sheet kept out of `accounts` by an error, in
+    /// sheet order (then those a later book holds again, see
+    /// [`crate::book::check_unique_ids`]). Every account id of the sheet is
+    /// in `accounts` or here, once.
+    pub left_out: Vec<LeftOut>,
 }
 
 impl Book {
     /// Whether any problem is an error.
     pub fn has_errors(&self) -> bool {
         self.problems.iter().any(|p| p.severity == Severity::Error)
+    }
+
+    /// The error that kept `left` out.
+    pub fn left_out_error(&self, left: &LeftOut) -> Option<&Problem> {
+        self.problems.get(left.problem)
     }
 
     /// Whether the file itself could not be read as a book (not a workbook,

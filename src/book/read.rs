@@ -3,7 +3,10 @@
 //!
 //! [`read_book`] never fails: whatever is wrong with the file or its cells
 //! is a [`Problem`] in the book, and an account with an error is kept out of
-//! `accounts` with its rows of other sheets. The input is only read.
+//! `accounts` with its rows of other sheets, and listed in `left_out` with
+//! that error: no account of the Accounts sheet vanishes. A statement row
+//! that cannot be read does not keep its account out (it is listed in
+//! `unreadable_statements`). The input is only read.
 
 use std::collections::{BTreeSet, HashMap, HashSet};
 use std::path::Path;
@@ -13,7 +16,7 @@ use super::booked::{self, Booked};
 use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
-use super::model::{AccountEntry, Book};
+use super::model::{AccountEntry, Book, LeftOut};
 use super::movements::Movements;
 use super::open::load;
 use super::rates::{self, Rates};
@@ -86,6 +89,12 @@ fn mark_csv(book: &mut Book) {
     }
     for s in &mut book.statements {
         s.position.csv = true;
+    }
+    for u in &mut book.unreadable_statements {
+        u.error.position.csv = true;
+        if let Some(f) = &mut u.error.follows {
+            f.cause.csv = true;
+        }
     }
     for s in &mut book.settings {
         s.position.csv = true;
@@ -171,8 +180,8 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         book.movements = m.by_account;
     }
     if let Some(st) = take_typed(stated, &entries, problems, &mut rejected) {
-        rejected.extend(st.spoiled);
         book.statements = st.rows;
+        book.unreadable_statements = st.unreadable;
     }
     let booked_sheet = sheet(SheetKind::Booked).map(|s| {
         let mut met = Vec::new();
@@ -188,15 +197,49 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         .unwrap_or_default();
 
     entries.retain(|e| !rejected.contains(&e.terms.id));
+    book.left_out = left_out(&rejected, &found.known, problems);
     let kept: HashSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
     book.movements.retain(|id, _| kept.contains(id.as_str()));
     book.statements
         .retain(|s| kept.contains(s.account.as_str()));
     book.booked.retain(|b| kept.contains(b.account.as_str()));
+    book.unreadable_statements
+        .retain(|s| kept.contains(s.account.as_str()));
     fixing_holiday_warnings(ctx, &entries, &rates, &fixings, problems);
     book.accounts = entries;
     keep_tables(&mut book, rates, fixings, settings);
     book
+}
+
+/// The accounts of the Accounts sheet in `rejected`, in sheet order, each
+/// with the first error that names it (an id only other sheets name is no
+/// account of the book).
+fn left_out(rejected: &BTreeSet<String>, known: &Known, problems: &[Problem]) -> Vec<LeftOut> {
+    let mut first: HashMap<&str, usize> = HashMap::new();
+    for (i, p) in problems.iter().enumerate() {
+        if p.severity != Severity::Error {
+            continue;
+        }
+        if let Some(id) = p.account.as_deref().filter(|id| rejected.contains(*id)) {
+            first.entry(id).or_insert(i);
+        }
+    }
+    let mut out: Vec<(u32, LeftOut)> = rejected
+        .iter()
+        .filter_map(|id| {
+            let place = known.place(id)?;
+            let problem = *first.get(id.as_str())?;
+            Some((
+                place,
+                LeftOut {
+                    account: id.clone(),
+                    problem,
+                },
+            ))
+        })
+        .collect();
+    out.sort_by_key(|(place, _)| *place);
+    out.into_iter().map(|(_, l)| l).collect()
 }
 
 /// The book's rate schedules, fixings and settings, as read.
@@ -347,10 +390,11 @@ fn row_of(cell: &str) -> Option<&str> {
 /// What [`read_book`] promises about any book it returns, checked: every
 /// problem names the book it was given; an account that an error names is
 /// not in `accounts`, except for the error on a second row with its id (the
-/// first row stands); movements, statement rows and Booked rows belong to
-/// kept accounts.
-/// Returns one line per broken promise, so fuzzing and tests can assert
-/// the list is empty.
+/// first row stands) and the error on a statement row listed as unreadable;
+/// every account left out is not in `accounts`, once, with an error that
+/// names it; movements, statement rows, unreadable statement rows and Booked
+/// rows belong to kept accounts. Returns one line per broken promise, so
+/// fuzzing and tests can assert the list is empty.
 ///
 /// ```
 /// use std::path::Path;
@@ -381,9 +425,39 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
         };
         let duplicate_row =
             p.position.sheet == at.sheet && row_of(&p.position.cell) != row_of(&at.cell);
-        if !duplicate_row {
+        let unreadable_statement = book.unreadable_statements.iter().any(|u| {
+            u.error.position.sheet == p.position.sheet
+                && row_of(&u.error.position.cell) == row_of(&p.position.cell)
+        });
+        if !duplicate_row && !unreadable_statement {
             out.push(format!("an account is kept despite: {p}"));
         }
+    }
+    let mut listed: HashSet<&str> = HashSet::new();
+    for left in &book.left_out {
+        let id = left.account.as_str();
+        if kept.contains_key(id) {
+            out.push(format!("an account both kept and left out: {id}"));
+        }
+        if !listed.insert(id) {
+            out.push(format!("an account left out twice: {id}"));
+        }
+        let named = book
+            .left_out_error(left)
+            .is_some_and(|p| p.severity == Severity::Error && p.account.as_deref() == Some(id));
+        if !named {
+            out.push(format!("an account left out without its error: {id}"));
+        }
+    }
+    for u in book
+        .unreadable_statements
+        .iter()
+        .filter(|u| !kept.contains_key(u.account.as_str()))
+    {
+        out.push(format!(
+            "an unreadable statement row of an account left out: {}",
+            u.account
+        ));
     }
     for id in book
         .movements
@@ -417,7 +491,8 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
 
 /// Makes account ids unique across the books of a run: the second and later
 /// books holding an id get an error on that account, which is dropped from
-/// them with its movements, statements and Booked rows. The first book keeps it.
+/// them with its movements, statements and Booked rows and listed as left
+/// out. The first book keeps it.
 ///
 /// ```
 /// use std::path::Path;
@@ -430,6 +505,7 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
 /// assert_eq!(books[0].accounts.len(), count);
 /// assert!(books[1].accounts.is_empty());
 /// assert!(books[1].has_errors());
+/// assert_eq!(books[1].left_out.len(), count);
 /// ```
 pub fn check_unique_ids(books: &mut [Book]) {
     // The first holder of each id, by (book, account) index: the ids are
@@ -468,7 +544,12 @@ pub fn check_unique_ids(books: &mut [Book]) {
         let mut dropped: BTreeSet<String> = BTreeSet::new();
         while let Some((_, p)) = found.next_if(|(fb, _)| *fb == b) {
             if let Some(id) = &p.account {
-                dropped.insert(id.clone());
+                if dropped.insert(id.clone()) {
+                    book.left_out.push(LeftOut {
+                        account: id.clone(),
+                        problem: book.problems.len(),
+                    });
+                }
             }
             book.problems.push(p);
         }
@@ -479,5 +560,7 @@ pub fn check_unique_ids(books: &mut [Book]) {
         book.movements.retain(|id, _| !dropped.contains(id));
         book.statements.retain(|s| !dropped.contains(&s.account));
         book.booked.retain(|b| !dropped.contains(&b.account));
+        book.unreadable_statements
+            .retain(|s| !dropped.contains(&s.account));
     }
 }

@@ -4,14 +4,17 @@
 //! Rows of one account with the same period are kept as separate rows (the
 //! reconciliation sums them); other overlaps are errors. With the
 //! `statement_end` setting `exclusive`, a period_end is the first day after
-//! the period and one day is taken off. Nothing here reconciles.
+//! the period and one day is taken off. A row of a known account that cannot
+//! be read (or used) is kept as unreadable, with its first error: the
+//! account is still computed and its reconciliation says the row could not
+//! be read. Nothing here reconciles.
 
 use std::collections::HashMap;
 
 use chrono::NaiveDate;
 
 use super::accounts::Known;
-use super::model::StatementRow;
+use super::model::{StatementRow, UnreadableStatement};
 use super::settings::StatementEnd;
 use super::sheet::Sheet;
 use super::table::{Ctx, Fields, Table};
@@ -30,8 +33,8 @@ const POSTING_DATE: usize = column!(STATEMENTS, "posting_date");
 pub(crate) struct Statements {
     /// Rows to reconcile, in sheet order.
     pub rows: Vec<StatementRow>,
-    /// Accounts with a bad statement row.
-    pub spoiled: Vec<String>,
+    /// Rows of known accounts that could not be read, in sheet order.
+    pub unreadable: Vec<UnreadableStatement>,
 }
 
 /// Reads the Statements sheet; `None` when it cannot be read as a table.
@@ -42,13 +45,30 @@ pub(crate) fn read(
     end: StatementEnd,
     problems: &mut Vec<Problem>,
 ) -> Option<Statements> {
+    let opened = problems.len();
     let table = Table::open(&ctx, sheet, STATEMENTS.columns, problems)?;
     let mut out = Statements::default();
-    // A ragged row of an account is missing from its figures.
-    out.spoiled.extend(table.skipped_accounts().iter().cloned());
+    // A ragged row naming an account is not read: the error on it (which
+    // names the account) stands for the row.
+    out.unreadable.extend(
+        problems
+            .iter()
+            .skip(opened)
+            .filter(|p| p.severity == Severity::Error)
+            .filter_map(|p| {
+                let account = p.account.clone()?;
+                accounts.get(&account)?;
+                Some(UnreadableStatement {
+                    account,
+                    period: None,
+                    error: p.clone(),
+                })
+            }),
+    );
     // Per account: (start, end, row) of rows kept so far.
     let mut periods: HashMap<String, Vec<(NaiveDate, NaiveDate, u32)>> = HashMap::new();
     for rec in table.records() {
+        let before = problems.len();
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
             continue;
@@ -58,15 +78,18 @@ pub(crate) fn read(
         let posted = f.required_decimal(POSTED);
         let reference = f.text(REFERENCE);
         let posting_date = f.date(POSTING_DATE);
+        let period_end = written_end.and_then(|e| match end {
+            StatementEnd::Inclusive => Some(e),
+            StatementEnd::Exclusive => e.pred_opt(),
+        });
         let (Some(start), Some(written_end), Some(posted), false) =
             (start, written_end, posted, f.failed)
         else {
-            out.spoiled.push(id);
+            let period = start.zip(period_end).filter(|(s, e)| e >= s);
+            let at = f.position(ACCOUNT);
+            out.unreadable
+                .push(unreadable(problems, before, id, period, at));
             continue;
-        };
-        let period_end = match end {
-            StatementEnd::Inclusive => Some(written_end),
-            StatementEnd::Exclusive => written_end.pred_opt(),
         };
         let Some(period_end) = period_end.filter(|e| *e >= start) else {
             let expected = match end {
@@ -82,7 +105,9 @@ pub(crate) fn read(
                 &expected,
                 "correct the period's dates",
             );
-            out.spoiled.push(id);
+            let at = f.position(ACCOUNT);
+            out.unreadable
+                .push(unreadable(problems, before, id, None, at));
             continue;
         };
         let before_open = life.open.is_some_and(|o| period_end < o);
@@ -118,7 +143,10 @@ pub(crate) fn read(
                 &format!("a period that does not overlap the period {s} to {e} ({cell})"),
                 "rows of one account may repeat a period (they are summed) but not overlap: correct the dates",
             );
-            out.spoiled.push(id);
+            let at = f.position(ACCOUNT);
+            let period = Some((start, period_end));
+            out.unreadable
+                .push(unreadable(problems, before, id, period, at));
             continue;
         }
         kept.push((start, period_end, rec.row));
@@ -135,4 +163,35 @@ pub(crate) fn read(
     }
     out.rows.shrink_to_fit();
     Some(out)
+}
+
+/// The unreadable row of account `id` whose problems start at `before`: its
+/// first error (a row is only unreadable through one, so the stand-in at
+/// `at` is never needed in practice, but a row is never lost).
+fn unreadable(
+    problems: &[Problem],
+    before: usize,
+    account: String,
+    period: Option<(NaiveDate, NaiveDate)>,
+    at: crate::problem::Position,
+) -> UnreadableStatement {
+    let error = problems
+        .iter()
+        .skip(before)
+        .find(|p| p.severity == Severity::Error)
+        .cloned()
+        .unwrap_or_else(|| Problem {
+            severity: Severity::Error,
+            position: at,
+            account: Some(account.clone()),
+            found: account.clone(),
+            expected: "a statement row that can be read".to_string(),
+            fix: "correct the row".to_string(),
+            follows: None,
+        });
+    UnreadableStatement {
+        account,
+        period,
+        error,
+    }
 }

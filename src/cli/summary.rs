@@ -1,6 +1,8 @@
 //! The plain-text summary `run` and `merge` print on standard output: the
-//! window, the account counts, the totals by currency, the statement rows by
-//! status, the problem counts and the first errors.
+//! window, the account counts (read = computed + left out), the first
+//! accounts left out with the error that kept each out, the totals by
+//! currency and side, the statement rows by status, the problem counts and
+//! the first errors.
 //!
 //! It only prints figures the report already holds: it never adds, rounds
 //! beyond padding an amount to its currency's places, or reads a file.
@@ -11,7 +13,7 @@ use anyhow::Result;
 use rust_decimal::Decimal;
 
 use crate::problem::{by_cause, counted, Problem, Severity};
-use crate::report::model::Report;
+use crate::report::model::{Report, LEFT_OUT_SHOWN};
 use crate::report::WriteOutcome;
 
 /// The plain-text summary on standard output.
@@ -37,21 +39,35 @@ pub(crate) fn print_summary(
         "cut-off {}, window {}..{}",
         f.cutoff, f.window_start, f.cutoff
     )?;
+    // Read = computed + left out; where they were left out, when any were.
+    let split = if f.accounts_not_computed() > 0 {
+        format!(
+            " ({} in the books, {} in the computation)",
+            f.accounts_left_out, f.accounts_failed
+        )
+    } else {
+        String::new()
+    };
     writeln!(
         out,
-        "accounts: {} read, {} computed, {} left out by errors",
-        f.accounts_read, f.accounts_computed, f.accounts_failed
+        "accounts: {} read, {} computed, {} left out by errors{split}",
+        f.accounts_read,
+        f.accounts_computed,
+        f.accounts_not_computed(),
     )?;
+    print_left_out(out, report)?;
     if !report.totals.is_empty() {
         writeln!(
             out,
-            "{:<8} {:>8} {:>22} {:>18} {:>18} {:>20}",
+            "{:<8} {:<9} {:>8} {:>22} {:>18} {:>18} {:>20} {:>18}",
             "currency",
+            "side",
             "accounts",
             "balance at cut-off",
             "accrued at cut-off",
             "posted in window",
-            "interest for window"
+            "interest for window",
+            "prior-period adj."
         )?;
         for t in &report.totals {
             let m = |x: Decimal| {
@@ -63,13 +79,15 @@ pub(crate) fn print_summary(
             };
             writeln!(
                 out,
-                "{:<8} {:>8} {:>22} {:>18} {:>18} {:>20}",
+                "{:<8} {:<9} {:>8} {:>22} {:>18} {:>18} {:>20} {:>18}",
                 t.currency,
+                t.side,
                 t.accounts,
                 m(t.balance_at_cutoff),
                 m(t.accrued_at_cutoff),
                 m(t.posted_in_window),
-                m(t.interest_for_window)
+                m(t.interest_for_window),
+                m(t.prior_period)
             )?;
         }
     }
@@ -91,6 +109,28 @@ pub(crate) fn print_summary(
     print_errors(out, &report.problems)?;
     writeln!(out, "workbook: {}", target.display())?;
     writeln!(out, "review these figures against the contract terms and the applicable standards before booking them")?;
+    Ok(())
+}
+
+/// The first accounts left out, each with the error that kept it out, then
+/// how many more (every one is on the Problems sheet and counted above).
+fn print_left_out(out: &mut dyn Write, report: &Report) -> Result<()> {
+    let total = report.facts.accounts_not_computed();
+    if total == 0 {
+        return Ok(());
+    }
+    writeln!(out, "left out:")?;
+    let shown: Vec<_> = report.left_out.iter().take(LEFT_OUT_SHOWN).collect();
+    for l in &shown {
+        writeln!(out, "  {l}")?;
+    }
+    let more = total.saturating_sub(shown.len());
+    if more > 0 {
+        writeln!(
+            out,
+            "  ... and {more} more (each an error row of the Problems sheet, with its id in the Account column)"
+        )?;
+    }
     Ok(())
 }
 

@@ -56,17 +56,21 @@ pub enum Status {
     UnderPosted,
     /// A posting period with interest that no statement row covers.
     NotPosted,
+    /// A statement row of the account that could not be read: its figures
+    /// are unknown, so it counts as an exception (behaviour.md, Reconciliation).
+    StatementUnreadable,
 }
 
 impl Status {
     /// Every status, in the order a summary lists them.
-    pub const ALL: [Status; 6] = [
+    pub const ALL: [Status; 7] = [
         Status::Agrees,
         Status::WithinTolerance,
         Status::OverPosted,
         Status::UnderPosted,
         Status::NotPosted,
         Status::UnexpectedPosting,
+        Status::StatementUnreadable,
     ];
 
     /// The word written in reports.
@@ -78,6 +82,7 @@ impl Status {
             Status::OverPosted => "over-posted",
             Status::UnderPosted => "under-posted",
             Status::NotPosted => "not posted",
+            Status::StatementUnreadable => "statement unreadable",
         }
     }
 
@@ -93,7 +98,10 @@ impl Status {
     ///     .filter(|s| s.outside_tolerance())
     ///     .map(|s| s.name())
     ///     .collect();
-    /// assert_eq!(outside, ["over-posted", "under-posted", "not posted", "unexpected posting"]);
+    /// assert_eq!(
+    ///     outside,
+    ///     ["over-posted", "under-posted", "not posted", "unexpected posting", "statement unreadable"]
+    /// );
     /// assert!(!Status::Agrees.outside_tolerance());
     /// assert!(!Status::WithinTolerance.outside_tolerance());
     /// ```

@@ -91,6 +91,7 @@ fn account<'a>(
         statements,
         booked_opening: None,
         booked_close: None,
+        unreadable: &[],
         rate_bookings: [&[], &[]],
     }
 }

@@ -200,6 +200,8 @@ pub mod palette {
     pub const MISSING: u32 = 0xF1E0EC;
     /// unexpected posting (yellow tint).
     pub const UNEXPECTED: u32 = 0xF8F3C4;
+    /// statement unreadable (grey).
+    pub const UNREADABLE: u32 = 0xE3E3E3;
     /// error rows of Problems.
     pub const ERROR: u32 = 0xF6DDCB;
     /// warning rows of Problems.
@@ -211,13 +213,14 @@ pub mod palette {
 }
 
 /// Each status's fill. The word in the cell is [`Status::name`].
-const STATUS_FILLS: [(Status, u32); 6] = [
+const STATUS_FILLS: [(Status, u32); 7] = [
     (Status::Agrees, palette::AGREES),
     (Status::WithinTolerance, palette::WITHIN),
     (Status::OverPosted, palette::OVER),
     (Status::UnderPosted, palette::UNDER),
     (Status::NotPosted, palette::MISSING),
     (Status::UnexpectedPosting, palette::UNEXPECTED),
+    (Status::StatementUnreadable, palette::UNREADABLE),
 ];
 
 /// Each Tie-out status's fill: those of the statement statuses that mean

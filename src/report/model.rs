@@ -7,7 +7,7 @@ use chrono::{NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
 use crate::engine::reconcile::Status;
-use crate::problem::Problem;
+use crate::problem::{Position, Problem};
 
 /// A word of a row that is nearly always one of a few fixed names (a side, a
 /// day-count basis, a compounding, a currency code): the fixed name
@@ -75,13 +75,47 @@ pub struct RunFacts {
     pub cutoff: NaiveDate,
     /// The first day of the window (the window ends on the cut-off date).
     pub window_start: NaiveDate,
-    /// Accounts in the books.
+    /// Accounts in the books (of the shard, for a shard run): always
+    /// computed + left out + failed (behaviour.md, Completeness and
+    /// presentation).
     pub accounts_read: usize,
     /// Accounts computed.
     pub accounts_computed: usize,
-    /// Accounts left out by errors.
+    /// Accounts the reader left out by errors in the books.
+    pub accounts_left_out: usize,
+    /// Accounts the computation stopped on (an engine error).
     pub accounts_failed: usize,
 }
+
+impl RunFacts {
+    /// Accounts left out by errors, in the books or in the computation.
+    pub fn accounts_not_computed(&self) -> usize {
+        self.accounts_left_out.saturating_add(self.accounts_failed)
+    }
+}
+
+/// An account read but not computed, with the error that kept it out
+/// (Summary sheet and terminal summary).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct LeftOutLine {
+    /// Account id.
+    pub account: String,
+    /// Where the error is (the cell of the Problems sheet's row).
+    pub position: Position,
+    /// The error in words: what was found, what was expected and the fix,
+    /// or what the account is left out because of.
+    pub error: String,
+}
+
+impl std::fmt::Display for LeftOutLine {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}: {}: {}", self.account, self.position, self.error)
+    }
+}
+
+/// How many accounts left out the terminal summary and the Summary sheet
+/// name; the rest are counted (every one is on the Problems sheet).
+pub const LEFT_OUT_SHOWN: usize = 10;
 
 /// One row of the Accruals sheet.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -141,14 +175,17 @@ pub struct LedgerLine {
     pub settled_in_window: Decimal,
 }
 
-/// Totals of one currency (Summary sheet).
+/// Totals of one currency and side (Summary sheet): a deposit is never
+/// added to a loan.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct CurrencyTotal {
     /// ISO 4217 code.
     pub currency: String,
+    /// `asset` or `liability`, as the accounts' lines give it.
+    pub side: String,
     /// Minor units.
     pub minor_units: u32,
-    /// Accounts computed in this currency.
+    /// Accounts computed in this currency and side.
     pub accounts: usize,
     /// Sum of balances at cut-off.
     pub balance_at_cutoff: Decimal,
@@ -156,8 +193,11 @@ pub struct CurrencyTotal {
     pub accrued_at_cutoff: Decimal,
     /// Sum of posted in window.
     pub posted_in_window: Decimal,
-    /// Sum of interest for window.
+    /// Sum of interest for window: interest expense on the liability side,
+    /// interest income on the asset side.
     pub interest_for_window: Decimal,
+    /// Sum of the prior-period adjustments.
+    pub prior_period: Decimal,
 }
 
 /// One journal line (Journal sheet).
@@ -213,17 +253,20 @@ pub struct ReconciliationLine {
     pub currency: Word,
     /// Minor units.
     pub minor_units: u32,
-    /// First day of the statement period.
-    pub period_start: NaiveDate,
-    /// Last day of the statement period.
-    pub period_end: NaiveDate,
+    /// First day of the statement period (`None` for a statement row whose
+    /// dates could not be read).
+    pub period_start: Option<NaiveDate>,
+    /// Last day of the statement period (`None` as above).
+    pub period_end: Option<NaiveDate>,
     /// Days in the period.
     pub days: i64,
     /// Balance-years: the sum of base x day fraction.
     pub balance_years: Decimal,
     /// Expected interest.
     pub expected: Decimal,
-    /// Posted interest (zero for a missing posting).
+    /// Posted interest (zero for a missing posting). Expected, posted and
+    /// variance are zero, and written blank, on a row whose statement row
+    /// could not be read ([`Status::StatementUnreadable`]).
     pub posted: Decimal,
     /// posted - expected.
     pub variance: Decimal,
@@ -317,8 +360,12 @@ pub struct StatusCount {
 pub struct Report {
     /// Run facts.
     pub facts: RunFacts,
-    /// Totals by currency, in code order.
+    /// Totals by currency and side, in code order, asset before liability.
     pub totals: Vec<CurrencyTotal>,
+    /// Accounts left out by errors, in the order of the Problems sheet: all
+    /// of them after a run, at least the first [`LEFT_OUT_SHOWN`] after a
+    /// merge (each shard's Summary lists its first ones).
+    pub left_out: Vec<LeftOutLine>,
     /// One line per computed account, in book order.
     pub accruals: Vec<AccrualLine>,
     /// Reconciliation rows (empty without statements).

@@ -1,7 +1,7 @@
 //! Reading a workbook this program wrote back into its rows: the Run
 //! sheet's facts, the Accruals, Reconciliation, Accrued check, Tie-out,
-//! Journal, Daily and Problems lists (with their continuation sheets) and
-//! the Summary's account counts.
+//! Journal, Daily and Problems lists (with their continuation sheets), the
+//! Summary's account counts and its list of the accounts left out.
 //! `ledgerate merge` combines shard runs from them.
 //!
 //! Sheets and columns are found by the writer's own header labels, and every
@@ -25,13 +25,14 @@ use rust_decimal::Decimal;
 use super::error::ReportError;
 use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
-    AccrualLine, DailyLine, InputFile, JournalLine, LedgerLine, ReconciliationLine, RunFacts,
-    Setting, SettingSource, TieOutLine, TieStatus,
+    AccrualLine, DailyLine, InputFile, JournalLine, LedgerLine, LeftOutLine, ReconciliationLine,
+    RunFacts, Setting, SettingSource, TieOutLine, TieStatus,
 };
 use super::workbook::{
-    is_writer_note, ACCOUNTS_LEFT_OUT, ACCOUNTS_READ, ACCRUALS_HEADER, ACCRUED_CHECK_HEADER,
-    DAILY_HEADER, INPUTS_HEADER, JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER,
-    RUN_COMMAND_LINE, RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
+    is_writer_note, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ, ACCRUALS_HEADER,
+    ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_HEADER, LEFT_OUT_HEADER,
+    LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM,
+    RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -42,9 +43,11 @@ use crate::problem::{a1, a1_row, Position, Problem, Severity};
 /// status are not read: they are sums of these rows.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct RunRows {
-    /// The Run sheet's facts, with the Summary's accounts read and left out
-    /// (accounts computed: the Accruals rows).
+    /// The Run sheet's facts, with the Summary's accounts read, left out by
+    /// the books and failed (accounts computed: the Accruals rows).
     pub facts: RunFacts,
+    /// The accounts left out that the Summary names (its first ones).
+    pub left_out: Vec<LeftOutLine>,
     /// Accruals rows.
     pub accruals: Vec<AccrualLine>,
     /// Reconciliation rows (none without the sheet).
@@ -78,14 +81,16 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
     let journal = book.journal()?;
     let daily = book.daily(&accruals)?;
     let problems = book.problems()?;
-    let (read, left_out) = book.account_counts()?;
+    let counts = book.account_counts()?;
     Ok(RunRows {
         facts: RunFacts {
-            accounts_read: read,
+            accounts_read: counts.read,
             accounts_computed: accruals.len(),
-            accounts_failed: left_out,
+            accounts_left_out: counts.left_out,
+            accounts_failed: counts.failed,
             ..facts
         },
+        left_out: counts.named,
         accruals,
         reconciliation,
         accrued_check,
@@ -329,6 +334,7 @@ impl Written {
             run_time,
             accounts_read: 0,
             accounts_computed: 0,
+            accounts_left_out: 0,
             accounts_failed: 0,
         })
     }
@@ -410,22 +416,40 @@ impl Written {
             .map(|r| {
                 let currency = r.text(1);
                 let places = minor_units(&currency);
+                let status = r.status(10)?;
+                // A statement row that could not be read has its period when
+                // it was readable, and no figures (blank cells, zero here).
+                let unreadable = status == Status::StatementUnreadable;
+                let date = |col: usize| {
+                    if unreadable {
+                        r.optional_date(col)
+                    } else {
+                        r.date(col).map(Some)
+                    }
+                };
+                let amount = |col: usize| {
+                    if unreadable {
+                        Ok(r.decimal(col)?.unwrap_or_default())
+                    } else {
+                        r.amount(col, places)
+                    }
+                };
                 Ok(ReconciliationLine {
                     account: r.text(0),
                     currency: currency.into(),
                     minor_units: places,
-                    period_start: r.date(2)?,
-                    period_end: r.date(3)?,
+                    period_start: date(2)?,
+                    period_end: date(3)?,
                     days: r
                         .decimal(4)?
                         .and_then(|d| i64::try_from(d.mantissa()).ok().filter(|_| d.scale() == 0))
                         .unwrap_or_default(),
                     balance_years: r.decimal(5)?.unwrap_or_default(),
-                    expected: r.amount(6, places)?,
-                    posted: r.amount(7, places)?,
-                    variance: r.amount(8, places)?,
+                    expected: amount(6)?,
+                    posted: amount(7)?,
+                    variance: amount(8)?,
                     variance_bp: r.decimal(9)?,
-                    status: r.status(10)?,
+                    status,
                     likely_cause: r.text(11),
                 })
             })
@@ -521,7 +545,7 @@ impl Written {
             let p = Problem {
                 severity: r.severity(0)?,
                 position: Position::from_shown(&r.text(1), &r.text(2), &r.text(3)),
-                account: None,
+                account: Some(r.text(7)).filter(|a| !a.is_empty()),
                 found: r.text(4),
                 expected: r.text(5),
                 fix: r.text(6),
@@ -534,8 +558,8 @@ impl Written {
         Ok(problems)
     }
 
-    /// The Summary's accounts read and accounts left out by errors.
-    fn account_counts(&mut self) -> Result<(usize, usize), ReportError> {
+    /// The Summary's account counts and the accounts left out it names.
+    fn account_counts(&mut self) -> Result<AccountCounts, ReportError> {
         const SUMMARY: &str = "Summary";
         if !self.sheets.sheet_names().iter().any(|n| n == SUMMARY) {
             return Err(self.missing(SUMMARY));
@@ -547,8 +571,60 @@ impl Written {
                 .and_then(|(_, r)| whole(r, 1))
                 .unwrap_or(0)
         };
-        Ok((count(ACCOUNTS_READ), count(ACCOUNTS_LEFT_OUT)))
+        let named = self.left_out(&rows)?;
+        Ok(AccountCounts {
+            read: count(ACCOUNTS_READ),
+            left_out: count(ACCOUNTS_LEFT_OUT_BY_BOOKS),
+            failed: count(ACCOUNTS_FAILED),
+            named,
+        })
     }
+
+    /// The Summary's list of the accounts left out: the rows under its
+    /// title and header, up to the first blank row (none without the list).
+    fn left_out(&self, rows: &SheetRows) -> Result<Vec<LeftOutLine>, ReportError> {
+        let mut below = rows
+            .iter()
+            .skip_while(|(_, r)| text(r, 0) != LEFT_OUT_TITLE)
+            .skip(1);
+        let Some((header_row, header)) = below.next() else {
+            return Ok(Vec::new());
+        };
+        let found: Vec<String> = header.iter().map(ToString::to_string).collect();
+        if found
+            .iter()
+            .map(String::as_str)
+            .ne(LEFT_OUT_HEADER.iter().copied())
+        {
+            return Err(self.not_written(
+                "Summary",
+                &a1_row(*header_row),
+                &found.join(", "),
+                &LEFT_OUT_HEADER.join(", "),
+            ));
+        }
+        let mut last = *header_row;
+        Ok(below
+            .take_while(|(row, _)| {
+                let next = last.checked_add(1) == Some(*row);
+                last = *row;
+                next
+            })
+            .map(|(_, r)| LeftOutLine {
+                account: text(r, 0),
+                position: Position::from_shown(&text(r, 1), &text(r, 2), &text(r, 3)),
+                error: text(r, 4),
+            })
+            .collect())
+    }
+}
+
+/// The Summary's account counts, and the accounts left out it names.
+struct AccountCounts {
+    read: usize,
+    left_out: usize,
+    failed: usize,
+    named: Vec<LeftOutLine>,
 }
 
 /// Whether `name` is the list sheet `base` or one of its continuations
@@ -681,6 +757,11 @@ impl Row<'_> {
                 let words: Vec<&str> = TieStatus::ALL.iter().map(|s| s.name()).collect();
                 self.error(col, &word, &format!("a status ({})", words.join(", ")))
             })
+    }
+
+    /// A date, `None` for a blank cell.
+    fn optional_date(&self, col: usize) -> Result<Option<NaiveDate>, ReportError> {
+        cell::date(&self.cell(col)).map_err(|i| self.issue(col, &i))
     }
 
     fn date(&self, col: usize) -> Result<NaiveDate, ReportError> {

@@ -32,6 +32,7 @@ fn facts() -> RunFacts {
         window_start: day(1),
         accounts_read: 1,
         accounts_computed: 1,
+        accounts_left_out: 0,
         accounts_failed: 0,
     }
 }
@@ -53,22 +54,41 @@ fn daily(n: u32) -> Vec<DailyLine> {
 }
 
 fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
+    let status = Status::ALL
+        .into_iter()
+        .find(|s| s.name() == status)
+        .unwrap();
+    if status == Status::StatementUnreadable {
+        // No figures: the statement row's cells could not be read.
+        return ReconciliationLine {
+            account: "A-unreadable".into(),
+            currency: "USD".into(),
+            minor_units: 2,
+            period_start: None,
+            period_end: None,
+            days: 0,
+            balance_years: Decimal::ZERO,
+            expected: Decimal::ZERO,
+            posted: Decimal::ZERO,
+            variance: Decimal::ZERO,
+            variance_bp: None,
+            status,
+            likely_cause: "the statement row at Statements!C7 could not be read".into(),
+        };
+    }
     ReconciliationLine {
-        account: format!("A-{status}"),
+        account: format!("A-{}", status.name()),
         currency: "USD".into(),
         minor_units: 2,
-        period_start: day(1),
-        period_end: day(31),
+        period_start: Some(day(1)),
+        period_end: Some(day(31)),
         days: 31,
         balance_years: dec("84.93"),
         expected: dec("4.25"),
         posted: dec("4.19"),
         variance: dec("-0.06"),
         variance_bp: bp.map(dec),
-        status: Status::ALL
-            .into_iter()
-            .find(|s| s.name() == status)
-            .unwrap(),
+        status,
         likely_cause: String::new(),
     }
 }
@@ -77,6 +97,7 @@ fn report() -> Report {
     Report {
         facts: facts(),
         totals: vec![],
+        left_out: vec![],
         accruals: vec![],
         reconciliation: vec![],
         accrued_check: vec![],
@@ -380,9 +401,33 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
             source: SettingSource::Book,
         },
     ];
-    r.facts.accounts_read = 5;
+    r.facts.accounts_read = 7;
     r.facts.accounts_computed = 4;
+    r.facts.accounts_left_out = 2;
     r.facts.accounts_failed = 1;
+    let at = |sheet: &str, cell: &str| crate::problem::Position {
+        book: "book.xlsx".into(),
+        sheet: sheet.into(),
+        cell: cell.into(),
+        ..Default::default()
+    };
+    r.left_out = vec![
+        crate::report::model::LeftOutLine {
+            account: "A-5".into(),
+            position: at("Accounts", "D6"),
+            error: "found '31/02/2024'; expected a date; correct the date".into(),
+        },
+        crate::report::model::LeftOutLine {
+            account: "A-6".into(),
+            position: at("Movements", "C3"),
+            error: "found 'x'; expected an amount; correct the amount".into(),
+        },
+        crate::report::model::LeftOutLine {
+            account: "A-7".into(),
+            position: at("Accounts", "A8"),
+            error: "found 'no Rates rows'; expected rates; add them".into(),
+        },
+    ];
     let mut text_figure = accrual("A-BIG", "USD", 2, "1000000000000000.55");
     text_figure.effective_annual_rate = None;
     r.accruals = vec![
@@ -421,7 +466,7 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
             cell: "C7".into(),
             ..Default::default()
         },
-        account: None,
+        account: Some("A-1".into()),
         found: "'x'".into(),
         expected: "a name".into(),
         fix: "type one".into(),
@@ -446,6 +491,7 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
     assert_eq!(back.journal, r.journal);
     assert_eq!(back.daily, r.daily);
     assert_eq!(back.problems, r.problems);
+    assert_eq!(back.left_out, r.left_out);
     // Amounts come back with the currency's places, as the totals add them.
     assert_eq!(back.accruals[0].balance_at_cutoff.to_string(), "1000.00");
     assert_eq!(back.accruals[2].accrued_at_cutoff.to_string(), "3.100");
@@ -542,8 +588,15 @@ fn each_status_is_written_as_its_word() {
             "over-posted",
             "under-posted",
             "not posted",
-            "unexpected posting"
+            "unexpected posting",
+            "statement unreadable"
         ]
+    );
+    // The unreadable statement row has no figures: its cells are blank.
+    let last = rows(&target, "Reconciliation").pop().unwrap();
+    assert!(
+        (2..=9).all(|col| last.get(col).is_none_or(|d| *d == Data::Empty)),
+        "{last:?}"
     );
     let plan = super::workbook::chart_plan_for_tests(&r.reconciliation, &Limits::default());
     // Rows 4 to 7 (over-posted .. unexpected posting) are charted.
@@ -611,8 +664,8 @@ fn accrued_check() -> ReconciliationLine {
         account: "TD-3".into(),
         currency: "USD".into(),
         minor_units: 2,
-        period_start: NaiveDate::from_ymd_opt(2026, 9, 1).unwrap(),
-        period_end: NaiveDate::from_ymd_opt(2026, 11, 30).unwrap(),
+        period_start: Some(NaiveDate::from_ymd_opt(2026, 9, 1).unwrap()),
+        period_end: Some(NaiveDate::from_ymd_opt(2026, 11, 30).unwrap()),
         days: 91,
         balance_years: dec("91000"),
         expected: dec("3321.50"),

@@ -27,10 +27,11 @@ use super::layout::{
     MAX_FORMAT_DECIMALS, UNROUNDED_DECIMALS,
 };
 use super::model::{
-    AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, Report, RunFacts,
-    StatusCount, TieOutLine, TieStatus,
+    AccrualLine, CurrencyTotal, DailyLine, JournalLine, LeftOutLine, ReconciliationLine, Report,
+    RunFacts, StatusCount, TieOutLine, TieStatus, LEFT_OUT_SHOWN,
 };
 use super::output;
+use crate::engine::reconcile::Status;
 use crate::problem::{Position, Problem, Severity};
 
 /// Header labels of the Accruals sheet: the account and its interest, then
@@ -137,30 +138,51 @@ pub const DAILY_HEADER: [&str; 8] = [
     "Accrued",
 ];
 
-/// Header labels of the Problems sheet.
-pub const PROBLEMS_HEADER: [&str; 7] = [
-    "Severity", "Book", "Sheet", "Cell", "Found", "Expected", "Fix",
+/// Header labels of the Problems sheet: the account a problem concerns
+/// (the one it keeps out, for an error) is last.
+pub const PROBLEMS_HEADER: [&str; 8] = [
+    "Severity", "Book", "Sheet", "Cell", "Found", "Expected", "Fix", "Account",
 ];
 
-/// Header labels of the Summary's totals by currency.
-pub const TOTALS_HEADER: [&str; 6] = [
+/// Header labels of the Summary's totals by currency and side.
+pub const TOTALS_HEADER: [&str; 8] = [
     "Currency",
+    "Side",
     "Accounts",
     "Balance at cut-off",
     "Accrued at cut-off",
     "Posted in window",
     "Interest for window",
+    "Prior-period adjustment",
 ];
 
 /// Label of the Summary's line on the Tie-out.
 pub const TIE_OUT_LABEL: &str = "Tie-out";
 
-/// Labels of the Summary's account counts.
+/// The title of the Summary's totals.
+pub const TOTALS_TITLE: &str = "Totals by currency and side";
+
+/// What the totals' interest is, under their table.
+pub const TOTALS_GLOSS: &str = "Interest for window is interest expense on a liability row \
+    and interest income on an asset row; deposits and loans are never added together.";
+
+/// Labels of the Summary's account counts: read = computed + left out, and
+/// left out = by errors in the books + by errors in the computation.
 pub const ACCOUNTS_READ: &str = "Accounts read";
 /// See [`ACCOUNTS_READ`].
 pub const ACCOUNTS_COMPUTED: &str = "Accounts computed";
 /// See [`ACCOUNTS_READ`].
 pub const ACCOUNTS_LEFT_OUT: &str = "Accounts left out by errors";
+/// See [`ACCOUNTS_READ`].
+pub const ACCOUNTS_LEFT_OUT_BY_BOOKS: &str = "of which by errors in the books";
+/// See [`ACCOUNTS_READ`].
+pub const ACCOUNTS_FAILED: &str = "of which by errors in the computation";
+
+/// The title of the Summary's list of the accounts left out.
+pub const LEFT_OUT_TITLE: &str = "Accounts left out, with the error that kept each out";
+
+/// Header labels of the Summary's list of the accounts left out.
+pub const LEFT_OUT_HEADER: [&str; 5] = ["Account", "Book", "Sheet", "Cell", "Error"];
 
 /// Labels of the Run sheet's first rows: the program, the command line and
 /// the time of the run.
@@ -583,7 +605,7 @@ fn problems_sheet<'p>() -> ListSheet<&'p Problem> {
     ListSheet {
         name: "Problems",
         header: &PROBLEMS_HEADER,
-        caps: &[10, 28, 16, 10, 36, 36, 48],
+        caps: &[10, 28, 16, 10, 36, 36, 48, 24],
         notes: &[],
         footer: None,
         row: problem_row,
@@ -847,13 +869,20 @@ fn reconciliation_row(c: &mut Cells<'_>, r: &ReconciliationLine) -> Result<(), R
     let styles = c.styles();
     c.text(0, &r.account)?;
     c.text(1, &r.currency)?;
-    c.date(2, r.period_start)?;
-    c.date(3, r.period_end)?;
-    c.count(4, i128::from(r.days))?;
-    c.balance_years(5, r.balance_years, r.minor_units)?;
-    c.amount(6, r.expected, r.minor_units)?;
-    c.amount(7, r.posted, r.minor_units)?;
-    c.amount(8, r.variance, r.minor_units)?;
+    if let Some(d) = r.period_start {
+        c.date(2, d)?;
+    }
+    if let Some(d) = r.period_end {
+        c.date(3, d)?;
+    }
+    // A statement row that could not be read has no figures: blank, not 0.
+    if r.status != Status::StatementUnreadable {
+        c.count(4, i128::from(r.days))?;
+        c.balance_years(5, r.balance_years, r.minor_units)?;
+        c.amount(6, r.expected, r.minor_units)?;
+        c.amount(7, r.posted, r.minor_units)?;
+        c.amount(8, r.variance, r.minor_units)?;
+    }
     if let Some(bp) = r.variance_bp {
         c.bp(9, bp)?;
     }
@@ -901,6 +930,9 @@ fn problem_row(c: &mut Cells<'_>, p: &&Problem) -> Result<(), ReportError> {
     c.text_as(4, &p.found, &styles.wrap)?;
     c.text_as(5, &p.expected, &styles.wrap)?;
     c.text_as(6, &p.fix, &styles.wrap)?;
+    if let Some(account) = &p.account {
+        c.text(7, account)?;
+    }
     Ok(())
 }
 
@@ -1103,10 +1135,11 @@ struct SummaryPlaces {
     rows_used: RowNum,
 }
 
-pub(crate) const SUMMARY_COLS: ColNum = 6;
+pub(crate) const SUMMARY_COLS: ColNum = 8;
 
-/// The Summary: title and caution, the run's facts, totals by currency,
-/// counts by status, widths and the variance chart. The problem and text
+/// The Summary: title and caution, the run's facts, the accounts left out,
+/// totals by currency and side, counts by status, widths and the variance
+/// chart. The problem and text
 /// figure counts are left to [`finish_summary`]; their places are returned.
 fn write_summary(
     ws: &mut Worksheet,
@@ -1119,7 +1152,8 @@ fn write_summary(
     let mut c = Cells::new(ws, "Summary", styles, texts);
     summary_title(&mut c)?;
     let mut places = summary_facts(&mut c, &report.facts, report.tie_out.as_deref())?;
-    let row = summary_totals(&mut c, places.text_figures, &report.totals)?;
+    let row = summary_left_out(&mut c, places.text_figures, report)?;
+    let row = summary_totals(&mut c, row, &report.totals)?;
     let row = summary_status_counts(&mut c, row, &report.status_counts)?;
     let row = summary_largest_variances(&mut c, row, report)?;
     summary_widths(&mut c)?;
@@ -1187,6 +1221,12 @@ fn summary_facts(
     c.count(1, int(facts.accounts_computed))?;
     row += 1;
     label(c, row, ACCOUNTS_LEFT_OUT)?;
+    c.count(1, int(facts.accounts_not_computed()))?;
+    row += 1;
+    label(c, row, ACCOUNTS_LEFT_OUT_BY_BOOKS)?;
+    c.count(1, int(facts.accounts_left_out))?;
+    row += 1;
+    label(c, row, ACCOUNTS_FAILED)?;
     c.count(1, int(facts.accounts_failed))?;
     if let Some(lines) = tie_out {
         row += 1;
@@ -1264,24 +1304,72 @@ fn tie_out_in_words(lines: &[TieOutLine]) -> String {
     tie_out_words(&statuses)
 }
 
-/// Totals by currency, from two rows below `row`; returns the last row written.
+/// The accounts left out (none without any), from two rows below `row`:
+/// the first [`LEFT_OUT_SHOWN`], each with the error that kept it out, then
+/// how many more there are; returns the last row written.
+fn summary_left_out(
+    c: &mut Cells<'_>,
+    row: RowNum,
+    report: &Report,
+) -> Result<RowNum, ReportError> {
+    let total = report.facts.accounts_not_computed();
+    if total == 0 {
+        return Ok(row);
+    }
+    let styles = c.styles();
+    let mut row = row + 2;
+    section(c, row, LEFT_OUT_TITLE, SUMMARY_COLS)?;
+    row += 1;
+    c.at(row).header(&LEFT_OUT_HEADER, &[])?;
+    let shown: Vec<&LeftOutLine> = report.left_out.iter().take(LEFT_OUT_SHOWN).collect();
+    for l in &shown {
+        row += 1;
+        c.at(row).text(0, &l.account)?;
+        c.text(1, &l.position.book)?;
+        c.text(2, &l.position.sheet_shown())?;
+        c.text(3, &l.position.cell_shown())?;
+        c.text_spilling(4, &l.error, &styles.text)?;
+    }
+    let more = total.saturating_sub(shown.len());
+    row += 2;
+    let every = if more > 0 {
+        format!(
+            "and {more} more: every account left out is an error row of the Problems sheet, with its id in the Account column"
+        )
+    } else {
+        "Every one is an error row of the Problems sheet, with its id in the Account column."
+            .to_string()
+    };
+    c.at(row).text_spilling(0, &every, &styles.text)?;
+    Ok(row)
+}
+
+/// Totals by currency and side, from two rows below `row`; returns the last
+/// row written.
 fn summary_totals(
     c: &mut Cells<'_>,
     row: RowNum,
     totals: &[CurrencyTotal],
 ) -> Result<RowNum, ReportError> {
+    let styles = c.styles();
     let mut row = row + 2;
-    section(c, row, "Totals by currency", SUMMARY_COLS)?;
+    section(c, row, TOTALS_TITLE, SUMMARY_COLS)?;
     row += 1;
-    c.at(row).header(&TOTALS_HEADER, &[1, 2, 3, 4, 5])?;
+    c.at(row).header(&TOTALS_HEADER, &[2, 3, 4, 5, 6, 7])?;
     for t in totals {
         row += 1;
         c.at(row).text(0, &t.currency)?;
-        c.count(1, int(t.accounts))?;
-        c.amount(2, t.balance_at_cutoff, t.minor_units)?;
-        c.amount(3, t.accrued_at_cutoff, t.minor_units)?;
-        c.amount(4, t.posted_in_window, t.minor_units)?;
-        c.amount(5, t.interest_for_window, t.minor_units)?;
+        c.text(1, &t.side)?;
+        c.count(2, int(t.accounts))?;
+        c.amount(3, t.balance_at_cutoff, t.minor_units)?;
+        c.amount(4, t.accrued_at_cutoff, t.minor_units)?;
+        c.amount(5, t.posted_in_window, t.minor_units)?;
+        c.amount(6, t.interest_for_window, t.minor_units)?;
+        c.amount(7, t.prior_period, t.minor_units)?;
+    }
+    if !totals.is_empty() {
+        row += 1;
+        c.at(row).text_spilling(0, TOTALS_GLOSS, &styles.text)?;
     }
     Ok(row)
 }
@@ -1356,7 +1444,9 @@ fn summary_largest_variances(
             row += 1;
             c.at(row).text(0, &r.currency)?;
             c.text(1, &r.account)?;
-            c.date(2, r.period_end)?;
+            if let Some(d) = r.period_end {
+                c.date(2, d)?;
+            }
             c.amount(3, r.variance, r.minor_units)?;
             if let Some(bp) = r.variance_bp {
                 c.bp(4, bp)?;

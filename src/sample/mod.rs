@@ -484,6 +484,7 @@ impl Generator {
             statements: &[],
             booked_opening: None,
             booked_close: None,
+            unreadable: &[],
             rate_bookings: [&[], &[]],
         };
         let right = run_account(&inputs, &run_options(d.plant.is_some()))

@@ -1058,7 +1058,9 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
     );
     assert_eq!(problem(&book, Error, "Settings", "B3", &[]).account, None);
 
-    // Accounts with only warnings and notes are kept; every other one is out,
+    // Accounts with only warnings and notes are kept, and so are those whose
+    // only fault is a statement row (Completeness and presentation: their
+    // reconciliation says the row could not be read); every other one is out,
     // with its movements and statements, and rows outside an account's life are not reconciled.
     assert_eq!(
         ids(&book),
@@ -1067,8 +1069,56 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
             "HM-SAV-121",
             "HM-SAV-122",
             "HM-SAV-127",
+            "HM-SAV-131",
+            "HM-SAV-132",
             "HM-SAV-134"
         ]
+    );
+    let unreadable: Vec<(&str, &str, &str)> = book
+        .unreadable_statements
+        .iter()
+        .map(|u| {
+            (
+                u.account.as_str(),
+                u.error.position.sheet.as_str(),
+                u.error.position.cell.as_str(),
+            )
+        })
+        .collect();
+    assert_eq!(
+        unreadable,
+        [
+            ("HM-SAV-131", "Statements", "C3"),
+            ("HM-SAV-132", "Statements", "B8")
+        ]
+    );
+    // The overlapping row's own period is known; an end before the start is none.
+    assert_eq!(book.unreadable_statements[0].period, None);
+    assert!(book.unreadable_statements[1].period.is_some());
+    // Every other account of the sheet is left out, by id, in sheet order,
+    // with the first error that names it (the duplicate row of HM-SAV-101
+    // is no account of its own).
+    let left_out: Vec<(&str, String)> = book
+        .left_out
+        .iter()
+        .map(|l| {
+            let p = book.left_out_error(l).unwrap();
+            assert_eq!(p.severity, Error);
+            assert_eq!(p.account.as_deref(), Some(l.account.as_str()));
+            (
+                l.account.as_str(),
+                format!("{}!{}", p.position.sheet, p.position.cell),
+            )
+        })
+        .collect();
+    assert_eq!(left_out.len(), 26, "{left_out:?}");
+    assert_eq!(left_out[0].0, "HM-SAV-101");
+    assert!(left_out.contains(&("HM-SAV-128", "Movements!C6".to_string())));
+    assert!(left_out.contains(&("HM-SAV-125", "Accounts!J26".to_string())));
+    assert_eq!(
+        left_out.len() + book.accounts.len(),
+        33,
+        "every account of the sheet once: HM-SAV-101 to 134, whose row 16 gives HM-SAV-101 again"
     );
     assert_eq!(book.movements.keys().collect::<Vec<_>>(), ["HM-SAV-127"]);
     let kept: Vec<(&str, Decimal)> = book
@@ -1076,9 +1126,14 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
         .iter()
         .map(|s| (s.account.as_str(), s.posted))
         .collect();
+    // HM-SAV-132's first row stands; its overlapping second row is unreadable.
     assert_eq!(
         kept,
-        vec![("HM-SAV-127", dec("2.00")), ("HM-SAV-127", dec("-2.00"))]
+        vec![
+            ("HM-SAV-127", dec("2.00")),
+            ("HM-SAV-127", dec("-2.00")),
+            ("HM-SAV-132", dec("2"))
+        ]
     );
     // Schedules with an error are kept out; one that names an index is a
     // floating schedule.

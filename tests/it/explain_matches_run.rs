@@ -13,7 +13,7 @@ use ledgerate::batch::journal::JournalStyle;
 use ledgerate::batch::{run_books, BatchResult, BatchSettings};
 use ledgerate::book::{read_book, AccountEntry, Book, ReadOptions};
 use ledgerate::engine::floating::FixingFallback;
-use ledgerate::engine::reconcile::Tolerance;
+use ledgerate::engine::reconcile::{Status, Tolerance};
 use ledgerate::explain::{explain, fmt_amount, print, Explanation};
 use ledgerate::pipeline::Options;
 use ledgerate::problem::Severity;
@@ -99,7 +99,7 @@ fn same_row(x: &Explanation, line: &ReconciliationLine, what: &str) {
     let c = x
         .statements
         .iter()
-        .find(|c| c.row.start == line.period_start && c.row.end == line.period_end)
+        .find(|c| Some(c.row.start) == line.period_start && Some(c.row.end) == line.period_end)
         .unwrap_or_else(|| panic!("{what}: explain has no row for {line:?}"));
     let got = (
         c.row.expected,
@@ -115,7 +115,7 @@ fn same_row(x: &Explanation, line: &ReconciliationLine, what: &str) {
     );
     assert_eq!(
         got, want,
-        "{what}: {}..{}",
+        "{what}: {:?}..{:?}",
         line.period_start, line.period_end
     );
 }
@@ -133,12 +133,12 @@ fn compare(
         "{what}: accrued at cut-off"
     );
     // One explanation row per run row, in the run's order.
-    let periods: Vec<(NaiveDate, NaiveDate)> = x
+    let periods: Vec<(Option<NaiveDate>, Option<NaiveDate>)> = x
         .statements
         .iter()
-        .map(|c| (c.row.start, c.row.end))
+        .map(|c| (Some(c.row.start), Some(c.row.end)))
         .collect();
-    let run_periods: Vec<(NaiveDate, NaiveDate)> = rows
+    let run_periods: Vec<(Option<NaiveDate>, Option<NaiveDate>)> = rows
         .iter()
         .map(|l| (l.period_start, l.period_end))
         .collect();
@@ -163,7 +163,7 @@ fn compare(
     for p in &x.postings {
         if let Some(l) = rows
             .iter()
-            .find(|l| l.period_start == p.start && l.period_end == p.end)
+            .find(|l| l.period_start == Some(p.start) && l.period_end == Some(p.end))
         {
             assert_eq!(
                 p.expected, l.expected,
@@ -205,12 +205,12 @@ fn printed_lines_show(
     for c in &x.statements {
         let l = rows
             .iter()
-            .find(|l| l.period_start == c.row.start && l.period_end == c.row.end)
+            .find(|l| l.period_start == Some(c.row.start) && l.period_end == Some(c.row.end))
             .unwrap_or_else(|| panic!("{what}: the run has no row for {:?}", c.row));
         let shown = format!(
             "statement {}..{}: posted {}, expected {}, variance {} (",
-            l.period_start,
-            l.period_end,
+            c.row.start,
+            c.row.end,
             fmt_amount(l.posted, places),
             fmt_amount(l.expected, places),
             fmt_amount(l.variance, places)
@@ -224,19 +224,50 @@ fn printed_lines_show(
     }
 }
 
-/// The run's rows of one account, or the problem that kept it out.
-fn run_rows<'r>(
-    result: &'r BatchResult,
-    entry: &AccountEntry,
-) -> Option<(&'r AccrualLine, Vec<&'r ReconciliationLine>)> {
+/// An account's Accruals line, reconciled rows and rows of statement rows
+/// that could not be read.
+type AccountRows<'r> = (
+    &'r AccrualLine,
+    Vec<&'r ReconciliationLine>,
+    Vec<&'r ReconciliationLine>,
+);
+
+/// The run's rows of one account (its reconciled rows, then its rows of
+/// statement rows that could not be read), or the problem that kept it out.
+fn run_rows<'r>(result: &'r BatchResult, entry: &AccountEntry) -> Option<AccountRows<'r>> {
     let id = entry.terms.id.as_str();
     let line = result.accruals.iter().find(|a| a.account == id)?;
-    let rows = result
+    let (unreadable, rows) = result
         .reconciliation
         .iter()
         .filter(|l| l.account == id)
-        .collect();
-    Some((line, rows))
+        .partition(|l| l.status == Status::StatementUnreadable);
+    Some((line, rows, unreadable))
+}
+
+/// Explain names each statement row the run could not read, as the run's
+/// row for it does.
+fn unreadable_rows_show(x: &Explanation, unreadable: &[&ReconciliationLine], what: &str) {
+    assert_eq!(x.unreadable.len(), unreadable.len(), "{what}");
+    let mut out = Vec::new();
+    print(x, &mut out).unwrap();
+    let text = String::from_utf8(out).unwrap();
+    for (u, l) in x.unreadable.iter().zip(unreadable) {
+        assert_eq!(
+            (l.period_start, l.period_end),
+            (u.period.map(|p| p.0), u.period.map(|p| p.1)),
+            "{what}"
+        );
+        let shown = format!(
+            "statement row {} could not be read: {}: statement unreadable",
+            u.error.position,
+            u.error.words()
+        );
+        assert!(
+            text.contains(&shown),
+            "{what}: no line '{shown}' in\n{text}"
+        );
+    }
 }
 
 #[test]
@@ -249,7 +280,7 @@ fn explain_shows_the_run_figures_for_every_account_of_every_test_book() {
         for entry in &book.accounts {
             let what = format!("{} {}", book.path.display(), entry.terms.id);
             let explained = explain(book, entry, &o, None);
-            let Some((line, rows)) = run_rows(&result, entry) else {
+            let Some((line, rows, unreadable)) = run_rows(&result, entry) else {
                 // The run left it out: explain stops on the same problem.
                 let failed = explained
                     .err()
@@ -263,11 +294,14 @@ fn explain_shows_the_run_figures_for_every_account_of_every_test_book() {
                 continue;
             };
             let x = explained.unwrap_or_else(|f| panic!("{what}: {}", f.problem));
+            unreadable_rows_show(&x, &unreadable, &what);
             // The default view: the statement periods in the window.
             for c in &x.statements {
                 let l = rows
                     .iter()
-                    .find(|l| l.period_start == c.row.start && l.period_end == c.row.end)
+                    .find(|l| {
+                        l.period_start == Some(c.row.start) && l.period_end == Some(c.row.end)
+                    })
                     .unwrap_or_else(|| panic!("{what}: the run has no row for {:?}", c.row));
                 same_row(&x, l, &what);
             }
@@ -275,7 +309,7 @@ fn explain_shows_the_run_figures_for_every_account_of_every_test_book() {
             // The whole history: every run row and every posting.
             let first = rows
                 .iter()
-                .map(|l| l.period_start)
+                .filter_map(|l| l.period_start)
                 .chain([entry.terms.open_date])
                 .min()
                 .unwrap();

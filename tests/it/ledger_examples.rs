@@ -255,7 +255,7 @@ fn spec_example_a3_system_accrued_check_on_a_term_deposit() {
     // 91 nights x 36.50 = 3,321.50; balance-years 365,000 x 91/365 = 91,000.
     assert_eq!(
         (row.period_start, row.period_end),
-        (date("2026-09-01"), date("2026-11-30"))
+        (Some(date("2026-09-01")), Some(date("2026-11-30")))
     );
     assert_eq!(row.days, 91);
     assert_eq!(row.balance_years, dec("91000"));

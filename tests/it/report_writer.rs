@@ -52,7 +52,8 @@ fn report() -> Report {
         window_start: date("2024-03-01"),
         accounts_read: 5,
         accounts_computed: 4,
-        accounts_failed: 1,
+        accounts_left_out: 1,
+        accounts_failed: 0,
     };
     let accrual =
         |account: &str, currency: &str, minor: u32, balance: &str, accrued: &str| AccrualLine {
@@ -82,8 +83,8 @@ fn report() -> Report {
             account: account.into(),
             currency: "USD".into(),
             minor_units: 2,
-            period_start: date("2024-03-01"),
-            period_end: date("2024-03-31"),
+            period_start: Some(date("2024-03-01")),
+            period_end: Some(date("2024-03-31")),
             days: 31,
             balance_years: dec("2.2054794520547945205479452055"),
             expected: dec(expected),
@@ -106,23 +107,37 @@ fn report() -> Report {
         totals: vec![
             CurrencyTotal {
                 currency: "JPY".into(),
+                side: "liability".into(),
                 minor_units: 0,
                 accounts: 1,
                 balance_at_cutoff: dec("5000000"),
                 accrued_at_cutoff: dec("411"),
                 posted_in_window: dec("0"),
                 interest_for_window: dec("411"),
+                prior_period: dec("0"),
             },
             CurrencyTotal {
                 currency: "USD".into(),
+                side: "liability".into(),
                 minor_units: 2,
                 accounts: 2,
                 balance_at_cutoff: dec("1000000000026500.55"),
                 accrued_at_cutoff: dec("3.10"),
                 posted_in_window: dec("71.37"),
                 interest_for_window: dec("74.47"),
+                prior_period: dec("-1.25"),
             },
         ],
+        left_out: vec![LeftOutLine {
+            account: "HM-SAV-009".into(),
+            position: Position {
+                book: "harbourview.xlsx".into(),
+                sheet: "Movements".into(),
+                cell: "B7".into(),
+                ..Position::default()
+            },
+            error: "found '2024-02-30'; expected a date; correct the value date".into(),
+        }],
         accruals: vec![
             accrual("HM-SAV-001", "USD", 2, "26571.37", "3.10"),
             accrual("HM-TD-JPY", "JPY", 0, "5000000", "411"),
@@ -379,7 +394,7 @@ fn sheets_come_in_order_with_the_header_labels_of_the_spec() {
         (
             "Problems",
             vec![
-                "Severity", "Book", "Sheet", "Cell", "Found", "Expected", "Fix",
+                "Severity", "Book", "Sheet", "Cell", "Found", "Expected", "Fix", "Account",
             ],
         ),
     ];
@@ -519,7 +534,7 @@ fn a_text_figure_is_noted_once_in_problems() {
     // The Accruals balance and the Summary's USD total.
     assert!(fix.starts_with("2 figures are written as text"), "{fix}");
     assert!(
-        fix.contains("Accruals!G5") && fix.contains("Summary!C"),
+        fix.contains("Accruals!G5") && fix.contains("Summary!D"),
         "{fix}"
     );
 }
@@ -541,6 +556,29 @@ fn the_summary_holds_the_facts_totals_counts_chart_and_caution() {
     assert_eq!(number(&find("Accounts read")[1]), dec("5"));
     assert_eq!(number(&find("Accounts computed")[1]), dec("4"));
     assert_eq!(number(&find("Accounts left out by errors")[1]), dec("1"));
+    assert_eq!(
+        number(&find("of which by errors in the books")[1]),
+        dec("1")
+    );
+    assert_eq!(
+        number(&find("of which by errors in the computation")[1]),
+        dec("0")
+    );
+    // Each account left out, by id, with the error that kept it out.
+    let left = find("HM-SAV-009");
+    assert_eq!(
+        left[..5]
+            .iter()
+            .map(ToString::to_string)
+            .collect::<Vec<_>>(),
+        [
+            "HM-SAV-009",
+            "harbourview.xlsx",
+            "Movements",
+            "B7",
+            "found '2024-02-30'; expected a date; correct the value date"
+        ]
+    );
     assert_eq!(number(&find("Problems: errors")[1]), dec("1"));
     // The writer's own note about text figures is a warning.
     assert_eq!(number(&find("Problems: warnings")[1]), dec("1"));
@@ -554,19 +592,23 @@ fn the_summary_holds_the_facts_totals_counts_chart_and_caution() {
         header(&rows[totals_header..]),
         vec![
             "Currency",
+            "Side",
             "Accounts",
             "Balance at cut-off",
             "Accrued at cut-off",
             "Posted in window",
-            "Interest for window"
+            "Interest for window",
+            "Prior-period adjustment"
         ]
     );
     let jpy = &rows[totals_header + 1];
     assert_eq!(jpy[0], Data::String("JPY".into()));
-    assert_eq!(number(&jpy[2]), dec("5000000"));
+    assert_eq!(jpy[1], Data::String("liability".into()));
+    assert_eq!(number(&jpy[3]), dec("5000000"));
     let usd = &rows[totals_header + 2];
-    assert_eq!(usd[2], Data::String("1,000,000,000,026,500.55".into()));
-    assert_eq!(number(&usd[5]), dec("74.47"));
+    assert_eq!(usd[3], Data::String("1,000,000,000,026,500.55".into()));
+    assert_eq!(number(&usd[6]), dec("74.47"));
+    assert_eq!(number(&usd[7]), dec("-1.25"));
 
     assert_eq!(number(&find("under-posted")[1]), dec("1"));
     assert_eq!(number(&find("agrees")[1]), dec("1"));
@@ -976,7 +1018,7 @@ fn the_summary_lists_the_largest_variances_in_money_and_glosses_balance_years() 
         .position(|r| r[0] == Data::String("Largest variances in money, by currency".into()))
         .expect("the table's title");
     assert_eq!(
-        header(&rows[title + 1..]),
+        header(&rows[title + 1..])[..6],
         [
             "Currency",
             "Account",
