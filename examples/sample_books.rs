@@ -8,18 +8,24 @@
 use std::path::Path;
 
 use chrono::{Datelike, NaiveDate};
+use ledgerate::batch::journal::JournalStyle;
+use ledgerate::batch::{run_books, BatchSettings};
 use ledgerate::book::{read_book, ReadOptions};
 use ledgerate::conventions::daycount::Basis;
 use ledgerate::engine::floating::{FixingFallback, FloatingRates};
+use ledgerate::engine::ledger::SettlementLines;
 use ledgerate::engine::rates::{RateSchedule, RateTable};
 use ledgerate::engine::reconcile::expected_over;
+use ledgerate::engine::reconcile::Tolerance;
 use ledgerate::engine::run::{accrue, RunOptions};
 use ledgerate::engine::{AccountTerms, Inputs, Movement};
 use ledgerate::schema::{
-    layout, Layout, ACCOUNTS, FIXINGS, HOLIDAYS, MOVEMENTS, RATES, SETTINGS, STATEMENTS,
+    layout, Layout, ACCOUNTS, BOOKED, FIXINGS, HOLIDAYS, MOVEMENTS, RATES, SETTINGS, STATEMENTS,
+    TRIAL_BALANCE,
 };
 use rust_decimal::Decimal;
 use rust_xlsxwriter::{Format, Workbook};
+use std::collections::BTreeMap;
 
 /// A cell of a sample sheet.
 #[derive(Clone)]
@@ -517,9 +523,12 @@ fn sheets() -> Vec<Sheet> {
         vec![t("BR-2026"), date("2026-11-20"), t("Black Awareness Day")],
         vec![t("BR-2026"), date("2026-12-25"), t("Christmas Day")],
     ];
+    // The October close was run on 2 November: DEP-1028-LATE, booked on
+    // 3 November, reaches the books as a prior-period adjustment.
     let settings = vec![
         vec![t("cutoff"), date("2026-11-30")],
         vec![t("entity"), t("HARBOURVIEW-MUTUAL")],
+        vec![t("previous_as_at"), date("2026-11-02")],
     ];
     vec![
         Sheet {
@@ -639,7 +648,8 @@ fn write_xlsx(sheets: &[Sheet], path: &Path) -> Result<(), rust_xlsxwriter::Xlsx
 fn write_csv(sheets: &[Sheet], dir: &Path) -> std::io::Result<()> {
     std::fs::create_dir_all(dir)?;
     for s in sheets {
-        let mut w = csv::Writer::from_path(dir.join(format!("{}.csv", s.name.to_lowercase())))?;
+        let mut w =
+            csv::Writer::from_path(dir.join(ledgerate::report::book_writer::csv_name(s.name)))?;
         w.write_record(&s.columns)?;
         for row in &s.rows {
             // Rows shorter than the header are padded: a CSV row must have every field.
@@ -809,6 +819,82 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
     Ok(rows)
 }
 
+/// The Booked and Trial balance sheets, from a run of the book as the
+/// November close makes it: the trial balance at 31 October holds what the
+/// October close booked (the accounts' booked openings, by entity, currency
+/// and accrued-interest GL account), so the Tie-out agrees; the Booked rows
+/// at the cut-off are the core system's accrued interest on the two
+/// intercompany accounts, one of them accrued from a day late.
+type Rows = Vec<Vec<Cell>>;
+fn ledger_sheets(book_dir: &Path) -> Result<(Rows, Rows), Box<dyn std::error::Error>> {
+    let book = read_book(book_dir, &ReadOptions::default());
+    if book.has_errors() {
+        return Err(format!("the sample book has problems: {:?}", book.problems).into());
+    }
+    let settings = BatchSettings {
+        cutoff: "2026-11-30".parse()?,
+        window_start: "2026-11-01".parse()?,
+        daily: false,
+        journal_style: JournalStyle::Incremental,
+        entities: vec!["HARBOURVIEW-MUTUAL".to_string()],
+        tolerance: Tolerance::default(),
+        fast_path: true,
+        shard: None,
+        fixing_fallback: FixingFallback::None,
+        as_at: None,
+        previous_as_at: Some("2026-11-02".parse()?),
+        settlement_lines: SettlementLines::PaymentDate,
+    };
+    let result = run_books(std::slice::from_ref(&book), &settings, &|| {});
+    let mut opening: BTreeMap<(String, String), Decimal> = BTreeMap::new();
+    for a in &result.accruals {
+        let l = &a.ledger;
+        // A trial balance prints a payable's credit balance negative.
+        let printed = if a.side == "liability" && !l.booked_opening.is_zero() {
+            -l.booked_opening
+        } else {
+            l.booked_opening
+        };
+        *opening
+            .entry((a.currency.to_string(), l.gl_accrued.to_string()))
+            .or_default() += printed;
+    }
+    let trial_balance = opening
+        .into_iter()
+        .map(|((currency, gl), balance)| {
+            vec![
+                t("HARBOURVIEW-MUTUAL"),
+                t(&currency),
+                t(&gl),
+                date("2026-10-31"),
+                num(&balance.to_string()),
+            ]
+        })
+        .collect();
+    let open_item = |id: &str| -> Result<Decimal, String> {
+        result
+            .accruals
+            .iter()
+            .find(|a| a.account == id)
+            .map(|a| a.ledger.open_item)
+            .ok_or(format!("{id} was not computed"))
+    };
+    // HM-IC-001 accrued from 2 October in the core system: 59 days of
+    // 30/360 on 2,000,000.00 at 5.10% instead of 60.
+    let late = (Decimal::new(2_000_000, 0) * Decimal::new(51, 3) * Decimal::from(59)
+        / Decimal::from(360))
+    .round_dp(2);
+    let booked = vec![
+        vec![t("HM-IC-001"), date("2026-11-30"), num(&late.to_string())],
+        vec![
+            t("HM-IC-002"),
+            date("2026-11-30"),
+            num(&open_item("HM-IC-002")?.to_string()),
+        ],
+    ];
+    Ok((booked, trial_balance))
+}
+
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books");
     let csv_dir = root.join("harbourview-2026-11-csv");
@@ -832,6 +918,33 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
             )
             .labels(),
             rows,
+        },
+    );
+    // Then the ledger's own sheets, from the books with their statements.
+    write_csv(&sheets, &csv_dir)?;
+    let (booked, trial_balance) = ledger_sheets(&csv_dir)?;
+    sheets.insert(
+        4,
+        Sheet {
+            name: "Booked",
+            columns: layout!(BOOKED, "account", "date", "open_item").labels(),
+            rows: booked,
+        },
+    );
+    sheets.insert(
+        5,
+        Sheet {
+            name: "Trial balance",
+            columns: layout!(
+                TRIAL_BALANCE,
+                "entity",
+                "currency",
+                "gl_account",
+                "date",
+                "balance"
+            )
+            .labels(),
+            rows: trial_balance,
         },
     );
     write_xlsx(&sheets, &root.join("harbourview-2026-11.xlsx"))?;

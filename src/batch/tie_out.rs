@@ -97,7 +97,13 @@ impl TieOut {
             |key, side| {
                 // A trial balance prints debits positive: a payable's normal
                 // (credit) balance is the negative of its trial-balance figure.
-                let normal = |tb: Decimal| if side == "liability" { -tb } else { tb };
+                let normal = |tb: Decimal| {
+                    if side == "liability" && !tb.is_zero() {
+                        -tb
+                    } else {
+                        tb
+                    }
+                };
                 (
                     balance_on(key, eve).map(normal),
                     balance_on(key, cutoff).map(normal),

@@ -99,6 +99,26 @@ pub(crate) fn print_summary(
             .collect();
         writeln!(out, "statement rows: {}", counts.join(", "))?;
     }
+    if !report.accrued_check.is_empty() {
+        let mut counts = crate::batch::totals::StatusCounts::default();
+        for row in &report.accrued_check {
+            counts.add(row.status);
+        }
+        let counts: Vec<String> = counts
+            .rows()
+            .iter()
+            .map(|c| format!("{} {}", c.rows, c.status.name()))
+            .collect();
+        writeln!(out, "accrued check: {}", counts.join(", "))?;
+    }
+    if let Some(lines) = &report.tie_out {
+        let statuses: Vec<_> = lines.iter().map(|l| l.status).collect();
+        writeln!(
+            out,
+            "tie-out: {}",
+            crate::report::workbook::tie_out_words(&statuses)
+        )?;
+    }
     writeln!(
         out,
         "problems: {}, {}, {} (all listed on the Problems sheet)",
