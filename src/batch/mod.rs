@@ -402,12 +402,16 @@ impl<'s> Sums<'s> {
                     )
                 })
                 .collect();
-            result.problems.extend(tie_out::unused_row_notes(
-                &tb,
-                &used,
-                settings.window_start,
-                settings.cutoff,
-            ));
+            // With accounts left out, a GL account only they use is not
+            // "unused": their errors already say why nothing ties to it.
+            if result.accounts_left_out + result.accounts_failed == 0 {
+                result.problems.extend(tie_out::unused_row_notes(
+                    &tb,
+                    &used,
+                    settings.window_start,
+                    settings.cutoff,
+                ));
+            }
             let (lines, mixed) = self.tie_out.rows(
                 &tb,
                 settings.window_start,

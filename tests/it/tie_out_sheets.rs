@@ -486,7 +486,6 @@ fn shards_merged_give_the_single_runs_ledger_sheets() {
 /// Tie-out and Accrued check as above, and `merge` of its shards equal to
 /// the single run on every sheet.
 #[test]
-#[ignore = "needs the Booked and Trial balance readers (Book.booked, Book.trial_balance)"]
 fn the_program_writes_and_merges_the_ledger_sheets_of_a_csv_book() {
     let dir = tempfile::tempdir().unwrap();
     let book = write_book(dir.path(), true);
