@@ -429,10 +429,12 @@ fn check_accrued(
     options: &Options,
 ) -> Result<CheckedRow, EngineError> {
     let c = options.cutoff;
+    // A posting ending on the cut-off is still in the open item: the row
+    // covers its period rather than an empty span after it.
     let from = result
         .postings
         .iter()
-        .filter(|p| p.end <= c)
+        .filter(|p| p.end < c)
         .map(|p| p.end)
         .max()
         .and_then(|e| e.succ_opt())
