@@ -110,6 +110,8 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
             "Summary",
             "Accruals",
             "Reconciliation",
+            "Accrued check",
+            "Tie-out",
             "Journal",
             "Problems",
             "Run"
@@ -173,6 +175,8 @@ fn the_workbook_is_byte_identical_across_runs_and_thread_counts() {
             "Summary",
             "Accruals",
             "Reconciliation",
+            "Accrued check",
+            "Tie-out",
             "Journal",
             "Daily",
             "Problems",
@@ -577,7 +581,7 @@ fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time()
         ("tolerance_bp", "0.5", "command line"),
         ("fixing_fallback", "none", "default"),
         ("as_at", "no limit: every row is known", "default"),
-        ("previous_as_at", "none", "default"),
+        ("previous_as_at", "2026-11-02", "Settings sheet"),
         ("settlement_lines", "payment-date", "default"),
     ];
     for (name, value, source) in want {
