@@ -4,7 +4,8 @@
 //! Takes the rows each shard's workbook holds (read back by
 //! `report::readback`) once `split` has proven them one complete split of
 //! one run, puts the rows back in book order and adds them up again through
-//! the batch's own [`Totals`], [`StatusCounts`] and [`Journal`]. It never
+//! the batch's own [`Totals`], [`StatusCounts`] and [`Journal`] (the Journal
+//! detail too, from the shards' detail rows, when every shard has one). It never
 //! changes a figure of a row, never reads or writes a file, and never keeps
 //! a problem twice.
 
@@ -16,7 +17,9 @@ use super::journal::Journal;
 use super::split::OneSplit;
 use super::totals::{largest_variances, StatusCounts, Totals, LARGEST_PER_CURRENCY};
 use crate::problem::{sort_problems, Problem};
-use crate::report::model::{AccrualLine, DailyLine, ReconciliationLine, Report, RunFacts};
+use crate::report::model::{
+    AccrualLine, DailyLine, JournalDetail, JournalLine, ReconciliationLine, Report, RunFacts,
+};
 use crate::report::readback::RunRows;
 
 /// Shards that cannot be combined.
@@ -35,7 +38,8 @@ pub enum MergeError {
 /// (`order`: account id to its position across the books), totals, counts
 /// and journal added up again, problems listed once each in the order every
 /// report lists them. `accounts_read` and `accounts_failed` are the sums
-/// over the shards.
+/// over the shards. The report has a Journal detail when every shard has
+/// one: their rows, each line's accounts in book order.
 pub fn merge(
     split: OneSplit,
     order: &HashMap<String, usize>,
@@ -54,6 +58,7 @@ pub fn merge(
         rows.add(part);
     }
     rows.put_in_book_order(order);
+    let journal_detail = rows.add_detail(order);
     let books: Vec<String> = facts.inputs.iter().map(|i| i.path.clone()).collect();
     sort_problems(&mut rows.problems, &books);
     let totals = Totals::of(&rows.accruals);
@@ -76,22 +81,42 @@ pub fn merge(
         },
         accruals: rows.accruals,
         reconciliation: rows.reconciliation,
-        journal: rows.journal.lines(),
+        journal: rows.journal_lines,
+        journal_detail,
         daily: rows.daily,
         problems: rows.problems,
     }
 }
 
 /// Every shard's rows together.
-#[derive(Default)]
 struct Combined {
     accruals: Vec<AccrualLine>,
     reconciliation: Vec<ReconciliationLine>,
     daily: Option<Vec<DailyLine>>,
     journal: Journal,
+    /// The journal's lines, once [`Combined::add_detail`] has finished it.
+    journal_lines: Vec<JournalLine>,
+    /// Each shard's Journal detail; `None` once a shard has none.
+    details: Option<Vec<JournalDetail>>,
     problems: Vec<Problem>,
     accounts_read: usize,
     accounts_failed: usize,
+}
+
+impl Default for Combined {
+    fn default() -> Combined {
+        Combined {
+            accruals: Vec::new(),
+            reconciliation: Vec::new(),
+            daily: None,
+            journal: Journal::keeping_detail(),
+            journal_lines: Vec::new(),
+            details: Some(Vec::new()),
+            problems: Vec::new(),
+            accounts_read: 0,
+            accounts_failed: 0,
+        }
+    }
 }
 
 impl Combined {
@@ -106,12 +131,43 @@ impl Combined {
         for line in &part.journal {
             self.journal.add_line(line);
         }
+        match (part.journal_detail, self.details.as_mut()) {
+            (Some(d), Some(all)) => all.push(d),
+            _ => self.details = None,
+        }
         // Book problems are in every shard; each is kept once.
         for q in part.problems {
             if !self.problems.contains(&q) {
                 self.problems.push(q);
             }
         }
+    }
+
+    /// The shards' detail rows added to the journal, accounts in book order
+    /// (each account's rows together, in its shard's order), then the
+    /// journal finished: its lines, and the detail when every shard had one.
+    fn add_detail(&mut self, order: &HashMap<String, usize>) -> Option<JournalDetail> {
+        let complete = self.details.take();
+        let details = complete.as_deref().unwrap_or_default();
+        let rank = |id: &str| order.get(id).copied().unwrap_or(usize::MAX);
+        let mut rows: Vec<(usize, usize, u32, usize)> = Vec::new();
+        for (s, d) in details.iter().enumerate() {
+            for (i, r) in d.rows.iter().enumerate() {
+                rows.push((rank(d.account(r)), s, r.account, i));
+            }
+        }
+        rows.sort_unstable();
+        for (_, s, _, i) in rows {
+            let Some(d) = details.get(s) else { continue };
+            let Some(r) = d.rows.get(i) else { continue };
+            if let Some(line) = d.line(r) {
+                self.journal.add_detail(line, d.account(r), r.amount);
+            }
+        }
+        let journal = std::mem::take(&mut self.journal);
+        let (lines, detail) = journal.finish();
+        self.journal_lines = lines;
+        detail.filter(|_| complete.is_some())
     }
 
     /// Account rows sorted by the account's place in the books (stable: an

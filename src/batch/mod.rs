@@ -6,6 +6,7 @@
 //! order whatever the thread count, and every total is a sum of rounded
 //! amounts, so the output is the same on one thread or many.
 
+mod detail;
 pub mod journal;
 pub mod merge;
 pub mod split;
@@ -24,7 +25,8 @@ use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{Problem, Severity};
 use crate::report::model::{
-    AccrualLine, CurrencyTotal, DailyLine, JournalLine, ReconciliationLine, StatusCount, Word,
+    AccrualLine, CurrencyTotal, DailyLine, JournalDetail, JournalLine, ReconciliationLine,
+    StatusCount, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle};
 use totals::{StatusCounts, Totals};
@@ -40,6 +42,8 @@ pub struct BatchSettings {
     pub daily: bool,
     /// How the journal books accruals.
     pub journal_style: JournalStyle,
+    /// Keep each account's share of each journal line (the Journal detail).
+    pub journal_detail: bool,
     /// The entity of each book, by book index.
     pub entities: Vec<String>,
     /// Reconciliation tolerances.
@@ -85,6 +89,8 @@ pub struct BatchResult {
     pub totals: Vec<CurrencyTotal>,
     /// Journal lines.
     pub journal: Vec<JournalLine>,
+    /// Each account's share of each journal line, when asked for.
+    pub journal_detail: Option<JournalDetail>,
     /// Daily lines, when asked for.
     pub daily: Option<Vec<DailyLine>>,
     /// Reconciliation rows, by account in book order.
@@ -221,7 +227,11 @@ impl<'s> Sums<'s> {
         Sums {
             settings,
             result,
-            journal: Journal::new(),
+            journal: if settings.journal_detail {
+                Journal::keeping_detail()
+            } else {
+                Journal::new()
+            },
             totals: Totals::default(),
             counts: StatusCounts::default(),
             daily: Vec::new(),
@@ -236,6 +246,7 @@ impl<'s> Sums<'s> {
         let entity = settings.entities.get(bi).map_or("default", String::as_str);
         self.journal.add_account(
             &AccountEntries {
+                account: &entry.terms.id,
                 entity,
                 currency: &o.line.currency,
                 minor_units: o.line.minor_units,
@@ -260,13 +271,33 @@ impl<'s> Sums<'s> {
     }
 
     fn finish(self) -> BatchResult {
+        let (journal, journal_detail) = self.journal.finish();
+        let mut result = self.result;
+        if self.settings.journal_detail && journal_detail.is_none() {
+            result.problems.push(detail_given_up());
+        }
         BatchResult {
             totals: self.totals.rows(),
             status_counts: self.counts.rows(),
-            journal: self.journal.lines(),
+            journal,
+            journal_detail,
             daily: self.settings.daily.then_some(self.daily),
-            ..self.result
+            ..result
         }
+    }
+}
+
+/// The warning for a Journal detail too large to index: more than
+/// 4,294,967,295 accounts or journal lines (no run comes near it).
+fn detail_given_up() -> Problem {
+    Problem {
+        severity: Severity::Warning,
+        position: crate::problem::Position::default(),
+        account: None,
+        found: "more than 4,294,967,295 accounts or journal lines".into(),
+        expected: "a Journal detail whose accounts and lines can be counted".into(),
+        fix: "the Journal detail is left out whole; split the run with --shard K/N".into(),
+        follows: None,
     }
 }
 

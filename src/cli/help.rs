@@ -51,6 +51,9 @@ Examples:
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --daily --fail-on-variance --out november-daily.xlsx
   Accept up to half a basis point, and book reversing journal entries:
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --tolerance-bp 0.5 --journal-style reversing --out november-reversing.xlsx
+  The journal lines as a CSV file for the general ledger, and the Journal detail
+  (each line's accounts) as a CSV file beside the workbook instead of a sheet:
+    ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --journal-csv november-journal.csv --journal-detail csv --out november.xlsx
   Shard 1 of 2 of a month end split across machines (combine with 'ledgerate merge'):
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --shard 1/2 --out shard-1.xlsx";
 

@@ -1,6 +1,7 @@
 //! Reading a workbook this program wrote back into its rows: the Run
-//! sheet's facts, the Accruals, Reconciliation, Journal, Daily and Problems
-//! lists (with their continuation sheets) and the Summary's account counts.
+//! sheet's facts, the Accruals, Reconciliation, Journal, Journal detail,
+//! Daily and Problems lists (with their continuation sheets) and the
+//! Summary's account counts.
 //! `ledgerate merge` combines shard runs from them.
 //!
 //! Sheets and columns are found by the writer's own header labels, and every
@@ -24,13 +25,13 @@ use rust_decimal::Decimal;
 use super::error::ReportError;
 use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
-    AccrualLine, DailyLine, InputFile, JournalLine, ReconciliationLine, RunFacts, Setting,
-    SettingSource,
+    AccrualLine, DailyLine, DetailLine, DetailRow, InputFile, JournalDetail, JournalLine,
+    ReconciliationLine, RunFacts, Setting, SettingSource,
 };
 use super::workbook::{
     is_writer_note, ACCOUNTS_LEFT_OUT, ACCOUNTS_READ, ACCRUALS_HEADER, DAILY_HEADER, INPUTS_HEADER,
-    JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM,
-    RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS,
+    JOURNAL_DETAIL_HEADER, JOURNAL_HEADER, PROBLEMS_HEADER, RECONCILIATION_HEADER,
+    RUN_COMMAND_LINE, RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -50,6 +51,8 @@ pub struct RunRows {
     pub reconciliation: Vec<ReconciliationLine>,
     /// Journal rows.
     pub journal: Vec<JournalLine>,
+    /// The Journal detail, when the workbook has the sheet.
+    pub journal_detail: Option<JournalDetail>,
     /// Daily rows, when the workbook has the sheet.
     pub daily: Option<Vec<DailyLine>>,
     /// Problems rows, without the writer's own notes.
@@ -68,6 +71,7 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
     let accruals = book.accruals()?;
     let reconciliation = book.reconciliation()?;
     let journal = book.journal()?;
+    let journal_detail = book.journal_detail()?;
     let daily = book.daily(&accruals)?;
     let problems = book.problems()?;
     let (read, left_out) = book.account_counts()?;
@@ -81,10 +85,60 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
         accruals,
         reconciliation,
         journal,
+        journal_detail,
         daily,
         problems,
     })
 }
+
+/// Journal detail rows read back one at a time, gathered into a
+/// [`JournalDetail`] with each line and account id held once.
+#[derive(Debug, Default)]
+pub(crate) struct DetailRows {
+    detail: JournalDetail,
+    lines: HashMap<DetailLine, u32>,
+    accounts: HashMap<String, u32>,
+}
+
+impl DetailRows {
+    /// Adds one row: `account`'s share `amount` (debit positive) of `line`.
+    /// `None` past [`u32::MAX`] lines or accounts.
+    pub(crate) fn push(&mut self, line: DetailLine, account: &str, amount: Decimal) -> Option<()> {
+        let line = match self.lines.get(&line) {
+            Some(i) => *i,
+            None => {
+                let i = u32::try_from(self.detail.lines.len())
+                    .ok()
+                    .filter(|i| *i < u32::MAX)?;
+                self.lines.insert(line.clone(), i);
+                self.detail.lines.push(line);
+                i
+            }
+        };
+        let account = match self.accounts.get(account) {
+            Some(i) => *i,
+            None => {
+                let i = self.detail.accounts.push(account)?;
+                self.accounts.insert(account.to_string(), i);
+                i
+            }
+        };
+        self.detail.rows.push(DetailRow {
+            line,
+            account,
+            amount,
+        });
+        Some(())
+    }
+
+    /// The detail gathered.
+    pub(crate) fn finish(self) -> JournalDetail {
+        self.detail
+    }
+}
+
+/// The Journal detail sheet's name (its continuations add a number).
+const JOURNAL_DETAIL: &str = super::workbook::JOURNAL_DETAIL;
 
 /// Columns the writer writes on the Run sheet: those of its widest table.
 const RUN_COLUMNS: u32 = if INPUTS_HEADER.len() > SETTINGS_HEADER.len() {
@@ -424,6 +478,45 @@ impl Written {
             .collect()
     }
 
+    /// The Journal detail sheets, when the workbook has them.
+    fn journal_detail(&mut self) -> Result<Option<JournalDetail>, ReportError> {
+        let Some(list) = self.list(JOURNAL_DETAIL, &JOURNAL_DETAIL_HEADER)? else {
+            return Ok(None);
+        };
+        let mut rows = DetailRows::default();
+        for r in list.rows(&self.path) {
+            let currency = r.text(2);
+            let places = minor_units(&currency);
+            let (debit, credit) = (r.amount(6, places)?, r.amount(7, places)?);
+            if debit.is_zero() == credit.is_zero()
+                || debit < Decimal::ZERO
+                || credit < Decimal::ZERO
+            {
+                return Err(r.error(
+                    6,
+                    &format!("Debit {debit} and Credit {credit}"),
+                    "an amount in one of Debit and Credit, and zero in the other",
+                ));
+            }
+            let line = DetailLine {
+                date: r.date(0)?,
+                entity: r.text(1),
+                currency,
+                minor_units: places,
+                gl_account: r.text(3),
+                memo: r.text(4),
+            };
+            rows.push(line, &r.text(5), debit - credit).ok_or_else(|| {
+                r.error(
+                    5,
+                    "more than 4,294,967,295 accounts or lines",
+                    "a Journal detail a merge can count",
+                )
+            })?;
+        }
+        Ok(Some(rows.finish()))
+    }
+
     /// Daily rows take their minor units from the account's Accruals row.
     fn daily(&mut self, accruals: &[AccrualLine]) -> Result<Option<Vec<DailyLine>>, ReportError> {
         let Some(list) = self.list("Daily", &DAILY_HEADER)? else {
@@ -467,7 +560,8 @@ impl Written {
                 fix: r.text(6),
                 follows: None,
             };
-            if !is_writer_note(&p) {
+            // Notes the writer and the CSV files make anew on every run.
+            if !is_writer_note(&p) && p.expected != super::journal_csv::guard_expected() {
                 problems.push(p);
             }
         }

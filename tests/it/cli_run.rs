@@ -111,6 +111,7 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
             "Accruals",
             "Reconciliation",
             "Journal",
+            "Journal detail",
             "Problems",
             "Run"
         ]
@@ -174,6 +175,7 @@ fn the_workbook_is_byte_identical_across_runs_and_thread_counts() {
             "Accruals",
             "Reconciliation",
             "Journal",
+            "Journal detail",
             "Daily",
             "Problems",
             "Run"
@@ -565,6 +567,7 @@ fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time()
         ("window_start", "2026-11-01", "default"),
         ("entity", "Harbourview Mutual", "command line"),
         ("journal_style", "incremental", "default"),
+        ("journal_detail", "sheet", "default"),
         ("daily", "false", "default"),
         ("decimal_comma", "false", "default"),
         ("statement_end", "inclusive", "default"),

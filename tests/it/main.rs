@@ -21,6 +21,7 @@ mod cli_shards;
 mod explain_matches_run;
 mod hostile_books;
 mod hostile_inputs;
+mod journal_detail;
 mod layers;
 mod merge_safety;
 mod messages;
