@@ -844,6 +844,7 @@ fn ledger_sheets(book_dir: &Path) -> Result<(Rows, Rows), Box<dyn std::error::Er
         as_at: None,
         previous_as_at: Some("2026-11-02".parse()?),
         settlement_lines: SettlementLines::PaymentDate,
+        journal_detail: false,
     };
     let result = run_books(std::slice::from_ref(&book), &settings, &|| {});
     let mut opening: BTreeMap<(String, String), Decimal> = BTreeMap::new();

@@ -3,16 +3,19 @@
 //!
 //! Pure: it turns computed figures into balanced lines and never decides an
 //! amount itself. Every entry it makes is balanced, so debits equal credits
-//! per currency by construction (and a test checks it).
+//! per currency by construction (and a test checks it). Every entry goes
+//! through [`Journal::entry`], which also keeps, when asked, each account's
+//! share of each line (the Journal detail, [`super::detail`]).
 
 use std::collections::BTreeMap;
 
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
+use super::detail::Shares;
 use crate::book::GlCodes;
 use crate::engine::Side;
-use crate::report::model::{JournalLine, Word};
+use crate::report::model::{split_sides, DetailLine, JournalDetail, JournalLine, Word};
 
 /// How accruals are booked.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -127,6 +130,8 @@ impl ResolvedGl {
 /// One account's figures as the journal needs them.
 #[derive(Debug, Clone)]
 pub struct AccountEntries<'a> {
+    /// The account's id, for the Journal detail.
+    pub account: &'a str,
     /// Entity that books it.
     pub entity: &'a str,
     /// ISO 4217 code.
@@ -172,7 +177,11 @@ struct LineKey {
 /// and purpose, debits and credits netted to one side.
 #[derive(Debug, Default)]
 pub struct Journal {
-    lines: BTreeMap<LineKey, (u32, Decimal)>,
+    /// Each line's minor units, its sum so far (debit positive) and its id
+    /// for the detail (`None` past `u32::MAX` lines).
+    lines: BTreeMap<LineKey, (u32, Decimal, Option<u32>)>,
+    /// Each account's share of each line, when the detail is kept.
+    shares: Option<Shares>,
 }
 
 impl Journal {
@@ -181,11 +190,29 @@ impl Journal {
         Journal::default()
     }
 
-    /// Adds a balanced entry: `amount` debited to `debit_gl` and credited to
-    /// `credit_gl` (a negative amount swaps the sides).
+    /// An empty journal that keeps each account's share of each line for
+    /// the Journal detail ([`Journal::finish`]).
+    pub fn keeping_detail() -> Journal {
+        Journal {
+            shares: Some(Shares::default()),
+            ..Journal::default()
+        }
+    }
+
+    /// The line of `key`, made with a zero sum when new.
+    fn slot(&mut self, key: LineKey, minor_units: u32) -> &mut (u32, Decimal, Option<u32>) {
+        let id = u32::try_from(self.lines.len()).ok();
+        self.lines
+            .entry(key)
+            .or_insert((minor_units, Decimal::ZERO, id))
+    }
+
+    /// Adds a balanced entry of `account`: `amount` debited to `debit_gl`
+    /// and credited to `credit_gl` (a negative amount swaps the sides).
     #[allow(clippy::too_many_arguments)]
     fn entry(
         &mut self,
+        account: &str,
         date: NaiveDate,
         entity: &str,
         currency: &str,
@@ -207,12 +234,13 @@ impl Journal {
                 gl: gl.to_string(),
                 memo: memo.to_string(),
             };
-            let slot = self
-                .lines
-                .entry(key)
-                .or_insert((minor_units, Decimal::ZERO));
+            let slot = self.slot(key, minor_units);
             // Amounts are rounded to minor units, so these sums are exact in any order.
             slot.1 += signed;
+            let id = slot.2;
+            if let Some(shares) = self.shares.as_mut() {
+                shares.add(id, account, signed);
+            }
         }
     }
 
@@ -227,11 +255,29 @@ impl Journal {
             gl: line.gl_account.clone(),
             memo: line.memo.clone(),
         };
-        let slot = self
-            .lines
-            .entry(key)
-            .or_insert((line.minor_units, Decimal::ZERO));
+        let slot = self.slot(key, line.minor_units);
         slot.1 += line.debit - line.credit;
+    }
+
+    /// Adds one account's share of a line to the detail only (a row of a
+    /// shard's Journal detail), `amount` debit positive. The line's sum is
+    /// left alone: it comes from the shard's Journal ([`Journal::add_line`]).
+    pub fn add_detail(&mut self, line: &DetailLine, account: &str, amount: Decimal) {
+        if self.shares.is_none() {
+            return;
+        }
+        let key = LineKey {
+            date: line.date,
+            entity: line.entity.clone(),
+            currency: line.currency.clone(),
+            order: purpose(&line.memo),
+            gl: line.gl_account.clone(),
+            memo: line.memo.clone(),
+        };
+        let id = self.slot(key, line.minor_units).2;
+        if let Some(shares) = self.shares.as_mut() {
+            shares.add(id, account, amount);
+        }
     }
 
     /// Adds one account's entries for the window `from..=to`
@@ -252,6 +298,7 @@ impl Journal {
         };
         let mut book = |date: NaiveDate, dr: &str, cr: &str, memo: &str, amount: Decimal| {
             self.entry(
+                a.account,
                 date,
                 a.entity,
                 a.currency,
@@ -323,29 +370,48 @@ impl Journal {
 
     /// The journal lines, by date, entity, currency and purpose.
     pub fn lines(self) -> Vec<JournalLine> {
-        self.lines
-            .into_iter()
-            .filter(|(_, (_, amount))| !amount.is_zero())
-            .map(|(k, (minor_units, amount))| {
-                let zero = crate::conventions::rounding::RoundMode::HalfUp
-                    .round(Decimal::ZERO, minor_units);
-                let (debit, credit) = if amount.is_sign_positive() {
-                    (amount, zero)
-                } else {
-                    (zero, -amount)
-                };
-                JournalLine {
-                    date: k.date,
-                    entity: k.entity,
-                    currency: k.currency,
-                    minor_units,
-                    gl_account: k.gl,
-                    debit,
-                    credit,
-                    memo: k.memo,
+        self.finish().0
+    }
+
+    /// The journal lines, by date, entity, currency and purpose, and the
+    /// Journal detail when it was kept: for every line, each account's
+    /// share, the shares of a line adding up to it exactly. A line that
+    /// nets to nothing is not a journal line, but stays in the detail's
+    /// lines, its accounts' shares adding up to zero. `None` for a
+    /// journal that keeps no detail, or one with more accounts or lines
+    /// than its indices hold.
+    pub fn finish(self) -> (Vec<JournalLine>, Option<JournalDetail>) {
+        let keep = self.shares.is_some();
+        let mut lines = Vec::new();
+        let mut all = Vec::new();
+        let mut place = vec![u32::MAX; if keep { self.lines.len() } else { 0 }];
+        for (k, (minor_units, amount, id)) in self.lines {
+            let (debit, credit) = split_sides(amount, minor_units);
+            let line = JournalLine {
+                date: k.date,
+                entity: k.entity,
+                currency: k.currency,
+                minor_units,
+                gl_account: k.gl,
+                debit,
+                credit,
+                memo: k.memo,
+            };
+            if keep {
+                if let Some(slot) = id
+                    .and_then(|id| usize::try_from(id).ok())
+                    .and_then(|id| place.get_mut(id))
+                {
+                    *slot = u32::try_from(all.len()).unwrap_or(u32::MAX);
                 }
-            })
-            .collect()
+                all.push(DetailLine::of(&line));
+            }
+            if !amount.is_zero() {
+                lines.push(line);
+            }
+        }
+        let detail = self.shares.and_then(|s| s.finish(all, &place));
+        (lines, detail)
     }
 }
 
@@ -382,6 +448,7 @@ mod tests {
         let loan_gl = ResolvedGl::of(Side::Asset, &GlCodes::default());
         let mut j = Journal::new();
         let deposit = AccountEntries {
+            account: "DEP-1",
             entity: "HM",
             currency: "USD",
             minor_units: 2,
@@ -393,6 +460,7 @@ mod tests {
             settlements: vec![(d("2026-11-16"), n("229.99"))],
         };
         let loan = AccountEntries {
+            account: "LN-1",
             side: Side::Asset,
             gl: &loan_gl,
             window_days_interest: n("20.00"),
@@ -457,6 +525,7 @@ mod tests {
         let mut j = Journal::new();
         for amount in ["10.00", "15.50", "-30.00"] {
             let a = AccountEntries {
+                account: amount,
                 entity: "HM",
                 currency: "EUR",
                 minor_units: 2,
@@ -488,6 +557,7 @@ mod tests {
         let gl = ResolvedGl::of(Side::Asset, &GlCodes::default());
         let mut j = Journal::new();
         let a = AccountEntries {
+            account: "LN-2",
             entity: "HM",
             currency: "JPY",
             minor_units: 0,
@@ -532,6 +602,7 @@ mod tests {
         );
         let mut j = Journal::new();
         let a = AccountEntries {
+            account: "A-1",
             entity: "HM",
             currency: "USD",
             minor_units: 2,
@@ -582,6 +653,7 @@ mod tests {
         let gl = ResolvedGl::of(Side::Liability, &GlCodes::default());
         let mut j = Journal::new();
         let a = AccountEntries {
+            account: "A-1",
             entity: "HM",
             currency: "USD",
             minor_units: 2,
@@ -610,5 +682,244 @@ mod tests {
         assert_eq!(on("2026-11-30"), n("454.23"));
         assert_eq!(on("2026-12-01"), n("0.00"));
         assert!(lines.iter().all(|l| !l.memo.starts_with("prior-period")));
+    }
+
+    type Key = (NaiveDate, String, String, String, String);
+
+    fn key(l: &DetailLine) -> Key {
+        (
+            l.date,
+            l.entity.clone(),
+            l.currency.clone(),
+            l.gl_account.clone(),
+            l.memo.clone(),
+        )
+    }
+
+    /// The detail's rows summed per date, entity, currency, GL account and memo.
+    fn detail_sums(d: &JournalDetail) -> BTreeMap<Key, Decimal> {
+        let mut sums = BTreeMap::new();
+        for r in &d.rows {
+            *sums.entry(key(d.line(r).unwrap())).or_default() += r.amount;
+        }
+        sums
+    }
+
+    /// Liability and asset accounts with postings, one of them two postings
+    /// paid the same day and one with negative interest, in both styles.
+    fn accounts<'g>(liability: &'g ResolvedGl, asset: &'g ResolvedGl) -> Vec<AccountEntries<'g>> {
+        let base = AccountEntries {
+            account: "DEP-1",
+            entity: "HM",
+            currency: "USD",
+            minor_units: 2,
+            side: Side::Liability,
+            gl: liability,
+            window_days_interest: n("222.91"),
+            prior_period: n("1.10"),
+            open_item: n("111.63"),
+            settlements: vec![(d("2026-11-16"), n("229.99"))],
+        };
+        vec![
+            base.clone(),
+            AccountEntries {
+                account: "DEP-2",
+                window_days_interest: n("-3.10"),
+                prior_period: Decimal::ZERO,
+                open_item: n("-1.05"),
+                settlements: vec![(d("2026-12-01"), n("5.00")), (d("2026-12-01"), n("7.25"))],
+                ..base.clone()
+            },
+            AccountEntries {
+                account: "LN-1",
+                side: Side::Asset,
+                gl: asset,
+                window_days_interest: n("20.00"),
+                prior_period: Decimal::ZERO,
+                open_item: n("20.00"),
+                settlements: vec![(d("2026-11-16"), n("15.40"))],
+                ..base.clone()
+            },
+            AccountEntries {
+                account: "LN-2",
+                side: Side::Asset,
+                gl: asset,
+                currency: "JPY",
+                minor_units: 0,
+                window_days_interest: n("900"),
+                prior_period: Decimal::ZERO,
+                open_item: n("500"),
+                settlements: vec![(d("2026-11-15"), n("400"))],
+                ..base
+            },
+        ]
+    }
+
+    fn run(style: JournalStyle, gl: &GlCodes) -> (Vec<JournalLine>, JournalDetail) {
+        let liability = ResolvedGl::of(Side::Liability, gl);
+        let asset = ResolvedGl::of(Side::Asset, gl);
+        let mut j = Journal::keeping_detail();
+        for a in accounts(&liability, &asset) {
+            j.add_account(&a, style, d("2026-11-01"), d("2026-11-30"));
+        }
+        let (lines, detail) = j.finish();
+        (lines, detail.unwrap())
+    }
+
+    /// Each GL line traces to accounts: the detail's rows add up, per date,
+    /// entity, currency, GL account and memo, to every journal line exactly,
+    /// debit and credit netted as the line is, in both styles.
+    #[test]
+    fn the_detail_adds_up_to_every_line_in_both_styles() {
+        let gl = GlCodes::default();
+        for style in [JournalStyle::Incremental, JournalStyle::Reversing] {
+            let (lines, detail) = run(style, &gl);
+            balanced(&lines);
+            let sums = detail_sums(&detail);
+            let want: BTreeMap<Key, Decimal> = lines
+                .iter()
+                .map(|l| (key(&DetailLine::of(l)), l.debit - l.credit))
+                .collect();
+            assert_eq!(sums, want, "{style:?}");
+            // The detail's lines are the journal's, in the same order.
+            let named: Vec<DetailLine> = lines.iter().map(DetailLine::of).collect();
+            assert_eq!(detail.lines, named, "{style:?}");
+            // Each row is one side: debit or credit, never both.
+            for r in &detail.rows {
+                let (dr, cr) = r.sides(detail.line(r).unwrap().minor_units);
+                assert!(dr.is_zero() != cr.is_zero(), "{style:?} {r:?}");
+            }
+        }
+    }
+
+    /// Two postings of one account paid the same day are one row of the
+    /// settlement line: the account's share of that line.
+    #[test]
+    fn an_accounts_postings_on_one_day_are_one_row() {
+        let gl = GlCodes::default();
+        let (_, detail) = run(JournalStyle::Incremental, &gl);
+        let rows: Vec<(&str, Decimal)> = detail
+            .rows
+            .iter()
+            .filter(|r| {
+                let l = detail.line(r).unwrap();
+                l.date == d("2026-12-01") && l.gl_account == defaults::SETTLEMENT
+            })
+            .map(|r| (detail.account(r), r.amount))
+            .collect();
+        assert_eq!(rows, vec![("DEP-2", n("-12.25"))]);
+    }
+
+    /// Rows of a line come in the order the accounts were added (book order).
+    #[test]
+    fn a_lines_rows_keep_the_accounts_order() {
+        let gl = GlCodes::default();
+        let (_, detail) = run(JournalStyle::Incremental, &gl);
+        let payable: Vec<&str> = detail
+            .rows
+            .iter()
+            .filter(|r| {
+                let l = detail.line(r).unwrap();
+                l.date == d("2026-11-30")
+                    && l.gl_account == defaults::ACCRUED_PAYABLE
+                    && l.memo.starts_with("interest accrued")
+            })
+            .map(|r| detail.account(r))
+            .collect();
+        assert_eq!(payable, vec!["DEP-1", "DEP-2"]);
+    }
+
+    /// A line whose accounts net to nothing is no journal line; its accounts
+    /// stay in the detail, on a line with both sides zero, adding up to it.
+    #[test]
+    fn a_line_that_nets_to_nothing_keeps_its_accounts_in_the_detail() {
+        let gl = GlCodes::default();
+        let (lg, ag) = (
+            ResolvedGl::of(Side::Liability, &gl),
+            ResolvedGl::of(Side::Asset, &gl),
+        );
+        let deposit = accounts(&lg, &ag).swap_remove(0);
+        let mut j = Journal::keeping_detail();
+        for (id, amount) in [("DEP-1", "10.00"), ("DEP-2", "-10.00")] {
+            let a = AccountEntries {
+                account: id,
+                window_days_interest: n(amount),
+                prior_period: Decimal::ZERO,
+                settlements: vec![],
+                ..deposit.clone()
+            };
+            j.add_account(
+                &a,
+                JournalStyle::Incremental,
+                d("2026-11-01"),
+                d("2026-11-30"),
+            );
+        }
+        let (lines, detail) = j.finish();
+        let detail = detail.unwrap();
+        assert!(lines.is_empty());
+        assert_eq!(detail.lines.len(), 2);
+        assert_eq!(detail.rows.len(), 4);
+        assert!(detail_sums(&detail).values().all(Decimal::is_zero));
+    }
+
+    /// A merge's journal: the shards' lines and detail rows added back give
+    /// the single journal's lines and detail.
+    #[test]
+    fn lines_and_detail_rows_added_back_give_the_same_journal() {
+        let gl = GlCodes::default();
+        let (lg, ag) = (
+            ResolvedGl::of(Side::Liability, &gl),
+            ResolvedGl::of(Side::Asset, &gl),
+        );
+        for style in [JournalStyle::Incremental, JournalStyle::Reversing] {
+            let all = accounts(&lg, &ag);
+            let (single_lines, single) = run(style, &gl);
+            let mut merged = Journal::keeping_detail();
+            let mut shard_details = Vec::new();
+            for part in [&all[..2], &all[2..]] {
+                let mut j = Journal::keeping_detail();
+                for a in part {
+                    j.add_account(a, style, d("2026-11-01"), d("2026-11-30"));
+                }
+                let (lines, detail) = j.finish();
+                for l in &lines {
+                    merged.add_line(l);
+                }
+                shard_details.push(detail.unwrap());
+            }
+            // A merge adds each account's rows together, accounts in book order.
+            for detail in &shard_details {
+                let mut rows = detail.rows.clone();
+                rows.sort_by_key(|r| r.account);
+                for r in &rows {
+                    merged.add_detail(detail.line(r).unwrap(), detail.account(r), r.amount);
+                }
+            }
+            let (lines, detail) = merged.finish();
+            assert_eq!(lines, single_lines, "{style:?}");
+            assert_eq!(detail.unwrap(), single, "{style:?}");
+        }
+    }
+
+    #[test]
+    fn a_journal_without_detail_keeps_none() {
+        let gl = GlCodes::default();
+        let (lg, ag) = (
+            ResolvedGl::of(Side::Liability, &gl),
+            ResolvedGl::of(Side::Asset, &gl),
+        );
+        let mut j = Journal::new();
+        for a in accounts(&lg, &ag) {
+            j.add_account(
+                &a,
+                JournalStyle::Incremental,
+                d("2026-11-01"),
+                d("2026-11-30"),
+            );
+        }
+        let (lines, detail) = j.finish();
+        assert!(!lines.is_empty());
+        assert!(detail.is_none());
     }
 }

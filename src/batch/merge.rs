@@ -7,7 +7,8 @@
 //! the batch's own [`Totals`], [`StatusCounts`], [`Journal`] and [`TieOut`]
 //! (the Tie-out's sub-ledger sums from the merged Accruals rows, its trial
 //! balance figures from the shards' Tie-out rows, which all read the same
-//! books). It never changes a figure of a row, never reads or writes a
+//! books; the Journal detail from the shards' detail rows, when every shard
+//! has one). It never changes a figure of a row, never reads or writes a
 //! file, and never keeps a problem twice.
 
 use std::collections::HashMap;
@@ -23,7 +24,8 @@ use super::totals::{largest_variances, StatusCounts, Totals, LARGEST_PER_CURRENC
 use crate::engine::reconcile::Tolerance;
 use crate::problem::{sort_problems, Problem};
 use crate::report::model::{
-    AccrualLine, DailyLine, LeftOutLine, ReconciliationLine, Report, RunFacts, Setting, TieOutLine,
+    AccrualLine, DailyLine, JournalDetail, JournalLine, LeftOutLine, ReconciliationLine, Report,
+    RunFacts, Setting, TieOutLine,
 };
 use crate::report::readback::RunRows;
 
@@ -46,6 +48,8 @@ pub enum MergeError {
 /// failed) are the sums over the shards, and the accounts left out that the
 /// shards name are listed in the order one run lists them: each shard names
 /// its first ones, so the first of all are among them.
+/// The report has a Journal detail when every shard has one: their rows,
+/// each line's accounts in book order.
 pub fn merge(
     split: OneSplit,
     order: &HashMap<String, usize>,
@@ -64,6 +68,7 @@ pub fn merge(
         rows.add(part);
     }
     rows.put_in_book_order(order);
+    let journal_detail = rows.add_detail(order);
     let books: Vec<String> = facts.inputs.iter().map(|i| i.path.clone()).collect();
     let tie_out = rows.tie_out(&settings, books.first().map_or("", String::as_str));
     rows.keep_unused_row_notes_of_every_shard();
@@ -93,14 +98,14 @@ pub fn merge(
         reconciliation: rows.reconciliation,
         accrued_check: rows.accrued_check,
         tie_out,
-        journal: rows.journal.lines(),
+        journal: rows.journal_lines,
+        journal_detail,
         daily: rows.daily,
         problems: rows.problems,
     }
 }
 
 /// Every shard's rows together.
-#[derive(Default)]
 struct Combined {
     accruals: Vec<AccrualLine>,
     reconciliation: Vec<ReconciliationLine>,
@@ -109,6 +114,10 @@ struct Combined {
     tie_out: Option<Vec<TieOutLine>>,
     daily: Option<Vec<DailyLine>>,
     journal: Journal,
+    /// The journal's lines, once [`Combined::add_detail`] has finished it.
+    journal_lines: Vec<JournalLine>,
+    /// Each shard's Journal detail; `None` once a shard has none.
+    details: Option<Vec<JournalDetail>>,
     problems: Vec<Problem>,
     /// Each note on a trial balance row no account uses, with how many
     /// shards have it.
@@ -118,6 +127,28 @@ struct Combined {
     accounts_read: usize,
     accounts_left_out: usize,
     accounts_failed: usize,
+}
+
+impl Default for Combined {
+    fn default() -> Combined {
+        Combined {
+            accruals: Vec::new(),
+            reconciliation: Vec::new(),
+            accrued_check: Vec::new(),
+            tie_out: None,
+            daily: None,
+            journal: Journal::keeping_detail(),
+            journal_lines: Vec::new(),
+            details: Some(Vec::new()),
+            problems: Vec::new(),
+            unused_row_notes: Vec::new(),
+            shards: 0,
+            left_out: Vec::new(),
+            accounts_read: 0,
+            accounts_left_out: 0,
+            accounts_failed: 0,
+        }
+    }
 }
 
 impl Combined {
@@ -139,6 +170,10 @@ impl Combined {
         for line in &part.journal {
             self.journal.add_line(line);
         }
+        match (part.journal_detail, self.details.as_mut()) {
+            (Some(d), Some(all)) => all.push(d),
+            _ => self.details = None,
+        }
         let mut noted: Vec<Problem> = Vec::new();
         // Book problems are in every shard; each is kept once.
         for q in part.problems {
@@ -156,6 +191,33 @@ impl Combined {
                 None => self.unused_row_notes.push((q, 1)),
             }
         }
+    }
+
+    /// The shards' detail rows added to the journal, accounts in book order
+    /// (each account's rows together, in its shard's order), then the
+    /// journal finished: its lines, and the detail when every shard had one.
+    fn add_detail(&mut self, order: &HashMap<String, usize>) -> Option<JournalDetail> {
+        let complete = self.details.take();
+        let details = complete.as_deref().unwrap_or_default();
+        let rank = |id: &str| order.get(id).copied().unwrap_or(usize::MAX);
+        let mut rows: Vec<(usize, usize, u32, usize)> = Vec::new();
+        for (s, d) in details.iter().enumerate() {
+            for (i, r) in d.rows.iter().enumerate() {
+                rows.push((rank(d.account(r)), s, r.account, i));
+            }
+        }
+        rows.sort_unstable();
+        for (_, s, _, i) in rows {
+            let Some(d) = details.get(s) else { continue };
+            let Some(r) = d.rows.get(i) else { continue };
+            if let Some(line) = d.line(r) {
+                self.journal.add_detail(line, d.account(r), r.amount);
+            }
+        }
+        let journal = std::mem::take(&mut self.journal);
+        let (lines, detail) = journal.finish();
+        self.journal_lines = lines;
+        detail.filter(|_| complete.is_some())
     }
 
     /// Account rows sorted by the account's place in the books (stable: an

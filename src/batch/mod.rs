@@ -9,6 +9,7 @@
 //! amounts, so the output is the same on one thread or many. It never
 //! decides which accounts the reader left out: the books say so.
 
+mod detail;
 pub mod journal;
 pub mod merge;
 pub mod split;
@@ -31,7 +32,7 @@ use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{report_order, Position, Problem};
 use crate::report::model::{
-    AccrualLine, CurrencyTotal, DailyLine, JournalLine, LedgerLine, LeftOutLine,
+    AccrualLine, CurrencyTotal, DailyLine, JournalDetail, JournalLine, LedgerLine, LeftOutLine,
     ReconciliationLine, StatusCount, TieOutLine, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl};
@@ -49,6 +50,8 @@ pub struct BatchSettings {
     pub daily: bool,
     /// How the journal books accruals.
     pub journal_style: JournalStyle,
+    /// Keep each account's share of each journal line (the Journal detail).
+    pub journal_detail: bool,
     /// The entity of each book, by book index.
     pub entities: Vec<String>,
     /// Reconciliation tolerances.
@@ -101,6 +104,8 @@ pub struct BatchResult {
     pub totals: Vec<CurrencyTotal>,
     /// Journal lines.
     pub journal: Vec<JournalLine>,
+    /// Each account's share of each journal line, when asked for.
+    pub journal_detail: Option<JournalDetail>,
     /// Daily lines, when asked for.
     pub daily: Option<Vec<DailyLine>>,
     /// Reconciliation rows, by account in book order.
@@ -337,7 +342,11 @@ impl<'s> Sums<'s> {
         Sums {
             settings,
             result,
-            journal: Journal::new(),
+            journal: if settings.journal_detail {
+                Journal::keeping_detail()
+            } else {
+                Journal::new()
+            },
             totals: Totals::default(),
             counts: StatusCounts::default(),
             tie_out: TieOut::default(),
@@ -353,6 +362,7 @@ impl<'s> Sums<'s> {
         let l = &o.line.ledger;
         self.journal.add_account(
             &AccountEntries {
+                account: &entry.terms.id,
                 entity: &l.entity,
                 currency: &o.line.currency,
                 minor_units: o.line.minor_units,
@@ -389,7 +399,11 @@ impl<'s> Sums<'s> {
     fn finish(self, books: &[Book]) -> BatchResult {
         let settings = self.settings;
         let tb: Vec<&TrialBalanceRow> = books.iter().flat_map(|b| &b.trial_balance).collect();
+        let (journal, journal_detail) = self.journal.finish();
         let mut result = self.result;
+        if settings.journal_detail && journal_detail.is_none() {
+            result.problems.push(detail_given_up());
+        }
         if !tb.is_empty() {
             let used: HashSet<(String, String, String)> = result
                 .accruals
@@ -430,10 +444,25 @@ impl<'s> Sums<'s> {
         BatchResult {
             totals: self.totals.rows(),
             status_counts: self.counts.rows(),
-            journal: self.journal.lines(),
+            journal,
+            journal_detail,
             daily: settings.daily.then_some(self.daily),
             ..result
         }
+    }
+}
+
+/// The warning for a Journal detail too large to index: more than
+/// 4,294,967,295 accounts or journal lines (no run comes near it).
+fn detail_given_up() -> Problem {
+    Problem {
+        severity: crate::problem::Severity::Warning,
+        position: crate::problem::Position::default(),
+        account: None,
+        found: "more than 4,294,967,295 accounts or journal lines".into(),
+        expected: "a Journal detail whose accounts and lines can be counted".into(),
+        fix: "the Journal detail is left out whole; split the run with --shard K/N".into(),
+        follows: None,
     }
 }
 

@@ -85,6 +85,7 @@ fn settings() -> BatchSettings {
         window_start: d("2026-11-01"),
         daily: false,
         journal_style: JournalStyle::Incremental,
+        journal_detail: true,
         entities: vec!["HM".into()],
         tolerance: Tolerance::default(),
         fast_path: true,
@@ -476,6 +477,7 @@ fn read_back(file: &str, shard: Option<(u32, u32)>, r: BatchResult) -> split::Sh
         accrued_check: r.accrued_check,
         tie_out: r.tie_out,
         journal: r.journal,
+        journal_detail: r.journal_detail,
         daily: r.daily,
         problems: r.problems,
     };
@@ -530,6 +532,7 @@ fn shards_merged_equal_the_single_run() {
     assert_eq!(merged.reconciliation, single.reconciliation);
     assert_eq!(merged.status_counts, single.status_counts);
     assert_eq!(merged.journal, single.journal);
+    assert_eq!(merged.journal_detail, single.journal_detail);
     assert_eq!(merged.facts.accounts_read, single.accounts_read);
     assert_eq!(merged.facts.accounts_computed, single.accounts_computed);
     assert_eq!(merged.facts.accounts_left_out, single.accounts_left_out);

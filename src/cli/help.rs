@@ -54,6 +54,9 @@ Examples:
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --tolerance-bp 0.5 --journal-style reversing --out november-reversing.xlsx
   What was known at the close on 3 December, postings settled on their end dates:
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --as-at 2026-12-03 --settlement-lines period-end --out november-as-at.xlsx
+  The journal lines as a CSV file for the general ledger, and the Journal detail
+  (each line's accounts) as a CSV file beside the workbook instead of a sheet:
+    ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --journal-csv november-journal.csv --journal-detail csv --out november.xlsx
   Shard 1 of 2 of a month end split across machines (combine with 'ledgerate merge'):
     ledgerate run sample-books/harbourview-2026-11.xlsx --cutoff 2026-11-30 --shard 1/2 --out shard-1.xlsx";
 

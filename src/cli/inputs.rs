@@ -155,6 +155,36 @@ pub fn check_output_is_not_an_input(out: &Path, books: &[PathBuf]) -> Result<()>
     Ok(())
 }
 
+/// Refuses a second output (`what` names it, "the --journal-csv file")
+/// that is an input book, lies inside a CSV-folder input, or is one of the
+/// run's other outputs (`others`: what each is, and its path); `fix` says
+/// what to do instead.
+pub fn check_other_output(
+    out: &Path,
+    what: &str,
+    fix: &str,
+    others: &[(&str, &Path)],
+    books: &[PathBuf],
+) -> Result<()> {
+    let target = canonical_target(out);
+    for b in books {
+        let Ok(book) = b.canonicalize() else { continue };
+        if target == book || (book.is_dir() && target.starts_with(&book)) {
+            bail!(
+                "{what} {} would overwrite the input {}: {fix}",
+                out.display(),
+                b.display()
+            );
+        }
+    }
+    for (other, path) in others {
+        if canonical_target(path) == target {
+            bail!("{what} {} is {other}: {fix}", out.display());
+        }
+    }
+    Ok(())
+}
+
 /// The absolute path the output will have, even before it exists.
 fn canonical_target(out: &Path) -> PathBuf {
     if let Ok(c) = out.canonicalize() {

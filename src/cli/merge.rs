@@ -4,7 +4,10 @@
 //! (on shared storage, say): merge re-reads them for the order of accounts
 //! and checks their SHA-256 against the shards' Run sheets. Before any book is
 //! re-read or any file written, the shards are proven one complete split of
-//! one run (`batch::split`): same books, settings and N, each K once.
+//! one run (`batch::split`): same books, settings and N, each K once. The
+//! Journal detail is merged from the shards' own: their Journal detail
+//! sheets, or the detail files beside them when they were run with
+//! `--journal-detail csv`, and goes where theirs went.
 
 use std::collections::HashMap;
 use std::io::Write;
@@ -13,13 +16,15 @@ use std::path::{Path, PathBuf};
 use anyhow::{anyhow, bail, Context, Result};
 
 use super::inputs::{check_output_is_not_an_input, fingerprint};
+use super::run::Files;
 use super::summary::print_summary;
 use super::{exit, run_time};
 use crate::batch::merge::merge;
 use crate::batch::split::{self, Shard};
 use crate::book::{read_book, ReadOptions};
 use crate::problem::Severity;
-use crate::report::model::RunFacts;
+use crate::report::journal_csv::{self, DetailOutput};
+use crate::report::model::{RunFacts, Setting};
 use crate::report::readback::read_workbook;
 
 /// Arguments of `merge`.
@@ -34,6 +39,9 @@ pub struct Args {
     /// Pin the run time written in the workbook (YYYY-MM-DDTHH:MM:SS).
     #[arg(long, value_name = "TIMESTAMP")]
     fixed_time: Option<String>,
+    /// Also write the merged journal lines to FILE as CSV, for a general-ledger upload.
+    #[arg(long, value_name = "FILE")]
+    journal_csv: Option<PathBuf>,
 }
 
 /// Runs the command.
@@ -48,21 +56,36 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         .map(|i| PathBuf::from(&i.path))
         .collect();
     check_output_is_not_an_input(&args.out, &books)?;
+    let detail_output = detail_output(&split.facts().settings);
+    let mut taken = books.clone();
+    taken.extend(args.shards.iter().cloned());
+    let files = Files::beside(
+        &args.out,
+        detail_output,
+        args.journal_csv.as_deref(),
+        &taken,
+    )?;
     let order = book_order(split.facts())?;
     let shards: Vec<String> = args
         .shards
         .iter()
         .map(|s| s.display().to_string())
         .collect();
-    let report = merge(
+    let mut report = merge(
         split,
         &order,
         run_time(args.fixed_time.as_deref())?,
         format!("ledgerate merge {}", shards.join(" ")),
     );
+    let csv_detail = match detail_output {
+        DetailOutput::Csv => report.journal_detail.take(),
+        DetailOutput::Sheet | DetailOutput::None => None,
+    };
+    files.note_guarded_cells(&mut report, csv_detail.as_ref());
     let written = crate::report::write_report(&report, &args.out)
         .with_context(|| format!("cannot write the workbook {}", args.out.display()))?;
-    print_summary(out, &report, &written)?;
+    let written_files = files.write(&report, csv_detail.as_ref())?;
+    print_summary(out, &report, &written, &written_files)?;
     Ok(
         if report
             .problems
@@ -96,13 +119,46 @@ fn read_shards(shards: &[PathBuf]) -> Result<Vec<Shard>> {
                     s.display()
                 );
             }
-            let rows = read_workbook(s).map_err(|e| anyhow!("{e}"))?;
+            let mut rows = read_workbook(s).map_err(|e| anyhow!("{e}"))?;
+            match detail_output(&rows.facts.settings) {
+                DetailOutput::Sheet if rows.journal_detail.is_none() => bail!(
+                    "the shard workbook {} has no Journal detail sheet, though its Run sheet says \
+                     journal_detail sheet: run that shard again",
+                    s.display()
+                ),
+                DetailOutput::Csv => {
+                    let file = journal_csv::detail_csv_path(s);
+                    if !file.is_file() {
+                        bail!(
+                            "the shard workbook {} was run with --journal-detail csv, but its \
+                             Journal detail file {} is not there: put it back beside the \
+                             workbook, or run that shard again",
+                            s.display(),
+                            file.display()
+                        );
+                    }
+                    let detail =
+                        journal_csv::read_detail_csv(&file).map_err(|e| anyhow!("{e}"))?;
+                    rows.journal_detail = Some(detail);
+                }
+                _ => {}
+            }
             Ok(Shard {
                 file: s.display().to_string(),
                 rows,
             })
         })
         .collect()
+}
+
+/// Where the shards put their Journal detail, by their Run sheet's
+/// `journal_detail` setting (none for a workbook written before it existed).
+fn detail_output(settings: &[Setting]) -> DetailOutput {
+    settings
+        .iter()
+        .find(|s| s.name == "journal_detail")
+        .and_then(|s| DetailOutput::parse(&s.value).ok())
+        .unwrap_or(DetailOutput::None)
 }
 
 /// Each account's place across the input books the shards read, once each

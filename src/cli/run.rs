@@ -4,12 +4,14 @@
 //! shows which step it is in (see [`super::progress`]).
 
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use anyhow::{anyhow, Context, Result};
 use chrono::NaiveDateTime;
 
-use super::inputs::{check_books_exist, check_output_is_not_an_input, fingerprint, known_to_run};
+use super::inputs::{
+    check_books_exist, check_other_output, check_output_is_not_an_input, fingerprint, known_to_run,
+};
 use super::settings::{Given, KnowledgeArgs, Settings, ToleranceArgs};
 use super::summary::print_summary;
 use super::{exit, progress, read_books_showing, refuse_unreadable, run_time, BookArgs};
@@ -17,7 +19,8 @@ use crate::batch::totals::{largest_variances, LARGEST_PER_CURRENCY};
 use crate::batch::{run_books, BatchResult};
 use crate::book::Book;
 use crate::problem::{Problem, Severity};
-use crate::report::model::{InputFile, Report, RunFacts};
+use crate::report::journal_csv::{self, DetailOutput};
+use crate::report::model::{InputFile, JournalDetail, Report, RunFacts};
 
 /// Arguments of `run`.
 #[derive(Debug, clap::Args)]
@@ -48,6 +51,14 @@ pub struct Args {
     /// How the journal books accruals: incremental or reversing.
     #[arg(long, value_name = "STYLE")]
     journal_style: Option<String>,
+    /// Where the Journal detail (each journal line's accounts and amounts)
+    /// goes: sheet (after Journal), csv (a file beside the workbook, for
+    /// very large runs) or none.
+    #[arg(long, value_name = "WHERE")]
+    journal_detail: Option<String>,
+    /// Also write the journal lines to FILE as CSV, for a general-ledger upload.
+    #[arg(long, value_name = "FILE")]
+    journal_csv: Option<PathBuf>,
     #[command(flatten)]
     tolerance: ToleranceArgs,
     /// Exit with status 3 when any statement row is outside tolerance (for scheduled runs).
@@ -84,6 +95,7 @@ impl Args {
             window_start: self.window_start.as_deref(),
             entity: self.entity.as_deref(),
             journal_style: self.journal_style.as_deref(),
+            journal_detail: self.journal_detail.as_deref(),
             fixing_fallback: self.fixing_fallback.as_deref(),
             settlement_lines: self.settlement_lines.as_deref(),
             shard: self.shard.as_deref(),
@@ -99,7 +111,7 @@ impl Args {
 }
 
 /// The command line as the Run sheet shows it: without the options that
-/// cannot change a figure (threads, output path).
+/// cannot change a figure (threads, output paths).
 fn audited_command_line() -> String {
     let mut out = Vec::new();
     let mut skip_next = false;
@@ -112,11 +124,12 @@ fn audited_command_line() -> String {
         if a == "--no-fast-path" || a == "--timings" {
             continue;
         }
-        if a == "--threads" || a == "--out" {
+        if a == "--threads" || a == "--out" || a == "--journal-csv" {
             skip_next = true;
             continue;
         }
-        if a.starts_with("--threads=") || a.starts_with("--out=") {
+        if a.starts_with("--threads=") || a.starts_with("--out=") || a.starts_with("--journal-csv=")
+        {
             continue;
         }
         out.push(if a.contains(' ') {
@@ -146,6 +159,12 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         .clone()
         .unwrap_or_else(|| PathBuf::from(format!("accruals-{}.xlsx", settings.cutoff)));
     check_output_is_not_an_input(&target, &args.books.books)?;
+    let files = Files::of(
+        &target,
+        &settings,
+        args.journal_csv.as_deref(),
+        &args.books.books,
+    )?;
     let run_time = run_time(args.fixed_time.as_deref())?;
     let fingerprinting = progress::step("fingerprinting the books (SHA-256)");
     let inputs = args
@@ -157,19 +176,139 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     fingerprinting.finish_and_clear();
     clock.lap("fingerprint the inputs");
 
-    let batch = accrue(&books, &settings, args.threads)?;
+    let mut batch = accrue(&books, &settings, args.threads)?;
     clock.lap("accrue and reconcile");
 
     let fail_on_variance = settings.fail_on_variance;
-    let report = report(&books, batch, settings, inputs, run_time);
+    let detail = batch.journal_detail.take();
+    let (sheet_detail, csv_detail) = match settings.journal_detail {
+        DetailOutput::Sheet => (detail, None),
+        DetailOutput::Csv => (None, detail),
+        DetailOutput::None => (None, None),
+    };
+    let mut report = report(&books, batch, settings, inputs, run_time);
+    report.journal_detail = sheet_detail;
+    files.note_guarded_cells(&mut report, csv_detail.as_ref());
     let writing = progress::step(format!("writing the workbook {}", target.display()));
     let written = crate::report::write_report(&report, &target)
         .with_context(|| format!("cannot write the workbook {}", target.display()))?;
     writing.finish_and_clear();
+    let written_files = files.write(&report, csv_detail.as_ref())?;
     clock.lap("write the workbook");
     clock.report();
-    print_summary(out, &report, &written)?;
+    print_summary(out, &report, &written, &written_files)?;
     Ok(exit_status(&report, fail_on_variance))
+}
+
+/// The CSV files a run or a merge writes beside its workbook: the Journal
+/// detail (`--journal-detail csv`) and the import file (`--journal-csv`).
+pub(super) struct Files {
+    /// The Journal detail file, when the detail goes to one.
+    pub(super) detail: Option<PathBuf>,
+    /// The import file.
+    pub(super) journal: Option<PathBuf>,
+}
+
+impl Files {
+    /// The files of a run writing `workbook`, each checked to be none of
+    /// the `books` and not another output (status 2 otherwise).
+    pub(super) fn of(
+        workbook: &Path,
+        settings: &Settings,
+        journal: Option<&Path>,
+        books: &[PathBuf],
+    ) -> Result<Files> {
+        Files::beside(workbook, settings.journal_detail, journal, books)
+    }
+
+    /// As [`Files::of`], for a detail that goes to `detail`.
+    pub(super) fn beside(
+        workbook: &Path,
+        detail: DetailOutput,
+        journal: Option<&Path>,
+        books: &[PathBuf],
+    ) -> Result<Files> {
+        let detail = (detail == DetailOutput::Csv).then(|| journal_csv::detail_csv_path(workbook));
+        if let Some(d) = &detail {
+            check_other_output(
+                d,
+                "the Journal detail file",
+                "choose another --out path (the detail file is named after the workbook)",
+                &[("the workbook", workbook)],
+                books,
+            )?;
+            journal_csv::check_target(d)
+                .with_context(|| format!("cannot write the Journal detail file {}", d.display()))?;
+        }
+        if let Some(j) = journal {
+            let mut others = vec![("the workbook (--out)", workbook)];
+            if let Some(d) = &detail {
+                others.push(("the Journal detail file", d.as_path()));
+            }
+            check_other_output(
+                j,
+                "the --journal-csv file",
+                "give --journal-csv a path of its own",
+                &others,
+                books,
+            )?;
+            journal_csv::check_target(j)
+                .with_context(|| format!("cannot write the journal CSV file {}", j.display()))?;
+        }
+        Ok(Files {
+            detail,
+            journal: journal.map(Path::to_path_buf),
+        })
+    }
+
+    /// Adds to the report's problems one warning per file whose cells a
+    /// spreadsheet would take for a formula (written with an apostrophe),
+    /// in the order every report lists problems.
+    pub(super) fn note_guarded_cells(&self, report: &mut Report, detail: Option<&JournalDetail>) {
+        let mut notes = Vec::new();
+        if let (Some(path), Some(d)) = (&self.detail, detail) {
+            notes.extend(journal_csv::guard_note(
+                path,
+                &journal_csv::guarded_in_detail(d),
+            ));
+        }
+        if let Some(path) = &self.journal {
+            notes.extend(journal_csv::guard_note(
+                path,
+                &journal_csv::guarded_in_journal(&report.journal),
+            ));
+        }
+        if notes.is_empty() {
+            return;
+        }
+        report.problems.extend(notes);
+        let names: Vec<String> = report.facts.inputs.iter().map(|i| i.path.clone()).collect();
+        crate::problem::sort_problems(&mut report.problems, &names);
+    }
+
+    /// Writes the files (the detail when there is one to write); returns
+    /// what was written, for the printed summary.
+    pub(super) fn write<'f>(
+        &'f self,
+        report: &Report,
+        detail: Option<&JournalDetail>,
+    ) -> Result<Vec<(&'static str, &'f Path)>> {
+        let mut written = Vec::new();
+        if let (Some(path), Some(d)) = (&self.detail, detail) {
+            let writing = progress::step(format!("writing the Journal detail {}", path.display()));
+            journal_csv::write_detail_csv(d, path, &report.facts.inputs).with_context(|| {
+                format!("cannot write the Journal detail file {}", path.display())
+            })?;
+            writing.finish_and_clear();
+            written.push(("journal detail", path.as_path()));
+        }
+        if let Some(path) = &self.journal {
+            journal_csv::write_journal_csv(&report.journal, path, &report.facts.inputs)
+                .with_context(|| format!("cannot write the journal CSV file {}", path.display()))?;
+            written.push(("journal CSV", path.as_path()));
+        }
+        Ok(written)
+    }
 }
 
 /// Every account accrued on `threads` worker threads (default: one per
@@ -232,6 +371,7 @@ fn report(
         tie_out: batch.tie_out,
         status_counts: batch.status_counts,
         journal: batch.journal,
+        journal_detail: None,
         daily: batch.daily,
         problems,
     }

@@ -19,6 +19,7 @@ use crate::book::Book;
 use crate::engine::floating::FixingFallback;
 use crate::engine::ledger::SettlementLines;
 use crate::engine::reconcile::Tolerance;
+use crate::report::journal_csv::DetailOutput;
 use crate::report::model::{Setting, SettingSource};
 
 /// Reconciliation tolerances, as `run` and `explain` take them.
@@ -62,6 +63,8 @@ pub struct Given<'a> {
     pub entity: Option<&'a str>,
     /// `--journal-style`.
     pub journal_style: Option<&'a str>,
+    /// `--journal-detail`.
+    pub journal_detail: Option<&'a str>,
     /// `--tolerance-amount`.
     pub tolerance_amount: Option<&'a str>,
     /// `--tolerance-bp`.
@@ -115,6 +118,8 @@ pub struct Settings {
     pub window_start: NaiveDate,
     /// How the journal books accruals.
     pub journal_style: JournalStyle,
+    /// Where the Journal detail goes: a sheet, a CSV file or nowhere.
+    pub journal_detail: DetailOutput,
     /// The entity booking each book's journal lines, by book index.
     pub entities: Vec<String>,
     /// Reconciliation tolerances.
@@ -183,6 +188,7 @@ impl Settings {
             listed.record(&name, e);
         }
         listed.record("journal_style", &style);
+        let journal_detail = journal_detail(given.journal_detail, &mut listed)?;
         listed.record("daily", &switch(given.daily));
         listed.record("decimal_comma", &switch(given.decimal_comma));
         listed.record("statement_end", &statement_end(books));
@@ -205,6 +211,7 @@ impl Settings {
             cutoff: cutoff.value,
             window_start: window.value,
             journal_style,
+            journal_detail,
             entities: entities.into_iter().map(|e| e.value).collect(),
             tolerance,
             fixing_fallback,
@@ -226,6 +233,7 @@ impl Settings {
             window_start: self.window_start,
             daily: self.daily,
             journal_style: self.journal_style,
+            journal_detail: self.journal_detail != DetailOutput::None,
             entities: self.entities.clone(),
             tolerance: self.tolerance,
             fast_path: self.fast_path,
@@ -584,6 +592,27 @@ fn settlement_lines(
         },
     );
     Ok(lines)
+}
+
+/// The `--journal-detail` in force (the command line only), recorded for
+/// the Run sheet.
+fn journal_detail(given: Option<&str>, listed: &mut Listed) -> Result<DetailOutput> {
+    let output = match given {
+        Some(v) => DetailOutput::parse(v).map_err(|e| anyhow!("--journal-detail: {e}"))?,
+        None => DetailOutput::default(),
+    };
+    listed.record(
+        "journal_detail",
+        &Resolved {
+            value: output.name(),
+            source: if given.is_some() {
+                SettingSource::Option
+            } else {
+                SettingSource::Default
+            },
+        },
+    );
+    Ok(output)
 }
 
 /// The first day of `d`'s month.

@@ -16,11 +16,13 @@ use crate::problem::{by_cause, counted, Problem, Severity};
 use crate::report::model::{Report, LEFT_OUT_SHOWN};
 use crate::report::WriteOutcome;
 
-/// The plain-text summary on standard output.
+/// The plain-text summary on standard output; `files` are the files
+/// written beside the workbook, each with what it is ("journal detail").
 pub(crate) fn print_summary(
     out: &mut dyn Write,
     report: &Report,
     written: &WriteOutcome,
+    files: &[(&str, &std::path::Path)],
 ) -> Result<()> {
     let f = &report.facts;
     let target = &written.path;
@@ -128,6 +130,9 @@ pub(crate) fn print_summary(
     )?;
     print_errors(out, &report.problems)?;
     writeln!(out, "workbook: {}", target.display())?;
+    for (what, path) in files {
+        writeln!(out, "{what}: {}", path.display())?;
+    }
     writeln!(out, "review these figures against the contract terms and the applicable standards before booking them")?;
     Ok(())
 }

@@ -91,6 +91,18 @@ pub enum ReportError {
         /// What the writer writes there.
         expected: String,
     },
+    /// A row or cell of a CSV file read back is not what the writer writes.
+    #[error("{} row {row}: found {found}; expected {expected}: merge only takes the Journal detail files written by `ledgerate run --shard K/N --journal-detail csv`", .path.display())]
+    NotWrittenCsv {
+        /// The file.
+        path: PathBuf,
+        /// The row (1 is the header).
+        row: u64,
+        /// What was there.
+        found: String,
+        /// What the writer writes there.
+        expected: String,
+    },
     /// A fixed value of the writer itself is out of range (a defect of the program).
     #[error("internal error in the workbook writer: {0}; please report it")]
     Internal(String),

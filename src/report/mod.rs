@@ -17,11 +17,15 @@
 //!   folder (the sample books of `ledgerate sample`).
 //! * [`readback`] reads a workbook the writer wrote back into its rows, by
 //!   the writer's own header labels (for `ledgerate merge`).
+//! * [`journal_csv`] writes the journal as CSV files (the import file of
+//!   `--journal-csv`, the Journal detail of `--journal-detail csv`) and
+//!   reads that detail back.
 //! * `output` (private) does the temporary file, flush and rename.
 
 pub mod book_writer;
 pub mod cells;
 mod error;
+pub mod journal_csv;
 pub mod layout;
 pub mod model;
 mod output;

@@ -221,6 +221,189 @@ pub struct JournalLine {
     pub memo: String,
 }
 
+/// The accounts that make up the journal lines (Journal detail): for every
+/// line, one row per account with the account's share, netted to one side
+/// the way the line is, so that the rows of a line add up to it exactly.
+///
+/// Compact for runs of a million accounts: a row is a line index, an
+/// account index and an amount; the lines and account ids are held once.
+///
+/// ```
+/// use ledgerate::report::model::{DetailLine, DetailRow, JournalDetail};
+/// use rust_decimal::Decimal;
+/// let mut detail = JournalDetail::default();
+/// detail.lines.push(DetailLine {
+///     date: "2026-11-30".parse().unwrap(),
+///     entity: "HM".into(),
+///     currency: "USD".into(),
+///     minor_units: 2,
+///     gl_account: "6100".into(),
+///     memo: "interest accrued 2026-11-01..2026-11-30".into(),
+/// });
+/// let a = detail.accounts.push("DEP-1").unwrap();
+/// let b = detail.accounts.push("DEP-2").unwrap();
+/// detail.rows.push(DetailRow { line: 0, account: a, amount: Decimal::new(2000, 2) });
+/// detail.rows.push(DetailRow { line: 0, account: b, amount: Decimal::new(-500, 2) });
+/// // DEP-2 is on the credit side of a debit line: 20.00 - 5.00 is the line's 15.00.
+/// let (dr, cr) = detail.rows[1].sides(2);
+/// assert_eq!((dr.to_string(), cr.to_string()), ("0.00".to_string(), "5.00".to_string()));
+/// assert_eq!(detail.account(&detail.rows[1]), "DEP-2");
+/// ```
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct JournalDetail {
+    /// The lines the rows belong to, in the Journal sheet's order. A line
+    /// whose accounts net to nothing is here too, though the Journal sheet
+    /// leaves it out.
+    pub lines: Vec<DetailLine>,
+    /// The account ids the rows name.
+    pub accounts: AccountIds,
+    /// One row per line and account, by line, then accounts in book order.
+    pub rows: Vec<DetailRow>,
+}
+
+impl JournalDetail {
+    /// The line a row belongs to.
+    pub fn line(&self, row: &DetailRow) -> Option<&DetailLine> {
+        self.lines.get(usize::try_from(row.line).ok()?)
+    }
+
+    /// The account id a row names (empty for an index out of range).
+    pub fn account(&self, row: &DetailRow) -> &str {
+        self.accounts.get(row.account)
+    }
+}
+
+/// What names a journal line: the five things its amounts are summed by
+/// (date, entity, currency, GL account, memo) and the currency's minor units.
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
+pub struct DetailLine {
+    /// Booking date.
+    pub date: NaiveDate,
+    /// Entity booking it.
+    pub entity: String,
+    /// ISO 4217 code.
+    pub currency: String,
+    /// Minor units.
+    pub minor_units: u32,
+    /// GL account code.
+    pub gl_account: String,
+    /// What the line is.
+    pub memo: String,
+}
+
+impl DetailLine {
+    /// The names of a journal line.
+    pub fn of(line: &JournalLine) -> DetailLine {
+        DetailLine {
+            date: line.date,
+            entity: line.entity.clone(),
+            currency: line.currency.clone(),
+            minor_units: line.minor_units,
+            gl_account: line.gl_account.clone(),
+            memo: line.memo.clone(),
+        }
+    }
+}
+
+/// One account's share of one journal line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct DetailRow {
+    /// Index into [`JournalDetail::lines`].
+    pub line: u32,
+    /// Index into [`JournalDetail::accounts`].
+    pub account: u32,
+    /// The account's share, debit positive, credit negative (never zero).
+    pub amount: Decimal,
+}
+
+impl DetailRow {
+    /// Debit and credit, one of them zero (with the currency's `minor_units`
+    /// places), as a journal line shows them.
+    pub fn sides(&self, minor_units: u32) -> (Decimal, Decimal) {
+        split_sides(self.amount, minor_units)
+    }
+}
+
+/// A signed amount as debit and credit: a positive amount is a debit, a
+/// negative one a credit of its size; the other side is a zero with the
+/// currency's `minor_units` places.
+///
+/// ```
+/// use ledgerate::report::model::split_sides;
+/// use rust_decimal::Decimal;
+/// assert_eq!(split_sides(Decimal::new(-1250, 2), 2), (Decimal::new(0, 2), Decimal::new(1250, 2)));
+/// assert_eq!(split_sides(Decimal::new(300, 0), 0), (Decimal::new(300, 0), Decimal::ZERO));
+/// ```
+pub fn split_sides(amount: Decimal, minor_units: u32) -> (Decimal, Decimal) {
+    let mut zero = Decimal::ZERO;
+    zero.rescale(minor_units);
+    if amount.is_sign_negative() && !amount.is_zero() {
+        (zero, -amount)
+    } else {
+        (amount, zero)
+    }
+}
+
+/// Account ids held once, one after another in one text, each found by its
+/// index: a million ids cost their characters and one offset each.
+///
+/// ```
+/// use ledgerate::report::model::AccountIds;
+/// let mut ids = AccountIds::default();
+/// let a = ids.push("HM-SAV-001").unwrap();
+/// let b = ids.push("HM-LN-002").unwrap();
+/// assert_eq!((ids.get(a), ids.get(b), ids.len()), ("HM-SAV-001", "HM-LN-002", 2));
+/// assert_eq!(ids.last(), Some("HM-LN-002"));
+/// assert_eq!(ids.get(7), "");
+/// ```
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct AccountIds {
+    text: String,
+    /// Where each id ends in `text`.
+    ends: Vec<u32>,
+}
+
+impl AccountIds {
+    /// Adds an id and returns its index; `None` once [`u32::MAX`] ids, or
+    /// 4 GiB of their text, are held.
+    pub fn push(&mut self, id: &str) -> Option<u32> {
+        let index = u32::try_from(self.ends.len())
+            .ok()
+            .filter(|i| *i < u32::MAX)?;
+        let end = u32::try_from(self.text.len().checked_add(id.len())?).ok()?;
+        self.text.push_str(id);
+        self.ends.push(end);
+        Some(index)
+    }
+
+    /// The id at `index` (empty for an index out of range).
+    pub fn get(&self, index: u32) -> &str {
+        let Ok(i) = usize::try_from(index) else {
+            return "";
+        };
+        let at = |j: usize| self.ends.get(j).and_then(|e| usize::try_from(*e).ok());
+        let start = i.checked_sub(1).and_then(at).unwrap_or(0);
+        let end = at(i).unwrap_or(start);
+        self.text.get(start..end).unwrap_or_default()
+    }
+
+    /// The id added last.
+    pub fn last(&self) -> Option<&str> {
+        let n = u32::try_from(self.ends.len().checked_sub(1)?).ok()?;
+        Some(self.get(n))
+    }
+
+    /// How many ids there are.
+    pub fn len(&self) -> usize {
+        self.ends.len()
+    }
+
+    /// Whether there are none.
+    pub fn is_empty(&self) -> bool {
+        self.ends.is_empty()
+    }
+}
+
 /// One account-day (Daily sheet).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DailyLine {
@@ -384,6 +567,9 @@ pub struct Report {
     pub largest_variances: Vec<usize>,
     /// Journal lines.
     pub journal: Vec<JournalLine>,
+    /// The accounts of each journal line, when the workbook holds them
+    /// (the Journal detail sheet).
+    pub journal_detail: Option<JournalDetail>,
     /// Daily lines, when asked for.
     pub daily: Option<Vec<DailyLine>>,
     /// Problems of the books and the run.

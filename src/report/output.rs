@@ -1,4 +1,4 @@
-//! Putting a finished workbook on disk: into a temporary file beside the
+//! Putting a finished workbook (or CSV file) on disk: into a temporary file beside the
 //! target, flushed to the disk, then renamed over the target in one step, so
 //! that a reader sees either the old file or the complete new one.
 //!
@@ -109,6 +109,24 @@ pub(crate) fn save_atomically(
     target: &Path,
     dir: &Path,
 ) -> Result<(), ReportError> {
+    write_atomically(target, dir, "rename the finished workbook to", |out| {
+        wb.save_to_writer(out).map_err(|source| ReportError::Save {
+            path: target.to_path_buf(),
+            source,
+        })
+    })
+}
+
+/// Writes a file to `target` through a temporary file in `dir` (the
+/// target's folder): `write` fills the temporary file, which is then
+/// flushed to the disk and renamed over the target. `rename` names that
+/// last step in an error ("rename the finished workbook to").
+pub(crate) fn write_atomically(
+    target: &Path,
+    dir: &Path,
+    rename: &'static str,
+    write: impl FnOnce(&mut BufWriter<&mut std::fs::File>) -> Result<(), ReportError>,
+) -> Result<(), ReportError> {
     let io = |action: &'static str, path: &Path| {
         let path = path.to_path_buf();
         move |source: std::io::Error| ReportError::Io {
@@ -140,11 +158,7 @@ pub(crate) fn save_atomically(
         .map_err(io("create a temporary file in", dir))?;
     {
         let mut out = BufWriter::with_capacity(1 << 20, tmp.as_file_mut());
-        wb.save_to_writer(&mut out)
-            .map_err(|source| ReportError::Save {
-                path: target.to_path_buf(),
-                source,
-            })?;
+        write(&mut out)?;
         out.flush().map_err(io("write a temporary file in", dir))?;
     }
     tmp.as_file()
@@ -152,7 +166,7 @@ pub(crate) fn save_atomically(
         .map_err(io("flush a temporary file in", dir))?;
     // On failure the temporary file is dropped, which removes it.
     tmp.persist(target)
-        .map_err(|e| io("rename the finished workbook to", target)(e.error))?;
+        .map_err(|e| io(rename, target)(e.error))?;
     Ok(())
 }
 

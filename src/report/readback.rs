@@ -1,7 +1,8 @@
 //! Reading a workbook this program wrote back into its rows: the Run
 //! sheet's facts, the Accruals, Reconciliation, Accrued check, Tie-out,
-//! Journal, Daily and Problems lists (with their continuation sheets), the
-//! Summary's account counts and its list of the accounts left out.
+//! Journal, Journal detail, Daily and Problems lists (with their
+//! continuation sheets), the Summary's account counts and its list of the
+//! accounts left out.
 //! `ledgerate merge` combines shard runs from them.
 //!
 //! Sheets and columns are found by the writer's own header labels, and every
@@ -25,14 +26,15 @@ use rust_decimal::Decimal;
 use super::error::ReportError;
 use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
-    AccrualLine, DailyLine, InputFile, JournalLine, LedgerLine, LeftOutLine, ReconciliationLine,
-    RunFacts, Setting, SettingSource, TieOutLine, TieStatus,
+    AccrualLine, DailyLine, DetailLine, DetailRow, InputFile, JournalDetail, JournalLine,
+    LedgerLine, LeftOutLine, ReconciliationLine, RunFacts, Setting, SettingSource, TieOutLine,
+    TieStatus,
 };
 use super::workbook::{
     is_writer_note, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ, ACCRUALS_HEADER,
-    ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_HEADER, LEFT_OUT_HEADER,
-    LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM,
-    RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
+    ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER, JOURNAL_HEADER,
+    LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE,
+    RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -59,6 +61,8 @@ pub struct RunRows {
     pub tie_out: Option<Vec<TieOutLine>>,
     /// Journal rows.
     pub journal: Vec<JournalLine>,
+    /// The Journal detail, when the workbook has the sheet.
+    pub journal_detail: Option<JournalDetail>,
     /// Daily rows, when the workbook has the sheet.
     pub daily: Option<Vec<DailyLine>>,
     /// Problems rows, without the writer's own notes.
@@ -79,6 +83,7 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
     let accrued_check = book.checks("Accrued check", &ACCRUED_CHECK_HEADER)?;
     let tie_out = book.tie_out()?;
     let journal = book.journal()?;
+    let journal_detail = book.journal_detail()?;
     let daily = book.daily(&accruals)?;
     let problems = book.problems()?;
     let counts = book.account_counts()?;
@@ -96,10 +101,60 @@ pub fn read_workbook(path: &Path) -> Result<RunRows, ReportError> {
         accrued_check,
         tie_out,
         journal,
+        journal_detail,
         daily,
         problems,
     })
 }
+
+/// Journal detail rows read back one at a time, gathered into a
+/// [`JournalDetail`] with each line and account id held once.
+#[derive(Debug, Default)]
+pub(crate) struct DetailRows {
+    detail: JournalDetail,
+    lines: HashMap<DetailLine, u32>,
+    accounts: HashMap<String, u32>,
+}
+
+impl DetailRows {
+    /// Adds one row: `account`'s share `amount` (debit positive) of `line`.
+    /// `None` past [`u32::MAX`] lines or accounts.
+    pub(crate) fn push(&mut self, line: DetailLine, account: &str, amount: Decimal) -> Option<()> {
+        let line = match self.lines.get(&line) {
+            Some(i) => *i,
+            None => {
+                let i = u32::try_from(self.detail.lines.len())
+                    .ok()
+                    .filter(|i| *i < u32::MAX)?;
+                self.lines.insert(line.clone(), i);
+                self.detail.lines.push(line);
+                i
+            }
+        };
+        let account = match self.accounts.get(account) {
+            Some(i) => *i,
+            None => {
+                let i = self.detail.accounts.push(account)?;
+                self.accounts.insert(account.to_string(), i);
+                i
+            }
+        };
+        self.detail.rows.push(DetailRow {
+            line,
+            account,
+            amount,
+        });
+        Some(())
+    }
+
+    /// The detail gathered.
+    pub(crate) fn finish(self) -> JournalDetail {
+        self.detail
+    }
+}
+
+/// The Journal detail sheet's name (its continuations add a number).
+const JOURNAL_DETAIL: &str = super::workbook::JOURNAL_DETAIL;
 
 /// Columns the writer writes on the Run sheet: those of its widest table.
 const RUN_COLUMNS: u32 = if INPUTS_HEADER.len() > SETTINGS_HEADER.len() {
@@ -508,6 +563,45 @@ impl Written {
             .collect()
     }
 
+    /// The Journal detail sheets, when the workbook has them.
+    fn journal_detail(&mut self) -> Result<Option<JournalDetail>, ReportError> {
+        let Some(list) = self.list(JOURNAL_DETAIL, &JOURNAL_DETAIL_HEADER)? else {
+            return Ok(None);
+        };
+        let mut rows = DetailRows::default();
+        for r in list.rows(&self.path) {
+            let currency = r.text(2);
+            let places = minor_units(&currency);
+            let (debit, credit) = (r.amount(6, places)?, r.amount(7, places)?);
+            if debit.is_zero() == credit.is_zero()
+                || debit < Decimal::ZERO
+                || credit < Decimal::ZERO
+            {
+                return Err(r.error(
+                    6,
+                    &format!("Debit {debit} and Credit {credit}"),
+                    "an amount in one of Debit and Credit, and zero in the other",
+                ));
+            }
+            let line = DetailLine {
+                date: r.date(0)?,
+                entity: r.text(1),
+                currency,
+                minor_units: places,
+                gl_account: r.text(3),
+                memo: r.text(4),
+            };
+            rows.push(line, &r.text(5), debit - credit).ok_or_else(|| {
+                r.error(
+                    5,
+                    "more than 4,294,967,295 accounts or lines",
+                    "a Journal detail a merge can count",
+                )
+            })?;
+        }
+        Ok(Some(rows.finish()))
+    }
+
     /// Daily rows take their minor units from the account's Accruals row.
     fn daily(&mut self, accruals: &[AccrualLine]) -> Result<Option<Vec<DailyLine>>, ReportError> {
         let Some(list) = self.list("Daily", &DAILY_HEADER)? else {
@@ -551,7 +645,8 @@ impl Written {
                 fix: r.text(6),
                 follows: None,
             };
-            if !is_writer_note(&p) {
+            // Notes the writer and the CSV files make anew on every run.
+            if !is_writer_note(&p) && p.expected != super::journal_csv::guard_expected() {
                 problems.push(p);
             }
         }

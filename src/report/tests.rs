@@ -9,7 +9,7 @@ use rust_decimal::Decimal;
 
 use super::layout::Limits;
 use super::model::*;
-use super::workbook::{write_report_with, DAILY_HEADER, JOURNAL_HEADER};
+use super::workbook::{write_report_with, DAILY_HEADER, JOURNAL_DETAIL_HEADER, JOURNAL_HEADER};
 use crate::engine::reconcile::Status;
 
 fn dec(s: &str) -> Decimal {
@@ -105,9 +105,41 @@ fn report() -> Report {
         status_counts: vec![],
         largest_variances: vec![],
         journal: vec![],
+        journal_detail: None,
         daily: None,
         problems: vec![],
     }
+}
+
+/// A Journal detail of two lines (USD and KWD) and `n` accounts on each,
+/// every other account on the credit side.
+fn detail(n: u32) -> JournalDetail {
+    let line = |currency: &str, minor_units, gl: &str| DetailLine {
+        date: day(31),
+        entity: "HM".into(),
+        currency: currency.into(),
+        minor_units,
+        gl_account: gl.into(),
+        memo: "interest accrued 2024-03-01..2024-03-31".into(),
+    };
+    let mut d = JournalDetail {
+        lines: vec![line("USD", 2, "6100"), line("KWD", 3, "2300")],
+        ..JournalDetail::default()
+    };
+    for i in 0..n {
+        d.accounts.push(&format!("A-{i}")).unwrap();
+    }
+    for (l, amount) in [(0, "12.50"), (1, "-0.125")] {
+        for i in 0..n {
+            let sign = if i % 2 == 0 { "" } else { "-" };
+            d.rows.push(DetailRow {
+                line: l,
+                account: i,
+                amount: dec(&format!("{sign}{}", amount.trim_start_matches('-'))),
+            });
+        }
+    }
+    d
 }
 
 fn sheet_names(path: &std::path::Path) -> Vec<String> {
@@ -167,6 +199,47 @@ fn a_long_list_continues_on_numbered_sheets_with_the_header_repeated() {
     }
     // Every row once, in order: nothing truncated, nothing repeated.
     assert_eq!(dates, (1..=7).map(day).collect::<Vec<_>>());
+}
+
+/// The Journal detail comes right after Journal and continues on numbered
+/// sheets like every long list; each row is a debit or a credit.
+#[test]
+fn the_journal_detail_follows_the_journal_and_continues_on_numbered_sheets() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let mut r = report();
+    r.journal_detail = Some(detail(3));
+    let limits = Limits {
+        rows_per_sheet: 5, // header + 4 rows
+        ..Limits::default()
+    };
+    write_report_with(&r, &target, &limits).unwrap();
+    assert_eq!(
+        sheet_names(&target),
+        vec![
+            "Summary",
+            "Accruals",
+            "Journal",
+            "Journal detail",
+            "Journal detail 2",
+            "Problems",
+            "Run"
+        ]
+    );
+    let first = rows(&target, "Journal detail");
+    assert_eq!(header(&first), JOURNAL_DETAIL_HEADER);
+    assert_eq!(first.len(), 5);
+    let second = rows(&target, "Journal detail 2");
+    assert_eq!(header(&second), JOURNAL_DETAIL_HEADER);
+    assert_eq!(second.len(), 3);
+    // A-1 is on the credit side of the USD line: 12.50 in Credit, 0 in Debit.
+    let a1 = &first[2];
+    assert_eq!(a1[5], Data::String("A-1".into()));
+    assert_eq!(
+        (a1[6].clone(), a1[7].clone()),
+        (Data::Float(0.0), Data::Float(12.5))
+    );
+    assert!(matches!(a1[0], Data::DateTime(_)), "{:?}", a1[0]);
 }
 
 #[test]
@@ -458,6 +531,7 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
         l.accrued = l.interest * Decimal::from(l.date.day0() + 1);
     }
     r.daily = Some(days);
+    r.journal_detail = Some(detail(2));
     r.problems = vec![crate::problem::Problem {
         severity: crate::problem::Severity::Warning,
         position: crate::problem::Position {
@@ -489,6 +563,7 @@ fn a_written_workbook_reads_back_into_the_rows_it_was_written_from() {
     assert_eq!(back.accrued_check, []);
     assert_eq!(back.tie_out, None);
     assert_eq!(back.journal, r.journal);
+    assert_eq!(back.journal_detail, r.journal_detail);
     assert_eq!(back.daily, r.daily);
     assert_eq!(back.problems, r.problems);
     assert_eq!(back.left_out, r.left_out);

@@ -3,8 +3,9 @@
 //!
 //! Sheets: Summary, Accruals, Reconciliation (when there are reconciliation
 //! rows), Accrued check (when Booked rows give the core system's open items
-//! at cut-off), Tie-out (when the books have a trial balance), Journal, Daily
-//! (when asked for), Problems, Run. Every list sheet has
+//! at cut-off), Tie-out (when the books have a trial balance), Journal,
+//! Journal detail (when the report holds it), Daily (when asked for),
+//! Problems, Run. Every list sheet has
 //! a frozen header row and a filter over its header and data, and continues on
 //! "Name 2", "Name 3"... past the spreadsheet's row limit, never truncated.
 //!
@@ -27,8 +28,8 @@ use super::layout::{
     MAX_FORMAT_DECIMALS, UNROUNDED_DECIMALS,
 };
 use super::model::{
-    AccrualLine, CurrencyTotal, DailyLine, JournalLine, LeftOutLine, ReconciliationLine, Report,
-    RunFacts, StatusCount, TieOutLine, TieStatus, LEFT_OUT_SHOWN,
+    AccrualLine, CurrencyTotal, DailyLine, DetailRow, JournalDetail, JournalLine, LeftOutLine,
+    ReconciliationLine, Report, RunFacts, StatusCount, TieOutLine, TieStatus, LEFT_OUT_SHOWN,
 };
 use super::output;
 use crate::engine::reconcile::Status;
@@ -124,6 +125,22 @@ pub const JOURNAL_HEADER: [&str; 7] = [
     "Debit",
     "Credit",
     "Memo",
+];
+
+/// The name of the Journal detail sheet (its continuations add a number).
+pub const JOURNAL_DETAIL: &str = "Journal detail";
+
+/// Header labels of the Journal detail sheet (and of its CSV file): the
+/// five things a journal line is summed by, then the account and its share.
+pub const JOURNAL_DETAIL_HEADER: [&str; 8] = [
+    "Date",
+    "Entity",
+    "Currency",
+    "GL account",
+    "Memo",
+    "Account",
+    "Debit",
+    "Credit",
 ];
 
 /// Header labels of the Daily sheet.
@@ -442,9 +459,9 @@ fn new_workbook(report: &Report, target: &Path, dir: &Path) -> Result<Workbook, 
 }
 
 /// The Accruals, Reconciliation (when there are rows), Accrued check (when
-/// there are rows), Tie-out (when the books have a trial balance), Journal
-/// and Daily (when asked for) lists; returns how many Reconciliation sheets
-/// there are.
+/// there are rows), Tie-out (when the books have a trial balance), Journal,
+/// Journal detail (when the report holds it) and Daily (when asked for)
+/// lists; returns how many Reconciliation sheets there are.
 fn write_lists(
     wb: &mut Workbook,
     report: &Report,
@@ -463,6 +480,16 @@ fn write_lists(
         write_list(wb, &TIE_OUT, tie_out, ctx)?;
     }
     write_list(wb, &JOURNAL, &report.journal, ctx)?;
+    if let Some(detail) = &report.journal_detail {
+        write_rows(
+            wb,
+            &JOURNAL_DETAIL_SHAPE,
+            &detail.rows,
+            |s, part| detail_columns(s, detail, part),
+            |c, r| detail_row(c, detail, r),
+            ctx,
+        )?;
+    }
     if let Some(daily) = &report.daily {
         write_list(wb, &DAILY, daily, ctx)?;
     }
@@ -481,6 +508,16 @@ struct Ctx<'s> {
     texts: TextFigures,
     limits: Limits,
     sheets: Vec<SheetRows>,
+}
+
+/// What a list sheet is besides its rows: its name, its columns (label and
+/// widest width), the notes on its header and its footer.
+struct Shape {
+    name: &'static str,
+    header: &'static [&'static str],
+    caps: &'static [usize],
+    notes: &'static [(ColNum, &'static str)],
+    footer: Option<&'static str>,
 }
 
 /// A list sheet: its name, its columns (label and widest width) and how one
@@ -587,6 +624,14 @@ const DAILY: ListSheet<DailyLine> = ListSheet {
     columns: daily_columns,
 };
 
+const JOURNAL_DETAIL_SHAPE: Shape = Shape {
+    name: JOURNAL_DETAIL,
+    header: &JOURNAL_DETAIL_HEADER,
+    caps: &[14, 24, 10, 32, 48, 24, 24, 24],
+    notes: &[],
+    footer: None,
+};
+
 /// The Daily sheet's interest, for the note of its header.
 pub const DAILY_INTEREST_GLOSS: &str = "Interest: the day's interest, unrounded (unless the \
     account rounds each day), shown to 8 places so that a column of them adds up to what it \
@@ -623,6 +668,31 @@ fn write_list<T>(
     rows: &[T],
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
+    let shape = Shape {
+        name: list.name,
+        header: list.header,
+        caps: list.caps,
+        notes: list.notes,
+        footer: list.footer,
+    };
+    write_rows(wb, &shape, rows, list.columns, list.row, ctx)
+}
+
+/// Writes rows over as many sheets of `list`'s shape as they need, each
+/// part's column formats from `columns` and each row by `row`; returns how
+/// many sheets.
+fn write_rows<T, C, R>(
+    wb: &mut Workbook,
+    list: &Shape,
+    rows: &[T],
+    columns: C,
+    row: R,
+    ctx: &mut Ctx<'_>,
+) -> Result<usize, ReportError>
+where
+    C: for<'s> Fn(&'s Styles, &[T]) -> Vec<Option<&'s Format>>,
+    R: Fn(&mut Cells<'_>, &T) -> Result<(), ReportError>,
+{
     let per = ctx.limits.data_rows_per_sheet();
     let mut parts: Vec<&[T]> = rows.chunks(per).collect();
     if parts.is_empty() {
@@ -645,7 +715,7 @@ fn write_list<T>(
         ws.autofilter(0, 0, last_row, last_col)
             .map_err(|e| ReportError::sheet(&name, e))?;
         let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
-        for (col, format) in (0..).zip((list.columns)(ctx.styles, part)) {
+        for (col, format) in (0..).zip(columns(ctx.styles, part)) {
             if let Some(format) = format {
                 cells.column_format(col, format)?;
             }
@@ -673,15 +743,15 @@ fn write_list<T>(
             // letters take the room of 5 digits.
             cells.wrap_at(col, cap.saturating_add(cap / 5));
         }
-        for (row, item) in (1..).zip(part.iter()) {
-            cells.at(row);
-            (list.row)(&mut cells, item)?;
+        for (row_number, item) in (1..).zip(part.iter()) {
+            cells.at(row_number);
+            row(&mut cells, item)?;
             // A row with a wrapped text is as tall as its lines.
             let lines = cells.lines();
             if lines > 1 {
                 cells
                     .sheet()
-                    .set_row_height(row, lines.saturating_mul(LINE_HEIGHT))
+                    .set_row_height(row_number, lines.saturating_mul(LINE_HEIGHT))
                     .map_err(|e| ReportError::sheet(&name, e))?;
             }
         }
@@ -789,6 +859,18 @@ fn journal_columns<'s>(s: &'s Styles, rows: &[JournalLine]) -> Vec<Option<&'s Fo
     let text = Some(&s.text);
     let wrap = Some(&s.wrap);
     vec![Some(&s.date), wrap, text, text, ledger, ledger, wrap]
+}
+
+fn detail_columns<'s>(
+    s: &'s Styles,
+    detail: &JournalDetail,
+    rows: &[DetailRow],
+) -> Vec<Option<&'s Format>> {
+    let units = usual_units(rows, |r| detail.line(r).map_or(2, |l| l.minor_units));
+    let ledger = Some(s.ledger(units));
+    let text = Some(&s.text);
+    let wrap = Some(&s.wrap);
+    vec![Some(&s.date), wrap, text, text, wrap, text, ledger, ledger]
 }
 
 fn daily_columns<'s>(s: &'s Styles, rows: &[DailyLine]) -> Vec<Option<&'s Format>> {
@@ -899,6 +981,29 @@ fn journal_row(c: &mut Cells<'_>, j: &JournalLine) -> Result<(), ReportError> {
     c.ledger_amount(4, j.debit, j.minor_units)?;
     c.ledger_amount(5, j.credit, j.minor_units)?;
     c.text_as(6, &j.memo, &c.styles().wrap)?;
+    Ok(())
+}
+
+/// One account's share of one journal line, debit or credit as the line
+/// nets it.
+fn detail_row(c: &mut Cells<'_>, detail: &JournalDetail, r: &DetailRow) -> Result<(), ReportError> {
+    let Some(line) = detail.line(r) else {
+        return Err(ReportError::Internal(format!(
+            "a Journal detail row names line {} of {}",
+            r.line,
+            detail.lines.len()
+        )));
+    };
+    let wrap = &c.styles().wrap;
+    c.date(0, line.date)?;
+    c.text_as(1, &line.entity, wrap)?;
+    c.text(2, &line.currency)?;
+    c.text(3, &line.gl_account)?;
+    c.text_as(4, &line.memo, wrap)?;
+    c.text(5, detail.account(r))?;
+    let (debit, credit) = r.sides(line.minor_units);
+    c.ledger_amount(6, debit, line.minor_units)?;
+    c.ledger_amount(7, credit, line.minor_units)?;
     Ok(())
 }
 

@@ -113,6 +113,7 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
             "Accrued check",
             "Tie-out",
             "Journal",
+            "Journal detail",
             "Problems",
             "Run"
         ]
@@ -178,6 +179,7 @@ fn the_workbook_is_byte_identical_across_runs_and_thread_counts() {
             "Accrued check",
             "Tie-out",
             "Journal",
+            "Journal detail",
             "Daily",
             "Problems",
             "Run"
@@ -569,6 +571,7 @@ fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time()
         ("window_start", "2026-11-01", "default"),
         ("entity", "Harbourview Mutual", "command line"),
         ("journal_style", "incremental", "default"),
+        ("journal_detail", "sheet", "default"),
         ("daily", "false", "default"),
         ("decimal_comma", "false", "default"),
         ("statement_end", "inclusive", "default"),

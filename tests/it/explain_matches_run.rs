@@ -82,6 +82,7 @@ fn batch(book: &Book, o: &Options) -> BatchResult {
         window_start: o.window_start,
         daily: false,
         journal_style: JournalStyle::Incremental,
+        journal_detail: false,
         entities: vec!["TEST".into()],
         tolerance: o.tolerance,
         fast_path: o.fast_path,

@@ -54,6 +54,7 @@ fn settings(window: (&str, &str), previous_as_at: Option<&str>) -> BatchSettings
         as_at: None,
         previous_as_at: previous_as_at.map(date),
         settlement_lines: SettlementLines::PaymentDate,
+        journal_detail: false,
     }
 }
 

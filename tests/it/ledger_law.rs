@@ -213,6 +213,7 @@ proptest! {
                 as_at: Some(as_at),
                 previous_as_at,
                 settlement_lines: mode,
+                journal_detail: false,
             };
             let r = run_books(&[known_at(&book, as_at)], &settings, &|| {});
             prop_assert_eq!(r.accruals.len(), accounts.len(), "{:?}", r.problems);

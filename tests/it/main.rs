@@ -22,6 +22,7 @@ mod completeness;
 mod explain_matches_run;
 mod hostile_books;
 mod hostile_inputs;
+mod journal_detail;
 mod layers;
 mod ledger_examples;
 mod ledger_inputs;

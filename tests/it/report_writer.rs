@@ -215,6 +215,7 @@ fn report() -> Report {
                 memo: "interest for March".into(),
             },
         ],
+        journal_detail: None,
         daily: Some(vec![DailyLine {
             account: "HM-SAV-001".into(),
             minor_units: 2,

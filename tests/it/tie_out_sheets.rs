@@ -149,6 +149,7 @@ fn batch_settings(shard: Option<(u32, u32)>) -> BatchSettings {
         as_at: None,
         previous_as_at: None,
         settlement_lines: Default::default(),
+        journal_detail: false,
     }
 }
 
@@ -201,6 +202,7 @@ fn report(books: &[Book], batch: BatchResult, shard: Option<(u32, u32)>) -> Repo
         status_counts: batch.status_counts,
         largest_variances: vec![],
         journal: batch.journal,
+        journal_detail: batch.journal_detail,
         daily: batch.daily,
         problems,
     }

@@ -147,6 +147,7 @@ fn without_either_the_default_holds_and_is_listed_as_such() {
             ("window_start", "default"),
             ("entity", "default"),
             ("journal_style", "default"),
+            ("journal_detail", "default"),
             ("daily", "default"),
             ("decimal_comma", "default"),
             ("statement_end", "default"),
