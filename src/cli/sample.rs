@@ -3,10 +3,11 @@
 //!
 //! Wires the generator ([`crate::sample`]) to the book writer
 //! ([`crate::report::book_writer`]): accounts are generated in parallel in
-//! chunks and written in order, so memory stays flat whatever the size. A
-//! workbook is refused before anything is written when a sheet would pass
-//! the spreadsheet row limit. Holds no accrual rule and plants no mistake of
-//! its own.
+//! chunks and written in order, so memory stays flat whatever the size; the
+//! Trial balance is summed as they go (one sum per GL account) and written
+//! last. A workbook is refused before anything is written when a sheet would
+//! pass the spreadsheet row limit. Holds no accrual rule and plants no
+//! mistake of its own.
 
 use std::collections::BTreeMap;
 use std::io::Write;
@@ -16,7 +17,7 @@ use anyhow::{bail, Context, Result};
 
 use super::exit;
 use crate::report::book_writer::{csv_name, BookWriter, Value, DATA_ROWS_PER_SHEET};
-use crate::sample::{Generator, MistakeKind, SheetCounts, SHEETS};
+use crate::sample::{Generator, MistakeKind, OpeningBalances, SheetCounts, SHEETS};
 use crate::schema::SheetKind;
 
 /// Accounts generated and written at a time.
@@ -69,12 +70,24 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     check_target(args)?;
     let generator = Generator::new(args.seed, args.accounts);
     let mut writer = open_writer(args, &generator)?;
-    let (written, planted) = write_rows(&generator, &mut writer, args.accounts)?;
+    let tally = write_rows(&generator, &mut writer, args.accounts)?;
     writer
         .finish()
         .with_context(|| format!("cannot write the book {}", args.out.display()))?;
-    print_summary(args, &written, &planted, out)?;
+    print_summary(args, &tally, out)?;
     Ok(exit::OK)
+}
+
+/// What was written: rows per sheet, planted mistakes by kind, and the
+/// ledger side's counts.
+#[derive(Debug, Default)]
+struct Tally {
+    written: SheetCounts,
+    planted: BTreeMap<MistakeKind, u64>,
+    /// Booked rows at the cut-off planted a day off.
+    booked_planted: u64,
+    /// Accounts with a prior-period adjustment.
+    prior_period: u64,
 }
 
 /// Refuses a book of no accounts, an existing book without `--force`, and
@@ -131,12 +144,9 @@ fn open_writer(args: &Args, generator: &Generator) -> Result<BookWriter> {
 }
 
 /// Writes the shared rows, then every account's rows in chunks generated in
-/// parallel; returns the rows written per sheet and the mistakes planted by kind.
-fn write_rows(
-    generator: &Generator,
-    writer: &mut BookWriter,
-    accounts: u64,
-) -> Result<(SheetCounts, BTreeMap<MistakeKind, u64>)> {
+/// parallel, then the Trial balance their booked openings add up to;
+/// returns what was written and planted.
+fn write_rows(generator: &Generator, writer: &mut BookWriter, accounts: u64) -> Result<Tally> {
     let mut written = SheetCounts::default();
     let mut add = |w: &mut BookWriter, sheet: SheetKind, rows: Vec<Vec<Value>>| {
         for r in rows {
@@ -149,6 +159,8 @@ fn write_rows(
         add(writer, sheet, generator.fixed_rows(sheet))?;
     }
     let mut planted: BTreeMap<MistakeKind, u64> = BTreeMap::new();
+    let (mut booked_planted, mut prior_period) = (0, 0);
+    let mut opening = OpeningBalances::default();
     let mut start = 0;
     while start < accounts {
         let end = start.saturating_add(CHUNK).min(accounts);
@@ -158,22 +170,28 @@ fn write_rows(
             add(writer, SheetKind::Rates, a.rate_rows())?;
             add(writer, SheetKind::Movements, a.movement_rows())?;
             add(writer, SheetKind::Statements, a.statement_rows())?;
+            add(writer, SheetKind::Booked, a.booked_rows())?;
             if let Some(m) = &a.mistake {
                 *planted.entry(m.kind()).or_insert(0) += 1;
             }
+            booked_planted += u64::from(a.booked.as_ref().is_some_and(|b| b.mistake.is_some()));
+            prior_period += u64::from(!a.ledger.prior_period.is_zero());
+            opening.add(&a)?;
         }
         start = end;
     }
-    Ok((written, planted))
+    add(writer, SheetKind::TrialBalance, opening.rows())?;
+    Ok(Tally {
+        written,
+        planted,
+        booked_planted,
+        prior_period,
+    })
 }
 
 /// What was written, the mistakes planted, and how to run the book.
-fn print_summary(
-    args: &Args,
-    written: &SheetCounts,
-    planted: &BTreeMap<MistakeKind, u64>,
-    out: &mut dyn Write,
-) -> Result<()> {
+fn print_summary(args: &Args, tally: &Tally, out: &mut dyn Write) -> Result<()> {
+    let (written, planted) = (&tally.written, &tally.planted);
     let target = &args.out;
     let shown = match args.format {
         Format::Xlsx => target.display().to_string(),
@@ -215,6 +233,16 @@ fn print_summary(
     )?;
     writeln!(
         out,
+        "ledger: {} booked rows at the cut-off ({} planted a day of interest off), {} trial balance rows at {}, {} accounts with a prior-period adjustment (previous close as at {})",
+        n(SheetKind::Booked),
+        tally.booked_planted,
+        n(SheetKind::TrialBalance),
+        crate::sample::OPENING_DAY,
+        tally.prior_period,
+        crate::sample::PREVIOUS_AS_AT
+    )?;
+    writeln!(
+        out,
         "every name and figure is invented; run it with: ledgerate run {}",
         target.display()
     )?;
@@ -234,8 +262,10 @@ mod tests {
                 (SheetKind::Rates, 5),
                 (SheetKind::Movements, movements),
                 (SheetKind::Statements, 10),
+                (SheetKind::Booked, 1),
+                (SheetKind::TrialBalance, 3),
                 (SheetKind::Holidays, 7),
-                (SheetKind::Settings, 2),
+                (SheetKind::Settings, 3),
             ])
         };
         let fits = counts(1_048_575);

@@ -11,7 +11,10 @@ use rust_decimal::Decimal;
 
 use super::catalogue::{shelf, Product, Shelf};
 use super::rng::Rng;
-use super::{date, Calendars, RateRow, CUTOFF, MISTAKES_PER_MILLE};
+use super::{
+    date, Calendars, RateRow, BOOKED_MISTAKES_PER_MILLE, CUTOFF, LATE_BOOKINGS_PER_MILLE,
+    MISTAKES_PER_MILLE, WINDOW_START,
+};
 use crate::book::{AccountEntry, GlCodes};
 use crate::conventions::calendar::BusinessDay;
 use crate::conventions::compounding::Compounding;
@@ -32,6 +35,12 @@ pub(crate) struct Draft {
     pub movements: Vec<Movement>,
     /// The random stream of its planted mistake, when it gets one.
     pub plant: Option<u64>,
+    /// Whether the core system's open item at the cut-off is on the Booked
+    /// sheet: a term deposit or loan in the middle of its posting period.
+    pub booked_close: bool,
+    /// The random stream of the day-off planted in that Booked row, when
+    /// it gets one.
+    pub booked_plant: Option<u64>,
 }
 
 /// The kinds of account of the sample institution.
@@ -53,6 +62,21 @@ enum Family {
     Current,
     Yen,
     Dinar,
+    /// A term deposit running past the cut-off: nothing posts in November.
+    TermRunning,
+    /// A business loan posting quarterly, in the middle of its quarter at
+    /// the cut-off.
+    QuarterlyLoan,
+}
+
+impl Family {
+    /// Whether the family's accounts are in the middle of a posting period
+    /// at the cut-off, with no statement row in the window: the core
+    /// system's accrued interest at the cut-off is checked on the Booked
+    /// sheet instead (behaviour.md, System accrued check).
+    fn booked_at_cutoff(self) -> bool {
+        matches!(self, Family::TermRunning | Family::QuarterlyLoan)
+    }
 }
 
 /// When an account of a family opened.
@@ -67,14 +91,18 @@ enum Open {
     Loan,
     /// A term before its maturity in November.
     Term,
+    /// A term opened before the window that matures after the cut-off.
+    Running,
 }
 
 /// What an account of a family looks like; draws pick among the choices.
 struct Spec {
     family: Family,
     code: &'static str,
-    /// Accounts per thousand of the book.
-    per_mille: u64,
+    /// The family's weight: accounts per 1,050 of the book (the sixteen
+    /// families with a posting in November weigh 1,000, the two in the
+    /// middle of a posting period at the cut-off 50).
+    weight: u64,
     currency: &'static str,
     minor_units: u32,
     bases: &'static [Basis],
@@ -98,11 +126,11 @@ struct Spec {
 const SIMPLE: &[Compounding] = &[Compounding::Simple];
 const NOV_30: Option<NaiveDate> = Some(date(2026, 11, 30));
 
-const SPECS: [Spec; 16] = [
+const SPECS: [Spec; 18] = [
     Spec {
         family: Family::Saver,
         code: "SAV",
-        per_mille: 300,
+        weight: 300,
         currency: "GBP",
         minor_units: 2,
         bases: &[Basis::Act365F],
@@ -121,7 +149,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Tiered,
         code: "TSV",
-        per_mille: 150,
+        weight: 150,
         currency: "GBP",
         minor_units: 2,
         bases: &[Basis::Act365F],
@@ -140,7 +168,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Loan,
         code: "LN",
-        per_mille: 150,
+        weight: 150,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::Act360],
@@ -159,7 +187,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Term,
         code: "TD",
-        per_mille: 100,
+        weight: 100,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::Act365F],
@@ -178,7 +206,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Intercompany,
         code: "IC",
-        per_mille: 40,
+        weight: 40,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::Thirty360, Basis::Thirty360Us],
@@ -197,7 +225,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Euro,
         code: "EUR",
-        per_mille: 60,
+        weight: 60,
         currency: "EUR",
         minor_units: 2,
         bases: &[Basis::Thirty360E, Basis::Thirty360EIsda],
@@ -216,7 +244,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Isda,
         code: "ISDA",
-        per_mille: 25,
+        weight: 25,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::ActActIsda],
@@ -235,7 +263,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Icma,
         code: "ICMA",
-        per_mille: 25,
+        weight: 25,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::ActActIcma],
@@ -254,7 +282,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::NoLeap,
         code: "NL",
-        per_mille: 20,
+        weight: 20,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::Nl365],
@@ -273,7 +301,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Act365L,
         code: "L",
-        per_mille: 20,
+        weight: 20,
         currency: "GBP",
         minor_units: 2,
         bases: &[Basis::Act365L],
@@ -292,7 +320,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Continuous,
         code: "CONT",
-        per_mille: 20,
+        weight: 20,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::Act365F],
@@ -311,7 +339,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Long,
         code: "LTS",
-        per_mille: 15,
+        weight: 15,
         currency: "GBP",
         minor_units: 2,
         bases: &[Basis::Act365F],
@@ -330,7 +358,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Real,
         code: "BRL",
-        per_mille: 20,
+        weight: 20,
         currency: "BRL",
         minor_units: 2,
         bases: &[Basis::Bus252],
@@ -349,7 +377,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Current,
         code: "CHK",
-        per_mille: 40,
+        weight: 40,
         currency: "USD",
         minor_units: 2,
         bases: &[Basis::Act365F],
@@ -368,7 +396,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Yen,
         code: "JPY",
-        per_mille: 8,
+        weight: 8,
         currency: "JPY",
         minor_units: 0,
         bases: &[Basis::Act365F],
@@ -387,7 +415,7 @@ const SPECS: [Spec; 16] = [
     Spec {
         family: Family::Dinar,
         code: "KWD",
-        per_mille: 7,
+        weight: 7,
         currency: "KWD",
         minor_units: 3,
         bases: &[Basis::Act360],
@@ -403,16 +431,54 @@ const SPECS: [Spec; 16] = [
         name: "Dinar call deposit",
         gl: ("5200", "2270"),
     },
+    Spec {
+        family: Family::TermRunning,
+        code: "FTD",
+        weight: 30,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act365F],
+        compounding: SIMPLE,
+        posting: Posting::Maturity,
+        anchor: None,
+        open: Open::Running,
+        balance: (5_000, 2_000_000),
+        asset: 0,
+        capitalise: false,
+        shelf: None,
+        flow: Flow::Fixed,
+        name: "Harbourview fixed-term deposit",
+        gl: ("5130", "2220"),
+    },
+    Spec {
+        family: Family::QuarterlyLoan,
+        code: "QLN",
+        weight: 20,
+        currency: "USD",
+        minor_units: 2,
+        bases: &[Basis::Act360],
+        compounding: SIMPLE,
+        posting: Posting::Quarterly,
+        anchor: Some(date(2026, 12, 31)),
+        open: Open::On(date(2026, 7, 1)),
+        balance: (20_000, 3_000_000),
+        asset: 1000,
+        capitalise: false,
+        shelf: Some(Shelf::Loan),
+        flow: Flow::Lending,
+        name: "{} business loan",
+        gl: ("4120", "1310"),
+    },
 ];
 
 fn pick_spec(r: &mut Rng) -> &'static Spec {
-    let total: u64 = SPECS.iter().map(|s| s.per_mille).sum();
+    let total: u64 = SPECS.iter().map(|s| s.weight).sum();
     let mut x = r.below(total);
     for s in &SPECS {
-        if x < s.per_mille {
+        if x < s.weight {
             return s;
         }
-        x -= s.per_mille;
+        x -= s.weight;
     }
     &SPECS[0]
 }
@@ -475,6 +541,14 @@ fn balance(r: &mut Rng, lo: i64, hi: i64, minor_units: u32) -> Decimal {
     money(r, lo, cap, minor_units)
 }
 
+/// A share of `size` of `lo` to `hi` per mille, in whole minor units, at
+/// least one minor unit.
+fn share(r: &mut Rng, size: Decimal, minor_units: u32, lo: i64, hi: i64) -> Decimal {
+    let per_mille = Decimal::from(r.between(lo, hi));
+    let x = (size * per_mille / Decimal::ONE_THOUSAND).round_dp(minor_units);
+    x.max(Decimal::new(1, minor_units))
+}
+
 /// The opening of an account posting at month ends: 1 November, or for a
 /// new account a day later in the month.
 fn month_open(r: &mut Rng) -> NaiveDate {
@@ -516,11 +590,7 @@ fn movements(r: &mut Rng, flow: Flow, t: &AccountTerms, last: NaiveDate) -> Vec<
     dates.sort_unstable();
     for (n, value_date) in dates.into_iter().enumerate() {
         // A share of the balance in per mille, as an amount of minor units.
-        let share = |r: &mut Rng, lo: i64, hi: i64| {
-            let per_mille = Decimal::from(r.between(lo, hi));
-            let x = (size * per_mille / Decimal::ONE_THOUSAND).round_dp(minor);
-            x.max(scale)
-        };
+        let share = |r: &mut Rng, lo: i64, hi: i64| share(r, size, minor, lo, hi);
         let (amount, kind) = match flow {
             Flow::Savings => {
                 if r.chance(550) {
@@ -565,15 +635,60 @@ fn movements(r: &mut Rng, flow: Flow, t: &AccountTerms, last: NaiveDate) -> Vec<
             value_date,
             amount,
             booking_date,
-            reference: Some(format!(
-                "{kind}-{}{:02}-{}",
-                value_date.format("%m%d"),
-                n + 1,
-                t.id.rsplit('-').next().unwrap_or_default()
-            )),
+            reference: Some(reference(kind, value_date, n + 1, &t.id)),
         });
     }
     out
+}
+
+/// A movement's reference: its kind, value date (month and day), number
+/// in the account and the account's serial number.
+fn reference(kind: &str, value_date: NaiveDate, n: usize, id: &str) -> String {
+    format!(
+        "{kind}-{}{n:02}-{}",
+        value_date.format("%m%d"),
+        id.rsplit('-').next().unwrap_or_default()
+    )
+}
+
+/// The first and last day a movement booked after the previous close is
+/// booked on: a few days into the window, after `previous_as_at`.
+const LATE_BOOKED: (NaiveDate, NaiveDate) = (date(2026, 11, 3), date(2026, 11, 10));
+
+/// A movement valued in the month before the window and booked after the
+/// previous close (behaviour.md, The booked opening): the previous close
+/// did not know it, so its interest for the October days is the November
+/// run's prior-period adjustment. `None` for an account that opened in the
+/// window or has no movements. Its number in the account is 00, which no
+/// other movement has.
+fn booked_late(r: &mut Rng, flow: Flow, t: &AccountTerms) -> Option<Movement> {
+    let eve = plus_days(WINDOW_START, -1);
+    let first = t.open_date.max(date(2026, 10, 1));
+    if first > eve {
+        return None;
+    }
+    let (size, minor) = (t.opening_balance.abs(), t.minor_units);
+    let (amount, kind) = match flow {
+        Flow::Fixed => return None,
+        Flow::Lending => (-share(r, size, minor, 8, 40), "REPAY"),
+        Flow::Treasury => {
+            let x = share(r, size, minor, 20, 150);
+            if r.chance(500) {
+                (x, "DRAW")
+            } else {
+                (-x, "REPAY")
+            }
+        }
+        Flow::Savings | Flow::Current => (money(r, 20, 3000, minor), "DEP"),
+    };
+    let value_date = day_between(r, first, eve);
+    let booking_date = day_between(r, LATE_BOOKED.0, LATE_BOOKED.1);
+    Some(Movement {
+        value_date,
+        amount,
+        booking_date: Some(booking_date),
+        reference: Some(reference(kind, value_date, 0, &t.id)),
+    })
 }
 
 /// Draws account `index` of the book of `seed`: its family and name, its
@@ -609,7 +724,7 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
     if t.round_at == RoundAt::Posting && r.chance(100) {
         t.round_mode = RoundMode::HalfEven;
     }
-    let moves = movements(&mut r, spec.flow, &t, more.last);
+    let mut moves = movements(&mut r, spec.flow, &t, more.last);
     let rate_ref = product
         .and_then(|p| products.get(p))
         .map_or_else(|| t.id.clone(), |p| p.rate_ref.clone());
@@ -618,6 +733,15 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
         .and_then(|p| products.get(p))
         .map(|p| p.rate_ref.clone());
     let plant = r.chance(MISTAKES_PER_MILLE).then(|| r.next_u64());
+    // The ledger side draws last, so the draws above stay as they were.
+    if r.chance(LATE_BOOKINGS_PER_MILLE) {
+        if let Some(late) = booked_late(&mut r, spec.flow, &t) {
+            let at = moves.partition_point(|m| m.value_date <= late.value_date);
+            moves.insert(at, late);
+        }
+    }
+    let booked_close = spec.family.booked_at_cutoff();
+    let booked_plant = (booked_close && r.chance(BOOKED_MISTAKES_PER_MILLE)).then(|| r.next_u64());
     Draft {
         entry: AccountEntry {
             name: more.name,
@@ -638,6 +762,8 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
         own_rates: more.own_rates,
         movements: moves,
         plant,
+        booked_close,
+        booked_plant,
     }
 }
 
@@ -655,6 +781,22 @@ fn opening(r: &mut Rng, open: Open) -> (NaiveDate, Option<(NaiveDate, u32)>) {
             let months = *r.pick(&[3u32, 6, 6, 12, 12, 24]).unwrap_or(&6);
             let m = day_between(r, date(2026, 11, 2), date(2026, 12, 1));
             let open = m.checked_sub_months(Months::new(months)).unwrap_or(m);
+            (open, Some((m, months)))
+        }
+        Open::Running => {
+            // Maturity on 2 December or later, so its posting ends after
+            // the cut-off; opened before the window, at most a year before.
+            let months = *r.pick(&[3u32, 6, 6, 12, 12, 24]).unwrap_or(&6);
+            let first_maturity = date(2026, 12, 2);
+            let earliest = first_maturity
+                .checked_sub_months(Months::new(months))
+                .unwrap_or(first_maturity)
+                .max(date(2025, 12, 1));
+            let open = day_between(r, earliest, date(2026, 10, 31));
+            let m = open
+                .checked_add_months(Months::new(months))
+                .unwrap_or(first_maturity)
+                .max(first_maturity);
             (open, Some((m, months)))
         }
     }
@@ -726,7 +868,7 @@ fn family_terms(
                 t.round_places = Some(4);
             }
         }
-        Family::Term => {
+        Family::Term | Family::TermRunning => {
             if r.chance(300) {
                 t.currency = "EUR".to_string();
                 t.basis = Basis::Act360;
@@ -749,7 +891,15 @@ fn family_terms(
             more.name = "Loan to Harbourview Services Ltd".to_string();
             more.gl = ("4210", "1320");
         }
-        Family::Euro if r.chance(300) => t.round_mode = RoundMode::HalfEven,
+        Family::Euro => {
+            if r.chance(300) {
+                t.round_mode = RoundMode::HalfEven;
+            }
+            // Interest receivable and payable are separate GL accounts.
+            if t.side == Side::Asset {
+                more.gl = ("4250", "1360");
+            }
+        }
         Family::Real => {
             t.calendar = Arc::clone(&cals.brazil);
             more.calendar = Some("BR-2026");

@@ -2,14 +2,24 @@
 //! an invented credit union, closing November 2026.
 //!
 //! A [`Generator`] makes the rows of every sheet of a book (Accounts, Rates,
-//! Movements, Statements, Holidays, Settings) from a seed and a number of
-//! accounts. The mix is meant to look like a real book: every day-count basis
-//! and every compounding rule the engine supports, whole and banded tiers,
-//! 0 to 6 movements and 0 to 2 rate changes per account, and one statement
-//! row per account for its posting period that ends in the November window.
-//! The statement amounts come from the engine itself ([`crate::engine::accrue`]
-//! on the generated account), then about 2% of them get a planted mistake of a
-//! kind the likely-cause search knows ([`MistakeKind`]).
+//! Movements, Statements, Booked, Trial balance, Holidays, Settings) from a
+//! seed and a number of accounts. The mix is meant to look like a real book:
+//! every day-count basis and every compounding rule the engine supports,
+//! whole and banded tiers, 0 to 6 movements and 0 to 2 rate changes per
+//! account, and one statement row per account for its posting period that
+//! ends in the November window. The statement amounts come from the engine
+//! itself ([`crate::pipeline::run_account`] on the generated account), then
+//! about 2% of them get a planted mistake of a kind the likely-cause search
+//! knows ([`MistakeKind`]).
+//!
+//! The ledger side ([`ledger`]): about 1 account in 200 has a movement valued
+//! in October and booked after the October close (Settings
+//! `previous_as_at`), so the run books a prior-period adjustment for it; the
+//! Trial balance sheet holds, per accrued-interest GL account, the sum of the
+//! accounts' booked openings, so the run's Tie-out agrees; and term deposits
+//! and quarterly loans in the middle of their posting period (no statement
+//! row in November) have the core system's open item at the cut-off on the
+//! Booked sheet, about 15% of them a day of interest off ([`BookedMistake`]).
 //!
 //! Pure generation: this module never writes a file, reads the clock or asks
 //! the operating system for randomness. Each account draws from its own
@@ -20,10 +30,11 @@
 
 mod catalogue;
 mod draft;
+pub mod ledger;
 mod plant;
 pub mod rng;
 
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 use std::ops::Range;
 use std::sync::Arc;
 
@@ -31,6 +42,7 @@ use chrono::NaiveDate;
 use rayon::prelude::*;
 use rust_decimal::Decimal;
 
+use crate::batch::journal::ResolvedGl;
 use crate::book::AccountEntry;
 use crate::conventions::calendar::Calendar;
 use crate::engine::floating::{FixingFallback, Fixings};
@@ -44,6 +56,10 @@ use crate::schema::{layout, Layout, SheetKind, ACCOUNTS, RATES, STATEMENTS};
 
 use catalogue::Product;
 use draft::Draft;
+pub use ledger::{
+    BookedMistake, MixedSides, OpeningBalances, SampleBooked, SampleLedger, OPENING_DAY,
+    PREVIOUS_AS_AT,
+};
 pub use plant::{Mistake, MistakeKind};
 
 /// The cut-off of the sample books (the Settings sheet's `cutoff`).
@@ -57,6 +73,16 @@ pub const ENTITY: &str = "HARBOURVIEW-MUTUAL";
 
 /// How many accounts in a thousand get a planted statement mistake.
 pub const MISTAKES_PER_MILLE: u64 = 20;
+
+/// How many in a thousand of the accounts open before the window, with
+/// movements, get one more movement valued in October and booked after the
+/// previous close (about a quarter of the book is such an account: about 1
+/// account in 200).
+pub const LATE_BOOKINGS_PER_MILLE: u64 = 20;
+
+/// How many in a thousand of the Booked rows at the cut-off are planted a
+/// day of interest off.
+pub const BOOKED_MISTAKES_PER_MILLE: u64 = 150;
 
 /// A date known to exist; `NaiveDate::MIN` would only stand in for a typo in
 /// this file, and the tests read every constant back.
@@ -83,8 +109,9 @@ fn opt_date(d: Option<NaiveDate>) -> Value {
 /// use ledgerate::sample::SHEETS;
 /// assert_eq!(SHEETS[3].sheet, SheetKind::Statements);
 /// assert_eq!(SHEETS[3].labels()[3], "posted_interest");
+/// assert_eq!(SHEETS[5].labels(), ["entity", "currency", "gl_account", "date", "balance"]);
 /// ```
-pub const SHEETS: [Layout; 6] = [
+pub const SHEETS: [Layout; 8] = [
     layout!(
         ACCOUNTS,
         "account",
@@ -121,6 +148,8 @@ pub const SHEETS: [Layout; 6] = [
         "posted_interest",
         "reference"
     ),
+    Layout::every(SheetKind::Booked),
+    Layout::every(SheetKind::TrialBalance),
     Layout::every(SheetKind::Holidays),
     Layout::every(SheetKind::Settings),
 ];
@@ -183,6 +212,11 @@ pub struct SampleAccount {
     pub statement: Option<SampleStatement>,
     /// The mistake planted in the statement row, if any.
     pub mistake: Option<Mistake>,
+    /// What the general ledger holds for it.
+    pub ledger: SampleLedger,
+    /// Its Booked row at the cut-off: a term deposit or loan in the middle
+    /// of its posting period.
+    pub booked: Option<SampleBooked>,
 }
 
 impl SampleAccount {
@@ -269,6 +303,14 @@ impl SampleAccount {
     /// The account's own Rates rows.
     pub fn rate_rows(&self) -> Vec<Vec<Value>> {
         self.own_rates.iter().map(RateRow::cells).collect()
+    }
+
+    /// The Booked rows (none or one, dated the cut-off).
+    pub fn booked_rows(&self) -> Vec<Vec<Value>> {
+        self.booked
+            .iter()
+            .map(|b| b.cells(&self.entry.terms.id))
+            .collect()
     }
 }
 
@@ -408,29 +450,53 @@ impl Generator {
             SheetKind::Settings => vec![
                 vec![text("cutoff"), Value::Date(CUTOFF)],
                 vec![text("entity"), text(ENTITY)],
+                vec![text("previous_as_at"), Value::Date(PREVIOUS_AS_AT)],
             ],
             _ => Vec::new(),
         }
     }
 
     /// The data rows each sheet will get, counted without running the
-    /// engine (a statement row is counted for every account; an account
-    /// without a posting period in the window has none, so that count is an
-    /// upper bound).
+    /// engine (a statement row is counted for every account without a
+    /// Booked row; an account without a posting period in the window has
+    /// none, so that count is an upper bound).
     pub fn counts(&self) -> SheetCounts {
-        let (movements, own_rates) = (0..self.accounts)
+        type Tally = (u64, u64, u64, BTreeSet<(String, String)>);
+        let (movements, own_rates, booked, gls) = (0..self.accounts)
             .into_par_iter()
-            .map(|i| {
-                let d = self.draft(i);
-                (d.movements.len() as u64, d.own_rates.len() as u64)
-            })
-            .reduce(|| (0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
+            .fold(
+                || (0, 0, 0, BTreeSet::new()),
+                |mut t: Tally, i| {
+                    let d = self.draft(i);
+                    t.0 += d.movements.len() as u64;
+                    t.1 += d.own_rates.len() as u64;
+                    t.2 += u64::from(d.booked_close);
+                    let gl = ResolvedGl::of(d.entry.terms.side, &d.entry.gl).accrued;
+                    if !t
+                        .3
+                        .iter()
+                        .any(|(c, g)| *c == d.entry.terms.currency && *g == gl)
+                    {
+                        t.3.insert((d.entry.terms.currency, gl.to_string()));
+                    }
+                    t
+                },
+            )
+            .reduce(
+                || (0, 0, 0, BTreeSet::new()),
+                |mut a, b| {
+                    a.3.extend(b.3);
+                    (a.0 + b.0, a.1 + b.1, a.2 + b.2, a.3)
+                },
+            );
         let fixed = |s: SheetKind| self.fixed_rows(s).len() as u64;
         SheetCounts::of(&[
             (SheetKind::Accounts, self.accounts),
             (SheetKind::Rates, fixed(SheetKind::Rates) + own_rates),
             (SheetKind::Movements, movements),
-            (SheetKind::Statements, self.accounts),
+            (SheetKind::Statements, self.accounts.saturating_sub(booked)),
+            (SheetKind::Booked, booked),
+            (SheetKind::TrialBalance, gls.len() as u64),
             (SheetKind::Holidays, fixed(SheetKind::Holidays)),
             (SheetKind::Settings, fixed(SheetKind::Settings)),
         ])
@@ -487,9 +553,22 @@ impl Generator {
             unreadable: &[],
             rate_bookings: [&[], &[]],
         };
-        let right = run_account(&inputs, &run_options(d.plant.is_some()))
-            .map_err(|f| fail(f.error))?
-            .result;
+        let keep_days = d.plant.is_some() || d.booked_plant.is_some();
+        let options = Options {
+            previous_as_at: Some(PREVIOUS_AS_AT),
+            ..run_options(keep_days)
+        };
+        let run = run_account(&inputs, &options).map_err(|f| fail(f.error))?;
+        let booked = if d.booked_close {
+            Some(ledger::booked_at_cutoff(&d.entry.terms, &run, d.booked_plant).map_err(fail)?)
+        } else {
+            None
+        };
+        let gl_accrued = ResolvedGl::of(d.entry.terms.side, &d.entry.gl)
+            .accrued
+            .to_string();
+        let ledger = SampleLedger::of(&run, d.entry.terms.side, gl_accrued);
+        let right = run.result;
         let posting = right
             .postings
             .iter()
@@ -526,6 +605,8 @@ impl Generator {
             own_rates: d.own_rates,
             statement,
             mistake,
+            ledger,
+            booked,
         })
     }
 
@@ -541,7 +622,8 @@ impl Generator {
 }
 
 /// How a sample account is computed: the book's window, day rows kept
-/// when a mistake is to be planted.
+/// when a mistake is to be planted. The account's own run adds the book's
+/// `previous_as_at`; a planted mistake's re-runs need only the postings.
 fn run_options(keep_days: bool) -> Options {
     Options {
         window_start: WINDOW_START,

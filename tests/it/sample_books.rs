@@ -1,18 +1,22 @@
 //! `ledgerate sample` as a user runs it: books of invented accounts that are
 //! the same for the same seed, that the reader takes without an error, and
-//! whose planted statement mistakes a month-end run finds and names (the
-//! workbook read back with calamine).
+//! whose planted statement mistakes a month-end run finds and names; whose
+//! Tie-out agrees, with prior-period adjustments, and whose planted Booked
+//! rows the Accrued check finds and names (the workbook read back with
+//! calamine).
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 
-use crate::common::ledgerate;
+use crate::common::{date, ledgerate, sheet};
 use calamine::{open_workbook_auto, Data, Reader};
+use chrono::NaiveDate;
 use ledgerate::book::{read_book, ReadOptions};
 use ledgerate::problem::Severity;
 use ledgerate::report::book_writer::csv_name;
-use ledgerate::sample::{Generator, Mistake, MistakeKind, SHEETS};
+use ledgerate::sample::{BookedMistake, Generator, Mistake, MistakeKind, OpeningBalances, SHEETS};
 use predicates::prelude::*;
+use rust_decimal::Decimal;
 
 fn sample(accounts: u64, seed: u64, format: &str, out: &Path) {
     ledgerate()
@@ -55,6 +59,8 @@ fn the_same_seed_gives_the_same_bytes_and_another_seed_another_book() {
         "movements.csv",
         "statements.csv",
         "rates.csv",
+        "booked.csv",
+        "trial_balance.csv",
     ] {
         let x = first.iter().find(|(n, _)| n == sheet).unwrap();
         let y = other.iter().find(|(n, _)| n == sheet).unwrap();
@@ -134,8 +140,38 @@ fn the_book_reads_back_with_no_problem_and_the_generated_terms() {
             let moved = book.movements.get(&m.id).cloned().unwrap_or_default();
             assert_eq!(moved, made.movements, "{}", m.id);
         }
-        let statements = book.statements.len();
-        assert_eq!(statements, 600, "{format}: one statement row per account");
+        let made: Vec<_> = (0..600).map(|i| generator.account(i).unwrap()).collect();
+        let with_statement = made.iter().filter(|a| a.statement.is_some()).count();
+        assert_eq!(
+            book.statements.len(),
+            with_statement,
+            "{format}: one statement row per account with a posting in the window"
+        );
+        let booked: Vec<(String, NaiveDate, Decimal)> = book
+            .booked
+            .iter()
+            .map(|b| (b.account.clone(), b.date, b.open_item))
+            .collect();
+        let expected: Vec<(String, NaiveDate, Decimal)> = made
+            .iter()
+            .filter_map(|a| {
+                a.booked
+                    .as_ref()
+                    .map(|b| (a.entry.terms.id.clone(), date("2026-11-30"), b.open_item))
+            })
+            .collect();
+        assert!(!expected.is_empty());
+        assert_eq!(booked, expected, "{format}: the Booked rows");
+        assert_eq!(book.accounts.len(), with_statement + expected.len());
+        let mut opening = OpeningBalances::default();
+        for a in &made {
+            opening.add(a).unwrap();
+        }
+        assert_eq!(book.trial_balance.len(), opening.len());
+        assert!(book
+            .trial_balance
+            .iter()
+            .all(|r| r.date == date("2026-10-31") && r.entity == "HARBOURVIEW-MUTUAL"));
     }
 }
 
@@ -228,13 +264,19 @@ fn a_run_on_a_2000_account_sample_finds_and_names_the_planted_mistakes() {
             )
         })
         .collect();
-    assert_eq!(by_account.len(), 2000, "one reconciliation row per account");
-
     let generator = Generator::new(2026, 2000);
+    let accounts: Vec<_> = (0..2000)
+        .map(|i| generator.account(i).unwrap())
+        .filter(|a| a.statement.is_some())
+        .collect();
+    assert_eq!(
+        by_account.len(),
+        accounts.len(),
+        "one reconciliation row per account with a statement row"
+    );
     let mut kinds: BTreeMap<MistakeKind, usize> = BTreeMap::new();
     let mut exceptions = 0;
-    for i in 0..2000 {
-        let a = generator.account(i).unwrap();
+    for a in accounts {
         let (st, why) = &by_account[&a.entry.terms.id];
         let exception = !matches!(st.as_str(), "agrees" | "within tolerance");
         exceptions += usize::from(exception);
@@ -267,6 +309,119 @@ fn a_run_on_a_2000_account_sample_finds_and_names_the_planted_mistakes() {
             "no {} planted: {kinds:?}",
             kind.name()
         );
+    }
+}
+
+/// The rows of `name` in `book` as text, keyed by their header labels.
+fn labelled_rows(book: &Path, name: &str) -> Vec<BTreeMap<String, String>> {
+    let rows = sheet(book, name);
+    let header: Vec<String> = rows[0].iter().map(|c| c.to_string()).collect();
+    rows[1..]
+        .iter()
+        .map(|r| {
+            header
+                .iter()
+                .cloned()
+                .zip(r.iter().map(|c| c.to_string()))
+                .collect()
+        })
+        .collect()
+}
+
+/// The whole close on a generated book (behaviour.md, Books that tie): its
+/// Trial balance is what the October close booked, so every Tie-out row
+/// agrees; the movements booked after the previous close give prior-period
+/// adjustments; every Booked row at the cut-off is on the Accrued check,
+/// the unplanted ones agreeing and the planted ones under- or over-booked
+/// by a day, the likely cause naming the day. The same for the CSV book and
+/// the workbook.
+#[test]
+fn a_run_on_a_generated_book_ties_out_and_checks_the_booked_accruals() {
+    let dir = tempfile::tempdir().unwrap();
+    let (accounts, seed) = (500, 41);
+    let generator = Generator::new(seed, accounts);
+    let made: Vec<_> = (0..accounts)
+        .map(|i| generator.account(i).unwrap())
+        .collect();
+    for (format, book) in [
+        ("csv", dir.path().join("book")),
+        ("xlsx", dir.path().join("book.xlsx")),
+    ] {
+        sample(accounts, seed, format, &book);
+        let out = dir.path().join(format!("nov-{format}.xlsx"));
+        ledgerate()
+            .arg("run")
+            .arg(&book)
+            .args(["--fixed-time", "2026-12-01T08:00:00", "--out"])
+            .arg(&out)
+            .assert()
+            .success()
+            .stdout(predicate::str::contains(format!(
+                "accounts: {accounts} read, {accounts} computed, 0 left out by errors"
+            )))
+            .stdout(predicate::str::contains("problems: 0 errors, 0 warnings"));
+
+        let tie_out = labelled_rows(&out, "Tie-out");
+        assert!(
+            tie_out.len() >= 10,
+            "{format}: {} GL accounts",
+            tie_out.len()
+        );
+        for row in &tie_out {
+            assert_eq!(row["Status"], "agrees", "{format}: {row:?}");
+            assert_eq!(row["Opening difference"], "0", "{format}: {row:?}");
+            assert_eq!(row["Closing difference"], "0", "{format}: {row:?}");
+        }
+        let summary = sheet(&out, "Summary");
+        let line = summary
+            .iter()
+            .find(|r| r[0] == Data::String("Tie-out".into()))
+            .map(|r| r[1].to_string())
+            .unwrap();
+        assert_eq!(line, format!("{} GL accounts, all agree", tie_out.len()));
+
+        let accruals = labelled_rows(&out, "Accruals");
+        let adjusted: Vec<&str> = accruals
+            .iter()
+            .filter(|r| !matches!(r["Prior-period adjustment"].as_str(), "0" | ""))
+            .map(|r| r["Account"].as_str())
+            .collect();
+        assert!(!adjusted.is_empty(), "{format}: no prior-period adjustment");
+        for id in &adjusted {
+            let a = made.iter().find(|a| a.entry.terms.id == *id).unwrap();
+            assert!(!a.ledger.prior_period.is_zero(), "{id}");
+        }
+
+        let check = labelled_rows(&out, "Accrued check");
+        let booked: Vec<_> = made.iter().filter(|a| a.booked.is_some()).collect();
+        assert_eq!(
+            check.len(),
+            booked.len(),
+            "{format}: one row per Booked row"
+        );
+        let mut planted = 0;
+        for (row, a) in check.iter().zip(&booked) {
+            let id = &a.entry.terms.id;
+            assert_eq!(&row["Account"], id);
+            let b = a.booked.as_ref().unwrap();
+            match b.mistake {
+                None => assert_eq!(row["Status"], "agrees", "{id}: {row:?}"),
+                Some(m) => {
+                    planted += 1;
+                    let status = match m {
+                        BookedMistake::StartADayLate => "under-posted",
+                        BookedMistake::StartADayEarly => "over-posted",
+                    };
+                    assert_eq!(row["Status"], status, "{id}: {row:?}");
+                    assert!(
+                        row["Likely cause"].contains(m.name()),
+                        "{id} planted {m:?}; the cause says: {}",
+                        row["Likely cause"]
+                    );
+                }
+            }
+        }
+        assert!(planted >= 2, "{format}: {planted} planted Booked rows");
     }
 }
 
