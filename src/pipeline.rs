@@ -24,8 +24,8 @@ use crate::engine::floating::{
     FixingFallback, FixingWarning, Fixings, FloatingRates, FloatingSchedule,
 };
 use crate::engine::ledger::{
-    figures, ledger_postings, open_item, open_item_before_window, LedgerFigures, LedgerPosting,
-    OpeningSource, SettlementLines,
+    figures, ledger_postings, open_item, LedgerFigures, LedgerPosting, OpeningSource,
+    SettlementLines,
 };
 use crate::engine::rates::RateSchedule;
 use crate::engine::reconcile::{
@@ -174,11 +174,7 @@ struct KnownRows<'a> {
 
 impl<'a> KnownRows<'a> {
     /// The account as it stood with these rows.
-    fn account<'k>(
-        &'k self,
-        now: &BookAccount<'k>,
-        statements: &'k [&'k StatementRow],
-    ) -> BookAccount<'k> {
+    fn account<'k>(&'k self, now: &BookAccount<'k>) -> BookAccount<'k> {
         BookAccount {
             entry: now.entry,
             rates: self.rates.as_ref(),
@@ -186,7 +182,7 @@ impl<'a> KnownRows<'a> {
             floating: self.floating.as_ref(),
             fixings: now.fixings,
             movements: &self.movements,
-            statements,
+            statements: &self.statements,
             booked_opening: None,
             booked_close: None,
             unreadable: now.unreadable,
@@ -449,18 +445,7 @@ fn check_accrued(
     let e = expected_over(t, result, from, c)?;
     let variance = booked.open_item - expected;
     let variance_bp = variance_bp(variance, e.balance_years);
-    let status = if variance.is_zero() {
-        Status::Agrees
-    } else if options
-        .tolerance
-        .accepts(variance, variance_bp, t.minor_units)
-    {
-        Status::WithinTolerance
-    } else if variance.is_sign_positive() {
-        Status::OverPosted
-    } else {
-        Status::UnderPosted
-    };
+    let status = Status::of_variance(variance, variance_bp, &options.tolerance, t.minor_units);
     // The cause search compares like with like: the days' interest it
     // re-runs against the booked figure less what is not accrual.
     let searched = Reconciled {
@@ -490,8 +475,8 @@ fn check_accrued(
 
 /// The booked opening and the notes it gives.
 struct Opening {
-    /// BO and its source; `None`: O(F-1) known now, with its warnings.
-    figure: Option<(Decimal, OpeningSource)>,
+    /// BO (`None`: O(F-1) known now) and its source.
+    figure: (Option<Decimal>, OpeningSource),
     notes: Vec<Problem>,
 }
 
@@ -510,27 +495,24 @@ fn booked_opening(
     let eve = f.pred_opt().unwrap_or(f);
     let mut notes = Vec::new();
     if t.open_date >= f {
-        let now =
-            open_item_before_window(&close.result, &close.not_made, f, options.settlement_lines);
         return Ok(Opening {
-            figure: Some((now, OpeningSource::OpensInWindow)),
+            figure: (None, OpeningSource::OpensInWindow),
             notes,
         });
     }
     if let Some(row) = account.booked_opening {
         return Ok(Opening {
-            figure: Some((row.open_item, OpeningSource::BookedRow)),
+            figure: (Some(row.open_item), OpeningSource::BookedRow),
             notes,
         });
     }
     if let Some(p) = options.previous_as_at {
+        // An account that knew at P all it knows now needs no re-run: its
+        // opening is O(F-1) known now, which the figures work out anyway.
         let bo = match account.known_at(p) {
-            None => {
-                open_item_before_window(&close.result, &close.not_made, f, options.settlement_lines)
-            }
+            None => None,
             Some(known) => {
-                let statements: Vec<&StatementRow> = known.statements.clone();
-                let then = known.account(account, &statements);
+                let then = known.account(account);
                 let previous = Options {
                     window_start: month_start(eve),
                     cutoff: eve,
@@ -539,16 +521,16 @@ fn booked_opening(
                 };
                 let c = self::close(&then, &previous).map_err(|e| previous_close_error(p, &e))?;
                 let postings = ledger_postings(&c.result, &c.not_made);
-                open_item(
+                Some(open_item(
                     c.result.accrued_at_cutoff,
                     &postings,
                     eve,
                     options.settlement_lines,
-                )
+                ))
             }
         };
         return Ok(Opening {
-            figure: Some((bo, OpeningSource::PreviousClose)),
+            figure: (bo, OpeningSource::PreviousClose),
             notes,
         });
     }
@@ -562,7 +544,7 @@ fn booked_opening(
         }
     }
     Ok(Opening {
-        figure: None,
+        figure: (None, OpeningSource::KnownNow),
         notes,
     })
 }

@@ -16,7 +16,7 @@ pub mod split;
 pub mod tie_out;
 pub mod totals;
 
-use std::collections::{HashMap, HashSet};
+use std::collections::HashMap;
 
 use chrono::NaiveDate;
 use rayon::prelude::*;
@@ -405,23 +405,11 @@ impl<'s> Sums<'s> {
             result.problems.push(detail_given_up());
         }
         if !tb.is_empty() {
-            let used: HashSet<(String, String, String)> = result
-                .accruals
-                .iter()
-                .map(|a| {
-                    (
-                        a.ledger.entity.to_string(),
-                        a.currency.to_string(),
-                        a.ledger.gl_accrued.to_string(),
-                    )
-                })
-                .collect();
             // With accounts left out, a GL account only they use is not
             // "unused": their errors already say why nothing ties to it.
             if result.accounts_left_out + result.accounts_failed == 0 {
-                result.problems.extend(tie_out::unused_row_notes(
+                result.problems.extend(self.tie_out.unused_row_notes(
                     &tb,
-                    &used,
                     settings.window_start,
                     settings.cutoff,
                 ));

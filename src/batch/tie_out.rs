@@ -9,7 +9,7 @@
 //! A GL account that accounts of both sides use has no row: it is an error
 //! ([`MixedSides::problem`]).
 
-use std::collections::{BTreeMap, HashSet};
+use std::collections::BTreeMap;
 
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
@@ -52,6 +52,39 @@ pub struct MixedSides {
 }
 
 impl TieOut {
+    /// A note for each Trial balance row (at the opening `window_start - 1`
+    /// or the `cutoff`) of a GL account no account added here uses.
+    pub fn unused_row_notes(
+        &self,
+        tb: &[&TrialBalanceRow],
+        window_start: NaiveDate,
+        cutoff: NaiveDate,
+    ) -> Vec<Problem> {
+        let eve = window_start.pred_opt();
+        tb.iter()
+            .filter(|r| Some(r.date) == eve || r.date == cutoff)
+            .filter(|r| {
+                !self.rows.contains_key(&(
+                    r.entity.clone(),
+                    r.currency.clone(),
+                    r.gl_account.clone(),
+                ))
+            })
+            .map(|r| Problem {
+                severity: Severity::Note,
+                position: r.position.clone(),
+                account: None,
+                found: format!(
+                    "a trial balance row for GL account {} ({}, {}) that no account of the books uses as its accrued-interest account",
+                    r.gl_account, r.entity, r.currency
+                ),
+                expected: UNUSED_ROW_EXPECTED.to_string(),
+                fix: "nothing to tie it to: it is not used; check the GL account, entity and currency if it should be".to_string(),
+                follows: None,
+            })
+            .collect()
+    }
+
     /// Adds one account's line to its GL account's sums.
     pub fn add(&mut self, line: &AccrualLine) {
         let l = &line.ledger;
@@ -211,35 +244,7 @@ impl MixedSides {
 const UNUSED_ROW_EXPECTED: &str =
     "the accrued-interest GL accounts (gl_accrued) of the accounts computed";
 
-/// A note for each Trial balance row (at the opening `window_start - 1` or
-/// the `cutoff`) of a GL account that no computed account uses: `used`
-/// holds the (entity, currency, GL account) of every computed account.
-pub fn unused_row_notes(
-    tb: &[&TrialBalanceRow],
-    used: &HashSet<(String, String, String)>,
-    window_start: NaiveDate,
-    cutoff: NaiveDate,
-) -> Vec<Problem> {
-    let eve = window_start.pred_opt();
-    tb.iter()
-        .filter(|r| Some(r.date) == eve || r.date == cutoff)
-        .filter(|r| !used.contains(&(r.entity.clone(), r.currency.clone(), r.gl_account.clone())))
-        .map(|r| Problem {
-            severity: Severity::Note,
-            position: r.position.clone(),
-            account: None,
-            found: format!(
-                "a trial balance row for GL account {} ({}, {}) that no account of the books uses as its accrued-interest account",
-                r.gl_account, r.entity, r.currency
-            ),
-            expected: UNUSED_ROW_EXPECTED.to_string(),
-            fix: "nothing to tie it to: it is not used; check the GL account, entity and currency if it should be".to_string(),
-            follows: None,
-        })
-        .collect()
-}
-
-/// Whether `p` is a note of [`unused_row_notes`]. A shard notes a row no
+/// Whether `p` is a note of [`TieOut::unused_row_notes`]. A shard notes a row no
 /// account of its own uses; the whole run notes it only when no shard's
 /// account does, so a merge keeps the notes every shard has.
 pub fn is_unused_row_note(p: &Problem) -> bool {

@@ -209,8 +209,8 @@ pub struct LedgerFigures {
 }
 
 /// The ledger's figures for one account: `postings` are the engine's
-/// postings to C as made or not, `booked_opening` BO and its source (the
-/// caller decides it; `None` takes O(F-1) known now).
+/// postings to C as made or not, `opening` BO and its source (the caller
+/// decides them; a BO of `None` is O(F-1) known now).
 ///
 /// Interest for window = O(C) - BO + settled in window, whatever the
 /// settlement mode (a test checks it on every example).
@@ -227,7 +227,7 @@ pub struct LedgerFigures {
 ///     LedgerPosting { start: d("2026-11-01"), end: d("2026-11-30"), payment: d("2026-12-01"), amount: n("454.23"), made: true },
 /// ];
 /// let f = figures(&posts, n("43.80"), n("0.00"), d("2026-11-01"), d("2026-11-30"),
-///     SettlementLines::PaymentDate, Some((n("310.00"), OpeningSource::PreviousClose)));
+///     SettlementLines::PaymentDate, (Some(n("310.00")), OpeningSource::PreviousClose));
 /// assert_eq!(f.prior_period, n("43.80"));
 /// assert_eq!(f.window_days_interest, n("410.43"));
 /// assert_eq!(f.interest_for_window, n("454.23"));
@@ -242,7 +242,7 @@ pub fn figures(
     from: NaiveDate,
     to: NaiveDate,
     mode: SettlementLines,
-    booked_opening: Option<(Decimal, OpeningSource)>,
+    opening: (Option<Decimal>, OpeningSource),
 ) -> LedgerFigures {
     let eve = from.pred_opt().unwrap_or(from);
     let in_window: Decimal = postings
@@ -252,8 +252,7 @@ pub fn figures(
         .sum();
     let window_days_interest = in_window + accrued_at_cutoff - accrued_before_window;
     let open_item_before = open_item(accrued_before_window, postings, eve, mode);
-    let (booked_opening, opening_source) =
-        booked_opening.unwrap_or((open_item_before, OpeningSource::KnownNow));
+    let (booked_opening, opening_source) = (opening.0.unwrap_or(open_item_before), opening.1);
     let prior_period = open_item_before - booked_opening;
     LedgerFigures {
         window_days_interest,
@@ -265,19 +264,6 @@ pub fn figures(
         open_item: open_item(accrued_at_cutoff, postings, to, mode),
         settled_in_window: settled_in(postings, from, to, mode),
     }
-}
-
-/// The open item at F-1 of an account run with `result` (the previous
-/// close re-run), its postings made unless their period is in `not_made`.
-pub fn open_item_before_window(
-    result: &AccountResult,
-    not_made: &[(NaiveDate, NaiveDate)],
-    window_start: NaiveDate,
-    mode: SettlementLines,
-) -> Decimal {
-    let postings = ledger_postings(result, not_made);
-    let eve = window_start.pred_opt().unwrap_or(window_start);
-    open_item(result.accrued_before_window, &postings, eve, mode)
 }
 
 /// The engine's postings as the ledger sees them.
@@ -323,7 +309,10 @@ mod tests {
             post("2026-11-16", "2026-11-30", "2026-12-03", "6.50", true),
         ];
         for mode in SettlementLines::ALL {
-            for bo in [None, Some((n("1.00"), OpeningSource::BookedRow))] {
+            for bo in [
+                (None, OpeningSource::KnownNow),
+                (Some(n("1.00")), OpeningSource::BookedRow),
+            ] {
                 let f = figures(
                     &posts,
                     n("0.40"),

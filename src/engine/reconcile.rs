@@ -86,6 +86,25 @@ impl Status {
         }
     }
 
+    /// The status of a variance (posted - expected, and in basis points):
+    /// agrees, within tolerance, or over- or under-posted.
+    pub fn of_variance(
+        variance: Decimal,
+        variance_bp: Option<Decimal>,
+        tolerance: &Tolerance,
+        minor_units: u32,
+    ) -> Status {
+        if variance.is_zero() {
+            Status::Agrees
+        } else if tolerance.accepts(variance, variance_bp, minor_units) {
+            Status::WithinTolerance
+        } else if variance.is_sign_positive() {
+            Status::OverPosted
+        } else {
+            Status::UnderPosted
+        }
+    }
+
     /// Whether a row of this status is outside tolerance and needs
     /// explaining: every status but `agrees` and `within tolerance`. The
     /// workbook's variance chart and `--fail-on-variance` both ask this one
@@ -282,14 +301,8 @@ pub fn reconcile(
         let bp = variance_bp(variance, e.balance_years);
         let status = if !s.posted.is_zero() && !e.any_base {
             Status::UnexpectedPosting
-        } else if variance.is_zero() {
-            Status::Agrees
-        } else if tolerance.accepts(variance, bp, terms.minor_units) {
-            Status::WithinTolerance
-        } else if variance.is_sign_positive() {
-            Status::OverPosted
         } else {
-            Status::UnderPosted
+            Status::of_variance(variance, bp, tolerance, terms.minor_units)
         };
         out.push(Reconciled {
             start: s.start,
