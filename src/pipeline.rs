@@ -747,6 +747,10 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
         ),
         EngineError::BadState(_) => ("a period start".to_string(), "report this as a defect".to_string()),
         EngineError::UnbrokenSpan(_) => ("runs of days that end at every statement boundary".to_string(), "report this as a defect; --no-fast-path computes the account day by day".to_string()),
+        EngineError::NoTaxTable { tax_ref, date, .. } => (
+            format!("a {tax_ref} table of the Tax sheet in force on the payment date {date}"),
+            format!("add a Tax row for tax_ref '{tax_ref}' effective on or before {date} (a rate_percent of 0 for an exemption); the account is not computed until then"),
+        ),
     };
     Problem {
         severity: Severity::Error,

@@ -27,7 +27,8 @@ use crate::book::{
 };
 use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
-use crate::engine::ledger::SettlementLines;
+use crate::engine::ledger::{LedgerPosting, SettlementLines};
+use crate::engine::PostingRow;
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{report_order, Position, Problem};
@@ -144,6 +145,8 @@ struct Outcome {
     gl: ResolvedGl,
     /// The postings this run settles: settlement date and amount.
     settlements: Vec<(NaiveDate, Decimal)>,
+    /// Their withholding tax: settlement date and tax.
+    withheld: Vec<(NaiveDate, Decimal)>,
     daily: Vec<DailyLine>,
     reconciliation: Vec<(Status, ReconciliationLine)>,
     /// The core system's open item checked against ours, when a Booked row gives it.
@@ -372,6 +375,7 @@ impl<'s> Sums<'s> {
                 prior_period: l.prior_period,
                 open_item: l.open_item,
                 settlements: o.settlements,
+                withheld: o.withheld,
             },
             settings.journal_style,
             settings.window_start,
@@ -519,6 +523,7 @@ fn outcome(
         .filter(|p| mode.journals(p, options.window_start, options.cutoff))
         .filter_map(|p| Some((mode.settlement_date(p)?, p.amount)))
         .collect();
+    let withheld = withheld_of(&run.postings, &r.postings, options);
     let gl = ResolvedGl::of(t.side, &entry.gl);
     let f = &run.ledger;
     let daily = r
@@ -572,11 +577,31 @@ fn outcome(
         },
         gl,
         settlements,
+        withheld,
         daily,
         reconciliation,
         accrued_check,
         notes: run.notes,
     }
+}
+
+/// The withholding tax of the postings this run settles, with their
+/// settlement dates (behaviour.md, Withholding tax): the ledger's postings
+/// are the engine's, one for one and in order. Empty for an account without
+/// tax, so its journal is as before.
+fn withheld_of(
+    postings: &[LedgerPosting],
+    rows: &[PostingRow],
+    options: &Options,
+) -> Vec<(NaiveDate, Decimal)> {
+    let mode = options.settlement_lines;
+    postings
+        .iter()
+        .zip(rows)
+        .filter(|(_, r)| !r.withheld.tax.is_zero())
+        .filter(|(p, _)| mode.journals(p, options.window_start, options.cutoff))
+        .filter_map(|(p, r)| Some((mode.settlement_date(p)?, r.withheld.tax)))
+        .collect()
 }
 
 /// The Reconciliation line of a statement row that could not be read: its

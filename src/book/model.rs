@@ -26,6 +26,8 @@ pub struct GlCodes {
     pub settlement: Option<String>,
     /// Where a prior-period interest adjustment is booked (default: `interest`).
     pub prior_period: Option<String>,
+    /// GL account of the withholding tax (`gl_tax`).
+    pub tax: Option<String>,
 }
 
 /// One row of the Accounts sheet, resolved.

@@ -24,6 +24,7 @@ use super::settings::{self, Settings, StatementEnd};
 use super::sheet::Sheet;
 use super::statements::Statements;
 use super::table::Ctx;
+use super::tax::{self, Taxes};
 use super::{movements, statements, trial_balance};
 use crate::problem::{a1_row, FollowOn, Position, Problem, Severity};
 use crate::schema::SheetKind;
@@ -146,10 +147,12 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         sheet(SheetKind::Rates).map_or_else(Rates::default, |s| rates::read(ctx, &s, problems));
     let fixings = sheet(SheetKind::Fixings)
         .map_or_else(FixingsSheet::default, |s| fixings::read(ctx, &s, problems));
+    let taxes = sheet(SheetKind::Tax).map_or_else(Taxes::default, |s| tax::read(ctx, &s, problems));
     let others = Others {
         rates: &rates,
         calendars: &calendars,
         fixings: &fixings,
+        taxes: &taxes,
     };
     let accounts_sheet = sheet(SheetKind::Accounts);
     let found = accounts_sheet
