@@ -550,6 +550,7 @@ mod tests {
                 accrued: Some("2300".into()),
                 settlement: None,
                 prior_period: None,
+                tax: None,
             },
         );
         let mut j = Journal::new();

@@ -63,6 +63,9 @@ pub struct StatementRow {
     /// The day the posting was booked to the customer's account, if given
     /// (a row is known to a run as at A when this is on or before A).
     pub posting_date: Option<NaiveDate>,
+    /// The withholding tax the row shows (`tax_withheld`), when given;
+    /// `posted` is gross all the same (behaviour.md, Withholding tax).
+    pub tax_withheld: Option<Decimal>,
     /// The row's position (cell of the account id).
     pub position: Position,
 }

@@ -20,7 +20,7 @@ use super::model::{AccountEntry, Book, LeftOut};
 use super::movements::Movements;
 use super::open::load;
 use super::rates::{self, Rates};
-use super::settings::{self, Settings, StatementEnd};
+use super::settings::{self, Settings, StatementAmounts, StatementEnd};
 use super::sheet::Sheet;
 use super::statements::Statements;
 use super::table::Ctx;
@@ -177,6 +177,7 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         sheet(SheetKind::Statements),
         &found.known,
         settings.statement_end,
+        settings.statement_amounts,
     );
     if let Some(m) = take_typed(moved, &entries, problems, &mut rejected) {
         rejected.extend(m.spoiled);
@@ -267,6 +268,7 @@ fn type_postings(
     statements_sheet: Option<Sheet>,
     known: &Known,
     statement_end: StatementEnd,
+    statement_amounts: StatementAmounts,
 ) -> (Option<Typed<Movements>>, Option<Typed<Statements>>) {
     rayon::join(
         || {
@@ -279,7 +281,7 @@ fn type_postings(
         || {
             statements_sheet.map(|s| {
                 let mut found = Vec::new();
-                let typed = statements::read(ctx, &s, known, statement_end, &mut found);
+                let typed = statements::read(ctx, &s, known, statement_end, statement_amounts, &mut found);
                 (s, typed, found)
             })
         },
