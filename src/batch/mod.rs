@@ -28,8 +28,8 @@ use crate::book::{
 use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
 use crate::engine::ledger::{LedgerPosting, SettlementLines};
-use crate::engine::PostingRow;
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
+use crate::engine::PostingRow;
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{report_order, Position, Problem};
 use crate::report::model::{

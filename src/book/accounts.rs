@@ -17,10 +17,9 @@ use super::fixings::{FixingsSheet, IndexLookup};
 use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
-use super::tax::Taxes;
-use crate::engine::tax::TaxTerms;
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
+use super::tax::Taxes;
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::currency;
@@ -28,6 +27,7 @@ use crate::conventions::daycount::Basis;
 use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
+use crate::engine::tax::TaxTerms;
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
 use crate::problem::{FollowOn, Problem, Severity};
 use crate::schema::{column, SheetKind, ACCOUNTS};
@@ -1226,7 +1226,9 @@ fn tax_terms(f: &mut Fields<'_, '_, '_>, tax_ref: &str, taxes: &Taxes) -> Option
             Severity::Error,
             TAX_REF,
             tax_ref,
-            &format!("a tax_ref whose Tax rows can be read ({tax_ref} has a bad row at Tax!{cell})"),
+            &format!(
+                "a tax_ref whose Tax rows can be read ({tax_ref} has a bad row at Tax!{cell})"
+            ),
             "correct the Tax row named; the account is not computed until then",
         );
         return None;

@@ -281,7 +281,8 @@ fn type_postings(
         || {
             statements_sheet.map(|s| {
                 let mut found = Vec::new();
-                let typed = statements::read(ctx, &s, known, statement_end, statement_amounts, &mut found);
+                let typed =
+                    statements::read(ctx, &s, known, statement_end, statement_amounts, &mut found);
                 (s, typed, found)
             })
         },

@@ -71,7 +71,10 @@ impl StatementAmounts {
         lookup(
             "statement amounts",
             s,
-            &[("gross", StatementAmounts::Gross), ("net", StatementAmounts::Net)],
+            &[
+                ("gross", StatementAmounts::Gross),
+                ("net", StatementAmounts::Net),
+            ],
             &["gross", "net"],
         )
     }
@@ -172,12 +175,12 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
                 out.statement_end = s;
                 s.name().to_string()
             }),
-            Kind::Choice(Choice::StatementAmounts) => f
-                .named(VALUE, StatementAmounts::parse)
-                .map(|s| {
+            Kind::Choice(Choice::StatementAmounts) => {
+                f.named(VALUE, StatementAmounts::parse).map(|s| {
                     out.statement_amounts = s;
                     s.name().to_string()
-                }),
+                })
+            }
             _ => f.text(VALUE),
         };
         match value {
