@@ -864,6 +864,46 @@ fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rate
     }
 }
 
+/// The withholding tax an account's `tax_ref` names (behaviour.md,
+/// Withholding tax); an unknown or broken `tax_ref` is an error on the cell.
+fn tax_terms(f: &mut Fields<'_, '_, '_>, tax_ref: &str, taxes: &Taxes) -> Option<TaxTerms> {
+    if let Some(schedule) = taxes.schedules.get(tax_ref) {
+        return Some(TaxTerms {
+            schedule: Arc::clone(schedule),
+        });
+    }
+    if let Some(cell) = taxes.broken.get(tax_ref) {
+        f.report(
+            Severity::Error,
+            TAX_REF,
+            tax_ref,
+            &format!(
+                "a tax_ref whose Tax rows can be read ({tax_ref} has a bad row at Tax!{cell})"
+            ),
+            "correct the Tax row named; the account is not computed until then",
+        );
+        return None;
+    }
+    let key = fold(tax_ref);
+    let near = taxes
+        .schedules
+        .keys()
+        .find(|k| fold(k) == key || near_miss(&key, &fold(k)));
+    let fix = match (near, taxes.read) {
+        (Some(n), _) => format!("did you mean {n}? add a Tax row for {tax_ref}, or correct tax_ref"),
+        (None, true) => format!("add a Tax row for {tax_ref} (tax_ref, effective, rate_percent), or clear tax_ref if the account bears no tax"),
+        (None, false) => format!("add a Tax sheet with a row for {tax_ref} (tax_ref, effective, rate_percent), or clear tax_ref if the account bears no tax"),
+    };
+    f.report(
+        Severity::Error,
+        TAX_REF,
+        tax_ref,
+        "a tax_ref of the Tax sheet",
+        &fix,
+    );
+    None
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -1211,44 +1251,4 @@ mod tests {
         );
         assert!(problems[2].expected.contains("ACT/360 or ACT/365F"));
     }
-}
-
-/// The withholding tax an account's `tax_ref` names (behaviour.md,
-/// Withholding tax); an unknown or broken `tax_ref` is an error on the cell.
-fn tax_terms(f: &mut Fields<'_, '_, '_>, tax_ref: &str, taxes: &Taxes) -> Option<TaxTerms> {
-    if let Some(schedule) = taxes.schedules.get(tax_ref) {
-        return Some(TaxTerms {
-            schedule: Arc::clone(schedule),
-        });
-    }
-    if let Some(cell) = taxes.broken.get(tax_ref) {
-        f.report(
-            Severity::Error,
-            TAX_REF,
-            tax_ref,
-            &format!(
-                "a tax_ref whose Tax rows can be read ({tax_ref} has a bad row at Tax!{cell})"
-            ),
-            "correct the Tax row named; the account is not computed until then",
-        );
-        return None;
-    }
-    let key = fold(tax_ref);
-    let near = taxes
-        .schedules
-        .keys()
-        .find(|k| fold(k) == key || near_miss(&key, &fold(k)));
-    let fix = match (near, taxes.read) {
-        (Some(n), _) => format!("did you mean {n}? add a Tax row for {tax_ref}, or correct tax_ref"),
-        (None, true) => format!("add a Tax row for {tax_ref} (tax_ref, effective, rate_percent), or clear tax_ref if the account bears no tax"),
-        (None, false) => format!("add a Tax sheet with a row for {tax_ref} (tax_ref, effective, rate_percent), or clear tax_ref if the account bears no tax"),
-    };
-    f.report(
-        Severity::Error,
-        TAX_REF,
-        tax_ref,
-        "a tax_ref of the Tax sheet",
-        &fix,
-    );
-    None
 }
