@@ -390,12 +390,23 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
     let rows = reconciled
         .into_iter()
         .map(|row| CheckedRow {
-            likely_cause: matches!(row.status, Status::OverPosted | Status::UnderPosted)
-                .then(|| search(t, &inputs, &result.states, &row, &options.tolerance)),
+            likely_cause: matches!(row.status, Status::OverPosted | Status::UnderPosted).then(
+                || {
+                    tax::net_cause(t, &result, &row).unwrap_or_else(|| {
+                        search(t, &inputs, &result.states, &row, &options.tolerance)
+                    })
+                },
+            ),
             row,
         })
         .collect();
     notes.extend(fixing_warnings(entry, &result.fixing_warnings));
+    notes.extend(tax::stated_tax_warnings(
+        t,
+        &result,
+        account.statements,
+        options.cutoff,
+    ));
     let accrued_check = match account.booked_close {
         Some(booked) => Some(check_accrued(
             t, &inputs, &result, &not_made, booked, options,
@@ -762,6 +773,8 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
         follows: None,
     }
 }
+
+mod tax;
 
 #[cfg(test)]
 mod tests;

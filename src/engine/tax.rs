@@ -176,6 +176,138 @@ pub fn withhold(
     })
 }
 
+/// A rate as a percentage in plain words: 0.2 is "20", 0.155 is "15.5".
+fn percent(rate: Decimal) -> String {
+    (rate * Decimal::ONE_HUNDRED).normalize().to_string()
+}
+
+/// The tax of `gross` under each other table of the schedule than the one in
+/// force on `payment`, once per rate: (rate, tax).
+fn other_rates(
+    schedule: &TaxSchedule,
+    gross: Decimal,
+    payment: NaiveDate,
+    minor_units: u32,
+) -> Vec<(Decimal, Decimal)> {
+    let in_force = schedule.in_force(payment).map(|t| t.rate);
+    let mut out: Vec<(Decimal, Decimal)> = Vec::new();
+    for t in &schedule.tables {
+        if Some(t.rate) == in_force || out.iter().any(|(r, _)| *r == t.rate) {
+            continue;
+        }
+        if let Some(product) = gross.checked_mul(t.rate) {
+            out.push((t.rate, t.round_mode.round(product, minor_units)));
+        }
+    }
+    out
+}
+
+/// The likely cause of a gross statement amount `posted` against the
+/// `expected` gross when it is a net amount (behaviour.md, Withholding tax):
+/// "posted net of t% tax (T)", or the net under another table's rate of the
+/// same tax_ref, "posted net of tax at t'% instead of t% (T' instead of T)".
+///
+/// ```
+/// use ledgerate::conventions::rounding::RoundMode;
+/// use ledgerate::engine::tax::{net_posting_cause, TaxSchedule, TaxTable};
+/// let d = |s: &str| s.parse::<chrono::NaiveDate>().unwrap();
+/// let n = |s: &str| s.parse::<rust_decimal::Decimal>().unwrap();
+/// let s = TaxSchedule::new("SAV", [
+///     TaxTable { effective: d("2025-01-01"), rate: n("0.25"), round_mode: RoundMode::HalfUp },
+///     TaxTable { effective: d("2026-01-01"), rate: n("0.20"), round_mode: RoundMode::HalfUp },
+/// ]);
+/// // Spec example D1: 240.00 posted against 300.00 under gross.
+/// let cause = net_posting_cause(&s, n("300.00"), n("240.00"), d("2026-12-01"), 2);
+/// assert_eq!(cause.as_deref(), Some("posted net of 20% tax (60.00)"));
+/// let old = net_posting_cause(&s, n("300.00"), n("225.00"), d("2026-12-01"), 2);
+/// assert_eq!(old.as_deref(), Some("posted net of tax at 25% instead of 20% (75.00 instead of 60.00)"));
+/// assert_eq!(net_posting_cause(&s, n("300.00"), n("250.00"), d("2026-12-01"), 2), None);
+/// ```
+pub fn net_posting_cause(
+    schedule: &TaxSchedule,
+    expected: Decimal,
+    posted: Decimal,
+    payment: NaiveDate,
+    minor_units: u32,
+) -> Option<String> {
+    let w = withhold(schedule, expected, payment, minor_units).ok()?;
+    if w.tax.is_zero() || expected <= Decimal::ZERO {
+        return None;
+    }
+    if posted == w.net {
+        return Some(format!(
+            "posted net of {}% tax ({})",
+            percent(w.rate),
+            w.tax
+        ));
+    }
+    other_rates(schedule, expected, payment, minor_units)
+        .into_iter()
+        .find(|(_, tax)| expected - *tax == posted)
+        .map(|(rate, tax)| {
+            format!(
+                "posted net of tax at {}% instead of {}% ({tax} instead of {})",
+                percent(rate),
+                percent(w.rate),
+                w.tax
+            )
+        })
+}
+
+/// What is wrong with the tax a statement shows, `stated`, on a posting of
+/// `gross` (behaviour.md, Withholding tax); `None` when it is the tax due.
+/// "tax of T not withheld" when it shows none, "tax at t'% instead of t%"
+/// when it is another table's rate of the same tax_ref, else the two amounts.
+///
+/// ```
+/// use ledgerate::conventions::rounding::RoundMode;
+/// use ledgerate::engine::tax::{stated_tax_cause, TaxSchedule, TaxTable};
+/// let d = |s: &str| s.parse::<chrono::NaiveDate>().unwrap();
+/// let n = |s: &str| s.parse::<rust_decimal::Decimal>().unwrap();
+/// let s = TaxSchedule::new("SAV", [
+///     TaxTable { effective: d("2025-01-01"), rate: n("0.25"), round_mode: RoundMode::HalfUp },
+///     TaxTable { effective: d("2026-01-01"), rate: n("0.20"), round_mode: RoundMode::HalfUp },
+/// ]);
+/// let pay = d("2026-12-01");
+/// assert_eq!(stated_tax_cause(&s, n("300.00"), n("60.00"), pay, 2), None);
+/// assert_eq!(stated_tax_cause(&s, n("300.00"), n("0"), pay, 2).as_deref(), Some("tax of 60.00 not withheld"));
+/// assert_eq!(stated_tax_cause(&s, n("300.00"), n("75.00"), pay, 2).as_deref(), Some("tax at 25% instead of 20% (75.00 instead of 60.00)"));
+/// assert_eq!(stated_tax_cause(&s, n("300.00"), n("61.00"), pay, 2).as_deref(), Some("tax withheld 61.00 instead of 60.00 (20% of 300.00)"));
+/// ```
+pub fn stated_tax_cause(
+    schedule: &TaxSchedule,
+    gross: Decimal,
+    stated: Decimal,
+    payment: NaiveDate,
+    minor_units: u32,
+) -> Option<String> {
+    let w = withhold(schedule, gross, payment, minor_units).ok()?;
+    if stated == w.tax {
+        return None;
+    }
+    if stated.is_zero() {
+        return Some(format!("tax of {} not withheld", w.tax));
+    }
+    if gross > Decimal::ZERO {
+        let other = other_rates(schedule, gross, payment, minor_units)
+            .into_iter()
+            .find(|(_, tax)| *tax == stated);
+        if let Some((rate, tax)) = other {
+            return Some(format!(
+                "tax at {}% instead of {}% ({tax} instead of {})",
+                percent(rate),
+                percent(w.rate),
+                w.tax
+            ));
+        }
+    }
+    Some(format!(
+        "tax withheld {stated} instead of {} ({}% of {gross})",
+        w.tax,
+        percent(w.rate)
+    ))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -246,5 +378,30 @@ mod tests {
         );
         let w = withhold(&s, n("123.45"), d("2026-11-30"), 2).unwrap();
         assert_eq!((w.tax, w.net), (Decimal::ZERO, n("123.45")));
+    }
+
+    /// Withholding tax: T + N = G for every posting, every mode and rate,
+    /// and T is never more than G (the rate is at most 100%).
+    #[test]
+    fn withholding_tax_tax_and_net_add_up_to_the_gross() {
+        for mode in RoundMode::ALL {
+            for rate in ["0", "0.15", "0.2", "0.24", "0.333333", "1"] {
+                let s = TaxSchedule::new(
+                    "T",
+                    [TaxTable {
+                        effective: d("2026-01-01"),
+                        rate: n(rate),
+                        round_mode: mode,
+                    }],
+                );
+                for cents in (0..5000).step_by(7) {
+                    let g = Decimal::new(cents * 13 + 1, 2);
+                    let w = withhold(&s, g, d("2026-11-30"), 2).unwrap();
+                    assert_eq!(w.tax + w.net, g, "{g} at {rate} {mode:?}");
+                    assert!(w.tax >= Decimal::ZERO && w.tax <= g, "{g} at {rate}");
+                    assert!(w.tax.scale() <= 2, "{}", w.tax);
+                }
+            }
+        }
     }
 }

@@ -126,6 +126,7 @@ fn spec_example_d1_a_net_statement_reconciles_with_its_tax() {
     assert_eq!((row.expected, row.posted), (dec("300.00"), dec("240.00")));
     assert_eq!(row.variance, dec("-60.00"));
     assert_eq!(row.status, Status::UnderPosted);
+    assert_eq!(row.likely_cause, "posted net of 20% tax (60.00)");
 
     let dir = tempfile::tempdir().unwrap();
     let b = book(
@@ -347,4 +348,46 @@ fn withholding_tax_net_amounts_without_a_tax_column_are_refused() {
     ]);
     assert!(!e.is_empty());
     assert!(e[0].found.contains("no tax_withheld column"), "{:?}", e[0]);
+}
+
+/// Under `net`, a statement that withheld no tax reconciles its gross, and a
+/// warning names the tax not withheld; one at another rate of the tax_ref
+/// names that rate.
+#[test]
+fn withholding_tax_a_statements_tax_other_than_the_tax_due_is_a_warning() {
+    for (net, withheld, words) in [
+        ("300.00", "0", "tax of 60.00 not withheld"),
+        (
+            "225.00",
+            "75.00",
+            "tax at 25% instead of 20% (75.00 instead of 60.00)",
+        ),
+    ] {
+        let dir = tempfile::tempdir().unwrap();
+        let statements = format!(
+            "account,period_start,period_end,posted_interest,tax_withheld\nSAV-1,2026-11-01,2026-11-30,{net},{withheld}\n"
+        );
+        let b = book(
+            dir.path(),
+            &[
+                ("accounts.csv", D1_ACCOUNTS),
+                ("rates.csv", D1_RATES),
+                (
+                    "tax.csv",
+                    "tax_ref,effective,rate_percent\nSAVINGS-20,2025-01-01,25\nSAVINGS-20,2026-01-01,20\n",
+                ),
+                ("statements.csv", &statements),
+                ("settings.csv", "setting,value\nstatement_amounts,net\n"),
+            ],
+        );
+        let r = run(b, &settings(("2026-11-01", "2026-11-30")));
+        assert_eq!(r.reconciliation[0].status, Status::Agrees, "{words}");
+        let w: Vec<_> = r
+            .problems
+            .iter()
+            .filter(|p| p.severity == Severity::Warning)
+            .collect();
+        assert_eq!(w.len(), 1, "{w:?}");
+        assert!(w[0].found.contains(words), "{}", w[0].found);
+    }
 }
