@@ -391,3 +391,29 @@ fn withholding_tax_a_statements_tax_other_than_the_tax_due_is_a_warning() {
         assert!(w[0].found.contains(words), "{}", w[0].found);
     }
 }
+
+/// `explain` shows each posting's gross, tax and net (spec example D1).
+#[test]
+fn withholding_tax_explain_shows_gross_tax_and_net() {
+    let dir = tempfile::tempdir().unwrap();
+    let tax = d1_tax("half-up");
+    book(
+        dir.path(),
+        &[
+            ("accounts.csv", D1_ACCOUNTS),
+            ("rates.csv", D1_RATES),
+            ("tax.csv", &tax),
+        ],
+    );
+    let out = crate::common::ledgerate()
+        .args(["explain", "--account", "SAV-1", "--cutoff", "2026-11-30"])
+        .arg(dir.path())
+        .output()
+        .unwrap();
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        text.contains("tax SAVINGS-20: gross 300.00 tax 60.00 (20%) net 240.00"),
+        "{text}{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
