@@ -34,7 +34,7 @@ use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{report_order, Position, Problem};
 use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalDetail, JournalLine, LedgerLine, LeftOutLine,
-    ReconciliationLine, StatusCount, TieOutLine, Word,
+    ReconciliationLine, StatusCount, TaxLine, TieOutLine, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl};
 use tie_out::TieOut;
@@ -574,6 +574,10 @@ fn outcome(
                 open_item: f.open_item,
                 settled_in_window: f.settled_in_window,
             },
+            tax: t
+                .tax
+                .as_ref()
+                .map(|_| tax_line(&run.postings, &r.postings, options)),
         },
         gl,
         settlements,
@@ -583,6 +587,21 @@ fn outcome(
         accrued_check,
         notes: run.notes,
     }
+}
+
+/// The tax withheld from the postings counted in Posted in window, and
+/// their net (behaviour.md, Withholding tax).
+fn tax_line(postings: &[LedgerPosting], rows: &[PostingRow], options: &Options) -> TaxLine {
+    let mut line = TaxLine::default();
+    for (_, r) in postings
+        .iter()
+        .zip(rows)
+        .filter(|(p, _)| p.made && p.end >= options.window_start && p.end <= options.cutoff)
+    {
+        line.withheld += r.withheld.tax;
+        line.net_posted += r.withheld.net;
+    }
+    line
 }
 
 /// The withholding tax of the postings this run settles, with their

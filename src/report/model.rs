@@ -146,6 +146,19 @@ pub struct AccrualLine {
     pub effective_annual_rate: Option<Decimal>,
     /// Its GL accounts and what the ledger holds for it (behaviour.md, Books that tie).
     pub ledger: LedgerLine,
+    /// Its withholding tax in the window, for an account with a `tax_ref`
+    /// (behaviour.md, Withholding tax); `None` without.
+    pub tax: Option<TaxLine>,
+}
+
+/// An account's withholding tax on the postings of the window (those counted
+/// in Posted in window).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct TaxLine {
+    /// The tax withheld from them.
+    pub withheld: Decimal,
+    /// What they credited net of it.
+    pub net_posted: Decimal,
 }
 
 /// An account's GL accounts (defaults resolved) and its ledger figures.

@@ -63,6 +63,36 @@ pub const ACCRUALS_HEADER: [&str; 22] = [
     "GL prior period",
 ];
 
+/// Header labels of the Accruals sheet of a run with withholding tax: its
+/// columns, then the tax withheld from the window's postings and their net
+/// (behaviour.md, Withholding tax). A run without tax keeps the sheet as it was.
+pub const ACCRUALS_TAX_HEADER: [&str; 24] = [
+    "Account",
+    "Name",
+    "Currency",
+    "Side",
+    "Day count",
+    "Compounding",
+    "Balance at cut-off",
+    "Accrued at cut-off",
+    "Posted in window",
+    "Interest for window",
+    "Effective annual rate",
+    "Window days' interest",
+    "Booked opening",
+    "Opening from",
+    "Prior-period adjustment",
+    "Open item at cut-off",
+    "Settled in window",
+    "Entity",
+    "GL interest",
+    "GL accrued",
+    "GL settlement",
+    "GL prior period",
+    "Tax withheld in window",
+    "Net posted in window",
+];
+
 /// Header labels of the Reconciliation sheet.
 pub const RECONCILIATION_HEADER: [&str; 12] = [
     "Account",
@@ -467,7 +497,11 @@ fn write_lists(
     report: &Report,
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    if report.accruals.iter().any(|a| a.tax.is_some()) {
+        write_list(wb, &ACCRUALS_TAX, &report.accruals, ctx)?;
+    } else {
+        write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    }
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
@@ -555,6 +589,17 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     footer: None,
     row: accrual_row,
     columns: accrual_columns,
+};
+
+/// The Accruals of a run with withholding tax: two columns more.
+const ACCRUALS_TAX: ListSheet<AccrualLine> = ListSheet {
+    header: &ACCRUALS_TAX_HEADER,
+    caps: &[
+        24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22, 24, 24, 18, 24, 24, 24, 24, 32, 32, 32, 32, 24,
+        24,
+    ],
+    columns: accrual_tax_columns,
+    ..ACCRUALS
 };
 
 /// Widest widths of the Reconciliation's columns, and of the Accrued
@@ -822,6 +867,13 @@ fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Fo
     ]
 }
 
+fn accrual_tax_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
+    let mut columns = accrual_columns(s, rows);
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    columns.extend([amount, amount]);
+    columns
+}
+
 fn reconciliation_columns<'s>(
     s: &'s Styles,
     rows: &[ReconciliationLine],
@@ -920,6 +972,11 @@ fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
     c.text(19, &l.gl_accrued)?;
     c.text(20, &l.gl_settlement)?;
     c.text(21, &l.gl_prior_period)?;
+    // Withholding tax: blank for an account without it.
+    if let Some(tax) = &a.tax {
+        c.amount(22, tax.withheld, units)?;
+        c.amount(23, tax.net_posted, units)?;
+    }
     Ok(())
 }
 

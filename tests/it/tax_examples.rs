@@ -87,6 +87,11 @@ fn spec_example_d1_november_the_balance_takes_the_net() {
     // The accrual stays gross.
     assert_eq!(a.interest_for_window, dec("300.00"));
     assert_eq!(a.posted_in_window, dec("300.00"));
+    let tax = a.tax.unwrap();
+    assert_eq!(
+        (tax.withheld, tax.net_posted),
+        (dec("60.00"), dec("240.00"))
+    );
     // Paid the day after the period's end.
     let pay = date("2026-12-01");
     assert_eq!(
@@ -416,4 +421,80 @@ fn withholding_tax_explain_shows_gross_tax_and_net() {
         "{text}{}",
         String::from_utf8_lossy(&out.stderr)
     );
+}
+
+/// The Accruals sheet of a run with tax gains Tax withheld in window and Net
+/// posted in window at its end; `merge` reads them back.
+#[test]
+fn withholding_tax_the_accruals_sheet_ends_with_the_tax_columns() {
+    let dir = tempfile::tempdir().unwrap();
+    let tax = d1_tax("half-up");
+    let src = dir.path().join("book");
+    book(
+        &src,
+        &[
+            ("accounts.csv", D1_ACCOUNTS),
+            ("rates.csv", D1_RATES),
+            ("tax.csv", &tax),
+        ],
+    );
+    let out = dir.path().join("out.xlsx");
+    let status = crate::common::ledgerate()
+        .args(["run", "--cutoff", "2026-11-30", "--out"])
+        .arg(&out)
+        .arg(&src)
+        .output()
+        .unwrap();
+    assert!(
+        status.status.success(),
+        "{}",
+        String::from_utf8_lossy(&status.stderr)
+    );
+    let rows = crate::common::sheet(&out, "Accruals");
+    let header: Vec<String> = rows[0].iter().map(ToString::to_string).collect();
+    assert_eq!(
+        header[header.len() - 2..],
+        ["Tax withheld in window", "Net posted in window"]
+    );
+    assert_eq!(crate::common::number(&rows[1][22]), dec("60.00"));
+    assert_eq!(crate::common::number(&rows[1][23]), dec("240.00"));
+    let shards: Vec<_> = (1..=2)
+        .map(|k| {
+            let shard = dir.path().join(format!("shard-{k}.xlsx"));
+            let status = crate::common::ledgerate()
+                .args([
+                    "run",
+                    "--cutoff",
+                    "2026-11-30",
+                    "--shard",
+                    &format!("{k}/2"),
+                    "--out",
+                ])
+                .arg(&shard)
+                .arg(&src)
+                .output()
+                .unwrap();
+            assert!(
+                status.status.success(),
+                "{}",
+                String::from_utf8_lossy(&status.stderr)
+            );
+            shard
+        })
+        .collect();
+    let merged = dir.path().join("merged.xlsx");
+    let status = crate::common::ledgerate()
+        .args(["merge", "--out"])
+        .arg(&merged)
+        .args(&shards)
+        .output()
+        .unwrap();
+    assert!(
+        status.status.success(),
+        "{}",
+        String::from_utf8_lossy(&status.stderr)
+    );
+    let again = crate::common::sheet(&merged, "Accruals");
+    assert_eq!(again[0].len(), 24);
+    assert_eq!(crate::common::number(&again[1][23]), dec("240.00"));
 }
