@@ -34,6 +34,7 @@ use crate::engine::reconcile::{
 use crate::engine::run::{accrue, AccountResult, RunOptions};
 use crate::engine::{ActualPosting, EngineError, Inputs, Movement};
 use crate::problem::{Position, Problem, Severity};
+use crate::report::model::TaxCheck;
 
 /// One account's rows as a book holds them.
 #[derive(Debug, Clone, Copy)]
@@ -226,6 +227,9 @@ pub struct CheckedRow {
     pub row: Reconciled,
     /// The likely cause, for a row over- or under-posted (else `None`).
     pub likely_cause: Option<LikelyCause>,
+    /// The period's withholding tax, for a taxed account (behaviour.md,
+    /// Withholding tax).
+    pub tax: Option<TaxCheck>,
 }
 
 /// One account computed.
@@ -390,6 +394,7 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
     let rows = reconciled
         .into_iter()
         .map(|row| CheckedRow {
+            tax: tax::check(t, &result, account.statements, &row),
             likely_cause: matches!(row.status, Status::OverPosted | Status::UnderPosted).then(
                 || {
                     tax::net_cause(t, &result, &row).unwrap_or_else(|| {
@@ -475,6 +480,7 @@ fn check_accrued(
         .outside_tolerance()
         .then(|| search(t, inputs, &result.states, &searched, &options.tolerance));
     Ok(CheckedRow {
+        tax: None,
         row: Reconciled {
             expected,
             posted: booked.open_item,

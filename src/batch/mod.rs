@@ -507,7 +507,10 @@ fn outcome(
         .map(|c| {
             (
                 c.row.status,
-                reconciliation_line(entry, &c.row, c.likely_cause),
+                ReconciliationLine {
+                    tax: c.tax,
+                    ..reconciliation_line(entry, &c.row, c.likely_cause)
+                },
             )
         })
         .chain(
@@ -646,6 +649,7 @@ fn unreadable_line(entry: &AccountEntry, u: &UnreadableStatement) -> Reconciliat
             row_named(&u.error.position),
             u.error.words()
         ),
+        tax: None,
     }
 }
 
@@ -692,6 +696,7 @@ fn reconciliation_line(
         variance_bp: row.variance_bp.map(|bp| bp.round_dp(4)),
         status: row.status,
         likely_cause: cause,
+        tax: None,
     }
 }
 

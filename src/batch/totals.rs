@@ -188,6 +188,7 @@ pub const LARGEST_PER_CURRENCY: usize = 5;
 ///     variance_bp: None,
 ///     status,
 ///     likely_cause: String::new(),
+///     tax: None,
 /// };
 /// let rows = [
 ///     row("USD", 2500, Status::OverPosted),

@@ -12,9 +12,10 @@ use rust_decimal::Decimal;
 use crate::book::StatementRow;
 use crate::engine::causes::LikelyCause;
 use crate::engine::reconcile::Reconciled;
-use crate::engine::tax::{net_posting_cause, stated_tax_cause};
+use crate::engine::tax::{net_posting_cause, stated_tax_cause, withhold};
 use crate::engine::{AccountResult, AccountTerms};
 use crate::problem::{Problem, Severity};
+use crate::report::model::TaxCheck;
 
 /// The payment date of the engine's posting for the period `start..=end`.
 fn payment_of(result: &AccountResult, start: NaiveDate, end: NaiveDate) -> Option<NaiveDate> {
@@ -98,4 +99,32 @@ pub(super) fn stated_tax_warnings(
         });
     }
     out
+}
+
+/// A statement period's tax: the tax due on its expected gross, and the tax
+/// its rows show when any row gives `tax_withheld`, with the difference.
+/// `None` for an account without tax, or a period no posting ends with.
+pub(super) fn check(
+    t: &AccountTerms,
+    result: &AccountResult,
+    statements: &[&StatementRow],
+    row: &Reconciled,
+) -> Option<TaxCheck> {
+    let tax = t.tax.as_ref()?;
+    let payment = payment_of(result, row.start, row.end)?;
+    let expected = withhold(&tax.schedule, row.expected, payment, t.minor_units)
+        .ok()?
+        .tax;
+    let posted = statements
+        .iter()
+        .filter(|s| (s.period_start, s.period_end) == (row.start, row.end))
+        .filter_map(|s| s.tax_withheld)
+        .fold(None, |sum: Option<Decimal>, w| {
+            Some(sum.unwrap_or_default() + w)
+        });
+    Some(TaxCheck {
+        expected,
+        posted,
+        variance: posted.map(|p| p - expected),
+    })
 }

@@ -151,6 +151,17 @@ pub struct AccrualLine {
     pub tax: Option<TaxLine>,
 }
 
+/// A reconciled period's withholding tax (behaviour.md, Withholding tax).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct TaxCheck {
+    /// The tax due on the expected gross.
+    pub expected: Decimal,
+    /// The tax the statement rows show (`tax_withheld`), when they show it.
+    pub posted: Option<Decimal>,
+    /// posted - expected, when the statement shows the tax.
+    pub variance: Option<Decimal>,
+}
+
 /// An account's withholding tax on the postings of the window (those counted
 /// in Posted in window).
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
@@ -472,6 +483,8 @@ pub struct ReconciliationLine {
     pub status: Status,
     /// The likely cause, in plain words (empty when agreed or within tolerance).
     pub likely_cause: String,
+    /// The period's withholding tax, for a taxed account's statement period.
+    pub tax: Option<TaxCheck>,
 }
 
 /// How a Tie-out row's closing difference stands.

@@ -74,6 +74,7 @@ fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
             variance_bp: None,
             status,
             likely_cause: "the statement row at Statements!C7 could not be read".into(),
+            tax: None,
         };
     }
     ReconciliationLine {
@@ -90,6 +91,7 @@ fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
         variance_bp: bp.map(dec),
         status,
         likely_cause: String::new(),
+        tax: None,
     }
 }
 
@@ -752,6 +754,7 @@ fn accrued_check() -> ReconciliationLine {
         likely_cause: "period start a day late: 2026-09-02..2026-11-30 instead of \
                        2026-09-01..2026-11-30 (reproduces the booked amount exactly)"
             .into(),
+        tax: None,
     }
 }
 

@@ -109,6 +109,26 @@ pub const RECONCILIATION_HEADER: [&str; 12] = [
     "Likely cause",
 ];
 
+/// Header labels of the Reconciliation sheet of a run with withholding tax:
+/// its columns, then the period's tax (behaviour.md, Withholding tax).
+pub const RECONCILIATION_TAX_HEADER: [&str; 15] = [
+    "Account",
+    "Currency",
+    "Period start",
+    "Period end",
+    "Days",
+    "Balance-years",
+    "Expected",
+    "Posted",
+    "Variance",
+    "Variance (bp)",
+    "Status",
+    "Likely cause",
+    "Expected tax",
+    "Posted tax",
+    "Tax variance",
+];
+
 /// Header labels of the Accrued check sheet: the Reconciliation's columns,
 /// with the core system's booked open item in place of a posted amount
 /// (behaviour.md, System accrued check).
@@ -505,7 +525,13 @@ fn write_lists(
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
-        write_list(wb, &RECONCILIATION, &report.reconciliation, ctx)?
+        let taxed = report.reconciliation.iter().any(|r| r.tax.is_some());
+        let sheet = if taxed {
+            &RECONCILIATION_TAX
+        } else {
+            &RECONCILIATION
+        };
+        write_list(wb, sheet, &report.reconciliation, ctx)?
     };
     if !report.accrued_check.is_empty() {
         write_list(wb, &ACCRUED_CHECK, &report.accrued_check, ctx)?;
@@ -618,6 +644,14 @@ const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
     footer: Some(BALANCE_YEARS_FOOTER),
     row: reconciliation_row,
     columns: reconciliation_columns,
+};
+
+/// The Reconciliation of a run with withholding tax: three columns more.
+const RECONCILIATION_TAX: ListSheet<ReconciliationLine> = ListSheet {
+    header: &RECONCILIATION_TAX_HEADER,
+    caps: &[24, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 48, 20, 20, 20],
+    columns: reconciliation_tax_columns,
+    ..RECONCILIATION
 };
 
 /// The Reconciliation's layout and row writer under the Accrued check's
@@ -897,6 +931,16 @@ fn reconciliation_columns<'s>(
     ]
 }
 
+fn reconciliation_tax_columns<'s>(
+    s: &'s Styles,
+    rows: &[ReconciliationLine],
+) -> Vec<Option<&'s Format>> {
+    let mut columns = reconciliation_columns(s, rows);
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    columns.extend([amount; 3]);
+    columns
+}
+
 fn tie_out_columns<'s>(s: &'s Styles, rows: &[TieOutLine]) -> Vec<Option<&'s Format>> {
     let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
     let text = Some(&s.text);
@@ -1027,6 +1071,14 @@ fn reconciliation_row(c: &mut Cells<'_>, r: &ReconciliationLine) -> Result<(), R
     }
     c.text_as(10, r.status.name(), styles.status(r.status))?;
     c.text_as(11, &r.likely_cause, &styles.wrap)?;
+    // Withholding tax: posted tax and variance blank without tax_withheld.
+    if let Some(tax) = &r.tax {
+        c.amount(12, tax.expected, r.minor_units)?;
+        if let (Some(posted), Some(variance)) = (tax.posted, tax.variance) {
+            c.amount(13, posted, r.minor_units)?;
+            c.amount(14, variance, r.minor_units)?;
+        }
+    }
     Ok(())
 }
 

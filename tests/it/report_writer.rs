@@ -101,6 +101,7 @@ fn report() -> Report {
             } else {
                 String::new()
             },
+            tax: None,
         }
     };
     Report {

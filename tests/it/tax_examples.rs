@@ -132,6 +132,12 @@ fn spec_example_d1_a_net_statement_reconciles_with_its_tax() {
     assert_eq!(row.variance, dec("-60.00"));
     assert_eq!(row.status, Status::UnderPosted);
     assert_eq!(row.likely_cause, "posted net of 20% tax (60.00)");
+    // No tax column: the tax due, and blank posted tax and variance.
+    let due = row.tax.unwrap();
+    assert_eq!(
+        (due.expected, due.posted, due.variance),
+        (dec("60.00"), None, None)
+    );
 
     let dir = tempfile::tempdir().unwrap();
     let b = book(
@@ -151,6 +157,11 @@ fn spec_example_d1_a_net_statement_reconciles_with_its_tax() {
     let row = &r.reconciliation[0];
     assert_eq!((row.expected, row.posted), (dec("300.00"), dec("300.00")));
     assert_eq!(row.status, Status::Agrees);
+    let due = row.tax.unwrap();
+    assert_eq!(
+        (due.expected, due.posted, due.variance),
+        (dec("60.00"), Some(dec("60.00")), Some(dec("0.00")))
+    );
     assert_eq!(r.accruals[0].balance_at_cutoff, dec("100240.00"));
 }
 
@@ -436,6 +447,11 @@ fn withholding_tax_the_accruals_sheet_ends_with_the_tax_columns() {
             ("accounts.csv", D1_ACCOUNTS),
             ("rates.csv", D1_RATES),
             ("tax.csv", &tax),
+            (
+                "statements.csv",
+                "account,period_start,period_end,posted_interest,tax_withheld\nSAV-1,2026-11-01,2026-11-30,245.00,55.00\n",
+            ),
+            ("settings.csv", "setting,value\nstatement_amounts,net\n"),
         ],
     );
     let out = dir.path().join("out.xlsx");
@@ -497,4 +513,12 @@ fn withholding_tax_the_accruals_sheet_ends_with_the_tax_columns() {
     let again = crate::common::sheet(&merged, "Accruals");
     assert_eq!(again[0].len(), 24);
     assert_eq!(crate::common::number(&again[1][23]), dec("240.00"));
+    // The Reconciliation ends with Expected tax, Posted tax and Tax variance.
+    for path in [&out, &merged] {
+        let recon = crate::common::sheet(path, "Reconciliation");
+        assert_eq!(recon[0].len(), 15);
+        assert_eq!(recon[0][14].to_string(), "Tax variance");
+        let tax: Vec<Decimal> = recon[1][12..15].iter().map(crate::common::number).collect();
+        assert_eq!(tax, [dec("60.00"), dec("55.00"), dec("-5.00")]);
+    }
 }
