@@ -86,6 +86,8 @@ pub struct Header {
     pub cutoff: NaiveDate,
     /// The currency's minor units (amounts are shown to these places).
     pub minor_units: u32,
+    /// The account's withholding tax (its `tax_ref`), when it bears one.
+    pub tax_ref: Option<String>,
 }
 
 /// A floating account's rate terms.
@@ -226,6 +228,7 @@ fn header(account: &BookAccount, shown: (NaiveDate, NaiveDate), cutoff: NaiveDat
         shown,
         cutoff,
         minor_units: t.minor_units,
+        tax_ref: t.tax.as_ref().map(|x| x.schedule.tax_ref.clone()),
     }
 }
 
@@ -420,6 +423,18 @@ fn print_postings(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
                 String::new()
             }
         )?;
+        // Withholding tax: the posting's gross, its tax and the net credited.
+        if let Some(tax_ref) = &x.header.tax_ref {
+            let w = &p.withheld;
+            writeln!(
+                out,
+                "  tax {tax_ref}: gross {} tax {} ({}%) net {}",
+                fmt_amount(p.posted, places),
+                fmt_amount(w.tax, places),
+                (w.rate * rust_decimal::Decimal::ONE_HUNDRED).normalize(),
+                fmt_amount(w.net, places)
+            )?;
+        }
     }
     Ok(())
 }

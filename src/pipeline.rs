@@ -34,6 +34,7 @@ use crate::engine::reconcile::{
 use crate::engine::run::{accrue, AccountResult, RunOptions};
 use crate::engine::{ActualPosting, EngineError, Inputs, Movement};
 use crate::problem::{Position, Problem, Severity};
+use crate::report::model::TaxCheck;
 
 /// One account's rows as a book holds them.
 #[derive(Debug, Clone, Copy)]
@@ -226,6 +227,9 @@ pub struct CheckedRow {
     pub row: Reconciled,
     /// The likely cause, for a row over- or under-posted (else `None`).
     pub likely_cause: Option<LikelyCause>,
+    /// The period's withholding tax, for a taxed account (behaviour.md,
+    /// Withholding tax).
+    pub tax: Option<TaxCheck>,
 }
 
 /// One account computed.
@@ -390,12 +394,24 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
     let rows = reconciled
         .into_iter()
         .map(|row| CheckedRow {
-            likely_cause: matches!(row.status, Status::OverPosted | Status::UnderPosted)
-                .then(|| search(t, &inputs, &result.states, &row, &options.tolerance)),
+            tax: tax::check(t, &result, account.statements, &row),
+            likely_cause: matches!(row.status, Status::OverPosted | Status::UnderPosted).then(
+                || {
+                    tax::net_cause(t, &result, &row).unwrap_or_else(|| {
+                        search(t, &inputs, &result.states, &row, &options.tolerance)
+                    })
+                },
+            ),
             row,
         })
         .collect();
     notes.extend(fixing_warnings(entry, &result.fixing_warnings));
+    notes.extend(tax::stated_tax_warnings(
+        t,
+        &result,
+        account.statements,
+        options.cutoff,
+    ));
     let accrued_check = match account.booked_close {
         Some(booked) => Some(check_accrued(
             t, &inputs, &result, &not_made, booked, options,
@@ -464,6 +480,7 @@ fn check_accrued(
         .outside_tolerance()
         .then(|| search(t, inputs, &result.states, &searched, &options.tolerance));
     Ok(CheckedRow {
+        tax: None,
         row: Reconciled {
             expected,
             posted: booked.open_item,
@@ -747,6 +764,10 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
         ),
         EngineError::BadState(_) => ("a period start".to_string(), "report this as a defect".to_string()),
         EngineError::UnbrokenSpan(_) => ("runs of days that end at every statement boundary".to_string(), "report this as a defect; --no-fast-path computes the account day by day".to_string()),
+        EngineError::NoTaxTable { tax_ref, date, .. } => (
+            format!("a {tax_ref} table of the Tax sheet in force on the payment date {date}"),
+            format!("add a Tax row for tax_ref '{tax_ref}' effective on or before {date} (a rate_percent of 0 for an exemption); the account is not computed until then"),
+        ),
     };
     Problem {
         severity: Severity::Error,
@@ -758,6 +779,8 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
         follows: None,
     }
 }
+
+mod tax;
 
 #[cfg(test)]
 mod tests;

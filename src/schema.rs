@@ -44,12 +44,14 @@ pub enum SheetKind {
     Holidays,
     /// Run settings.
     Settings,
+    /// Withholding tax tables.
+    Tax,
 }
 
 impl SheetKind {
     /// Every sheet, in the order of the book format (the template's order,
     /// and the order problems are listed in).
-    pub const ALL: [SheetKind; 9] = [
+    pub const ALL: [SheetKind; 10] = [
         SheetKind::Accounts,
         SheetKind::Rates,
         SheetKind::Movements,
@@ -59,6 +61,7 @@ impl SheetKind {
         SheetKind::Fixings,
         SheetKind::Holidays,
         SheetKind::Settings,
+        SheetKind::Tax,
     ];
 
     /// The sheet's description.
@@ -73,6 +76,7 @@ impl SheetKind {
             SheetKind::Fixings => &FIXINGS,
             SheetKind::Holidays => &HOLIDAYS,
             SheetKind::Settings => &SETTINGS,
+            SheetKind::Tax => &TAX,
         }
     }
 
@@ -313,11 +317,13 @@ pub enum Choice {
     StatementEnd,
     /// payment-date / in-window / period-end.
     SettlementLines,
+    /// gross / net.
+    StatementAmounts,
 }
 
 impl Choice {
     /// Every choice.
-    pub const ALL: [Choice; 14] = [
+    pub const ALL: [Choice; 15] = [
         Choice::Side,
         Choice::Compounding,
         Choice::Posting,
@@ -332,6 +338,7 @@ impl Choice {
         Choice::JournalStyle,
         Choice::StatementEnd,
         Choice::SettlementLines,
+        Choice::StatementAmounts,
     ];
 
     /// The canonical names offered, in their usual order.
@@ -357,6 +364,7 @@ impl Choice {
             Choice::JournalStyle => vec!["incremental", "reversing"],
             Choice::StatementEnd => vec!["inclusive", "exclusive"],
             Choice::SettlementLines => SettlementLines::ALL.iter().map(|c| c.name()).collect(),
+            Choice::StatementAmounts => vec!["gross", "net"],
         }
     }
 }
@@ -700,6 +708,20 @@ pub const ACCOUNTS: SheetSpec = SheetSpec {
             "GL account of a prior-period interest adjustment: interest of days before the window that the last close did not book. Default: the interest GL account.",
             Text("5190-INT-PRIOR"),
         ),
+        optional(
+            "tax_ref",
+            Id,
+            Nothing,
+            "Withholding tax on postings: a tax_ref of the Tax sheet. Blank: no tax.",
+            Blank,
+        ),
+        optional(
+            "gl_tax",
+            Id,
+            Derived("WITHHOLDING-TAX-PAYABLE (liability side) or WITHHOLDING-TAX-RECOVERABLE (asset side)"),
+            "GL account of the tax withheld: payable to the tax authority (liability side) or recoverable (asset side).",
+            Blank,
+        ),
     ],
 };
 
@@ -860,6 +882,13 @@ pub const STATEMENTS: SheetSpec = SheetSpec {
             Nothing,
             "Date the posting was booked to the customer's account. A run as at an earlier day leaves the row out. Blank: known to every run.",
             Date(2024, 1, 31),
+        ),
+        optional(
+            "tax_withheld",
+            Amount,
+            Nothing,
+            "Withholding tax the statement shows for the period, when it shows it (summed like posted_interest).",
+            Blank,
         ),
     ],
 };
@@ -1065,7 +1094,47 @@ pub const SETTING_ROWS: &[SettingSpec] = &[
         note: "When the journal settles a posting: payment-date (default: postings ending in the window, on their payment date), in-window (postings paid in the window) or period-end (on their end date).",
         example: Text("payment-date"),
     },
+    SettingSpec {
+        name: "statement_amounts",
+        kind: Kind::Choice(Choice::StatementAmounts),
+        note: "gross: posted_interest is before withholding tax (default). net: it is what was credited after tax; tax_withheld gives the tax.",
+        example: Text("gross"),
+    },
 ];
+
+/// The Tax sheet: withholding tax tables by `tax_ref`, one row per table.
+pub const TAX: SheetSpec = SheetSpec {
+    kind: SheetKind::Tax,
+    name: "Tax",
+    required: false,
+    columns: &[
+        required(
+            "tax_ref",
+            Id,
+            "Tax table name, as in the tax_ref of Accounts (required).",
+            Text("SAVINGS-20"),
+        ),
+        required(
+            "effective",
+            Kind::Date,
+            "Date from which the rate applies to postings paid on or after it (required).",
+            Date(2024, 1, 1),
+        ),
+        required(
+            "rate_percent",
+            Percent,
+            "Tax rate in percent, 0 to 100: 20 means 20% of the gross interest; 0 is an exemption (required).",
+            Number(20, 0),
+        ),
+        optional(
+            "round_mode",
+            Kind::Choice(Choice::RoundMode),
+            Means("half-up"),
+            "How the tax of each posting is rounded to the minor unit.",
+            Blank,
+        ),
+    ],
+};
 
 #[cfg(test)]
 mod tests;

@@ -66,6 +66,10 @@ pub mod defaults {
     pub const ACCRUED_RECEIVABLE: &str = "ACCRUED-INTEREST-RECEIVABLE";
     /// Where postings settle: the customer or counterparty accounts.
     pub const SETTLEMENT: &str = "INTEREST-SETTLEMENT";
+    /// Withholding tax owed to the tax authority (liability side).
+    pub const TAX_PAYABLE: &str = "WITHHOLDING-TAX-PAYABLE";
+    /// Withholding tax a borrower withheld, recoverable (asset side).
+    pub const TAX_RECOVERABLE: &str = "WITHHOLDING-TAX-RECOVERABLE";
 }
 
 /// An account's GL accounts, the defaults filled in.
@@ -79,6 +83,8 @@ pub struct ResolvedGl {
     pub settlement: Word,
     /// Where a prior-period adjustment is booked (default: `interest`).
     pub prior_period: Word,
+    /// Withholding tax payable (liability) or recoverable (asset).
+    pub tax: Word,
 }
 
 impl ResolvedGl {
@@ -123,6 +129,14 @@ impl ResolvedGl {
                 .as_ref()
                 .map_or_else(|| interest.clone(), |g| Word::Owned(g.clone())),
             interest,
+            tax: or(
+                &gl.tax,
+                if liability {
+                    defaults::TAX_PAYABLE
+                } else {
+                    defaults::TAX_RECOVERABLE
+                },
+            ),
         }
     }
 }
@@ -150,6 +164,9 @@ pub struct AccountEntries<'a> {
     pub open_item: Decimal,
     /// The postings this run settles: settlement date and amount.
     pub settlements: Vec<(NaiveDate, Decimal)>,
+    /// The withholding tax of those postings: settlement date and tax
+    /// (behaviour.md, Withholding tax); empty without tax.
+    pub withheld: Vec<(NaiveDate, Decimal)>,
 }
 
 /// Where a line sorts within its date: accruals, then postings, then reversals.
@@ -366,6 +383,17 @@ impl Journal {
         for (date, amount) in &a.settlements {
             book(*date, dr, cr, "interest posted", *amount);
         }
+        // Its tax: the settlement takes the net, the tax account the rest.
+        // Liability: Dr settlement T / Cr tax T (so Cr settlement N, Cr tax T);
+        // asset: Dr tax T / Cr settlement T (so Dr settlement N, Dr tax T).
+        let (dr, cr): (&str, &str) = if liability {
+            (&gl.settlement, &gl.tax)
+        } else {
+            (&gl.tax, &gl.settlement)
+        };
+        for (date, tax) in &a.withheld {
+            book(*date, dr, cr, "interest posted", *tax);
+        }
     }
 
     /// The journal lines, by date, entity, currency and purpose.
@@ -458,6 +486,7 @@ mod tests {
             prior_period: Decimal::ZERO,
             open_item: n("111.63"),
             settlements: vec![(d("2026-11-16"), n("229.99"))],
+            withheld: vec![],
         };
         let loan = AccountEntries {
             account: "LN-1",
@@ -465,6 +494,7 @@ mod tests {
             gl: &loan_gl,
             window_days_interest: n("20.00"),
             settlements: vec![],
+            withheld: vec![],
             ..deposit.clone()
         };
         j.add_account(
@@ -520,6 +550,7 @@ mod tests {
                 accrued: Some("2300".into()),
                 settlement: None,
                 prior_period: None,
+                tax: None,
             },
         );
         let mut j = Journal::new();
@@ -535,6 +566,7 @@ mod tests {
                 prior_period: Decimal::ZERO,
                 open_item: Decimal::ZERO,
                 settlements: vec![],
+                withheld: vec![],
             };
             j.add_account(
                 &a,
@@ -567,6 +599,7 @@ mod tests {
             prior_period: n("7"),
             open_item: n("500"),
             settlements: vec![(d("2026-11-15"), n("400"))],
+            withheld: vec![],
         };
         j.add_account(
             &a,
@@ -612,6 +645,7 @@ mod tests {
             prior_period: n("43.80"),
             open_item: n("454.23"),
             settlements: vec![(d("2026-12-01"), n("454.23"))],
+            withheld: vec![],
         };
         j.add_account(
             &a,
@@ -663,6 +697,7 @@ mod tests {
             prior_period: n("43.80"),
             open_item: n("454.23"),
             settlements: vec![(d("2026-12-01"), n("454.23"))],
+            withheld: vec![],
         };
         j.add_account(
             &a,
@@ -719,6 +754,7 @@ mod tests {
             prior_period: n("1.10"),
             open_item: n("111.63"),
             settlements: vec![(d("2026-11-16"), n("229.99"))],
+            withheld: vec![],
         };
         vec![
             base.clone(),
@@ -728,6 +764,7 @@ mod tests {
                 prior_period: Decimal::ZERO,
                 open_item: n("-1.05"),
                 settlements: vec![(d("2026-12-01"), n("5.00")), (d("2026-12-01"), n("7.25"))],
+                withheld: vec![],
                 ..base.clone()
             },
             AccountEntries {
@@ -738,6 +775,7 @@ mod tests {
                 prior_period: Decimal::ZERO,
                 open_item: n("20.00"),
                 settlements: vec![(d("2026-11-16"), n("15.40"))],
+                withheld: vec![],
                 ..base.clone()
             },
             AccountEntries {
@@ -750,6 +788,7 @@ mod tests {
                 prior_period: Decimal::ZERO,
                 open_item: n("500"),
                 settlements: vec![(d("2026-11-15"), n("400"))],
+                withheld: vec![],
                 ..base
             },
         ]
@@ -846,6 +885,7 @@ mod tests {
                 window_days_interest: n(amount),
                 prior_period: Decimal::ZERO,
                 settlements: vec![],
+                withheld: vec![],
                 ..deposit.clone()
             };
             j.add_account(

@@ -27,13 +27,14 @@ use crate::book::{
 };
 use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
-use crate::engine::ledger::SettlementLines;
+use crate::engine::ledger::{LedgerPosting, SettlementLines};
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
+use crate::engine::PostingRow;
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{report_order, Position, Problem};
 use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalDetail, JournalLine, LedgerLine, LeftOutLine,
-    ReconciliationLine, StatusCount, TieOutLine, Word,
+    ReconciliationLine, StatusCount, TaxLine, TieOutLine, Word,
 };
 use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl};
 use tie_out::TieOut;
@@ -144,6 +145,8 @@ struct Outcome {
     gl: ResolvedGl,
     /// The postings this run settles: settlement date and amount.
     settlements: Vec<(NaiveDate, Decimal)>,
+    /// Their withholding tax: settlement date and tax.
+    withheld: Vec<(NaiveDate, Decimal)>,
     daily: Vec<DailyLine>,
     reconciliation: Vec<(Status, ReconciliationLine)>,
     /// The core system's open item checked against ours, when a Booked row gives it.
@@ -372,6 +375,7 @@ impl<'s> Sums<'s> {
                 prior_period: l.prior_period,
                 open_item: l.open_item,
                 settlements: o.settlements,
+                withheld: o.withheld,
             },
             settings.journal_style,
             settings.window_start,
@@ -503,7 +507,10 @@ fn outcome(
         .map(|c| {
             (
                 c.row.status,
-                reconciliation_line(entry, &c.row, c.likely_cause),
+                ReconciliationLine {
+                    tax: c.tax,
+                    ..reconciliation_line(entry, &c.row, c.likely_cause)
+                },
             )
         })
         .chain(
@@ -519,6 +526,7 @@ fn outcome(
         .filter(|p| mode.journals(p, options.window_start, options.cutoff))
         .filter_map(|p| Some((mode.settlement_date(p)?, p.amount)))
         .collect();
+    let withheld = withheld_of(&run.postings, &r.postings, options);
     let gl = ResolvedGl::of(t.side, &entry.gl);
     let f = &run.ledger;
     let daily = r
@@ -569,14 +577,53 @@ fn outcome(
                 open_item: f.open_item,
                 settled_in_window: f.settled_in_window,
             },
+            tax: t
+                .tax
+                .as_ref()
+                .map(|_| tax_line(&run.postings, &r.postings, options)),
         },
         gl,
         settlements,
+        withheld,
         daily,
         reconciliation,
         accrued_check,
         notes: run.notes,
     }
+}
+
+/// The tax withheld from the postings counted in Posted in window, and
+/// their net (behaviour.md, Withholding tax).
+fn tax_line(postings: &[LedgerPosting], rows: &[PostingRow], options: &Options) -> TaxLine {
+    let mut line = TaxLine::default();
+    for (_, r) in postings
+        .iter()
+        .zip(rows)
+        .filter(|(p, _)| p.made && p.end >= options.window_start && p.end <= options.cutoff)
+    {
+        line.withheld += r.withheld.tax;
+        line.net_posted += r.withheld.net;
+    }
+    line
+}
+
+/// The withholding tax of the postings this run settles, with their
+/// settlement dates (behaviour.md, Withholding tax): the ledger's postings
+/// are the engine's, one for one and in order. Empty for an account without
+/// tax, so its journal is as before.
+fn withheld_of(
+    postings: &[LedgerPosting],
+    rows: &[PostingRow],
+    options: &Options,
+) -> Vec<(NaiveDate, Decimal)> {
+    let mode = options.settlement_lines;
+    postings
+        .iter()
+        .zip(rows)
+        .filter(|(_, r)| !r.withheld.tax.is_zero())
+        .filter(|(p, _)| mode.journals(p, options.window_start, options.cutoff))
+        .filter_map(|(p, r)| Some((mode.settlement_date(p)?, r.withheld.tax)))
+        .collect()
 }
 
 /// The Reconciliation line of a statement row that could not be read: its
@@ -602,6 +649,7 @@ fn unreadable_line(entry: &AccountEntry, u: &UnreadableStatement) -> Reconciliat
             row_named(&u.error.position),
             u.error.words()
         ),
+        tax: None,
     }
 }
 
@@ -648,6 +696,7 @@ fn reconciliation_line(
         variance_bp: row.variance_bp.map(|bp| bp.round_dp(4)),
         status: row.status,
         likely_cause: cause,
+        tax: None,
     }
 }
 

@@ -230,6 +230,7 @@ fn statements_are_reconciled_with_causes() {
         posted: n(posted),
         reference: None,
         posting_date: None,
+        tax_withheld: None,
         position: Position {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),
@@ -278,6 +279,7 @@ fn book_with_statements(count: usize) -> Book {
             posted: n(posted),
             reference: None,
             posting_date: None,
+            tax_withheld: None,
             position: Position {
                 book: "test.xlsx".into(),
                 sheet: "Statements".into(),
@@ -388,6 +390,7 @@ fn an_unreadable_statement_row_is_an_exception_of_a_computed_account() {
         reference: None,
         posting_date: None,
         position: error.position.clone(),
+        tax_withheld: None,
     }];
     b.unreadable_statements = vec![UnreadableStatement {
         account: "B-0000".into(),

@@ -41,6 +41,7 @@ use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, Statu
 ///     interest_for_window: Decimal::new(accrued, 2),
 ///     effective_annual_rate: None,
 ///     ledger: Default::default(),
+///     tax: None,
 /// };
 /// let mut totals = Totals::default();
 /// totals.add(&line("USD", "liability", 125));
@@ -187,6 +188,7 @@ pub const LARGEST_PER_CURRENCY: usize = 5;
 ///     variance_bp: None,
 ///     status,
 ///     likely_cause: String::new(),
+///     tax: None,
 /// };
 /// let rows = [
 ///     row("USD", 2500, Status::OverPosted),

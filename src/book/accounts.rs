@@ -19,6 +19,7 @@ use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
 use super::sheet::Sheet;
 use super::table::{near_miss, Ctx, Fields, Table};
+use super::tax::Taxes;
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::currency;
@@ -26,6 +27,7 @@ use crate::conventions::daycount::Basis;
 use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
+use crate::engine::tax::TaxTerms;
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
 use crate::problem::{FollowOn, Problem, Severity};
 use crate::schema::{column, SheetKind, ACCOUNTS};
@@ -64,6 +66,8 @@ const GL_INTEREST: usize = column!(ACCOUNTS, "gl_interest");
 const GL_ACCRUED: usize = column!(ACCOUNTS, "gl_accrued");
 const GL_SETTLEMENT: usize = column!(ACCOUNTS, "gl_settlement");
 const GL_PRIOR_PERIOD: usize = column!(ACCOUNTS, "gl_prior_period");
+const TAX_REF: usize = column!(ACCOUNTS, "tax_ref");
+const GL_TAX: usize = column!(ACCOUNTS, "gl_tax");
 
 /// The name of the Accounts column at place `i`, for messages.
 fn column_name(i: usize) -> &'static str {
@@ -198,6 +202,8 @@ pub(crate) struct Others<'a> {
     pub calendars: &'a Calendars,
     /// The Fixings sheet.
     pub fixings: &'a FixingsSheet,
+    /// The Tax sheet.
+    pub taxes: &'a Taxes,
 }
 
 /// Reads the Accounts sheet.
@@ -285,7 +291,9 @@ fn account(
         accrued: f.text(GL_ACCRUED),
         settlement: f.text(GL_SETTLEMENT),
         prior_period: f.text(GL_PRIOR_PERIOD),
+        tax: f.text(GL_TAX),
     };
+    let tax_ref = f.text(TAX_REF);
     let floating = floating_terms(f);
 
     let ((code, minor_units), basis, open_date, opening_balance) =
@@ -337,6 +345,7 @@ fn account(
         opening_balance,
         opening_accrued,
         period_start,
+        tax: tax_ref.and_then(|r| tax_terms(f, &r, others.taxes)),
     };
     check_terms(f, &terms);
     check_floating(f, &terms);
@@ -855,6 +864,46 @@ fn unknown_rate_ref(f: &mut Fields<'_, '_, '_>, rate_ref: &str, col: usize, rate
     }
 }
 
+/// The withholding tax an account's `tax_ref` names (behaviour.md,
+/// Withholding tax); an unknown or broken `tax_ref` is an error on the cell.
+fn tax_terms(f: &mut Fields<'_, '_, '_>, tax_ref: &str, taxes: &Taxes) -> Option<TaxTerms> {
+    if let Some(schedule) = taxes.schedules.get(tax_ref) {
+        return Some(TaxTerms {
+            schedule: Arc::clone(schedule),
+        });
+    }
+    if let Some(cell) = taxes.broken.get(tax_ref) {
+        f.report(
+            Severity::Error,
+            TAX_REF,
+            tax_ref,
+            &format!(
+                "a tax_ref whose Tax rows can be read ({tax_ref} has a bad row at Tax!{cell})"
+            ),
+            "correct the Tax row named; the account is not computed until then",
+        );
+        return None;
+    }
+    let key = fold(tax_ref);
+    let near = taxes
+        .schedules
+        .keys()
+        .find(|k| fold(k) == key || near_miss(&key, &fold(k)));
+    let fix = match (near, taxes.read) {
+        (Some(n), _) => format!("did you mean {n}? add a Tax row for {tax_ref}, or correct tax_ref"),
+        (None, true) => format!("add a Tax row for {tax_ref} (tax_ref, effective, rate_percent), or clear tax_ref if the account bears no tax"),
+        (None, false) => format!("add a Tax sheet with a row for {tax_ref} (tax_ref, effective, rate_percent), or clear tax_ref if the account bears no tax"),
+    };
+    f.report(
+        Severity::Error,
+        TAX_REF,
+        tax_ref,
+        "a tax_ref of the Tax sheet",
+        &fix,
+    );
+    None
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -905,6 +954,7 @@ mod tests {
             rates: &rates,
             calendars: &calendars,
             fixings: &fixings,
+            taxes: &crate::book::tax::Taxes::default(),
         };
         let sheet = text_sheet(SheetKind::Accounts, rows);
         let found = read(ctx(), &sheet, &others, &mut problems);

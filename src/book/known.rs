@@ -193,6 +193,7 @@ mod tests {
             reference: None,
             posting_date: posting_date.map(day),
             position: Position::default(),
+            tax_withheld: None,
         }
     }
 

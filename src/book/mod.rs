@@ -35,6 +35,7 @@ mod sheet;
 mod sniff;
 mod statements;
 mod table;
+mod tax;
 pub mod trial_balance;
 mod workbook;
 mod xlsx;

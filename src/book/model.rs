@@ -26,6 +26,8 @@ pub struct GlCodes {
     pub settlement: Option<String>,
     /// Where a prior-period interest adjustment is booked (default: `interest`).
     pub prior_period: Option<String>,
+    /// GL account of the withholding tax (`gl_tax`).
+    pub tax: Option<String>,
 }
 
 /// One row of the Accounts sheet, resolved.
@@ -61,6 +63,9 @@ pub struct StatementRow {
     /// The day the posting was booked to the customer's account, if given
     /// (a row is known to a run as at A when this is on or before A).
     pub posting_date: Option<NaiveDate>,
+    /// The withholding tax the row shows (`tax_withheld`), when given;
+    /// `posted` is gross all the same (behaviour.md, Withholding tax).
+    pub tax_withheld: Option<Decimal>,
     /// The row's position (cell of the account id).
     pub position: Position,
 }

@@ -20,10 +20,11 @@ use super::model::{AccountEntry, Book, LeftOut};
 use super::movements::Movements;
 use super::open::load;
 use super::rates::{self, Rates};
-use super::settings::{self, Settings, StatementEnd};
+use super::settings::{self, Settings, StatementAmounts, StatementEnd};
 use super::sheet::Sheet;
 use super::statements::Statements;
 use super::table::Ctx;
+use super::tax::{self, Taxes};
 use super::{movements, statements, trial_balance};
 use crate::problem::{a1_row, FollowOn, Position, Problem, Severity};
 use crate::schema::SheetKind;
@@ -146,10 +147,12 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         sheet(SheetKind::Rates).map_or_else(Rates::default, |s| rates::read(ctx, &s, problems));
     let fixings = sheet(SheetKind::Fixings)
         .map_or_else(FixingsSheet::default, |s| fixings::read(ctx, &s, problems));
+    let taxes = sheet(SheetKind::Tax).map_or_else(Taxes::default, |s| tax::read(ctx, &s, problems));
     let others = Others {
         rates: &rates,
         calendars: &calendars,
         fixings: &fixings,
+        taxes: &taxes,
     };
     let accounts_sheet = sheet(SheetKind::Accounts);
     let found = accounts_sheet
@@ -174,6 +177,7 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         sheet(SheetKind::Statements),
         &found.known,
         settings.statement_end,
+        settings.statement_amounts,
     );
     if let Some(m) = take_typed(moved, &entries, problems, &mut rejected) {
         rejected.extend(m.spoiled);
@@ -264,6 +268,7 @@ fn type_postings(
     statements_sheet: Option<Sheet>,
     known: &Known,
     statement_end: StatementEnd,
+    statement_amounts: StatementAmounts,
 ) -> (Option<Typed<Movements>>, Option<Typed<Statements>>) {
     rayon::join(
         || {
@@ -276,7 +281,8 @@ fn type_postings(
         || {
             statements_sheet.map(|s| {
                 let mut found = Vec::new();
-                let typed = statements::read(ctx, &s, known, statement_end, &mut found);
+                let typed =
+                    statements::read(ctx, &s, known, statement_end, statement_amounts, &mut found);
                 (s, typed, found)
             })
         },

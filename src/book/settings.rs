@@ -49,6 +49,37 @@ impl StatementEnd {
     }
 }
 
+/// What a Statements row's `posted_interest` is (behaviour.md, Withholding tax).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub(crate) enum StatementAmounts {
+    /// Before withholding tax.
+    #[default]
+    Gross,
+    /// What was credited after tax; `tax_withheld` gives the tax.
+    Net,
+}
+
+impl StatementAmounts {
+    fn name(self) -> &'static str {
+        match self {
+            StatementAmounts::Gross => "gross",
+            StatementAmounts::Net => "net",
+        }
+    }
+
+    fn parse(s: &str) -> Result<StatementAmounts, UnknownName> {
+        lookup(
+            "statement amounts",
+            s,
+            &[
+                ("gross", StatementAmounts::Gross),
+                ("net", StatementAmounts::Net),
+            ],
+            &["gross", "net"],
+        )
+    }
+}
+
 /// The journal styles a setting may name.
 fn journal_style(s: &str) -> Result<&'static str, UnknownName> {
     lookup(
@@ -66,6 +97,8 @@ pub(crate) struct Settings {
     pub rows: Vec<SettingRow>,
     /// How to read Statements.
     pub statement_end: StatementEnd,
+    /// Whether Statements amounts are before or after withholding tax.
+    pub statement_amounts: StatementAmounts,
 }
 
 /// Reads the Settings sheet.
@@ -142,6 +175,12 @@ pub(crate) fn read(ctx: Ctx<'_>, sheet: &Sheet, problems: &mut Vec<Problem>) -> 
                 out.statement_end = s;
                 s.name().to_string()
             }),
+            Kind::Choice(Choice::StatementAmounts) => {
+                f.named(VALUE, StatementAmounts::parse).map(|s| {
+                    out.statement_amounts = s;
+                    s.name().to_string()
+                })
+            }
             _ => f.text(VALUE),
         };
         match value {

@@ -15,7 +15,7 @@ use chrono::NaiveDate;
 
 use super::accounts::Known;
 use super::model::{StatementRow, UnreadableStatement};
-use super::settings::StatementEnd;
+use super::settings::{StatementAmounts, StatementEnd};
 use super::sheet::Sheet;
 use super::table::{Ctx, Fields, Table};
 use crate::problem::{Problem, Severity};
@@ -27,6 +27,7 @@ const PERIOD_END: usize = column!(STATEMENTS, "period_end");
 const POSTED: usize = column!(STATEMENTS, "posted_interest");
 const REFERENCE: usize = column!(STATEMENTS, "reference");
 const POSTING_DATE: usize = column!(STATEMENTS, "posting_date");
+const TAX_WITHHELD: usize = column!(STATEMENTS, "tax_withheld");
 
 /// What the Statements sheet gives.
 #[derive(Debug, Default)]
@@ -43,10 +44,25 @@ pub(crate) fn read(
     sheet: &Sheet,
     accounts: &Known,
     end: StatementEnd,
+    amounts: StatementAmounts,
     problems: &mut Vec<Problem>,
 ) -> Option<Statements> {
     let opened = problems.len();
     let table = Table::open(&ctx, sheet, STATEMENTS.columns, problems)?;
+    if amounts == StatementAmounts::Net && !table.has(TAX_WITHHELD) {
+        // Net amounts without the tax: the gross each posting stands for is
+        // not given, and is never guessed.
+        problems.push(ctx.problem(
+            Severity::Error,
+            &sheet.name,
+            table.header_row_ref(),
+            None,
+            "statement_amounts net and no tax_withheld column",
+            "a tax_withheld column beside net posted_interest amounts (posted gross = posted_interest + tax_withheld)",
+            "add a tax_withheld column (blank or 0 where no tax was withheld), or set statement_amounts to gross; reconciling net amounts without the tax is not supported",
+        ));
+        return None;
+    }
     let mut out = Statements::default();
     // A ragged row naming an account is not read: the error on it (which
     // names the account) stands for the row.
@@ -78,6 +94,12 @@ pub(crate) fn read(
         let posted = f.required_decimal(POSTED);
         let reference = f.text(REFERENCE);
         let posting_date = f.date(POSTING_DATE);
+        let tax_withheld = f.decimal(TAX_WITHHELD);
+        // Net amounts: the posting's gross is what was credited plus the tax.
+        let posted = match (amounts, posted, tax_withheld) {
+            (StatementAmounts::Net, Some(p), Some(t)) => p.checked_add(t),
+            _ => posted,
+        };
         let period_end = written_end.and_then(|e| match end {
             StatementEnd::Inclusive => Some(e),
             StatementEnd::Exclusive => e.pred_opt(),
@@ -159,6 +181,7 @@ pub(crate) fn read(
             reference,
             posting_date,
             position,
+            tax_withheld,
         });
     }
     out.rows.shrink_to_fit();

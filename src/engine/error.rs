@@ -55,4 +55,15 @@ pub enum EngineError {
     /// boundary: the run was made without that period's breaks.
     #[error("the run of days from {0} crosses a statement period boundary")]
     UnbrokenSpan(NaiveDate),
+    /// No table of the account's withholding tax is in force on a posting's
+    /// payment date (behaviour.md, Withholding tax): never taken as a zero rate.
+    #[error("no {tax_ref} tax table is in force on the payment date {date} (its first table takes effect on {first})")]
+    NoTaxTable {
+        /// The account's tax_ref.
+        tax_ref: String,
+        /// The payment date.
+        date: NaiveDate,
+        /// The first effective date of the schedule, or "none".
+        first: String,
+    },
 }

@@ -14,6 +14,7 @@ use super::error::EngineError;
 use super::floating::{resolve, FixingUsed, FixingWarning, Resolved};
 use super::inputs::Inputs;
 use super::rates::{RateSource, RateTable};
+use super::tax::{withhold, Withheld};
 use super::terms::{AccountTerms, ActualPosting, Movement, RoundAt, TierMethod};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::{Basis, DayFraction, PeriodBasis};
@@ -125,6 +126,9 @@ pub struct PostingRow {
     pub posted: Decimal,
     /// Whether `posted` came from a statement.
     pub actual_given: bool,
+    /// The withholding tax on `posted` and the net credited (behaviour.md,
+    /// Withholding tax); no tax and the net `posted` for an account without one.
+    pub withheld: Withheld,
 }
 
 /// The account's state at the start of a posting period: enough to run the
@@ -827,8 +831,12 @@ impl<'a> Loop<'a> {
         if let Some(p) = period.filter(|p| p.end == d) {
             let row = self.post(p, d)?;
             if terms.capitalise {
-                self.state.balance =
-                    checked(self.state.balance.checked_add(row.posted), "the balance", d)?;
+                // The balance takes the net: the tax never reaches the customer.
+                self.state.balance = checked(
+                    self.state.balance.checked_add(row.withheld.net),
+                    "the balance",
+                    d,
+                )?;
             }
             posted_today = Some(row.posted);
             report.postings.push(row);
@@ -1174,6 +1182,11 @@ impl<'a> Loop<'a> {
         self.state.compounded = Decimal::ZERO;
         self.state.opening_pending = Decimal::ZERO;
         self.state.opening_to_join = Decimal::ZERO;
+        let posted = actual.map_or(expected, |a| a.amount);
+        let withheld = match &terms.tax {
+            None => Withheld::none(posted),
+            Some(tax) => withhold(&tax.schedule, posted, p.payment, terms.minor_units)?,
+        };
         Ok(PostingRow {
             start: p.start,
             end: p.end,
@@ -1182,8 +1195,9 @@ impl<'a> Loop<'a> {
             interest,
             back_value,
             expected,
-            posted: actual.map_or(expected, |a| a.amount),
+            posted,
             actual_given: actual.is_some(),
+            withheld,
         })
     }
 }

@@ -15,6 +15,8 @@ use crate::conventions::names::{lookup, UnknownName};
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{AnchorKind, Posting};
 
+use super::tax::TaxTerms;
+
 /// Which side of the balance sheet the account is on.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
 pub enum Side {
@@ -271,6 +273,8 @@ pub struct AccountTerms {
     /// How the rate of each day is found (behaviour.md, Floating rates); fixed by
     /// default.
     pub floating: FloatingTerms,
+    /// Withholding tax on postings (behaviour.md, Withholding tax); `None`: no tax.
+    pub tax: Option<TaxTerms>,
 }
 
 impl AccountTerms {
@@ -317,6 +321,7 @@ impl AccountTerms {
             opening_accrued: Decimal::ZERO,
             period_start: None,
             floating: FloatingTerms::default(),
+            tax: None,
         }
     }
 

@@ -53,6 +53,7 @@ fn row(start: &str, end: &str, posted: &str, cell: &str) -> StatementRow {
         posted: n(posted),
         reference: None,
         posting_date: None,
+        tax_withheld: None,
         position: Position {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),

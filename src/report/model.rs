@@ -146,6 +146,30 @@ pub struct AccrualLine {
     pub effective_annual_rate: Option<Decimal>,
     /// Its GL accounts and what the ledger holds for it (behaviour.md, Books that tie).
     pub ledger: LedgerLine,
+    /// Its withholding tax in the window, for an account with a `tax_ref`
+    /// (behaviour.md, Withholding tax); `None` without.
+    pub tax: Option<TaxLine>,
+}
+
+/// A reconciled period's withholding tax (behaviour.md, Withholding tax).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct TaxCheck {
+    /// The tax due on the expected gross.
+    pub expected: Decimal,
+    /// The tax the statement rows show (`tax_withheld`), when they show it.
+    pub posted: Option<Decimal>,
+    /// posted - expected, when the statement shows the tax.
+    pub variance: Option<Decimal>,
+}
+
+/// An account's withholding tax on the postings of the window (those counted
+/// in Posted in window).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct TaxLine {
+    /// The tax withheld from them.
+    pub withheld: Decimal,
+    /// What they credited net of it.
+    pub net_posted: Decimal,
 }
 
 /// An account's GL accounts (defaults resolved) and its ledger figures.
@@ -459,6 +483,8 @@ pub struct ReconciliationLine {
     pub status: Status,
     /// The likely cause, in plain words (empty when agreed or within tolerance).
     pub likely_cause: String,
+    /// The period's withholding tax, for a taxed account's statement period.
+    pub tax: Option<TaxCheck>,
 }
 
 /// How a Tie-out row's closing difference stands.

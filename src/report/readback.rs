@@ -27,14 +27,15 @@ use super::error::ReportError;
 use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
     AccrualLine, DailyLine, DetailLine, DetailRow, InputFile, JournalDetail, JournalLine,
-    LedgerLine, LeftOutLine, ReconciliationLine, RunFacts, Setting, SettingSource, TieOutLine,
-    TieStatus,
+    LedgerLine, LeftOutLine, ReconciliationLine, RunFacts, Setting, SettingSource, TaxCheck,
+    TaxLine, TieOutLine, TieStatus,
 };
 use super::workbook::{
     is_writer_note, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ, ACCRUALS_HEADER,
-    ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER, JOURNAL_HEADER,
-    LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE,
-    RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
+    ACCRUALS_TAX_HEADER, ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER,
+    JOURNAL_HEADER, LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER,
+    RECONCILIATION_TAX_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER,
+    SUMMARY_COLS, TIE_OUT_HEADER,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -421,7 +422,11 @@ impl Written {
     }
 
     fn accruals(&mut self) -> Result<Vec<AccrualLine>, ReportError> {
-        let list = self.required_list("Accruals", &ACCRUALS_HEADER)?;
+        // A run with withholding tax has two columns more.
+        let (list, taxed) = match self.list("Accruals", &ACCRUALS_TAX_HEADER) {
+            Ok(Some(list)) => (list, true),
+            _ => (self.required_list("Accruals", &ACCRUALS_HEADER)?, false),
+        };
         list.rows(&self.path)
             .map(|r| {
                 let currency = r.text(2);
@@ -452,6 +457,13 @@ impl Written {
                         gl_settlement: r.text(20).into(),
                         gl_prior_period: r.text(21).into(),
                     },
+                    tax: match (taxed, r.text(22).is_empty()) {
+                        (true, false) => Some(TaxLine {
+                            withheld: r.amount(22, places)?,
+                            net_posted: r.amount(23, places)?,
+                        }),
+                        _ => None,
+                    },
                 })
             })
             .collect()
@@ -464,8 +476,20 @@ impl Written {
         base: &str,
         header: &[&str],
     ) -> Result<Vec<ReconciliationLine>, ReportError> {
-        let Some(list) = self.list(base, header)? else {
-            return Ok(Vec::new());
+        // A run with withholding tax has three Reconciliation columns more.
+        let taxed = match (header == RECONCILIATION_HEADER.as_slice())
+            .then(|| self.list(base, &RECONCILIATION_TAX_HEADER))
+        {
+            Some(Ok(Some(list))) => Some(list),
+            _ => None,
+        };
+        let is_taxed = taxed.is_some();
+        let list = match taxed {
+            Some(list) => list,
+            None => match self.list(base, header)? {
+                Some(list) => list,
+                None => return Ok(Vec::new()),
+            },
         };
         list.rows(&self.path)
             .map(|r| {
@@ -506,6 +530,17 @@ impl Written {
                     variance_bp: r.decimal(9)?,
                     status,
                     likely_cause: r.text(11),
+                    tax: match (is_taxed, r.decimal(12)?) {
+                        (true, Some(expected)) => {
+                            let posted = r.decimal(13)?;
+                            Some(TaxCheck {
+                                expected,
+                                posted,
+                                variance: posted.and(r.decimal(14)?),
+                            })
+                        }
+                        _ => None,
+                    },
                 })
             })
             .collect()

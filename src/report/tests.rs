@@ -74,6 +74,7 @@ fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
             variance_bp: None,
             status,
             likely_cause: "the statement row at Statements!C7 could not be read".into(),
+            tax: None,
         };
     }
     ReconciliationLine {
@@ -90,6 +91,7 @@ fn recon(status: &str, bp: Option<&str>) -> ReconciliationLine {
         variance_bp: bp.map(dec),
         status,
         likely_cause: String::new(),
+        tax: None,
     }
 }
 
@@ -442,6 +444,7 @@ fn accrual(account: &str, currency: &'static str, minor_units: u32, balance: &st
         interest_for_window: dec("0.25"),
         effective_annual_rate: Some(dec("0.0512")),
         ledger: Default::default(),
+        tax: None,
     }
 }
 
@@ -751,6 +754,7 @@ fn accrued_check() -> ReconciliationLine {
         likely_cause: "period start a day late: 2026-09-02..2026-11-30 instead of \
                        2026-09-01..2026-11-30 (reproduces the booked amount exactly)"
             .into(),
+        tax: None,
     }
 }
 

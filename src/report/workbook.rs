@@ -63,6 +63,36 @@ pub const ACCRUALS_HEADER: [&str; 22] = [
     "GL prior period",
 ];
 
+/// Header labels of the Accruals sheet of a run with withholding tax: its
+/// columns, then the tax withheld from the window's postings and their net
+/// (behaviour.md, Withholding tax). A run without tax keeps the sheet as it was.
+pub const ACCRUALS_TAX_HEADER: [&str; 24] = [
+    "Account",
+    "Name",
+    "Currency",
+    "Side",
+    "Day count",
+    "Compounding",
+    "Balance at cut-off",
+    "Accrued at cut-off",
+    "Posted in window",
+    "Interest for window",
+    "Effective annual rate",
+    "Window days' interest",
+    "Booked opening",
+    "Opening from",
+    "Prior-period adjustment",
+    "Open item at cut-off",
+    "Settled in window",
+    "Entity",
+    "GL interest",
+    "GL accrued",
+    "GL settlement",
+    "GL prior period",
+    "Tax withheld in window",
+    "Net posted in window",
+];
+
 /// Header labels of the Reconciliation sheet.
 pub const RECONCILIATION_HEADER: [&str; 12] = [
     "Account",
@@ -77,6 +107,26 @@ pub const RECONCILIATION_HEADER: [&str; 12] = [
     "Variance (bp)",
     "Status",
     "Likely cause",
+];
+
+/// Header labels of the Reconciliation sheet of a run with withholding tax:
+/// its columns, then the period's tax (behaviour.md, Withholding tax).
+pub const RECONCILIATION_TAX_HEADER: [&str; 15] = [
+    "Account",
+    "Currency",
+    "Period start",
+    "Period end",
+    "Days",
+    "Balance-years",
+    "Expected",
+    "Posted",
+    "Variance",
+    "Variance (bp)",
+    "Status",
+    "Likely cause",
+    "Expected tax",
+    "Posted tax",
+    "Tax variance",
 ];
 
 /// Header labels of the Accrued check sheet: the Reconciliation's columns,
@@ -467,11 +517,21 @@ fn write_lists(
     report: &Report,
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    if report.accruals.iter().any(|a| a.tax.is_some()) {
+        write_list(wb, &ACCRUALS_TAX, &report.accruals, ctx)?;
+    } else {
+        write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    }
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
-        write_list(wb, &RECONCILIATION, &report.reconciliation, ctx)?
+        let taxed = report.reconciliation.iter().any(|r| r.tax.is_some());
+        let sheet = if taxed {
+            &RECONCILIATION_TAX
+        } else {
+            &RECONCILIATION
+        };
+        write_list(wb, sheet, &report.reconciliation, ctx)?
     };
     if !report.accrued_check.is_empty() {
         write_list(wb, &ACCRUED_CHECK, &report.accrued_check, ctx)?;
@@ -557,6 +617,17 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     columns: accrual_columns,
 };
 
+/// The Accruals of a run with withholding tax: two columns more.
+const ACCRUALS_TAX: ListSheet<AccrualLine> = ListSheet {
+    header: &ACCRUALS_TAX_HEADER,
+    caps: &[
+        24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22, 24, 24, 18, 24, 24, 24, 24, 32, 32, 32, 32, 24,
+        24,
+    ],
+    columns: accrual_tax_columns,
+    ..ACCRUALS
+};
+
 /// Widest widths of the Reconciliation's columns, and of the Accrued
 /// check's, laid out alike.
 const RECONCILIATION_CAPS: [usize; 12] = [24, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 48];
@@ -573,6 +644,14 @@ const RECONCILIATION: ListSheet<ReconciliationLine> = ListSheet {
     footer: Some(BALANCE_YEARS_FOOTER),
     row: reconciliation_row,
     columns: reconciliation_columns,
+};
+
+/// The Reconciliation of a run with withholding tax: three columns more.
+const RECONCILIATION_TAX: ListSheet<ReconciliationLine> = ListSheet {
+    header: &RECONCILIATION_TAX_HEADER,
+    caps: &[24, 10, 14, 14, 10, 24, 24, 24, 24, 16, 20, 48, 20, 20, 20],
+    columns: reconciliation_tax_columns,
+    ..RECONCILIATION
 };
 
 /// The Reconciliation's layout and row writer under the Accrued check's
@@ -822,6 +901,13 @@ fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Fo
     ]
 }
 
+fn accrual_tax_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
+    let mut columns = accrual_columns(s, rows);
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    columns.extend([amount, amount]);
+    columns
+}
+
 fn reconciliation_columns<'s>(
     s: &'s Styles,
     rows: &[ReconciliationLine],
@@ -843,6 +929,16 @@ fn reconciliation_columns<'s>(
         None, // each status has its own fill
         Some(&s.wrap),
     ]
+}
+
+fn reconciliation_tax_columns<'s>(
+    s: &'s Styles,
+    rows: &[ReconciliationLine],
+) -> Vec<Option<&'s Format>> {
+    let mut columns = reconciliation_columns(s, rows);
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    columns.extend([amount; 3]);
+    columns
 }
 
 fn tie_out_columns<'s>(s: &'s Styles, rows: &[TieOutLine]) -> Vec<Option<&'s Format>> {
@@ -920,6 +1016,11 @@ fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
     c.text(19, &l.gl_accrued)?;
     c.text(20, &l.gl_settlement)?;
     c.text(21, &l.gl_prior_period)?;
+    // Withholding tax: blank for an account without it.
+    if let Some(tax) = &a.tax {
+        c.amount(22, tax.withheld, units)?;
+        c.amount(23, tax.net_posted, units)?;
+    }
     Ok(())
 }
 
@@ -970,6 +1071,14 @@ fn reconciliation_row(c: &mut Cells<'_>, r: &ReconciliationLine) -> Result<(), R
     }
     c.text_as(10, r.status.name(), styles.status(r.status))?;
     c.text_as(11, &r.likely_cause, &styles.wrap)?;
+    // Withholding tax: posted tax and variance blank without tax_withheld.
+    if let Some(tax) = &r.tax {
+        c.amount(12, tax.expected, r.minor_units)?;
+        if let (Some(posted), Some(variance)) = (tax.posted, tax.variance) {
+            c.amount(13, posted, r.minor_units)?;
+            c.amount(14, variance, r.minor_units)?;
+        }
+    }
     Ok(())
 }
 

@@ -752,6 +752,7 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
                 accrued: Some(more.gl.1.to_string()),
                 settlement: None,
                 prior_period: None,
+                tax: None,
             },
             position: Position::default(),
             terms: t,

@@ -56,7 +56,8 @@ fn the_sheets_are_those_of_books_md_in_order() {
             "Trial balance",
             "Fixings",
             "Holidays",
-            "Settings"
+            "Settings",
+            "Tax"
         ]
     );
     let required: Vec<SheetKind> = SheetKind::ALL
@@ -210,7 +211,8 @@ fn the_settings_are_those_of_books_md() {
             "statement_end",
             "as_at",
             "previous_as_at",
-            "settlement_lines"
+            "settlement_lines",
+            "statement_amounts"
         ]
     );
 }

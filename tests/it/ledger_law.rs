@@ -7,7 +7,11 @@
 //! - per accrued-interest GL account, the opening trial balance plus every
 //!   journal line dated up to C (this run's and earlier runs') equals the
 //!   sub-ledger's open items at C, in both journal styles and every
-//!   settlement mode, with movements booked late across the closes.
+//!   settlement mode, with movements booked late across the closes, and
+//!   with random withholding tax tables (behaviour.md, Withholding tax):
+//!   a posting settles the accrual by its gross whatever its tax;
+//! - a zero-rate tax table leaves every figure and journal line as without
+//!   tax.
 
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -36,6 +40,9 @@ struct Account {
     posting: &'static str,
     capitalise: bool,
     delay: u32,
+    /// Withholding tax: the rate in hundredths of a percent from 2026-01-01,
+    /// the rate from a later day, that day's offset, and the rounding mode.
+    tax: Option<(u32, u32, i64, &'static str)>,
 }
 
 #[derive(Debug, Clone)]
@@ -56,10 +63,17 @@ fn account() -> impl Strategy<Value = Account> {
         prop_oneof![Just("monthly"), Just("quarterly")],
         any::<bool>(),
         0u32..3,
+        prop::option::of((
+            0u32..=10_000,
+            0u32..=10_000,
+            0i64..150,
+            prop_oneof![Just("half-up"), Just("down"), Just("up"), Just("half-even")],
+        )),
     )
         .prop_map(
-            |(asset, basis, rate_bp, balance_cents, open_day, posting, capitalise, delay)| {
+            |(asset, basis, rate_bp, balance_cents, open_day, posting, capitalise, delay, tax)| {
                 Account {
+                    tax,
                     asset,
                     basis,
                     rate_bp,
@@ -95,25 +109,50 @@ fn money(cents: i64) -> String {
     Decimal::new(cents, 2).to_string()
 }
 
+/// Which tax the accounts of a book bear.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Taxed {
+    /// Each account's own random tables, or none.
+    AsDrawn,
+    /// Every account a table of 0%.
+    Zero,
+    /// No Tax sheet and no tax_ref.
+    Never,
+}
+
 /// Writes the book as a CSV folder and reads it back as `run` would.
-fn write_book(dir: &std::path::Path, accounts: &[Account], moves: &[Move]) -> Book {
+fn write_book(dir: &std::path::Path, accounts: &[Account], moves: &[Move], taxed: Taxed) -> Book {
     let mut a = String::from(
-        "account,currency,day_count,open_date,opening_balance,side,compounding,posting,posting_anchor,capitalise,payment_delay_days\n",
+        "account,currency,day_count,open_date,opening_balance,side,compounding,posting,posting_anchor,capitalise,payment_delay_days,tax_ref\n",
     );
     let mut r = String::from("rate_ref,effective,rate_percent\n");
+    let mut t = String::from("tax_ref,effective,rate_percent,round_mode\n");
     for (i, x) in accounts.iter().enumerate() {
         writeln!(
             a,
-            "A{i},USD,{},{},{},{},simple,{},2026-08-31,{},{}",
+            "A{i},USD,{},{},{},{},simple,{},2026-08-31,{},{},{}",
             x.basis,
             day(x.open_day),
             money(x.balance_cents),
             if x.asset { "asset" } else { "liability" },
             x.posting,
             if x.capitalise { "yes" } else { "no" },
-            x.delay
+            x.delay,
+            match (taxed, x.tax) {
+                (Taxed::AsDrawn, Some(_)) | (Taxed::Zero, _) => format!("T{i}"),
+                _ => String::new(),
+            }
         )
         .unwrap();
+        match (taxed, x.tax) {
+            (Taxed::AsDrawn, Some((first, later, from, mode))) => {
+                let p = |h: u32| Decimal::new(i64::from(h), 2);
+                writeln!(t, "T{i},2026-01-01,{},{mode}", p(first)).unwrap();
+                writeln!(t, "T{i},{},{},{mode}", day(from), p(later)).unwrap();
+            }
+            (Taxed::Zero, _) => writeln!(t, "T{i},2026-01-01,0,half-up").unwrap(),
+            _ => {}
+        }
         writeln!(
             r,
             "A{i},2026-01-01,{}",
@@ -136,6 +175,9 @@ fn write_book(dir: &std::path::Path, accounts: &[Account], moves: &[Move]) -> Bo
     fs::write(dir.join("accounts.csv"), a).unwrap();
     fs::write(dir.join("rates.csv"), r).unwrap();
     fs::write(dir.join("movements.csv"), m).unwrap();
+    if taxed != Taxed::Never {
+        fs::write(dir.join("tax.csv"), t).unwrap();
+    }
     read_book(dir, &ReadOptions::default())
 }
 
@@ -182,7 +224,7 @@ proptest! {
     ) {
         let moves: Vec<Move> = moves.into_iter().filter(|m| m.account < accounts.len()).collect();
         let dir = tempfile::tempdir().unwrap();
-        let book = write_book(dir.path(), &accounts, &moves);
+        let book = write_book(dir.path(), &accounts, &moves, Taxed::AsDrawn);
         prop_assert!(!book.has_errors(), "{:?}", book.problems);
         // Accounts open in the first window or later, so the books hold
         // nothing before it.
@@ -230,6 +272,10 @@ proptest! {
                 }
                 *sub_ledger.entry(l.gl_accrued.to_string()).or_default() += l.open_item;
             }
+            // Every entry balances, tax lines included.
+            let debits: Decimal = r.journal.iter().map(|l| l.debit).sum();
+            let credits: Decimal = r.journal.iter().map(|l| l.credit).sum();
+            prop_assert_eq!(debits, credits);
             lines.extend(r.journal);
             for (gl, open_items) in &sub_ledger {
                 let gl_now = gl_balance(&lines, gl, to);
@@ -237,5 +283,44 @@ proptest! {
             }
             previous_as_at = Some(as_at);
         }
+    }
+
+    /// Withholding tax: a table of 0% changes no figure and adds no journal
+    /// line; the gross figures are those of the account without tax.
+    #[test]
+    fn a_zero_rate_tax_table_leaves_the_gross_figures_alone(
+        accounts in prop::collection::vec(account(), 1..4),
+        moves in prop::collection::vec(movement(3), 0..6),
+    ) {
+        let moves: Vec<Move> = moves.into_iter().filter(|m| m.account < accounts.len()).collect();
+        let settings = BatchSettings {
+            cutoff: date("2026-12-31"),
+            window_start: date("2026-12-01"),
+            daily: false,
+            journal_style: JournalStyle::Incremental,
+            entities: vec!["HM".to_string()],
+            tolerance: Tolerance::default(),
+            fast_path: true,
+            shard: None,
+            fixing_fallback: Default::default(),
+            as_at: None,
+            previous_as_at: None,
+            settlement_lines: SettlementLines::PaymentDate,
+            journal_detail: false,
+        };
+        let run = |taxed| {
+            let dir = tempfile::tempdir().unwrap();
+            let book = write_book(dir.path(), &accounts, &moves, taxed);
+            run_books(&[book], &settings, &|| {})
+        };
+        let (mut zero, never) = (run(Taxed::Zero), run(Taxed::Never));
+        // Only the tax columns tell the two apart: no tax, the net the gross.
+        for a in &mut zero.accruals {
+            let tax = a.tax.take().unwrap();
+            prop_assert_eq!((tax.withheld, tax.net_posted), (Decimal::ZERO, a.posted_in_window));
+        }
+        prop_assert_eq!(&zero.accruals, &never.accruals);
+        prop_assert_eq!(&zero.journal, &never.journal);
+        prop_assert_eq!(&zero.reconciliation, &never.reconciliation);
     }
 }
