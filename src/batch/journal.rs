@@ -520,6 +520,8 @@ mod tests {
                 accrued: Some("2300".into()),
                 settlement: None,
                 prior_period: None,
+                suspense: None,
+                reversal: None,
             },
         );
         let mut j = Journal::new();

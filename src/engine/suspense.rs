@@ -295,7 +295,10 @@ fn split_day(row: &DayRow, status: &StatusRow) -> Result<(Accrual, Accrual), Eng
                 })?;
             if net > Decimal::ZERO && row.fraction.num != 0 {
                 let f = Decimal::from(row.fraction.num);
-                let full = row.base.checked_mul(row.rate).and_then(|x| x.checked_mul(f));
+                let full = row
+                    .base
+                    .checked_mul(row.rate)
+                    .and_then(|x| x.checked_mul(f));
                 // Interest on the net amount at the same rate and fraction is
                 // exact only where the day's interest is base x rate x fraction.
                 if full != Some(row.interest_num) || row.interest_den != row.fraction.den {
@@ -388,8 +391,7 @@ pub fn split(
             });
             booked = add(booked, amount, "the suspense", d)?;
             if d >= window_start && d <= cutoff {
-                out.reversed_in_window =
-                    add(out.reversed_in_window, amount, "the reversal", d)?;
+                out.reversed_in_window = add(out.reversed_in_window, amount, "the reversal", d)?;
             }
         }
         previous = Some(status);
@@ -405,7 +407,9 @@ pub fn split(
             status: status.status,
             contractual: c,
             recognised: r,
-            suspended: c.checked_sub(r).ok_or(overflow("the suspended interest", d))?,
+            suspended: c
+                .checked_sub(r)
+                .ok_or(overflow("the suspended interest", d))?,
         });
         since_rec
             .add(&recognised)
@@ -416,7 +420,11 @@ pub fn split(
             let rec = if all_accruing {
                 posted
             } else {
-                round(since_rec.value().map_err(|_| overflow("the recognised interest", d))?)
+                round(
+                    since_rec
+                        .value()
+                        .map_err(|_| overflow("the recognised interest", d))?,
+                )
             };
             let susp = posted
                 .checked_sub(rec)
@@ -443,7 +451,11 @@ pub fn split(
             recognised_unposted = if all_accruing {
                 accrued
             } else {
-                round(since_rec.value().map_err(|_| overflow("the recognised interest", d))?)
+                round(
+                    since_rec
+                        .value()
+                        .map_err(|_| overflow("the recognised interest", d))?,
+                )
             };
             accrued
                 .checked_sub(recognised_unposted)

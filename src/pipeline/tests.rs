@@ -38,6 +38,7 @@ fn entry() -> AccountEntry {
             cell: "A2".into(),
             ..Default::default()
         },
+        opening_suspense: Decimal::ZERO,
     }
 }
 

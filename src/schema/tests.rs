@@ -56,7 +56,8 @@ fn the_sheets_are_those_of_books_md_in_order() {
             "Trial balance",
             "Fixings",
             "Holidays",
-            "Settings"
+            "Settings",
+            "Accrual status"
         ]
     );
     let required: Vec<SheetKind> = SheetKind::ALL

@@ -67,9 +67,19 @@ fn c2_credit_impaired_recognises_interest_on_the_net_amount() {
     let t = loan(Basis::Act360, "2026-11-01", "120000.00");
     let r = run(&t, "0.06", &[], "2026-11-30");
     let rows = [impaired("2026-11-01", "45000.00")];
-    let s = split(&t, &r, &inputs(&rows, &[]), d("2026-11-01"), d("2026-11-30")).unwrap();
+    let s = split(
+        &t,
+        &r,
+        &inputs(&rows, &[]),
+        d("2026-11-01"),
+        d("2026-11-30"),
+    )
+    .unwrap();
     let p = s.periods[0];
-    assert_eq!((p.posted, p.recognised, p.suspended), (n("600.00"), n("375.00"), n("225.00")));
+    assert_eq!(
+        (p.posted, p.recognised, p.suspended),
+        (n("600.00"), n("375.00"), n("225.00"))
+    );
     assert_eq!(s.suspended_in_window, n("225.00"));
     assert_eq!(s.reversed_in_window, Decimal::ZERO);
     assert_eq!(s.suspense_at_cutoff, n("225.00"));
@@ -87,9 +97,19 @@ fn c2_with_a_repayment_the_net_amount_falls_with_the_balance() {
     }];
     let r = run(&t, "0.06", &repaid, "2026-11-30");
     let rows = [impaired("2026-11-01", "45000.00")];
-    let s = split(&t, &r, &inputs(&rows, &[]), d("2026-11-01"), d("2026-11-30")).unwrap();
+    let s = split(
+        &t,
+        &r,
+        &inputs(&rows, &[]),
+        d("2026-11-01"),
+        d("2026-11-30"),
+    )
+    .unwrap();
     let p = s.periods[0];
-    assert_eq!((p.posted, p.recognised, p.suspended), (n("550.00"), n("325.00"), n("225.00")));
+    assert_eq!(
+        (p.posted, p.recognised, p.suspended),
+        (n("550.00"), n("325.00"), n("225.00"))
+    );
 }
 
 #[test]
@@ -97,7 +117,14 @@ fn an_allowance_above_the_balance_recognises_nothing() {
     let t = loan(Basis::Act360, "2026-11-01", "120000.00");
     let r = run(&t, "0.06", &[], "2026-11-30");
     let rows = [impaired("2026-11-01", "150000.00")];
-    let s = split(&t, &r, &inputs(&rows, &[]), d("2026-11-01"), d("2026-11-30")).unwrap();
+    let s = split(
+        &t,
+        &r,
+        &inputs(&rows, &[]),
+        d("2026-11-01"),
+        d("2026-11-30"),
+    )
+    .unwrap();
     assert_eq!(s.periods[0].recognised, Decimal::ZERO);
     assert_eq!(s.periods[0].suspended, n("600.00"));
 }
@@ -118,7 +145,14 @@ fn c1_december(cash_basis: bool) -> Suspense {
         booking_date: None,
         reference: None,
     }];
-    split(&t, &r, &inputs(&rows, &receipt), d("2026-12-01"), d("2026-12-31")).unwrap()
+    split(
+        &t,
+        &r,
+        &inputs(&rows, &receipt),
+        d("2026-12-01"),
+        d("2026-12-31"),
+    )
+    .unwrap()
 }
 
 #[test]
@@ -152,7 +186,14 @@ fn the_accrued_at_cut_off_splits_like_a_posting() {
         status: AccrualStatus::NonAccrual,
         ..StatusRow::ACCRUING
     }];
-    let s = split(&t, &r, &inputs(&rows, &[]), d("2026-11-01"), d("2026-11-30")).unwrap();
+    let s = split(
+        &t,
+        &r,
+        &inputs(&rows, &[]),
+        d("2026-11-01"),
+        d("2026-11-30"),
+    )
+    .unwrap();
     // Everything accrued to 20 Nov is reversed on 21 Nov; 21..30 Nov is
     // 10 x 50.00 suspended and still accrued at the cut-off.
     let eve = r.days.iter().find(|x| x.date == d("2026-11-20")).unwrap();
@@ -171,7 +212,14 @@ fn credit_impaired_on_daily_rounding_is_refused() {
     t.round_at = RoundAt::Daily;
     let r = run(&t, "0.0333", &[], "2026-11-30");
     let rows = [impaired("2026-11-01", "1000.00")];
-    let e = split(&t, &r, &inputs(&rows, &[]), d("2026-11-01"), d("2026-11-30")).unwrap_err();
+    let e = split(
+        &t,
+        &r,
+        &inputs(&rows, &[]),
+        d("2026-11-01"),
+        d("2026-11-30"),
+    )
+    .unwrap_err();
     assert!(e.to_string().contains("credit-impaired"), "{e}");
 }
 
