@@ -94,6 +94,7 @@ fn account<'a>(
         booked_close: None,
         unreadable: &[],
         rate_bookings: [&[], &[]],
+        suspense: None,
     }
 }
 

@@ -452,6 +452,7 @@ impl Written {
                         gl_settlement: r.text(20).into(),
                         gl_prior_period: r.text(21).into(),
                     },
+                    suspense: None,
                 })
             })
             .collect()

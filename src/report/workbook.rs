@@ -63,6 +63,41 @@ pub const ACCRUALS_HEADER: [&str; 22] = [
     "GL prior period",
 ];
 
+/// Header labels of the Accruals sheet of a run with interest in suspense
+/// (behaviour.md, Non-accrual and interest in suspense): the columns of
+/// [`ACCRUALS_HEADER`], then the split. Interest for window is then the
+/// recognised figure.
+pub const ACCRUALS_SUSPENSE_HEADER: [&str; 28] = [
+    "Account",
+    "Name",
+    "Currency",
+    "Side",
+    "Day count",
+    "Compounding",
+    "Balance at cut-off",
+    "Accrued at cut-off",
+    "Posted in window",
+    "Interest for window",
+    "Effective annual rate",
+    "Window days' interest",
+    "Booked opening",
+    "Opening from",
+    "Prior-period adjustment",
+    "Open item at cut-off",
+    "Settled in window",
+    "Entity",
+    "GL interest",
+    "GL accrued",
+    "GL settlement",
+    "GL prior period",
+    "Accrual status",
+    "Contractual for window",
+    "Reversed in window",
+    "Suspended in window",
+    "Released in window",
+    "Suspense at cut-off",
+];
+
 /// Header labels of the Reconciliation sheet.
 pub const RECONCILIATION_HEADER: [&str; 12] = [
     "Account",
@@ -467,7 +502,11 @@ fn write_lists(
     report: &Report,
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    if report.accruals.iter().any(|a| a.suspense.is_some()) {
+        write_list(wb, &ACCRUALS_WITH_SUSPENSE, &report.accruals, ctx)?;
+    } else {
+        write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    }
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
@@ -556,6 +595,35 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     row: accrual_row,
     columns: accrual_columns,
 };
+
+/// The Accruals of a run with interest in suspense: the same columns, then
+/// the split.
+const ACCRUALS_WITH_SUSPENSE: ListSheet<AccrualLine> = ListSheet {
+    name: "Accruals",
+    header: &ACCRUALS_SUSPENSE_HEADER,
+    caps: &[
+        24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22, 24, 24, 18, 24, 24, 24, 24, 32, 32, 32, 32, 18,
+        24, 24, 24, 24, 24,
+    ],
+    notes: &[
+        (9, RECOGNISED_GLOSS),
+        (11, WINDOW_DAYS_GLOSS),
+        (12, BOOKED_OPENING_GLOSS),
+        (14, PRIOR_PERIOD_GLOSS),
+        (15, OPEN_ITEM_GLOSS),
+        (27, SUSPENSE_GLOSS),
+    ],
+    footer: None,
+    row: accrual_suspense_row,
+    columns: accrual_suspense_columns,
+};
+
+/// The note on Interest for window when the Accruals carry the split.
+const RECOGNISED_GLOSS: &str =
+    "Interest recognised as income: contractual for window - reversed - suspended + released.";
+
+/// The note on Suspense at cut-off.
+const SUSPENSE_GLOSS: &str = "Interest held in suspense at the end of the cut-off: opening suspense + reversals + suspended - released, to the cut-off.";
 
 /// Widest widths of the Reconciliation's columns, and of the Accrued
 /// check's, laid out alike.
@@ -921,6 +989,39 @@ fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
     c.text(20, &l.gl_settlement)?;
     c.text(21, &l.gl_prior_period)?;
     Ok(())
+}
+
+/// An Accruals row with the split; an account without one is accruing,
+/// its contractual figure its interest for window.
+fn accrual_suspense_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
+    accrual_row(c, a)?;
+    let units = a.minor_units;
+    match &a.suspense {
+        Some(s) => {
+            c.text(22, &s.status)?;
+            c.amount(23, s.contractual_for_window, units)?;
+            c.amount(24, s.reversed_in_window, units)?;
+            c.amount(25, s.suspended_in_window, units)?;
+            c.amount(26, s.released_in_window, units)?;
+            c.amount(27, s.suspense_at_cutoff, units)?;
+        }
+        None => {
+            c.text(22, "accruing")?;
+            c.amount(23, a.interest_for_window, units)?;
+            for col in 24..=27 {
+                c.amount(col, rust_decimal::Decimal::ZERO, units)?;
+            }
+        }
+    }
+    Ok(())
+}
+
+fn accrual_suspense_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
+    let mut columns = accrual_columns(s, rows);
+    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    columns.push(Some(&s.text));
+    columns.extend([amount; 5]);
+    columns
 }
 
 fn tie_out_row(c: &mut Cells<'_>, t: &TieOutLine) -> Result<(), ReportError> {

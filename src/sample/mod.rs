@@ -559,6 +559,7 @@ impl Generator {
             booked_close: None,
             unreadable: &[],
             rate_bookings: [&[], &[]],
+            suspense: None,
         };
         let keep_days = d.plant.is_some() || d.booked_plant.is_some();
         let options = Options {

@@ -36,4 +36,5 @@ mod reader_mutations;
 mod report_writer;
 mod sample_books;
 mod spec_examples;
+mod suspense_examples;
 mod tie_out_sheets;
