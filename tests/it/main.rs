@@ -37,4 +37,5 @@ mod report_writer;
 mod sample_books;
 mod spec_examples;
 mod suspense_examples;
+mod suspense_law;
 mod tie_out_sheets;

@@ -230,3 +230,81 @@ fn a_liability_account_is_refused() {
     let r = run(&t, "0.03", &[], "2026-11-30");
     assert!(split(&t, &r, &inputs(&[], &[]), d("2026-11-01"), d("2026-11-30")).is_err());
 }
+
+mod laws {
+    use proptest::prelude::*;
+
+    use super::*;
+
+    fn status(kind: u8, from: i64, amount: i64, cash: bool) -> StatusRow {
+        let status = match kind {
+            0 => AccrualStatus::Accruing,
+            1 => AccrualStatus::NonAccrual,
+            _ => AccrualStatus::CreditImpaired,
+        };
+        StatusRow {
+            from: d("2026-09-01") + chrono::Duration::days(from),
+            status,
+            unpaid_interest: if status == AccrualStatus::NonAccrual {
+                Decimal::new(amount, 2)
+            } else {
+                Decimal::ZERO
+            },
+            allowance: if status == AccrualStatus::CreditImpaired {
+                Decimal::new(amount * 50, 2)
+            } else {
+                Decimal::ZERO
+            },
+            cash_basis: cash,
+        }
+    }
+
+    proptest! {
+        /// Every day recognised + suspended = contractual; each posting's
+        /// parts add up to it; the suspense rolls forward through the window.
+        #[test]
+        fn the_split_adds_up(
+            rows in proptest::collection::vec((0u8..3, 0i64..120, 0i64..5_000_000, any::<bool>()), 0..5),
+            receipts in proptest::collection::vec((0i64..120, 1i64..500_000), 0..4),
+            rate_bp in 1u32..2000,
+            quarterly in any::<bool>(),
+        ) {
+            let mut t = loan(Basis::Act365F, "2026-09-01", "180000.00");
+            if quarterly {
+                t.posting = Posting::Quarterly;
+            }
+            let rate = Decimal::new(i64::from(rate_bp), 4).to_string();
+            let r = run(&t, &rate, &[], "2026-12-31");
+            let mut statuses: Vec<StatusRow> = rows.iter().map(|(k, f, a, c)| status(*k, *f, *a, *c)).collect();
+            statuses.sort_by_key(|s| s.from);
+            statuses.dedup_by_key(|s| s.from);
+            let receipts: Vec<Movement> = receipts
+                .iter()
+                .map(|(day, c)| Movement {
+                    value_date: d("2026-09-01") + chrono::Duration::days(*day),
+                    amount: -Decimal::new(*c, 2),
+                    booking_date: None,
+                    reference: None,
+                })
+                .collect();
+            let s = split(&t, &r, &SuspenseInputs { statuses: &statuses, receipts: &receipts, opening_suspense: n("10.00") },
+                d("2026-11-01"), d("2026-11-30")).unwrap();
+            prop_assert_eq!(s.days.len(), r.days.len());
+            for day in &s.days {
+                prop_assert_eq!(day.recognised + day.suspended, day.contractual);
+            }
+            for p in &s.periods {
+                prop_assert_eq!(p.recognised + p.suspended, p.posted);
+            }
+            prop_assert_eq!(
+                s.suspense_at_cutoff,
+                s.suspense_before_window + s.reversed_in_window + s.suspended_in_window - s.released_in_window
+            );
+            // Without status rows nothing is suspended.
+            let none = split(&t, &r, &SuspenseInputs { statuses: &[], receipts: &[], opening_suspense: Decimal::ZERO },
+                d("2026-11-01"), d("2026-11-30")).unwrap();
+            prop_assert_eq!(none.suspense_at_cutoff, Decimal::ZERO);
+            prop_assert_eq!(none.recognised_for_window(r.interest_for_window), Some(r.interest_for_window));
+        }
+    }
+}
