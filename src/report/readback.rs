@@ -32,9 +32,10 @@ use super::model::{
 };
 use super::workbook::{
     is_writer_note, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ, ACCRUALS_HEADER,
-    ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER, JOURNAL_HEADER,
-    LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE,
-    RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
+    ACCRUALS_SUSPENSE_HEADER, ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER,
+    JOURNAL_DETAIL_HEADER, JOURNAL_HEADER, LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER,
+    RECONCILIATION_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS,
+    TIE_OUT_HEADER,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -394,6 +395,36 @@ impl Written {
         })
     }
 
+    /// A run with interest in suspense (its Accruals carry the split) is
+    /// not read back: merging it is not built, and reading its Accruals
+    /// without the split would tie its suspense account out wrongly.
+    fn refuse_suspense(&mut self) -> Result<(), ReportError> {
+        const ACCRUALS: &str = "Accruals";
+        if !self.sheets.sheet_names().iter().any(|n| n == ACCRUALS) {
+            return Ok(());
+        }
+        let width = u32::try_from(ACCRUALS_SUSPENSE_HEADER.len()).unwrap_or(u32::MAX);
+        let rows = self.sheet_rows(ACCRUALS, width)?;
+        let split = rows
+            .into_iter()
+            .next()
+            .filter(|(row, _)| *row == 0)
+            .is_some_and(|(_, r)| {
+                let first = ACCRUALS_HEADER.len();
+                r.get(first).map(ToString::to_string).as_deref()
+                    == ACCRUALS_SUSPENSE_HEADER.get(first).copied()
+            });
+        if split {
+            return Err(self.not_written(
+                ACCRUALS,
+                &a1_row(0),
+                "the columns of interest in suspense (Accrual status, Contractual for window ...)",
+                "the Accruals of a run without Accrual status rows: shards of books with interest in suspense cannot be merged yet; run those books in one piece",
+            ));
+        }
+        Ok(())
+    }
+
     /// One row of the Run sheet's settings.
     fn setting(&self, r: &[Data]) -> Result<Setting, ReportError> {
         let word = text(r, 2);
@@ -421,6 +452,7 @@ impl Written {
     }
 
     fn accruals(&mut self) -> Result<Vec<AccrualLine>, ReportError> {
+        self.refuse_suspense()?;
         let list = self.required_list("Accruals", &ACCRUALS_HEADER)?;
         list.rows(&self.path)
             .map(|r| {
