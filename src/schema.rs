@@ -974,7 +974,8 @@ pub const TRIAL_BALANCE: SheetSpec = SheetSpec {
 };
 
 /// The Accrual status sheet: when an asset account stops accruing interest
-/// into income, or is credit-impaired, and when it returns.
+/// into income, or is credit-impaired, and when it returns. The template's
+/// example account is a deposit, so the sheet's example row is blank.
 pub const ACCRUAL_STATUS: SheetSpec = SheetSpec {
     kind: SheetKind::AccrualStatus,
     name: "Accrual status",
@@ -984,26 +985,26 @@ pub const ACCRUAL_STATUS: SheetSpec = SheetSpec {
             "account",
             Id,
             "Account id of an asset account (required).",
-            Text("HM-LN-204"),
+            Blank,
         ),
         required(
             "from",
             Kind::Date,
             "The first day in the status (required). It stays in force until the account's next row.",
-            Date(2024, 3, 11),
+            Blank,
         ),
         required(
             "status",
             Kind::Choice(Choice::AccrualStatus),
             "accruing: interest is income. non-accrual: none is; what accrues is held in suspense. credit-impaired: income is interest on the balance less the allowance (required).",
-            Text("non-accrual"),
+            Blank,
         ),
         optional(
             "unpaid_interest",
             Amount,
             Means("0"),
             "non-accrual: interest billed and not paid at the end of the day before from; it is reversed with the accrued interest.",
-            Number(155_000, 2),
+            Blank,
         ),
         optional(
             "allowance",
@@ -1017,7 +1018,7 @@ pub const ACCRUAL_STATUS: SheetSpec = SheetSpec {
             Kind::Choice(Choice::YesNo),
             Means("no"),
             "non-accrual: yes means interest received releases interest in suspense to income. Default: no.",
-            Text("no"),
+            Blank,
         ),
     ],
 };
