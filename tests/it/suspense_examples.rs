@@ -466,3 +466,38 @@ fn an_interest_receipt_must_be_negative_and_on_an_asset_account() {
     assert_eq!(errors.len(), 2, "{:?}", b.problems);
     assert!(!kept(&b, "LN-1") && !kept(&b, "DP-1"));
 }
+
+/// The demo loans book (sample-books/harbourview-loans-2026-11*): examples
+/// C1 and C2 as a user opens them, in both forms, statements agreeing.
+#[test]
+fn the_demo_loans_book_shows_examples_c1_and_c2() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books");
+    for name in [
+        "harbourview-loans-2026-11.xlsx",
+        "harbourview-loans-2026-11-csv",
+    ] {
+        let b = read_book(&root.join(name), &ReadOptions::default());
+        assert!(b.problems.is_empty(), "{name}: {:?}", b.problems);
+        let r = run(b, &november());
+        assert!(r.reconciliation.iter().all(|l| l.status == Status::Agrees));
+        let na = line(&r, "LN-NA");
+        assert_eq!(na.interest_for_window, dec("-1550.00"), "{name}");
+        assert_eq!(
+            na.suspense.as_ref().unwrap().suspense_at_cutoff,
+            dec("3050.00")
+        );
+        let ci = line(&r, "LN-CI");
+        assert_eq!(ci.interest_for_window, dec("325.00"), "{name}");
+        assert_eq!(
+            ci.suspense.as_ref().unwrap().suspended_in_window,
+            dec("225.00")
+        );
+        let susp = r
+            .journal
+            .iter()
+            .filter(|l| l.gl_account == "1390-INT-SUSP")
+            .map(|l| l.credit - l.debit)
+            .sum::<Decimal>();
+        assert_eq!(susp, dec("3275.00"), "{name}");
+    }
+}
