@@ -20,8 +20,8 @@ use ledgerate::engine::reconcile::Tolerance;
 use ledgerate::engine::run::{accrue, RunOptions};
 use ledgerate::engine::{AccountTerms, Inputs, Movement};
 use ledgerate::schema::{
-    layout, Layout, ACCOUNTS, BOOKED, FIXINGS, HOLIDAYS, MOVEMENTS, RATES, SETTINGS, STATEMENTS,
-    TRIAL_BALANCE,
+    layout, Layout, ACCOUNTS, ACCRUAL_STATUS, BOOKED, FIXINGS, HOLIDAYS, MOVEMENTS, RATES,
+    SETTINGS, STATEMENTS, TRIAL_BALANCE,
 };
 use rust_decimal::Decimal;
 use rust_xlsxwriter::{Format, Workbook};
@@ -896,8 +896,163 @@ fn ledger_sheets(book_dir: &Path) -> Result<(Rows, Rows), Box<dyn std::error::Er
     Ok((booked, trial_balance))
 }
 
+/// The loans book: two invented Harbourview loans that stop accruing
+/// interest into income (docs/user-guide.md, 2.13): LN-NA on non-accrual from
+/// 11 November with October's 1,550.00 billed and unpaid, LN-CI
+/// credit-impaired from 1 November with an allowance of 45,000.00 and a
+/// repayment of 20,000.00 on 16 November. The statements post the
+/// contractual interest, as the loans' terms say.
+fn loan_sheets() -> Vec<Sheet> {
+    const LOAN_LAYOUT: Layout = layout!(
+        ACCOUNTS,
+        "account",
+        "name",
+        "currency",
+        "side",
+        "day_count",
+        "compounding",
+        "posting",
+        "capitalise",
+        "open_date",
+        "opening_balance",
+        "gl_interest",
+        "gl_accrued",
+        "gl_suspense",
+    );
+    let loan = |id: &str, name: &str, basis: &str, open: &str, balance: &str| {
+        vec![
+            t(id),
+            t(name),
+            t("USD"),
+            t("asset"),
+            t(basis),
+            t("simple"),
+            t("monthly"),
+            t("no"),
+            date(open),
+            num(balance),
+            t("4110"),
+            t("1310"),
+            t("1390-INT-SUSP"),
+        ]
+    };
+    vec![
+        Sheet {
+            name: "Accounts",
+            columns: LOAN_LAYOUT.labels(),
+            rows: vec![
+                loan(
+                    "LN-NA",
+                    "Dockside Joinery term loan",
+                    "ACT/365F",
+                    "2026-10-01",
+                    "250000.00",
+                ),
+                loan(
+                    "LN-CI",
+                    "Gullhaven Cannery loan",
+                    "ACT/360",
+                    "2026-11-01",
+                    "120000.00",
+                ),
+            ],
+        },
+        Sheet {
+            name: "Rates",
+            columns: layout!(RATES, "rate_ref", "effective", "rate_percent").labels(),
+            rows: vec![
+                vec![t("LN-NA"), date("2026-01-01"), num("7.30")],
+                vec![t("LN-CI"), date("2026-01-01"), num("6.00")],
+            ],
+        },
+        Sheet {
+            name: "Movements",
+            columns: layout!(MOVEMENTS, "account", "value_date", "amount", "reference").labels(),
+            rows: vec![vec![
+                t("LN-CI"),
+                date("2026-11-16"),
+                num("-20000.00"),
+                t("REPAY-1116"),
+            ]],
+        },
+        Sheet {
+            name: "Statements",
+            columns: layout!(
+                STATEMENTS,
+                "account",
+                "period_start",
+                "period_end",
+                "posted_interest"
+            )
+            .labels(),
+            rows: vec![
+                vec![
+                    t("LN-NA"),
+                    date("2026-10-01"),
+                    date("2026-10-31"),
+                    num("1550.00"),
+                ],
+                vec![
+                    t("LN-NA"),
+                    date("2026-11-01"),
+                    date("2026-11-30"),
+                    num("1500.00"),
+                ],
+                vec![
+                    t("LN-CI"),
+                    date("2026-11-01"),
+                    date("2026-11-30"),
+                    num("550.00"),
+                ],
+            ],
+        },
+        Sheet {
+            name: "Settings",
+            columns: layout!(SETTINGS, "setting", "value").labels(),
+            rows: vec![
+                vec![t("cutoff"), date("2026-11-30")],
+                vec![t("entity"), t("HARBOURVIEW-MUTUAL")],
+            ],
+        },
+        Sheet {
+            name: "Accrual status",
+            columns: layout!(
+                ACCRUAL_STATUS,
+                "account",
+                "from",
+                "status",
+                "unpaid_interest",
+                "allowance",
+                "cash_basis"
+            )
+            .labels(),
+            rows: vec![
+                vec![
+                    t("LN-NA"),
+                    date("2026-11-11"),
+                    t("non-accrual"),
+                    num("1550.00"),
+                    Cell::Empty,
+                    t("no"),
+                ],
+                vec![
+                    t("LN-CI"),
+                    date("2026-11-01"),
+                    t("credit-impaired"),
+                    Cell::Empty,
+                    num("45000.00"),
+                    Cell::Empty,
+                ],
+            ],
+        },
+    ]
+}
+
 fn main() -> Result<(), Box<dyn std::error::Error>> {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-books");
+    let loans = loan_sheets();
+    write_xlsx(&loans, &root.join("harbourview-loans-2026-11.xlsx"))?;
+    write_csv(&loans, &root.join("harbourview-loans-2026-11-csv"))?;
     let csv_dir = root.join("harbourview-2026-11-csv");
     let mut sheets = sheets();
     // First the books without statements, so the engine can work out what should post.

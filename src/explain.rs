@@ -19,6 +19,7 @@ use crate::engine::causes::LikelyCause;
 use crate::engine::floating::FixingUsed;
 use crate::engine::ledger::LedgerFigures;
 use crate::engine::reconcile::Status;
+use crate::engine::suspense::Suspense;
 use crate::engine::{DayRow, FloorOn, PostingRow};
 use crate::pipeline::{
     run_account, statements_of, AccountRun, BookAccount, CheckedRow, Failed, Options,
@@ -57,6 +58,10 @@ pub struct Explanation {
     /// The core system's open item at cut-off checked against ours, when a
     /// Booked row gives it.
     pub accrued_check: Option<CheckedRow>,
+    /// The split of its interest into recognised and suspended (its days
+    /// cut to the days shown), for an account with Accrual status rows,
+    /// interest receipts or an opening suspense.
+    pub suspense: Option<Suspense>,
 }
 
 /// The account's terms as explain's first lines name them.
@@ -200,6 +205,10 @@ impl Explanation {
             ledger: run.ledger,
             window_start: options.window_start,
             accrued_check: run.accrued_check,
+            suspense: run.suspense.map(|mut s| {
+                s.days.retain(|d| d.date >= shown.0 && d.date <= shown.1);
+                s
+            }),
         }
     }
 }
@@ -251,7 +260,72 @@ pub fn print(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
         "accrued at cut-off {}",
         fmt_amount(x.accrued_at_cutoff, x.header.minor_units)
     )?;
-    print_ledger(x, out)
+    print_ledger(x, out)?;
+    print_suspense(x, out)
+}
+
+/// The split into recognised and suspended (behaviour.md, Non-accrual and
+/// interest in suspense): per day shown, then the reversals, the releases
+/// and the window's figures.
+fn print_suspense(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
+    let Some(s) = &x.suspense else {
+        return Ok(());
+    };
+    let a = |v: Decimal| fmt_amount(v, x.header.minor_units);
+    writeln!(
+        out,
+        "accrual status at cut-off {}; per day: date, status, contractual, recognised, suspended",
+        s.status_at_cutoff.name()
+    )?;
+    for d in &s.days {
+        writeln!(
+            out,
+            "  {} {} {} {} {}",
+            d.date,
+            d.status.name(),
+            d.contractual.normalize(),
+            d.recognised.normalize(),
+            d.suspended.normalize()
+        )?;
+    }
+    for r in &s.reversals {
+        writeln!(
+            out,
+            "reversed on {} (entry into non-accrual): {} = accrued {} + unpaid {}",
+            r.date,
+            a(r.amount),
+            a(r.accrued),
+            a(r.unpaid)
+        )?;
+    }
+    for r in &s.releases {
+        writeln!(
+            out,
+            "interest received on {}: {}, released from suspense {}",
+            r.date,
+            a(r.received),
+            a(r.amount)
+        )?;
+    }
+    writeln!(
+        out,
+        "suspense at {} {}; reversed in window {}; suspended in window {}; released in window {}; suspense at cut-off {}",
+        x.window_start.pred_opt().unwrap_or(x.window_start),
+        a(s.suspense_before_window),
+        a(s.reversed_in_window),
+        a(s.suspended_in_window),
+        a(s.released_in_window),
+        a(s.suspense_at_cutoff)
+    )?;
+    if let Some(recognised) = s.recognised_for_window(x.ledger.interest_for_window) {
+        writeln!(
+            out,
+            "interest for window recognised {} (contractual {})",
+            a(recognised),
+            a(x.ledger.interest_for_window)
+        )?;
+    }
+    Ok(())
 }
 
 /// The ledger's figures: the booked opening and where it came from, the

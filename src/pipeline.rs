@@ -32,6 +32,7 @@ use crate::engine::reconcile::{
     expected_over, reconcile, variance_bp, Reconciled, StatementPeriod, Status, Tolerance,
 };
 use crate::engine::run::{accrue, AccountResult, RunOptions};
+use crate::engine::suspense::{split, Suspense, SuspenseInputs};
 use crate::engine::{ActualPosting, EngineError, Inputs, Movement};
 use crate::problem::{Position, Problem, Severity};
 use crate::report::model::TaxCheck;
@@ -64,6 +65,10 @@ pub struct BookAccount<'a> {
     /// When the tables of its `rate_ref` and `debit_rate_ref` were booked,
     /// where later than they took effect (effective, booked).
     pub rate_bookings: [&'a [(NaiveDate, NaiveDate)]; 2],
+    /// Its Accrual status rows, interest receipts and opening suspense, when
+    /// it has any (behaviour.md, Non-accrual and interest in suspense):
+    /// only such an account keeps its day rows to be split.
+    pub suspense: Option<SuspenseInputs<'a>>,
 }
 
 impl<'a> BookAccount<'a> {
@@ -98,6 +103,7 @@ impl<'a> BookAccount<'a> {
                     .as_ref()
                     .map_or(&[][..], |r| known::bookings_of(book, r)),
             ],
+            suspense: suspense_of(book, entry),
         }
     }
 
@@ -188,8 +194,21 @@ impl<'a> KnownRows<'a> {
             booked_close: None,
             unreadable: now.unreadable,
             rate_bookings: [&[], &[]],
+            suspense: None,
         }
     }
+}
+
+/// The Accrual status rows, interest receipts and opening suspense of
+/// `entry` in `book`; `None` for an account with none of them, which is
+/// accruing and keeps the fast path.
+fn suspense_of<'b>(book: &'b Book, entry: &'b AccountEntry) -> Option<SuspenseInputs<'b>> {
+    let id = entry.terms.id.as_str();
+    (book.accrual.touches(id) || !entry.opening_suspense.is_zero()).then(|| SuspenseInputs {
+        statuses: book.accrual.statuses.get(id).map_or(&[][..], Vec::as_slice),
+        receipts: book.accrual.receipts.get(id).map_or(&[][..], Vec::as_slice),
+        opening_suspense: entry.opening_suspense,
+    })
 }
 
 /// The statement rows of account `id` in `book`, in sheet order.
@@ -256,6 +275,10 @@ pub struct AccountRun {
     /// The core system's open item at cut-off (a Booked row) checked
     /// against ours: expected O(C), "posted" the booked figure.
     pub accrued_check: Option<CheckedRow>,
+    /// Its contractual interest split into recognised and suspended, for an
+    /// account with Accrual status rows, interest receipts or an opening
+    /// suspense.
+    pub suspense: Option<Suspense>,
 }
 
 /// An account the engine could not compute.
@@ -296,6 +319,19 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         opening.figure,
     );
     close.notes.extend(opening.notes);
+    let suspense = match &account.suspense {
+        Some(inputs) => Some(
+            split(
+                &entry.terms,
+                &close.result,
+                inputs,
+                options.window_start,
+                options.cutoff,
+            )
+            .map_err(fail)?,
+        ),
+        None => None,
+    };
     Ok(AccountRun {
         result: close.result,
         periods: close.periods,
@@ -305,6 +341,7 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         postings,
         ledger,
         accrued_check: close.accrued_check,
+        suspense,
     })
 }
 
@@ -335,7 +372,7 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
     let run_options = RunOptions {
         window_start: options.window_start,
         cutoff: options.cutoff,
-        keep_days: options.keep_days,
+        keep_days: options.keep_days || account.suspense.is_some(),
         keep_states: checked,
         keep_spans: checked,
         fast_path: options.fast_path,

@@ -21,6 +21,7 @@ use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{AnchorKind, Posting};
 use crate::engine::ledger::SettlementLines;
+use crate::engine::suspense::AccrualStatus;
 use crate::engine::terms::{RoundAt, Side, TierMethod};
 
 /// The sheets a book may hold.
@@ -46,12 +47,14 @@ pub enum SheetKind {
     Settings,
     /// Withholding tax tables.
     Tax,
+    /// Non-accrual and credit-impaired status of asset accounts by date.
+    AccrualStatus,
 }
 
 impl SheetKind {
     /// Every sheet, in the order of the book format (the template's order,
     /// and the order problems are listed in).
-    pub const ALL: [SheetKind; 10] = [
+    pub const ALL: [SheetKind; 11] = [
         SheetKind::Accounts,
         SheetKind::Rates,
         SheetKind::Movements,
@@ -62,6 +65,7 @@ impl SheetKind {
         SheetKind::Holidays,
         SheetKind::Settings,
         SheetKind::Tax,
+        SheetKind::AccrualStatus,
     ];
 
     /// The sheet's description.
@@ -77,6 +81,7 @@ impl SheetKind {
             SheetKind::Holidays => &HOLIDAYS,
             SheetKind::Settings => &SETTINGS,
             SheetKind::Tax => &TAX,
+            SheetKind::AccrualStatus => &ACCRUAL_STATUS,
         }
     }
 
@@ -319,11 +324,15 @@ pub enum Choice {
     SettlementLines,
     /// gross / net.
     StatementAmounts,
+    /// accruing / non-accrual / credit-impaired.
+    AccrualStatus,
+    /// principal / interest.
+    AppliesTo,
 }
 
 impl Choice {
     /// Every choice.
-    pub const ALL: [Choice; 15] = [
+    pub const ALL: [Choice; 17] = [
         Choice::Side,
         Choice::Compounding,
         Choice::Posting,
@@ -339,6 +348,8 @@ impl Choice {
         Choice::StatementEnd,
         Choice::SettlementLines,
         Choice::StatementAmounts,
+        Choice::AccrualStatus,
+        Choice::AppliesTo,
     ];
 
     /// The canonical names offered, in their usual order.
@@ -365,6 +376,8 @@ impl Choice {
             Choice::StatementEnd => vec!["inclusive", "exclusive"],
             Choice::SettlementLines => SettlementLines::ALL.iter().map(|c| c.name()).collect(),
             Choice::StatementAmounts => vec!["gross", "net"],
+            Choice::AccrualStatus => AccrualStatus::ALL.iter().map(|c| c.name()).collect(),
+            Choice::AppliesTo => vec!["principal", "interest"],
         }
     }
 }
@@ -722,6 +735,27 @@ pub const ACCOUNTS: SheetSpec = SheetSpec {
             "GL account of the tax withheld: payable to the tax authority (liability side) or recoverable (asset side).",
             Blank,
         ),
+        optional(
+            "gl_suspense",
+            Id,
+            Derived("INTEREST-IN-SUSPENSE"),
+            "Asset side: GL account of interest in suspense, the contra account of the receivable that holds interest accrued but not recognised (Accrual status).",
+            Text("1390-INT-SUSP"),
+        ),
+        optional(
+            "gl_reversal",
+            Id,
+            Derived("the account's interest GL account (gl_interest, else the journal's)"),
+            "Asset side: GL account charged with the interest reversed on an entry into non-accrual. Default: the interest GL account.",
+            Text("4100-INT-INC"),
+        ),
+        optional(
+            "opening_suspense",
+            Amount,
+            Means("0"),
+            "Asset side: interest held in suspense at the start of open_date (brought forward).",
+            Number(0, 2),
+        ),
     ],
 };
 
@@ -835,6 +869,13 @@ pub const MOVEMENTS: SheetSpec = SheetSpec {
             Nothing,
             "Your reference, kept for the audit trail.",
             Text("DEP-24-0115"),
+        ),
+        optional(
+            "applies_to",
+            Kind::Choice(Choice::AppliesTo),
+            Means("principal"),
+            "principal: the amount moves the balance (default). interest: a receipt of billed interest (a negative amount on an asset account); it leaves the balance alone and may release interest in suspense.",
+            Text("principal"),
         ),
     ],
 };
@@ -957,6 +998,56 @@ pub const TRIAL_BALANCE: SheetSpec = SheetSpec {
             Amount,
             "The balance as a trial balance prints it (required): debit positive, credit negative.",
             Number(-7_137, 2),
+        ),
+    ],
+};
+
+/// The Accrual status sheet: when an asset account stops accruing interest
+/// into income, or is credit-impaired, and when it returns. The template's
+/// example account is a deposit, so the sheet's example row is blank.
+pub const ACCRUAL_STATUS: SheetSpec = SheetSpec {
+    kind: SheetKind::AccrualStatus,
+    name: "Accrual status",
+    required: false,
+    columns: &[
+        required(
+            "account",
+            Id,
+            "Account id of an asset account (required).",
+            Blank,
+        ),
+        required(
+            "from",
+            Kind::Date,
+            "The first day in the status (required). It stays in force until the account's next row.",
+            Blank,
+        ),
+        required(
+            "status",
+            Kind::Choice(Choice::AccrualStatus),
+            "accruing: interest is income. non-accrual: none is; what accrues is held in suspense. credit-impaired: income is interest on the balance less the allowance (required).",
+            Blank,
+        ),
+        optional(
+            "unpaid_interest",
+            Amount,
+            Means("0"),
+            "non-accrual: interest billed and not paid at the end of the day before from; it is reversed with the accrued interest.",
+            Blank,
+        ),
+        optional(
+            "allowance",
+            Amount,
+            Means("0"),
+            "credit-impaired: the loss allowance in force from from, 0 or more.",
+            Blank,
+        ),
+        optional(
+            "cash_basis",
+            Kind::Choice(Choice::YesNo),
+            Means("no"),
+            "non-accrual: yes means interest received releases interest in suspense to income. Default: no.",
+            Blank,
         ),
     ],
 };

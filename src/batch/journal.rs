@@ -169,6 +169,40 @@ pub struct AccountEntries<'a> {
     pub withheld: Vec<(NaiveDate, Decimal)>,
 }
 
+/// An asset account's interest-in-suspense entries for a window
+/// (behaviour.md, Non-accrual and interest in suspense).
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct SuspenseEntries {
+    /// The interest-in-suspense GL account (default `INTEREST-IN-SUSPENSE`).
+    pub gl_suspense: Word,
+    /// Where a reversal is charged (default: the interest GL account).
+    pub gl_reversal: Word,
+    /// The window's interest held in suspense (taken out of income on C).
+    pub suspended: Decimal,
+    /// Reversals on entries into non-accrual in the window: date and amount.
+    pub reversals: Vec<(NaiveDate, Decimal)>,
+    /// Suspense released by interest received in the window: date and amount.
+    pub releases: Vec<(NaiveDate, Decimal)>,
+}
+
+impl SuspenseEntries {
+    /// The default interest-in-suspense GL account.
+    pub const DEFAULT_GL: &'static str = "INTEREST-IN-SUSPENSE";
+
+    /// The book's GL codes resolved: suspense and reversal accounts, the
+    /// reversal's default the interest account `interest`.
+    pub fn gl(gl: &GlCodes, interest: &Word) -> (Word, Word) {
+        (
+            gl.suspense
+                .as_ref()
+                .map_or(Word::Borrowed(Self::DEFAULT_GL), |g| Word::Owned(g.clone())),
+            gl.reversal
+                .as_ref()
+                .map_or_else(|| interest.clone(), |g| Word::Owned(g.clone())),
+        )
+    }
+}
+
 /// Where a line sorts within its date: accruals, then postings, then reversals.
 fn purpose(memo: &str) -> u8 {
     if memo.starts_with("interest accrued") || memo.starts_with("prior-period") {
@@ -396,6 +430,58 @@ impl Journal {
         }
     }
 
+    /// Adds an asset account's interest-in-suspense entries for the window
+    /// `from..=to`: on `to` the suspended interest out of income into
+    /// suspense (incremental style: on the accrual's own line, so the
+    /// receivable takes the contractual figure and income the recognised
+    /// part); each reversal Dr `gl_reversal` / Cr suspense on its date; each
+    /// release Dr suspense / Cr income on the receipt's date.
+    pub fn add_suspense(
+        &mut self,
+        a: &AccountEntries,
+        s: &SuspenseEntries,
+        style: JournalStyle,
+        from: NaiveDate,
+        to: NaiveDate,
+    ) {
+        let mut book = |date: NaiveDate, dr: &str, cr: &str, memo: &str, amount: Decimal| {
+            self.entry(
+                a.account,
+                date,
+                a.entity,
+                a.currency,
+                a.minor_units,
+                dr,
+                cr,
+                memo,
+                amount,
+            );
+        };
+        let memo = match style {
+            JournalStyle::Incremental => format!("interest accrued {from}..{to}"),
+            JournalStyle::Reversing => format!("interest suspended {from}..{to}"),
+        };
+        book(to, &a.gl.interest, &s.gl_suspense, &memo, s.suspended);
+        for (date, amount) in &s.reversals {
+            book(
+                *date,
+                &s.gl_reversal,
+                &s.gl_suspense,
+                "interest reversed on non-accrual",
+                *amount,
+            );
+        }
+        for (date, amount) in &s.releases {
+            book(
+                *date,
+                &s.gl_suspense,
+                &a.gl.interest,
+                "suspended interest received",
+                *amount,
+            );
+        }
+    }
+
     /// The journal lines, by date, entity, currency and purpose.
     pub fn lines(self) -> Vec<JournalLine> {
         self.finish().0
@@ -551,6 +637,8 @@ mod tests {
                 settlement: None,
                 prior_period: None,
                 tax: None,
+                suspense: None,
+                reversal: None,
             },
         );
         let mut j = Journal::new();

@@ -29,14 +29,15 @@ use crate::engine::causes::{plausible, LikelyCause};
 use crate::engine::floating::FixingFallback;
 use crate::engine::ledger::{LedgerPosting, SettlementLines};
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
+use crate::engine::suspense::Suspense;
 use crate::engine::PostingRow;
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{report_order, Position, Problem};
 use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalDetail, JournalLine, LedgerLine, LeftOutLine,
-    ReconciliationLine, StatusCount, TaxLine, TieOutLine, Word,
+    ReconciliationLine, StatusCount, SuspenseLine, TaxLine, TieOutLine, Word,
 };
-use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl};
+use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl, SuspenseEntries};
 use tie_out::TieOut;
 use totals::{StatusCounts, Totals};
 
@@ -152,6 +153,8 @@ struct Outcome {
     /// The core system's open item checked against ours, when a Booked row gives it.
     accrued_check: Option<ReconciliationLine>,
     notes: Vec<Problem>,
+    /// Its interest-in-suspense entries, when it has a split.
+    suspense: Option<SuspenseEntries>,
 }
 
 /// One account to accrue: its book's index, the book, the book's rows by
@@ -363,24 +366,34 @@ impl<'s> Sums<'s> {
         let settings = self.settings;
         self.totals.add(&o.line);
         let l = &o.line.ledger;
+        let entries = AccountEntries {
+            account: &entry.terms.id,
+            entity: &l.entity,
+            currency: &o.line.currency,
+            minor_units: o.line.minor_units,
+            side: entry.terms.side,
+            gl: &o.gl,
+            window_days_interest: l.window_days_interest,
+            prior_period: l.prior_period,
+            open_item: l.open_item,
+            settlements: o.settlements,
+            withheld: o.withheld,
+        };
         self.journal.add_account(
-            &AccountEntries {
-                account: &entry.terms.id,
-                entity: &l.entity,
-                currency: &o.line.currency,
-                minor_units: o.line.minor_units,
-                side: entry.terms.side,
-                gl: &o.gl,
-                window_days_interest: l.window_days_interest,
-                prior_period: l.prior_period,
-                open_item: l.open_item,
-                settlements: o.settlements,
-                withheld: o.withheld,
-            },
+            &entries,
             settings.journal_style,
             settings.window_start,
             settings.cutoff,
         );
+        if let Some(s) = &o.suspense {
+            self.journal.add_suspense(
+                &entries,
+                s,
+                settings.journal_style,
+                settings.window_start,
+                settings.cutoff,
+            );
+        }
         self.daily.extend(o.daily);
         for (_, line) in o.reconciliation {
             self.counts.add(line.status);
@@ -529,6 +542,13 @@ fn outcome(
     let withheld = withheld_of(&run.postings, &r.postings, options);
     let gl = ResolvedGl::of(t.side, &entry.gl);
     let f = &run.ledger;
+    let (suspense_line, suspense_entries) = suspense_figures(
+        entry,
+        run.suspense.as_ref(),
+        &gl,
+        f.interest_for_window,
+        options,
+    );
     let daily = r
         .days
         .iter()
@@ -562,7 +582,10 @@ fn outcome(
                 .filter(|p| p.made && p.end >= options.window_start && p.end <= options.cutoff)
                 .map(|p| p.amount)
                 .sum(),
-            interest_for_window: f.interest_for_window,
+            interest_for_window: suspense_line.as_ref().map_or(f.interest_for_window, |s| {
+                s.contractual_for_window - s.reversed_in_window - s.suspended_in_window
+                    + s.released_in_window
+            }),
             effective_annual_rate: r.effective_annual_rate,
             ledger: LedgerLine {
                 entity: Word::Owned(entity.to_string()),
@@ -581,6 +604,7 @@ fn outcome(
                 .tax
                 .as_ref()
                 .map(|_| tax_line(&run.postings, &r.postings, options)),
+            suspense: suspense_line,
         },
         gl,
         settlements,
@@ -589,6 +613,7 @@ fn outcome(
         reconciliation,
         accrued_check,
         notes: run.notes,
+        suspense: suspense_entries,
     }
 }
 
@@ -624,6 +649,51 @@ fn withheld_of(
         .filter(|(p, _)| mode.journals(p, options.window_start, options.cutoff))
         .filter_map(|(p, r)| Some((mode.settlement_date(p)?, r.withheld.tax)))
         .collect()
+}
+
+/// An account's interest-in-suspense line for Accruals and its journal
+/// entries for the window (behaviour.md, Non-accrual and interest in
+/// suspense); `None` for an account without a split.
+fn suspense_figures(
+    entry: &AccountEntry,
+    split: Option<&Suspense>,
+    gl: &ResolvedGl,
+    contractual: Decimal,
+    options: &Options,
+) -> (Option<SuspenseLine>, Option<SuspenseEntries>) {
+    let Some(s) = split else {
+        return (None, None);
+    };
+    let (gl_suspense, gl_reversal) = SuspenseEntries::gl(&entry.gl, &gl.interest);
+    let within = |d: NaiveDate| d >= options.window_start && d <= options.cutoff;
+    let line = SuspenseLine {
+        status: Word::Borrowed(s.status_at_cutoff.name()),
+        contractual_for_window: contractual,
+        reversed_in_window: s.reversed_in_window,
+        suspended_in_window: s.suspended_in_window,
+        released_in_window: s.released_in_window,
+        suspense_before_window: s.suspense_before_window,
+        suspense_at_cutoff: s.suspense_at_cutoff,
+        gl_suspense: gl_suspense.clone(),
+    };
+    let entries = SuspenseEntries {
+        gl_suspense,
+        gl_reversal,
+        suspended: s.suspended_in_window,
+        reversals: s
+            .reversals
+            .iter()
+            .filter(|r| within(r.date))
+            .map(|r| (r.date, r.amount))
+            .collect(),
+        releases: s
+            .releases
+            .iter()
+            .filter(|r| within(r.date))
+            .map(|r| (r.date, r.amount))
+            .collect(),
+    };
+    (Some(line), Some(entries))
 }
 
 /// The Reconciliation line of a statement row that could not be read: its

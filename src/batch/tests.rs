@@ -35,6 +35,7 @@ fn entry(id: &str, ccy: &str, minor: u32, side: Side, basis: Basis, balance: &st
             cell: "A2".into(),
             ..Default::default()
         },
+        opening_suspense: Decimal::ZERO,
     }
 }
 

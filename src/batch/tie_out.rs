@@ -100,9 +100,34 @@ impl TieOut {
         }
         s.accounts += 1;
         s.opening += l.booked_opening;
-        s.interest += line.interest_for_window;
+        // The receivable takes the contractual figure; the suspense account
+        // the part not recognised (behaviour.md, Non-accrual and interest
+        // in suspense).
+        let Some(susp) = &line.suspense else {
+            s.interest += line.interest_for_window;
+            s.settled += l.settled_in_window;
+            s.closing += l.open_item;
+            return;
+        };
+        s.interest += susp.contractual_for_window;
         s.settled += l.settled_in_window;
         s.closing += l.open_item;
+        let key = (
+            l.entity.to_string(),
+            line.currency.to_string(),
+            susp.gl_suspense.to_string(),
+        );
+        let s = self.rows.entry(key).or_default();
+        s.minor_units = line.minor_units;
+        let side = Word::Borrowed(SUSPENSE_SIDE);
+        if !s.sides.contains(&side) {
+            s.sides.push(side);
+        }
+        s.accounts += 1;
+        s.opening += susp.suspense_before_window;
+        s.interest += susp.reversed_in_window + susp.suspended_in_window;
+        s.settled += susp.released_in_window;
+        s.closing += susp.suspense_at_cutoff;
     }
 
     /// The Tie-out rows against the trial balance `tb` (rows dated
@@ -131,7 +156,7 @@ impl TieOut {
                 // A trial balance prints debits positive: a payable's normal
                 // (credit) balance is the negative of its trial-balance figure.
                 let normal = |tb: Decimal| {
-                    if side == "liability" && !tb.is_zero() {
+                    if (side == "liability" || side == SUSPENSE_SIDE) && !tb.is_zero() {
                         -tb
                     } else {
                         tb
@@ -240,6 +265,12 @@ impl MixedSides {
     }
 }
 
+/// The side word of an interest-in-suspense GL account's Tie-out row: a
+/// contra account of the receivable, credit normal. Its interest for window
+/// is what was reversed and suspended, its settled what was released, its
+/// open items the accounts' suspense.
+pub const SUSPENSE_SIDE: &str = "suspense";
+
 /// What the note on a Trial balance row no account uses expects.
 const UNUSED_ROW_EXPECTED: &str =
     "the accrued-interest GL accounts (gl_accrued) of the accounts computed";
@@ -293,6 +324,7 @@ mod tests {
                 ..LedgerLine::default()
             },
             tax: None,
+            suspense: None,
         }
     }
 

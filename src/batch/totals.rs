@@ -42,6 +42,7 @@ use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, Statu
 ///     effective_annual_rate: None,
 ///     ledger: Default::default(),
 ///     tax: None,
+///     suspense: None,
 /// };
 /// let mut totals = Totals::default();
 /// totals.add(&line("USD", "liability", 125));

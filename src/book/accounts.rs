@@ -68,6 +68,9 @@ const GL_SETTLEMENT: usize = column!(ACCOUNTS, "gl_settlement");
 const GL_PRIOR_PERIOD: usize = column!(ACCOUNTS, "gl_prior_period");
 const TAX_REF: usize = column!(ACCOUNTS, "tax_ref");
 const GL_TAX: usize = column!(ACCOUNTS, "gl_tax");
+const GL_SUSPENSE: usize = column!(ACCOUNTS, "gl_suspense");
+const GL_REVERSAL: usize = column!(ACCOUNTS, "gl_reversal");
+const OPENING_SUSPENSE: usize = column!(ACCOUNTS, "opening_suspense");
 
 /// The name of the Accounts column at place `i`, for messages.
 fn column_name(i: usize) -> &'static str {
@@ -91,6 +94,8 @@ pub(crate) struct Life {
     row: u32,
     /// Its place among the sheet's ids.
     seq: u32,
+    /// Its side, when its row could be read.
+    pub side: Option<Side>,
 }
 
 /// Every account id of the Accounts sheet (first row of each), with its
@@ -110,6 +115,7 @@ impl Known {
         open: Option<NaiveDate>,
         maturity: Option<NaiveDate>,
         row: u32,
+        side: Option<Side>,
     ) {
         let seq = u32::try_from(self.by_id.len()).unwrap_or(u32::MAX);
         self.by_id.insert(
@@ -119,6 +125,7 @@ impl Known {
                 maturity,
                 row,
                 seq,
+                side,
             },
         );
     }
@@ -242,6 +249,7 @@ pub(crate) fn read(
             }),
             entry.as_ref().and_then(|e| e.terms.maturity),
             rec.row,
+            entry.as_ref().map(|e| e.terms.side),
         );
         match entry {
             Some(e) if !f.failed => out.entries.push(e),
@@ -292,8 +300,20 @@ fn account(
         settlement: f.text(GL_SETTLEMENT),
         prior_period: f.text(GL_PRIOR_PERIOD),
         tax: f.text(GL_TAX),
+        suspense: f.text(GL_SUSPENSE),
+        reversal: f.text(GL_REVERSAL),
     };
     let tax_ref = f.text(TAX_REF);
+    let opening_suspense = f.decimal(OPENING_SUSPENSE).unwrap_or(Decimal::ZERO);
+    if !opening_suspense.is_zero() && side == Side::Liability {
+        f.report(
+            Severity::Error,
+            OPENING_SUSPENSE,
+            &opening_suspense.to_string(),
+            "no opening_suspense on a liability account (interest in suspense is asset side only)",
+            "leave opening_suspense blank on a deposit, or correct the account's side to asset",
+        );
+    }
     let floating = floating_terms(f);
 
     let ((code, minor_units), basis, open_date, opening_balance) =
@@ -358,6 +378,7 @@ fn account(
         debit_rate_ref,
         gl,
         position,
+        opening_suspense,
     })
 }
 

@@ -95,7 +95,11 @@ pub fn booked_after(bookings: &[(NaiveDate, NaiveDate)], day: NaiveDate) -> bool
 /// ```
 pub fn keep_known(book: &mut Book, as_at: NaiveDate) -> Vec<Problem> {
     let mut moved = 0;
-    for list in book.movements.values_mut() {
+    for list in book
+        .movements
+        .values_mut()
+        .chain(book.accrual.receipts.values_mut())
+    {
         let before = list.len();
         list.retain(|m| movement_known(m, as_at));
         moved += before - list.len();

@@ -11,6 +11,7 @@
 //! the sheet readers take their columns from it.
 
 mod accounts;
+mod accrual_status;
 mod biff;
 pub mod booked;
 pub(crate) mod cell;

@@ -11,6 +11,7 @@ use rust_decimal::Decimal;
 
 use crate::engine::floating::{Fixings, FloatingSchedule};
 use crate::engine::rates::RateSchedule;
+use crate::engine::suspense::StatusRow;
 use crate::engine::{AccountTerms, Movement};
 use crate::problem::{Position, Problem, Severity};
 use crate::schema::SheetKind;
@@ -28,6 +29,10 @@ pub struct GlCodes {
     pub prior_period: Option<String>,
     /// GL account of the withholding tax (`gl_tax`).
     pub tax: Option<String>,
+    /// Asset side: interest in suspense (default `INTEREST-IN-SUSPENSE`).
+    pub suspense: Option<String>,
+    /// Asset side: where a reversal on non-accrual is charged (default: `interest`).
+    pub reversal: Option<String>,
 }
 
 /// One row of the Accounts sheet, resolved.
@@ -45,6 +50,34 @@ pub struct AccountEntry {
     pub gl: GlCodes,
     /// The row's position (cell of the account id).
     pub position: Position,
+    /// Asset side: interest held in suspense at the start of `open_date`.
+    pub opening_suspense: Decimal,
+}
+
+/// What a book says about recognising an asset account's interest
+/// (behaviour.md, Non-accrual and interest in suspense): its Accrual status
+/// rows and its interest receipts (Movements rows that apply to interest,
+/// kept apart from the balance movements).
+#[derive(Debug, Clone, Default)]
+pub struct AccrualRows {
+    /// Status rows by account id, in date order (one per day).
+    pub statuses: BTreeMap<String, Vec<StatusRow>>,
+    /// Interest receipts by account id, in sheet order.
+    pub receipts: BTreeMap<String, Vec<Movement>>,
+}
+
+impl AccrualRows {
+    /// Whether account `id` goes through the suspense split: it has a status
+    /// row or an interest receipt (its opening suspense is on its entry).
+    pub fn touches(&self, id: &str) -> bool {
+        self.statuses.contains_key(id) || self.receipts.contains_key(id)
+    }
+
+    /// Keeps the rows of the accounts `keep` says yes to.
+    pub fn retain(&mut self, keep: impl Fn(&str) -> bool) {
+        self.statuses.retain(|id, _| keep(id));
+        self.receipts.retain(|id, _| keep(id));
+    }
 }
 
 /// One row of the Statements sheet.
@@ -186,6 +219,8 @@ pub struct Book {
     /// [`crate::book::check_unique_ids`]). Every account id of the sheet is
     /// in `accounts` or here, once.
     pub left_out: Vec<LeftOut>,
+    /// Accrual status rows and interest receipts of kept accounts.
+    pub accrual: AccrualRows,
 }
 
 impl Book {

@@ -11,15 +11,36 @@ use std::collections::BTreeMap;
 use super::accounts::Known;
 use super::sheet::Sheet;
 use super::table::{Ctx, Fields, Table};
-use crate::engine::Movement;
+use crate::engine::{Movement, Side};
 use crate::problem::{Problem, Severity};
 use crate::schema::{column, MOVEMENTS};
+use rust_decimal::Decimal;
 
 const ACCOUNT: usize = column!(MOVEMENTS, "account");
 const VALUE_DATE: usize = column!(MOVEMENTS, "value_date");
 const AMOUNT: usize = column!(MOVEMENTS, "amount");
 const BOOKING_DATE: usize = column!(MOVEMENTS, "booking_date");
 const REFERENCE: usize = column!(MOVEMENTS, "reference");
+const APPLIES_TO: usize = column!(MOVEMENTS, "applies_to");
+
+/// What a movement applies to.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum AppliesTo {
+    Principal,
+    Interest,
+}
+
+fn applies_to(s: &str) -> Result<AppliesTo, crate::conventions::names::UnknownName> {
+    crate::conventions::names::lookup(
+        "applies_to",
+        s,
+        &[
+            ("principal", AppliesTo::Principal),
+            ("interest", AppliesTo::Interest),
+        ],
+        &["principal", "interest"],
+    )
+}
 
 /// What the Movements sheet gives.
 #[derive(Debug, Default)]
@@ -28,6 +49,9 @@ pub(crate) struct Movements {
     pub by_account: BTreeMap<String, Vec<Movement>>,
     /// Accounts with a bad movement row.
     pub spoiled: Vec<String>,
+    /// Interest receipts (`applies_to` interest) by account, in sheet order:
+    /// they never move the balance.
+    pub interest: BTreeMap<String, Vec<Movement>>,
 }
 
 /// Reads the Movements sheet; `None` when the sheet cannot be read as a table.
@@ -53,10 +77,47 @@ pub(crate) fn read(
         let amount = f.required_decimal(AMOUNT);
         let booking_date = f.date(BOOKING_DATE);
         let reference = f.text(REFERENCE);
+        let applies = f
+            .named(APPLIES_TO, applies_to)
+            .unwrap_or(AppliesTo::Principal);
         let (Some(value_date), Some(amount), false) = (value_date, amount, f.failed) else {
             out.spoiled.push(id);
             continue;
         };
+        if applies == AppliesTo::Interest {
+            let problem = if life.side == Some(Side::Liability) {
+                Some((
+                    "interest".to_string(),
+                    "applies_to interest only on an asset account (a receipt of billed loan interest)",
+                    "write principal (or leave it blank) for a deposit's movement; the account is not computed until then",
+                ))
+            } else if amount > Decimal::ZERO {
+                Some((
+                    amount.to_string(),
+                    "a negative amount for a receipt of interest (applies_to interest)",
+                    "write the receipt as a negative amount, or applies_to principal if it moves the balance; the account is not computed until then",
+                ))
+            } else {
+                None
+            };
+            if let Some((found, expected, fix)) = problem {
+                let col = if found == "interest" {
+                    APPLIES_TO
+                } else {
+                    AMOUNT
+                };
+                f.report(Severity::Error, col, &found, expected, fix);
+                out.spoiled.push(id);
+                continue;
+            }
+            out.interest.entry(id).or_default().push(Movement {
+                value_date,
+                amount,
+                booking_date,
+                reference,
+            });
+            continue;
+        }
         if let Some(open) = life.open {
             if value_date < open {
                 f.report(

@@ -12,6 +12,7 @@ use std::collections::{BTreeSet, HashMap, HashSet};
 use std::path::Path;
 
 use super::accounts::{self, Known, Others};
+use super::accrual_status::{self, Statuses};
 use super::booked::{self, Booked};
 use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
@@ -182,6 +183,7 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     if let Some(m) = take_typed(moved, &entries, problems, &mut rejected) {
         rejected.extend(m.spoiled);
         book.movements = m.by_account;
+        book.accrual.receipts = m.interest;
     }
     if let Some(st) = take_typed(stated, &entries, problems, &mut rejected) {
         book.statements = st.rows;
@@ -199,6 +201,15 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     book.trial_balance = sheet(SheetKind::TrialBalance)
         .map(|s| trial_balance::read(ctx, &s, problems))
         .unwrap_or_default();
+    let status_sheet = sheet(SheetKind::AccrualStatus).map(|s| {
+        let mut met = Vec::new();
+        let typed = accrual_status::read(ctx, &s, &found.known, &mut met);
+        (s, typed, met)
+    });
+    if let Some(st) = take_typed::<Statuses>(status_sheet, &entries, problems, &mut rejected) {
+        rejected.extend(st.spoiled);
+        book.accrual.statuses = st.by_account;
+    }
 
     entries.retain(|e| !rejected.contains(&e.terms.id));
     book.left_out = left_out(&rejected, &found.known, problems);
@@ -207,6 +218,7 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     book.statements
         .retain(|s| kept.contains(s.account.as_str()));
     book.booked.retain(|b| kept.contains(b.account.as_str()));
+    book.accrual.retain(|id| kept.contains(id));
     book.unreadable_statements
         .retain(|s| kept.contains(s.account.as_str()));
     fixing_holiday_warnings(ctx, &entries, &rates, &fixings, problems);
@@ -492,6 +504,17 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
             b.account
         ));
     }
+    for id in book
+        .accrual
+        .statuses
+        .keys()
+        .chain(book.accrual.receipts.keys())
+        .filter(|id| !kept.contains_key(id.as_str()))
+    {
+        out.push(format!(
+            "an Accrual status row or interest receipt of an account left out: {id}"
+        ));
+    }
     out
 }
 
@@ -566,6 +589,7 @@ pub fn check_unique_ids(books: &mut [Book]) {
         book.movements.retain(|id, _| !dropped.contains(id));
         book.statements.retain(|s| !dropped.contains(&s.account));
         book.booked.retain(|b| !dropped.contains(&b.account));
+        book.accrual.retain(|id| !dropped.contains(id));
         book.unreadable_statements
             .retain(|s| !dropped.contains(&s.account));
     }

@@ -18,6 +18,7 @@ pub mod ledger;
 pub mod rates;
 pub mod reconcile;
 pub mod run;
+pub mod suspense;
 pub mod tax;
 pub mod terms;
 

@@ -38,6 +38,7 @@ fn entry() -> AccountEntry {
             cell: "A2".into(),
             ..Default::default()
         },
+        opening_suspense: Decimal::ZERO,
     }
 }
 
@@ -94,6 +95,7 @@ fn account<'a>(
         booked_close: None,
         unreadable: &[],
         rate_bookings: [&[], &[]],
+        suspense: None,
     }
 }
 

@@ -149,6 +149,11 @@ pub struct AccrualLine {
     /// Its withholding tax in the window, for an account with a `tax_ref`
     /// (behaviour.md, Withholding tax); `None` without.
     pub tax: Option<TaxLine>,
+    /// Its interest split into recognised and suspended, for an account
+    /// with Accrual status rows, interest receipts or an opening suspense
+    /// (behaviour.md, Non-accrual and interest in suspense); then
+    /// `interest_for_window` is the recognised figure.
+    pub suspense: Option<SuspenseLine>,
 }
 
 /// A reconciled period's withholding tax (behaviour.md, Withholding tax).
@@ -170,6 +175,27 @@ pub struct TaxLine {
     pub withheld: Decimal,
     /// What they credited net of it.
     pub net_posted: Decimal,
+}
+
+/// An asset account's interest in suspense for the window.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct SuspenseLine {
+    /// The accrual status on the cut-off.
+    pub status: Word,
+    /// The interest for window before the split (what the receivable takes).
+    pub contractual_for_window: Decimal,
+    /// Reversals on entries into non-accrual dated in the window.
+    pub reversed_in_window: Decimal,
+    /// Interest of the window held in suspense.
+    pub suspended_in_window: Decimal,
+    /// Suspense released to income by interest received in the window.
+    pub released_in_window: Decimal,
+    /// The suspense at the end of the day before the window.
+    pub suspense_before_window: Decimal,
+    /// The suspense at the end of the cut-off.
+    pub suspense_at_cutoff: Decimal,
+    /// The interest-in-suspense GL account.
+    pub gl_suspense: Word,
 }
 
 /// An account's GL accounts (defaults resolved) and its ledger figures.

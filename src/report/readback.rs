@@ -31,8 +31,8 @@ use super::model::{
     TaxLine, TieOutLine, TieStatus,
 };
 use super::workbook::{
-    is_writer_note, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ, ACCRUALS_HEADER,
-    ACCRUALS_TAX_HEADER, ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER,
+    is_writer_note, AccrualGroup, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ,
+    ACCRUALS_HEADER, ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER,
     JOURNAL_HEADER, LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER,
     RECONCILIATION_TAX_HEADER, RUN_COMMAND_LINE, RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER,
     SUMMARY_COLS, TIE_OUT_HEADER,
@@ -395,6 +395,49 @@ impl Written {
         })
     }
 
+    /// The column groups the Accruals carry after [`ACCRUALS_HEADER`], from
+    /// its first sheet's header (none without the sheet). A run with interest
+    /// in suspense is not read back: merging it is not built, and reading its
+    /// Accruals without the split would tie its suspense account out wrongly.
+    fn accrual_groups(&mut self) -> Result<Vec<AccrualGroup>, ReportError> {
+        const ACCRUALS: &str = "Accruals";
+        if !self.sheets.sheet_names().iter().any(|n| n == ACCRUALS) {
+            return Ok(Vec::new());
+        }
+        let widest = ACCRUALS_HEADER.len()
+            + AccrualGroup::ALL
+                .iter()
+                .map(|g| g.header().len())
+                .sum::<usize>();
+        let width = u32::try_from(widest).unwrap_or(u32::MAX);
+        let labels: Vec<String> = self
+            .sheet_rows(ACCRUALS, width)?
+            .into_iter()
+            .next()
+            .filter(|(row, _)| *row == 0)
+            .map(|(_, r)| r.iter().map(ToString::to_string).collect())
+            .unwrap_or_default();
+        let mut at = ACCRUALS_HEADER.len();
+        let mut groups = Vec::new();
+        for g in AccrualGroup::ALL {
+            let h = g.header();
+            let here = labels.get(at..at + h.len());
+            if here.is_some_and(|l| l.iter().map(String::as_str).eq(h.iter().copied())) {
+                groups.push(g);
+                at += h.len();
+            }
+        }
+        if groups.contains(&AccrualGroup::Suspense) {
+            return Err(self.not_written(
+                ACCRUALS,
+                &a1_row(0),
+                "the columns of interest in suspense (Accrual status, Contractual for window ...)",
+                "the Accruals of a run without Accrual status rows: shards of books with interest in suspense cannot be merged yet; run those books in one piece",
+            ));
+        }
+        Ok(groups)
+    }
+
     /// One row of the Run sheet's settings.
     fn setting(&self, r: &[Data]) -> Result<Setting, ReportError> {
         let word = text(r, 2);
@@ -422,11 +465,18 @@ impl Written {
     }
 
     fn accruals(&mut self) -> Result<Vec<AccrualLine>, ReportError> {
-        // A run with withholding tax has two columns more.
-        let (list, taxed) = match self.list("Accruals", &ACCRUALS_TAX_HEADER) {
-            Ok(Some(list)) => (list, true),
-            _ => (self.required_list("Accruals", &ACCRUALS_HEADER)?, false),
-        };
+        // A run with life events or withholding tax has their columns after
+        // the usual ones.
+        let groups = self.accrual_groups()?;
+        let mut header: Vec<&str> = ACCRUALS_HEADER.to_vec();
+        let mut place = Vec::new();
+        for g in &groups {
+            place.push((*g, header.len()));
+            header.extend_from_slice(g.header());
+        }
+        let at = |g: AccrualGroup| place.iter().find(|(h, _)| *h == g).map(|(_, c)| *c);
+        let tax_at = at(AccrualGroup::Tax);
+        let list = self.required_list("Accruals", &header)?;
         list.rows(&self.path)
             .map(|r| {
                 let currency = r.text(2);
@@ -457,13 +507,14 @@ impl Written {
                         gl_settlement: r.text(20).into(),
                         gl_prior_period: r.text(21).into(),
                     },
-                    tax: match (taxed, r.text(22).is_empty()) {
-                        (true, false) => Some(TaxLine {
-                            withheld: r.amount(22, places)?,
-                            net_posted: r.amount(23, places)?,
+                    tax: match tax_at {
+                        Some(c) if !r.text(c).is_empty() => Some(TaxLine {
+                            withheld: r.amount(c, places)?,
+                            net_posted: r.amount(c + 1, places)?,
                         }),
                         _ => None,
                     },
+                    suspense: None,
                 })
             })
             .collect()

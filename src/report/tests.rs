@@ -445,6 +445,7 @@ fn accrual(account: &str, currency: &'static str, minor_units: u32, balance: &st
         effective_annual_rate: Some(dec("0.0512")),
         ledger: Default::default(),
         tax: None,
+        suspense: None,
     }
 }
 

@@ -63,35 +63,139 @@ pub const ACCRUALS_HEADER: [&str; 22] = [
     "GL prior period",
 ];
 
-/// Header labels of the Accruals sheet of a run with withholding tax: its
-/// columns, then the tax withheld from the window's postings and their net
-/// (behaviour.md, Withholding tax). A run without tax keeps the sheet as it was.
-pub const ACCRUALS_TAX_HEADER: [&str; 24] = [
-    "Account",
-    "Name",
-    "Currency",
-    "Side",
-    "Day count",
-    "Compounding",
-    "Balance at cut-off",
-    "Accrued at cut-off",
-    "Posted in window",
-    "Interest for window",
-    "Effective annual rate",
-    "Window days' interest",
-    "Booked opening",
-    "Opening from",
-    "Prior-period adjustment",
-    "Open item at cut-off",
-    "Settled in window",
-    "Entity",
-    "GL interest",
-    "GL accrued",
-    "GL settlement",
-    "GL prior period",
-    "Tax withheld in window",
-    "Net posted in window",
-];
+/// A group of Accruals columns written after [`ACCRUALS_HEADER`] only when
+/// some account of the run has it, in the order of [`AccrualGroup::ALL`]:
+/// a run with none keeps the sheet as it was.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum AccrualGroup {
+    /// The account's status and current term (behaviour.md, Account life events).
+    Life,
+    /// Interest split into recognised and suspended (behaviour.md, Non-accrual
+    /// and interest in suspense); Interest for window is then the recognised figure.
+    Suspense,
+    /// Tax withheld from the window's postings and their net (behaviour.md,
+    /// Withholding tax).
+    Tax,
+}
+
+impl AccrualGroup {
+    /// Every group, in the order of its columns.
+    pub const ALL: [AccrualGroup; 3] = [
+        AccrualGroup::Life,
+        AccrualGroup::Suspense,
+        AccrualGroup::Tax,
+    ];
+
+    /// The group's header labels.
+    pub fn header(self) -> &'static [&'static str] {
+        match self {
+            AccrualGroup::Life => &["Status", "Days since maturity", "Term start", "Maturity"],
+            AccrualGroup::Suspense => &[
+                "Accrual status",
+                "Contractual for window",
+                "Reversed in window",
+                "Suspended in window",
+                "Released in window",
+                "Suspense at cut-off",
+            ],
+            AccrualGroup::Tax => &["Tax withheld in window", "Net posted in window"],
+        }
+    }
+
+    /// The widest each of its columns gets.
+    fn caps(self) -> &'static [usize] {
+        match self {
+            AccrualGroup::Life => &[16, 12, 14, 14],
+            AccrualGroup::Suspense => &[18, 24, 24, 24, 24, 24],
+            AccrualGroup::Tax => &[24, 24],
+        }
+    }
+
+    /// Notes on its header cells, by place within the group.
+    fn notes(self) -> &'static [(ColNum, &'static str)] {
+        match self {
+            AccrualGroup::Life => &[(0, STATUS_GLOSS)],
+            AccrualGroup::Suspense => &[(5, SUSPENSE_GLOSS)],
+            AccrualGroup::Tax => &[],
+        }
+    }
+
+    /// Whether the account's line has the group.
+    pub fn held_by(self, a: &AccrualLine) -> bool {
+        match self {
+            AccrualGroup::Life => false, // LIFE-TODO
+            AccrualGroup::Suspense => a.suspense.is_some(),
+            AccrualGroup::Tax => a.tax.is_some(),
+        }
+    }
+
+    /// The groups some line of `rows` has.
+    pub fn of(rows: &[AccrualLine]) -> Vec<AccrualGroup> {
+        AccrualGroup::ALL
+            .into_iter()
+            .filter(|g| rows.iter().any(|a| g.held_by(a)))
+            .collect()
+    }
+
+    /// The formats its columns carry.
+    fn formats<'s>(self, s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
+        let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+        match self {
+            AccrualGroup::Life => vec![Some(&s.text), Some(&s.count), Some(&s.date), Some(&s.date)],
+            AccrualGroup::Suspense => vec![Some(&s.text), amount, amount, amount, amount, amount],
+            AccrualGroup::Tax => vec![amount, amount],
+        }
+    }
+
+    /// Writes the group's cells of `a` from column `first`; an account
+    /// without it has them blank (a life status) or accruing (the split).
+    fn write(self, c: &mut Cells<'_>, a: &AccrualLine, first: ColNum) -> Result<(), ReportError> {
+        let units = a.minor_units;
+        let col = |i: ColNum| first.saturating_add(i);
+        match self {
+            AccrualGroup::Life => {
+                // LIFE-TODO
+            }
+            AccrualGroup::Suspense => match &a.suspense {
+                Some(s) => {
+                    c.text(col(0), &s.status)?;
+                    c.amount(col(1), s.contractual_for_window, units)?;
+                    c.amount(col(2), s.reversed_in_window, units)?;
+                    c.amount(col(3), s.suspended_in_window, units)?;
+                    c.amount(col(4), s.released_in_window, units)?;
+                    c.amount(col(5), s.suspense_at_cutoff, units)?;
+                }
+                None => {
+                    c.text(col(0), "accruing")?;
+                    c.amount(col(1), a.interest_for_window, units)?;
+                    for i in 2..=5 {
+                        c.amount(col(i), rust_decimal::Decimal::ZERO, units)?;
+                    }
+                }
+            },
+            AccrualGroup::Tax => {
+                // Blank for an account without tax.
+                if let Some(tax) = &a.tax {
+                    c.amount(col(0), tax.withheld, units)?;
+                    c.amount(col(1), tax.net_posted, units)?;
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+/// The Accruals' status, for the note of its header.
+pub const STATUS_GLOSS: &str = "Status: open; closed (close_date on or before the cut-off); \
+    matured unpaid (a balance left after maturity, with the days since); rolled over (a new \
+    term started at maturity: Term start and Maturity are the current term's).";
+
+/// The note on Interest for window when the Accruals carry the split.
+const RECOGNISED_GLOSS: &str =
+    "Interest recognised as income: contractual for window - reversed - suspended + released.";
+
+/// The note on Suspense at cut-off.
+const SUSPENSE_GLOSS: &str = "Interest held in suspense at the end of the cut-off: opening suspense + reversals + suspended - released, to the cut-off.";
 
 /// Header labels of the Reconciliation sheet.
 pub const RECONCILIATION_HEADER: [&str; 12] = [
@@ -517,11 +621,7 @@ fn write_lists(
     report: &Report,
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    if report.accruals.iter().any(|a| a.tax.is_some()) {
-        write_list(wb, &ACCRUALS_TAX, &report.accruals, ctx)?;
-    } else {
-        write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
-    }
+    write_accruals(wb, &report.accruals, ctx)?;
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
@@ -572,12 +672,12 @@ struct Ctx<'s> {
 
 /// What a list sheet is besides its rows: its name, its columns (label and
 /// widest width), the notes on its header and its footer.
-struct Shape {
-    name: &'static str,
-    header: &'static [&'static str],
-    caps: &'static [usize],
-    notes: &'static [(ColNum, &'static str)],
-    footer: Option<&'static str>,
+struct Shape<'a> {
+    name: &'a str,
+    header: &'a [&'a str],
+    caps: &'a [usize],
+    notes: &'a [(ColNum, &'a str)],
+    footer: Option<&'a str>,
 }
 
 /// A list sheet: its name, its columns (label and widest width) and how one
@@ -617,16 +717,67 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     columns: accrual_columns,
 };
 
-/// The Accruals of a run with withholding tax: two columns more.
-const ACCRUALS_TAX: ListSheet<AccrualLine> = ListSheet {
-    header: &ACCRUALS_TAX_HEADER,
-    caps: &[
-        24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22, 24, 24, 18, 24, 24, 24, 24, 32, 32, 32, 32, 24,
-        24,
-    ],
-    columns: accrual_tax_columns,
-    ..ACCRUALS
-};
+/// `f` as a column-format function for any styles' lifetime.
+fn formats_of<T, F>(f: F) -> F
+where
+    F: for<'s> Fn(&'s Styles, &[T]) -> Vec<Option<&'s Format>>,
+{
+    f
+}
+
+/// The Accruals: [`ACCRUALS`], then the column groups some account of the
+/// run has ([`AccrualGroup`]).
+fn write_accruals(
+    wb: &mut Workbook,
+    rows: &[AccrualLine],
+    ctx: &mut Ctx<'_>,
+) -> Result<usize, ReportError> {
+    let groups = AccrualGroup::of(rows);
+    if groups.is_empty() {
+        return write_list(wb, &ACCRUALS, rows, ctx);
+    }
+    let mut header: Vec<&str> = ACCRUALS.header.to_vec();
+    let mut caps: Vec<usize> = ACCRUALS.caps.to_vec();
+    let mut notes: Vec<(ColNum, &str)> = ACCRUALS.notes.to_vec();
+    let mut placed = Vec::new();
+    for g in &groups {
+        let first = ColNum::try_from(header.len()).unwrap_or(ColNum::MAX);
+        if *g == AccrualGroup::Suspense {
+            notes.push((9, RECOGNISED_GLOSS));
+        }
+        notes.extend(
+            g.notes()
+                .iter()
+                .map(|(i, n)| (first.saturating_add(*i), *n)),
+        );
+        header.extend_from_slice(g.header());
+        caps.extend_from_slice(g.caps());
+        placed.push((*g, first));
+    }
+    notes.sort_by_key(|(col, _)| *col);
+    let shape = Shape {
+        name: ACCRUALS.name,
+        header: &header,
+        caps: &caps,
+        notes: &notes,
+        footer: ACCRUALS.footer,
+    };
+    let columns = formats_of(|s, part: &[AccrualLine]| {
+        let mut formats = accrual_columns(s, part);
+        for g in &groups {
+            formats.extend(g.formats(s, part));
+        }
+        formats
+    });
+    let row = |c: &mut Cells<'_>, a: &AccrualLine| {
+        accrual_row(c, a)?;
+        for (g, first) in &placed {
+            g.write(c, a, *first)?;
+        }
+        Ok(())
+    };
+    write_rows(wb, &shape, rows, columns, row, ctx)
+}
 
 /// Widest widths of the Reconciliation's columns, and of the Accrued
 /// check's, laid out alike.
@@ -703,7 +854,7 @@ const DAILY: ListSheet<DailyLine> = ListSheet {
     columns: daily_columns,
 };
 
-const JOURNAL_DETAIL_SHAPE: Shape = Shape {
+const JOURNAL_DETAIL_SHAPE: Shape<'static> = Shape {
     name: JOURNAL_DETAIL,
     header: &JOURNAL_DETAIL_HEADER,
     caps: &[14, 24, 10, 32, 48, 24, 24, 24],
@@ -901,13 +1052,6 @@ fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Fo
     ]
 }
 
-fn accrual_tax_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
-    let mut columns = accrual_columns(s, rows);
-    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
-    columns.extend([amount, amount]);
-    columns
-}
-
 fn reconciliation_columns<'s>(
     s: &'s Styles,
     rows: &[ReconciliationLine],
@@ -1016,11 +1160,6 @@ fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
     c.text(19, &l.gl_accrued)?;
     c.text(20, &l.gl_settlement)?;
     c.text(21, &l.gl_prior_period)?;
-    // Withholding tax: blank for an account without it.
-    if let Some(tax) = &a.tax {
-        c.amount(22, tax.withheld, units)?;
-        c.amount(23, tax.net_posted, units)?;
-    }
     Ok(())
 }
 

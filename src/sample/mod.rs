@@ -52,7 +52,7 @@ use crate::engine::reconcile::Tolerance;
 use crate::engine::{EngineError, Movement, RoundAt, TierMethod};
 use crate::pipeline::{run_account, BookAccount, Options};
 use crate::report::book_writer::Value;
-use crate::schema::{layout, Layout, SheetKind, ACCOUNTS, RATES, STATEMENTS};
+use crate::schema::{layout, Layout, SheetKind, ACCOUNTS, MOVEMENTS, RATES, STATEMENTS};
 
 use catalogue::Product;
 use draft::Draft;
@@ -139,7 +139,14 @@ pub const SHEETS: [Layout; 8] = [
         "gl_accrued",
     ),
     layout!(RATES, "rate_ref", "effective", "rate_percent", "tier_from"),
-    Layout::every(SheetKind::Movements),
+    layout!(
+        MOVEMENTS,
+        "account",
+        "value_date",
+        "amount",
+        "booking_date",
+        "reference"
+    ),
     layout!(
         STATEMENTS,
         "account",
@@ -552,6 +559,7 @@ impl Generator {
             booked_close: None,
             unreadable: &[],
             rate_bookings: [&[], &[]],
+            suspense: None,
         };
         let keep_days = d.plant.is_some() || d.booked_plant.is_some();
         let options = Options {

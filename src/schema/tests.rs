@@ -57,7 +57,8 @@ fn the_sheets_are_those_of_books_md_in_order() {
             "Fixings",
             "Holidays",
             "Settings",
-            "Tax"
+            "Tax",
+            "Accrual status"
         ]
     );
     let required: Vec<SheetKind> = SheetKind::ALL

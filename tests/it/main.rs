@@ -36,5 +36,7 @@ mod reader_mutations;
 mod report_writer;
 mod sample_books;
 mod spec_examples;
+mod suspense_examples;
+mod suspense_law;
 mod tax_examples;
 mod tie_out_sheets;

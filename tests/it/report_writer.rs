@@ -71,6 +71,7 @@ fn report() -> Report {
             effective_annual_rate: Some(dec("0.0330286")),
             ledger: Default::default(),
             tax: None,
+            suspense: None,
         };
     let mut big = accrual("HM-BIG-001", "USD", 2, "1000000000000000.55", "0.00");
     big.effective_annual_rate = None;
@@ -770,7 +771,11 @@ fn the_template_has_every_sheet_and_column_of_an_account_book() {
     for (name, columns) in &expected {
         let rows = sheet(&target, name);
         assert_eq!(&header(&rows), columns, "{name}");
-        assert!(rows.len() >= 2, "{name} has an example row");
+        // The example account is a deposit, and an Accrual status row is
+        // for a loan only: that sheet's example row is blank.
+        if *name != "Accrual status" {
+            assert!(rows.len() >= 2, "{name} has an example row");
+        }
         // A note on every header cell: the schema's note on the column.
         let comments = zip_text(
             &target,
