@@ -32,6 +32,7 @@ use crate::engine::reconcile::{
     expected_over, reconcile, variance_bp, Reconciled, StatementPeriod, Status, Tolerance,
 };
 use crate::engine::run::{accrue, AccountResult, RunOptions};
+use crate::engine::events::{self, Closing};
 use crate::engine::{ActualPosting, EngineError, Inputs, Movement};
 use crate::problem::{Position, Problem, Severity};
 
@@ -252,6 +253,8 @@ pub struct AccountRun {
     /// The core system's open item at cut-off (a Booked row) checked
     /// against ours: expected O(C), "posted" the booked figure.
     pub accrued_check: Option<CheckedRow>,
+    /// Its close by the cut-off, when it has one (behaviour.md, Account life events).
+    pub closing: Option<Closing>,
 }
 
 /// An account the engine could not compute.
@@ -301,6 +304,7 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         postings,
         ledger,
         accrued_check: close.accrued_check,
+        closing: close.closing,
     })
 }
 
@@ -313,6 +317,7 @@ struct Close {
     notes: Vec<Problem>,
     not_made: Vec<(NaiveDate, NaiveDate)>,
     accrued_check: Option<CheckedRow>,
+    closing: Option<Closing>,
 }
 
 /// Runs and reconciles `account` for the window of `options`. A posting
@@ -321,7 +326,9 @@ struct Close {
 /// run again with nothing posted for it, so its balance never takes it.
 fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError> {
     let entry = account.entry;
-    let t = &entry.terms;
+    let own = &entry.terms;
+    let closed = events::run_terms(own, options.cutoff);
+    let t = closed.as_ref().unwrap_or(own);
     let actual = actual_postings(account.statements);
     let with_nothing_posted: Vec<ActualPosting>;
     let (periods, mut notes) = statement_periods(account.statements, entry, options.cutoff);
@@ -396,6 +403,10 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         })
         .collect();
     notes.extend(fixing_warnings(entry, &result.fixing_warnings));
+    let closing = events::settle_close(own, t, &inputs, run_options, &mut result)?;
+    if let Some(c) = &closing {
+        notes.extend(life_notes(entry, c, &options.tolerance));
+    }
     let accrued_check = match account.booked_close {
         Some(booked) => Some(check_accrued(
             t, &inputs, &result, &not_made, booked, options,
@@ -409,6 +420,7 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         notes,
         not_made,
         accrued_check,
+        closing,
     })
 }
 
@@ -758,6 +770,9 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
         follows: None,
     }
 }
+
+mod life;
+use life::life_notes;
 
 #[cfg(test)]
 mod tests;

@@ -149,6 +149,8 @@ struct Outcome {
     /// The core system's open item checked against ours, when a Booked row gives it.
     accrued_check: Option<ReconciliationLine>,
     notes: Vec<Problem>,
+    /// A break penalty this run journals: its date, amount and GL account.
+    penalty: Option<(NaiveDate, Decimal, String)>,
 }
 
 /// One account to accrue: its book's index, the book, the book's rows by
@@ -377,6 +379,16 @@ impl<'s> Sums<'s> {
             settings.window_start,
             settings.cutoff,
         );
+        if let Some((date, amount, gl_penalty)) = &o.penalty {
+            self.journal.add_penalty(
+                &entry.terms.id,
+                &l.entity,
+                (&o.line.currency, o.line.minor_units),
+                (&o.gl.settlement, gl_penalty),
+                *date,
+                *amount,
+            );
+        }
         self.daily.extend(o.daily);
         for (_, line) in o.reconciliation {
             self.counts.add(line.status);
@@ -576,6 +588,7 @@ fn outcome(
         reconciliation,
         accrued_check,
         notes: run.notes,
+        penalty: journal::penalty_entry(run.closing.as_ref(), entry, options.window_start, options.cutoff),
     }
 }
 

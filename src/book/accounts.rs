@@ -83,6 +83,10 @@ pub(crate) struct Life {
     pub open: Option<NaiveDate>,
     /// M, when given.
     pub maturity: Option<NaiveDate>,
+    /// X, the close_date, when given.
+    pub close: Option<NaiveDate>,
+    /// Whether a close before maturity is penalised.
+    pub penalised: bool,
     /// The account's first row in the Accounts sheet.
     row: u32,
     /// Its place among the sheet's ids.
@@ -113,6 +117,8 @@ impl Known {
             Life {
                 open,
                 maturity,
+                close: None,
+                penalised: false,
                 row,
                 seq,
             },
@@ -237,6 +243,11 @@ pub(crate) fn read(
             entry.as_ref().and_then(|e| e.terms.maturity),
             rec.row,
         );
+        if let (Some(e), Some(life)) = (&entry, out.known.by_id.get_mut(&id)) {
+            life.close = e.terms.events.close_date;
+            life.penalised =
+                e.terms.events.break_penalty != crate::engine::events::BreakPenalty::None;
+        }
         match entry {
             Some(e) if !f.failed => out.entries.push(e),
             _ => {
@@ -313,7 +324,8 @@ fn account(
         }
     };
 
-    let terms = AccountTerms {
+    let mut terms = AccountTerms {
+        events: crate::engine::events::LifeEvents::default(),
         floating,
         id: id.to_string(),
         currency: code,
@@ -338,6 +350,7 @@ fn account(
         opening_accrued,
         period_start,
     };
+    terms.events = super::life_events::read(f, &terms, &rate_ref, others.rates);
     check_terms(f, &terms);
     check_floating(f, &terms);
     check_rates(f, &terms, &rate_ref, debit_rate_ref.as_deref(), others);

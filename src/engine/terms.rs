@@ -8,6 +8,7 @@ use std::sync::Arc;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
+use super::events::LifeEvents;
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
@@ -271,6 +272,9 @@ pub struct AccountTerms {
     /// How the rate of each day is found (behaviour.md, Floating rates); fixed by
     /// default.
     pub floating: FloatingTerms,
+    /// Closure, break penalty and what happens after maturity (behaviour.md,
+    /// Account life events); none by default.
+    pub events: LifeEvents,
 }
 
 impl AccountTerms {
@@ -317,6 +321,7 @@ impl AccountTerms {
             opening_accrued: Decimal::ZERO,
             period_start: None,
             floating: FloatingTerms::default(),
+            events: LifeEvents::default(),
         }
     }
 
