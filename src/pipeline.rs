@@ -20,6 +20,7 @@ use chrono::Datelike;
 
 use crate::book::{known, AccountEntry, Book, BookedRow, StatementRow, UnreadableStatement};
 use crate::engine::causes::{search, LikelyCause};
+use crate::engine::events::{self, Life};
 use crate::engine::floating::{
     FixingFallback, FixingWarning, Fixings, FloatingRates, FloatingSchedule,
 };
@@ -32,7 +33,6 @@ use crate::engine::reconcile::{
     expected_over, reconcile, variance_bp, Reconciled, StatementPeriod, Status, Tolerance,
 };
 use crate::engine::run::{accrue, AccountResult, RunOptions};
-use crate::engine::events::{self, Closing};
 use crate::engine::{ActualPosting, EngineError, Inputs, Movement};
 use crate::problem::{Position, Problem, Severity};
 
@@ -253,8 +253,9 @@ pub struct AccountRun {
     /// The core system's open item at cut-off (a Booked row) checked
     /// against ours: expected O(C), "posted" the booked figure.
     pub accrued_check: Option<CheckedRow>,
-    /// Its close by the cut-off, when it has one (behaviour.md, Account life events).
-    pub closing: Option<Closing>,
+    /// Its life events at the cut-off: terms, close, status (behaviour.md,
+    /// Account life events); `None` for an account without any.
+    pub life: Option<Life>,
 }
 
 /// An account the engine could not compute.
@@ -304,7 +305,7 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         postings,
         ledger,
         accrued_check: close.accrued_check,
-        closing: close.closing,
+        life: close.life,
     })
 }
 
@@ -317,7 +318,7 @@ struct Close {
     notes: Vec<Problem>,
     not_made: Vec<(NaiveDate, NaiveDate)>,
     accrued_check: Option<CheckedRow>,
-    closing: Option<Closing>,
+    life: Option<Life>,
 }
 
 /// Runs and reconciles `account` for the window of `options`. A posting
@@ -372,7 +373,8 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
             &options.tolerance,
         )
     };
-    let mut result = accrue(t, inputs, run_options)?;
+    let mut legs = None;
+    let mut result = life_accrue(own, t, inputs, run_options, &mut legs)?;
     let mut reconciled = reconcile_with(&result)?;
     let not_made: Vec<(NaiveDate, NaiveDate)> = reconciled
         .iter()
@@ -391,7 +393,7 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
             }))
             .collect();
         inputs.actual = &with_nothing_posted;
-        result = accrue(t, inputs, run_options)?;
+        result = life_accrue(own, t, inputs, run_options, &mut legs)?;
         reconciled = reconcile_with(&result)?;
     }
     let rows = reconciled
@@ -403,10 +405,24 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         })
         .collect();
     notes.extend(fixing_warnings(entry, &result.fixing_warnings));
-    let closing = events::settle_close(own, t, &inputs, run_options, &mut result)?;
-    if let Some(c) = &closing {
-        notes.extend(life_notes(entry, c, &options.tolerance));
-    }
+    let life = match legs {
+        Some(legs) => {
+            let closing = match legs.last() {
+                Some(leg) => events::settle_close(own, leg, &inputs, run_options, &mut result)?,
+                None => None,
+            };
+            if let Some(c) = &closing {
+                notes.extend(life_notes(entry, c, &options.tolerance));
+            }
+            let figures = Life::figures(own, &legs, &result, options.cutoff);
+            Some(Life {
+                legs,
+                closing,
+                figures,
+            })
+        }
+        None => None,
+    };
     let accrued_check = match account.booked_close {
         Some(booked) => Some(check_accrued(
             t, &inputs, &result, &not_made, booked, options,
@@ -420,8 +436,25 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         notes,
         not_made,
         accrued_check,
-        closing,
+        life,
     })
+}
+
+/// An account's run: the day loop itself for an account without life
+/// events, else its terms one after another (`legs` set to them).
+fn life_accrue(
+    own: &crate::engine::AccountTerms,
+    t: &crate::engine::AccountTerms,
+    inputs: Inputs,
+    options: RunOptions,
+    legs: &mut Option<Vec<events::Leg>>,
+) -> Result<AccountResult, EngineError> {
+    if own.events.is_none() {
+        return accrue(t, inputs, options);
+    }
+    let life = events::accrue_life(own, inputs, options)?;
+    *legs = Some(life.legs);
+    Ok(life.result)
 }
 
 /// The core system's open item at cut-off checked against ours

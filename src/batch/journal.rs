@@ -165,12 +165,11 @@ pub fn penalty_entry(
     if c.penalty.is_zero() || c.date < from || c.date > to {
         return None;
     }
-    let gl = entry
-        .terms
-        .events
-        .gl_penalty
-        .clone()
-        .unwrap_or_else(|| ResolvedGl::of(entry.terms.side, &entry.gl).interest.to_string());
+    let gl = entry.terms.events.gl_penalty.clone().unwrap_or_else(|| {
+        ResolvedGl::of(entry.terms.side, &entry.gl)
+            .interest
+            .to_string()
+    });
     Some((c.date, c.penalty, gl))
 }
 

@@ -588,7 +588,12 @@ fn outcome(
         reconciliation,
         accrued_check,
         notes: run.notes,
-        penalty: journal::penalty_entry(run.closing.as_ref(), entry, options.window_start, options.cutoff),
+        penalty: journal::penalty_entry(
+            run.life.as_ref().and_then(|l| l.closing.as_ref()),
+            entry,
+            options.window_start,
+            options.cutoff,
+        ),
     }
 }
 

@@ -13,8 +13,8 @@ use super::table::Fields;
 use crate::engine::events::{
     AfterKind, AfterMaturity, BreakPenalty, LifeEvents, PenaltyKind, PenaltyLimit,
 };
-use crate::engine::AccountTerms;
 use crate::engine::rates::RateSchedule;
+use crate::engine::AccountTerms;
 use crate::problem::Severity;
 use crate::schema::{column, ACCOUNTS};
 
@@ -76,7 +76,12 @@ pub(crate) fn read(
         PenaltyKind::None => BreakPenalty::None,
         PenaltyKind::Days => match break_days {
             Some(n) => BreakPenalty::Days(n),
-            None => missing(f, "days", "break_days", "the number of days' simple interest charged (1 to 3650)"),
+            None => missing(
+                f,
+                "days",
+                "break_days",
+                "the number of days' simple interest charged (1 to 3650)",
+            ),
         },
         PenaltyKind::Amount => match break_amount {
             Some(a) if a.is_sign_negative() && !a.is_zero() => {
@@ -97,16 +102,21 @@ pub(crate) fn read(
                 Some(s) => BreakPenalty::Rate(r, s),
                 None => BreakPenalty::None,
             },
-            None => missing(f, "rate", "break_rate_ref", "the Rates schedule the term is re-priced at"),
+            None => missing(
+                f,
+                "rate",
+                "break_rate_ref",
+                "the Rates schedule the term is re-priced at",
+            ),
         },
     };
 
     if break_penalty != BreakPenalty::None {
         let unused = match (terms.maturity, close_date) {
             (None, _) => Some("the account has no maturity".to_string()),
-            (Some(m), Some(x)) if x >= m => {
-                Some(format!("the close_date {x} is on or after the maturity {m}"))
-            }
+            (Some(m), Some(x)) if x >= m => Some(format!(
+                "the close_date {x} is on or after the maturity {m}"
+            )),
             _ => None,
         };
         if let Some(why) = unused {
@@ -139,7 +149,12 @@ pub(crate) fn read(
                 Some(s) => AfterMaturity::Rate(r, s),
                 None => AfterMaturity::None,
             },
-            None => missing_after(f, "rate", "matured_rate_ref", "the Rates schedule a matured balance earns"),
+            None => missing_after(
+                f,
+                "rate",
+                "matured_rate_ref",
+                "the Rates schedule a matured balance earns",
+            ),
         },
         AfterKind::Rollover => match rollover_months {
             Some(months) => {
@@ -158,7 +173,12 @@ pub(crate) fn read(
                     None => AfterMaturity::None,
                 }
             }
-            None => missing_after(f, "rollover", "rollover_months", "the months of each new term (1 to 120)"),
+            None => missing_after(
+                f,
+                "rollover",
+                "rollover_months",
+                "the months of each new term (1 to 120)",
+            ),
         },
     };
     LifeEvents {
@@ -183,7 +203,12 @@ fn missing(f: &mut Fields<'_, '_, '_>, kind: &str, column: &str, what: &str) -> 
 }
 
 /// An `after_maturity` kind without its companion column: an error.
-fn missing_after(f: &mut Fields<'_, '_, '_>, kind: &str, column: &str, what: &str) -> AfterMaturity {
+fn missing_after(
+    f: &mut Fields<'_, '_, '_>,
+    kind: &str,
+    column: &str,
+    what: &str,
+) -> AfterMaturity {
     f.report(
         Severity::Error,
         AFTER_MATURITY,

@@ -16,12 +16,13 @@ use rust_decimal::Decimal;
 
 use super::error::EngineError;
 use super::inputs::Inputs;
-use super::rates::{RateSchedule, RateSource};
+use super::rates::{RateSchedule, RateSource, RateTable};
 use super::run::{accrue, AccountResult, PostingRow, RunOptions};
-use super::terms::AccountTerms;
+use super::terms::{AccountTerms, FloatingTerms};
+use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
 use crate::conventions::names::{lookup, UnknownName};
-use crate::conventions::schedule::{Period, Posting};
+use crate::conventions::schedule::{roll_months, Period, Posting};
 
 /// How an early close is penalised (the Accounts column `break_penalty`).
 #[derive(Debug, Clone, Default, PartialEq, Eq)]
@@ -259,7 +260,7 @@ pub struct Closing {
 /// is valued after X.
 pub fn settle_close(
     terms: &AccountTerms,
-    run: &AccountTerms,
+    leg: &Leg,
     inputs: &Inputs,
     options: RunOptions,
     result: &mut AccountResult,
@@ -267,6 +268,8 @@ pub fn settle_close(
     let Some(x) = close_in_run(terms, options.cutoff) else {
         return Ok(None);
     };
+    let run = &leg.terms;
+    let inputs = &leg.inputs(inputs);
     if let Some(m) = inputs.movements.iter().find(|m| m.value_date > x) {
         return Err(EngineError::Unsupported(format!(
             "a movement valued {} after the close_date {x}",
@@ -299,7 +302,7 @@ pub fn settle_close(
             what: "the balance",
             date: x,
         })?;
-    let term_start = terms.open_date;
+    let term_start = run.open_date;
     let term_interest = sum(
         result
             .postings
@@ -308,7 +311,8 @@ pub fn settle_close(
             .map(|p| p.expected),
         x,
     )?;
-    let penalised = terms.maturity.is_none_or(|m| x < m)
+    let penalised = leg.contract_maturity.is_some_and(|m| x < m)
+        && leg.kind != LegKind::Matured
         && terms.events.break_penalty != BreakPenalty::None
         && closing_posting.is_some();
     let mut break_interest = None;
@@ -316,7 +320,7 @@ pub fn settle_close(
         match &terms.events.break_penalty {
             BreakPenalty::None => Decimal::ZERO,
             BreakPenalty::Amount(a) => *a,
-            BreakPenalty::Days(n) => days_penalty(terms, inputs.rates, balance, eve, *n)?,
+            BreakPenalty::Days(n) => days_penalty(run, inputs.rates, balance, eve, *n)?,
             BreakPenalty::Rate(_, schedule) => {
                 let at_break = repriced(run, inputs, options, schedule, term_start, eve)?;
                 break_interest = Some(at_break);
@@ -479,4 +483,353 @@ fn repriced(
 /// Whether `posting` makes no closing posting (a warning with a close).
 pub fn never_posts(terms: &AccountTerms) -> bool {
     terms.posting == Posting::None
+}
+
+/// What one term of an account is run as.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LegKind {
+    /// The account's own term, from its `open_date`.
+    Contract,
+    /// A new term rolled over at a maturity.
+    Rolled,
+    /// A matured balance earning `matured_rate_ref`.
+    Matured,
+}
+
+/// One term of an account's life: the terms it is run with (a close by the
+/// cut-off as its maturity) and the schedule it earns.
+#[derive(Debug, Clone)]
+pub struct Leg {
+    /// The terms run.
+    pub terms: AccountTerms,
+    /// Its own schedule (a rolled term's fixed table, a matured balance's
+    /// schedule); `None`: the account's rates.
+    pub rates: Option<Arc<RateSchedule>>,
+    /// The term's maturity by contract (before any close).
+    pub contract_maturity: Option<NaiveDate>,
+    /// What the term is.
+    pub kind: LegKind,
+}
+
+impl Leg {
+    /// The account's inputs with this term's schedule.
+    pub fn inputs<'a>(&'a self, inputs: &Inputs<'a>) -> Inputs<'a> {
+        match &self.rates {
+            Some(r) => Inputs {
+                rates: r,
+                floating: None,
+                ..*inputs
+            },
+            None => *inputs,
+        }
+    }
+}
+
+/// An account's status at the cut-off (behaviour.md, Account life events).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LifeStatus {
+    /// Earning, or matured and paid out.
+    Open,
+    /// Closed by the cut-off.
+    Closed,
+    /// Matured with a balance not paid out.
+    MaturedUnpaid,
+    /// Rolled over at least once.
+    RolledOver,
+}
+
+impl LifeStatus {
+    /// The word the Accruals sheet shows.
+    pub fn word(self) -> &'static str {
+        match self {
+            LifeStatus::Open => "open",
+            LifeStatus::Closed => "closed",
+            LifeStatus::MaturedUnpaid => "matured unpaid",
+            LifeStatus::RolledOver => "rolled over",
+        }
+    }
+}
+
+/// An account's life run to the cut-off: its terms one after another and
+/// their figures joined into one result.
+#[derive(Debug, Clone)]
+pub struct LifeRun {
+    /// The joined result: postings of every term, the cut-off figures of
+    /// the last, the window's eve figures of the term that holds it.
+    pub result: AccountResult,
+    /// The terms, in order; never empty.
+    pub legs: Vec<Leg>,
+}
+
+/// An account's life at the cut-off: its terms, its close and what the
+/// Accruals sheet shows of it.
+#[derive(Debug, Clone)]
+pub struct Life {
+    /// The terms run, in order.
+    pub legs: Vec<Leg>,
+    /// Its close by the cut-off, when it has one.
+    pub closing: Option<Closing>,
+    /// Its status and current term.
+    pub figures: LifeFigures,
+}
+
+impl Life {
+    /// The account's status, days since maturity, current term start and
+    /// maturity at the cut-off, from its terms and joined `result`.
+    pub fn figures(
+        own: &AccountTerms,
+        legs: &[Leg],
+        result: &AccountResult,
+        cutoff: NaiveDate,
+    ) -> LifeFigures {
+        let last = legs.last();
+        let term_start = Some(last.map_or(own.open_date, |l| l.terms.open_date));
+        let maturity = last.map_or(own.maturity, |l| l.contract_maturity);
+        let first_maturity = own.maturity.filter(|m| *m <= cutoff);
+        let status = if close_in_run(own, cutoff).is_some() {
+            LifeStatus::Closed
+        } else if legs.iter().any(|l| l.kind == LegKind::Rolled) {
+            LifeStatus::RolledOver
+        } else if first_maturity.is_some() && !result.balance_at_cutoff.is_zero() {
+            LifeStatus::MaturedUnpaid
+        } else {
+            LifeStatus::Open
+        };
+        let days_since_maturity = match (status, first_maturity) {
+            (LifeStatus::MaturedUnpaid, Some(m)) => Some((cutoff - m).num_days() + 1),
+            _ => None,
+        };
+        LifeFigures {
+            status,
+            days_since_maturity,
+            term_start,
+            maturity,
+        }
+    }
+}
+
+/// The life figures of an account: its own when it has life events, else
+/// those of its terms and run alone (a matured balance not paid out).
+pub fn figures_of(
+    own: &AccountTerms,
+    life: Option<&Life>,
+    result: &AccountResult,
+    cutoff: NaiveDate,
+) -> LifeFigures {
+    match life {
+        Some(l) => l.figures,
+        None => Life::figures(own, &[], result, cutoff),
+    }
+}
+
+/// What the Accruals sheet shows of an account's life.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct LifeFigures {
+    /// Its status at the cut-off.
+    pub status: LifeStatus,
+    /// C - M + 1 for a matured balance not paid out.
+    pub days_since_maturity: Option<i64>,
+    /// The first day of the current term.
+    pub term_start: Option<NaiveDate>,
+    /// The current term's maturity.
+    pub maturity: Option<NaiveDate>,
+}
+
+/// Runs `own` to the cut-off term by term (behaviour.md, Account life
+/// events): its own term, then from a maturity before the cut-off either a
+/// matured balance earning `matured_rate_ref` or a new term at each
+/// maturity; a close by the cut-off ends the term it falls in.
+///
+/// # Errors
+/// An [`EngineError`] from a term's run, or no rollover table in force on a maturity.
+pub fn accrue_life(
+    own: &AccountTerms,
+    inputs: Inputs,
+    options: RunOptions,
+) -> Result<LifeRun, EngineError> {
+    let c = options.cutoff;
+    let x = close_in_run(own, c);
+    let mut leg = Leg {
+        terms: with_close(own.clone(), own.maturity, x),
+        rates: None,
+        contract_maturity: own.maturity,
+        kind: LegKind::Contract,
+    };
+    let mut legs: Vec<Leg> = Vec::new();
+    let mut results: Vec<AccountResult> = Vec::new();
+    loop {
+        // The term matures by the cut-off, before any close, and something follows.
+        let next_at = leg
+            .contract_maturity
+            .filter(|m| *m <= c && x.is_none_or(|x| *m < x))
+            .filter(|_| own.events.after_maturity != AfterMaturity::None);
+        let Some(m) = next_at else {
+            let r = accrue(&leg.terms, leg.inputs(&inputs), options)?;
+            results.push(r);
+            legs.push(leg);
+            break;
+        };
+        let eve = m
+            .pred_opt()
+            .ok_or(EngineError::Unsupported("a date out of range".into()))?;
+        let r = accrue(
+            &leg.terms,
+            leg.inputs(&inputs),
+            RunOptions {
+                cutoff: eve,
+                ..options
+            },
+        )?;
+        let principal = r.balance_at_cutoff;
+        results.push(r);
+        let next = next_leg(own, &leg, m, principal, x)?;
+        legs.push(std::mem::replace(&mut leg, next));
+    }
+    Ok(LifeRun {
+        result: join(&legs, results, options)?,
+        legs,
+    })
+}
+
+/// `terms` with a close on X by the cut-off as its maturity, when before `maturity`.
+fn with_close(
+    mut terms: AccountTerms,
+    maturity: Option<NaiveDate>,
+    x: Option<NaiveDate>,
+) -> AccountTerms {
+    terms.maturity = match (maturity, x) {
+        (Some(m), Some(x)) if x < m => Some(x),
+        (None, Some(x)) => Some(x),
+        _ => maturity,
+    };
+    terms
+}
+
+/// The term that starts at the maturity `m` of `leg`, on `principal`.
+fn next_leg(
+    own: &AccountTerms,
+    leg: &Leg,
+    m: NaiveDate,
+    principal: Decimal,
+    x: Option<NaiveDate>,
+) -> Result<Leg, EngineError> {
+    let base = AccountTerms {
+        open_date: m,
+        opening_balance: principal,
+        opening_accrued: Decimal::ZERO,
+        period_start: None,
+        floating: FloatingTerms::default(),
+        ..leg.terms.clone()
+    };
+    match &own.events.after_maturity {
+        AfterMaturity::Rate(_, schedule) => Ok(Leg {
+            terms: AccountTerms {
+                compounding: Compounding::Simple,
+                posting: if x.is_some() {
+                    Posting::Maturity
+                } else {
+                    Posting::None
+                },
+                anchor: None,
+                maturity: x,
+                ..base
+            },
+            rates: Some(Arc::clone(schedule)),
+            contract_maturity: None,
+            kind: LegKind::Matured,
+        }),
+        AfterMaturity::Rollover { months, rates, .. } => {
+            let months = i32::try_from(*months)
+                .map_err(|_| EngineError::Unsupported("a rollover term too long".into()))?;
+            let rolled = roll_months(m, months).ok_or(EngineError::Unsupported(
+                "a rolled maturity out of range".into(),
+            ))?;
+            let table = rates.table_on(m).ok_or_else(|| EngineError::NoRate {
+                date: m,
+                first: rates
+                    .first_effective()
+                    .map_or_else(|| "none".to_string(), |d| d.to_string()),
+            })?;
+            let fixed = RateSchedule::from_tables(vec![RateTable {
+                effective: m,
+                tiers: table.tiers.clone(),
+            }]);
+            Ok(Leg {
+                terms: with_close(base, Some(rolled), x),
+                rates: Some(Arc::new(fixed)),
+                contract_maturity: Some(rolled),
+                kind: LegKind::Rolled,
+            })
+        }
+        AfterMaturity::None => Err(EngineError::Unsupported(
+            "a new term without after_maturity".into(),
+        )),
+    }
+}
+
+/// The terms' results joined: every posting, the cut-off figures of the
+/// last term, the window's eve figures of the term that holds the eve.
+fn join(
+    legs: &[Leg],
+    mut results: Vec<AccountResult>,
+    options: RunOptions,
+) -> Result<AccountResult, EngineError> {
+    if results.len() == 1 {
+        if let Some(r) = results.pop() {
+            return Ok(r);
+        }
+    }
+    let f = options.window_start;
+    let eve = f.pred_opt().unwrap_or(f);
+    // The term whose days hold F-1: the last that opened on or before it.
+    let holder = legs
+        .iter()
+        .rposition(|l| l.terms.open_date <= eve)
+        .unwrap_or(0);
+    let mut iter = results.into_iter().enumerate();
+    let Some((_, mut joined)) = iter.next() else {
+        return Err(EngineError::Unsupported("an account with no term".into()));
+    };
+    let mut before = if holder == 0 {
+        Some((
+            joined.accrued_before_window,
+            std::mem::take(&mut joined.back_value_before_window),
+        ))
+    } else {
+        None
+    };
+    for (i, r) in iter {
+        if i == holder {
+            before = Some((r.accrued_before_window, r.back_value_before_window));
+        }
+        joined.postings.extend(r.postings);
+        joined.days.extend(r.days);
+        joined.spans.extend(r.spans);
+        joined.fixing_warnings.extend(r.fixing_warnings);
+        joined.balance_at_cutoff = r.balance_at_cutoff;
+        joined.accrued_at_cutoff = r.accrued_at_cutoff;
+        joined.rate_at_cutoff = r.rate_at_cutoff;
+        joined.effective_annual_rate = r.effective_annual_rate;
+    }
+    let (accrued_before, back_value) = before.unwrap_or_default();
+    joined.accrued_before_window = accrued_before;
+    joined.back_value_before_window = back_value;
+    let c = options.cutoff;
+    joined.posted_in_window = sum(
+        joined
+            .postings
+            .iter()
+            .filter(|p| p.end >= f && p.end <= c)
+            .map(|p| p.posted),
+        c,
+    )?;
+    joined.interest_for_window = joined
+        .posted_in_window
+        .checked_add(joined.accrued_at_cutoff)
+        .and_then(|x| x.checked_sub(joined.accrued_before_window))
+        .ok_or(EngineError::Overflow {
+            what: "the interest for the window",
+            date: c,
+        })?;
+    Ok(joined)
 }
