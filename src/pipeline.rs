@@ -396,7 +396,7 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         result = life_accrue(own, t, inputs, run_options, &mut legs)?;
         reconciled = reconcile_with(&result)?;
     }
-    let rows = reconciled
+    let mut rows: Vec<CheckedRow> = reconciled
         .into_iter()
         .map(|row| CheckedRow {
             likely_cause: matches!(row.status, Status::OverPosted | Status::UnderPosted)
@@ -413,6 +413,12 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
             };
             if let Some(c) = &closing {
                 notes.extend(life_notes(entry, c, &options.tolerance));
+                for r in &mut rows {
+                    if let Some(cause) = r.likely_cause.as_mut() {
+                        let places = t.minor_units;
+                        events::net_of_penalty(c, &r.row, &options.tolerance, places, cause);
+                    }
+                }
             }
             let figures = Life::figures(own, &legs, &result, options.cutoff);
             Some(Life {

@@ -14,9 +14,11 @@ use std::sync::Arc;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
+use super::causes::{ChangeKind, Found, LikelyCause};
 use super::error::EngineError;
 use super::inputs::Inputs;
 use super::rates::{RateSchedule, RateSource, RateTable};
+use super::reconcile::{variance_bp, Reconciled, Tolerance};
 use super::run::{accrue, AccountResult, PostingRow, RunOptions};
 use super::terms::{AccountTerms, FloatingTerms};
 use crate::conventions::compounding::Compounding;
@@ -832,4 +834,44 @@ fn join(
             date: c,
         })?;
     Ok(joined)
+}
+
+/// The cause search's finding for the closing period's statement row, with
+/// "interest posted net of the break penalty (X)" first when the row shows
+/// the closing posting less the penalty (behaviour.md, Account life events).
+pub fn net_of_penalty(
+    closing: &Closing,
+    row: &Reconciled,
+    tolerance: &Tolerance,
+    places: u32,
+    cause: &mut LikelyCause,
+) {
+    let x = closing.date;
+    if closing.penalty.is_zero() || row.end.succ_opt() != Some(x) {
+        return;
+    }
+    let Some(gap) = row
+        .expected
+        .checked_sub(closing.penalty)
+        .and_then(|net| row.posted.checked_sub(net))
+    else {
+        return;
+    };
+    if !tolerance.accepts(gap, variance_bp(gap, row.balance_years), places) {
+        return;
+    }
+    let how = if gap.is_zero() {
+        "reproduces the posted amount exactly".to_string()
+    } else {
+        format!("comes within {}", gap.abs())
+    };
+    cause.found.insert(
+        0,
+        Found {
+            words: format!("interest posted net of the break penalty ({x}) ({how})"),
+            gap: gap.abs(),
+            kind: ChangeKind::BreakPenalty,
+        },
+    );
+    cause.implied = None;
 }

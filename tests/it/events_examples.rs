@@ -526,3 +526,31 @@ fn spec_example_b4_rollover() {
     // 32 nights at 3.50% on 100,997.26 = 309.9090...
     assert_eq!(later.result.accrued_at_cutoff, dec("309.91"));
 }
+
+/// A statement that shows the closing posting net of the penalty is
+/// reconciled against the closing posting before it, and the cause search
+/// names the penalty.
+#[test]
+fn a_closing_row_net_of_the_penalty_names_it_as_the_likely_cause() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = good(book(
+        dir.path(),
+        "TD-B2,USD,ACT/360,2026-08-01,250000.00,simple,maturity,no,2027-02-01,2026-11-16,rate,,TD-BREAK,,,,,,,\n",
+        "TD-B2,2026-01-01,5.00\nTD-BREAK,2026-01-01,2.00\n",
+        "",
+        "TD-B2,2026-08-01,2026-11-15,1486.11\n",
+    ));
+    let run = account_run(&book, "TD-B2", "2026-11-30");
+    let row = run
+        .rows
+        .iter()
+        .find(|r| r.row.end == date("2026-11-15"))
+        .unwrap();
+    assert_eq!(row.row.expected, dec("3715.28"));
+    assert_eq!(row.row.status, Status::UnderPosted);
+    let cause = row.likely_cause.as_ref().unwrap().text();
+    assert!(
+        cause.starts_with("interest posted net of the break penalty (2026-11-16)"),
+        "{cause}"
+    );
+}
