@@ -581,6 +581,7 @@ fn outcome(
                 open_item: f.open_item,
                 settled_in_window: f.settled_in_window,
             },
+            life: Some(life_line(t, run.life.as_ref(), &r, options.cutoff)),
         },
         gl,
         settlements,
@@ -594,6 +595,24 @@ fn outcome(
             options.window_start,
             options.cutoff,
         ),
+    }
+}
+
+/// An account's status and current term at the cut-off (behaviour.md,
+/// Account life events).
+fn life_line(
+    t: &crate::engine::AccountTerms,
+    life: Option<&crate::engine::events::Life>,
+    result: &crate::engine::AccountResult,
+    cutoff: NaiveDate,
+) -> crate::report::model::LifeLine {
+    let f = crate::engine::events::figures_of(t, life, result, cutoff);
+    crate::report::model::LifeLine {
+        from_events: life.is_some(),
+        status: f.status.word().into(),
+        days_since_maturity: f.days_since_maturity,
+        term_start: f.term_start,
+        maturity: f.maturity,
     }
 }
 

@@ -292,6 +292,7 @@ mod tests {
                 open_item: n(oc),
                 ..LedgerLine::default()
             },
+            life: None,
         }
     }
 

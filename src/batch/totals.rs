@@ -41,6 +41,7 @@ use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, Statu
 ///     interest_for_window: Decimal::new(accrued, 2),
 ///     effective_annual_rate: None,
 ///     ledger: Default::default(),
+///     life: None,
 /// };
 /// let mut totals = Totals::default();
 /// totals.add(&line("USD", "liability", 125));

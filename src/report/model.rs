@@ -146,6 +146,25 @@ pub struct AccrualLine {
     pub effective_annual_rate: Option<Decimal>,
     /// Its GL accounts and what the ledger holds for it (behaviour.md, Books that tie).
     pub ledger: LedgerLine,
+    /// Its status and current term (behaviour.md, Account life events);
+    /// `None` when not worked out (a workbook read back without them).
+    pub life: Option<LifeLine>,
+}
+
+/// An account's life at the cut-off, for the Accruals sheet.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct LifeLine {
+    /// Whether the account has a life-event term (close, penalty, after
+    /// maturity): the Accruals sheet shows these columns when one does.
+    pub from_events: bool,
+    /// `open`, `closed`, `matured unpaid` or `rolled over`.
+    pub status: Word,
+    /// C - M + 1 for a matured balance not paid out.
+    pub days_since_maturity: Option<i64>,
+    /// The first day of the current term.
+    pub term_start: Option<NaiveDate>,
+    /// The current term's maturity.
+    pub maturity: Option<NaiveDate>,
 }
 
 /// An account's GL accounts (defaults resolved) and its ledger figures.

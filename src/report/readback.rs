@@ -27,14 +27,14 @@ use super::error::ReportError;
 use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
     AccrualLine, DailyLine, DetailLine, DetailRow, InputFile, JournalDetail, JournalLine,
-    LedgerLine, LeftOutLine, ReconciliationLine, RunFacts, Setting, SettingSource, TieOutLine,
-    TieStatus,
+    LedgerLine, LeftOutLine, LifeLine, ReconciliationLine, RunFacts, Setting, SettingSource,
+    TieOutLine, TieStatus,
 };
 use super::workbook::{
     is_writer_note, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ, ACCRUALS_HEADER,
-    ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER, JOURNAL_HEADER,
-    LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER, RUN_COMMAND_LINE,
-    RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
+    ACCRUALS_LIFE_HEADER, ACCRUED_CHECK_HEADER, DAILY_HEADER, INPUTS_HEADER, JOURNAL_DETAIL_HEADER,
+    JOURNAL_HEADER, LEFT_OUT_HEADER, LEFT_OUT_TITLE, PROBLEMS_HEADER, RECONCILIATION_HEADER,
+    RUN_COMMAND_LINE, RUN_PROGRAM, RUN_TIME, SETTINGS_HEADER, SUMMARY_COLS, TIE_OUT_HEADER,
 };
 use crate::book::cell::{self, Cell, NumberStyle};
 use crate::conventions::currency;
@@ -421,7 +421,11 @@ impl Written {
     }
 
     fn accruals(&mut self) -> Result<Vec<AccrualLine>, ReportError> {
-        let list = self.required_list("Accruals", &ACCRUALS_HEADER)?;
+        // A run with life events writes four more columns.
+        let (list, life) = match self.list("Accruals", &ACCRUALS_LIFE_HEADER) {
+            Ok(Some(list)) => (list, true),
+            _ => (self.required_list("Accruals", &ACCRUALS_HEADER)?, false),
+        };
         list.rows(&self.path)
             .map(|r| {
                 let currency = r.text(2);
@@ -451,6 +455,17 @@ impl Written {
                         gl_accrued: r.text(19).into(),
                         gl_settlement: r.text(20).into(),
                         gl_prior_period: r.text(21).into(),
+                    },
+                    life: if life {
+                        Some(LifeLine {
+                            from_events: true,
+                            status: r.text(22).into(),
+                            days_since_maturity: r.optional_count(23)?,
+                            term_start: r.optional_date(24)?,
+                            maturity: r.optional_date(25)?,
+                        })
+                    } else {
+                        None
                     },
                 })
             })
@@ -841,6 +856,14 @@ impl Row<'_> {
             };
             self.error(col, &found, "a count (a whole number)")
         })
+    }
+
+    /// A count the writer leaves blank when there is none.
+    fn optional_count(&self, col: usize) -> Result<Option<i64>, ReportError> {
+        if self.text(col).is_empty() {
+            return Ok(None);
+        }
+        self.count(col).map(|n| i64::try_from(n).ok())
     }
 
     fn tie_status(&self, col: usize) -> Result<TieStatus, ReportError> {

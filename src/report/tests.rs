@@ -442,6 +442,7 @@ fn accrual(account: &str, currency: &'static str, minor_units: u32, balance: &st
         interest_for_window: dec("0.25"),
         effective_annual_rate: Some(dec("0.0512")),
         ledger: Default::default(),
+        life: None,
     }
 }
 

@@ -63,6 +63,38 @@ pub const ACCRUALS_HEADER: [&str; 22] = [
     "GL prior period",
 ];
 
+/// Header labels of the Accruals sheet when an account of the run has a
+/// life event (behaviour.md, Account life events): [`ACCRUALS_HEADER`],
+/// then each account's status and current term.
+pub const ACCRUALS_LIFE_HEADER: [&str; 26] = [
+    "Account",
+    "Name",
+    "Currency",
+    "Side",
+    "Day count",
+    "Compounding",
+    "Balance at cut-off",
+    "Accrued at cut-off",
+    "Posted in window",
+    "Interest for window",
+    "Effective annual rate",
+    "Window days' interest",
+    "Booked opening",
+    "Opening from",
+    "Prior-period adjustment",
+    "Open item at cut-off",
+    "Settled in window",
+    "Entity",
+    "GL interest",
+    "GL accrued",
+    "GL settlement",
+    "GL prior period",
+    "Status",
+    "Days since maturity",
+    "Term start",
+    "Maturity",
+];
+
 /// Header labels of the Reconciliation sheet.
 pub const RECONCILIATION_HEADER: [&str; 12] = [
     "Account",
@@ -467,7 +499,15 @@ fn write_lists(
     report: &Report,
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    if report
+        .accruals
+        .iter()
+        .any(|a| a.life.as_ref().is_some_and(|l| l.from_events))
+    {
+        write_list(wb, &ACCRUALS_LIFE, &report.accruals, ctx)?;
+    } else {
+        write_list(wb, &ACCRUALS, &report.accruals, ctx)?;
+    }
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
@@ -556,6 +596,30 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     row: accrual_row,
     columns: accrual_columns,
 };
+
+/// The Accruals with each account's status and current term.
+const ACCRUALS_LIFE: ListSheet<AccrualLine> = ListSheet {
+    header: &ACCRUALS_LIFE_HEADER,
+    caps: &[
+        24, 32, 10, 12, 16, 18, 24, 24, 24, 24, 22, 24, 24, 18, 24, 24, 24, 24, 32, 32, 32, 32, 16,
+        12, 14, 14,
+    ],
+    notes: &[
+        (11, WINDOW_DAYS_GLOSS),
+        (12, BOOKED_OPENING_GLOSS),
+        (14, PRIOR_PERIOD_GLOSS),
+        (15, OPEN_ITEM_GLOSS),
+        (22, STATUS_GLOSS),
+    ],
+    row: accrual_life_row,
+    columns: accrual_life_columns,
+    ..ACCRUALS
+};
+
+/// The Accruals' status, for the note of its header.
+pub const STATUS_GLOSS: &str = "Status: open; closed (close_date on or before the cut-off); \
+    matured unpaid (a balance left after maturity, with the days since); rolled over (a new \
+    term started at maturity: Term start and Maturity are the current term's).";
 
 /// Widest widths of the Reconciliation's columns, and of the Accrued
 /// check's, laid out alike.
@@ -822,6 +886,12 @@ fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Fo
     ]
 }
 
+fn accrual_life_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
+    let mut columns = accrual_columns(s, rows);
+    columns.extend([Some(&s.text), Some(&s.count), Some(&s.date), Some(&s.date)]);
+    columns
+}
+
 fn reconciliation_columns<'s>(
     s: &'s Styles,
     rows: &[ReconciliationLine],
@@ -920,6 +990,23 @@ fn accrual_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
     c.text(19, &l.gl_accrued)?;
     c.text(20, &l.gl_settlement)?;
     c.text(21, &l.gl_prior_period)?;
+    Ok(())
+}
+
+fn accrual_life_row(c: &mut Cells<'_>, a: &AccrualLine) -> Result<(), ReportError> {
+    accrual_row(c, a)?;
+    if let Some(l) = &a.life {
+        c.text(22, &l.status)?;
+        if let Some(days) = l.days_since_maturity {
+            c.count(23, i128::from(days))?;
+        }
+        if let Some(d) = l.term_start {
+            c.date(24, d)?;
+        }
+        if let Some(d) = l.maturity {
+            c.date(25, d)?;
+        }
+    }
     Ok(())
 }
 

@@ -70,6 +70,7 @@ fn report() -> Report {
             interest_for_window: dec("-12.5"),
             effective_annual_rate: Some(dec("0.0330286")),
             ledger: Default::default(),
+            life: None,
         };
     let mut big = accrual("HM-BIG-001", "USD", 2, "1000000000000000.55", "0.00");
     big.effective_annual_rate = None;
