@@ -241,7 +241,19 @@ pub fn run_books(
     }
     let names: Vec<String> = books.iter().map(|b| b.path.display().to_string()).collect();
     sort_left_out(&mut sums.result.left_out, &names);
-    sums.finish(books)
+    let mut result = sums.finish(books);
+    // Every shard of books with a life event shows the status columns.
+    if books
+        .iter()
+        .any(|b| b.accounts.iter().any(|a| !a.terms.events.is_none()))
+    {
+        for line in &mut result.accruals {
+            if let Some(l) = line.life.as_mut() {
+                l.shown = true;
+            }
+        }
+    }
+    result
 }
 
 /// The accounts each book's reader left out (of the shard, if any), each
@@ -608,7 +620,7 @@ fn life_line(
 ) -> crate::report::model::LifeLine {
     let f = crate::engine::events::figures_of(t, life, result, cutoff);
     crate::report::model::LifeLine {
-        from_events: life.is_some(),
+        shown: life.is_some(),
         status: f.status.word().into(),
         days_since_maturity: f.days_since_maturity,
         term_start: f.term_start,

@@ -15,8 +15,8 @@ use crate::engine::events::{
 };
 use crate::engine::rates::RateSchedule;
 use crate::engine::AccountTerms;
-use crate::problem::Severity;
-use crate::schema::{column, ACCOUNTS};
+use crate::problem::{FollowOn, Severity};
+use crate::schema::{column, SheetKind, ACCOUNTS};
 
 const OPEN_DATE: usize = column!(ACCOUNTS, "open_date");
 const CLOSE_DATE: usize = column!(ACCOUNTS, "close_date");
@@ -263,6 +263,14 @@ fn schedule(
                 &format!("a schedule of the Rates sheet for {which}"),
                 &fix,
             );
+            if !rates.read {
+                // The Rates sheet's own problem is the one to fix.
+                let label = SheetKind::Rates.label();
+                f.follows(|book| match &rates.sheet {
+                    Some(sheet) => FollowOn::unreadable_sheet(book, label, sheet),
+                    None => FollowOn::missing_sheet(book, label),
+                });
+            }
             None
         }
     }

@@ -154,9 +154,10 @@ pub struct AccrualLine {
 /// An account's life at the cut-off, for the Accruals sheet.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct LifeLine {
-    /// Whether the account has a life-event term (close, penalty, after
-    /// maturity): the Accruals sheet shows these columns when one does.
-    pub from_events: bool,
+    /// Whether the Accruals sheet shows these columns: the books of the run
+    /// hold an account with a life-event term (close, penalty, after
+    /// maturity), so every shard of them shows them too.
+    pub shown: bool,
     /// `open`, `closed`, `matured unpaid` or `rolled over`.
     pub status: Word,
     /// C - M + 1 for a matured balance not paid out.

@@ -458,7 +458,7 @@ impl Written {
                     },
                     life: if life {
                         Some(LifeLine {
-                            from_events: true,
+                            shown: true,
                             status: r.text(22).into(),
                             days_since_maturity: r.optional_count(23)?,
                             term_start: r.optional_date(24)?,

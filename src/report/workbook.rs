@@ -63,8 +63,8 @@ pub const ACCRUALS_HEADER: [&str; 22] = [
     "GL prior period",
 ];
 
-/// Header labels of the Accruals sheet when an account of the run has a
-/// life event (behaviour.md, Account life events): [`ACCRUALS_HEADER`],
+/// Header labels of the Accruals sheet when the books of the run hold an
+/// account with a life event (behaviour.md, Account life events): [`ACCRUALS_HEADER`],
 /// then each account's status and current term.
 pub const ACCRUALS_LIFE_HEADER: [&str; 26] = [
     "Account",
@@ -502,7 +502,7 @@ fn write_lists(
     if report
         .accruals
         .iter()
-        .any(|a| a.life.as_ref().is_some_and(|l| l.from_events))
+        .any(|a| a.life.as_ref().is_some_and(|l| l.shown))
     {
         write_list(wb, &ACCRUALS_LIFE, &report.accruals, ctx)?;
     } else {
