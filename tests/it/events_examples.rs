@@ -377,7 +377,7 @@ fn a_close_after_the_cutoff_changes_nothing() {
 #[test]
 fn bad_life_event_columns_are_problems_naming_the_cell() {
     let rates = "TD,2026-01-01,4.00\n";
-    let cases: [(&str, &str, Severity, &str); 6] = [
+    let cases: [(&str, &str, Severity, &str); 10] = [
         (
             "TD,USD,ACT/365F,2026-11-02,10000,simple,monthly,no,2027-05-03,2026-11-02,,,,,,,,,,\n",
             "J2",
@@ -414,6 +414,10 @@ fn bad_life_event_columns_are_problems_naming_the_cell() {
             Severity::Error,
             "break_amount with break_penalty amount",
         ),
+        ("TD,USD,ACT/365F,2026-11-02,10000,simple,monthly,no,2027-05-03,,rate,,,,,,,,,\n", "K2", Severity::Error, "break_rate_ref with break_penalty rate"),
+        ("TD,USD,ACT/365F,2026-11-02,10000,simple,monthly,no,2027-05-03,2027-05-10,days,7,,,,,,,,\n", "K2", Severity::Note, "a break penalty on a close before maturity"),
+        ("TD,USD,ACT/365F,2026-11-02,10000,simple,monthly,no,2027-05-03,,,,,,,,rate,,,\n", "Q2", Severity::Error, "matured_rate_ref with after_maturity rate"),
+        ("TD,USD,ACT/365F,2026-11-02,10000,simple,monthly,no,2027-05-03,,,,,,,,rollover,,,NOPE\n", "Q2", Severity::Error, "rollover_months with after_maturity rollover"),
     ];
     for (row, cell, severity, expected) in cases {
         let dir = tempfile::tempdir().unwrap();
@@ -553,4 +557,26 @@ fn a_closing_row_net_of_the_penalty_names_it_as_the_likely_cause() {
         cause.starts_with("interest posted net of the break penalty (2026-11-16)"),
         "{cause}"
     );
+}
+
+/// A withdrawal before maturity on an account with a break penalty is a
+/// note: it carries no penalty.
+#[test]
+fn a_partial_withdrawal_before_maturity_is_a_note() {
+    let dir = tempfile::tempdir().unwrap();
+    let b = book(
+        dir.path(),
+        "TD,USD,ACT/365F,2026-11-02,10000,simple,maturity,no,2027-05-03,,days,7,,,,,,,,\n",
+        "TD,2026-01-01,4.00\n",
+        "TD,2026-11-20,-500.00\n",
+        "",
+    );
+    let p = b
+        .problems
+        .iter()
+        .find(|p| p.expected.contains("a withdrawal before maturity"))
+        .unwrap_or_else(|| panic!("{:?}", b.problems));
+    assert_eq!(p.severity, Severity::Note);
+    assert!(p.position.cell.ends_with("C2"), "{:?}", p.position);
+    assert!(!b.has_errors(), "{:?}", b.problems);
 }
