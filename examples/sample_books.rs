@@ -12,12 +12,13 @@ use ledgerate::batch::journal::JournalStyle;
 use ledgerate::batch::{run_books, BatchSettings};
 use ledgerate::book::{read_book, ReadOptions};
 use ledgerate::conventions::daycount::Basis;
+use ledgerate::engine::events::accrue_life;
 use ledgerate::engine::floating::{FixingFallback, FloatingRates};
 use ledgerate::engine::ledger::SettlementLines;
 use ledgerate::engine::rates::{RateSchedule, RateTable};
 use ledgerate::engine::reconcile::expected_over;
 use ledgerate::engine::reconcile::Tolerance;
-use ledgerate::engine::run::{accrue, RunOptions};
+use ledgerate::engine::run::RunOptions;
 use ledgerate::engine::{AccountTerms, Inputs, Movement};
 use ledgerate::schema::{
     layout, Layout, ACCOUNTS, ACCRUAL_STATUS, BOOKED, FIXINGS, HOLIDAYS, MOVEMENTS, RATES,
@@ -91,6 +92,12 @@ const ACCOUNT_LAYOUT: Layout = layout!(
     "rate_method",
     "lookback_days",
     "observation_shift",
+    "close_date",
+    "break_penalty",
+    "break_days",
+    "after_maturity",
+    "rollover_months",
+    "rollover_rate_ref",
 );
 
 /// One account row: the columns of `ACCOUNT_LAYOUT`, by name.
@@ -230,6 +237,60 @@ fn sheets() -> Vec<Sheet> {
         ]));
         rates.push(rate(id, "2026-01-01", pct, ""));
     }
+
+    // Life events: a saver closed on 18 November and paid out, a term deposit
+    // broken on 12 November with 30 days' interest as penalty, and one rolled
+    // over for three months at its 31 October maturity.
+    accounts.push(account(&[
+        ("account", t("HM-SAV-CLS")),
+        ("name", t("Driftwood Lane joint saver")),
+        ("currency", t("USD")),
+        ("day_count", t("ACT/365F")),
+        ("open_date", date("2026-10-01")),
+        ("opening_balance", num("42000.00")),
+        ("close_date", date("2026-11-18")),
+        ("gl_interest", t("5110")),
+        ("gl_accrued", t("2210")),
+    ]));
+    rates.push(rate("HM-SAV-CLS", "2026-01-01", "2.40", ""));
+    // 42,000.00 + 17 nights at 2.40% (46.95) paid out on the close date.
+    movements.push(mv("HM-SAV-CLS", "2026-11-18", "-42046.95", "", "CLS-1118"));
+    accounts.push(account(&[
+        ("account", t("HM-TD-BRK")),
+        ("name", t("Harbourview fixed-term deposit, broken early")),
+        ("currency", t("USD")),
+        ("day_count", t("ACT/365F")),
+        ("posting", t("maturity")),
+        ("open_date", date("2026-09-15")),
+        ("opening_balance", num("60000.00")),
+        ("maturity", date("2027-03-15")),
+        ("close_date", date("2026-11-12")),
+        ("break_penalty", t("days")),
+        ("break_days", num("30")),
+        ("gl_interest", t("5130")),
+        ("gl_accrued", t("2220")),
+    ]));
+    rates.push(rate("HM-TD-BRK", "2026-01-01", "4.20", ""));
+    // 60,000.00 + 58 nights at 4.20% (400.44) - 30 days' interest (207.12).
+    movements.push(mv("HM-TD-BRK", "2026-11-12", "-60193.32", "", "BRK-1112"));
+    accounts.push(account(&[
+        ("account", t("HM-TD-ROLL")),
+        ("name", t("Harbourview rolling term deposit")),
+        ("currency", t("USD")),
+        ("day_count", t("ACT/365F")),
+        ("posting", t("maturity")),
+        ("capitalise", t("yes")),
+        ("open_date", date("2026-08-31")),
+        ("opening_balance", num("150000.00")),
+        ("maturity", date("2026-10-31")),
+        ("after_maturity", t("rollover")),
+        ("rollover_months", num("3")),
+        ("rollover_rate_ref", t("TD-ROLL")),
+        ("gl_interest", t("5130")),
+        ("gl_accrued", t("2220")),
+    ]));
+    rates.push(rate("HM-TD-ROLL", "2026-01-01", "4.00", ""));
+    rates.push(rate("TD-ROLL", "2026-10-01", "3.75", ""));
 
     // Member loans on ACT/360, paying on the 15th; the lending rate falls on 5 November.
     rates.push(rate("LOAN-BASE", "2026-01-01", "6.25", ""));
@@ -761,7 +822,8 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
                 breaks: &[],
                 floating,
             };
-            accrue(t, src, options)
+            // An account's life events (a close, new terms) shape its postings.
+            accrue_life(t, src, options).map(|l| l.result)
         };
         let right = run(&entry.terms, rates, &movements)?;
         let mistake = planted(id);

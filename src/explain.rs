@@ -16,6 +16,7 @@ use rust_decimal::Decimal;
 
 use crate::book::{AccountEntry, Book, UnreadableStatement};
 use crate::engine::causes::LikelyCause;
+use crate::engine::events::{LegKind, Life};
 use crate::engine::floating::FixingUsed;
 use crate::engine::ledger::LedgerFigures;
 use crate::engine::reconcile::Status;
@@ -62,6 +63,9 @@ pub struct Explanation {
     /// cut to the days shown), for an account with Accrual status rows,
     /// interest receipts or an opening suspense.
     pub suspense: Option<Suspense>,
+    /// Its terms one after another, its close and penalty (behaviour.md,
+    /// Account life events), when it has life events.
+    pub life: Option<Life>,
 }
 
 /// The account's terms as explain's first lines name them.
@@ -209,6 +213,7 @@ impl Explanation {
                 s.days.retain(|d| d.date >= shown.0 && d.date <= shown.1);
                 s
             }),
+            life: run.life,
         }
     }
 }
@@ -252,6 +257,9 @@ pub fn print(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
     print_days(x, out)?;
     print_postings(x, out)?;
     print_statements(x, out)?;
+    if let Some(life) = &x.life {
+        print_life(life, x.header.minor_units, out)?;
+    }
     for n in &x.notes {
         writeln!(out, "{n}")?;
     }
@@ -326,6 +334,90 @@ fn print_suspense(x: &Explanation, out: &mut dyn Write) -> io::Result<()> {
         )?;
     }
     Ok(())
+}
+
+/// The account's life: each term after the first, its close with the
+/// closing posting, the penalty and what a limit waived, and the payout.
+fn print_life(life: &Life, places: u32, out: &mut dyn Write) -> io::Result<()> {
+    let a = |v: Decimal| fmt_amount(v, places);
+    for leg in life.legs.iter().filter(|l| l.kind != LegKind::Contract) {
+        let t = &leg.terms;
+        let rate = leg
+            .rates
+            .as_ref()
+            .and_then(|r| r.tables().first())
+            .and_then(|t| t.tiers.first())
+            .map_or_else(String::new, |x| {
+                format!(" at {}%", (x.rate * Decimal::ONE_HUNDRED).normalize())
+            });
+        match leg.kind {
+            LegKind::Rolled => writeln!(
+                out,
+                "rolled over on {}: principal {}{rate}, fixed for the term, maturity {}",
+                t.open_date,
+                a(t.opening_balance),
+                leg.contract_maturity
+                    .map_or_else(String::new, |m| m.to_string())
+            )?,
+            _ => writeln!(
+                out,
+                "matured on {}: balance {} earns the matured rate from then, simple{rate}",
+                t.open_date,
+                a(t.opening_balance)
+            )?,
+        }
+    }
+    let Some(c) = &life.closing else {
+        return Ok(());
+    };
+    let x = c.date;
+    match &c.closing_posting {
+        Some(p) => writeln!(
+            out,
+            "closed on {x}: closing posting {} for {}..{} paid on {}; balance at the end of {} {}",
+            a(p.posted),
+            p.start,
+            p.end,
+            p.payment,
+            p.end,
+            a(c.balance)
+        )?,
+        None => writeln!(
+            out,
+            "closed on {x}: no closing posting; balance {}",
+            a(c.balance)
+        )?,
+    }
+    if c.penalised {
+        let how = match c.break_interest {
+            Some(b) => format!(
+                " (term interest {} less {} at the break rate)",
+                a(c.term_interest),
+                a(b)
+            ),
+            None => String::new(),
+        };
+        writeln!(out, "break penalty {}{how}", a(c.penalty_before_limit))?;
+        if !c.waived.is_zero() {
+            writeln!(
+                out,
+                "penalty limited to the term's interest {}: {} waived, {} charged",
+                a(c.term_interest),
+                a(c.waived),
+                a(c.penalty)
+            )?;
+        }
+    }
+    let paid = if c.paid_given {
+        format!("movements on {x} {}", a(c.paid))
+    } else {
+        format!("no movement on {x}")
+    };
+    writeln!(
+        out,
+        "payout {} (balance + closing posting - penalty); {paid}",
+        a(c.payout)
+    )
 }
 
 /// The ledger's figures: the booked opening and where it came from, the

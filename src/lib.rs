@@ -18,7 +18,9 @@
 //!   suggestions.
 //! - [`engine`]: one account's accrual from its terms and one bundle of inputs
 //!   ([`engine::Inputs`]): the day loop and its one-step fast path, the cut-off
-//!   figures, statement reconciliation and the likely-cause search.
+//!   figures, statement reconciliation and the likely-cause search, and an
+//!   account's life events (a close, its break penalty, new terms after a
+//!   maturity) run term by term.
 //!
 //! The description of the input, and what goes wrong with it:
 //!

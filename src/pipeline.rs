@@ -20,6 +20,7 @@ use chrono::Datelike;
 
 use crate::book::{known, AccountEntry, Book, BookedRow, StatementRow, UnreadableStatement};
 use crate::engine::causes::{search, LikelyCause};
+use crate::engine::events::{self, Life};
 use crate::engine::floating::{
     FixingFallback, FixingWarning, Fixings, FloatingRates, FloatingSchedule,
 };
@@ -279,6 +280,9 @@ pub struct AccountRun {
     /// account with Accrual status rows, interest receipts or an opening
     /// suspense.
     pub suspense: Option<Suspense>,
+    /// Its life events at the cut-off: terms, close, status (behaviour.md,
+    /// Account life events); `None` for an account without any.
+    pub life: Option<Life>,
 }
 
 /// An account the engine could not compute.
@@ -342,6 +346,7 @@ pub fn run_account(account: &BookAccount, options: &Options) -> Result<AccountRu
         ledger,
         accrued_check: close.accrued_check,
         suspense,
+        life: close.life,
     })
 }
 
@@ -354,6 +359,7 @@ struct Close {
     notes: Vec<Problem>,
     not_made: Vec<(NaiveDate, NaiveDate)>,
     accrued_check: Option<CheckedRow>,
+    life: Option<Life>,
 }
 
 /// Runs and reconciles `account` for the window of `options`. A posting
@@ -362,7 +368,9 @@ struct Close {
 /// run again with nothing posted for it, so its balance never takes it.
 fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError> {
     let entry = account.entry;
-    let t = &entry.terms;
+    let own = &entry.terms;
+    let closed = events::run_terms(own, options.cutoff);
+    let t = closed.as_ref().unwrap_or(own);
     let actual = actual_postings(account.statements);
     let with_nothing_posted: Vec<ActualPosting>;
     let (periods, mut notes) = statement_periods(account.statements, entry, options.cutoff);
@@ -406,7 +414,8 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
             &options.tolerance,
         )
     };
-    let mut result = accrue(t, inputs, run_options)?;
+    let mut legs = None;
+    let mut result = life_accrue(own, t, inputs, run_options, &mut legs)?;
     let mut reconciled = reconcile_with(&result)?;
     let not_made: Vec<(NaiveDate, NaiveDate)> = reconciled
         .iter()
@@ -425,10 +434,10 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
             }))
             .collect();
         inputs.actual = &with_nothing_posted;
-        result = accrue(t, inputs, run_options)?;
+        result = life_accrue(own, t, inputs, run_options, &mut legs)?;
         reconciled = reconcile_with(&result)?;
     }
-    let rows = reconciled
+    let mut rows: Vec<CheckedRow> = reconciled
         .into_iter()
         .map(|row| CheckedRow {
             tax: tax::check(t, &result, account.statements, &row),
@@ -449,6 +458,30 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         account.statements,
         options.cutoff,
     ));
+    let life = match legs {
+        Some(legs) => {
+            let closing = match legs.last() {
+                Some(leg) => events::settle_close(own, leg, &inputs, run_options, &mut result)?,
+                None => None,
+            };
+            if let Some(c) = &closing {
+                notes.extend(life_notes(entry, c, &options.tolerance));
+                for r in &mut rows {
+                    if let Some(cause) = r.likely_cause.as_mut() {
+                        let places = t.minor_units;
+                        events::net_of_penalty(c, &r.row, &options.tolerance, places, cause);
+                    }
+                }
+            }
+            let figures = Life::figures(own, &legs, &result, options.cutoff);
+            Some(Life {
+                legs,
+                closing,
+                figures,
+            })
+        }
+        None => None,
+    };
     let accrued_check = match account.booked_close {
         Some(booked) => Some(check_accrued(
             t, &inputs, &result, &not_made, booked, options,
@@ -462,7 +495,25 @@ fn close(account: &BookAccount, options: &Options) -> Result<Close, EngineError>
         notes,
         not_made,
         accrued_check,
+        life,
     })
+}
+
+/// An account's run: the day loop itself for an account without life
+/// events, else its terms one after another (`legs` set to them).
+fn life_accrue(
+    own: &crate::engine::AccountTerms,
+    t: &crate::engine::AccountTerms,
+    inputs: Inputs,
+    options: RunOptions,
+    legs: &mut Option<Vec<events::Leg>>,
+) -> Result<AccountResult, EngineError> {
+    if own.events.is_none() {
+        return accrue(t, inputs, options);
+    }
+    let life = events::accrue_life(own, inputs, options)?;
+    *legs = Some(life.legs);
+    Ok(life.result)
 }
 
 /// The core system's open item at cut-off checked against ours
@@ -817,7 +868,9 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
     }
 }
 
+mod life;
 mod tax;
+use life::life_notes;
 
 #[cfg(test)]
 mod tests;

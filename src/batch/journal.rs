@@ -203,6 +203,27 @@ impl SuspenseEntries {
     }
 }
 
+/// The break penalty a run of the window `from..=to` journals for an
+/// account: on the close date when it falls in the window, to `gl_penalty`
+/// (default: the account's interest GL account).
+pub fn penalty_entry(
+    closing: Option<&crate::engine::events::Closing>,
+    entry: &crate::book::AccountEntry,
+    from: NaiveDate,
+    to: NaiveDate,
+) -> Option<(NaiveDate, Decimal, String)> {
+    let c = closing?;
+    if c.penalty.is_zero() || c.date < from || c.date > to {
+        return None;
+    }
+    let gl = entry.terms.events.gl_penalty.clone().unwrap_or_else(|| {
+        ResolvedGl::of(entry.terms.side, &entry.gl)
+            .interest
+            .to_string()
+    });
+    Some((c.date, c.penalty, gl))
+}
+
 /// Where a line sorts within its date: accruals, then postings, then reversals.
 fn purpose(memo: &str) -> u8 {
     if memo.starts_with("interest accrued") || memo.starts_with("prior-period") {
@@ -480,6 +501,31 @@ impl Journal {
                 *amount,
             );
         }
+    }
+
+    /// Adds an account's break penalty on the close date (behaviour.md,
+    /// Account life events): Dr settlement / Cr the penalty's GL account,
+    /// memo `break penalty`; the customer pays it on either side.
+    pub fn add_penalty(
+        &mut self,
+        account: &str,
+        entity: &str,
+        (currency, minor_units): (&str, u32),
+        (settlement, gl_penalty): (&str, &str),
+        date: NaiveDate,
+        amount: Decimal,
+    ) {
+        self.entry(
+            account,
+            date,
+            entity,
+            currency,
+            minor_units,
+            settlement,
+            gl_penalty,
+            "break penalty",
+            amount,
+        );
     }
 
     /// The journal lines, by date, entity, currency and purpose.

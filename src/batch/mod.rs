@@ -155,6 +155,8 @@ struct Outcome {
     notes: Vec<Problem>,
     /// Its interest-in-suspense entries, when it has a split.
     suspense: Option<SuspenseEntries>,
+    /// A break penalty this run journals: its date, amount and GL account.
+    penalty: Option<(NaiveDate, Decimal, String)>,
 }
 
 /// One account to accrue: its book's index, the book, the book's rows by
@@ -245,7 +247,19 @@ pub fn run_books(
     }
     let names: Vec<String> = books.iter().map(|b| b.path.display().to_string()).collect();
     sort_left_out(&mut sums.result.left_out, &names);
-    sums.finish(books)
+    let mut result = sums.finish(books);
+    // Every shard of books with a life event shows the status columns.
+    if books
+        .iter()
+        .any(|b| b.accounts.iter().any(|a| !a.terms.events.is_none()))
+    {
+        for line in &mut result.accruals {
+            if let Some(l) = line.life.as_mut() {
+                l.shown = true;
+            }
+        }
+    }
+    result
 }
 
 /// The accounts each book's reader left out (of the shard, if any), each
@@ -392,6 +406,16 @@ impl<'s> Sums<'s> {
                 settings.journal_style,
                 settings.window_start,
                 settings.cutoff,
+            );
+        }
+        if let Some((date, amount, gl_penalty)) = &o.penalty {
+            self.journal.add_penalty(
+                &entry.terms.id,
+                &l.entity,
+                (&o.line.currency, o.line.minor_units),
+                (&o.gl.settlement, gl_penalty),
+                *date,
+                *amount,
             );
         }
         self.daily.extend(o.daily);
@@ -605,6 +629,7 @@ fn outcome(
                 .as_ref()
                 .map(|_| tax_line(&run.postings, &r.postings, options)),
             suspense: suspense_line,
+            life: Some(life_line(t, run.life.as_ref(), &r, options.cutoff)),
         },
         gl,
         settlements,
@@ -614,6 +639,30 @@ fn outcome(
         accrued_check,
         notes: run.notes,
         suspense: suspense_entries,
+        penalty: journal::penalty_entry(
+            run.life.as_ref().and_then(|l| l.closing.as_ref()),
+            entry,
+            options.window_start,
+            options.cutoff,
+        ),
+    }
+}
+
+/// An account's status and current term at the cut-off (behaviour.md,
+/// Account life events).
+fn life_line(
+    t: &crate::engine::AccountTerms,
+    life: Option<&crate::engine::events::Life>,
+    result: &crate::engine::AccountResult,
+    cutoff: NaiveDate,
+) -> crate::report::model::LifeLine {
+    let f = crate::engine::events::figures_of(t, life, result, cutoff);
+    crate::report::model::LifeLine {
+        shown: life.is_some(),
+        status: f.status.word().into(),
+        days_since_maturity: f.days_since_maturity,
+        term_start: f.term_start,
+        maturity: f.maturity,
     }
 }
 

@@ -325,6 +325,7 @@ mod tests {
             },
             tax: None,
             suspense: None,
+            life: None,
         }
     }
 

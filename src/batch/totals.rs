@@ -43,6 +43,7 @@ use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, Statu
 ///     ledger: Default::default(),
 ///     tax: None,
 ///     suspense: None,
+///     life: None,
 /// };
 /// let mut totals = Totals::default();
 /// totals.add(&line("USD", "liability", 125));

@@ -90,6 +90,10 @@ pub(crate) struct Life {
     pub open: Option<NaiveDate>,
     /// M, when given.
     pub maturity: Option<NaiveDate>,
+    /// X, the close_date, when given.
+    pub close: Option<NaiveDate>,
+    /// Whether a close before maturity is penalised.
+    pub penalised: bool,
     /// The account's first row in the Accounts sheet.
     row: u32,
     /// Its place among the sheet's ids.
@@ -123,6 +127,8 @@ impl Known {
             Life {
                 open,
                 maturity,
+                close: None,
+                penalised: false,
                 row,
                 seq,
                 side,
@@ -251,6 +257,11 @@ pub(crate) fn read(
             rec.row,
             entry.as_ref().map(|e| e.terms.side),
         );
+        if let (Some(e), Some(life)) = (&entry, out.known.by_id.get_mut(&id)) {
+            life.close = e.terms.events.close_date;
+            life.penalised =
+                e.terms.events.break_penalty != crate::engine::events::BreakPenalty::None;
+        }
         match entry {
             Some(e) if !f.failed => out.entries.push(e),
             _ => {
@@ -341,7 +352,8 @@ fn account(
         }
     };
 
-    let terms = AccountTerms {
+    let mut terms = AccountTerms {
+        events: crate::engine::events::LifeEvents::default(),
         floating,
         id: id.to_string(),
         currency: code,
@@ -367,6 +379,7 @@ fn account(
         period_start,
         tax: tax_ref.and_then(|r| tax_terms(f, &r, others.taxes)),
     };
+    terms.events = super::life_events::read(f, &terms, &rate_ref, others.rates);
     check_terms(f, &terms);
     check_floating(f, &terms);
     check_rates(f, &terms, &rate_ref, debit_rate_ref.as_deref(), others);

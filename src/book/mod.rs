@@ -20,6 +20,7 @@ mod csv_records;
 mod fixings;
 mod holidays;
 pub mod known;
+mod life_events;
 mod limits;
 pub mod model;
 mod movements;

@@ -129,6 +129,32 @@ pub(crate) fn read(
                 );
             }
         }
+        if let Some(x) = life.close {
+            if value_date > x {
+                f.report(
+                    Severity::Error,
+                    VALUE_DATE,
+                    &value_date.to_string(),
+                    &format!("a value date on or before the account's close_date {x} (the account is closed)"),
+                    "correct the value date or the close_date; a payout is valued on the close_date itself",
+                );
+                out.spoiled.push(id);
+                continue;
+            }
+        }
+        if life.penalised
+            && amount.is_sign_negative()
+            && life.maturity.is_some_and(|m| value_date < m)
+            && life.close.is_none_or(|x| value_date < x)
+        {
+            f.report(
+                Severity::Note,
+                AMOUNT,
+                &amount.to_string(),
+                "a withdrawal before maturity on an account with a break penalty",
+                "partial withdrawals before maturity carry no penalty: only a close does",
+            );
+        }
         let movement = Movement {
             value_date,
             amount,

@@ -466,6 +466,8 @@ pub enum ChangeKind {
     /// A floating-rate term: the lookback, the observation shift, the
     /// spread's compounding, a floor or cap.
     Floating,
+    /// The closing posting shown net of the break penalty.
+    BreakPenalty,
 }
 
 /// One change that reproduces the posted amount within tolerance.

@@ -302,7 +302,8 @@ impl Plan {
             )));
         }
         let horizon = last_day.max(open);
-        let periods = schedule.periods(start, open, horizon, &terms.calendar)?;
+        let mut periods = schedule.periods(start, open, horizon, &terms.calendar)?;
+        super::events::pay_on_close(&mut periods, terms, options.cutoff);
         let compounding_ends = match terms.compounding.months() {
             Some(m) => schedule.compounding_ends(m, open, horizon, &terms.calendar)?,
             None => Vec::new(),

@@ -8,6 +8,7 @@ use std::sync::Arc;
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
+use super::events::LifeEvents;
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
@@ -275,6 +276,9 @@ pub struct AccountTerms {
     pub floating: FloatingTerms,
     /// Withholding tax on postings (behaviour.md, Withholding tax); `None`: no tax.
     pub tax: Option<TaxTerms>,
+    /// Closure, break penalty and what happens after maturity (behaviour.md,
+    /// Account life events); none by default.
+    pub events: LifeEvents,
 }
 
 impl AccountTerms {
@@ -322,6 +326,7 @@ impl AccountTerms {
             period_start: None,
             floating: FloatingTerms::default(),
             tax: None,
+            events: LifeEvents::default(),
         }
     }
 

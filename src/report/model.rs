@@ -154,6 +154,9 @@ pub struct AccrualLine {
     /// (behaviour.md, Non-accrual and interest in suspense); then
     /// `interest_for_window` is the recognised figure.
     pub suspense: Option<SuspenseLine>,
+    /// Its status and current term (behaviour.md, Account life events);
+    /// `None` when not worked out (a workbook read back without them).
+    pub life: Option<LifeLine>,
 }
 
 /// A reconciled period's withholding tax (behaviour.md, Withholding tax).
@@ -196,6 +199,23 @@ pub struct SuspenseLine {
     pub suspense_at_cutoff: Decimal,
     /// The interest-in-suspense GL account.
     pub gl_suspense: Word,
+}
+
+/// An account's life at the cut-off, for the Accruals sheet.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct LifeLine {
+    /// Whether the Accruals sheet shows these columns: the books of the run
+    /// hold an account with a life-event term (close, penalty, after
+    /// maturity), so every shard of them shows them too.
+    pub shown: bool,
+    /// `open`, `closed`, `matured unpaid` or `rolled over`.
+    pub status: Word,
+    /// C - M + 1 for a matured balance not paid out.
+    pub days_since_maturity: Option<i64>,
+    /// The first day of the current term.
+    pub term_start: Option<NaiveDate>,
+    /// The current term's maturity.
+    pub maturity: Option<NaiveDate>,
 }
 
 /// An account's GL accounts (defaults resolved) and its ledger figures.

@@ -27,8 +27,8 @@ use super::error::ReportError;
 use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
     AccrualLine, DailyLine, DetailLine, DetailRow, InputFile, JournalDetail, JournalLine,
-    LedgerLine, LeftOutLine, ReconciliationLine, RunFacts, Setting, SettingSource, TaxCheck,
-    TaxLine, TieOutLine, TieStatus,
+    LedgerLine, LeftOutLine, LifeLine, ReconciliationLine, RunFacts, Setting, SettingSource,
+    TaxCheck, TaxLine, TieOutLine, TieStatus,
 };
 use super::workbook::{
     is_writer_note, AccrualGroup, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ,
@@ -475,7 +475,7 @@ impl Written {
             header.extend_from_slice(g.header());
         }
         let at = |g: AccrualGroup| place.iter().find(|(h, _)| *h == g).map(|(_, c)| *c);
-        let tax_at = at(AccrualGroup::Tax);
+        let (life_at, tax_at) = (at(AccrualGroup::Life), at(AccrualGroup::Tax));
         let list = self.required_list("Accruals", &header)?;
         list.rows(&self.path)
             .map(|r| {
@@ -515,6 +515,16 @@ impl Written {
                         _ => None,
                     },
                     suspense: None,
+                    life: match life_at {
+                        Some(c) => Some(LifeLine {
+                            shown: true,
+                            status: r.text(c).into(),
+                            days_since_maturity: r.optional_count(c + 1)?,
+                            term_start: r.optional_date(c + 2)?,
+                            maturity: r.optional_date(c + 3)?,
+                        }),
+                        None => None,
+                    },
                 })
             })
             .collect()
@@ -927,6 +937,14 @@ impl Row<'_> {
             };
             self.error(col, &found, "a count (a whole number)")
         })
+    }
+
+    /// A count the writer leaves blank when there is none.
+    fn optional_count(&self, col: usize) -> Result<Option<i64>, ReportError> {
+        if self.text(col).is_empty() {
+            return Ok(None);
+        }
+        self.count(col).map(|n| i64::try_from(n).ok())
     }
 
     fn tie_status(&self, col: usize) -> Result<TieStatus, ReportError> {

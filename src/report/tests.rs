@@ -446,6 +446,7 @@ fn accrual(account: &str, currency: &'static str, minor_units: u32, balance: &st
         ledger: Default::default(),
         tax: None,
         suspense: None,
+        life: None,
     }
 }
 

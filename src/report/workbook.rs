@@ -123,7 +123,7 @@ impl AccrualGroup {
     /// Whether the account's line has the group.
     pub fn held_by(self, a: &AccrualLine) -> bool {
         match self {
-            AccrualGroup::Life => false, // LIFE-TODO
+            AccrualGroup::Life => a.life.as_ref().is_some_and(|l| l.shown),
             AccrualGroup::Suspense => a.suspense.is_some(),
             AccrualGroup::Tax => a.tax.is_some(),
         }
@@ -154,7 +154,18 @@ impl AccrualGroup {
         let col = |i: ColNum| first.saturating_add(i);
         match self {
             AccrualGroup::Life => {
-                // LIFE-TODO
+                if let Some(l) = &a.life {
+                    c.text(col(0), &l.status)?;
+                    if let Some(days) = l.days_since_maturity {
+                        c.count(col(1), i128::from(days))?;
+                    }
+                    if let Some(d) = l.term_start {
+                        c.date(col(2), d)?;
+                    }
+                    if let Some(d) = l.maturity {
+                        c.date(col(3), d)?;
+                    }
+                }
             }
             AccrualGroup::Suspense => match &a.suspense {
                 Some(s) => {

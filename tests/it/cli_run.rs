@@ -54,7 +54,7 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
     run_to(&out, &[])
         .success()
         .stdout(predicate::str::contains(
-            "accounts: 41 read, 41 computed, 0 left out by errors",
+            "accounts: 44 read, 44 computed, 0 left out by errors",
         ))
         .stdout(predicate::str::contains("workbook:"));
     // 30E/360: 3,500,000.00 x 2.85% x 30/360 = 8,312.50.
@@ -250,7 +250,7 @@ fn check_reads_and_writes_nothing() {
         .arg(sample())
         .assert()
         .success()
-        .stdout(predicate::str::contains("41 accounts ready, 0 problems"));
+        .stdout(predicate::str::contains("44 accounts ready, 0 problems"));
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
 }
 
@@ -394,7 +394,7 @@ fn fail_on_variance_makes_a_scheduled_run_exit_3() {
     )
     .code(3)
     .stdout(predicate::str::contains(
-        "statement rows: 46 agrees, 6 within tolerance, 1 not posted",
+        "statement rows: 50 agrees, 6 within tolerance, 1 not posted",
     ));
     // Without the option, variances do not change the exit status.
     run_to(&dir.path().join("c.xlsx"), &[]).code(0);

@@ -321,7 +321,7 @@ fn explain_shows_the_run_figures_for_every_account_of_every_test_book() {
             compared += 1;
         }
     }
-    // The sample books alone hold 41 accounts each, the fixtures more.
+    // The sample books alone hold 44 accounts each, the fixtures more.
     assert!(compared >= 100, "only {compared} accounts compared");
 }
 

@@ -19,6 +19,8 @@ mod cli_many_accounts;
 mod cli_run;
 mod cli_shards;
 mod completeness;
+mod events_examples;
+mod events_law;
 mod explain_matches_run;
 mod hostile_books;
 mod hostile_inputs;

@@ -72,6 +72,7 @@ fn report() -> Report {
             ledger: Default::default(),
             tax: None,
             suspense: None,
+            life: None,
         };
     let mut big = accrual("HM-BIG-001", "USD", 2, "1000000000000000.55", "0.00");
     big.effective_annual_rate = None;

@@ -91,7 +91,7 @@ pub fn basis_distance(from: Basis, to: Basis) -> (u8, usize) {
 /// Step 2 of the rule: the rank of a kind of change.
 fn kind_rank(kind: ChangeKind) -> u8 {
     match kind {
-        ChangeKind::RateChange { .. } | ChangeKind::Movement { .. } => 0,
+        ChangeKind::RateChange { .. } | ChangeKind::Movement { .. } | ChangeKind::BreakPenalty => 0,
         ChangeKind::Period => 1,
         ChangeKind::Floating => 2,
         ChangeKind::Basis(_) => 3,
