@@ -628,7 +628,7 @@ fn outcome(
                 .tax
                 .as_ref()
                 .map(|_| tax_line(&run.postings, &r.postings, options)),
-            suspense: suspense_line,
+            suspense: suspense_line.map(Box::new),
             life: Some(life_line(t, run.life.as_ref(), &r, options.cutoff)),
         },
         gl,

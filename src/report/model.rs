@@ -152,8 +152,9 @@ pub struct AccrualLine {
     /// Its interest split into recognised and suspended, for an account
     /// with Accrual status rows, interest receipts or an opening suspense
     /// (behaviour.md, Non-accrual and interest in suspense); then
-    /// `interest_for_window` is the recognised figure.
-    pub suspense: Option<SuspenseLine>,
+    /// `interest_for_window` is the recognised figure. Boxed: few accounts
+    /// have it, and every Accruals line carries the field.
+    pub suspense: Option<Box<SuspenseLine>>,
     /// Its status and current term (behaviour.md, Account life events);
     /// `None` when not worked out (a workbook read back without them).
     pub life: Option<LifeLine>,
