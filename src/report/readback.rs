@@ -28,7 +28,7 @@ use super::layout::SHEET_ROW_LIMIT;
 use super::model::{
     AccrualLine, DailyLine, DetailLine, DetailRow, InputFile, JournalDetail, JournalLine,
     LedgerLine, LeftOutLine, LifeLine, ReconciliationLine, RunFacts, Setting, SettingSource,
-    TaxCheck, TaxLine, TieOutLine, TieStatus,
+    SuspenseLine, TaxCheck, TaxLine, TieOutLine, TieStatus,
 };
 use super::workbook::{
     is_writer_note, AccrualGroup, ACCOUNTS_FAILED, ACCOUNTS_LEFT_OUT_BY_BOOKS, ACCOUNTS_READ,
@@ -396,9 +396,7 @@ impl Written {
     }
 
     /// The column groups the Accruals carry after [`ACCRUALS_HEADER`], from
-    /// its first sheet's header (none without the sheet). A run with interest
-    /// in suspense is not read back: merging it is not built, and reading its
-    /// Accruals without the split would tie its suspense account out wrongly.
+    /// its first sheet's header (none without the sheet).
     fn accrual_groups(&mut self) -> Result<Vec<AccrualGroup>, ReportError> {
         const ACCRUALS: &str = "Accruals";
         if !self.sheets.sheet_names().iter().any(|n| n == ACCRUALS) {
@@ -426,14 +424,6 @@ impl Written {
                 groups.push(g);
                 at += h.len();
             }
-        }
-        if groups.contains(&AccrualGroup::Suspense) {
-            return Err(self.not_written(
-                ACCRUALS,
-                &a1_row(0),
-                "the columns of interest in suspense (Accrual status, Contractual for window ...)",
-                "the Accruals of a run without Accrual status rows: shards of books with interest in suspense cannot be merged yet; run those books in one piece",
-            ));
         }
         Ok(groups)
     }
@@ -475,7 +465,11 @@ impl Written {
             header.extend_from_slice(g.header());
         }
         let at = |g: AccrualGroup| place.iter().find(|(h, _)| *h == g).map(|(_, c)| *c);
-        let (life_at, tax_at) = (at(AccrualGroup::Life), at(AccrualGroup::Tax));
+        let (life_at, suspense_at, tax_at) = (
+            at(AccrualGroup::Life),
+            at(AccrualGroup::Suspense),
+            at(AccrualGroup::Tax),
+        );
         let list = self.required_list("Accruals", &header)?;
         list.rows(&self.path)
             .map(|r| {
@@ -514,7 +508,13 @@ impl Written {
                         }),
                         _ => None,
                     },
-                    suspense: None,
+                    suspense: match suspense_at {
+                        // A line without the split has no GL suspense.
+                        Some(c) if !r.text(c + 6).is_empty() => {
+                            Some(Box::new(suspense_line(&r, c, places)?))
+                        }
+                        _ => None,
+                    },
                     life: match life_at {
                         Some(c) => Some(LifeLine {
                             shown: true,
@@ -877,6 +877,27 @@ fn whole<T: TryFrom<i128>>(row: &[Data], col: usize) -> Option<T> {
 /// The minor units of a currency code as the writer formatted it.
 fn minor_units(code: &str) -> u32 {
     currency::minor_units(code).unwrap_or(2)
+}
+
+/// The split of an Accruals row whose suspense columns start at `c`; the
+/// suspense before the window follows from the others (suspense at cut-off =
+/// before + reversed + suspended - released).
+fn suspense_line(r: &Row<'_>, c: usize, places: u32) -> Result<SuspenseLine, ReportError> {
+    let reversed_in_window = r.amount(c + 2, places)?;
+    let suspended_in_window = r.amount(c + 3, places)?;
+    let released_in_window = r.amount(c + 4, places)?;
+    let suspense_at_cutoff = r.amount(c + 5, places)?;
+    Ok(SuspenseLine {
+        status: r.text(c).into(),
+        contractual_for_window: r.amount(c + 1, places)?,
+        reversed_in_window,
+        suspended_in_window,
+        released_in_window,
+        suspense_before_window: suspense_at_cutoff - reversed_in_window - suspended_in_window
+            + released_in_window,
+        suspense_at_cutoff,
+        gl_suspense: r.text(c + 6).into(),
+    })
 }
 
 impl Row<'_> {

@@ -97,6 +97,7 @@ impl AccrualGroup {
                 "Suspended in window",
                 "Released in window",
                 "Suspense at cut-off",
+                "GL suspense",
             ],
             AccrualGroup::Tax => &["Tax withheld in window", "Net posted in window"],
         }
@@ -106,7 +107,7 @@ impl AccrualGroup {
     fn caps(self) -> &'static [usize] {
         match self {
             AccrualGroup::Life => &[16, 12, 14, 14],
-            AccrualGroup::Suspense => &[18, 24, 24, 24, 24, 24],
+            AccrualGroup::Suspense => &[18, 24, 24, 24, 24, 24, 32],
             AccrualGroup::Tax => &[24, 24],
         }
     }
@@ -142,13 +143,22 @@ impl AccrualGroup {
         let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
         match self {
             AccrualGroup::Life => vec![Some(&s.text), Some(&s.count), Some(&s.date), Some(&s.date)],
-            AccrualGroup::Suspense => vec![Some(&s.text), amount, amount, amount, amount, amount],
+            AccrualGroup::Suspense => vec![
+                Some(&s.text),
+                amount,
+                amount,
+                amount,
+                amount,
+                amount,
+                Some(&s.text),
+            ],
             AccrualGroup::Tax => vec![amount, amount],
         }
     }
 
     /// Writes the group's cells of `a` from column `first`; an account
-    /// without it has them blank (a life status) or accruing (the split).
+    /// without it has them blank (a life status) or accruing (the split,
+    /// with no GL suspense: what tells a read-back line it had none).
     fn write(self, c: &mut Cells<'_>, a: &AccrualLine, first: ColNum) -> Result<(), ReportError> {
         let units = a.minor_units;
         let col = |i: ColNum| first.saturating_add(i);
@@ -175,6 +185,7 @@ impl AccrualGroup {
                     c.amount(col(3), s.suspended_in_window, units)?;
                     c.amount(col(4), s.released_in_window, units)?;
                     c.amount(col(5), s.suspense_at_cutoff, units)?;
+                    c.text(col(6), &s.gl_suspense)?;
                 }
                 None => {
                     c.text(col(0), "accruing")?;
