@@ -160,7 +160,9 @@ pub struct SplitDay {
     pub contractual: Decimal,
     /// The part recognised as income, unrounded.
     pub recognised: Decimal,
-    /// contractual - recognised.
+    /// contractual - recognised (each of the three a decimal of at most 28
+    /// significant digits, so the last digit may differ; the posting's split
+    /// comes from exact sums).
     pub suspended: Decimal,
 }
 

@@ -290,8 +290,13 @@ mod laws {
             let s = split(&t, &r, &SuspenseInputs { statuses: &statuses, receipts: &receipts, opening_suspense: n("10.00") },
                 d("2026-11-01"), d("2026-11-30")).unwrap();
             prop_assert_eq!(s.days.len(), r.days.len());
+            // A day's figures are shown to 28 significant digits, each rounded
+            // there on its own, so their sum may differ in the last one; the
+            // sums that are posted are kept exactly (the periods below).
+            let last_digit = Decimal::new(1, 26);
             for day in &s.days {
-                prop_assert_eq!(day.recognised + day.suspended, day.contractual);
+                prop_assert!((day.recognised + day.suspended - day.contractual).abs() <= last_digit,
+                    "{} + {} against {}", day.recognised, day.suspended, day.contractual);
             }
             for p in &s.periods {
                 prop_assert_eq!(p.recognised + p.suspended, p.posted);
