@@ -59,7 +59,7 @@ fn shards_merged_equal_the_single_run() {
         .arg(&merged)
         .assert()
         .success()
-        .stdout(predicate::str::contains("accounts: 44 read, 44 computed"));
+        .stdout(predicate::str::contains("accounts: 47 read, 47 computed"));
     let (a, b) = (sheets(&single), sheets(&merged));
     assert_eq!(
         a.iter().map(|s| &s.0).collect::<Vec<_>>(),
