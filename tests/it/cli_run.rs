@@ -625,6 +625,7 @@ fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time()
         ("as_at", "no limit: every row is known", "default"),
         ("previous_as_at", "2026-11-02", "Settings sheet"),
         ("settlement_lines", "payment-date", "default"),
+        ("statement_amounts", "gross", "Settings sheet"),
     ];
     for (name, value, source) in want {
         assert_eq!(
@@ -775,4 +776,70 @@ fn the_printed_problem_counts_are_the_problems_sheets_including_the_writers_own_
         plural(on_sheet("note"), "note")
     );
     assert!(stdout.contains(&line), "expected '{line}' in:\n{stdout}");
+}
+
+/// The Summary's totals by currency and side, as (currency, side) and the
+/// cells from Accounts on, from the row under its header.
+fn summary_totals(path: &Path) -> (Vec<String>, Vec<Vec<String>>) {
+    let rows = sheet(path, "Summary");
+    let start = rows
+        .iter()
+        .position(|r| r[0] == "Currency" && r[1] == "Side")
+        .expect("the totals header");
+    let header = rows[start].iter().map(|c| c.to_string()).collect();
+    let body = rows[start + 1..]
+        .iter()
+        .take_while(|r| r[1] == "asset" || r[1] == "liability")
+        .map(|r| r.iter().map(|c| c.to_string()).collect())
+        .collect();
+    (header, body)
+}
+
+/// A run with withholding tax adds Tax withheld in window to the Summary's
+/// totals, summed by currency and side; a currency and side without a taxed
+/// account leaves it blank.
+#[test]
+fn the_summary_totals_carry_the_tax_withheld_by_currency_and_side() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("nov.xlsx");
+    run_to(&out, &[]).success();
+    let (header, body) = summary_totals(&out);
+    assert_eq!(header[7], "Prior-period adjustment");
+    assert_eq!(header[8], "Tax withheld in window");
+    let tax = |currency: &str, side: &str| {
+        body.iter()
+            .find(|r| r[0] == currency && r[1] == side)
+            .map(|r| r[8].clone())
+            .unwrap_or_else(|| panic!("no row {currency} {side}"))
+    };
+    // HM-IC-003: 53,083.33 x 15% = 7,962.4995, 7,962.50.
+    assert_eq!(tax("EUR", "asset"), "7962.5");
+    // HM-SAV-T20 60.00 (300.00 x 20%), HM-SAV-T20N 24.00 (its 120.00 as
+    // posted x 20%), HM-SAV-005 exempt 0.00: 84.00.
+    assert_eq!(tax("GBP", "liability"), "84");
+    assert_eq!(tax("USD", "asset"), "");
+    assert_eq!(tax("EUR", "liability"), "");
+}
+
+/// A run without withholding tax writes the totals as before: eight columns.
+#[test]
+fn a_run_without_tax_keeps_the_summary_totals_eight_columns_wide() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("loans.xlsx");
+    ledgerate()
+        .arg("run")
+        .arg(
+            Path::new(env!("CARGO_MANIFEST_DIR"))
+                .join("sample-books/harbourview-loans-2026-11.xlsx"),
+        )
+        .args(["--fixed-time", "2026-12-01T08:00:00", "--out"])
+        .arg(&out)
+        .assert()
+        .success();
+    let (header, body) = summary_totals(&out);
+    assert_eq!(header[7], "Prior-period adjustment");
+    assert_eq!(header.get(8).map(String::as_str).unwrap_or(""), "");
+    assert!(body
+        .iter()
+        .all(|r| r.get(8).map(String::as_str).unwrap_or("").is_empty()));
 }
