@@ -22,7 +22,7 @@ use ledgerate::engine::run::RunOptions;
 use ledgerate::engine::{AccountTerms, Inputs, Movement};
 use ledgerate::schema::{
     layout, Layout, ACCOUNTS, ACCRUAL_STATUS, BOOKED, FIXINGS, HOLIDAYS, MOVEMENTS, RATES,
-    SETTINGS, STATEMENTS, TRIAL_BALANCE,
+    SETTINGS, STATEMENTS, TAX, TRIAL_BALANCE,
 };
 use rust_decimal::Decimal;
 use rust_xlsxwriter::{Format, Workbook};
@@ -98,6 +98,8 @@ const ACCOUNT_LAYOUT: Layout = layout!(
     "after_maturity",
     "rollover_months",
     "rollover_rate_ref",
+    "tax_ref",
+    "gl_tax",
 );
 
 /// One account row: the columns of `ACCOUNT_LAYOUT`, by name.
@@ -160,6 +162,8 @@ fn sheets() -> Vec<Sheet> {
             ("rate_ref", t("SAVER")),
             ("gl_interest", t("5110")),
             ("gl_accrued", t("2210")),
+            // The school PTA is exempt from the tax on savings interest.
+            ("tax_ref", t(if id == "HM-SAV-005" { "EXEMPT" } else { "" })),
         ]));
     }
     movements.push(mv("HM-SAV-001", "2026-11-09", "1500.00", "", "DEP-1109"));
@@ -357,6 +361,57 @@ fn sheets() -> Vec<Sheet> {
         ("gl_accrued", t("2310")),
     ]));
     rates.push(rate("IC-BORROW", "2026-01-01", "4.80", ""));
+
+    // Withholding tax: two personal savers taxed at 20% and credited monthly
+    // (the balance takes the net), and a euro loan to a group company whose
+    // interest the borrower pays net of a 15% treaty rate; the tax it
+    // withholds is recoverable. The tables are invented: the rates a book
+    // uses come from the institution's tax function.
+    for (id, name, bal) in [
+        ("HM-SAV-T20", "Seawall Terrace personal saver", "100000.00"),
+        ("HM-SAV-T20N", "Kelp Lane personal saver", "50000.00"),
+    ] {
+        accounts.push(account(&[
+            ("account", t(id)),
+            ("name", t(name)),
+            ("currency", t("GBP")),
+            ("side", t("liability")),
+            ("day_count", t("ACT/365F")),
+            ("compounding", t("simple")),
+            ("posting", t("monthly")),
+            ("capitalise", t("yes")),
+            ("open_date", date("2026-11-01")),
+            ("opening_balance", num(bal)),
+            ("rate_ref", t("SAVER-TAXED")),
+            ("gl_interest", t("5110")),
+            ("gl_accrued", t("2210")),
+            ("tax_ref", t("SAVINGS-20")),
+            ("gl_tax", t("2410")),
+        ]));
+    }
+    rates.push(rate("SAVER-TAXED", "2026-01-01", "3.65", ""));
+    accounts.push(account(&[
+        ("account", t("HM-IC-003")),
+        ("name", t("Loan to Harbourview Services Europe")),
+        ("currency", t("EUR")),
+        ("side", t("asset")),
+        ("day_count", t("ACT/360")),
+        ("posting", t("quarterly")),
+        ("posting_anchor", date("2026-11-30")),
+        ("open_date", date("2026-09-01")),
+        ("opening_balance", num("5000000.00")),
+        ("rate_ref", t("IC-LEND-EUR")),
+        ("gl_interest", t("4210")),
+        ("gl_accrued", t("1320")),
+        ("tax_ref", t("TREATY-15")),
+        ("gl_tax", t("1330")),
+    ]));
+    rates.push(rate("IC-LEND-EUR", "2026-01-01", "4.20", ""));
+    let tax = vec![
+        vec![t("SAVINGS-20"), date("2026-01-01"), num("20")],
+        vec![t("EXEMPT"), date("2026-01-01"), num("0")],
+        vec![t("TREATY-15"), date("2026-01-01"), num("15")],
+    ];
 
     // Currencies without two minor units.
     accounts.push(account(&[
@@ -590,6 +645,7 @@ fn sheets() -> Vec<Sheet> {
         vec![t("cutoff"), date("2026-11-30")],
         vec![t("entity"), t("HARBOURVIEW-MUTUAL")],
         vec![t("previous_as_at"), date("2026-11-02")],
+        vec![t("statement_amounts"), t("gross")],
     ];
     vec![
         Sheet {
@@ -639,6 +695,11 @@ fn sheets() -> Vec<Sheet> {
             name: "Settings",
             columns: layout!(SETTINGS, "setting", "value").labels(),
             rows: settings,
+        },
+        Sheet {
+            name: "Tax",
+            columns: layout!(TAX, "tax_ref", "effective", "rate_percent").labels(),
+            rows: tax,
         },
     ]
 }
@@ -748,6 +809,8 @@ enum Planted {
     Missing,
     /// October on two rows: the right amount plus a correction, and the correction reversed.
     CorrectedTwice(&'static str),
+    /// The net of the withholding tax as posted_interest, the gross reading's mistake.
+    Net,
 }
 
 /// The planted mistakes of the sample statements (November periods).
@@ -771,6 +834,7 @@ fn planted(account: &str) -> Planted {
         "HM-NL-001" => Planted::StartADayLate,
         "HM-SAV-006" => Planted::Missing,
         "HM-SAV-001" => Planted::CorrectedTwice("10.00"),
+        "HM-SAV-T20N" => Planted::Net,
         _ => Planted::Right,
     }
 }
@@ -848,11 +912,19 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
                         .map_or(p.expected, |w| w.expected)
                 }
                 (Planted::Plus(x), true) => p.expected + x.parse::<Decimal>()?,
+                (Planted::Net, true) => p.withheld.net,
                 (Planted::StartADayLate, true) => {
                     let late = start.succ_opt().ok_or("date")?;
                     expected_over(&entry.terms, &right, late, p.end)?.amount
                 }
                 _ => p.expected,
+            };
+            // A taxed account's statement gives the tax withheld beside the
+            // gross (the book reads statement amounts gross), except the
+            // planted net posting, which gives neither.
+            let tax_withheld = match (&entry.terms.tax, &mistake) {
+                (Some(_), Planted::Net) | (None, _) => Cell::Empty,
+                (Some(_), _) => num(&p.withheld.tax.to_string()),
             };
             let row = |amount: Decimal, reference: &str| {
                 vec![
@@ -861,6 +933,7 @@ fn statements(book_dir: &Path) -> Result<Vec<Vec<Cell>>, Box<dyn std::error::Err
                     date(&p.end.to_string()),
                     num(&amount.to_string()),
                     t(reference),
+                    tax_withheld.clone(),
                 ]
             };
             let reference = format!(
@@ -1133,6 +1206,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
                 "period_end",
                 "posted_interest",
                 "reference",
+                "tax_withheld",
             )
             .labels(),
             rows,

@@ -413,11 +413,24 @@ fn print_life(life: &Life, places: u32, out: &mut dyn Write) -> io::Result<()> {
     } else {
         format!("no movement on {x}")
     };
-    writeln!(
-        out,
-        "payout {} (balance + closing posting - penalty); {paid}",
-        a(c.payout)
-    )
+    let tax = c
+        .closing_posting
+        .as_ref()
+        .map_or(Decimal::ZERO, |p| p.withheld.tax);
+    if tax.is_zero() {
+        writeln!(
+            out,
+            "payout {} (balance + closing posting - penalty); {paid}",
+            a(c.payout)
+        )
+    } else {
+        writeln!(
+            out,
+            "payout {} (balance + closing posting - penalty - tax {}); {paid}",
+            a(c.payout),
+            a(tax)
+        )
+    }
 }
 
 /// The ledger's figures: the booked opening and where it came from, the

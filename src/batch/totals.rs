@@ -19,7 +19,8 @@ use crate::report::model::{AccrualLine, CurrencyTotal, ReconciliationLine, Statu
 
 /// Totals by currency and side: accounts, balance at cut-off, accrued at
 /// cut-off, posted in window, interest for window (expense on the liability
-/// side, income on the asset side) and prior-period adjustment, each the sum
+/// side, income on the asset side), prior-period adjustment and, where an
+/// account has withholding tax, the tax withheld in the window, each the sum
 /// of the accounts' rounded amounts.
 ///
 /// ```
@@ -93,6 +94,7 @@ impl Totals {
             posted_in_window: Decimal::ZERO,
             interest_for_window: Decimal::ZERO,
             prior_period: Decimal::ZERO,
+            tax_withheld: None,
         });
         t.accounts += 1;
         t.balance_at_cutoff += line.balance_at_cutoff;
@@ -100,6 +102,9 @@ impl Totals {
         t.posted_in_window += line.posted_in_window;
         t.interest_for_window += line.interest_for_window;
         t.prior_period += line.ledger.prior_period;
+        if let Some(tax) = &line.tax {
+            *t.tax_withheld.get_or_insert(Decimal::ZERO) += tax.withheld;
+        }
     }
 
     /// The totals of every line of `lines`.

@@ -207,6 +207,7 @@ impl Settings {
         let fixing_fallback = fixing_fallback(given.fixing_fallback, &mut listed)?;
         let known = knowledge(books, given, window.value, cutoff.value, &mut listed)?;
         let settlement_lines = settlement_lines(books, given.settlement_lines, &mut listed)?;
+        listed.record("statement_amounts", &statement_amounts(books));
         Ok(Some(Settings {
             cutoff: cutoff.value,
             window_start: window.value,
@@ -388,10 +389,24 @@ fn switch(on: bool) -> Resolved<bool> {
 /// applied it. Each book has its own setting, so books may differ; the Run
 /// sheet then names each book's.
 fn statement_end(books: &[Book]) -> Resolved<String> {
+    book_reading(books, "statementend", "inclusive")
+}
+
+/// Whether the books' Statements sheets give amounts before or after
+/// withholding tax, as the reader applied it; per book, like
+/// [`statement_end`].
+fn statement_amounts(books: &[Book]) -> Resolved<String> {
+    book_reading(books, "statementamounts", "gross")
+}
+
+/// A setting that says how each book is read (`key` as the Settings sheet's
+/// names are matched, `default` when a book does not give it): one value
+/// when the books agree, else each book's.
+fn book_reading(books: &[Book], key: &str, default: &str) -> Resolved<String> {
     let of = |b: &Book| {
         b.settings
             .iter()
-            .find(|s| s.name == "statementend")
+            .find(|s| s.name == key)
             .map(|s| s.value.to_ascii_lowercase())
     };
     let given: Vec<Option<String>> = books.iter().map(of).collect();
@@ -402,11 +417,11 @@ fn statement_end(books: &[Book]) -> Resolved<String> {
     };
     let values: Vec<String> = given
         .into_iter()
-        .map(|v| v.unwrap_or_else(|| "inclusive".to_string()))
+        .map(|v| v.unwrap_or_else(|| default.to_string()))
         .collect();
     let value = match values.first() {
         Some(first) if values.iter().all(|v| v == first) => first.clone(),
-        None => "inclusive".to_string(),
+        None => default.to_string(),
         Some(_) => books
             .iter()
             .zip(&values)

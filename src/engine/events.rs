@@ -244,7 +244,8 @@ pub struct Closing {
     pub term_interest: Decimal,
     /// For a `rate` penalty, the same at the break rate.
     pub break_interest: Option<Decimal>,
-    /// Balance at the end of X-1 + closing posting - penalty.
+    /// Balance at the end of X-1 + closing posting - penalty - the closing
+    /// posting's withholding tax.
     pub payout: Decimal,
     /// The movements valued on X: what was paid out.
     pub paid: Decimal,
@@ -292,8 +293,10 @@ pub fn settle_close(
             .map(|m| m.amount),
         x,
     )?;
+    // The day loop capitalised the closing posting's net (its tax never
+    // reaches the customer): take out what it added.
     let capitalised = match &closing_posting {
-        Some(p) if terms.capitalise => p.posted,
+        Some(p) if terms.capitalise => p.withheld.net,
         _ => Decimal::ZERO,
     };
     let balance = result
@@ -341,7 +344,11 @@ pub fn settle_close(
         PenaltyLimit::None => raw,
     };
     let waived = raw - penalty;
-    let closing = closing_posting.as_ref().map_or(Decimal::ZERO, |p| p.posted);
+    // The closing posting pays out net of its withholding tax (the gross for
+    // an account without tax).
+    let closing = closing_posting
+        .as_ref()
+        .map_or(Decimal::ZERO, |p| p.withheld.net);
     let payout = balance
         .checked_add(closing)
         .and_then(|b| b.checked_sub(penalty))

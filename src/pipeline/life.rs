@@ -43,7 +43,7 @@ pub(super) fn life_notes(
                     "account {id}: movements valued on the close_date {x} total {}, the payout is {}",
                     closing.paid, closing.payout
                 ),
-                format!("movements on {x} totalling -{} (the payout: balance + closing posting - penalty)", closing.payout),
+                format!("movements on {x} totalling -{} (the payout: balance + closing posting - penalty - tax)", closing.payout),
                 "check the payout movement, the penalty and the closing posting; movements valued on the close_date are taken as the payout and not applied",
             ));
         }

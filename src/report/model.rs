@@ -269,6 +269,10 @@ pub struct CurrencyTotal {
     pub interest_for_window: Decimal,
     /// Sum of the prior-period adjustments.
     pub prior_period: Decimal,
+    /// Sum of the withholding tax on the postings in the window, when an
+    /// account of this currency and side has a `tax_ref` (behaviour.md,
+    /// Withholding tax); `None` when none has.
+    pub tax_withheld: Option<Decimal>,
 }
 
 /// One journal line (Journal sheet).

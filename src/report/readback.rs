@@ -755,7 +755,9 @@ impl Written {
         if !self.sheets.sheet_names().iter().any(|n| n == SUMMARY) {
             return Err(self.missing(SUMMARY));
         }
-        let rows = self.sheet_rows(SUMMARY, SUMMARY_COLS.into())?;
+        // The widest the writer writes: a run with withholding tax adds the
+        // totals' Tax withheld in window column.
+        let rows = self.sheet_rows(SUMMARY, (SUMMARY_COLS + 1).into())?;
         let count = |label: &str| {
             rows.iter()
                 .find(|(_, r)| text(r, 0) == label)

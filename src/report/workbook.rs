@@ -349,6 +349,10 @@ pub const TOTALS_HEADER: [&str; 8] = [
     "Prior-period adjustment",
 ];
 
+/// Header label of the Summary's totals column added after
+/// [`TOTALS_HEADER`] when an account of the run has withholding tax.
+pub const TOTALS_TAX_HEADER: &str = "Tax withheld in window";
+
 /// Label of the Summary's line on the Tie-out.
 pub const TIE_OUT_LABEL: &str = "Tie-out";
 
@@ -1512,6 +1516,16 @@ struct SummaryPlaces {
 
 pub(crate) const SUMMARY_COLS: ColNum = 8;
 
+/// The Summary's columns: one more for the tax withheld in a run with
+/// withholding tax.
+fn summary_cols(taxed: bool) -> ColNum {
+    if taxed {
+        SUMMARY_COLS + 1
+    } else {
+        SUMMARY_COLS
+    }
+}
+
 /// The Summary: title and caution, the run's facts, the accounts left out,
 /// totals by currency and side, counts by status, widths and the variance
 /// chart. The problem and text
@@ -1531,7 +1545,10 @@ fn write_summary(
     let row = summary_totals(&mut c, row, &report.totals)?;
     let row = summary_status_counts(&mut c, row, &report.status_counts)?;
     let row = summary_largest_variances(&mut c, row, report)?;
-    summary_widths(&mut c)?;
+    summary_widths(
+        &mut c,
+        report.totals.iter().any(|t| t.tax_withheld.is_some()),
+    )?;
     // The chart goes under the tables, within their width, so that the
     // printed page keeps its size.
     if let Some(plan) = chart {
@@ -1728,9 +1745,18 @@ fn summary_totals(
 ) -> Result<RowNum, ReportError> {
     let styles = c.styles();
     let mut row = row + 2;
-    section(c, row, TOTALS_TITLE, SUMMARY_COLS)?;
+    // A run with withholding tax adds the tax column after the others; a
+    // run without writes the table as before.
+    let taxed = totals.iter().any(|t| t.tax_withheld.is_some());
+    section(c, row, TOTALS_TITLE, summary_cols(taxed))?;
     row += 1;
-    c.at(row).header(&TOTALS_HEADER, &[2, 3, 4, 5, 6, 7])?;
+    if taxed {
+        let mut header = TOTALS_HEADER.to_vec();
+        header.push(TOTALS_TAX_HEADER);
+        c.at(row).header(&header, &[2, 3, 4, 5, 6, 7, 8])?;
+    } else {
+        c.at(row).header(&TOTALS_HEADER, &[2, 3, 4, 5, 6, 7])?;
+    }
     for t in totals {
         row += 1;
         c.at(row).text(0, &t.currency)?;
@@ -1741,6 +1767,9 @@ fn summary_totals(
         c.amount(5, t.posted_in_window, t.minor_units)?;
         c.amount(6, t.interest_for_window, t.minor_units)?;
         c.amount(7, t.prior_period, t.minor_units)?;
+        if let Some(tax) = t.tax_withheld {
+            c.amount(8, tax, t.minor_units)?;
+        }
     }
     if !totals.is_empty() {
         row += 1;
@@ -1843,16 +1872,24 @@ fn summary_largest_variances(
     Ok(row.saturating_add(1))
 }
 
-/// Widths: labels and codes in A, figures in B..F; and the caution's rows
-/// tall enough for its lines at these widths.
-fn summary_widths(c: &mut Cells<'_>) -> Result<(), ReportError> {
-    let widths: Vec<u16> = (0..SUMMARY_COLS)
-        .map(|col| {
-            let header = TOTALS_HEADER.get(usize::from(col)).copied().unwrap_or("");
-            let floor = if col == 0 { 28 } else { 14 };
-            column_width(header, c.width(col).max(floor), 40)
-        })
-        .collect();
+/// Widths: labels and codes in A, figures in B..F (and I, the tax withheld,
+/// in a `taxed` run); and the caution's rows tall enough for its lines at
+/// these widths.
+fn summary_widths(c: &mut Cells<'_>, taxed: bool) -> Result<(), ReportError> {
+    let widths: Vec<u16> =
+        (0..summary_cols(taxed))
+            .map(|col| {
+                let header = TOTALS_HEADER.get(usize::from(col)).copied().unwrap_or(
+                    if col == SUMMARY_COLS {
+                        TOTALS_TAX_HEADER
+                    } else {
+                        ""
+                    },
+                );
+                let floor = if col == 0 { 28 } else { 14 };
+                column_width(header, c.width(col).max(floor), 40)
+            })
+            .collect();
     for (col, width) in (0..).zip(widths) {
         c.sheet()
             .set_column_width(col, width)

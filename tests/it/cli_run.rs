@@ -54,7 +54,7 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
     run_to(&out, &[])
         .success()
         .stdout(predicate::str::contains(
-            "accounts: 44 read, 44 computed, 0 left out by errors",
+            "accounts: 47 read, 47 computed, 0 left out by errors",
         ))
         .stdout(predicate::str::contains("workbook:"));
     // 30E/360: 3,500,000.00 x 2.85% x 30/360 = 8,312.50.
@@ -71,6 +71,30 @@ fn the_month_end_run_reproduces_hand_worked_figures() {
     assert_eq!(
         number(&accrual(&out, "HM-IC-002", "Interest for window")),
         "20000"
+    );
+    // Withholding tax at 20%, capitalised: 100,000.00 x 3.65% x 30/365 = 300.00
+    // gross, 60.00 tax, 240.00 net credited; the balance takes the net.
+    assert_eq!(
+        number(&accrual(&out, "HM-SAV-T20", "Tax withheld in window")),
+        "60"
+    );
+    assert_eq!(
+        number(&accrual(&out, "HM-SAV-T20", "Net posted in window")),
+        "240"
+    );
+    assert_eq!(
+        number(&accrual(&out, "HM-SAV-T20", "Balance at cut-off")),
+        "100240"
+    );
+    // Treaty rate 15% on an asset: 5,000,000.00 x 4.20% x 91/360 = 53,083.33;
+    // 53,083.33 x 0.15 = 7,962.4995, 7,962.50 half-up; net 45,120.83.
+    assert_eq!(
+        number(&accrual(&out, "HM-IC-003", "Tax withheld in window")),
+        "7962.5"
+    );
+    assert_eq!(
+        number(&accrual(&out, "HM-IC-003", "Net posted in window")),
+        "45120.83"
     );
     // ACT/365F in yen: 12,345,678 x 0.30% x 30/365 = 3,044.14, posted as 3,044.
     assert_eq!(
@@ -250,7 +274,7 @@ fn check_reads_and_writes_nothing() {
         .arg(sample())
         .assert()
         .success()
-        .stdout(predicate::str::contains("44 accounts ready, 0 problems"));
+        .stdout(predicate::str::contains("47 accounts ready, 0 problems"));
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
 }
 
@@ -314,7 +338,11 @@ fn the_planted_statement_mistakes_are_found_and_explained() {
             "Variance",
             "Variance (bp)",
             "Status",
-            "Likely cause"
+            "Likely cause",
+            // The book has taxed accounts: the tax columns come last.
+            "Expected tax",
+            "Posted tax",
+            "Tax variance"
         ]
     );
     let find = |account: &str, end: &str| -> (String, String) {
@@ -369,6 +397,16 @@ fn the_planted_statement_mistakes_are_found_and_explained() {
         // Floating-rate loans compounded in arrears, 5-day lookback and 5-day shift.
         ("HM-FLN-001", "2026-11-30", "agrees", ""),
         ("HM-FLN-002", "2026-11-30", "agrees", ""),
+        // Withholding tax: the gross with its tax agrees; the net as
+        // posted_interest (120.00 of 150.00) is the net of 20% tax.
+        ("HM-SAV-T20", "2026-11-30", "agrees", ""),
+        (
+            "HM-SAV-T20N",
+            "2026-11-30",
+            "under-posted",
+            "posted net of 20% tax (30.00)",
+        ),
+        ("HM-IC-003", "2026-11-30", "agrees", ""),
     ];
     for (account, end, status, cause) in cases {
         let (s, c) = find(account, end);
@@ -387,14 +425,15 @@ fn fail_on_variance_makes_a_scheduled_run_exit_3() {
     let dir = tempfile::tempdir().unwrap();
     run_to(&dir.path().join("a.xlsx"), &["--fail-on-variance"]).code(3);
     // A wide tolerance accepts every variance, but a missing posting is never
-    // within tolerance: the run still exits 3, with every other row accepted.
+    // within tolerance: the run still exits 3, with every other row accepted
+    // (HM-SAV-T20N's net posting, 73 bp under, among them).
     run_to(
         &dir.path().join("b.xlsx"),
         &["--fail-on-variance", "--tolerance-bp", "500"],
     )
     .code(3)
     .stdout(predicate::str::contains(
-        "statement rows: 50 agrees, 6 within tolerance, 1 not posted",
+        "statement rows: 52 agrees, 7 within tolerance, 1 not posted",
     ));
     // Without the option, variances do not change the exit status.
     run_to(&dir.path().join("c.xlsx"), &[]).code(0);
@@ -586,6 +625,7 @@ fn the_run_sheet_is_an_audit_trail_of_program_command_inputs_settings_and_time()
         ("as_at", "no limit: every row is known", "default"),
         ("previous_as_at", "2026-11-02", "Settings sheet"),
         ("settlement_lines", "payment-date", "default"),
+        ("statement_amounts", "gross", "Settings sheet"),
     ];
     for (name, value, source) in want {
         assert_eq!(
@@ -736,4 +776,70 @@ fn the_printed_problem_counts_are_the_problems_sheets_including_the_writers_own_
         plural(on_sheet("note"), "note")
     );
     assert!(stdout.contains(&line), "expected '{line}' in:\n{stdout}");
+}
+
+/// The Summary's totals by currency and side, as (currency, side) and the
+/// cells from Accounts on, from the row under its header.
+fn summary_totals(path: &Path) -> (Vec<String>, Vec<Vec<String>>) {
+    let rows = sheet(path, "Summary");
+    let start = rows
+        .iter()
+        .position(|r| r[0] == "Currency" && r[1] == "Side")
+        .expect("the totals header");
+    let header = rows[start].iter().map(|c| c.to_string()).collect();
+    let body = rows[start + 1..]
+        .iter()
+        .take_while(|r| r[1] == "asset" || r[1] == "liability")
+        .map(|r| r.iter().map(|c| c.to_string()).collect())
+        .collect();
+    (header, body)
+}
+
+/// A run with withholding tax adds Tax withheld in window to the Summary's
+/// totals, summed by currency and side; a currency and side without a taxed
+/// account leaves it blank.
+#[test]
+fn the_summary_totals_carry_the_tax_withheld_by_currency_and_side() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("nov.xlsx");
+    run_to(&out, &[]).success();
+    let (header, body) = summary_totals(&out);
+    assert_eq!(header[7], "Prior-period adjustment");
+    assert_eq!(header[8], "Tax withheld in window");
+    let tax = |currency: &str, side: &str| {
+        body.iter()
+            .find(|r| r[0] == currency && r[1] == side)
+            .map(|r| r[8].clone())
+            .unwrap_or_else(|| panic!("no row {currency} {side}"))
+    };
+    // HM-IC-003: 53,083.33 x 15% = 7,962.4995, 7,962.50.
+    assert_eq!(tax("EUR", "asset"), "7962.5");
+    // HM-SAV-T20 60.00 (300.00 x 20%), HM-SAV-T20N 24.00 (its 120.00 as
+    // posted x 20%), HM-SAV-005 exempt 0.00: 84.00.
+    assert_eq!(tax("GBP", "liability"), "84");
+    assert_eq!(tax("USD", "asset"), "");
+    assert_eq!(tax("EUR", "liability"), "");
+}
+
+/// A run without withholding tax writes the totals as before: eight columns.
+#[test]
+fn a_run_without_tax_keeps_the_summary_totals_eight_columns_wide() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("loans.xlsx");
+    ledgerate()
+        .arg("run")
+        .arg(
+            Path::new(env!("CARGO_MANIFEST_DIR"))
+                .join("sample-books/harbourview-loans-2026-11.xlsx"),
+        )
+        .args(["--fixed-time", "2026-12-01T08:00:00", "--out"])
+        .arg(&out)
+        .assert()
+        .success();
+    let (header, body) = summary_totals(&out);
+    assert_eq!(header[7], "Prior-period adjustment");
+    assert_eq!(header.get(8).map(String::as_str).unwrap_or(""), "");
+    assert!(body
+        .iter()
+        .all(|r| r.get(8).map(String::as_str).unwrap_or("").is_empty()));
 }

@@ -580,3 +580,149 @@ fn a_partial_withdrawal_before_maturity_is_a_note() {
     assert!(p.position.cell.ends_with("C2"), "{:?}", p.position);
     assert!(!b.has_errors(), "{:?}", b.problems);
 }
+
+/// A book of `accounts` rows under [`ACCOUNTS_HEAD`] with a `tax_ref`
+/// column of `tax_ref` on every row, a 20% SAVINGS-20 table and
+/// optional movements.
+fn taxed(dir: &Path, accounts: &str, rates: &str, movements: &str) -> Book {
+    fs::create_dir_all(dir).unwrap();
+    let rows: String = accounts
+        .lines()
+        .map(|l| format!("{l},SAVINGS-20\n"))
+        .collect();
+    fs::write(
+        dir.join("accounts.csv"),
+        format!("{},tax_ref\n{rows}", ACCOUNTS_HEAD.trim_end()),
+    )
+    .unwrap();
+    fs::write(
+        dir.join("rates.csv"),
+        format!("rate_ref,effective,rate_percent\n{rates}"),
+    )
+    .unwrap();
+    fs::write(
+        dir.join("tax.csv"),
+        "tax_ref,effective,rate_percent\nSAVINGS-20,2026-01-01,20\n",
+    )
+    .unwrap();
+    if !movements.is_empty() {
+        fs::write(
+            dir.join("movements.csv"),
+            format!("account,value_date,amount\n{movements}"),
+        )
+        .unwrap();
+    }
+    good(read_book(dir, &ReadOptions::default()))
+}
+
+/// Spec example B1 with a 20% tax table: the closing posting's tax is
+/// withheld from the payout (behaviour.md, Account life events, Payout).
+#[test]
+fn spec_example_b1_with_tax_pays_out_net_of_the_closing_postings_tax() {
+    let dir = tempfile::tempdir().unwrap();
+    // The payout movement: 10,000.00 + 4.38 - 7.67 - 0.88 = 9,995.83.
+    let book = taxed(
+        dir.path(),
+        &B1.replace("{limit}", "none"),
+        "TD-B1,2026-01-01,4.00\n",
+        "TD-B1,2026-11-06,-9995.83\n",
+    );
+    let run = account_run(&book, "TD-B1", "2026-11-30");
+    let c = run.life.as_ref().unwrap().closing.as_ref().unwrap();
+    let closing = c.closing_posting.as_ref().unwrap();
+    // 10,000 x 0.04 x 4/365 = 4.3835..., posts 4.38; 4.38 x 0.20 = 0.876,
+    // 0.88 half-up; net 3.50. Worked with Python's decimal module:
+    // Decimal("10000") + Decimal("4.38") - Decimal("7.67") - Decimal("0.88")
+    // == Decimal("9995.83").
+    assert_eq!(closing.posted, dec("4.38"));
+    assert_eq!(closing.withheld.tax, dec("0.88"));
+    assert_eq!(closing.withheld.net, dec("3.50"));
+    assert_eq!(c.penalty, dec("7.67"));
+    assert_eq!(c.payout, dec("9995.83"));
+    assert_eq!(c.paid, dec("-9995.83"));
+    // The payout movement matches: no warning.
+    assert!(
+        run.notes.iter().all(|n| n.severity != Severity::Warning),
+        "{:?}",
+        run.notes
+    );
+    assert_eq!(run.result.balance_at_cutoff, dec("0"));
+
+    // The journal settles the closing posting as net and tax on X.
+    let r = batch(book, "2026-11-30");
+    let mut posted = journal(&r, "interest posted");
+    posted.sort();
+    assert_eq!(
+        posted,
+        vec![
+            (
+                "2026-11-06".into(),
+                "ACCRUED-INTEREST-PAYABLE".into(),
+                "4.38".into(),
+                "0".into()
+            ),
+            (
+                "2026-11-06".into(),
+                "INTEREST-SETTLEMENT".into(),
+                "0".into(),
+                "3.5".into()
+            ),
+            (
+                "2026-11-06".into(),
+                "WITHHOLDING-TAX-PAYABLE".into(),
+                "0".into(),
+                "0.88".into()
+            ),
+        ]
+    );
+}
+
+/// A payout movement of the gross payout (the tax not withheld) differs
+/// from the payout by the tax: a warning naming both figures.
+#[test]
+fn a_payout_that_ignores_the_tax_is_a_warning() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = taxed(
+        dir.path(),
+        &B1.replace("{limit}", "none"),
+        "TD-B1,2026-01-01,4.00\n",
+        "TD-B1,2026-11-06,-9996.71\n",
+    );
+    let run = account_run(&book, "TD-B1", "2026-11-30");
+    let w: Vec<_> = run
+        .notes
+        .iter()
+        .filter(|n| n.severity == Severity::Warning)
+        .collect();
+    assert_eq!(w.len(), 1, "{:?}", run.notes);
+    assert!(
+        w[0].found.contains("-9996.71") && w[0].found.contains("9995.83"),
+        "{}",
+        w[0].found
+    );
+}
+
+/// A capitalised saver closed mid-month with tax: the balance at the end of
+/// X-1 holds October's net, and the payout adds the closing posting's net.
+#[test]
+fn a_capitalised_taxed_saver_closed_pays_out_its_balance_and_the_net() {
+    let dir = tempfile::tempdir().unwrap();
+    let book = taxed(
+        dir.path(),
+        &B5.replace(",monthly,no,", ",monthly,yes,"),
+        "SAV-B5,2026-01-01,3.65\n",
+        "",
+    );
+    let run = account_run(&book, "SAV-B5", "2026-11-30");
+    let c = run.life.as_ref().unwrap().closing.as_ref().unwrap();
+    // October: 100,000 x 0.0365 x 31/365 = 310.00, tax 62.00, net 248.00
+    // capitalised: 100,248.00 from 1 November.
+    assert_eq!(c.balance, dec("100248.00"));
+    // 1..14 November: 100,248 x 0.0365 x 14/365 = 140.3472, posts 140.35;
+    // 140.35 x 0.20 = 28.07; net 112.28; payout 100,248.00 + 112.28 = 100,360.28.
+    let closing = c.closing_posting.as_ref().unwrap();
+    assert_eq!(closing.posted, dec("140.35"));
+    assert_eq!(closing.withheld.tax, dec("28.07"));
+    assert_eq!(c.payout, dec("100360.28"));
+    assert_eq!(run.result.balance_at_cutoff, dec("0"));
+}

@@ -62,19 +62,19 @@ fn a_missing_rates_sheet_is_printed_first_and_its_accounts_on_one_line() {
     );
     assert!(
         lines[1].starts_with(
-            "  error: 44 accounts left out because rates.csv is missing: HM-SAV-001, HM-SAV-002, HM-SAV-003 and 41 more"
+            "  error: 47 accounts left out because rates.csv is missing: HM-SAV-001, HM-SAV-002, HM-SAV-003 and 44 more"
         ),
         "{text}"
     );
     assert!(!text.contains("more errors"), "{text}");
-    // One account names a rate_ref and a debit_rate_ref: 45 on the sheet
+    // One account names a rate_ref and a debit_rate_ref: 48 on the sheet
     // besides the missing file.
     let rows = sheet(&out, "Problems");
     let follow_ons = rows
         .iter()
         .filter(|r| matches!(&r[5], Data::String(s) if s.contains("rate_ref with rows in the Rates sheet")))
         .count();
-    assert_eq!(follow_ons, 45);
+    assert_eq!(follow_ons, 48);
     assert!(rows.iter().any(|r| r[4] == "no such file"));
 }
 
@@ -91,7 +91,7 @@ fn check_lists_each_follow_on_under_its_folded_line() {
         "{text}"
     );
     assert!(
-        lines[2].starts_with("  error: 44 accounts left out"),
+        lines[2].starts_with("  error: 47 accounts left out"),
         "{text}"
     );
     assert!(
@@ -103,10 +103,10 @@ fn check_lists_each_follow_on_under_its_folded_line() {
         text.lines()
             .filter(|l| l.starts_with("    error: "))
             .count(),
-        // 45 rate_ref rows and HM-TD-ROLL's rollover_rate_ref.
-        46
+        // 48 rate_ref rows and HM-TD-ROLL's rollover_rate_ref.
+        49
     );
-    assert!(text.ends_with("47 problems, 47 of them errors\n"), "{text}");
+    assert!(text.ends_with("50 problems, 50 of them errors\n"), "{text}");
 }
 
 /// Found: "1 problems", "1 notes". Expected: the singular for one.
@@ -114,7 +114,7 @@ fn check_lists_each_follow_on_under_its_folded_line() {
 fn one_problem_and_one_note_are_counted_in_the_singular() {
     let a = ledgerate().arg("check").arg(sample()).assert().code(0);
     let text = stdout_of(&a);
-    assert!(text.contains("44 accounts computed, 1 problem\n"), "{text}");
+    assert!(text.contains("47 accounts computed, 1 problem\n"), "{text}");
     assert!(text.ends_with("1 problem, 0 of them errors\n"), "{text}");
     let dir = tempfile::tempdir().unwrap();
     let a = ledgerate()

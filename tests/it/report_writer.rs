@@ -119,6 +119,7 @@ fn report() -> Report {
                 posted_in_window: dec("0"),
                 interest_for_window: dec("411"),
                 prior_period: dec("0"),
+                tax_withheld: None,
             },
             CurrencyTotal {
                 currency: "USD".into(),
@@ -130,6 +131,7 @@ fn report() -> Report {
                 posted_in_window: dec("71.37"),
                 interest_for_window: dec("74.47"),
                 prior_period: dec("-1.25"),
+                tax_withheld: None,
             },
         ],
         left_out: vec![LeftOutLine {

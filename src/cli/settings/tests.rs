@@ -158,6 +158,7 @@ fn without_either_the_default_holds_and_is_listed_as_such() {
             ("as_at", "default"),
             ("previous_as_at", "default"),
             ("settlement_lines", "default"),
+            ("statement_amounts", "default"),
         ]
     );
     assert_eq!(s.as_at, None);
