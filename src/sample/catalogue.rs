@@ -104,7 +104,7 @@ const fn spec(
 }
 
 /// The first table of every product: in force well before any account opens.
-const BASE_EFFECTIVE: NaiveDate = date(2025, 1, 1);
+pub(crate) const BASE_EFFECTIVE: NaiveDate = date(2025, 1, 1);
 
 /// One product: its Rates rows and the schedule they make.
 #[derive(Debug, Clone)]

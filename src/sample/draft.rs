@@ -768,8 +768,7 @@ pub(crate) fn draft(
         _ => None,
     };
     t.tax = taxable.and_then(|x| taxes.draw(&mut r, x));
-    let net_plant =
-        (t.tax.is_some() && r.chance(NET_POSTINGS_PER_MILLE)).then(|| r.chance(500));
+    let net_plant = (t.tax.is_some() && r.chance(NET_POSTINGS_PER_MILLE)).then(|| r.chance(500));
     // A life event's account or a statement posted net of tax gets no
     // other mistake.
     let plant = plant.filter(|_| life.is_none() && net_plant.is_none());

@@ -14,10 +14,10 @@ use std::sync::Arc;
 
 use chrono::NaiveDate;
 
-use super::catalogue::{shelf, Product, Shelf};
-use super::{date, CUTOFF};
+use super::catalogue::{shelf, Product, Shelf, BASE_EFFECTIVE};
 use super::draft::{day_between, money, plus_days};
 use super::rng::Rng;
+use super::{date, CUTOFF};
 use crate::engine::events::{AfterMaturity, BreakPenalty, PenaltyLimit};
 use crate::engine::{AccountTerms, Movement};
 
@@ -78,7 +78,11 @@ impl LifeKind {
 /// A saver closed on a day in the month, some of the time: its movements
 /// from that day on are dropped (the payout on the close day is added once
 /// the run has worked it out).
-pub(crate) fn saver(r: &mut Rng, t: &mut AccountTerms, moves: &mut Vec<Movement>) -> Option<LifeKind> {
+pub(crate) fn saver(
+    r: &mut Rng,
+    t: &mut AccountTerms,
+    moves: &mut Vec<Movement>,
+) -> Option<LifeKind> {
     if !r.chance(SAVER_CLOSES_PER_MILLE) {
         return None;
     }
@@ -113,7 +117,9 @@ pub(crate) fn term(r: &mut Rng, t: &mut AccountTerms, products: &[Product]) -> O
                 BreakPenalty::Days(*r.pick(&[30u32, 60, 90]).unwrap_or(&30)),
                 LifeKind::BrokenDays,
             ),
-            1 => match pick(r, Shelf::Break) {
+            // The break rate card starts in 2025: a term opened before
+            // it pays days' interest instead.
+            1 => match pick(r, Shelf::Break).filter(|_| t.open_date >= BASE_EFFECTIVE) {
                 Some((name, rates)) => (BreakPenalty::Rate(name, rates), LifeKind::BrokenRate),
                 None => (BreakPenalty::Days(30), LifeKind::BrokenDays),
             },

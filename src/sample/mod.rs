@@ -47,11 +47,11 @@ use rust_decimal::Decimal;
 use crate::batch::journal::ResolvedGl;
 use crate::book::AccountEntry;
 use crate::conventions::calendar::Calendar;
+use crate::engine::events::{AfterMaturity, BreakPenalty, PenaltyLimit};
 use crate::engine::floating::{FixingFallback, Fixings};
 use crate::engine::ledger::SettlementLines;
 use crate::engine::rates::RateSchedule;
 use crate::engine::reconcile::Tolerance;
-use crate::engine::events::{AfterMaturity, BreakPenalty, PenaltyLimit};
 use crate::engine::{EngineError, Movement, RoundAt, TierMethod};
 use crate::pipeline::{run_account, BookAccount, Options};
 use crate::report::book_writer::Value;
@@ -59,13 +59,13 @@ use crate::schema::{layout, Layout, SheetKind, ACCOUNTS, MOVEMENTS, RATES, STATE
 
 use catalogue::Product;
 use draft::Draft;
-use tax::Taxes;
 pub use ledger::{
     BookedMistake, MixedSides, OpeningBalances, SampleBooked, SampleLedger, OPENING_DAY,
     PREVIOUS_AS_AT,
 };
 pub use life::{LifeKind, SAVER_CLOSES_PER_MILLE, TERM_EVENTS_PER_MILLE};
 pub use plant::{Mistake, MistakeKind};
+use tax::Taxes;
 pub use tax::{NET_POSTINGS_PER_MILLE, TAXED_SAVERS_PER_MILLE, TREATY_LOANS_PER_MILLE};
 
 /// The cut-off of the sample books (the Settings sheet's `cutoff`).
@@ -310,9 +310,12 @@ impl SampleAccount {
             BreakPenalty::None => (Value::Empty, Value::Empty, Value::Empty, Value::Empty),
             BreakPenalty::Days(n) => (text("days"), number(*n), Value::Empty, Value::Empty),
             BreakPenalty::Rate(r, _) => (text("rate"), Value::Empty, text(r), Value::Empty),
-            BreakPenalty::Amount(a) => {
-                (text("amount"), Value::Empty, Value::Empty, Value::Number(*a))
-            }
+            BreakPenalty::Amount(a) => (
+                text("amount"),
+                Value::Empty,
+                Value::Empty,
+                Value::Number(*a),
+            ),
         };
         let (after, matured_ref, months, roll_ref) = match &e.after_maturity {
             AfterMaturity::None if self.life == Some(LifeKind::MaturedUnpaid) => {
@@ -322,7 +325,12 @@ impl SampleAccount {
             AfterMaturity::Rate(r, _) => (text("rate"), text(r), Value::Empty, Value::Empty),
             AfterMaturity::Rollover {
                 months, rate_ref, ..
-            } => (text("rollover"), Value::Empty, number(*months), text(rate_ref)),
+            } => (
+                text("rollover"),
+                Value::Empty,
+                number(*months),
+                text(rate_ref),
+            ),
         };
         [
             opt_date(e.close_date),
