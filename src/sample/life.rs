@@ -76,7 +76,7 @@ impl LifeKind {
 }
 
 /// A saver closed on a day in the month, some of the time: its movements
-/// from that day on are dropped (the payout on the close day is added once
+/// valued or booked from that day on are dropped (the payout on the close day is added once
 /// the run has worked it out).
 pub(crate) fn saver(
     r: &mut Rng,
@@ -88,7 +88,10 @@ pub(crate) fn saver(
     }
     let first = plus_days(t.open_date, 2).max(SAVER_CLOSE.0);
     let x = day_between(r, first.min(SAVER_CLOSE.1), SAVER_CLOSE.1);
-    moves.retain(|m| m.value_date < x);
+    // A movement booked on the close date or later, even valued before it,
+    // is left out too: its back-valued interest has no posting left to
+    // join (the account has closed).
+    moves.retain(|m| m.booking_date.unwrap_or(m.value_date) < x);
     t.events.close_date = Some(x);
     Some(LifeKind::Closed)
 }

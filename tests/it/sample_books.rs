@@ -535,6 +535,10 @@ fn a_generated_book_with_life_events_and_tax_runs_clean_and_its_shards_merge() {
             .unwrap();
         let closed = a.entry.terms.events.close_date.is_some();
         assert_eq!(r["Status"] == "closed", closed, "{r:?}");
+        if closed {
+            assert_eq!(r["Balance at cut-off"], "0", "{r:?}");
+            assert_eq!(r["Accrued at cut-off"], "0", "{r:?}");
+        }
         match &a.entry.terms.tax {
             Some(t) if t.schedule.tax_ref != "TAX-EXEMPT" => {
                 taxed += 1;
