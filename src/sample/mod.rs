@@ -2,7 +2,7 @@
 //! an invented credit union, closing November 2026.
 //!
 //! A [`Generator`] makes the rows of every sheet of a book (Accounts, Rates,
-//! Movements, Statements, Booked, Trial balance, Holidays, Settings) from a
+//! Movements, Statements, Booked, Trial balance, Holidays, Settings, Tax) from a
 //! seed and a number of accounts. The mix is meant to look like a real book:
 //! every day-count basis and every compounding rule the engine supports,
 //! whole and banded tiers, 0 to 6 movements and 0 to 2 rate changes per
@@ -20,6 +20,14 @@
 //! and quarterly loans in the middle of their posting period (no statement
 //! row in November) have the core system's open item at the cut-off on the
 //! Booked sheet, about 15% of them a day of interest off ([`BookedMistake`]).
+//!
+//! Life events and tax (`life.rs`, `tax.rs`): about 2% of the accounts have a
+//! life event ([`LifeKind`]: savers closed in the month, their payout on
+//! the close date being the run's own figure; term deposits broken early
+//! with each penalty kind, matured unpaid, earning a rate after maturity or
+//! rolled over), and about 4% name a tax_ref of the Tax sheet, about 8% of
+//! their statement rows planted posted net of tax. They draw last in each
+//! account's stream, so every other account is as it was.
 //!
 //! Pure generation: this module never writes a file, reads the clock or asks
 //! the operating system for randomness. Each account draws from its own
