@@ -2,8 +2,9 @@
 //! the same for the same seed, that the reader takes without an error, and
 //! whose planted statement mistakes a month-end run finds and names; whose
 //! Tie-out agrees, with prior-period adjustments, and whose planted Booked
-//! rows the Accrued check finds and names (the workbook read back with
-//! calamine).
+//! rows the Accrued check finds and names; whose accounts with life events
+//! and withholding tax run clean and merge from shards (the workbook read
+//! back with calamine).
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
