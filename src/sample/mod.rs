@@ -259,7 +259,7 @@ impl SampleAccount {
     pub fn account_row(&self) -> Vec<Value> {
         let t = &self.entry.terms;
         let default_ref = self.entry.rate_ref == t.id;
-        vec![
+        let mut row = vec![
             text(&t.id),
             text(&self.entry.name),
             text(&t.currency),
@@ -303,10 +303,9 @@ impl SampleAccount {
             t.tax
                 .as_ref()
                 .map_or(Value::Empty, |x| text(&x.schedule.tax_ref)),
-        ]
-        .into_iter()
-        .chain(self.life_cells())
-        .collect()
+        ];
+        row.extend(self.life_cells());
+        row
     }
 
     /// The life-event cells of the Accounts row: close_date to
