@@ -155,7 +155,12 @@ fn write_rows(generator: &Generator, writer: &mut BookWriter, accounts: u64) -> 
         }
         Ok::<(), crate::report::ReportError>(())
     };
-    for sheet in [SheetKind::Rates, SheetKind::Holidays, SheetKind::Settings] {
+    for sheet in [
+        SheetKind::Rates,
+        SheetKind::Holidays,
+        SheetKind::Settings,
+        SheetKind::Tax,
+    ] {
         add(writer, sheet, generator.fixed_rows(sheet))?;
     }
     let mut planted: BTreeMap<MistakeKind, u64> = BTreeMap::new();

@@ -5,6 +5,8 @@
 //! Pure: the products follow from the seed alone (stream 0 of [`Rng`]).
 //! Nothing here knows about accounts or files.
 
+use std::sync::Arc;
+
 use chrono::{Days, NaiveDate};
 use rust_decimal::Decimal;
 
@@ -32,6 +34,12 @@ pub(crate) enum Shelf {
     Overdraft,
     Yen,
     Dinar,
+    /// The break rate of term deposits closed early with a `rate` penalty.
+    Break,
+    /// What matured term deposits earn until paid out.
+    Matured,
+    /// The rate card new terms of rolled-over deposits take.
+    Rollover,
 }
 
 /// One shelf of the catalogue: products, reference prefix, base rate range
@@ -53,7 +61,7 @@ const NOVEMBER: (NaiveDate, NaiveDate) = (date(2026, 11, 2), date(2026, 11, 28))
 /// Loans pay on the 15th: their period is mid-October to mid-November.
 const LOAN_PERIOD: (NaiveDate, NaiveDate) = (date(2026, 10, 19), date(2026, 11, 12));
 
-const SHELVES: [ShelfSpec; 17] = [
+const SHELVES: [ShelfSpec; 20] = [
     spec(Shelf::Saver, "HM-SAVER", 12, (150, 350), false, NOVEMBER),
     spec(Shelf::TierWhole, "HM-TIER-W", 6, (40, 120), true, NOVEMBER),
     spec(Shelf::TierBanded, "HM-TIER-B", 6, (40, 120), true, NOVEMBER),
@@ -71,6 +79,10 @@ const SHELVES: [ShelfSpec; 17] = [
     spec(Shelf::Overdraft, "HM-OD", 2, (1500, 2100), false, NOVEMBER),
     spec(Shelf::Yen, "HM-JPY", 1, (10, 40), false, NOVEMBER),
     spec(Shelf::Dinar, "HM-KWD", 1, (350, 450), false, NOVEMBER),
+    // Drawn after the shelves above, so their products stay as they were.
+    spec(Shelf::Break, "HM-BREAK", 1, (50, 150), false, NOVEMBER),
+    spec(Shelf::Matured, "HM-MATURED", 1, (25, 75), false, NOVEMBER),
+    spec(Shelf::Rollover, "HM-ROLL", 2, (250, 450), false, NOVEMBER),
 ];
 
 const fn spec(
@@ -92,7 +104,7 @@ const fn spec(
 }
 
 /// The first table of every product: in force well before any account opens.
-const BASE_EFFECTIVE: NaiveDate = date(2025, 1, 1);
+pub(crate) const BASE_EFFECTIVE: NaiveDate = date(2025, 1, 1);
 
 /// One product: its Rates rows and the schedule they make.
 #[derive(Debug, Clone)]
@@ -100,7 +112,7 @@ pub(crate) struct Product {
     pub shelf: Shelf,
     pub rate_ref: String,
     pub rows: Vec<RateRow>,
-    pub schedule: RateSchedule,
+    pub schedule: Arc<RateSchedule>,
 }
 
 /// The catalogue of `seed`.
@@ -177,7 +189,7 @@ fn product(s: &ShelfSpec, n: u32, r: &mut Rng) -> Product {
         shelf: s.shelf,
         rate_ref,
         rows,
-        schedule,
+        schedule: Arc::new(schedule),
     }
 }
 

@@ -10,7 +10,9 @@ use chrono::{Days, Months, NaiveDate};
 use rust_decimal::Decimal;
 
 use super::catalogue::{shelf, Product, Shelf};
+use super::life::{self, LifeKind};
 use super::rng::Rng;
+use super::tax::{Taxable, Taxes, NET_POSTINGS_PER_MILLE};
 use super::{
     date, Calendars, RateRow, BOOKED_MISTAKES_PER_MILLE, CUTOFF, LATE_BOOKINGS_PER_MILLE,
     MISTAKES_PER_MILLE, WINDOW_START,
@@ -41,6 +43,11 @@ pub(crate) struct Draft {
     /// The random stream of the day-off planted in that Booked row, when
     /// it gets one.
     pub booked_plant: Option<u64>,
+    /// Its life event, if any (set on its terms).
+    pub life: Option<LifeKind>,
+    /// Whether its statement is planted net of tax, and if so whether at
+    /// the rate no longer in force (`true`) or the one in force.
+    pub net_plant: Option<bool>,
 }
 
 /// The kinds of account of the sample institution.
@@ -503,7 +510,7 @@ const PLACES: [&str; 16] = [
     "Ferry Steps",
 ];
 
-fn plus_days(d: NaiveDate, n: i64) -> NaiveDate {
+pub(super) fn plus_days(d: NaiveDate, n: i64) -> NaiveDate {
     let step = Days::new(n.unsigned_abs());
     let moved = if n >= 0 {
         d.checked_add_days(step)
@@ -514,12 +521,12 @@ fn plus_days(d: NaiveDate, n: i64) -> NaiveDate {
 }
 
 /// A day between `from` and `to` inclusive.
-fn day_between(r: &mut Rng, from: NaiveDate, to: NaiveDate) -> NaiveDate {
+pub(super) fn day_between(r: &mut Rng, from: NaiveDate, to: NaiveDate) -> NaiveDate {
     plus_days(from, r.between(0, (to - from).num_days()))
 }
 
 /// An amount of `units` whole currency units and random minor units.
-fn money(r: &mut Rng, lo: i64, hi: i64, minor_units: u32) -> Decimal {
+pub(super) fn money(r: &mut Rng, lo: i64, hi: i64, minor_units: u32) -> Decimal {
     let scale = 10i64.pow(minor_units);
     let whole = r.between(lo, hi);
     Decimal::new(
@@ -643,7 +650,7 @@ fn movements(r: &mut Rng, flow: Flow, t: &AccountTerms, last: NaiveDate) -> Vec<
 
 /// A movement's reference: its kind, value date (month and day), number
 /// in the account and the account's serial number.
-fn reference(kind: &str, value_date: NaiveDate, n: usize, id: &str) -> String {
+pub(super) fn reference(kind: &str, value_date: NaiveDate, n: usize, id: &str) -> String {
     format!(
         "{kind}-{}{n:02}-{}",
         value_date.format("%m%d"),
@@ -694,7 +701,13 @@ fn booked_late(r: &mut Rng, flow: Flow, t: &AccountTerms) -> Option<Movement> {
 /// Draws account `index` of the book of `seed`: its family and name, its
 /// opening, its terms, what its family adds, its rate product and its
 /// movements, in that order from the account's own stream.
-pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendars) -> Draft {
+pub(crate) fn draft(
+    seed: u64,
+    index: u64,
+    products: &[Product],
+    cals: &Calendars,
+    taxes: &Taxes,
+) -> Draft {
     let mut r = Rng::stream(seed, index.saturating_add(1));
     let spec = pick_spec(&mut r);
     let id = format!("HM-{}-{:07}", spec.code, index.saturating_add(1));
@@ -742,6 +755,23 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
     }
     let booked_close = spec.family.booked_at_cutoff();
     let booked_plant = (booked_close && r.chance(BOOKED_MISTAKES_PER_MILLE)).then(|| r.next_u64());
+    // Life events and tax draw after the ledger side, so the accounts
+    // without them stay as they were.
+    let life = match spec.family {
+        Family::Saver => life::saver(&mut r, &mut t, &mut moves),
+        Family::Term => life::term(&mut r, &mut t, products),
+        _ => None,
+    };
+    let taxable = match spec.family {
+        Family::Saver if life.is_none() => Some(Taxable::Saver),
+        Family::Intercompany if t.side == Side::Asset => Some(Taxable::Treaty),
+        _ => None,
+    };
+    t.tax = taxable.and_then(|x| taxes.draw(&mut r, x));
+    let net_plant = (t.tax.is_some() && r.chance(NET_POSTINGS_PER_MILLE)).then(|| r.chance(500));
+    // A life event's account or a statement posted net of tax gets no
+    // other mistake.
+    let plant = plant.filter(|_| life.is_none() && net_plant.is_none());
     Draft {
         entry: AccountEntry {
             name: more.name,
@@ -768,6 +798,8 @@ pub(crate) fn draft(seed: u64, index: u64, products: &[Product], cals: &Calendar
         plant,
         booked_close,
         booked_plant,
+        life,
+        net_plant,
     }
 }
 

@@ -2,7 +2,7 @@
 //! an invented credit union, closing November 2026.
 //!
 //! A [`Generator`] makes the rows of every sheet of a book (Accounts, Rates,
-//! Movements, Statements, Booked, Trial balance, Holidays, Settings) from a
+//! Movements, Statements, Booked, Trial balance, Holidays, Settings, Tax) from a
 //! seed and a number of accounts. The mix is meant to look like a real book:
 //! every day-count basis and every compounding rule the engine supports,
 //! whole and banded tiers, 0 to 6 movements and 0 to 2 rate changes per
@@ -21,6 +21,14 @@
 //! row in November) have the core system's open item at the cut-off on the
 //! Booked sheet, about 15% of them a day of interest off ([`BookedMistake`]).
 //!
+//! Life events and tax (`life.rs`, `tax.rs`): about 2% of the accounts have a
+//! life event ([`LifeKind`]: savers closed in the month, their payout on
+//! the close date being the run's own figure; term deposits broken early
+//! with each penalty kind, matured unpaid, earning a rate after maturity or
+//! rolled over), and about 4% name a tax_ref of the Tax sheet, about 8% of
+//! their statement rows planted posted net of tax. They draw last in each
+//! account's stream, so every other account is as it was.
+//!
 //! Pure generation: this module never writes a file, reads the clock or asks
 //! the operating system for randomness. Each account draws from its own
 //! stream of a small deterministic generator ([`rng::Rng`]) mixed from the
@@ -31,8 +39,10 @@
 mod catalogue;
 mod draft;
 pub mod ledger;
+mod life;
 mod plant;
 pub mod rng;
+mod tax;
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::ops::Range;
@@ -45,6 +55,7 @@ use rust_decimal::Decimal;
 use crate::batch::journal::ResolvedGl;
 use crate::book::AccountEntry;
 use crate::conventions::calendar::Calendar;
+use crate::engine::events::{AfterMaturity, BreakPenalty, PenaltyLimit};
 use crate::engine::floating::{FixingFallback, Fixings};
 use crate::engine::ledger::SettlementLines;
 use crate::engine::rates::RateSchedule;
@@ -60,7 +71,10 @@ pub use ledger::{
     BookedMistake, MixedSides, OpeningBalances, SampleBooked, SampleLedger, OPENING_DAY,
     PREVIOUS_AS_AT,
 };
+pub use life::{LifeKind, SAVER_CLOSES_PER_MILLE, TERM_EVENTS_PER_MILLE};
 pub use plant::{Mistake, MistakeKind};
+use tax::Taxes;
+pub use tax::{NET_POSTINGS_PER_MILLE, TAXED_SAVERS_PER_MILLE, TREATY_LOANS_PER_MILLE};
 
 /// The cut-off of the sample books (the Settings sheet's `cutoff`).
 pub const CUTOFF: NaiveDate = date(2026, 11, 30);
@@ -111,7 +125,7 @@ fn opt_date(d: Option<NaiveDate>) -> Value {
 /// assert_eq!(SHEETS[3].labels()[3], "posted_interest");
 /// assert_eq!(SHEETS[5].labels(), ["entity", "currency", "gl_account", "date", "balance"]);
 /// ```
-pub const SHEETS: [Layout; 8] = [
+pub const SHEETS: [Layout; 9] = [
     layout!(
         ACCOUNTS,
         "account",
@@ -137,6 +151,17 @@ pub const SHEETS: [Layout; 8] = [
         "business_day",
         "gl_interest",
         "gl_accrued",
+        "tax_ref",
+        "close_date",
+        "break_penalty",
+        "break_days",
+        "break_rate_ref",
+        "break_amount",
+        "penalty_limit",
+        "after_maturity",
+        "matured_rate_ref",
+        "rollover_months",
+        "rollover_rate_ref",
     ),
     layout!(RATES, "rate_ref", "effective", "rate_percent", "tier_from"),
     layout!(
@@ -159,6 +184,7 @@ pub const SHEETS: [Layout; 8] = [
     Layout::every(SheetKind::TrialBalance),
     Layout::every(SheetKind::Holidays),
     Layout::every(SheetKind::Settings),
+    Layout::every(SheetKind::Tax),
 ];
 
 /// One row of the Rates sheet.
@@ -224,6 +250,8 @@ pub struct SampleAccount {
     /// Its Booked row at the cut-off: a term deposit or loan in the middle
     /// of its posting period.
     pub booked: Option<SampleBooked>,
+    /// Its life event, if any (the terms hold it).
+    pub life: Option<LifeKind>,
 }
 
 impl SampleAccount {
@@ -231,7 +259,7 @@ impl SampleAccount {
     pub fn account_row(&self) -> Vec<Value> {
         let t = &self.entry.terms;
         let default_ref = self.entry.rate_ref == t.id;
-        vec![
+        let mut row = vec![
             text(&t.id),
             text(&self.entry.name),
             text(&t.currency),
@@ -272,6 +300,59 @@ impl SampleAccount {
             text(t.business_day.name()),
             self.entry.gl.interest.as_deref().map_or(Value::Empty, text),
             self.entry.gl.accrued.as_deref().map_or(Value::Empty, text),
+            t.tax
+                .as_ref()
+                .map_or(Value::Empty, |x| text(&x.schedule.tax_ref)),
+        ];
+        row.extend(self.life_cells());
+        row
+    }
+
+    /// The life-event cells of the Accounts row: close_date to
+    /// rollover_rate_ref.
+    fn life_cells(&self) -> [Value; 10] {
+        let e = &self.entry.terms.events;
+        let number = |n: u32| Value::Number(Decimal::from(n));
+        let (penalty, days, break_ref, amount) = match &e.break_penalty {
+            BreakPenalty::None => (Value::Empty, Value::Empty, Value::Empty, Value::Empty),
+            BreakPenalty::Days(n) => (text("days"), number(*n), Value::Empty, Value::Empty),
+            BreakPenalty::Rate(r, _) => (text("rate"), Value::Empty, text(r), Value::Empty),
+            BreakPenalty::Amount(a) => (
+                text("amount"),
+                Value::Empty,
+                Value::Empty,
+                Value::Number(*a),
+            ),
+        };
+        let (after, matured_ref, months, roll_ref) = match &e.after_maturity {
+            AfterMaturity::None if self.life == Some(LifeKind::MaturedUnpaid) => {
+                (text("none"), Value::Empty, Value::Empty, Value::Empty)
+            }
+            AfterMaturity::None => (Value::Empty, Value::Empty, Value::Empty, Value::Empty),
+            AfterMaturity::Rate(r, _) => (text("rate"), text(r), Value::Empty, Value::Empty),
+            AfterMaturity::Rollover {
+                months, rate_ref, ..
+            } => (
+                text("rollover"),
+                Value::Empty,
+                number(*months),
+                text(rate_ref),
+            ),
+        };
+        [
+            opt_date(e.close_date),
+            penalty,
+            days,
+            break_ref,
+            amount,
+            match e.penalty_limit {
+                PenaltyLimit::Interest => text("interest"),
+                PenaltyLimit::None => Value::Empty,
+            },
+            after,
+            matured_ref,
+            months,
+            roll_ref,
         ]
     }
 
@@ -385,6 +466,7 @@ pub struct Generator {
     accounts: u64,
     products: Vec<Product>,
     calendars: Calendars,
+    taxes: Taxes,
 }
 
 /// The calendars of the book's Holidays sheet.
@@ -428,6 +510,7 @@ impl Generator {
                 harbour: Arc::new(calendar("HARBOUR")),
                 brazil: Arc::new(calendar("BR-2026")),
             },
+            taxes: Taxes::new(),
         }
     }
 
@@ -458,7 +541,9 @@ impl Generator {
                 vec![text("cutoff"), Value::Date(CUTOFF)],
                 vec![text("entity"), text(ENTITY)],
                 vec![text("previous_as_at"), Value::Date(PREVIOUS_AS_AT)],
+                vec![text("statement_amounts"), text("gross")],
             ],
+            SheetKind::Tax => Taxes::rows(),
             _ => Vec::new(),
         }
     }
@@ -475,7 +560,9 @@ impl Generator {
                 || (0, 0, 0, BTreeSet::new()),
                 |mut t: Tally, i| {
                     let d = self.draft(i);
-                    t.0 += d.movements.len() as u64;
+                    // A closed account's payout movement is added after its run.
+                    t.0 += d.movements.len() as u64
+                        + u64::from(d.entry.terms.events.close_date.is_some());
                     t.1 += d.own_rates.len() as u64;
                     t.2 += u64::from(d.booked_close);
                     let gl = ResolvedGl::of(d.entry.terms.side, &d.entry.gl).accrued;
@@ -506,11 +593,18 @@ impl Generator {
             (SheetKind::TrialBalance, gls.len() as u64),
             (SheetKind::Holidays, fixed(SheetKind::Holidays)),
             (SheetKind::Settings, fixed(SheetKind::Settings)),
+            (SheetKind::Tax, fixed(SheetKind::Tax)),
         ])
     }
 
     fn draft(&self, index: u64) -> Draft {
-        draft::draft(self.seed, index, &self.products, &self.calendars)
+        draft::draft(
+            self.seed,
+            index,
+            &self.products,
+            &self.calendars,
+            &self.taxes,
+        )
     }
 
     /// The account numbered `index` (0-based), with its statement row
@@ -529,7 +623,7 @@ impl Generator {
             Some(p) => self
                 .products
                 .get(p)
-                .map(|p| &p.schedule)
+                .map(|p| &*p.schedule)
                 .ok_or_else(|| fail(EngineError::Unsupported("no rate product".into())))?,
             None => {
                 own = RateSchedule::from_rows(d.own_rates.iter().map(|r| {
@@ -545,7 +639,7 @@ impl Generator {
         let debit = d
             .debit_product
             .and_then(|p| self.products.get(p))
-            .map(|p| &p.schedule);
+            .map(|p| &*p.schedule);
         let fixings = Fixings::new();
         let inputs = BookAccount {
             entry: &d.entry,
@@ -597,6 +691,13 @@ impl Generator {
                 posted = amount;
                 mistake = Some(m);
             }
+            if let (Some(earlier), Some(tax)) = (d.net_plant, &d.entry.terms.tax) {
+                let minor = d.entry.terms.minor_units;
+                if let Some((m, amount)) = tax::posted_net(tax, p, minor, earlier).map_err(fail)? {
+                    posted = amount;
+                    mistake = Some(m);
+                }
+            }
             statement = Some(SampleStatement {
                 start: p.start,
                 end: p.end,
@@ -605,16 +706,28 @@ impl Generator {
                 reference: format!("ST-{}-{}", d.entry.terms.id, p.end.format("%Y%m")),
             });
         }
+        let mut movements = d.movements;
+        // A close's payout, valued on the close date, as the run works it out.
+        if let Some(c) = run.life.as_ref().and_then(|l| l.closing.as_ref()) {
+            let n = movements.len().saturating_add(1);
+            movements.push(Movement {
+                value_date: c.date,
+                amount: -c.payout,
+                booking_date: None,
+                reference: Some(draft::reference("PAYOUT", c.date, n, &d.entry.terms.id)),
+            });
+        }
         Ok(SampleAccount {
             index,
             entry: d.entry,
             calendar: d.calendar,
-            movements: d.movements,
+            movements,
             own_rates: d.own_rates,
             statement,
             mistake,
             ledger,
             booked,
+            life: d.life,
         })
     }
 

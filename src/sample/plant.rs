@@ -39,11 +39,15 @@ pub enum MistakeKind {
     PeriodADayOff,
     /// The right amount plus an amount no single change explains.
     UnexplainedAmount,
+    /// The right gross less the tax withheld from it, on a statement of
+    /// gross amounts (planted only on taxed accounts).
+    PostedNetOfTax,
 }
 
 impl MistakeKind {
-    /// Every kind, in the order they are tried.
-    pub const ALL: [MistakeKind; 7] = [
+    /// Every kind: the seven tried on any account, then the one of taxed
+    /// accounts.
+    pub const ALL: [MistakeKind; 8] = [
         MistakeKind::OtherBasis,
         MistakeKind::RateChangeNotApplied,
         MistakeKind::RateChangeMoved,
@@ -51,6 +55,7 @@ impl MistakeKind {
         MistakeKind::MovementLeftOut,
         MistakeKind::PeriodADayOff,
         MistakeKind::UnexplainedAmount,
+        MistakeKind::PostedNetOfTax,
     ];
 
     /// The kind in words.
@@ -68,6 +73,7 @@ impl MistakeKind {
             MistakeKind::MovementLeftOut => "movement left out",
             MistakeKind::PeriodADayOff => "period a day off",
             MistakeKind::UnexplainedAmount => "unexplained amount",
+            MistakeKind::PostedNetOfTax => "posted net of tax",
         }
     }
 }
@@ -115,6 +121,13 @@ pub enum Mistake {
         /// The amount added.
         extra: Decimal,
     },
+    /// Posted as the gross less `tax` withheld at `percent`.
+    PostedNetOfTax {
+        /// The tax rate used, in percent (22 for 22%).
+        percent: Decimal,
+        /// The tax taken off the gross.
+        tax: Decimal,
+    },
 }
 
 impl Mistake {
@@ -130,6 +143,7 @@ impl Mistake {
                 MistakeKind::PeriodADayOff
             }
             Mistake::UnexplainedAmount { .. } => MistakeKind::UnexplainedAmount,
+            Mistake::PostedNetOfTax { .. } => MistakeKind::PostedNetOfTax,
         }
     }
 }
@@ -156,6 +170,18 @@ impl Job<'_> {
     }
 }
 
+/// The kinds planted on any account, in the order they are tried (a
+/// statement posted net of tax is planted by the sample's tax module).
+const TRIED: [MistakeKind; 7] = [
+    MistakeKind::OtherBasis,
+    MistakeKind::RateChangeNotApplied,
+    MistakeKind::RateChangeMoved,
+    MistakeKind::MovementMoved,
+    MistakeKind::MovementLeftOut,
+    MistakeKind::PeriodADayOff,
+    MistakeKind::UnexplainedAmount,
+];
+
 /// A mistake must move the amount by at least this many minor units, so
 /// that the row is outside the default tolerance (one minor unit).
 const LEAST_GAP_UNITS: i64 = 3;
@@ -167,11 +193,11 @@ const LEAST_GAP_UNITS: i64 = 3;
 /// that fail are simply not planted).
 pub(crate) fn plant(job: &Job, stream: u64) -> Result<(Mistake, Decimal), EngineError> {
     let mut r = Rng::stream(stream, 0x5EED);
-    let first = usize::try_from(r.below(MistakeKind::ALL.len() as u64)).unwrap_or(0);
+    let first = usize::try_from(r.below(TRIED.len() as u64)).unwrap_or(0);
     let least = Decimal::new(LEAST_GAP_UNITS, job.terms().minor_units);
     let right = job.posting.expected;
-    for k in 0..MistakeKind::ALL.len() {
-        let Some(kind) = MistakeKind::ALL.get((first + k) % MistakeKind::ALL.len()) else {
+    for k in 0..TRIED.len() {
+        let Some(kind) = TRIED.get((first + k) % TRIED.len()) else {
             continue;
         };
         if let Some((m, amount)) = attempt(*kind, job, &mut r)? {
@@ -267,6 +293,7 @@ fn attempt(
         MistakeKind::MovementLeftOut => movement_left_out(job, r),
         MistakeKind::PeriodADayOff => period_a_day_off(job, r)?,
         MistakeKind::UnexplainedAmount => Some(unexplained(job, r)),
+        MistakeKind::PostedNetOfTax => None,
     })
 }
 

@@ -2,8 +2,9 @@
 //! the same for the same seed, that the reader takes without an error, and
 //! whose planted statement mistakes a month-end run finds and names; whose
 //! Tie-out agrees, with prior-period adjustments, and whose planted Booked
-//! rows the Accrued check finds and names (the workbook read back with
-//! calamine).
+//! rows the Accrued check finds and names; whose accounts with life events
+//! and withholding tax run clean and merge from shards (the workbook read
+//! back with calamine).
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -202,6 +203,11 @@ fn named(mistake: &Mistake, cause: &str) -> bool {
         Mistake::PeriodEndADayEarly => cause.contains("period end a day early"),
         Mistake::UnexplainedAmount { .. } => {
             cause.starts_with("no single change reproduces the posted amount")
+        }
+        Mistake::PostedNetOfTax { percent, tax } => {
+            cause.contains("posted net of")
+                && cause.contains(&format!("{percent}%"))
+                && cause.contains(&format!("({tax}"))
         }
     }
 }
@@ -457,4 +463,144 @@ fn an_existing_book_is_not_replaced_without_force() {
         .assert()
         .success();
     assert_ne!(std::fs::read(&out).unwrap(), b"keep me");
+}
+
+/// Every sheet of a workbook, by name, as calamine reads it.
+fn all_sheets(path: &Path) -> Vec<(String, Vec<Vec<Data>>)> {
+    let mut wb = open_workbook_auto(path).unwrap();
+    wb.sheet_names()
+        .into_iter()
+        .map(|n| {
+            let rows = wb
+                .worksheet_range(&n)
+                .unwrap()
+                .rows()
+                .map(|r| r.to_vec())
+                .collect();
+            (n, rows)
+        })
+        .collect()
+}
+
+/// A generated book with account life events and withholding tax
+/// (behaviour.md, Account life events; Withholding tax): every status of
+/// an account's life is on the Accruals sheet, taxed accounts have tax
+/// withheld in the window, the run has no errors and its Tie-out agrees,
+/// a statement planted net of tax is found and named, and the book's
+/// shards merged equal the single run.
+#[test]
+fn a_generated_book_with_life_events_and_tax_runs_clean_and_its_shards_merge() {
+    let dir = tempfile::tempdir().unwrap();
+    let (accounts, seed) = (500, 3);
+    let book = dir.path().join("book.xlsx");
+    sample(accounts, seed, "xlsx", &book);
+    let time = ["--fixed-time", "2026-12-01T08:00:00"];
+    let single = dir.path().join("single.xlsx");
+    ledgerate()
+        .arg("run")
+        .arg(&book)
+        .args(time)
+        .arg("--out")
+        .arg(&single)
+        .assert()
+        .success()
+        .stdout(predicate::str::contains(format!(
+            "accounts: {accounts} read, {accounts} computed, 0 left out by errors"
+        )))
+        .stdout(predicate::str::contains("problems: 0 errors"))
+        .stdout(predicate::str::contains("all agree"));
+    for row in labelled_rows(&single, "Tie-out") {
+        assert_eq!(row["Status"], "agrees", "{row:?}");
+    }
+    let problems = labelled_rows(&single, "Problems");
+    assert!(
+        problems.iter().all(|r| r.values().all(|v| v != "error")),
+        "{problems:?}"
+    );
+
+    let generator = Generator::new(seed, accounts);
+    let made: Vec<_> = (0..accounts)
+        .map(|i| generator.account(i).unwrap())
+        .collect();
+    let accruals = labelled_rows(&single, "Accruals");
+    let statuses: std::collections::BTreeSet<&str> =
+        accruals.iter().map(|r| r["Status"].as_str()).collect();
+    for status in ["open", "closed", "matured unpaid", "rolled over"] {
+        assert!(statuses.contains(status), "no {status}: {statuses:?}");
+    }
+    let mut taxed = 0;
+    for r in &accruals {
+        let a = made
+            .iter()
+            .find(|a| a.entry.terms.id == r["Account"])
+            .unwrap();
+        let closed = a.entry.terms.events.close_date.is_some();
+        assert_eq!(r["Status"] == "closed", closed, "{r:?}");
+        if closed {
+            assert_eq!(r["Balance at cut-off"], "0", "{r:?}");
+            assert_eq!(r["Accrued at cut-off"], "0", "{r:?}");
+        }
+        match &a.entry.terms.tax {
+            Some(t) if t.schedule.tax_ref != "TAX-EXEMPT" => {
+                taxed += 1;
+                assert_ne!(r["Tax withheld in window"], "0", "{r:?}");
+            }
+            _ => assert!(
+                matches!(r["Tax withheld in window"].as_str(), "" | "0"),
+                "{r:?}"
+            ),
+        }
+    }
+    assert!(taxed >= 5, "{taxed} taxed accounts");
+    let reconciliation = labelled_rows(&single, "Reconciliation");
+    let net: Vec<_> = made
+        .iter()
+        .filter(|a| matches!(a.mistake, Some(Mistake::PostedNetOfTax { .. })))
+        .collect();
+    assert!(!net.is_empty());
+    for a in net {
+        let row = reconciliation
+            .iter()
+            .find(|r| r["Account"] == a.entry.terms.id)
+            .unwrap();
+        assert_eq!(row["Status"], "under-posted", "{row:?}");
+        assert!(
+            named(a.mistake.as_ref().unwrap(), &row["Likely cause"]),
+            "{row:?}"
+        );
+    }
+
+    let mut shards = Vec::new();
+    for k in 1..=3 {
+        let out = dir.path().join(format!("shard-{k}.xlsx"));
+        ledgerate()
+            .arg("run")
+            .arg(&book)
+            .args(time)
+            .args(["--shard", &format!("{k}/3"), "--out"])
+            .arg(&out)
+            .assert()
+            .success();
+        shards.push(out);
+    }
+    let merged = dir.path().join("merged.xlsx");
+    ledgerate()
+        .arg("merge")
+        .args(&shards)
+        .args(time)
+        .arg("--out")
+        .arg(&merged)
+        .assert()
+        .success();
+    let (a, b) = (all_sheets(&single), all_sheets(&merged));
+    assert_eq!(
+        a.iter().map(|s| &s.0).collect::<Vec<_>>(),
+        b.iter().map(|s| &s.0).collect::<Vec<_>>()
+    );
+    for ((name, x), (_, y)) in a.iter().zip(&b) {
+        if name == "Run" {
+            continue; // the same settings; the command lines differ
+        }
+        assert_eq!(x, y, "sheet {name}");
+    }
 }
