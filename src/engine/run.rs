@@ -1153,14 +1153,18 @@ impl<'a> Loop<'a> {
         acc.add_amount(self.state.opening_pending)
             .map_err(overflow("the posting", d))?;
         let interest = acc.value().map_err(overflow("the posting", d))?.normalize();
-        // Back-value owed for movements booked by now joins this posting, as its own figure.
+        // Back-value owed for movements booked by now joins this posting, as its own figure;
+        // the account's last posting (at maturity or a close) takes what was booked by its
+        // payment, since no posting follows it.
+        let last = terms.maturity.and_then(|m| m.pred_opt()) == Some(p.end);
+        let booked_by = if last { p.payment.max(p.end) } else { p.end };
         let mut owed = Accrual::new();
         let mut keep = Vec::new();
         for (i, a) in std::mem::take(&mut self.state.back_value_owed) {
             let booked = self
                 .movement(i)
                 .and_then(|m| m.booking_date)
-                .is_none_or(|b| b <= p.end);
+                .is_none_or(|b| b <= booked_by);
             if booked {
                 owed.add(&a)
                     .map_err(overflow("the back-value interest", d))?;

@@ -322,6 +322,36 @@ fn spec_example_b5_a_savings_account_closed_mid_month() {
     );
 }
 
+/// A movement valued before the close and booked on the close date: its
+/// back-value interest joins the closing posting (no posting follows it), so
+/// nothing stays accrued on the closed account. 36,500.00 valued 2026-11-05
+/// earns 36,500 x 0.0365 / 365 = 3.65 a night for the 10 nights 5..14
+/// November: 36.50 on top of the 140.00 of the original balance.
+#[test]
+fn back_value_booked_on_the_close_date_joins_the_closing_posting() {
+    let dir = tempfile::tempdir().unwrap();
+    good(book(dir.path(), B5, "SAV-B5,2026-01-01,3.65\n", "", ""));
+    fs::write(
+        dir.path().join("movements.csv"),
+        "account,value_date,amount,booking_date\nSAV-B5,2026-11-05,36500.00,2026-11-15\nSAV-B5,2026-11-15,-136676.50,\n",
+    )
+    .unwrap();
+    let book = good(read_book(dir.path(), &ReadOptions::default()));
+    let run = account_run(&book, "SAV-B5", "2026-11-30");
+    let c = run.life.as_ref().unwrap().closing.as_ref().unwrap();
+    let closing = c.closing_posting.as_ref().unwrap();
+    assert_eq!(closing.back_value, dec("36.50"));
+    assert_eq!(closing.expected, dec("176.50"));
+    assert_eq!(c.payout, dec("136676.50"));
+    assert_eq!(run.result.accrued_at_cutoff, dec("0"));
+    assert_eq!(run.result.balance_at_cutoff, dec("0"));
+    assert!(
+        run.notes.iter().all(|n| n.severity != Severity::Warning),
+        "{:?}",
+        run.notes
+    );
+}
+
 /// A payout movement that differs from balance + closing posting -
 /// penalty beyond the tolerance is a warning naming both figures.
 #[test]
