@@ -455,8 +455,8 @@ impl Written {
     }
 
     fn accruals(&mut self) -> Result<Vec<AccrualLine>, ReportError> {
-        // A run with life events or withholding tax has their columns after
-        // the usual ones.
+        // A run with life events, interest in suspense or withholding tax has
+        // their columns after the usual ones.
         let groups = self.accrual_groups()?;
         let mut header: Vec<&str> = ACCRUALS_HEADER.to_vec();
         let mut place = Vec::new();
