@@ -205,10 +205,11 @@ impl SuspenseEntries {
 
 /// The break penalty a run of the window `from..=to` journals for an
 /// account: on the close date when it falls in the window, to `gl_penalty`
-/// (default: the account's interest GL account).
+/// (default: the account's interest GL account `interest`).
 pub fn penalty_entry(
     closing: Option<&crate::engine::events::Closing>,
-    entry: &crate::book::AccountEntry,
+    gl_penalty: Option<&str>,
+    interest: &str,
     from: NaiveDate,
     to: NaiveDate,
 ) -> Option<(NaiveDate, Decimal, String)> {
@@ -216,12 +217,11 @@ pub fn penalty_entry(
     if c.penalty.is_zero() || c.date < from || c.date > to {
         return None;
     }
-    let gl = entry.terms.events.gl_penalty.clone().unwrap_or_else(|| {
-        ResolvedGl::of(entry.terms.side, &entry.gl)
-            .interest
-            .to_string()
-    });
-    Some((c.date, c.penalty, gl))
+    Some((
+        c.date,
+        c.penalty,
+        gl_penalty.unwrap_or(interest).to_string(),
+    ))
 }
 
 /// Where a line sorts within its date: accruals, then postings, then reversals.
@@ -369,17 +369,7 @@ impl Journal {
             (&gl.accrued, &gl.interest)
         };
         let mut book = |date: NaiveDate, dr: &str, cr: &str, memo: &str, amount: Decimal| {
-            self.entry(
-                a.account,
-                date,
-                a.entity,
-                a.currency,
-                a.minor_units,
-                dr,
-                cr,
-                memo,
-                amount,
-            );
+            self.account_entry(a, date, dr, cr, memo, amount);
         };
         // Incremental books the window days' interest and the prior-period
         // adjustment, and settles postings against the accrual account;
@@ -466,17 +456,7 @@ impl Journal {
         to: NaiveDate,
     ) {
         let mut book = |date: NaiveDate, dr: &str, cr: &str, memo: &str, amount: Decimal| {
-            self.entry(
-                a.account,
-                date,
-                a.entity,
-                a.currency,
-                a.minor_units,
-                dr,
-                cr,
-                memo,
-                amount,
-            );
+            self.account_entry(a, date, dr, cr, memo, amount);
         };
         let memo = match style {
             JournalStyle::Incremental => format!("interest accrued {from}..{to}"),
@@ -508,22 +488,40 @@ impl Journal {
     /// memo `break penalty`; the customer pays it on either side.
     pub fn add_penalty(
         &mut self,
-        account: &str,
-        entity: &str,
-        (currency, minor_units): (&str, u32),
-        (settlement, gl_penalty): (&str, &str),
+        a: &AccountEntries,
+        gl_penalty: &str,
         date: NaiveDate,
         amount: Decimal,
     ) {
-        self.entry(
-            account,
+        self.account_entry(
+            a,
             date,
-            entity,
-            currency,
-            minor_units,
-            settlement,
+            &a.gl.settlement,
             gl_penalty,
             "break penalty",
+            amount,
+        );
+    }
+
+    /// One balanced entry of the account `a`.
+    fn account_entry(
+        &mut self,
+        a: &AccountEntries,
+        date: NaiveDate,
+        dr: &str,
+        cr: &str,
+        memo: &str,
+        amount: Decimal,
+    ) {
+        self.entry(
+            a.account,
+            date,
+            a.entity,
+            a.currency,
+            a.minor_units,
+            dr,
+            cr,
+            memo,
             amount,
         );
     }

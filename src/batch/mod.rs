@@ -409,14 +409,8 @@ impl<'s> Sums<'s> {
             );
         }
         if let Some((date, amount, gl_penalty)) = &o.penalty {
-            self.journal.add_penalty(
-                &entry.terms.id,
-                &l.entity,
-                (&o.line.currency, o.line.minor_units),
-                (&o.gl.settlement, gl_penalty),
-                *date,
-                *amount,
-            );
+            self.journal
+                .add_penalty(&entries, gl_penalty, *date, *amount);
         }
         self.daily.extend(o.daily);
         for (_, line) in o.reconciliation {
@@ -565,6 +559,13 @@ fn outcome(
         .collect();
     let withheld = withheld_of(&run.postings, &r.postings, options);
     let gl = ResolvedGl::of(t.side, &entry.gl);
+    let penalty = journal::penalty_entry(
+        run.life.as_ref().and_then(|l| l.closing.as_ref()),
+        t.events.gl_penalty.as_deref(),
+        &gl.interest,
+        options.window_start,
+        options.cutoff,
+    );
     let f = &run.ledger;
     let (suspense_line, suspense_entries) = suspense_figures(
         entry,
@@ -639,12 +640,7 @@ fn outcome(
         accrued_check,
         notes: run.notes,
         suspense: suspense_entries,
-        penalty: journal::penalty_entry(
-            run.life.as_ref().and_then(|l| l.closing.as_ref()),
-            entry,
-            options.window_start,
-            options.cutoff,
-        ),
+        penalty,
     }
 }
 
