@@ -681,7 +681,7 @@ fn assumed_back_value(
     let booked = m.booking_date.unwrap_or(m.value_date);
     Problem {
         severity: Severity::Warning,
-        position: entry.position.clone(),
+        position: entry.position.to_position(),
         account: Some(entry.terms.id.clone()),
         found: format!(
             "account {}: the opening assumes the books at {eve} already held {owed} of back-value interest for movement {reference} booked {booked}",
@@ -747,7 +747,7 @@ fn statement_periods(
         if s.period_end > cutoff {
             notes.push(Problem {
                 severity: Severity::Warning,
-                position: s.position.clone(),
+                position: s.position.to_position(),
                 account: Some(s.account.clone()),
                 found: format!(
                     "a statement period {}..{} ending after the cut-off {cutoff}",
@@ -770,7 +770,7 @@ fn statement_periods(
         .into_iter()
         .map(|((start, end), (posted, rows))| {
             if rows.len() > 1 {
-                let first: Position = rows.first().map(|r| r.position.clone()).unwrap_or_default();
+                let first: Position = rows.first().map(|r| r.position.to_position()).unwrap_or_default();
                 notes.push(Problem {
                     severity: Severity::Note,
                     position: first,
@@ -803,7 +803,7 @@ fn fixing_warnings(entry: &AccountEntry, warnings: &[FixingWarning]) -> Vec<Prob
                 .collect();
             Problem {
                 severity: Severity::Warning,
-                position: entry.position.clone(),
+                position: entry.position.to_position(),
                 account: Some(entry.terms.id.clone()),
                 found: format!(
                     "account {}: {} missing {index} fixing{}: {}",
@@ -859,7 +859,7 @@ fn engine_problem(entry: &AccountEntry, e: &EngineError) -> Problem {
     };
     Problem {
         severity: Severity::Error,
-        position: entry.position.clone(),
+        position: entry.position.to_position(),
         account: Some(entry.terms.id.clone()),
         found: format!("account {}: {e}", entry.terms.id),
         expected,

@@ -7,6 +7,7 @@
 //! means for the exit status (the command line does).
 
 use std::fmt;
+use std::sync::Arc;
 
 use crate::conventions::names::fold;
 use crate::schema::SheetKind;
@@ -122,6 +123,101 @@ impl fmt::Display for Position {
             (false, true) => write!(f, "{} sheet {}", self.book, self.sheet),
             (false, false) => write!(f, "{} {}!{}", self.book, self.sheet, self.cell),
         }
+    }
+}
+
+/// Where a typed row is, compact: its book, sheet and column held once
+/// for every row of the sheet, its cell as numbers. It shows exactly as
+/// the [`Position`] it stands for (see [`RowPosition::to_position`]).
+///
+/// ```
+/// use std::sync::Arc;
+/// use ledgerate::problem::{Position, RowPosition};
+/// let sheet = Arc::new(Position { book: "b.xlsx".into(), sheet: "Accounts".into(), column: "account".into(), ..Position::default() });
+/// let at = RowPosition::new(Arc::clone(&sheet), 2, Some(0));
+/// assert_eq!(at.to_position().cell, "A3");
+/// assert_eq!(at.to_string(), "b.xlsx Accounts!A3");
+/// assert_eq!(RowPosition::new(sheet, 6, None).to_position().cell, "7:7");
+/// ```
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct RowPosition {
+    /// The book, sheet and column (the cell empty), shared by the sheet's rows.
+    sheet: Arc<Position>,
+    /// The 0-based row.
+    row: u32,
+    /// The 0-based column; `None`: the whole row.
+    col: Option<u32>,
+}
+
+impl RowPosition {
+    /// Row `row` (0-based) at column `col` (0-based; `None`: the whole
+    /// row) of `sheet`, a position whose cell is empty.
+    pub fn new(sheet: Arc<Position>, row: u32, col: Option<u32>) -> RowPosition {
+        RowPosition { sheet, row, col }
+    }
+
+    /// A position in A1 notation (`F3`, or `7:7` for a whole row) held
+    /// compactly; `None` when its cell is neither.
+    ///
+    /// ```
+    /// use ledgerate::problem::{Position, RowPosition};
+    /// let p = Position { book: "b.xlsx".into(), sheet: "Accounts".into(), cell: "AB7".into(), ..Position::default() };
+    /// assert_eq!(RowPosition::parse(p.clone()).map(|r| r.to_position()), Some(p));
+    /// assert_eq!(RowPosition::parse(Position::default()), None);
+    /// ```
+    pub fn parse(mut position: Position) -> Option<RowPosition> {
+        let (row, col) = parse_a1(&position.cell);
+        let row = u32::try_from(row.checked_sub(1)?).ok()?;
+        let col = match col.checked_sub(1) {
+            Some(c) => Some(u32::try_from(c).ok()?),
+            None => None,
+        };
+        let at = RowPosition {
+            sheet: Arc::default(),
+            row,
+            col,
+        };
+        if at.to_position().cell != position.cell {
+            return None;
+        }
+        position.cell = String::new();
+        Some(RowPosition::new(Arc::new(position), row, col))
+    }
+
+    /// The book, sheet and column it is in (its cell empty).
+    pub fn sheet(&self) -> &Position {
+        &self.sheet
+    }
+
+    /// The position it stands for, its cell in A1 notation.
+    pub fn to_position(&self) -> Position {
+        Position {
+            cell: match self.col {
+                Some(c) => a1(self.row, c),
+                None => a1_row(self.row),
+            },
+            ..(*self.sheet).clone()
+        }
+    }
+
+    /// Marks it as in a CSV file (see [`Position::csv`]). `marked` holds
+    /// the sheets already marked, each with its marked copy, so that the
+    /// rows of one sheet go on sharing one.
+    pub fn mark_csv(&mut self, marked: &mut Vec<(Arc<Position>, Arc<Position>)>) {
+        if let Some((_, m)) = marked.iter().find(|(s, _)| Arc::ptr_eq(s, &self.sheet)) {
+            self.sheet = Arc::clone(m);
+            return;
+        }
+        let mut csv = (*self.sheet).clone();
+        csv.csv = true;
+        let csv = Arc::new(csv);
+        marked.push((std::mem::replace(&mut self.sheet, Arc::clone(&csv)), csv));
+    }
+}
+
+impl fmt::Display for RowPosition {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        self.to_position().fmt(f)
     }
 }
 

@@ -9,7 +9,7 @@ use crate::book::GlCodes;
 use crate::conventions::daycount::Basis;
 use crate::engine::rates::RateSchedule;
 use crate::engine::{AccountTerms, Movement, Side};
-use crate::problem::{Position, Severity};
+use crate::problem::{Position, RowPosition, Severity};
 use crate::report::model::TieStatus;
 
 fn d(s: &str) -> NaiveDate {
@@ -28,13 +28,14 @@ fn entry(id: &str, ccy: &str, minor: u32, side: Side, basis: Basis, balance: &st
         name: format!("account {id}"),
         rate_ref: "R".into(),
         debit_rate_ref: None,
-        gl: GlCodes::default(),
-        position: Position {
+        gl: GlCodes::default().into(),
+        position: RowPosition::parse(Position {
             book: "test.xlsx".into(),
             sheet: "Accounts".into(),
             cell: "A2".into(),
             ..Default::default()
-        },
+        })
+        .unwrap(),
         opening_suspense: Decimal::ZERO,
     }
 }
@@ -232,12 +233,13 @@ fn statements_are_reconciled_with_causes() {
         reference: None,
         posting_date: None,
         tax_withheld: None,
-        position: Position {
+        position: RowPosition::parse(Position {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),
             cell: "A2".into(),
             ..Default::default()
-        },
+        })
+        .unwrap(),
     };
     // 1,000.00 at 4.25% on ACT/360 for November to the 15th and 4% after: 1.7708 + 1.6667.
     b.statements = vec![
@@ -281,12 +283,13 @@ fn book_with_statements(count: usize) -> Book {
             reference: None,
             posting_date: None,
             tax_withheld: None,
-            position: Position {
+            position: RowPosition::parse(Position {
                 book: "test.xlsx".into(),
                 sheet: "Statements".into(),
                 cell: "A2".into(),
                 ..Default::default()
-            },
+            })
+            .unwrap(),
         })
         .collect();
     b
@@ -390,7 +393,7 @@ fn an_unreadable_statement_row_is_an_exception_of_a_computed_account() {
         posted: n("3.66"),
         reference: None,
         posting_date: None,
-        position: error.position.clone(),
+        position: RowPosition::parse(error.position.clone()).unwrap(),
         tax_withheld: None,
     }];
     b.unreadable_statements = vec![UnreadableStatement {

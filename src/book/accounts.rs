@@ -27,9 +27,11 @@ use crate::conventions::daycount::Basis;
 use crate::conventions::names::fold;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{month_end, AnchorKind, Posting};
+use crate::engine::events::LifeEvents;
+use crate::engine::shared::Shared;
 use crate::engine::tax::TaxTerms;
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
-use crate::problem::{FollowOn, Problem, Severity};
+use crate::problem::{FollowOn, Position, Problem, Severity};
 use crate::schema::{column, SheetKind, ACCOUNTS};
 
 const ACCOUNT: usize = column!(ACCOUNTS, "account");
@@ -229,6 +231,9 @@ pub(crate) fn read(
     let table = Table::open(&ctx, sheet, ACCOUNTS.columns, problems)?;
     let mut out = Accounts::default();
     let weekends = Arc::new(Calendar::weekends_only());
+    // Accounts of one product mostly name the same GL codes: held once.
+    let mut gl_codes: HashMap<GlCodes, Shared<GlCodes>> = HashMap::new();
+    let at = table.column_position(&ctx, ACCOUNT);
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some(id) = f.required_text(ACCOUNT) else {
@@ -246,7 +251,7 @@ pub(crate) fn read(
             );
             continue;
         }
-        let entry = account(&mut f, &id, others, &weekends);
+        let entry = account(&mut f, &id, others, &weekends, &mut gl_codes, &at);
         out.known.insert(
             id.clone(),
             entry.as_ref().map(|e| e.terms.open_date).or_else(|| {
@@ -279,6 +284,8 @@ fn account(
     id: &str,
     others: &Others<'_>,
     weekends: &Arc<Calendar>,
+    gl_codes: &mut HashMap<GlCodes, Shared<GlCodes>>,
+    at: &Arc<Position>,
 ) -> Option<AccountEntry> {
     let currency = currency_of(f);
     let basis = f.required_named(DAY_COUNT, Basis::parse);
@@ -314,6 +321,10 @@ fn account(
         suspense: f.text(GL_SUSPENSE),
         reversal: f.text(GL_REVERSAL),
     };
+    let gl = gl_codes
+        .entry(gl)
+        .or_insert_with_key(|gl| Shared::new(gl.clone()))
+        .clone();
     let tax_ref = f.text(TAX_REF);
     let opening_suspense = f.decimal(OPENING_SUSPENSE).unwrap_or(Decimal::ZERO);
     if !opening_suspense.is_zero() && side == Side::Liability {
@@ -353,7 +364,7 @@ fn account(
     };
 
     let mut terms = AccountTerms {
-        events: crate::engine::events::LifeEvents::default(),
+        events: Shared::default(),
         floating,
         id: id.to_string(),
         currency: code,
@@ -379,11 +390,14 @@ fn account(
         period_start,
         tax: tax_ref.and_then(|r| tax_terms(f, &r, others.taxes)),
     };
-    terms.events = super::life_events::read(f, &terms, &rate_ref, others.rates);
+    let events = super::life_events::read(f, &terms, &rate_ref, others.rates);
+    if events != LifeEvents::default() {
+        terms.events = Shared::new(events);
+    }
     check_terms(f, &terms);
     check_floating(f, &terms);
     check_rates(f, &terms, &rate_ref, debit_rate_ref.as_deref(), others);
-    let position = f.position(ACCOUNT);
+    let position = f.row_position(ACCOUNT, at);
     Some(AccountEntry {
         terms,
         name,

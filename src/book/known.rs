@@ -181,7 +181,7 @@ fn keep_known_tables(book: &mut Book, as_at: NaiveDate) -> usize {
 mod tests {
     use super::*;
     use crate::engine::rates::RateSchedule;
-    use crate::problem::Position;
+    use crate::problem::RowPosition;
     use rust_decimal::Decimal;
 
     fn day(s: &str) -> NaiveDate {
@@ -196,7 +196,7 @@ mod tests {
             posted: Decimal::new(30093, 2),
             reference: None,
             posting_date: posting_date.map(day),
-            position: Position::default(),
+            position: RowPosition::default(),
             tax_withheld: None,
         }
     }

@@ -11,13 +11,14 @@ use rust_decimal::Decimal;
 
 use crate::engine::floating::{Fixings, FloatingSchedule};
 use crate::engine::rates::RateSchedule;
+use crate::engine::shared::Shared;
 use crate::engine::suspense::StatusRow;
 use crate::engine::{AccountTerms, Movement};
-use crate::problem::{Position, Problem, Severity};
+use crate::problem::{Position, Problem, RowPosition, Severity};
 use crate::schema::SheetKind;
 
 /// General-ledger accounts of an account's journal lines.
-#[derive(Debug, Clone, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, PartialEq, Eq, Hash, Default)]
 pub struct GlCodes {
     /// Interest expense (liability side) or income (asset side).
     pub interest: Option<String>,
@@ -46,10 +47,11 @@ pub struct AccountEntry {
     pub rate_ref: String,
     /// The schedule for a base of the opposite sign, if any.
     pub debit_rate_ref: Option<String>,
-    /// GL codes from the sheet (defaults are the journal's business).
-    pub gl: GlCodes,
+    /// GL codes from the sheet (defaults are the journal's business), held
+    /// once for every account that names the same codes.
+    pub gl: Shared<GlCodes>,
     /// The row's position (cell of the account id).
-    pub position: Position,
+    pub position: RowPosition,
     /// Asset side: interest held in suspense at the start of `open_date`.
     pub opening_suspense: Decimal,
 }
@@ -100,7 +102,7 @@ pub struct StatementRow {
     /// `posted` is gross all the same (behaviour.md, Withholding tax).
     pub tax_withheld: Option<Decimal>,
     /// The row's position (cell of the account id).
-    pub position: Position,
+    pub position: RowPosition,
 }
 
 /// An account of the Accounts sheet that the reader kept out of `accounts`,

@@ -86,11 +86,12 @@ fn mark_csv(book: &mut Book) {
             f.cause.csv = true;
         }
     }
+    let mut marked = Vec::new();
     for a in &mut book.accounts {
-        a.position.csv = true;
+        a.position.mark_csv(&mut marked);
     }
     for s in &mut book.statements {
-        s.position.csv = true;
+        s.position.mark_csv(&mut marked);
     }
     for u in &mut book.unreadable_statements {
         u.error.position.csv = true;
@@ -376,7 +377,7 @@ fn unusable_sheet(
     for e in entries {
         problems.push(Problem {
             severity: Severity::Error,
-            position: e.position.clone(),
+            position: e.position.to_position(),
             account: Some(e.terms.id.clone()),
             found: e.terms.id.clone(),
             expected: format!("a {} sheet that can be read", sheet.kind.label()),
@@ -386,7 +387,7 @@ fn unusable_sheet(
                 sheet.name
             ),
             follows: Some(FollowOn::unreadable_sheet(
-                &e.position.book,
+                &e.position.sheet().book,
                 sheet.kind.label(),
                 &sheet.name,
             )),
@@ -428,10 +429,10 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
     for p in book.problems.iter().filter(|p| p.position.book != name) {
         out.push(format!("a problem names another book: {p}"));
     }
-    let kept: HashMap<&str, &Position> = book
+    let kept: HashMap<&str, Position> = book
         .accounts
         .iter()
-        .map(|a| (a.terms.id.as_str(), &a.position))
+        .map(|a| (a.terms.id.as_str(), a.position.to_position()))
         .collect();
     for p in book
         .problems
@@ -553,7 +554,7 @@ pub fn check_unique_ids(books: &mut [Book]) {
                         .unwrap_or_default();
                     found.push((b, Problem {
                         severity: Severity::Error,
-                        position: entry.position.clone(),
+                        position: entry.position.to_position(),
                         account: Some(id.to_string()),
                         found: id.to_string(),
                         expected: format!("account ids unique across the books of a run (it is also in {first})"),

@@ -49,6 +49,7 @@ pub(crate) fn read(
 ) -> Option<Statements> {
     let opened = problems.len();
     let table = Table::open(&ctx, sheet, STATEMENTS.columns, problems)?;
+    let row_at = table.column_position(&ctx, ACCOUNT);
     if amounts == StatementAmounts::Net && !table.has(TAX_WITHHELD) {
         // Net amounts without the tax: the gross each posting stands for is
         // not given, and is never guessed.
@@ -172,7 +173,7 @@ pub(crate) fn read(
             continue;
         }
         kept.push((start, period_end, rec.row));
-        let position = f.position(ACCOUNT);
+        let position = f.row_position(ACCOUNT, &row_at);
         out.rows.push(StatementRow {
             account: id,
             period_start: start,

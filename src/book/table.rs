@@ -8,6 +8,7 @@
 
 use std::borrow::Cow;
 use std::collections::HashMap;
+use std::sync::Arc;
 
 use chrono::NaiveDate;
 use rust_decimal::Decimal;
@@ -16,7 +17,9 @@ use super::cell::{self, shown, Cell, Issue, NumberStyle};
 use super::row::{Row, Shape};
 use super::sheet::Sheet;
 use crate::conventions::names::{fold, UnknownName};
-use crate::problem::{a1, a1_row, column_letters, FollowOn, Position, Problem, Severity};
+use crate::problem::{
+    a1, a1_row, column_letters, FollowOn, Position, Problem, RowPosition, Severity,
+};
 use crate::schema::Column;
 
 /// What every sheet reader needs: the book's name for positions, and how
@@ -464,6 +467,20 @@ impl<'s> Table<'s> {
         self.columns.get(i).map_or("", |c| c.name)
     }
 
+    /// Where column `i` is (0-based), when the sheet has it.
+    pub(crate) fn col(&self, i: usize) -> Option<u32> {
+        self.at.get(i).copied().flatten()
+    }
+
+    /// The position of column `i` with no cell: what the compact positions
+    /// of its rows share (see [`Fields::row_position`]).
+    pub(crate) fn column_position(&self, ctx: &Ctx<'_>, i: usize) -> Arc<Position> {
+        Arc::new(Position {
+            column: self.name(i).to_string(),
+            ..ctx.at(&self.sheet.name, String::new())
+        })
+    }
+
     /// The data rows below the header, blank rows (and rows with values
     /// only in unknown columns) skipped.
     pub(crate) fn records(&self) -> impl Iterator<Item = Record<'s>> + '_ {
@@ -669,6 +686,12 @@ impl<'t, 's, 'p> Fields<'t, 's, 'p> {
             column: self.table.name(i).to_string(),
             ..self.ctx.at(&self.table.sheet.name, self.cell_ref(i))
         }
+    }
+
+    /// The compact position of column `i` in this row; `sheet` is
+    /// [`Table::column_position`] of `i`, made once for every row.
+    pub(crate) fn row_position(&self, i: usize, sheet: &Arc<Position>) -> RowPosition {
+        RowPosition::new(Arc::clone(sheet), self.rec.row, self.table.col(i))
     }
 
     /// The raw cell of column `i`.

@@ -20,6 +20,7 @@ use super::inputs::Inputs;
 use super::rates::{RateSchedule, RateSource, RateTable};
 use super::reconcile::{variance_bp, Reconciled, Tolerance};
 use super::run::{accrue, AccountResult, PostingRow, RunOptions};
+use super::shared::Shared;
 use super::terms::{AccountTerms, FloatingTerms};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
@@ -171,6 +172,17 @@ pub struct LifeEvents {
     pub gl_penalty: Option<String>,
     /// What a balance does from maturity.
     pub after_maturity: AfterMaturity,
+}
+
+/// No life event, held once for every account that has none.
+static NO_EVENTS: std::sync::LazyLock<Shared<LifeEvents>> =
+    std::sync::LazyLock::new(|| Shared::new(LifeEvents::default()));
+
+impl Default for Shared<LifeEvents> {
+    /// No life event: one value shared by every account that has none.
+    fn default() -> Shared<LifeEvents> {
+        NO_EVENTS.clone()
+    }
 }
 
 impl LifeEvents {

@@ -19,6 +19,7 @@ pub mod ledger;
 pub mod rates;
 pub mod reconcile;
 pub mod run;
+pub mod shared;
 pub mod suspense;
 pub mod tax;
 pub mod terms;

@@ -9,6 +9,7 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use super::events::LifeEvents;
+use super::shared::Shared;
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
@@ -277,8 +278,9 @@ pub struct AccountTerms {
     /// Withholding tax on postings (behaviour.md, Withholding tax); `None`: no tax.
     pub tax: Option<TaxTerms>,
     /// Closure, break penalty and what happens after maturity (behaviour.md,
-    /// Account life events); none by default.
-    pub events: LifeEvents,
+    /// Account life events); none by default. Shared by every account
+    /// without a life event, so it costs such an account one pointer.
+    pub events: Shared<LifeEvents>,
 }
 
 impl AccountTerms {
@@ -326,7 +328,7 @@ impl AccountTerms {
             period_start: None,
             floating: FloatingTerms::default(),
             tax: None,
-            events: LifeEvents::default(),
+            events: Shared::default(),
         }
     }
 

@@ -19,7 +19,7 @@ pub(super) fn life_notes(
     let mut notes = Vec::new();
     let problem = |severity: Severity, found: String, expected: String, fix: &str| Problem {
         severity,
-        position: entry.position.clone(),
+        position: entry.position.to_position(),
         account: Some(id.clone()),
         found,
         expected,

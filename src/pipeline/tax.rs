@@ -87,7 +87,7 @@ pub(super) fn stated_tax_warnings(
         };
         out.push(Problem {
             severity: Severity::Warning,
-            position: row.position.clone(),
+            position: row.position.to_position(),
             account: Some(t.id.clone()),
             found: format!("tax_withheld {stated} for {start}..{end}: {cause}"),
             expected: format!(

@@ -9,6 +9,7 @@ use crate::book::GlCodes;
 use crate::conventions::daycount::Basis;
 use crate::engine::floating::{IndexRate, TierRate};
 use crate::engine::{AccountTerms, FloatingTerms, RateMethod};
+use crate::problem::RowPosition;
 
 fn d(s: &str) -> NaiveDate {
     s.parse().unwrap()
@@ -31,13 +32,14 @@ fn entry() -> AccountEntry {
         name: "pipeline account".into(),
         rate_ref: "R".into(),
         debit_rate_ref: None,
-        gl: GlCodes::default(),
-        position: Position {
+        gl: GlCodes::default().into(),
+        position: RowPosition::parse(Position {
             book: "test.xlsx".into(),
             sheet: "Accounts".into(),
             cell: "A2".into(),
             ..Default::default()
-        },
+        })
+        .unwrap(),
         opening_suspense: Decimal::ZERO,
     }
 }
@@ -55,12 +57,13 @@ fn row(start: &str, end: &str, posted: &str, cell: &str) -> StatementRow {
         reference: None,
         posting_date: None,
         tax_withheld: None,
-        position: Position {
+        position: RowPosition::parse(Position {
             book: "test.xlsx".into(),
             sheet: "Statements".into(),
             cell: cell.into(),
             ..Default::default()
-        },
+        })
+        .unwrap(),
     }
 }
 

@@ -24,7 +24,7 @@ use crate::conventions::daycount::Basis;
 use crate::conventions::rounding::RoundMode;
 use crate::conventions::schedule::{AnchorKind, Posting};
 use crate::engine::{AccountTerms, Movement, RoundAt, Side, TierMethod};
-use crate::problem::Position;
+use crate::problem::RowPosition;
 
 /// An account before its statement is computed.
 pub(crate) struct Draft {
@@ -785,8 +785,9 @@ pub(crate) fn draft(
                 tax: None,
                 suspense: None,
                 reversal: None,
-            },
-            position: Position::default(),
+            }
+            .into(),
+            position: RowPosition::default(),
             terms: t,
             opening_suspense: Decimal::ZERO,
         },

@@ -147,8 +147,8 @@ fn account_terms_are_typed_with_the_defaults_of_books_md() {
     assert_eq!(saver.gl.interest.as_deref(), Some("5100"));
     assert_eq!(saver.gl.accrued.as_deref(), Some("2100"));
     assert_eq!(saver.gl.settlement.as_deref(), Some("1001-HM-SAV-001"));
-    assert_eq!(saver.position.sheet, "Accounts");
-    assert_eq!(saver.position.cell, "A2");
+    assert_eq!(saver.position.sheet().sheet, "Accounts");
+    assert_eq!(saver.position.to_position().cell, "A2");
 
     // Text cells: an ISO date, a number with a thousands separator, names in any case.
     let bonus = account(&book, "HM-SAV-002");
@@ -167,7 +167,7 @@ fn account_terms_are_typed_with_the_defaults_of_books_md() {
     // No calendar named: weekends only.
     assert_eq!(t.calendar.name(), "");
     assert_eq!(t.calendar.holidays().count(), 0);
-    assert_eq!(bonus.gl, Default::default());
+    assert_eq!(*bonus.gl, Default::default());
 
     let deposit = account(&book, "HM-TD-003");
     let t = &deposit.terms;
@@ -377,7 +377,7 @@ fn statement_ends_written_exclusive_are_read_as_the_last_day_and_repeated_period
             ),
         ]
     );
-    assert_eq!(book.statements[0].position.cell, "A2");
+    assert_eq!(book.statements[0].position.to_position().cell, "A2");
 }
 
 #[test]
@@ -438,7 +438,7 @@ fn contents(book: &Book) -> Vec<String> {
             a.rate_ref,
             a.debit_rate_ref,
             a.gl,
-            a.position.cell,
+            a.position.to_position().cell,
         ));
     }
     for (k, s) in &book.rates {
@@ -472,7 +472,7 @@ fn contents(book: &Book) -> Vec<String> {
             s.period_end,
             n(s.posted),
             s.reference,
-            s.position.cell
+            s.position.to_position().cell
         ));
     }
     for s in &book.settings {
