@@ -11,6 +11,7 @@ use std::sync::Arc;
 use std::sync::OnceLock;
 
 use chrono::NaiveDate;
+use rayon::prelude::*;
 use rust_decimal::Decimal;
 
 use super::fixings::{FixingsSheet, IndexLookup};
@@ -18,7 +19,7 @@ use super::holidays::{Calendars, Lookup};
 use super::model::{AccountEntry, GlCodes};
 use super::rates::Rates;
 use super::sheet::Sheet;
-use super::table::{near_miss, Ctx, Fields, Table};
+use super::table::{near_miss, Ctx, Fields, Record, Table};
 use super::tax::Taxes;
 use crate::conventions::calendar::{BusinessDay, Calendar};
 use crate::conventions::compounding::Compounding;
@@ -231,51 +232,146 @@ pub(crate) fn read(
     let table = Table::open(&ctx, sheet, ACCOUNTS.columns, problems)?;
     let mut out = Accounts::default();
     let weekends = Arc::new(Calendar::weekends_only());
-    // Accounts of one product mostly name the same GL codes: held once.
-    let mut gl_codes: HashMap<GlCodes, Shared<GlCodes>> = HashMap::new();
     let at = table.column_position(&ctx, ACCOUNT);
-    for rec in table.records() {
-        let mut f = Fields::new(ctx, &table, &rec, problems);
-        let Some(id) = f.required_text(ACCOUNT) else {
-            continue;
-        };
-        f.account = Some(id.clone());
-        if let Some(life) = out.known.get(&id) {
-            let first = table.cell_ref(life.row, ACCOUNT);
-            f.report(
-                Severity::Error,
-                ACCOUNT,
-                &id,
-                &format!("each account once (it is already in {first})"),
-                "remove the second row or give it its own account id; this row is not used",
-            );
-            continue;
-        }
-        let entry = account(&mut f, &id, others, &weekends, &mut gl_codes, &at);
-        out.known.insert(
-            id.clone(),
-            entry.as_ref().map(|e| e.terms.open_date).or_else(|| {
-                f.raw(OPEN_DATE)
-                    .and_then(|c| super::cell::date(c).ok().flatten())
-            }),
-            entry.as_ref().and_then(|e| e.terms.maturity),
-            rec.row,
-            entry.as_ref().map(|e| e.terms.side),
-        );
-        if let (Some(e), Some(life)) = (&entry, out.known.by_id.get_mut(&id)) {
-            life.close = e.terms.events.close_date;
-            life.penalised =
-                e.terms.events.break_penalty != crate::engine::events::BreakPenalty::None;
-        }
-        match entry {
-            Some(e) if !f.failed => out.entries.push(e),
-            _ => {
-                out.rejected.insert(id);
-            }
+    // Rows are typed in blocks, each block's rows side by side (a row's
+    // terms need nothing from another row), then taken in row order: a
+    // second row of an id, and every problem, come out as one pass gives them.
+    let mut records = table.records().peekable();
+    while records.peek().is_some() {
+        let block: Vec<Record<'_>> = records.by_ref().take(ROWS_PER_BLOCK).collect();
+        let typed: Vec<Vec<TypedRow>> = block
+            .par_chunks(ROWS_PER_TASK)
+            .map(|recs| {
+                // Accounts of one product mostly name the same GL codes: held once.
+                let mut gl_codes: HashMap<GlCodes, Shared<GlCodes>> = HashMap::new();
+                recs.iter()
+                    .map(|rec| type_row(ctx, &table, rec, others, &weekends, &mut gl_codes, &at))
+                    .collect()
+            })
+            .collect();
+        for (row, rec) in typed.into_iter().flatten().zip(&block) {
+            take_row(ctx, &table, rec, row, &mut out, problems);
         }
     }
     out.entries.shrink_to_fit();
     Some(out)
+}
+
+/// Rows of the Accounts sheet parsed at a time, then typed side by side.
+const ROWS_PER_BLOCK: usize = 8_192;
+
+/// Rows one task types in order (sharing its GL codes).
+const ROWS_PER_TASK: usize = 512;
+
+/// An Accounts row typed on its own: what it found before its id was
+/// known, and, when it has an id, the account and what typing it found.
+struct TypedRow {
+    /// Problems of the id's cell.
+    before: Vec<Problem>,
+    /// The id, its typed account and the row's own problems.
+    typed: Option<(String, Typed)>,
+}
+
+/// A row with an id, typed.
+struct Typed {
+    /// The account, `None` when a required term cannot be read.
+    entry: Option<AccountEntry>,
+    /// Whether the row had an error.
+    failed: bool,
+    /// The open date, when it could be read.
+    open_date: Option<NaiveDate>,
+    /// Problems found typing the row.
+    problems: Vec<Problem>,
+}
+
+/// Types one row as if it were the only one (a second row of an id is
+/// found when rows are taken, in [`take_row`]).
+fn type_row(
+    ctx: Ctx<'_>,
+    table: &Table<'_>,
+    rec: &Record<'_>,
+    others: &Others<'_>,
+    weekends: &Arc<Calendar>,
+    gl_codes: &mut HashMap<GlCodes, Shared<GlCodes>>,
+    at: &Arc<Position>,
+) -> TypedRow {
+    let mut before = Vec::new();
+    let id = Fields::new(ctx, table, rec, &mut before).required_text(ACCOUNT);
+    let Some(id) = id else {
+        return TypedRow {
+            before,
+            typed: None,
+        };
+    };
+    let mut problems = Vec::new();
+    let mut f = Fields::new(ctx, table, rec, &mut problems);
+    f.account = Some(id.clone());
+    let entry = account(&mut f, &id, others, weekends, gl_codes, at);
+    let open_date = entry.as_ref().map(|e| e.terms.open_date).or_else(|| {
+        f.raw(OPEN_DATE)
+            .and_then(|c| super::cell::date(c).ok().flatten())
+    });
+    let failed = f.failed;
+    TypedRow {
+        before,
+        typed: Some((
+            id,
+            Typed {
+                entry,
+                failed,
+                open_date,
+                problems,
+            },
+        )),
+    }
+}
+
+/// Takes a typed row in row order: its problems, its account, or the
+/// error of a second row of an id (whose own typing is dropped unseen).
+fn take_row(
+    ctx: Ctx<'_>,
+    table: &Table<'_>,
+    rec: &Record<'_>,
+    row: TypedRow,
+    out: &mut Accounts,
+    problems: &mut Vec<Problem>,
+) {
+    problems.extend(row.before);
+    let Some((id, typed)) = row.typed else {
+        return;
+    };
+    if let Some(life) = out.known.get(&id) {
+        let first = table.cell_ref(life.row, ACCOUNT);
+        let mut f = Fields::new(ctx, table, rec, problems);
+        f.account = Some(id.clone());
+        f.report(
+            Severity::Error,
+            ACCOUNT,
+            &id,
+            &format!("each account once (it is already in {first})"),
+            "remove the second row or give it its own account id; this row is not used",
+        );
+        return;
+    }
+    problems.extend(typed.problems);
+    let entry = typed.entry;
+    out.known.insert(
+        id.clone(),
+        typed.open_date,
+        entry.as_ref().and_then(|e| e.terms.maturity),
+        rec.row,
+        entry.as_ref().map(|e| e.terms.side),
+    );
+    if let (Some(e), Some(life)) = (&entry, out.known.by_id.get_mut(&id)) {
+        life.close = e.terms.events.close_date;
+        life.penalised = e.terms.events.break_penalty != crate::engine::events::BreakPenalty::None;
+    }
+    match entry {
+        Some(e) if !typed.failed => out.entries.push(e),
+        _ => {
+            out.rejected.insert(id);
+        }
+    }
 }
 
 /// One account's row; `None` when a required term cannot be read.
