@@ -1,6 +1,7 @@
 //! The CSV folder reader: a folder of CSV files named after the sheets,
 //! each file decoded (UTF-8 with or without a byte-order mark, or UTF-16
-//! with one) and checked to parse once, then held as its text.
+//! with one) and checked to parse once, then read again when its sheet is
+//! typed: a book holds the text of the sheets being typed, not of all.
 //!
 //! Only regular files (or links to them) are opened, and only for reading;
 //! a sheet file that is a FIFO, a device or a link to nothing is an error
@@ -10,7 +11,7 @@
 //! This module never knows what a column means.
 
 use std::fs;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use super::cell::lower_first;
 use super::csv_records::{line_breaks, CsvRows};
@@ -92,14 +93,55 @@ pub(crate) fn read_csv_folder(dir: &Path, book: &str, loaded: &mut Loaded) {
             continue;
         }
         picked.push((kind, stem.clone()));
-        if let Some(text) = read_csv_file(&file, book, &stem, loaded) {
+        if let Some(checked) = read_csv_file(&file, book, &stem, loaded) {
             loaded.sheets.push(Sheet {
                 kind,
                 name: stem,
-                rows: Rows::Csv(text),
+                rows: Rows::CsvFile(checked),
             });
         }
     }
+}
+
+/// A CSV file that decodes and parses without a fault, as checked when
+/// the book was opened; its text is read again when its sheet is typed.
+#[derive(Debug, Clone)]
+pub(crate) struct CheckedCsv {
+    /// The file.
+    path: PathBuf,
+    /// Its length in bytes when checked.
+    len: usize,
+    /// A digest of its bytes when checked.
+    digest: u64,
+}
+
+impl CheckedCsv {
+    /// The file's text, read again; `None` when it can no longer be read
+    /// or is not the file that was checked (changed since).
+    pub(crate) fn text(&self) -> Option<String> {
+        let bytes = fs::read(&self.path).ok()?;
+        if bytes.len() != self.len || digest(&bytes) != self.digest {
+            return None;
+        }
+        decode_csv_owned(bytes).ok()
+    }
+}
+
+/// A digest of a file's bytes that tells an accidental change (an edit, a
+/// save over it) from the file as checked.
+fn digest(bytes: &[u8]) -> u64 {
+    let mut words = bytes.chunks_exact(8);
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for w in &mut words {
+        let mut b = [0u8; 8];
+        b.copy_from_slice(w);
+        h = (h ^ u64::from_le_bytes(b)).wrapping_mul(0x0100_0000_01b3);
+        h ^= h >> 29;
+    }
+    for &b in words.remainder() {
+        h = (h ^ u64::from(b)).wrapping_mul(0x0100_0000_01b3);
+    }
+    h
 }
 
 /// What a path is when it is not a regular file (or a link to one), in
@@ -208,9 +250,9 @@ fn utf8_at(bytes: &[u8]) -> Result<String, (u64, String)> {
 }
 
 /// Reads one CSV file and checks that it parses: its encoding, its quotes,
-/// its separator. Gives the text, which is parsed again into rows when the
-/// sheet is read.
-fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Option<String> {
+/// its separator. Gives the file as checked, read again into rows when the
+/// sheet is typed.
+fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Option<CheckedCsv> {
     let at = |cell: String| Position {
         book: book.to_string(),
         sheet: stem.to_string(),
@@ -233,6 +275,7 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
             return None;
         }
     };
+    let (len, sum) = (bytes.len(), digest(&bytes));
     let text = match decode_csv_owned(bytes) {
         Ok(t) => t,
         Err((bytes, (found, fix))) => {
@@ -262,7 +305,11 @@ fn read_csv_file(file: &Path, book: &str, stem: &str, loaded: &mut Loaded) -> Op
             return None;
         }
     }
-    Some(text)
+    Some(CheckedCsv {
+        path: file.to_path_buf(),
+        len,
+        digest: sum,
+    })
 }
 
 /// A 1-based line as an A1 row reference.
@@ -292,6 +339,34 @@ mod tests {
             .chain("a,é\n".encode_utf16().flat_map(u16::to_be_bytes))
             .collect();
         assert_eq!(decode_csv(&be).unwrap(), "a,é\n");
+    }
+
+    /// A file is typed from the text that was checked: changed (or gone)
+    /// after the check, it is not read at all.
+    #[test]
+    fn a_checked_file_is_read_again_only_while_it_is_unchanged() {
+        let dir = tempfile::tempdir().unwrap();
+        let file = dir.path().join("accounts.csv");
+        fs::write(&file, "\u{FEFF}account,currency\nHM-1,USD\n").unwrap();
+        let mut loaded = Loaded::default();
+        let checked = read_csv_file(&file, "book", "accounts", &mut loaded).unwrap();
+        assert!(loaded.problems.is_empty());
+        assert_eq!(
+            checked.text().as_deref(),
+            Some("account,currency\nHM-1,USD\n")
+        );
+        fs::write(&file, "account,currency\nHM-2,USD\n").unwrap();
+        assert_eq!(checked.text(), None);
+        fs::remove_file(&file).unwrap();
+        assert_eq!(checked.text(), None);
+    }
+
+    #[test]
+    fn the_digest_tells_one_byte_changed_or_moved() {
+        let a = digest(b"HM-1,USD,100.00\nHM-2,EUR,200.00\n");
+        assert_ne!(a, digest(b"HM-1,USD,100.00\nHM-2,EUR,200.01\n"));
+        assert_ne!(a, digest(b"HM-2,EUR,200.00\nHM-1,USD,100.00\n"));
+        assert_eq!(a, digest(b"HM-1,USD,100.00\nHM-2,EUR,200.00\n"));
     }
 
     #[test]

@@ -22,7 +22,7 @@ use super::movements::Movements;
 use super::open::load;
 use super::rates::{self, Rates};
 use super::settings::{self, Settings, StatementAmounts, StatementEnd};
-use super::sheet::Sheet;
+use super::sheet::{Rows, Sheet};
 use super::statements::Statements;
 use super::table::Ctx;
 use super::tax::{self, Taxes};
@@ -128,16 +128,27 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
             decimal_comma: options.decimal_comma,
         },
     };
-    // Each sheet is dropped as soon as it is typed: a CSV sheet's text is
-    // the largest thing the reader holds.
+    // A CSV sheet's text is read when the sheet is typed and dropped as
+    // soon as it is typed: it is the largest thing the reader holds.
     let mut sheets = loaded.sheets;
+    let mut changed: Vec<Problem> = Vec::new();
     book.sheets = sheets
         .iter()
         .map(|s| (s.kind, ctx.at(&s.name, String::new())))
         .collect();
     let mut sheet = |kind: SheetKind| {
         let i = sheets.iter().position(|s| s.kind == kind)?;
-        Some(sheets.swap_remove(i))
+        match sheets.swap_remove(i).read_text() {
+            Ok(s) => Some(s),
+            // Typed as a sheet with no rows: what needs it is left out.
+            Err(s) => {
+                changed.push(changed_file(ctx, &s));
+                Some(Sheet {
+                    rows: Rows::Held(Vec::new()),
+                    ..s
+                })
+            }
+        }
     };
     let problems = &mut book.problems;
 
@@ -165,6 +176,7 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         book.trial_balance = sheet(SheetKind::TrialBalance)
             .map(|s| trial_balance::read(ctx, &s, problems))
             .unwrap_or_default();
+        book.problems.append(&mut changed);
         keep_tables(&mut book, rates, fixings, settings);
         return book;
     };
@@ -224,8 +236,27 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
         .retain(|s| kept.contains(s.account.as_str()));
     fixing_holiday_warnings(ctx, &entries, &rates, &fixings, problems);
     book.accounts = entries;
+    book.problems.append(&mut changed);
     keep_tables(&mut book, rates, fixings, settings);
     book
+}
+
+/// The error on a CSV file that changed (or went) between the check when
+/// the book was opened and the typing of its sheet: the sheet is typed as
+/// having no rows, so no account is computed from what it was.
+fn changed_file(ctx: Ctx<'_>, sheet: &Sheet) -> Problem {
+    Problem {
+        severity: Severity::Error,
+        position: ctx.at(&sheet.name, String::new()),
+        account: None,
+        found: format!("{}.csv changed while the book was read", sheet.name),
+        expected: format!(
+            "a {} file that stays as it is while the book is read",
+            sheet.kind.label()
+        ),
+        fix: "run again once the file is saved; this run does not read it".to_string(),
+        follows: None,
+    }
 }
 
 /// The accounts of the Accounts sheet in `rejected`, in sheet order, each

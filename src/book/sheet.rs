@@ -2,13 +2,15 @@
 //! held as cells or as a CSV file's text), and the sheets of a book with the
 //! problems met opening it.
 //!
-//! This module never opens a file and never knows what a column means; a
-//! CSV sheet's rows are parsed from its text on each pass, so a sheet costs
-//! its text, not a heap value per cell.
+//! This module never knows what a column means, and opens a file only to
+//! read again a CSV file checked when the book was opened; a CSV sheet's
+//! rows are parsed from its text on each pass, so a sheet costs its text,
+//! not a heap value per cell, and only while it is typed.
 
 use std::borrow::Cow;
 
 use super::cell::shown;
+use super::csv_folder::CheckedCsv;
 use super::csv_records::CsvRows;
 use super::row::Row;
 use crate::problem::{Position, Problem, Severity};
@@ -35,14 +37,31 @@ pub(crate) enum Rows {
     Held(Vec<Row>),
     /// The text of a CSV file that parses without a fault.
     Csv(String),
+    /// A CSV file checked when the book was opened, its text not yet read
+    /// again (see [`Sheet::read_text`]): it has no rows until then.
+    CsvFile(CheckedCsv),
 }
 
 impl Sheet {
+    /// The sheet ready to type: a checked CSV file's text read again. The
+    /// `Err` gives the sheet back when the file is no longer the one checked.
+    pub(crate) fn read_text(mut self) -> Result<Sheet, Sheet> {
+        if let Rows::CsvFile(checked) = &self.rows {
+            match checked.text() {
+                Some(text) => self.rows = Rows::Csv(text),
+                None => return Err(self),
+            }
+        }
+        Ok(self)
+    }
+
     /// The rows with at least one non-blank cell, in order.
     pub(crate) fn rows(&self) -> SheetRows<'_> {
         match &self.rows {
             Rows::Held(rows) => SheetRows::Held(rows.iter()),
             Rows::Csv(text) => SheetRows::Csv(CsvRows::new(text, true)),
+            // Never typed before its text is read again.
+            Rows::CsvFile(_) => SheetRows::Held([].iter()),
         }
     }
 
@@ -50,7 +69,7 @@ impl Sheet {
     /// only the shapes matter); `None` for a workbook sheet.
     pub(crate) fn shapes(&self) -> Option<impl Iterator<Item = Row> + '_> {
         match &self.rows {
-            Rows::Held(_) => None,
+            Rows::Held(_) | Rows::CsvFile(_) => None,
             Rows::Csv(text) => {
                 let mut rows = CsvRows::new(text, false);
                 Some(std::iter::from_fn(move || rows.next_row()?.ok()))
