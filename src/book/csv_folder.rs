@@ -119,6 +119,10 @@ impl CheckedCsv {
     /// The file's text, read again; `None` when it can no longer be read
     /// or is not the file that was checked (changed since).
     pub(crate) fn text(&self) -> Option<String> {
+        // A FIFO or device put in its place is never opened: it could block.
+        if not_a_regular_file(&self.path).is_some() {
+            return None;
+        }
         let bytes = fs::read(&self.path).ok()?;
         if bytes.len() != self.len || digest(&bytes) != self.digest {
             return None;
