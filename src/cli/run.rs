@@ -192,12 +192,14 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         plan.add(shape);
     }
     let cannot_write = || format!("cannot write the workbook {}", target.display());
-    let writer = Writer::start(&target, &facts, plan, &styles, &limits).with_context(cannot_write)?;
+    let writer =
+        Writer::start(&target, &facts, plan, &styles, &limits).with_context(cannot_write)?;
     let (batch, writer) = accrue_writing(&books, &settings, args.threads, writer)?;
     let batch = batch.with_context(cannot_write)?;
     clock.lap("accrue (Accruals written alongside)");
 
-    let (mut report, mut csv_detail) = assemble(&books, batch, facts.clone(), detail_output, &files);
+    let (mut report, mut csv_detail) =
+        assemble(&books, batch, facts.clone(), detail_output, &files);
     let writing = progress::step(format!("writing the workbook {}", target.display()));
     let mut last_step = "write the rest of the workbook";
     let written = match writer.finish(&report) {
@@ -538,6 +540,10 @@ impl Timings {
         for (step, d) in &self.laps {
             eprintln!("timings: {step:<width$} {:>9.3} s", d.as_secs_f64());
         }
-        eprintln!("timings: {:<width$} {:>9.3} s", "total", total.as_secs_f64());
+        eprintln!(
+            "timings: {:<width$} {:>9.3} s",
+            "total",
+            total.as_secs_f64()
+        );
     }
 }
