@@ -196,7 +196,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         Writer::start(&target, &facts, plan, &styles, &limits).with_context(cannot_write)?;
     let (batch, writer) = accrue_writing(&books, &settings, args.threads, writer)?;
     let batch = batch.with_context(cannot_write)?;
-    clock.lap("accrue (Accruals written alongside)");
+    clock.lap("accrue and reconcile (Accruals written alongside)");
 
     let (mut report, mut csv_detail) =
         assemble(&books, batch, facts.clone(), detail_output, &files);

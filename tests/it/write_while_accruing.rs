@@ -57,7 +57,7 @@ fn accruals_laid_out_before_the_run_keep_their_tax_columns() {
     let (status, stderr, header, accounts) = run(dir.path(), "2026-01-01");
     assert_eq!(status, 0, "{stderr}");
     assert!(
-        stderr.contains("accrue (Accruals written alongside)"),
+        stderr.contains("accrue and reconcile (Accruals written alongside)"),
         "{stderr}"
     );
     assert!(!stderr.contains("accrue again"), "{stderr}");
