@@ -200,12 +200,19 @@ impl<'a> KnownRows<'a> {
     }
 }
 
+/// Whether `entry` of `book` has Accrual status rows, interest receipts or
+/// an opening suspense: an account whose computed run splits its interest
+/// into recognised and suspended.
+pub fn splits_interest(book: &Book, entry: &AccountEntry) -> bool {
+    book.accrual.touches(&entry.terms.id) || !entry.opening_suspense.is_zero()
+}
+
 /// The Accrual status rows, interest receipts and opening suspense of
 /// `entry` in `book`; `None` for an account with none of them, which is
 /// accruing and keeps the fast path.
 fn suspense_of<'b>(book: &'b Book, entry: &'b AccountEntry) -> Option<SuspenseInputs<'b>> {
     let id = entry.terms.id.as_str();
-    (book.accrual.touches(id) || !entry.opening_suspense.is_zero()).then(|| SuspenseInputs {
+    splits_interest(book, entry).then(|| SuspenseInputs {
         statuses: book.accrual.statuses.get(id).map_or(&[][..], Vec::as_slice),
         receipts: book.accrual.receipts.get(id).map_or(&[][..], Vec::as_slice),
         opening_suspense: entry.opening_suspense,

@@ -37,6 +37,7 @@ use crate::report::model::{
     AccrualLine, CurrencyTotal, DailyLine, JournalDetail, JournalLine, LedgerLine, LeftOutLine,
     ReconciliationLine, StatusCount, SuspenseLine, TaxLine, TieOutLine, Word,
 };
+use crate::report::workbook::LineShape;
 use journal::{AccountEntries, Journal, JournalStyle, ResolvedGl, SuspenseEntries};
 use tie_out::TieOut;
 use totals::{StatusCounts, Totals};
@@ -210,6 +211,29 @@ pub fn run_books(
     settings: &BatchSettings,
     tick: &(dyn Fn() + Sync),
 ) -> BatchResult {
+    let mut accruals: Vec<AccrualLine> = Vec::new();
+    let mut result = run_books_in_parts(books, settings, tick, &mut |part| {
+        if accruals.is_empty() {
+            // Every account gives one line: room for them all at once, not by doubling.
+            accruals.reserve_exact(accounts_to_accrue(books, settings.shard).count());
+        }
+        accruals.extend(part);
+    });
+    result.accruals = accruals;
+    result
+}
+
+/// [`run_books`], handing the Accruals lines to `part` as each part of
+/// accounts is added up, in book order (a few thousand lines at a time,
+/// whatever the thread count), rather than keeping them: the result's
+/// `accruals` is empty. Everything else the result holds is the same.
+/// `part` is called on the calling thread.
+pub fn run_books_in_parts(
+    books: &[Book],
+    settings: &BatchSettings,
+    tick: &(dyn Fn() + Sync),
+    part: &mut dyn FnMut(Vec<AccrualLine>),
+) -> BatchResult {
     let options = Options {
         window_start: settings.window_start,
         cutoff: settings.cutoff,
@@ -230,36 +254,70 @@ pub fn run_books(
         .collect();
     let work = work_in_book_order(books, &rows, settings.shard);
     let left_out = left_out_by_books(books, settings.shard);
-    let mut sums = Sums::new(settings, work.len() + left_out.len(), work.len());
+    let mut sums = Sums::new(settings, work.len() + left_out.len());
     sums.result.accounts_left_out = left_out.len();
     sums.result.left_out = left_out;
+    // Every shard of books with a life event shows the status columns.
+    let life_shown = shows_life(books);
     // Accounts go through in parts of book order: each part accrued in
-    // parallel, then added to the rows and sums, so that only one part's
-    // outcomes (day rows, postings, notes) are held at a time.
-    for part in work.chunks(PART) {
-        let outcomes = accrue_part(part, &options, tick);
-        for (&(_, _, _, entry), outcome) in part.iter().zip(outcomes) {
+    // parallel, then added to the sums and its lines handed on, so that
+    // only one part's outcomes (day rows, postings, notes) are held at a time.
+    for chunk in work.chunks(PART) {
+        let outcomes = accrue_part(chunk, &options, life_shown, tick);
+        let mut lines = Vec::with_capacity(chunk.len());
+        for (&(_, _, _, entry), outcome) in chunk.iter().zip(outcomes) {
             match outcome {
-                Ok(o) => sums.add(entry, o),
+                Ok(o) => lines.push(sums.add(entry, o)),
                 Err(p) => sums.failed(&entry.terms.id, *p),
             }
         }
+        part(lines);
     }
     let names: Vec<String> = books.iter().map(|b| b.path.display().to_string()).collect();
     sort_left_out(&mut sums.result.left_out, &names);
-    let mut result = sums.finish(books);
-    // Every shard of books with a life event shows the status columns.
-    if books
+    sums.finish(books)
+}
+
+/// Whether the Accruals show every account's status and term: when some
+/// account of the books (of any shard) has a life event.
+fn shows_life(books: &[Book]) -> bool {
+    books
         .iter()
         .any(|b| b.accounts.iter().any(|a| !a.terms.events.is_none()))
-    {
-        for line in &mut result.accruals {
-            if let Some(l) = line.life.as_mut() {
-                l.shown = true;
-            }
-        }
-    }
-    result
+}
+
+/// The shape of each Accruals line the batch gives for `books`, in book
+/// order, known before any account is accrued: its minor units and the
+/// column groups it holds, as if no account failed (an account the
+/// computation stops on gives no line). A writer decides the Accruals'
+/// layout from them before the first line arrives.
+pub fn line_shapes<'b>(
+    books: &'b [Book],
+    settings: &BatchSettings,
+) -> impl Iterator<Item = LineShape> + 'b {
+    let life = shows_life(books);
+    let shard = settings.shard;
+    books
+        .iter()
+        .flat_map(|b| b.accounts.iter().map(move |a| (b, a)))
+        .filter(move |(_, a)| in_shard(&a.terms.id, shard))
+        .map(move |(b, a)| LineShape {
+            minor_units: a.terms.minor_units,
+            life,
+            suspense: crate::pipeline::splits_interest(b, a),
+            tax: a.terms.tax.is_some(),
+        })
+}
+
+/// Every account of the books (of the shard, if any), in book order.
+fn accounts_to_accrue(
+    books: &[Book],
+    shard: Option<(u32, u32)>,
+) -> impl Iterator<Item = &AccountEntry> {
+    books
+        .iter()
+        .flat_map(|b| &b.accounts)
+        .filter(move |a| in_shard(&a.terms.id, shard))
 }
 
 /// The accounts each book's reader left out (of the shard, if any), each
@@ -328,19 +386,20 @@ fn work_in_book_order<'b>(
 fn accrue_part(
     part: &[Work<'_>],
     options: &Options,
+    life_shown: bool,
     tick: &(dyn Fn() + Sync),
 ) -> Vec<Result<Outcome, Box<Problem>>> {
     part.par_iter()
         .with_min_len(64)
         .map(|&(_, book, rows, entry)| {
-            let r = accrue_one(book, rows, entry, options);
+            let r = accrue_one(book, rows, entry, options, life_shown);
             tick();
             r
         })
         .collect()
 }
 
-/// The batch's rows and sums so far, added to one account at a time in book order.
+/// The batch's sums so far, added to one account at a time in book order.
 struct Sums<'s> {
     settings: &'s BatchSettings,
     result: BatchResult,
@@ -352,13 +411,11 @@ struct Sums<'s> {
 }
 
 impl<'s> Sums<'s> {
-    fn new(settings: &'s BatchSettings, accounts_read: usize, accounts: usize) -> Sums<'s> {
-        let mut result = BatchResult {
+    fn new(settings: &'s BatchSettings, accounts_read: usize) -> Sums<'s> {
+        let result = BatchResult {
             accounts_read,
             ..BatchResult::default()
         };
-        // Every account gives one line: room for them all at once, not by doubling.
-        result.accruals.reserve_exact(accounts);
         Sums {
             settings,
             result,
@@ -374,9 +431,9 @@ impl<'s> Sums<'s> {
         }
     }
 
-    /// Adds one computed account: its totals, journal lines,
-    /// day rows, reconciliation rows, notes and accrual line.
-    fn add(&mut self, entry: &AccountEntry, o: Outcome) {
+    /// Adds one computed account: its totals, journal lines, day rows,
+    /// reconciliation rows and notes; returns its accrual line.
+    fn add(&mut self, entry: &AccountEntry, o: Outcome) -> AccrualLine {
         let settings = self.settings;
         self.totals.add(&o.line);
         let l = &o.line.ledger;
@@ -420,8 +477,8 @@ impl<'s> Sums<'s> {
         self.result.problems.extend(o.notes);
         self.result.accrued_check.extend(o.accrued_check);
         self.tie_out.add(&o.line);
-        self.result.accruals.push(o.line);
         self.result.accounts_computed += 1;
+        o.line
     }
 
     /// Counts an account the computation stopped on, with its problem.
@@ -495,6 +552,7 @@ fn accrue_one(
     rows: &Rows,
     entry: &AccountEntry,
     options: &Options,
+    life_shown: bool,
 ) -> Result<Outcome, Box<Problem>> {
     let id = entry.terms.id.as_str();
     let statements = rows.statements.get(id).map_or(&[][..], Vec::as_slice);
@@ -504,7 +562,14 @@ fn accrue_one(
         .with_booked_close(rows.booked_close.get(id).copied())
         .with_unreadable(unreadable);
     let run = run_account(&account, options).map_err(|f| Box::new(f.problem))?;
-    Ok(outcome(entry, rows.entity, run, unreadable, options))
+    Ok(outcome(
+        entry,
+        rows.entity,
+        run,
+        unreadable,
+        options,
+        life_shown,
+    ))
 }
 
 /// The rows of an account computed: its accrual line, the postings of the
@@ -517,6 +582,7 @@ fn outcome(
     run: AccountRun,
     unreadable: &[&UnreadableStatement],
     options: &Options,
+    life_shown: bool,
 ) -> Outcome {
     let t = &entry.terms;
     let r = run.result;
@@ -630,7 +696,13 @@ fn outcome(
                 .as_ref()
                 .map(|_| tax_line(&run.postings, &r.postings, options)),
             suspense: suspense_line.map(Box::new),
-            life: Some(life_line(t, run.life.as_ref(), &r, options.cutoff)),
+            life: Some(life_line(
+                t,
+                run.life.as_ref(),
+                &r,
+                options.cutoff,
+                life_shown,
+            )),
         },
         gl,
         settlements,
@@ -645,16 +717,18 @@ fn outcome(
 }
 
 /// An account's status and current term at the cut-off (behaviour.md,
-/// Account life events).
+/// Account life events), shown when the account has a life event or
+/// `shown` says the books have one.
 fn life_line(
     t: &crate::engine::AccountTerms,
     life: Option<&crate::engine::events::Life>,
     result: &crate::engine::AccountResult,
     cutoff: NaiveDate,
+    shown: bool,
 ) -> crate::report::model::LifeLine {
     let f = crate::engine::events::figures_of(t, life, result, cutoff);
     crate::report::model::LifeLine {
-        shown: life.is_some(),
+        shown: shown || life.is_some(),
         status: f.status.word().into(),
         days_since_maturity: f.days_since_maturity,
         term_start: f.term_start,

@@ -783,3 +783,31 @@ fn many_missing_shards_are_counted_not_listed() {
         ]
     );
 }
+
+/// Write while accruing: the lines come part by part in book order, the
+/// parts together are the lines of a whole run, and every other figure is
+/// the same; the shapes known before the run are the lines' own.
+#[test]
+fn lines_handed_on_part_by_part_are_the_whole_run_in_book_order() {
+    let books = [book(PART + 4)];
+    let whole = run_books(&books, &settings(), &|| {});
+    let mut parts: Vec<Vec<AccrualLine>> = Vec::new();
+    let parted = rayon::ThreadPoolBuilder::new()
+        .num_threads(2)
+        .build()
+        .unwrap()
+        .install(|| run_books_in_parts(&books, &settings(), &|| {}, &mut |p| parts.push(p)));
+    assert_eq!(
+        parts.iter().map(Vec::len).collect::<Vec<_>>(),
+        vec![PART, 4]
+    );
+    assert!(parted.accruals.is_empty());
+    let lines: Vec<AccrualLine> = parts.into_iter().flatten().collect();
+    assert_eq!(lines, whole.accruals);
+    assert_eq!(parted.journal, whole.journal);
+    assert_eq!(parted.totals, whole.totals);
+    assert_eq!(parted.reconciliation, whole.reconciliation);
+    assert_eq!(parted.accounts_computed, PART + 4);
+    let shapes: Vec<LineShape> = line_shapes(&books, &settings()).collect();
+    assert_eq!(shapes, lines.iter().map(LineShape::of).collect::<Vec<_>>());
+}

@@ -16,11 +16,14 @@ use super::settings::{Given, KnowledgeArgs, Settings, ToleranceArgs};
 use super::summary::print_summary;
 use super::{exit, progress, read_books_showing, refuse_unreadable, run_time, BookArgs};
 use crate::batch::totals::{largest_variances, LARGEST_PER_CURRENCY};
-use crate::batch::{run_books, BatchResult};
+use crate::batch::{line_shapes, run_books, run_books_in_parts, BatchResult};
 use crate::book::Book;
 use crate::problem::{Problem, Severity};
 use crate::report::journal_csv::{self, DetailOutput};
-use crate::report::model::{InputFile, JournalDetail, Report, RunFacts};
+use crate::report::layout::{Limits, Styles};
+use crate::report::model::{AccrualLine, InputFile, JournalDetail, Report, RunFacts};
+use crate::report::workbook::{AccrualsPlan, Writer};
+use crate::report::ReportError;
 
 /// Arguments of `run`.
 #[derive(Debug, clap::Args)]
@@ -176,28 +179,75 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     fingerprinting.finish_and_clear();
     clock.lap("fingerprint the inputs");
 
-    let mut batch = accrue(&books, &settings, args.threads)?;
-    clock.lap("accrue and reconcile");
-
+    // The Accruals are written while the accounts are accrued: each part's
+    // lines go to the writer's thread as the batch adds them up, and the
+    // rest of the workbook follows once the batch is done.
     let fail_on_variance = settings.fail_on_variance;
+    let detail_output = settings.journal_detail;
+    let facts = facts(&settings, inputs, run_time);
+    let styles = Styles::report();
+    let limits = Limits::default();
+    let mut plan = AccrualsPlan::new(&limits);
+    for shape in line_shapes(&books, &settings.batch()) {
+        plan.add(shape);
+    }
+    let cannot_write = || format!("cannot write the workbook {}", target.display());
+    let writer =
+        Writer::start(&target, &facts, plan, &styles, &limits).with_context(cannot_write)?;
+    let (batch, writer) = accrue_writing(&books, &settings, args.threads, writer)?;
+    let batch = batch.with_context(cannot_write)?;
+    clock.lap("accrue and reconcile (Accruals written alongside)");
+
+    let (mut report, mut csv_detail) =
+        assemble(&books, batch, facts.clone(), detail_output, &files);
+    let writing = progress::step(format!("writing the workbook {}", target.display()));
+    let mut last_step = "write the rest of the workbook";
+    let written = match writer.finish(&report) {
+        Err(ReportError::PlanMissed(_)) => {
+            // Some account's computation stopped and changed the Accruals'
+            // layout decided before the run: accrue again, keeping every
+            // line, and write the workbook from them all at once.
+            writing.finish_and_clear();
+            let batch = accrue(&books, &settings, args.threads)?;
+            clock.lap("accrue again (layout changed)");
+            (report, csv_detail) = assemble(&books, batch, facts, detail_output, &files);
+            last_step = "write the workbook";
+            let writing = progress::step(format!("writing the workbook {}", target.display()));
+            let written = crate::report::write_report(&report, &target);
+            writing.finish_and_clear();
+            written
+        }
+        other => other,
+    }
+    .with_context(cannot_write)?;
+    writing.finish_and_clear();
+    let written_files = files.write(&report, csv_detail.as_ref())?;
+    clock.lap(last_step);
+    clock.report();
+    print_summary(out, &report, &written, &written_files)?;
+    Ok(exit_status(&report, fail_on_variance))
+}
+
+/// The workbook's report from the batch's figures: the Journal detail on
+/// its sheet, or returned for its CSV file, or left out, and the warnings
+/// of the files beside the workbook.
+fn assemble(
+    books: &[Book],
+    mut batch: BatchResult,
+    facts: RunFacts,
+    detail_output: DetailOutput,
+    files: &Files,
+) -> (Report, Option<JournalDetail>) {
     let detail = batch.journal_detail.take();
-    let (sheet_detail, csv_detail) = match settings.journal_detail {
+    let (sheet_detail, csv_detail) = match detail_output {
         DetailOutput::Sheet => (detail, None),
         DetailOutput::Csv => (None, detail),
         DetailOutput::None => (None, None),
     };
-    let mut report = report(&books, batch, settings, inputs, run_time);
+    let mut report = report(books, batch, facts);
     report.journal_detail = sheet_detail;
     files.note_guarded_cells(&mut report, csv_detail.as_ref());
-    let writing = progress::step(format!("writing the workbook {}", target.display()));
-    let written = crate::report::write_report(&report, &target)
-        .with_context(|| format!("cannot write the workbook {}", target.display()))?;
-    writing.finish_and_clear();
-    let written_files = files.write(&report, csv_detail.as_ref())?;
-    clock.lap("write the workbook");
-    clock.report();
-    print_summary(out, &report, &written, &written_files)?;
-    Ok(exit_status(&report, fail_on_variance))
+    (report, csv_detail)
 }
 
 /// The CSV files a run or a merge writes beside its workbook: the Journal
@@ -311,6 +361,10 @@ impl Files {
     }
 }
 
+/// Parts of Accruals lines waiting for the writer at most: the batch
+/// goes on accruing while the writer catches up, and memory stays bounded.
+const PARTS_IN_FLIGHT: usize = 2;
+
 /// Every account accrued on `threads` worker threads (default: one per
 /// core), with a progress bar on a terminal for a long run.
 fn accrue(books: &[Book], settings: &Settings, threads: Option<usize>) -> Result<BatchResult> {
@@ -318,29 +372,91 @@ fn accrue(books: &[Book], settings: &Settings, threads: Option<usize>) -> Result
     let total: usize = books.iter().map(|b| b.accounts.len()).sum();
     let bar = progress::accruing(total);
     let tick = || bar.inc(1);
-    let batch = match threads {
+    let batch = in_pool(threads, || run_books(books, &batch_settings, &tick))?;
+    bar.finish_and_clear();
+    Ok(batch)
+}
+
+/// As [`accrue`], handing each part's Accruals lines to `writer` on a
+/// thread of its own as the batch adds them up (in book order); returns
+/// the batch (without its lines) and the writer, or the writer's error.
+fn accrue_writing<'s>(
+    books: &[Book],
+    settings: &Settings,
+    threads: Option<usize>,
+    mut writer: Writer<'s>,
+) -> Result<(Result<BatchResult, ReportError>, Writer<'s>)> {
+    let batch_settings = settings.batch();
+    let total: usize = books.iter().map(|b| b.accounts.len()).sum();
+    let bar = progress::accruing(total);
+    let tick = || bar.inc(1);
+    let (batch, writer) = std::thread::scope(|scope| {
+        let (send, receive) = std::sync::mpsc::sync_channel::<Vec<AccrualLine>>(PARTS_IN_FLIGHT);
+        let writing = scope.spawn(move || {
+            let mut stopped = None;
+            for lines in receive {
+                // After an error the writer takes no more lines; the batch
+                // still finishes, and the error is returned.
+                if stopped.is_none() {
+                    stopped = writer.accruals(&lines).err();
+                }
+            }
+            (stopped, writer)
+        });
+        let mut hand_on = move |lines: Vec<AccrualLine>| {
+            // Only fails once the writer's thread is gone, which the join reports.
+            let _ = send.send(lines);
+        };
+        let batch = in_pool(threads, || {
+            run_books_in_parts(books, &batch_settings, &tick, &mut hand_on)
+        });
+        drop(hand_on);
+        let written = writing
+            .join()
+            .map_err(|_| anyhow!("the workbook writer stopped unexpectedly"));
+        (batch, written)
+    });
+    bar.finish_and_clear();
+    let batch = batch?;
+    let (stopped, writer) = writer?;
+    Ok((stopped.map_or(Ok(batch), Err), writer))
+}
+
+/// `work` on a pool of `threads` worker threads, else on the default pool.
+fn in_pool<T: Send>(threads: Option<usize>, work: impl FnOnce() -> T + Send) -> Result<T> {
+    match threads {
         Some(n) => {
             let pool = rayon::ThreadPoolBuilder::new()
                 .num_threads(n.max(1))
                 .build()
                 .context("cannot start the worker threads")?;
-            pool.install(|| run_books(books, &batch_settings, &tick))
+            Ok(pool.install(work))
         }
-        None => run_books(books, &batch_settings, &tick),
-    };
-    bar.finish_and_clear();
-    Ok(batch)
+        None => Ok(work()),
+    }
+}
+
+/// The run's facts before any account is accrued (the counts follow from
+/// the batch, see [`report`]).
+fn facts(settings: &Settings, inputs: Vec<InputFile>, run_time: NaiveDateTime) -> RunFacts {
+    RunFacts {
+        program: format!("ledgerate {}", env!("CARGO_PKG_VERSION")),
+        command_line: audited_command_line(),
+        inputs,
+        settings: settings.listed.clone(),
+        run_time,
+        cutoff: settings.cutoff,
+        window_start: settings.window_start,
+        accounts_read: 0,
+        accounts_computed: 0,
+        accounts_left_out: 0,
+        accounts_failed: 0,
+    }
 }
 
 /// The workbook's report: the batch's rows, the books' problems and the
-/// run's facts.
-fn report(
-    books: &[Book],
-    batch: BatchResult,
-    settings: Settings,
-    inputs: Vec<InputFile>,
-    run_time: NaiveDateTime,
-) -> Report {
+/// run's facts with the batch's counts.
+fn report(books: &[Book], batch: BatchResult, facts: RunFacts) -> Report {
     let mut problems: Vec<Problem> = books
         .iter()
         .flat_map(|b| b.problems.iter().cloned())
@@ -350,17 +466,11 @@ fn report(
     crate::problem::sort_problems(&mut problems, &book_names);
     Report {
         facts: RunFacts {
-            program: format!("ledgerate {}", env!("CARGO_PKG_VERSION")),
-            command_line: audited_command_line(),
-            inputs,
-            settings: settings.listed,
-            run_time,
-            cutoff: settings.cutoff,
-            window_start: settings.window_start,
             accounts_read: batch.accounts_read,
             accounts_computed: batch.accounts_computed,
             accounts_left_out: batch.accounts_left_out,
             accounts_failed: batch.accounts_failed,
+            ..facts
         },
         totals: batch.totals,
         left_out: batch.left_out,
@@ -426,9 +536,14 @@ impl Timings {
             return;
         }
         let total: std::time::Duration = self.laps.iter().map(|(_, d)| *d).sum();
+        let width = self.laps.iter().map(|(s, _)| s.len()).max().unwrap_or(0);
         for (step, d) in &self.laps {
-            eprintln!("timings: {step:<26} {:>9.3} s", d.as_secs_f64());
+            eprintln!("timings: {step:<width$} {:>9.3} s", d.as_secs_f64());
         }
-        eprintln!("timings: {:<26} {:>9.3} s", "total", total.as_secs_f64());
+        eprintln!(
+            "timings: {:<width$} {:>9.3} s",
+            "total",
+            total.as_secs_f64()
+        );
     }
 }

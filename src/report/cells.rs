@@ -380,6 +380,14 @@ impl<'a> Cells<'a> {
         self.ws
             .set_column_format(col, format)
             .map_err(at(self.sheet, self.row))?;
+        self.carry(col, format);
+        Ok(())
+    }
+
+    /// Column `col` already carries `format` (given by [`Cells::column_format`]
+    /// when the sheet was started): cells in that very format are written
+    /// without one again.
+    pub fn carry(&mut self, col: ColNum, format: &'a Format) {
         let i = usize::from(col);
         if self.column_formats.len() <= i {
             self.column_formats.resize(i + 1, None);
@@ -387,7 +395,19 @@ impl<'a> Cells<'a> {
         if let Some(slot) = self.column_formats.get_mut(i) {
             *slot = Some(format);
         }
-        Ok(())
+    }
+
+    /// Goes on from the widest cells `widths` of an earlier stretch of the
+    /// same sheet (see [`Cells::into_widths`]).
+    pub fn with_widths(mut self, widths: Vec<usize>) -> Self {
+        self.widths = widths;
+        self
+    }
+
+    /// The widest cell of each column so far, in characters: what
+    /// [`Cells::width`] reads, kept for a later stretch of the same sheet.
+    pub fn into_widths(self) -> Vec<usize> {
+        self.widths
     }
 
     /// Whether `format` is the one column `col` already carries.

@@ -69,6 +69,13 @@ pub enum ReportError {
         /// What the writer said.
         message: String,
     },
+    /// The Accruals' layout (its column groups and the usual format of its
+    /// amounts) was decided from the accounts before they were accrued, and
+    /// the lines that came differ from that plan (some account's computation
+    /// stopped): the workbook is left unwritten, and is written again from
+    /// the whole list of lines.
+    #[error("the Accruals of '{}' were laid out for accounts whose computation stopped; write the workbook again from the whole run", .0.display())]
+    PlanMissed(PathBuf),
     /// A workbook to read back cannot be opened as a workbook.
     #[error("cannot open {path} as a workbook: {why}")]
     Unreadable {

@@ -7,9 +7,13 @@ use calamine::{open_workbook, Data, Reader, Xlsx};
 use chrono::{Datelike, NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
-use super::layout::Limits;
+use super::layout::{Limits, Styles};
 use super::model::*;
-use super::workbook::{write_report_with, DAILY_HEADER, JOURNAL_DETAIL_HEADER, JOURNAL_HEADER};
+use super::workbook::{
+    write_report_with, AccrualsPlan, LineShape, Writer, DAILY_HEADER, JOURNAL_DETAIL_HEADER,
+    JOURNAL_HEADER,
+};
+use super::ReportError;
 use crate::engine::reconcile::Status;
 
 fn dec(s: &str) -> Decimal {
@@ -970,4 +974,123 @@ fn a_tie_out_status_the_writer_never_writes_is_refused() {
         ),
         other => panic!("{other}"),
     }
+}
+
+/// Accruals lines of mixed minor units (so that each sheet's usual format
+/// differs), some with a status and term and some taxed.
+fn mixed_accruals() -> Vec<AccrualLine> {
+    [
+        ("USD", 2),
+        ("JPY", 0),
+        ("JPY", 0),
+        ("KWD", 3),
+        ("USD", 2),
+        ("USD", 2),
+        ("JPY", 0),
+    ]
+    .into_iter()
+    .enumerate()
+    .map(|(i, (currency, units))| {
+        // A long figure early on the first sheet: its column stays that
+        // wide when the sheet's later lines come in another part.
+        let balance = if i == 1 { "123456789.5" } else { "1000" };
+        let mut a = accrual(&format!("A-{i}"), currency, units, balance);
+        a.life = Some(LifeLine {
+            shown: true,
+            status: "open".into(),
+            days_since_maturity: None,
+            term_start: Some(day(1)),
+            maturity: (i % 2 == 0).then(|| day(30)),
+        });
+        if i % 3 == 0 {
+            a.tax = Some(TaxLine {
+                withheld: dec("2.40"),
+                net_posted: dec("9.60"),
+            });
+        }
+        a
+    })
+    .collect()
+}
+
+/// Write while accruing: a workbook whose Accruals lines come part by part
+/// (parts that end inside a sheet and across the row limit) is byte for
+/// byte the one written from all of them at once.
+#[test]
+fn accruals_written_part_by_part_give_the_workbook_written_whole() {
+    let dir = tempfile::tempdir().unwrap();
+    let limits = Limits {
+        rows_per_sheet: 4, // header + 3 lines: Accruals, Accruals 2, Accruals 3
+        ..Limits::default()
+    };
+    let mut r = report();
+    r.accruals = mixed_accruals();
+    let whole = dir.path().join("whole.xlsx");
+    let outcome = write_report_with(&r, &whole, &limits).unwrap();
+
+    let parted = dir.path().join("parted.xlsx");
+    let styles = Styles::report();
+    let mut plan = AccrualsPlan::new(&limits);
+    for a in &r.accruals {
+        plan.add(LineShape::of(a));
+    }
+    let mut writer = Writer::start(&parted, &r.facts, plan, &styles, &limits).unwrap();
+    for part in [
+        &r.accruals[..2],
+        &r.accruals[2..2],
+        &r.accruals[2..5],
+        &r.accruals[5..],
+    ] {
+        writer.accruals(part).unwrap();
+    }
+    let lines = std::mem::take(&mut r.accruals);
+    let parted_outcome = writer.finish(&r).unwrap();
+
+    assert_eq!(
+        std::fs::read(&whole).unwrap(),
+        std::fs::read(&parted).unwrap()
+    );
+    assert_eq!(outcome.sheets[1..4], parted_outcome.sheets[1..4]);
+    let names: Vec<&str> = outcome.sheets.iter().map(|s| s.name.as_str()).collect();
+    assert_eq!(names[1..4], ["Accruals", "Accruals 2", "Accruals 3"]);
+    // Each sheet's amounts carry the format most of its lines have: JPY's
+    // none on the first (USD, JPY, JPY), USD's two on the second (KWD, USD,
+    // USD), JPY's none on the third.
+    assert_eq!(
+        AccrualsPlan::of(&lines, &limits).usual_units(),
+        vec![0, 2, 0]
+    );
+    let accounts: Vec<String> = ["Accruals", "Accruals 2", "Accruals 3"]
+        .iter()
+        .flat_map(|s| rows(&parted, s).into_iter().skip(1))
+        .map(|row| row[0].to_string())
+        .collect();
+    assert_eq!(
+        accounts,
+        (0..7).map(|i| format!("A-{i}")).collect::<Vec<_>>()
+    );
+}
+
+/// Lines that do not fit the layout decided before they came (here the
+/// plan counted a taxed line that never came) leave no workbook and say
+/// so, for the run to write it again whole.
+#[test]
+fn accruals_laid_out_for_lines_that_never_came_are_not_written() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("out.xlsx");
+    let limits = Limits::default();
+    let styles = Styles::report();
+    let mut r = report();
+    let lines = mixed_accruals();
+    let plan = AccrualsPlan::of(&lines, &limits);
+    let mut writer = Writer::start(&target, &r.facts, plan, &styles, &limits).unwrap();
+    let untaxed: Vec<AccrualLine> = lines.into_iter().filter(|a| a.tax.is_none()).collect();
+    writer.accruals(&untaxed).unwrap();
+    r.facts.accounts_computed = untaxed.len();
+    match writer.finish(&r) {
+        Err(ReportError::PlanMissed(path)) => assert_eq!(path, target),
+        other => panic!("expected the plan to miss, got {other:?}"),
+    }
+    assert!(!target.exists());
+    assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
 }

@@ -138,9 +138,9 @@ impl AccrualGroup {
             .collect()
     }
 
-    /// The formats its columns carry.
-    fn formats<'s>(self, s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
-        let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    /// The formats its columns carry, amounts in `units` decimals.
+    fn formats(self, s: &Styles, units: u32) -> Vec<Option<&Format>> {
+        let amount = Some(s.amount(units));
         match self {
             AccrualGroup::Life => vec![Some(&s.text), Some(&s.count), Some(&s.date), Some(&s.date)],
             AccrualGroup::Suspense => vec![
@@ -532,52 +532,449 @@ pub struct WriteOutcome {
 /// # Ok(()) }
 /// ```
 pub fn write_report(report: &Report, target: &Path) -> Result<WriteOutcome, ReportError> {
-    output::guarded(target, || {
-        write_report_with(report, target, &Limits::default())
-    })
+    write_report_with(report, target, &Limits::default())
 }
 
-/// [`write_report`] with other limits (tests use a small row limit).
+/// [`write_report`] with other limits (tests use a small row limit): the
+/// report's Accruals lines are one part of a [`Writer`].
 pub(crate) fn write_report_with(
     report: &Report,
     target: &Path,
     limits: &Limits,
 ) -> Result<WriteOutcome, ReportError> {
-    let dir = output::target_dir(target)?;
-    output::check_not_input(target, &report.facts.inputs)?;
-    let mut wb = new_workbook(report, target, &dir)?;
     let styles = Styles::report();
-    let mut ctx = Ctx {
-        styles: &styles,
-        texts: TextFigures::default(),
-        limits: *limits,
-        sheets: Vec::new(),
-    };
+    let plan = AccrualsPlan::of(&report.accruals, limits);
+    let mut writer = Writer::start(target, &report.facts, plan, &styles, limits)?;
+    writer.accruals(&report.accruals)?;
+    writer.finish(report)
+}
 
-    // Summary comes first but is filled last, once every text figure is known:
-    // it is an ordinary (random-access) sheet; the lists are written strictly
-    // in row order in constant memory.
-    wb.add_worksheet()
-        .set_name("Summary")
-        .map_err(|e| ReportError::sheet("Summary", e))?;
-    ctx.sheets.push(SheetRows {
-        name: "Summary".into(),
-        rows: 0,
-    });
+/// The shape of one Accruals line, as far as the sheet's layout goes: its
+/// minor units and which column groups it holds.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct LineShape {
+    /// The minor units of its currency.
+    pub minor_units: u32,
+    /// It shows a status and term ([`AccrualGroup::Life`]).
+    pub life: bool,
+    /// It splits interest into recognised and suspended ([`AccrualGroup::Suspense`]).
+    pub suspense: bool,
+    /// It has withholding tax ([`AccrualGroup::Tax`]).
+    pub tax: bool,
+}
+
+impl LineShape {
+    /// The shape of line `a`.
+    pub fn of(a: &AccrualLine) -> LineShape {
+        LineShape {
+            minor_units: a.minor_units,
+            life: AccrualGroup::Life.held_by(a),
+            suspense: AccrualGroup::Suspense.held_by(a),
+            tax: AccrualGroup::Tax.held_by(a),
+        }
+    }
+
+    fn holds(self, g: AccrualGroup) -> bool {
+        match g {
+            AccrualGroup::Life => self.life,
+            AccrualGroup::Suspense => self.suspense,
+            AccrualGroup::Tax => self.tax,
+        }
+    }
+}
+
+/// What the Accruals' layout is decided from, counted line by line: the
+/// column groups some line holds, and for each sheet of the list (the
+/// spreadsheet's row limit splits it) how many lines have each minor units,
+/// the one most of them have being the usual format of its amount columns.
+/// Counting lines as they pass gives the same decisions as looking at them
+/// all at once.
+///
+/// ```
+/// use ledgerate::report::layout::Limits;
+/// use ledgerate::report::workbook::{AccrualsPlan, LineShape};
+/// let limits = Limits { rows_per_sheet: 3, ..Limits::default() }; // 2 lines a sheet
+/// let line = |minor_units| LineShape { minor_units, life: false, suspense: false, tax: false };
+/// let mut plan = AccrualsPlan::new(&limits);
+/// for units in [0, 2, 2, 3, 0] {
+///     plan.add(line(units));
+/// }
+/// // A tie goes to the fewer decimals: 0 on the first sheet, 2 on the
+/// // second, 0 on the third.
+/// assert_eq!(plan.usual_units(), vec![0, 2, 0]);
+/// ```
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct AccrualsPlan {
+    per_sheet: usize,
+    lines: usize,
+    groups: [bool; 3],
+    /// Per sheet, lines by minor units (capped at the formats' most decimals).
+    units: Vec<[usize; MAX_FORMAT_DECIMALS as usize + 1]>,
+}
+
+impl AccrualsPlan {
+    /// No line yet, sheets of `limits`.
+    pub fn new(limits: &Limits) -> AccrualsPlan {
+        AccrualsPlan {
+            per_sheet: limits.data_rows_per_sheet(),
+            lines: 0,
+            groups: [false; 3],
+            units: Vec::new(),
+        }
+    }
+
+    /// The plan of `rows`, all at once.
+    pub fn of(rows: &[AccrualLine], limits: &Limits) -> AccrualsPlan {
+        let mut plan = AccrualsPlan::new(limits);
+        for a in rows {
+            plan.add(LineShape::of(a));
+        }
+        plan
+    }
+
+    /// Counts the next line.
+    pub fn add(&mut self, line: LineShape) {
+        for (held, g) in self.groups.iter_mut().zip(AccrualGroup::ALL) {
+            *held |= line.holds(g);
+        }
+        let sheet = self.lines / self.per_sheet.max(1);
+        if self.units.len() <= sheet {
+            self.units
+                .resize(sheet + 1, [0; MAX_FORMAT_DECIMALS as usize + 1]);
+        }
+        let i = line.minor_units.min(MAX_FORMAT_DECIMALS) as usize;
+        if let Some(n) = self.units.get_mut(sheet).and_then(|c| c.get_mut(i)) {
+            *n += 1;
+        }
+        self.lines += 1;
+    }
+
+    /// The column groups the sheet shows: those some line holds (none
+    /// without lines), in the order of [`AccrualGroup::ALL`].
+    pub fn groups(&self) -> Vec<AccrualGroup> {
+        AccrualGroup::ALL
+            .into_iter()
+            .zip(self.groups)
+            .filter(|(_, held)| *held)
+            .map(|(g, _)| g)
+            .collect()
+    }
+
+    /// The usual minor units of each sheet's amounts (a sheet without lines
+    /// gets 0, as [`usual_units`] gives for no rows); at least one sheet.
+    pub fn usual_units(&self) -> Vec<u32> {
+        let mut units: Vec<u32> = self.units.iter().map(|c| most_units(c)).collect();
+        if units.is_empty() {
+            units.push(0);
+        }
+        units
+    }
+
+    /// The usual units of sheet `index`.
+    fn units_of(&self, index: usize) -> u32 {
+        self.units.get(index).map_or(0, |c| most_units(c))
+    }
+
+    /// Whether the lines counted in `got` are laid out as this plan lays
+    /// them out: the same groups, and each sheet they fill the same usual units.
+    fn lays_out(&self, got: &AccrualsPlan) -> bool {
+        self.groups() == got.groups()
+            && (0..got.units.len().max(1)).all(|i| self.units_of(i) == got.units_of(i))
+    }
+}
+
+/// The minor units with the most lines in `counts` (the fewest decimals of a tie).
+fn most_units(counts: &[usize]) -> u32 {
+    let mut best = (0u32, 0usize);
+    for (u, &n) in (0u32..).zip(counts.iter()) {
+        if n > best.1 {
+            best = (u, n);
+        }
+    }
+    best.0
+}
+
+/// A workbook written while the run still computes: the Accruals lines
+/// come part by part as the batch adds them up ([`Writer::accruals`]),
+/// then the rest of the report once the batch is done ([`Writer::finish`]).
+/// The Accruals' layout is decided before the first line from an
+/// [`AccrualsPlan`] of the lines to come; the same lines written part by
+/// part or all at once give the same bytes.
+pub struct Writer<'s> {
+    wb: Workbook,
+    target: PathBuf,
+    dir: PathBuf,
+    ctx: Ctx<'s>,
+    accruals: AccrualsSheet<'s>,
+}
+
+impl<'s> Writer<'s> {
+    /// Starts the workbook for `target`: its document properties (from
+    /// `facts`' program, cut-off and run time), the Summary's place (filled
+    /// last) and the first Accruals sheet with its header, laid out by `plan`.
+    ///
+    /// # Errors
+    /// As [`write_report`]: an unusable target, or the writer's errors.
+    pub fn start(
+        target: &Path,
+        facts: &RunFacts,
+        plan: AccrualsPlan,
+        styles: &'s Styles,
+        limits: &Limits,
+    ) -> Result<Writer<'s>, ReportError> {
+        output::guarded(target, || {
+            let dir = output::target_dir(target)?;
+            output::check_not_input(target, &facts.inputs)?;
+            let mut wb = new_workbook(facts, target, &dir)?;
+            let mut ctx = Ctx {
+                styles,
+                texts: TextFigures::default(),
+                limits: *limits,
+                sheets: Vec::new(),
+            };
+            // Summary comes first but is filled last, once every text figure is known:
+            // it is an ordinary (random-access) sheet; the lists are written strictly
+            // in row order in constant memory.
+            wb.add_worksheet()
+                .set_name("Summary")
+                .map_err(|e| ReportError::sheet("Summary", e))?;
+            ctx.sheets.push(SheetRows {
+                name: "Summary".into(),
+                rows: 0,
+            });
+            let accruals = AccrualsSheet::start(&mut wb, plan, &mut ctx)?;
+            Ok(Writer {
+                wb,
+                target: target.to_path_buf(),
+                dir,
+                ctx,
+                accruals,
+            })
+        })
+    }
+
+    /// Writes the next Accruals lines, in book order, continuing on a
+    /// numbered sheet at the row limit.
+    ///
+    /// # Errors
+    /// The writer's errors, with the sheet and row.
+    pub fn accruals(&mut self, lines: &[AccrualLine]) -> Result<(), ReportError> {
+        let Writer {
+            wb,
+            target,
+            ctx,
+            accruals,
+            ..
+        } = self;
+        output::guarded(target, || accruals.write(wb, lines, ctx))
+    }
+
+    /// Writes the rest of `report` (its Accruals lines are the ones given
+    /// to [`Writer::accruals`]; `report.accruals` is not read) and puts the
+    /// workbook in place.
+    ///
+    /// # Errors
+    /// [`ReportError::PlanMissed`] when the lines given are not laid out as
+    /// planned (nothing is written: write the workbook again from all the
+    /// lines at once); else as [`write_report`].
+    pub fn finish(self, report: &Report) -> Result<WriteOutcome, ReportError> {
+        let Writer {
+            mut wb,
+            target,
+            dir,
+            mut ctx,
+            accruals,
+        } = self;
+        output::guarded(&target, || {
+            accruals.finish(&mut wb, &target, &mut ctx)?;
+            write_rest(wb, report, &target, &dir, ctx)
+        })
+    }
+}
+
+/// The Accruals being written: its columns ([`ACCRUALS`], then the groups
+/// of the plan), the sheet open for lines, and the lines counted so far.
+struct AccrualsSheet<'s> {
+    header: Vec<&'static str>,
+    caps: Vec<usize>,
+    notes: Vec<(ColNum, &'static str)>,
+    /// Each group with its first column.
+    placed: Vec<(AccrualGroup, ColNum)>,
+    plan: AccrualsPlan,
+    got: AccrualsPlan,
+    /// The sheet being written: its index among the list's sheets, its
+    /// column formats and its rows.
+    index: usize,
+    formats: Vec<Option<&'s Format>>,
+    open: OpenPart,
+}
+
+impl<'s> AccrualsSheet<'s> {
+    fn start(
+        wb: &mut Workbook,
+        plan: AccrualsPlan,
+        ctx: &mut Ctx<'s>,
+    ) -> Result<AccrualsSheet<'s>, ReportError> {
+        let mut header: Vec<&str> = ACCRUALS.header.to_vec();
+        let mut caps: Vec<usize> = ACCRUALS.caps.to_vec();
+        let mut notes: Vec<(ColNum, &str)> = ACCRUALS.notes.to_vec();
+        let mut placed = Vec::new();
+        for g in plan.groups() {
+            let first = ColNum::try_from(header.len()).unwrap_or(ColNum::MAX);
+            if g == AccrualGroup::Suspense {
+                notes.push((9, RECOGNISED_GLOSS));
+            }
+            notes.extend(
+                g.notes()
+                    .iter()
+                    .map(|(i, n)| (first.saturating_add(*i), *n)),
+            );
+            header.extend_from_slice(g.header());
+            caps.extend_from_slice(g.caps());
+            placed.push((g, first));
+        }
+        notes.sort_by_key(|(col, _)| *col);
+        let got = AccrualsPlan::new(&ctx.limits);
+        let mut sheet = AccrualsSheet {
+            header,
+            caps,
+            notes,
+            placed,
+            plan,
+            got,
+            index: 0,
+            formats: Vec::new(),
+            open: OpenPart {
+                name: String::new(),
+                rows: 0,
+                widths: Vec::new(),
+            },
+        };
+        sheet.open(wb, 0, ctx)?;
+        Ok(sheet)
+    }
+
+    fn shape(&self) -> Shape<'_> {
+        Shape {
+            name: ACCRUALS.name,
+            header: &self.header,
+            caps: &self.caps,
+            notes: &self.notes,
+            footer: ACCRUALS.footer,
+        }
+    }
+
+    /// Opens sheet `index` of the list, its formats from the plan.
+    fn open(
+        &mut self,
+        wb: &mut Workbook,
+        index: usize,
+        ctx: &mut Ctx<'s>,
+    ) -> Result<(), ReportError> {
+        let styles = ctx.styles;
+        let units = self.plan.units_of(index);
+        let mut formats = accrual_formats(styles, units);
+        for (g, _) in &self.placed {
+            formats.extend(g.formats(styles, units));
+        }
+        self.open = open_part(wb, &self.shape(), index, &formats, ctx)?;
+        self.formats = formats;
+        self.index = index;
+        Ok(())
+    }
+
+    /// Writes `lines` below the ones written, opening the next sheet at the row limit.
+    fn write(
+        &mut self,
+        wb: &mut Workbook,
+        mut lines: &[AccrualLine],
+        ctx: &mut Ctx<'s>,
+    ) -> Result<(), ReportError> {
+        let per = ctx.limits.data_rows_per_sheet();
+        while !lines.is_empty() {
+            if self.open.rows >= per {
+                let full = std::mem::replace(
+                    &mut self.open,
+                    OpenPart {
+                        name: String::new(),
+                        rows: 0,
+                        widths: Vec::new(),
+                    },
+                );
+                close_part(wb, &self.shape(), full, ctx)?;
+                self.open(wb, self.index + 1, ctx)?;
+            }
+            let (now, later) = lines.split_at(lines.len().min(per - self.open.rows));
+            for a in now {
+                self.got.add(LineShape::of(a));
+            }
+            let placed = &self.placed;
+            let row = |c: &mut Cells<'_>, a: &AccrualLine| {
+                accrual_row(c, a)?;
+                for (g, first) in placed {
+                    g.write(c, a, *first)?;
+                }
+                Ok(())
+            };
+            let shape = Shape {
+                name: ACCRUALS.name,
+                header: &self.header,
+                caps: &self.caps,
+                notes: &self.notes,
+                footer: ACCRUALS.footer,
+            };
+            write_part_rows(wb, &shape, &mut self.open, &self.formats, now, row, ctx)?;
+            lines = later;
+        }
+        Ok(())
+    }
+
+    /// Closes the last sheet, once the lines written are known to be laid
+    /// out as planned.
+    fn finish(
+        self,
+        wb: &mut Workbook,
+        target: &Path,
+        ctx: &mut Ctx<'s>,
+    ) -> Result<(), ReportError> {
+        if !self.plan.lays_out(&self.got) {
+            return Err(ReportError::PlanMissed(target.to_path_buf()));
+        }
+        let shape = Shape {
+            name: ACCRUALS.name,
+            header: &self.header,
+            caps: &self.caps,
+            notes: &self.notes,
+            footer: ACCRUALS.footer,
+        };
+        close_part(wb, &shape, self.open, ctx)
+    }
+}
+
+/// Every sheet after the Accruals, the Summary and the Run; then the
+/// workbook is put in place.
+fn write_rest(
+    mut wb: Workbook,
+    report: &Report,
+    target: &Path,
+    dir: &Path,
+    mut ctx: Ctx<'_>,
+) -> Result<WriteOutcome, ReportError> {
+    let styles = ctx.styles;
     let recon_parts = write_lists(&mut wb, report, &mut ctx)?;
     let chart = (recon_parts > 0)
-        .then(|| chart_plan(&report.reconciliation, limits))
+        .then(|| chart_plan(&report.reconciliation, &ctx.limits))
         .flatten();
     let summary = write_summary(
         summary_sheet(&mut wb)?,
         report,
         chart.as_ref(),
-        &styles,
+        styles,
         &mut ctx.texts,
     )?;
 
     // Run goes last but is built now, so that its figures join the note.
-    let (run, run_rows) = run_sheet(report, &styles, &mut ctx.texts)?;
+    let (run, run_rows) = run_sheet(report, styles, &mut ctx.texts)?;
 
     // Every figure is written by now: say once which ones are text, and
     // which texts were too long for a cell.
@@ -596,7 +993,7 @@ pub(crate) fn write_report_with(
         &summary,
         &problems,
         &ctx.texts,
-        &styles,
+        styles,
     )?;
     if let Some(s) = ctx.sheets.first_mut() {
         s.rows = usize::try_from(summary.rows_used).unwrap_or(usize::MAX);
@@ -607,7 +1004,7 @@ pub(crate) fn write_report_with(
         rows: usize::try_from(run_rows).unwrap_or(usize::MAX),
     });
 
-    output::save_atomically(&mut wb, target, &dir)?;
+    output::save_atomically(&mut wb, target, dir)?;
     Ok(WriteOutcome {
         path: target.to_path_buf(),
         sheets: ctx.sheets,
@@ -618,9 +1015,9 @@ pub(crate) fn write_report_with(
     })
 }
 
-/// An empty workbook with the report's document properties, spilling its
+/// An empty workbook with the run's document properties, spilling its
 /// big sheets to scratch files in `dir` (the target's folder).
-fn new_workbook(report: &Report, target: &Path, dir: &Path) -> Result<Workbook, ReportError> {
+fn new_workbook(facts: &RunFacts, target: &Path, dir: &Path) -> Result<Workbook, ReportError> {
     let mut wb = Workbook::new();
     wb.set_tempdir(dir).map_err(|e| ReportError::Save {
         path: target.to_path_buf(),
@@ -630,24 +1027,23 @@ fn new_workbook(report: &Report, target: &Path, dir: &Path) -> Result<Workbook, 
     wb.set_properties(
         &DocProperties::new()
             .set_title("Interest accrual and reconciliation")
-            .set_author(report.facts.program.as_str())
-            .set_comment(format!("Cut-off {}", report.facts.cutoff))
+            .set_author(facts.program.as_str())
+            .set_comment(format!("Cut-off {}", facts.cutoff))
             // The run time is the only time in the file: no clock is read.
-            .set_creation_datetime(&report.facts.run_time),
+            .set_creation_datetime(&facts.run_time),
     );
     Ok(wb)
 }
 
-/// The Accruals, Reconciliation (when there are rows), Accrued check (when
-/// there are rows), Tie-out (when the books have a trial balance), Journal,
-/// Journal detail (when the report holds it) and Daily (when asked for)
-/// lists; returns how many Reconciliation sheets there are.
+/// The Reconciliation (when there are rows), Accrued check (when there are
+/// rows), Tie-out (when the books have a trial balance), Journal, Journal
+/// detail (when the report holds it) and Daily (when asked for) lists,
+/// after the Accruals; returns how many Reconciliation sheets there are.
 fn write_lists(
     wb: &mut Workbook,
     report: &Report,
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    write_accruals(wb, &report.accruals, ctx)?;
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
@@ -742,68 +1138,6 @@ const ACCRUALS: ListSheet<AccrualLine> = ListSheet {
     row: accrual_row,
     columns: accrual_columns,
 };
-
-/// `f` as a column-format function for any styles' lifetime.
-fn formats_of<T, F>(f: F) -> F
-where
-    F: for<'s> Fn(&'s Styles, &[T]) -> Vec<Option<&'s Format>>,
-{
-    f
-}
-
-/// The Accruals: [`ACCRUALS`], then the column groups some account of the
-/// run has ([`AccrualGroup`]).
-fn write_accruals(
-    wb: &mut Workbook,
-    rows: &[AccrualLine],
-    ctx: &mut Ctx<'_>,
-) -> Result<usize, ReportError> {
-    let groups = AccrualGroup::of(rows);
-    if groups.is_empty() {
-        return write_list(wb, &ACCRUALS, rows, ctx);
-    }
-    let mut header: Vec<&str> = ACCRUALS.header.to_vec();
-    let mut caps: Vec<usize> = ACCRUALS.caps.to_vec();
-    let mut notes: Vec<(ColNum, &str)> = ACCRUALS.notes.to_vec();
-    let mut placed = Vec::new();
-    for g in &groups {
-        let first = ColNum::try_from(header.len()).unwrap_or(ColNum::MAX);
-        if *g == AccrualGroup::Suspense {
-            notes.push((9, RECOGNISED_GLOSS));
-        }
-        notes.extend(
-            g.notes()
-                .iter()
-                .map(|(i, n)| (first.saturating_add(*i), *n)),
-        );
-        header.extend_from_slice(g.header());
-        caps.extend_from_slice(g.caps());
-        placed.push((*g, first));
-    }
-    notes.sort_by_key(|(col, _)| *col);
-    let shape = Shape {
-        name: ACCRUALS.name,
-        header: &header,
-        caps: &caps,
-        notes: &notes,
-        footer: ACCRUALS.footer,
-    };
-    let columns = formats_of(|s, part: &[AccrualLine]| {
-        let mut formats = accrual_columns(s, part);
-        for g in &groups {
-            formats.extend(g.formats(s, part));
-        }
-        formats
-    });
-    let row = |c: &mut Cells<'_>, a: &AccrualLine| {
-        accrual_row(c, a)?;
-        for (g, first) in &placed {
-            g.write(c, a, *first)?;
-        }
-        Ok(())
-    };
-    write_rows(wb, &shape, rows, columns, row, ctx)
-}
 
 /// Widest widths of the Reconciliation's columns, and of the Accrued
 /// check's, laid out alike.
@@ -954,79 +1288,154 @@ where
     if parts.is_empty() {
         parts.push(&[]); // an empty list still gets its sheet and header
     }
-    let last_col = ColNum::try_from(list.header.len().saturating_sub(1)).unwrap_or(0);
     for (index, part) in parts.iter().enumerate() {
-        let name = part_name(list.name, index);
-        let ws = wb
-            .add_worksheet_with_constant_memory()
-            .map_err(|e| ReportError::sheet(&name, e))?;
-        ws.set_name(&name)
-            .map_err(|e| ReportError::sheet(&name, e))?;
-        let last_row = RowNum::try_from(part.len()).unwrap_or(RowNum::MAX);
-        // Sheet-wide settings first: the header row is flushed once row 1 starts.
-        ws.set_freeze_panes(1, 0)
-            .map_err(|e| ReportError::sheet(&name, e))?;
-        layout::report_page_setup(ws, true, list.footer)
-            .map_err(|e| ReportError::sheet(&name, e))?;
-        ws.autofilter(0, 0, last_row, last_col)
-            .map_err(|e| ReportError::sheet(&name, e))?;
-        let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
-        for (col, format) in (0..).zip(columns(ctx.styles, part)) {
-            if let Some(format) = format {
-                cells.column_format(col, format)?;
-            }
-        }
-        // Left-aligned: a filter button sits at the right of each header cell.
-        cells.at(0).list_header(list.header)?;
-        for (col, gloss) in list.notes {
-            let note = Note::new(*gloss)
-                .add_author_prefix(false)
-                .set_width(360)
-                .set_height(110);
-            cells
-                .sheet()
-                .insert_note(0, *col, &note)
-                .map_err(|e| ReportError::sheet(&name, e))?;
-        }
-        // Every header row two lines tall: a label wraps over a column of
-        // narrower figures (the spreadsheet does not size rows itself).
-        cells
-            .sheet()
-            .set_row_height(0, 2 * LINE_HEIGHT)
-            .map_err(|e| ReportError::sheet(&name, e))?;
-        for (col, cap) in (0..).zip(list.caps.iter()) {
-            // Prose is narrower than the digits a width counts: about 6
-            // letters take the room of 5 digits.
-            cells.wrap_at(col, cap.saturating_add(cap / 5));
-        }
-        for (row_number, item) in (1..).zip(part.iter()) {
-            cells.at(row_number);
-            row(&mut cells, item)?;
-            // A row with a wrapped text is as tall as its lines.
-            let lines = cells.lines();
-            if lines > 1 {
-                cells
-                    .sheet()
-                    .set_row_height(row_number, lines.saturating_mul(LINE_HEIGHT))
-                    .map_err(|e| ReportError::sheet(&name, e))?;
-            }
-        }
-        let widths: Vec<u16> = (0..)
-            .zip(list.header.iter().zip(list.caps.iter()))
-            .map(|(col, (label, cap))| list_column_width(label, cells.width(col), *cap))
-            .collect();
-        for (col, width) in (0..).zip(widths) {
-            cells
-                .sheet()
-                .set_column_width(col, width)
-                .map_err(|e| ReportError::sheet(&name, e))?;
-        }
-        ctx.sheets.push(SheetRows {
-            name,
-            rows: part.len(),
-        });
+        let formats = columns(ctx.styles, part);
+        let mut open = open_part(wb, list, index, &formats, ctx)?;
+        write_part_rows(wb, list, &mut open, &formats, part, &row, ctx)?;
+        close_part(wb, list, open, ctx)?;
     }
     Ok(parts.len())
+}
+
+/// A sheet of a list open for rows: its name, the rows written so far and
+/// the widest cell of each column.
+struct OpenPart {
+    name: String,
+    rows: usize,
+    widths: Vec<usize>,
+}
+
+/// Adds part `index` of `list` (its sheet, settings, column formats and
+/// header); its rows follow by [`write_part_rows`].
+fn open_part(
+    wb: &mut Workbook,
+    list: &Shape,
+    index: usize,
+    formats: &[Option<&Format>],
+    ctx: &mut Ctx<'_>,
+) -> Result<OpenPart, ReportError> {
+    let name = part_name(list.name, index);
+    let ws = wb
+        .add_worksheet_with_constant_memory()
+        .map_err(|e| ReportError::sheet(&name, e))?;
+    ws.set_name(&name)
+        .map_err(|e| ReportError::sheet(&name, e))?;
+    // Sheet-wide settings first: the header row is flushed once row 1 starts.
+    ws.set_freeze_panes(1, 0)
+        .map_err(|e| ReportError::sheet(&name, e))?;
+    layout::report_page_setup(ws, true, list.footer).map_err(|e| ReportError::sheet(&name, e))?;
+    let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
+    for (col, format) in (0..).zip(formats) {
+        if let Some(format) = format {
+            cells.column_format(col, format)?;
+        }
+    }
+    // Left-aligned: a filter button sits at the right of each header cell.
+    cells.at(0).list_header(list.header)?;
+    for (col, gloss) in list.notes {
+        let note = Note::new(*gloss)
+            .add_author_prefix(false)
+            .set_width(360)
+            .set_height(110);
+        cells
+            .sheet()
+            .insert_note(0, *col, &note)
+            .map_err(|e| ReportError::sheet(&name, e))?;
+    }
+    // Every header row two lines tall: a label wraps over a column of
+    // narrower figures (the spreadsheet does not size rows itself).
+    cells
+        .sheet()
+        .set_row_height(0, 2 * LINE_HEIGHT)
+        .map_err(|e| ReportError::sheet(&name, e))?;
+    let widths = cells.into_widths();
+    Ok(OpenPart {
+        name,
+        rows: 0,
+        widths,
+    })
+}
+
+/// Writes `rows` below the rows `part` has, each by `row`; `formats` are
+/// the ones its columns were given when it opened.
+fn write_part_rows<T, R>(
+    wb: &mut Workbook,
+    list: &Shape,
+    part: &mut OpenPart,
+    formats: &[Option<&Format>],
+    rows: &[T],
+    row: R,
+    ctx: &mut Ctx<'_>,
+) -> Result<(), ReportError>
+where
+    R: Fn(&mut Cells<'_>, &T) -> Result<(), ReportError>,
+{
+    let OpenPart {
+        name,
+        rows: written,
+        widths,
+    } = part;
+    let ws = wb
+        .worksheet_from_name(name)
+        .map_err(|e| ReportError::sheet(name, e))?;
+    let mut cells =
+        Cells::new(ws, name, ctx.styles, &mut ctx.texts).with_widths(std::mem::take(widths));
+    for (col, format) in (0..).zip(formats) {
+        if let Some(format) = format {
+            cells.carry(col, format);
+        }
+    }
+    for (col, cap) in (0..).zip(list.caps.iter()) {
+        // Prose is narrower than the digits a width counts: about 6
+        // letters take the room of 5 digits.
+        cells.wrap_at(col, cap.saturating_add(cap / 5));
+    }
+    for item in rows {
+        let row_number = RowNum::try_from(*written)
+            .unwrap_or(RowNum::MAX)
+            .saturating_add(1);
+        cells.at(row_number);
+        row(&mut cells, item)?;
+        // A row with a wrapped text is as tall as its lines.
+        let lines = cells.lines();
+        if lines > 1 {
+            cells
+                .sheet()
+                .set_row_height(row_number, lines.saturating_mul(LINE_HEIGHT))
+                .map_err(|e| ReportError::sheet(name, e))?;
+        }
+        *written += 1;
+    }
+    *widths = cells.into_widths();
+    Ok(())
+}
+
+/// Ends `part`: its filter over header and rows, its column widths, and
+/// its entry among the workbook's sheets.
+fn close_part(
+    wb: &mut Workbook,
+    list: &Shape,
+    part: OpenPart,
+    ctx: &mut Ctx<'_>,
+) -> Result<(), ReportError> {
+    let name = part.name;
+    let ws = wb
+        .worksheet_from_name(&name)
+        .map_err(|e| ReportError::sheet(&name, e))?;
+    let last_row = RowNum::try_from(part.rows).unwrap_or(RowNum::MAX);
+    let last_col = ColNum::try_from(list.header.len().saturating_sub(1)).unwrap_or(0);
+    ws.autofilter(0, 0, last_row, last_col)
+        .map_err(|e| ReportError::sheet(&name, e))?;
+    for (col, (label, cap)) in (0..).zip(list.header.iter().zip(list.caps.iter())) {
+        let width = part.widths.get(usize::from(col)).copied().unwrap_or(0);
+        ws.set_column_width(col, list_column_width(label, width, *cap))
+            .map_err(|e| ReportError::sheet(&name, e))?;
+    }
+    ctx.sheets.push(SheetRows {
+        name,
+        rows: part.rows,
+    });
+    Ok(())
 }
 
 /// The minor units most rows of a part have (the fewest decimals of a tie),
@@ -1039,17 +1448,16 @@ fn usual_units<T>(rows: &[T], units: impl Fn(&T) -> u32) -> u32 {
             *n += 1;
         }
     }
-    let mut best = (0u32, 0usize);
-    for (u, &n) in (0u32..).zip(counts.iter()) {
-        if n > best.1 {
-            best = (u, n);
-        }
-    }
-    best.0
+    most_units(&counts)
 }
 
 fn accrual_columns<'s>(s: &'s Styles, rows: &[AccrualLine]) -> Vec<Option<&'s Format>> {
-    let amount = Some(s.amount(usual_units(rows, |r| r.minor_units)));
+    accrual_formats(s, usual_units(rows, |r| r.minor_units))
+}
+
+/// The Accruals' column formats (before its groups), amounts in `units` decimals.
+fn accrual_formats(s: &Styles, units: u32) -> Vec<Option<&Format>> {
+    let amount = Some(s.amount(units));
     let text = Some(&s.text);
     let wrap = Some(&s.wrap);
     vec![

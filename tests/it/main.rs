@@ -42,3 +42,4 @@ mod suspense_examples;
 mod suspense_law;
 mod tax_examples;
 mod tie_out_sheets;
+mod write_while_accruing;
