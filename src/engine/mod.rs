@@ -13,6 +13,7 @@ pub mod accrual;
 pub mod causes;
 pub mod error;
 pub mod events;
+pub mod fixed;
 pub mod floating;
 pub mod inputs;
 pub mod ledger;

@@ -13,6 +13,7 @@ use rust_decimal::Decimal;
 
 use super::accrual::{Accrual, Overflow};
 use super::error::EngineError;
+use super::fixed;
 use super::floating::{resolve, FixingUsed, FixingWarning, Resolved};
 use super::inputs::Inputs;
 use super::rates::{RateSource, RateTable};
@@ -248,6 +249,19 @@ pub fn resume(
     options: RunOptions,
     state: &AccrualState,
 ) -> Result<AccountResult, EngineError> {
+    resume_in(terms, inputs, options, state, options.fast_path)
+}
+
+/// [`resume`], with the integer arithmetic of the common case
+/// ([`super::fixed`]) allowed or not: the figures are the same either way.
+/// `--no-fast-path` keeps both the plain day loop and decimal arithmetic.
+pub(crate) fn resume_in(
+    terms: &AccountTerms,
+    inputs: Inputs,
+    options: RunOptions,
+    state: &AccrualState,
+    fixed: bool,
+) -> Result<AccountResult, EngineError> {
     let plan = Plan::new(terms, &options)?;
     let resolved: Option<Resolved> = match (inputs.floating, terms.floating.method.is_floating()) {
         (Some(f), _) => Some(resolve(terms, &f, &plan.periods, state.day, plan.last_day)?),
@@ -259,7 +273,16 @@ pub fn resume(
         }
         (None, false) => None,
     };
-    let mut result = Loop::new(terms, inputs, options, state, plan, resolved.as_ref())?.run()?;
+    let mut result = Loop::new(
+        terms,
+        inputs,
+        options,
+        state,
+        plan,
+        resolved.as_ref(),
+        fixed,
+    )?
+    .run()?;
     if let Some(r) = resolved {
         result.fixing_warnings = r.warnings;
     }
@@ -311,8 +334,20 @@ struct Loop<'a> {
     breaks: Vec<NaiveDate>,
     /// Whether runs of days may be accrued in one step.
     fast: bool,
+    /// Whether sums and products of one scale may be done on the integers
+    /// ([`super::fixed`]); off with the fast path.
+    fixed: bool,
     /// An empty buffer for the tier pieces, reused from an earlier run.
     spare_pieces: Vec<(Decimal, Decimal)>,
+}
+
+/// An empty sum, allowed the integer arithmetic or not.
+fn fresh(fixed: bool) -> Accrual {
+    if fixed {
+        Accrual::fixed_point()
+    } else {
+        Accrual::new()
+    }
 }
 
 /// What a run reports as it goes: postings, day rows, spans, period-start
@@ -406,6 +441,7 @@ impl<'a> Loop<'a> {
         state: &AccrualState,
         plan: Plan,
         resolved: Option<&'a Resolved>,
+        fixed: bool,
     ) -> Result<Loop<'a>, EngineError> {
         let Plan {
             periods,
@@ -440,12 +476,13 @@ impl<'a> Loop<'a> {
             order,
             last_day,
             state: state.clone(),
-            period_acc: Accrual::new(),
-            since_compounding: Accrual::new(),
+            period_acc: fresh(fixed),
+            since_compounding: fresh(fixed),
             fixings: resolved.map(|r| &r.fixings),
             growth: GrowthCache::default(),
             breaks,
             fast,
+            fixed,
             spare_pieces: buffers.pieces,
         })
     }
@@ -522,7 +559,10 @@ impl<'a> Loop<'a> {
             .iter()
             .position(|&i| self.movement(i).is_some_and(|m| m.value_date >= resume_day))
             .unwrap_or(self.order.len());
-        let ci = self.shared.compounding_ends.partition_point(|e| *e < resume_day);
+        let ci = self
+            .shared
+            .compounding_ends
+            .partition_point(|e| *e < resume_day);
         Ok(Cursor {
             resume_day,
             pi,
@@ -658,11 +698,17 @@ impl<'a> Loop<'a> {
                 excluded = checked(excluded.checked_add(m.amount), "the base", d)?;
             }
         }
+        let balance = self.state.balance;
+        let compounded = self.state.compounded;
+        if self.fixed {
+            if let Some(b) = fixed::sub(balance, excluded).and_then(|b| fixed::add(b, compounded)) {
+                return Ok(b);
+            }
+        }
         checked(
-            self.state
-                .balance
+            balance
                 .checked_sub(excluded)
-                .and_then(|b| b.checked_add(self.state.compounded)),
+                .and_then(|b| b.checked_add(compounded)),
             "the base",
             d,
         )
@@ -733,7 +779,7 @@ impl<'a> Loop<'a> {
             let owed = match self.state.back_value_owed.iter_mut().find(|(j, _)| *j == i) {
                 Some((_, a)) => a,
                 None => {
-                    self.state.back_value_owed.push((i, Accrual::new()));
+                    self.state.back_value_owed.push((i, fresh(self.fixed)));
                     match self.state.back_value_owed.last_mut() {
                         Some((_, a)) => a,
                         None => continue,
@@ -805,7 +851,7 @@ impl<'a> Loop<'a> {
                 d,
             )?;
             self.state.opening_to_join = Decimal::ZERO;
-            self.since_compounding = Accrual::new();
+            self.since_compounding = fresh(self.fixed);
         }
         Ok(posted_today)
     }
@@ -1071,11 +1117,11 @@ impl<'a> Loop<'a> {
             }
             _ => {
                 let num = checked(br, "the daily interest", d)?;
-                let num = checked(
-                    num.checked_mul(Decimal::from(f.num)),
-                    "the daily interest",
-                    d,
-                )?;
+                let product = match self.fixed.then(|| fixed::mul_int(num, f.num)).flatten() {
+                    Some(x) => Some(x),
+                    None => num.checked_mul(Decimal::from(f.num)),
+                };
+                let num = checked(product, "the daily interest", d)?;
                 DayInterest::Fraction(num, f.den)
             }
         };
@@ -1112,7 +1158,7 @@ impl<'a> Loop<'a> {
         // payment, since no posting follows it.
         let last = terms.maturity.and_then(|m| m.pred_opt()) == Some(p.end);
         let booked_by = if last { p.payment.max(p.end) } else { p.end };
-        let mut owed = Accrual::new();
+        let mut owed = fresh(self.fixed);
         let mut keep = Vec::new();
         for (i, a) in std::mem::take(&mut self.state.back_value_owed) {
             let booked = self
@@ -1136,8 +1182,8 @@ impl<'a> Loop<'a> {
         let actual = self.actual.iter().find(|a| {
             a.end == p.end && (a.start == p.start || (first && a.start == terms.open_date))
         });
-        self.period_acc = Accrual::new();
-        self.since_compounding = Accrual::new();
+        self.period_acc = fresh(self.fixed);
+        self.since_compounding = fresh(self.fixed);
         self.state.compounded = Decimal::ZERO;
         self.state.opening_pending = Decimal::ZERO;
         self.state.opening_to_join = Decimal::ZERO;

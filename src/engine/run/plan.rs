@@ -256,7 +256,9 @@ fn roll(key: &Key) -> Result<Shared, EngineError> {
         None => Vec::new(),
     };
     let references = if key.icma {
-        let to = periods.last().map_or(key.horizon, |p| p.end.max(key.horizon));
+        let to = periods
+            .last()
+            .map_or(key.horizon, |p| p.end.max(key.horizon));
         schedule.reference_periods(key.start.min(key.open), to)?
     } else {
         Vec::new()
