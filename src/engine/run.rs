@@ -334,11 +334,26 @@ struct Loop<'a> {
     breaks: Vec<NaiveDate>,
     /// Whether runs of days may be accrued in one step.
     fast: bool,
+    /// The table found last and the days it holds for (rate tables change
+    /// rarely; the lookup is skipped until the next change).
+    last_table: std::cell::Cell<Option<TableHit<'a>>>,
+    /// The day before the window, when there is one.
+    window_eve: Option<NaiveDate>,
     /// Whether sums and products of one scale may be done on the integers
     /// ([`super::fixed`]); off with the fast path.
     fixed: bool,
     /// An empty buffer for the tier pieces, reused from an earlier run.
     spare_pieces: Vec<(Decimal, Decimal)>,
+}
+
+/// A rate table and the days `from..until` (`until` exclusive; `None`: no
+/// later change known) over which its source gives the same table.
+#[derive(Clone, Copy)]
+struct TableHit<'a> {
+    debit: bool,
+    from: NaiveDate,
+    until: Option<NaiveDate>,
+    table: &'a RateTable,
 }
 
 /// An empty sum, allowed the integer arithmetic or not.
@@ -482,6 +497,8 @@ impl<'a> Loop<'a> {
             growth: GrowthCache::default(),
             breaks,
             fast,
+            last_table: std::cell::Cell::new(None),
+            window_eve: options.window_start.pred_opt(),
             fixed,
             spare_pieces: buffers.pieces,
         })
@@ -868,7 +885,7 @@ impl<'a> Loop<'a> {
         report: &mut Report,
     ) -> Result<(), EngineError> {
         let opts = self.options;
-        let is_window_eve = opts.window_start.pred_opt() == Some(d);
+        let is_window_eve = self.window_eve == Some(d);
         if opts.keep_days || is_window_eve || d == opts.cutoff {
             let accrued = self.accrued(d)?;
             if is_window_eve {
@@ -1016,7 +1033,7 @@ impl<'a> Loop<'a> {
                 .and_then(|s| s.next_change_after(d))
                 .and_then(|n| n.pred_opt()),
         );
-        before(self.options.window_start.pred_opt().filter(|eve| d <= *eve));
+        before(self.window_eve.filter(|eve| d <= *eve));
         before(Some(self.options.cutoff));
         let breaks = &self.breaks;
         before(breaks.get(breaks.partition_point(|b| *b < d)).copied());
@@ -1049,7 +1066,13 @@ impl<'a> Loop<'a> {
     /// The table that applies to `base` on `d`: the account's rates, or the
     /// debit rates for a base of the opposite sign (`None`: it earns nothing).
     fn table_for(&self, base: Decimal, d: NaiveDate) -> Result<Option<&'a RateTable>, EngineError> {
-        let source = if base.is_sign_negative() && !base.is_zero() {
+        let debit = base.is_sign_negative() && !base.is_zero();
+        if let Some(hit) = self.last_table.get() {
+            if hit.debit == debit && hit.from <= d && hit.until.is_none_or(|u| d < u) {
+                return Ok(Some(hit.table));
+            }
+        }
+        let source = if debit {
             match self.debit_rates {
                 Some(s) => s,
                 None => return Ok(None),
@@ -1063,6 +1086,12 @@ impl<'a> Loop<'a> {
                 .first_effective()
                 .map_or_else(|| "no rates at all".to_string(), |f| f.to_string()),
         })?;
+        self.last_table.set(Some(TableHit {
+            debit,
+            from: d,
+            until: source.next_change_after(d),
+            table: t,
+        }));
         Ok(Some(t))
     }
 
