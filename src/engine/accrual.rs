@@ -9,41 +9,16 @@
 
 use rust_decimal::Decimal;
 
-use super::fixed;
-
 /// Denominators kept apart before folding into the plain part; a period
 /// rarely needs more than two (365 and 366 across a year end).
 const SLOTS: usize = 4;
 
 /// An exact running sum of interest.
-///
-/// Two sums are equal (and print alike) when their parts are, whichever
-/// arithmetic made them.
-#[derive(Clone, Copy, Default)]
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
 pub struct Accrual {
     plain: Decimal,
     parts: [(u32, Decimal); SLOTS],
     used: usize,
-    /// Whether sums of one scale may be done on the integers
-    /// ([`fixed`]: the same figures, without rust_decimal's arithmetic).
-    fixed: bool,
-}
-
-impl PartialEq for Accrual {
-    fn eq(&self, other: &Self) -> bool {
-        self.plain == other.plain && self.used == other.used && self.parts == other.parts
-    }
-}
-
-impl Eq for Accrual {}
-
-impl std::fmt::Debug for Accrual {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("Accrual")
-            .field("plain", &self.plain)
-            .field("parts", &self.parts.get(..self.used).unwrap_or(&self.parts))
-            .finish()
-    }
 }
 
 /// An accumulator figure past the exact decimal range.
@@ -56,30 +31,12 @@ impl Accrual {
         Accrual::default()
     }
 
-    /// An empty sum whose additions of one scale are done on the integers
-    /// when exact ([`fixed::add`]), else as decimals: the same figures.
-    pub fn fixed_point() -> Accrual {
-        Accrual {
-            fixed: true,
-            ..Accrual::default()
-        }
-    }
-
-    /// `a + b`, on the integers when this sum may and they give it exactly.
-    #[inline]
-    fn sum(&self, a: Decimal, b: Decimal) -> Option<Decimal> {
-        match self.fixed.then(|| fixed::add(a, b)).flatten() {
-            Some(x) => Some(x),
-            None => a.checked_add(b),
-        }
-    }
-
     /// Adds an amount that is already a decimal.
     ///
     /// # Errors
     /// [`Overflow`] past the decimal range.
     pub fn add_amount(&mut self, x: Decimal) -> Result<(), Overflow> {
-        self.plain = self.sum(self.plain, x).ok_or(Overflow)?;
+        self.plain = self.plain.checked_add(x).ok_or(Overflow)?;
         Ok(())
     }
 
@@ -102,14 +59,9 @@ impl Accrual {
         if den == 1 {
             return self.add_amount(num);
         }
-        let fixed = self.fixed;
         for slot in self.parts.iter_mut().take(self.used) {
             if slot.0 == den {
-                let sum = fixed.then(|| fixed::add(slot.1, num)).flatten();
-                slot.1 = match sum {
-                    Some(x) => x,
-                    None => slot.1.checked_add(num).ok_or(Overflow)?,
-                };
+                slot.1 = slot.1.checked_add(num).ok_or(Overflow)?;
                 return Ok(());
             }
         }

@@ -13,7 +13,6 @@ pub mod accrual;
 pub mod causes;
 pub mod error;
 pub mod events;
-pub mod fixed;
 pub mod floating;
 pub mod inputs;
 pub mod ledger;

@@ -13,7 +13,6 @@ use rust_decimal::Decimal;
 
 use super::accrual::{Accrual, Overflow};
 use super::error::EngineError;
-use super::fixed;
 use super::floating::{resolve, FixingUsed, FixingWarning, Resolved};
 use super::inputs::Inputs;
 use super::rates::{RateSource, RateTable};
@@ -249,19 +248,6 @@ pub fn resume(
     options: RunOptions,
     state: &AccrualState,
 ) -> Result<AccountResult, EngineError> {
-    resume_in(terms, inputs, options, state, options.fast_path)
-}
-
-/// [`resume`], with the integer arithmetic of the common case
-/// ([`super::fixed`]) allowed or not: the figures are the same either way.
-/// `--no-fast-path` keeps both the plain day loop and decimal arithmetic.
-pub(crate) fn resume_in(
-    terms: &AccountTerms,
-    inputs: Inputs,
-    options: RunOptions,
-    state: &AccrualState,
-    fixed: bool,
-) -> Result<AccountResult, EngineError> {
     let plan = Plan::new(terms, &options)?;
     let resolved: Option<Resolved> = match (inputs.floating, terms.floating.method.is_floating()) {
         (Some(f), _) => Some(resolve(terms, &f, &plan.periods, state.day, plan.last_day)?),
@@ -273,16 +259,7 @@ pub(crate) fn resume_in(
         }
         (None, false) => None,
     };
-    let mut result = Loop::new(
-        terms,
-        inputs,
-        options,
-        state,
-        plan,
-        resolved.as_ref(),
-        fixed,
-    )?
-    .run()?;
+    let mut result = Loop::new(terms, inputs, options, state, plan, resolved.as_ref())?.run()?;
     if let Some(r) = resolved {
         result.fixing_warnings = r.warnings;
     }
@@ -339,9 +316,6 @@ struct Loop<'a> {
     last_table: std::cell::Cell<Option<TableHit<'a>>>,
     /// The day before the window, when there is one.
     window_eve: Option<NaiveDate>,
-    /// Whether sums and products of one scale may be done on the integers
-    /// ([`super::fixed`]); off with the fast path.
-    fixed: bool,
     /// An empty buffer for the tier pieces, reused from an earlier run.
     spare_pieces: Vec<(Decimal, Decimal)>,
 }
@@ -354,15 +328,6 @@ struct TableHit<'a> {
     from: NaiveDate,
     until: Option<NaiveDate>,
     table: &'a RateTable,
-}
-
-/// An empty sum, allowed the integer arithmetic or not.
-fn fresh(fixed: bool) -> Accrual {
-    if fixed {
-        Accrual::fixed_point()
-    } else {
-        Accrual::new()
-    }
 }
 
 /// What a run reports as it goes: postings, day rows, spans, period-start
@@ -456,7 +421,6 @@ impl<'a> Loop<'a> {
         state: &AccrualState,
         plan: Plan,
         resolved: Option<&'a Resolved>,
-        fixed: bool,
     ) -> Result<Loop<'a>, EngineError> {
         let Plan {
             periods,
@@ -491,15 +455,14 @@ impl<'a> Loop<'a> {
             order,
             last_day,
             state: state.clone(),
-            period_acc: fresh(fixed),
-            since_compounding: fresh(fixed),
+            period_acc: Accrual::new(),
+            since_compounding: Accrual::new(),
             fixings: resolved.map(|r| &r.fixings),
             growth: GrowthCache::default(),
             breaks,
             fast,
             last_table: std::cell::Cell::new(None),
             window_eve: options.window_start.pred_opt(),
-            fixed,
             spare_pieces: buffers.pieces,
         })
     }
@@ -715,17 +678,11 @@ impl<'a> Loop<'a> {
                 excluded = checked(excluded.checked_add(m.amount), "the base", d)?;
             }
         }
-        let balance = self.state.balance;
-        let compounded = self.state.compounded;
-        if self.fixed {
-            if let Some(b) = fixed::sub(balance, excluded).and_then(|b| fixed::add(b, compounded)) {
-                return Ok(b);
-            }
-        }
         checked(
-            balance
+            self.state
+                .balance
                 .checked_sub(excluded)
-                .and_then(|b| b.checked_add(compounded)),
+                .and_then(|b| b.checked_add(self.state.compounded)),
             "the base",
             d,
         )
@@ -796,7 +753,7 @@ impl<'a> Loop<'a> {
             let owed = match self.state.back_value_owed.iter_mut().find(|(j, _)| *j == i) {
                 Some((_, a)) => a,
                 None => {
-                    self.state.back_value_owed.push((i, fresh(self.fixed)));
+                    self.state.back_value_owed.push((i, Accrual::new()));
                     match self.state.back_value_owed.last_mut() {
                         Some((_, a)) => a,
                         None => continue,
@@ -868,7 +825,7 @@ impl<'a> Loop<'a> {
                 d,
             )?;
             self.state.opening_to_join = Decimal::ZERO;
-            self.since_compounding = fresh(self.fixed);
+            self.since_compounding = Accrual::new();
         }
         Ok(posted_today)
     }
@@ -1146,11 +1103,11 @@ impl<'a> Loop<'a> {
             }
             _ => {
                 let num = checked(br, "the daily interest", d)?;
-                let product = match self.fixed.then(|| fixed::mul_int(num, f.num)).flatten() {
-                    Some(x) => Some(x),
-                    None => num.checked_mul(Decimal::from(f.num)),
-                };
-                let num = checked(product, "the daily interest", d)?;
+                let num = checked(
+                    num.checked_mul(Decimal::from(f.num)),
+                    "the daily interest",
+                    d,
+                )?;
                 DayInterest::Fraction(num, f.den)
             }
         };
@@ -1187,7 +1144,7 @@ impl<'a> Loop<'a> {
         // payment, since no posting follows it.
         let last = terms.maturity.and_then(|m| m.pred_opt()) == Some(p.end);
         let booked_by = if last { p.payment.max(p.end) } else { p.end };
-        let mut owed = fresh(self.fixed);
+        let mut owed = Accrual::new();
         let mut keep = Vec::new();
         for (i, a) in std::mem::take(&mut self.state.back_value_owed) {
             let booked = self
@@ -1211,8 +1168,8 @@ impl<'a> Loop<'a> {
         let actual = self.actual.iter().find(|a| {
             a.end == p.end && (a.start == p.start || (first && a.start == terms.open_date))
         });
-        self.period_acc = fresh(self.fixed);
-        self.since_compounding = fresh(self.fixed);
+        self.period_acc = Accrual::new();
+        self.since_compounding = Accrual::new();
         self.state.compounded = Decimal::ZERO;
         self.state.opening_pending = Decimal::ZERO;
         self.state.opening_to_join = Decimal::ZERO;

@@ -678,43 +678,6 @@ proptest! {
     }
 }
 
-proptest! {
-    #![proptest_config(ProptestConfig::with_cases(300))]
-
-    /// docs/decisions.md, Fixed-point sums in the day loop: the integer
-    /// arithmetic gives the decimal arithmetic's figures to the last digit
-    /// (value, scale and sign of every figure, day rows and spans included),
-    /// on random accounts of every convention: every basis, compounding
-    /// (exponential too), tiers, rounding mode and point, movements booked
-    /// late, rate changes, on the fast path and on the day loop.
-    #[test]
-    fn fixed_point_figures_equal_the_decimal_figures(
-        (mut t, rates, movements, cutoff) in any_account(),
-        (exponential, mode, daily, places, keep_days) in (0u8..3, 0usize..4, any::<bool>(), prop::option::of(0u32..6), any::<bool>()),
-    ) {
-        use crate::conventions::compounding::Compounding;
-        use crate::conventions::rounding::RoundMode;
-        t.compounding = match exponential {
-            1 => Compounding::Continuous,
-            2 => Compounding::AnnualEffective,
-            _ => t.compounding,
-        };
-        t.round_mode = RoundMode::ALL[mode];
-        t.round_at = if daily { RoundAt::Daily } else { RoundAt::Posting };
-        t.round_places = places;
-        for fast in [true, false] {
-            let run = |fixed: bool| {
-                let src = Inputs { rates: &rates, debit_rates: None, movements: &movements, actual: &[], breaks: &[], floating: None };
-                let o = RunOptions { window_start: cutoff.with_day(1).unwrap(), cutoff, keep_days, keep_states: true, keep_spans: true, fast_path: fast };
-                resume_in(&t, src, o, &AccrualState::opening(&t), fixed)
-            };
-            // Debug prints every decimal with its scale and sign.
-            let (fixed, decimal) = (format!("{:?}", run(true)), format!("{:?}", run(false)));
-            prop_assert_eq!(fixed, decimal);
-        }
-    }
-}
-
 /// A random floating account (behaviour.md, Floating rates) with invented fixings
 /// on every business day around its life, for the fast-path law.
 #[allow(clippy::type_complexity)]
