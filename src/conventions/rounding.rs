@@ -75,6 +75,12 @@ impl RoundMode {
     /// assert_eq!(RoundMode::HalfUp.round(-x, 2).to_string(), "-1.88");
     /// ```
     pub fn round(self, x: Decimal, places: u32) -> Decimal {
+        if x.scale() <= places {
+            // Nothing to round: only the scale is fixed.
+            let mut r = x;
+            r.rescale(places);
+            return r;
+        }
         let strategy = match self {
             Self::HalfUp => RoundingStrategy::MidpointAwayFromZero,
             Self::HalfEven => RoundingStrategy::MidpointNearestEven,

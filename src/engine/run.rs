@@ -6,6 +6,8 @@
 //! posting at the end of E capitalises from E+1. The loop keeps exact
 //! numerators ([`Accrual`]) and rounds only what is posted or reported.
 
+use std::rc::Rc;
+
 use chrono::{Datelike, NaiveDate};
 use rust_decimal::Decimal;
 
@@ -17,9 +19,10 @@ use super::rates::{RateSource, RateTable};
 use super::tax::{withhold, Withheld};
 use super::terms::{AccountTerms, ActualPosting, Movement, RoundAt, TierMethod};
 use crate::conventions::compounding::Compounding;
-use crate::conventions::daycount::{Basis, DayFraction, PeriodBasis};
+use crate::conventions::daycount::{DayFraction, PeriodBasis};
 use crate::conventions::growth;
-use crate::conventions::schedule::{month_end, Period, PeriodKind, ScheduleTerms};
+use crate::conventions::schedule::{Period, PeriodKind};
+use plan::Plan;
 
 /// What to compute besides the postings.
 #[derive(Debug, Clone, Copy)]
@@ -263,66 +266,6 @@ pub fn resume(
     Ok(result)
 }
 
-/// The schedule of one run: posting periods, compounding ends, reference
-/// periods and the last earning day.
-struct Plan {
-    periods: Vec<Period>,
-    compounding_ends: Vec<NaiveDate>,
-    references: Vec<(NaiveDate, NaiveDate)>,
-    last_day: NaiveDate,
-}
-
-impl Plan {
-    fn new(terms: &AccountTerms, options: &RunOptions) -> Result<Plan, EngineError> {
-        let open = terms.open_date;
-        let start = terms.first_period_start();
-        let anchor = match terms.anchor {
-            Some(a) => a,
-            None => {
-                month_end(start).ok_or(EngineError::Unsupported("a date out of range".into()))?
-            }
-        };
-        let schedule = ScheduleTerms {
-            posting: terms.posting,
-            anchor,
-            anchor_kind: terms.anchor_kind,
-            business_day: terms.business_day,
-            maturity: terms.maturity,
-            payment_delay_days: terms.payment_delay_days,
-        };
-        let before_maturity = terms.maturity.and_then(|m| m.pred_opt());
-        let last_day = match before_maturity {
-            Some(m) if m < options.cutoff => m,
-            _ => options.cutoff,
-        };
-        if terms.basis == Basis::ActActIcma && terms.posting.per_year().is_none() {
-            return Err(EngineError::Unsupported(format!(
-                "ACT/ACT ICMA with posting {}: the basis needs a posting frequency (monthly, quarterly, semiannual or annual)",
-                terms.posting.name()
-            )));
-        }
-        let horizon = last_day.max(open);
-        let mut periods = schedule.periods(start, open, horizon, &terms.calendar)?;
-        super::events::pay_on_close(&mut periods, terms, options.cutoff);
-        let compounding_ends = match terms.compounding.months() {
-            Some(m) => schedule.compounding_ends(m, open, horizon, &terms.calendar)?,
-            None => Vec::new(),
-        };
-        let references = if terms.basis == Basis::ActActIcma {
-            let to = periods.last().map_or(horizon, |p| p.end.max(horizon));
-            schedule.reference_periods(start.min(open), to)?
-        } else {
-            Vec::new()
-        };
-        Ok(Plan {
-            periods,
-            compounding_ends,
-            references,
-            last_day,
-        })
-    }
-}
-
 fn overflow(what: &'static str, date: NaiveDate) -> impl Fn(Overflow) -> EngineError {
     move |_| EngineError::Overflow { what, date }
 }
@@ -350,8 +293,8 @@ struct Loop<'a> {
     options: RunOptions,
     /// Posting periods; empty when the account never posts.
     periods: Vec<Period>,
-    compounding_ends: Vec<NaiveDate>,
-    references: Vec<(NaiveDate, NaiveDate)>,
+    /// Compounding ends and reference periods, shared by the product.
+    shared: Rc<plan::Shared>,
     /// Movement indices by value date.
     order: Vec<usize>,
     /// The last day that earns.
@@ -368,6 +311,23 @@ struct Loop<'a> {
     breaks: Vec<NaiveDate>,
     /// Whether runs of days may be accrued in one step.
     fast: bool,
+    /// The table found last and the days it holds for (rate tables change
+    /// rarely; the lookup is skipped until the next change).
+    last_table: std::cell::Cell<Option<TableHit<'a>>>,
+    /// The day before the window, when there is one.
+    window_eve: Option<NaiveDate>,
+    /// An empty buffer for the tier pieces, reused from an earlier run.
+    spare_pieces: Vec<(Decimal, Decimal)>,
+}
+
+/// A rate table and the days `from..until` (`until` exclusive; `None`: no
+/// later change known) over which its source gives the same table.
+#[derive(Clone, Copy)]
+struct TableHit<'a> {
+    debit: bool,
+    from: NaiveDate,
+    until: Option<NaiveDate>,
+    table: &'a RateTable,
 }
 
 /// What a run reports as it goes: postings, day rows, spans, period-start
@@ -464,11 +424,12 @@ impl<'a> Loop<'a> {
     ) -> Result<Loop<'a>, EngineError> {
         let Plan {
             periods,
-            compounding_ends,
-            references,
+            shared,
             last_day,
+            buffers,
         } = plan;
-        let mut order: Vec<usize> = (0..inputs.movements.len()).collect();
+        let mut order = buffers.order;
+        order.extend(0..inputs.movements.len());
         order.sort_by_key(|&i| inputs.movements.get(i).map(|m| m.value_date));
         let mut breaks = inputs.breaks.to_vec();
         breaks.sort_unstable();
@@ -490,8 +451,7 @@ impl<'a> Loop<'a> {
             actual: inputs.actual,
             options,
             periods,
-            compounding_ends,
-            references,
+            shared,
             order,
             last_day,
             state: state.clone(),
@@ -501,6 +461,9 @@ impl<'a> Loop<'a> {
             growth: GrowthCache::default(),
             breaks,
             fast,
+            last_table: std::cell::Cell::new(None),
+            window_eve: options.window_start.pred_opt(),
+            spare_pieces: buffers.pieces,
         })
     }
 
@@ -557,7 +520,7 @@ impl<'a> Loop<'a> {
 
     /// Phase 2: where the saved state sits in the schedule: its posting
     /// period, its next movement and its next compounding end.
-    fn locate(&self) -> Result<Cursor, EngineError> {
+    fn locate(&mut self) -> Result<Cursor, EngineError> {
         let resume_day = self.state.day;
         let pi = self
             .periods
@@ -576,7 +539,10 @@ impl<'a> Loop<'a> {
             .iter()
             .position(|&i| self.movement(i).is_some_and(|m| m.value_date >= resume_day))
             .unwrap_or(self.order.len());
-        let ci = self.compounding_ends.partition_point(|e| *e < resume_day);
+        let ci = self
+            .shared
+            .compounding_ends
+            .partition_point(|e| *e < resume_day);
         Ok(Cursor {
             resume_day,
             pi,
@@ -585,7 +551,10 @@ impl<'a> Loop<'a> {
             unbooked: Vec::new(),
             basis: None,
             period_end: None,
-            pieces: Pieces::default(),
+            pieces: Pieces {
+                list: std::mem::take(&mut self.spare_pieces),
+                ..Pieces::default()
+            },
         })
     }
 
@@ -739,7 +708,7 @@ impl<'a> Loop<'a> {
             end: end_excl,
             maturity: terms.maturity,
             frequency: terms.posting.per_year(),
-            references: &self.references,
+            references: &self.shared.references,
             calendar: &terms.calendar,
         };
         // Compounded interest makes the base a 28-digit quotient whose
@@ -825,7 +794,7 @@ impl<'a> Loop<'a> {
                 checked(self.state.compounded.checked_add(step.value), "the base", d)?;
         }
         let mut posted_today = None;
-        let is_compounding_end = self.compounding_ends.get(at.ci) == Some(&d);
+        let is_compounding_end = self.shared.compounding_ends.get(at.ci) == Some(&d);
         if is_compounding_end {
             at.ci += 1;
         }
@@ -873,7 +842,7 @@ impl<'a> Loop<'a> {
         report: &mut Report,
     ) -> Result<(), EngineError> {
         let opts = self.options;
-        let is_window_eve = opts.window_start.pred_opt() == Some(d);
+        let is_window_eve = self.window_eve == Some(d);
         if opts.keep_days || is_window_eve || d == opts.cutoff {
             let accrued = self.accrued(d)?;
             if is_window_eve {
@@ -963,6 +932,11 @@ impl<'a> Loop<'a> {
         } else {
             self.state.balance
         };
+        Plan::recycle(plan::Buffers {
+            periods: std::mem::take(&mut self.periods),
+            pieces: std::mem::take(&mut at.pieces.list),
+            order: std::mem::take(&mut self.order),
+        });
         Ok(AccountResult {
             postings: report.postings,
             balance_at_cutoff,
@@ -999,7 +973,7 @@ impl<'a> Loop<'a> {
             }
         };
         before(period.map(|p| p.end));
-        before(self.compounding_ends.get(ci).copied());
+        before(self.shared.compounding_ends.get(ci).copied());
         before(
             self.order
                 .get(mi)
@@ -1016,7 +990,7 @@ impl<'a> Loop<'a> {
                 .and_then(|s| s.next_change_after(d))
                 .and_then(|n| n.pred_opt()),
         );
-        before(self.options.window_start.pred_opt().filter(|eve| d <= *eve));
+        before(self.window_eve.filter(|eve| d <= *eve));
         before(Some(self.options.cutoff));
         let breaks = &self.breaks;
         before(breaks.get(breaks.partition_point(|b| *b < d)).copied());
@@ -1049,7 +1023,13 @@ impl<'a> Loop<'a> {
     /// The table that applies to `base` on `d`: the account's rates, or the
     /// debit rates for a base of the opposite sign (`None`: it earns nothing).
     fn table_for(&self, base: Decimal, d: NaiveDate) -> Result<Option<&'a RateTable>, EngineError> {
-        let source = if base.is_sign_negative() && !base.is_zero() {
+        let debit = base.is_sign_negative() && !base.is_zero();
+        if let Some(hit) = self.last_table.get() {
+            if hit.debit == debit && hit.from <= d && hit.until.is_none_or(|u| d < u) {
+                return Ok(Some(hit.table));
+            }
+        }
+        let source = if debit {
             match self.debit_rates {
                 Some(s) => s,
                 None => return Ok(None),
@@ -1063,6 +1043,12 @@ impl<'a> Loop<'a> {
                 .first_effective()
                 .map_or_else(|| "no rates at all".to_string(), |f| f.to_string()),
         })?;
+        self.last_table.set(Some(TableHit {
+            debit,
+            from: d,
+            until: source.next_change_after(d),
+            table: t,
+        }));
         Ok(Some(t))
     }
 
@@ -1334,5 +1320,6 @@ fn blended_rate(
     }
 }
 
+mod plan;
 #[cfg(test)]
 mod tests;

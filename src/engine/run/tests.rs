@@ -7,7 +7,7 @@ use proptest::prelude::*;
 
 use super::*;
 use crate::conventions::calendar::{BusinessDay, Calendar};
-use crate::conventions::daycount::{year_fraction, Terms};
+use crate::conventions::daycount::{year_fraction, Basis, Terms};
 use crate::conventions::schedule::{AnchorKind, Posting};
 use crate::engine::rates::RateSchedule;
 use crate::engine::terms::Side;
