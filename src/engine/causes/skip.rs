@@ -1,0 +1,210 @@
+//! Which changes the cause search need not re-run: those that provably give
+//! the period the figures the unchanged account gives (behaviour.md, Likely
+//! causes). Each rule below says why its change cannot move the period.
+//!
+//! A change that cannot move the period either gives the unchanged account's
+//! gap and balance-years or fails to compute; the search uses a rule only when
+//! the unchanged account's own re-run computes and is outside tolerance, so in
+//! both cases the change is not found, as the full re-run would say. When the
+//! unchanged account computes within tolerance (or not at all), every change
+//! is re-run.
+//!
+//! Never decides a cause or its words, and never skips a change it cannot
+//! prove unmoving: a rule that is not sure says "re-run".
+
+use chrono::NaiveDate;
+
+use crate::conventions::compounding::Compounding;
+use crate::conventions::schedule::{month_end, ScheduleTerms};
+use crate::engine::run::{AccountResult, AccrualState};
+use crate::engine::terms::{AccountTerms, Movement};
+use crate::engine::{inputs::Inputs, reconcile::Reconciled};
+
+/// Which inputs a change alters, for the rules of this module.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum Touch {
+    /// Anything else: always re-run.
+    Other,
+    /// The compounding, changed to this one.
+    Compounding(Compounding),
+    /// Rate table `index` (of the account's rate tables) moved, or not
+    /// applied (then `hi` is the next table's effective date, or `None`):
+    /// the table in force differs on the days `lo` up to `hi` (exclusive;
+    /// `None`: every later day).
+    Rate {
+        index: usize,
+        moved: bool,
+        lo: NaiveDate,
+        hi: Option<NaiveDate>,
+    },
+    /// Movement `index` moved (the balance differs on the days `lo` up to
+    /// `hi`, exclusive) or left out (`hi` is `None`: every day from `lo`).
+    Movement {
+        index: usize,
+        lo: NaiveDate,
+        hi: Option<NaiveDate>,
+    },
+}
+
+/// What the rules need of the unchanged account re-run over the row, from
+/// the state the changes start from.
+pub(super) struct Unchanged {
+    /// The saved state the re-runs of term changes start from.
+    pub(super) state: AccrualState,
+    /// The posting ends the unchanged account reaches from that state.
+    pub(super) posting_ends: Vec<NaiveDate>,
+}
+
+impl Unchanged {
+    /// The rules' view of the unchanged account's re-run `result` from `state`.
+    pub(super) fn new(state: AccrualState, result: &AccountResult) -> Unchanged {
+        Unchanged {
+            state,
+            posting_ends: result.postings.iter().map(|p| p.end).collect(),
+        }
+    }
+}
+
+/// Whether the change touching `touch` provably leaves `row`'s period with
+/// the unchanged account's figures (when it computes at all).
+pub(super) fn cannot_move(
+    touch: Touch,
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    row: &Reconciled,
+    unchanged: &Unchanged,
+) -> bool {
+    match touch {
+        Touch::Other => false,
+        Touch::Compounding(to) => compounding_cannot_move(terms, to, row, unchanged),
+        Touch::Rate {
+            index,
+            moved,
+            lo,
+            hi,
+        } => {
+            // Days after the period are never run: a re-run stops at the
+            // period's end (its cut-off), and a rate table is only looked up
+            // for a day being run (the next change is looked up only to end a
+            // run of days, which the cut-off ends anyway). Every re-run of a
+            // rate change starts from the unchanged account's state.
+            lo > row.end
+                || (hi.is_some_and(|hi| {
+                    hi <= row.start && (!moved || keeps_its_place(inputs, index, lo, hi))
+                }) && nothing_carries(terms, inputs))
+        }
+        Touch::Movement { index, lo, hi } => match hi {
+            // A movement valued after the period's end joins no balance the
+            // re-run computes (a movement is taken only on its value date,
+            // and only taken movements can be unbooked). Moved, it keeps its
+            // index; left out, the later movements' indices shift down one,
+            // which changes nothing only when the start state owes no
+            // back-value to any of them.
+            None => {
+                lo > row.end
+                    && unchanged
+                        .state
+                        .back_value_owed
+                        .iter()
+                        .all(|(i, _)| *i < index)
+            }
+            Some(hi) => lo > row.end || (hi <= row.start && nothing_carries(terms, inputs)),
+        },
+    }
+}
+
+/// Whether what a change does to days before the period stays out of the
+/// period. Before it, only the interest accrued differs (the balance on the
+/// period's first day is the same once both dates have passed). Accrued
+/// interest reaches the period's figure only by joining the balance (a
+/// capitalised posting), joining the base (compounding), or as back-value
+/// owed to a later posting; the period counts only its own days and the
+/// postings wholly inside it. So it stays out when the account does not
+/// capitalise, compounds simply, and no movement before the period is
+/// booked after its value date (none can be unbooked, so none is owed
+/// back-value); floating accounts, whose rate may weigh the whole period, are
+/// always re-run.
+fn nothing_carries(terms: &AccountTerms, inputs: &Inputs) -> bool {
+    let booked_late = |m: &Movement| m.booking_date.is_some_and(|b| b > m.value_date);
+    !terms.capitalise
+        && terms.compounding == Compounding::Simple
+        && inputs.floating.is_none()
+        && !inputs.movements.iter().any(booked_late)
+}
+
+/// Whether rate table `index` moved between `lo` and `hi` keeps its place
+/// among the account's tables (no other table takes effect on a day from
+/// `lo` to `hi`), so that every day from `hi` on finds the same table in
+/// force.
+fn keeps_its_place(inputs: &Inputs, index: usize, lo: NaiveDate, hi: NaiveDate) -> bool {
+    inputs
+        .rates
+        .tables()
+        .iter()
+        .enumerate()
+        .all(|(i, t)| i == index || t.effective < lo || t.effective > hi)
+}
+
+/// Whether compounding `to` instead of the account's gives the period the
+/// same figures. Simple and periodic compounding accrue the same day
+/// interest; a periodic one differs only at a compounding end that is not a
+/// posting end (where the posting takes the interest and clears what was
+/// compounded instead), from the next day on. So when neither the account's
+/// compounding nor `to` has such an end from the start state to the day
+/// before the period's end, the re-run's figures are the unchanged ones (an
+/// opening state's opening accrued waiting to join is also taken by a posting
+/// or joined only at such an end). Daily, continuous and annual-effective
+/// compounding change every day and are always re-run.
+fn compounding_cannot_move(
+    terms: &AccountTerms,
+    to: Compounding,
+    row: &Reconciled,
+    unchanged: &Unchanged,
+) -> bool {
+    let periodic = |c: Compounding| c == Compounding::Simple || c.months().is_some();
+    periodic(terms.compounding)
+        && periodic(to)
+        && [terms.compounding, to]
+            .into_iter()
+            .all(|c| match c.months() {
+                None => true,
+                Some(months) => compounding_ends(terms, months, row.end).is_some_and(|ends| {
+                    ends.iter()
+                        .filter(|e| unchanged.state.day <= **e && **e < row.end)
+                        .all(|e| unchanged.posting_ends.contains(e))
+                }),
+            })
+}
+
+/// The compounding ends of a `months` compounding, as a re-run to `cutoff`
+/// schedules them (the engine's plan: the same anchor, horizon and
+/// calendar); `None` when they cannot be computed.
+fn compounding_ends(
+    terms: &AccountTerms,
+    months: u32,
+    cutoff: NaiveDate,
+) -> Option<Vec<NaiveDate>> {
+    let open = terms.open_date;
+    let anchor = match terms.anchor {
+        Some(a) => a,
+        None => month_end(terms.first_period_start())?,
+    };
+    let schedule = ScheduleTerms {
+        posting: terms.posting,
+        anchor,
+        anchor_kind: terms.anchor_kind,
+        business_day: terms.business_day,
+        maturity: terms.maturity,
+        payment_delay_days: terms.payment_delay_days,
+    };
+    let last_day = match terms.maturity.and_then(|m| m.pred_opt()) {
+        Some(m) if m < cutoff => m,
+        _ => cutoff,
+    };
+    schedule
+        .compounding_ends(months, open, last_day.max(open), &terms.calendar)
+        .ok()
+}
+
+#[cfg(test)]
+mod tests;
