@@ -605,13 +605,37 @@ fn unchanged(
     tolerance: &Tolerance,
 ) -> Option<skip::Unchanged> {
     let same = Change::new(ChangeKind::Period, String::new(), row.start);
-    let (result, state) = rerun_result(terms, inputs, states, row, &same)?;
+    let (result, _) = rerun_result(terms, inputs, states, row, &same)?;
     let (gap, balance_years) = outcome(terms, row, &same, &result)?;
     let bp = super::reconcile::variance_bp(gap, balance_years);
     if tolerance.accepts(gap, bp, terms.minor_units) {
         return None;
     }
-    Some(skip::Unchanged::new(state, &result))
+    Some(skip::Unchanged::new(&result))
+}
+
+/// Whether `change` goes without a re-run: [`skip`]'s rules prove it cannot
+/// move the period from `start` (the state the term changes start from),
+/// and the unchanged account (re-run once for the whole search, into
+/// `base`, when a rule first proves a change unmoving) is outside tolerance
+/// and posts on the days the proof needs.
+#[allow(clippy::too_many_arguments)]
+fn skipped(
+    change: &Change,
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    tolerance: &Tolerance,
+    start: &AccrualState,
+    base: &mut Option<Option<skip::Unchanged>>,
+) -> bool {
+    let Some(posting_ends) = skip::cannot_move(change.touch, terms, inputs, row, start) else {
+        return false;
+    };
+    base.get_or_insert_with(|| unchanged(terms, inputs, states, row, tolerance))
+        .as_ref()
+        .is_some_and(|b| b.posts_on(&posting_ends))
 }
 
 fn search_with(
@@ -628,6 +652,7 @@ fn search_with(
     // Each change's re-run, by its place in the list (for `same_as`).
     let mut outcomes: Vec<Option<(Decimal, Decimal)>> = Vec::new();
     let mut base: Option<Option<skip::Unchanged>> = None;
+    let start = state_for(states, terms, row.start);
     for (order, change) in changes(terms, inputs, row).into_iter().enumerate() {
         let repeated = change
             .same_as
@@ -635,15 +660,14 @@ fn search_with(
             .and_then(|at| outcomes.get(at).copied());
         let result = match repeated {
             Some(r) => r,
-            None if cheaper && change.touch != Touch::Other => {
-                let base =
-                    base.get_or_insert_with(|| unchanged(terms, inputs, states, row, tolerance));
-                match base {
-                    // Outside tolerance as the unchanged account is, or not
-                    // computed: not found either way (module `skip`).
-                    Some(b) if skip::cannot_move(change.touch, terms, inputs, row, b) => None,
-                    _ => rerun(terms, inputs, states, row, &change),
-                }
+            // Outside tolerance as the unchanged account is, or not
+            // computed: not found either way (module `skip`).
+            None if cheaper
+                && skipped(
+                    &change, terms, inputs, states, row, tolerance, &start, &mut base,
+                ) =>
+            {
+                None
             }
             None => rerun(terms, inputs, states, row, &change),
         };

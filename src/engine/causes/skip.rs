@@ -46,37 +46,43 @@ pub(super) enum Touch {
     },
 }
 
-/// What the rules need of the unchanged account re-run over the row, from
-/// the state the changes start from.
+/// What the rules need of the unchanged account re-run over the row from
+/// the state the term changes start from.
 pub(super) struct Unchanged {
-    /// The saved state the re-runs of term changes start from.
-    pub(super) state: AccrualState,
-    /// The posting ends the unchanged account reaches from that state.
+    /// The posting ends the unchanged account reaches.
     pub(super) posting_ends: Vec<NaiveDate>,
 }
 
 impl Unchanged {
-    /// The rules' view of the unchanged account's re-run `result` from `state`.
-    pub(super) fn new(state: AccrualState, result: &AccountResult) -> Unchanged {
+    /// The rules' view of the unchanged account's re-run `result`.
+    pub(super) fn new(result: &AccountResult) -> Unchanged {
         Unchanged {
-            state,
             posting_ends: result.postings.iter().map(|p| p.end).collect(),
         }
+    }
+
+    /// Whether every one of `days` is a posting end of the unchanged account.
+    pub(super) fn posts_on(&self, days: &[NaiveDate]) -> bool {
+        days.iter().all(|d| self.posting_ends.contains(d))
     }
 }
 
 /// Whether the change touching `touch` provably leaves `row`'s period with
-/// the unchanged account's figures (when it computes at all).
+/// the unchanged account's figures (when it computes at all), re-run from
+/// the saved state `start` as the term changes are: `None` when it may move
+/// the period; else the days that must be posting ends of the unchanged
+/// account ([`Unchanged::posts_on`]) for the proof to hold (often none).
 pub(super) fn cannot_move(
     touch: Touch,
     terms: &AccountTerms,
     inputs: &Inputs,
     row: &Reconciled,
-    unchanged: &Unchanged,
-) -> bool {
+    start: &AccrualState,
+) -> Option<Vec<NaiveDate>> {
+    let proved = |yes: bool| yes.then(Vec::new);
     match touch {
-        Touch::Other => false,
-        Touch::Compounding(to) => compounding_cannot_move(terms, to, row, unchanged),
+        Touch::Other => None,
+        Touch::Compounding(to) => compounding_cannot_move(terms, to, row, start),
         Touch::Rate {
             index,
             moved,
@@ -88,10 +94,12 @@ pub(super) fn cannot_move(
             // for a day being run (the next change is looked up only to end a
             // run of days, which the cut-off ends anyway). Every re-run of a
             // rate change starts from the unchanged account's state.
-            lo > row.end
-                || (hi.is_some_and(|hi| {
-                    hi <= row.start && (!moved || keeps_its_place(inputs, index, lo, hi))
-                }) && nothing_carries(terms, inputs))
+            proved(
+                lo > row.end
+                    || (hi.is_some_and(|hi| {
+                        hi <= row.start && (!moved || keeps_its_place(inputs, index, lo, hi))
+                    }) && nothing_carries(terms, inputs)),
+            )
         }
         Touch::Movement { index, lo, hi } => match hi {
             // A movement valued after the period's end joins no balance the
@@ -100,15 +108,8 @@ pub(super) fn cannot_move(
             // index; left out, the later movements' indices shift down one,
             // which changes nothing only when the start state owes no
             // back-value to any of them.
-            None => {
-                lo > row.end
-                    && unchanged
-                        .state
-                        .back_value_owed
-                        .iter()
-                        .all(|(i, _)| *i < index)
-            }
-            Some(hi) => lo > row.end || (hi <= row.start && nothing_carries(terms, inputs)),
+            None => proved(lo > row.end && start.back_value_owed.iter().all(|(i, _)| *i < index)),
+            Some(hi) => proved(lo > row.end || (hi <= row.start && nothing_carries(terms, inputs))),
         },
     }
 }
@@ -146,34 +147,35 @@ fn keeps_its_place(inputs: &Inputs, index: usize, lo: NaiveDate, hi: NaiveDate) 
 }
 
 /// Whether compounding `to` instead of the account's gives the period the
-/// same figures. Simple and periodic compounding accrue the same day
-/// interest; a periodic one differs only at a compounding end that is not a
-/// posting end (where the posting takes the interest and clears what was
-/// compounded instead), from the next day on. So when neither the account's
-/// compounding nor `to` has such an end from the start state to the day
-/// before the period's end, the re-run's figures are the unchanged ones (an
-/// opening state's opening accrued waiting to join is also taken by a posting
-/// or joined only at such an end). Daily, continuous and annual-effective
-/// compounding change every day and are always re-run.
+/// same figures, given that the days returned are posting ends. Simple and
+/// periodic compounding accrue the same day interest; a periodic one differs
+/// only at a compounding end that is not a posting end (where the posting
+/// takes the interest and clears what was compounded instead), from the next
+/// day on. So when every compounding end of the account's compounding and of
+/// `to` from the start state to the day before the period's end is a posting
+/// end, the re-run's figures are the unchanged ones (an opening state's
+/// opening accrued waiting to join is also taken by a posting or joined only
+/// at such an end). Daily, continuous and annual-effective compounding change
+/// every day and are always re-run.
 fn compounding_cannot_move(
     terms: &AccountTerms,
     to: Compounding,
     row: &Reconciled,
-    unchanged: &Unchanged,
-) -> bool {
+    start: &AccrualState,
+) -> Option<Vec<NaiveDate>> {
     let periodic = |c: Compounding| c == Compounding::Simple || c.months().is_some();
-    periodic(terms.compounding)
-        && periodic(to)
-        && [terms.compounding, to]
-            .into_iter()
-            .all(|c| match c.months() {
-                None => true,
-                Some(months) => compounding_ends(terms, months, row.end).is_some_and(|ends| {
-                    ends.iter()
-                        .filter(|e| unchanged.state.day <= **e && **e < row.end)
-                        .all(|e| unchanged.posting_ends.contains(e))
-                }),
-            })
+    if !periodic(terms.compounding) || !periodic(to) {
+        return None;
+    }
+    let mut days = Vec::new();
+    for months in [terms.compounding, to]
+        .into_iter()
+        .filter_map(Compounding::months)
+    {
+        let ends = compounding_ends(terms, months, row.end)?;
+        days.extend(ends.into_iter().filter(|e| start.day <= *e && *e < row.end));
+    }
+    Some(days)
 }
 
 /// The compounding ends of a `months` compounding, as a re-run to `cutoff`
