@@ -126,14 +126,17 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
         ..Change::new(kind, words, s)
     };
     for b in Basis::ALL.into_iter().filter(|b| *b != t.basis) {
-        out.push(with(
-            ChangeKind::Basis(b),
-            format!("interest on {} instead of {}", b.name(), t.basis.name()),
-            AccountTerms {
-                basis: b,
-                ..t.clone()
-            },
-        ));
+        out.push(Change {
+            touch: Touch::Basis(b),
+            ..with(
+                ChangeKind::Basis(b),
+                format!("interest on {} instead of {}", b.name(), t.basis.name()),
+                AccountTerms {
+                    basis: b,
+                    ..t.clone()
+                },
+            )
+        });
     }
     for k in Compounding::ALL.into_iter().filter(|k| *k != t.compounding) {
         out.push(Change {
@@ -653,7 +656,11 @@ fn search_with(
     let mut outcomes: Vec<Option<(Decimal, Decimal)>> = Vec::new();
     let mut base: Option<Option<skip::Unchanged>> = None;
     let start = state_for(states, terms, row.start);
-    for (order, change) in changes(terms, inputs, row).into_iter().enumerate() {
+    let mut list = changes(terms, inputs, row);
+    if cheaper {
+        skip::same_fractions_as_earlier(&mut list, start.day, row.end);
+    }
+    for (order, change) in list.into_iter().enumerate() {
         let repeated = change
             .same_as
             .filter(|_| cheaper)

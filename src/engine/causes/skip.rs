@@ -12,9 +12,11 @@
 //! Never decides a cause or its words, and never skips a change it cannot
 //! prove unmoving: a rule that is not sure says "re-run".
 
-use chrono::NaiveDate;
+use chrono::{Datelike, NaiveDate};
 
+use super::Change;
 use crate::conventions::compounding::Compounding;
+use crate::conventions::daycount::Basis;
 use crate::conventions::schedule::{month_end, ScheduleTerms};
 use crate::engine::run::{AccountResult, AccrualState};
 use crate::engine::terms::{AccountTerms, Movement};
@@ -25,6 +27,8 @@ use crate::engine::{inputs::Inputs, reconcile::Reconciled};
 pub(super) enum Touch {
     /// Anything else: always re-run.
     Other,
+    /// The day-count basis, changed to this one.
+    Basis(Basis),
     /// The compounding, changed to this one.
     Compounding(Compounding),
     /// Rate table `index` (of the account's rate tables) moved, or not
@@ -82,6 +86,7 @@ pub(super) fn cannot_move(
     let proved = |yes: bool| yes.then(Vec::new);
     match touch {
         Touch::Other => None,
+        Touch::Basis(to) => proved(same_fractions(terms.basis, to, start.day, row.end)),
         Touch::Compounding(to) => compounding_cannot_move(terms, to, row, start),
         Touch::Rate {
             index,
@@ -111,6 +116,36 @@ pub(super) fn cannot_move(
             None => proved(lo > row.end && start.back_value_owed.iter().all(|(i, _)| *i < index)),
             Some(hi) => proved(lo > row.end || (hi <= row.start && nothing_carries(terms, inputs))),
         },
+    }
+}
+
+/// Whether bases `a` and `b` give every day from `from` to `to` the same
+/// day fraction, numerator and denominator (behaviour.md, Day count): the
+/// basis reaches a re-run only through its day fractions, so two bases
+/// that agree on every day run alike. ACT/365F, NL/365 and ACT/ACT ISDA all
+/// give a day 1/365 in a year that is not a leap year (NL/365 differs only
+/// on 29 February, ACT/ACT ISDA only in a leap year's 1/366).
+fn same_fractions(a: Basis, b: Basis, from: NaiveDate, to: NaiveDate) -> bool {
+    const ONE_IN_365: [Basis; 3] = [Basis::Act365F, Basis::Nl365, Basis::ActActIsda];
+    let leap = |y: i32| NaiveDate::from_ymd_opt(y, 2, 29).is_some();
+    a == b
+        || (ONE_IN_365.contains(&a)
+            && ONE_IN_365.contains(&b)
+            && !(from.year()..=to.year()).any(leap))
+}
+
+/// Marks each basis change whose day fractions from `from` (the start
+/// state's day) to `to` (the period's end) are those of an earlier basis
+/// change in `list` as the same re-run ([`same_fractions`]).
+pub(super) fn same_fractions_as_earlier(list: &mut [Change], from: NaiveDate, to: NaiveDate) {
+    let mut bases: Vec<(Basis, usize)> = Vec::new();
+    for (at, change) in list.iter_mut().enumerate() {
+        if let Touch::Basis(b) = change.touch {
+            match bases.iter().find(|(e, _)| same_fractions(*e, b, from, to)) {
+                Some((_, earlier)) => change.same_as = change.same_as.or(Some(*earlier)),
+                None => bases.push((b, at)),
+            }
+        }
     }
 }
 

@@ -258,6 +258,43 @@ fn a_move_before_the_period_carries_when_a_movement_is_booked_late() {
 }
 
 #[test]
+fn bases_that_give_every_day_a_365th_run_alike_outside_leap_years() {
+    let (a, b) = (d("2026-11-01"), d("2027-12-31"));
+    assert!(same_fractions(Basis::Act365F, Basis::Nl365, a, b));
+    assert!(same_fractions(Basis::Nl365, Basis::ActActIsda, a, b));
+    // A leap year in the run: 29 February and 1/366 tell them apart.
+    assert!(!same_fractions(
+        Basis::Act365F,
+        Basis::ActActIsda,
+        a,
+        d("2028-01-01")
+    ));
+    assert!(!same_fractions(Basis::Act365F, Basis::Act360, a, b));
+    assert!(!same_fractions(Basis::Act365F, Basis::Act365L, a, b));
+
+    // An ACT/360 account in 2026: NL/365 and ACT/ACT ISDA repeat ACT/365F's re-run.
+    let book = deposit();
+    let (rows, states) = book.rows(&[(november().0, november().1, Decimal::ONE_HUNDRED)]);
+    let start = state_for(&states, &book.terms, rows[0].start);
+    let mut list = changes(&book.terms, &book.inputs(&[]), &rows[0]);
+    same_fractions_as_earlier(&mut list, start.day, rows[0].end);
+    let at = |words: &str| {
+        list.iter()
+            .position(|c| c.words.starts_with(words))
+            .unwrap()
+    };
+    let act365f = at("interest on ACT/365F");
+    assert_eq!(list[at("interest on NL/365")].same_as, Some(act365f));
+    assert_eq!(list[at("interest on ACT/ACT ISDA")].same_as, Some(act365f));
+    assert_eq!(list[at("interest on ACT/365L")].same_as, None);
+    // An ACT/365F account: the other two are the unchanged account.
+    let mut book = deposit();
+    book.terms.basis = Basis::Act365F;
+    assert!(book.skips(november(), "interest on NL/365 instead of ACT/365F"));
+    assert!(!book.skips(november(), "interest on ACT/360 instead of ACT/365F"));
+}
+
+#[test]
 fn compounding_whose_ends_are_all_posting_ends_is_skipped() {
     let b = deposit();
     // Monthly postings: every quarter end is a posting end.
@@ -304,6 +341,7 @@ fn any_book() -> impl Strategy<Value = (Book, (NaiveDate, NaiveDate))> {
             prop::sample::select(vec![
                 Basis::Act360,
                 Basis::Act365F,
+                Basis::Nl365,
                 Basis::Thirty360,
                 Basis::ActActIsda,
             ]),
@@ -323,7 +361,7 @@ fn any_book() -> impl Strategy<Value = (Book, (NaiveDate, NaiveDate))> {
             ]),
             prop::option::of(0i64..28),
             any::<bool>(),
-            0u8..5,
+            0u8..10,
         ),
         (
             0i64..60,
@@ -349,7 +387,12 @@ fn any_book() -> impl Strategy<Value = (Book, (NaiveDate, NaiveDate))> {
                 changes,
                 moves,
             )| {
-                let open = d("2026-03-01");
+                // Half the accounts run into 2028, a leap year.
+                let open = if daily >= 5 {
+                    d("2027-10-01")
+                } else {
+                    d("2026-03-01")
+                };
                 let start = open + Days::new(from as u64 + 20);
                 // Half the periods start a calendar month, as month-end postings do.
                 let start = if aligned {
