@@ -159,6 +159,7 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
         RoundAt::Posting => RoundAt::Daily,
         RoundAt::Daily => RoundAt::Posting,
     };
+    let point_at = out.len();
     out.push(with(
         ChangeKind::Rounding,
         format!(
@@ -185,15 +186,23 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
     for places in (t.minor_units..=t.minor_units + 4)
         .filter(|p| t.round_at != RoundAt::Daily || *p != current_places)
     {
-        out.push(with(
-            ChangeKind::Rounding,
-            format!("each day's interest rounded to {places} places"),
-            AccountTerms {
-                round_at: RoundAt::Daily,
-                round_places: Some(places),
-                ..t.clone()
-            },
-        ));
+        // Rounded daily to the places an account rounding at posting would
+        // round to daily is the point change above: the engine reads the
+        // places only as `round_places` or else the minor units.
+        let same_as =
+            (t.round_at == RoundAt::Posting && places == current_places).then_some(point_at);
+        out.push(Change {
+            same_as,
+            ..with(
+                ChangeKind::Rounding,
+                format!("each day's interest rounded to {places} places"),
+                AccountTerms {
+                    round_at: RoundAt::Daily,
+                    round_places: Some(places),
+                    ..t.clone()
+                },
+            )
+        });
     }
 }
 

@@ -295,6 +295,27 @@ fn bases_that_give_every_day_a_365th_run_alike_outside_leap_years() {
 }
 
 #[test]
+fn daily_rounding_to_the_minor_unit_is_the_rounding_point_change() {
+    let book = deposit();
+    let (rows, _) = book.rows(&[(november().0, november().1, Decimal::ONE_HUNDRED)]);
+    let list = changes(&book.terms, &book.inputs(&[]), &rows[0]);
+    let at = |words: &str| {
+        list.iter()
+            .position(|c| c.words.starts_with(words))
+            .unwrap()
+    };
+    let point = at("interest rounded daily to 2 places instead of at posting");
+    assert_eq!(
+        list[at("each day's interest rounded to 2 places")].same_as,
+        Some(point)
+    );
+    assert_eq!(
+        list[at("each day's interest rounded to 3 places")].same_as,
+        None
+    );
+}
+
+#[test]
 fn compounding_whose_ends_are_all_posting_ends_is_skipped() {
     let b = deposit();
     // Monthly postings: every quarter end is a posting end.
