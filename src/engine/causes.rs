@@ -22,6 +22,7 @@ use super::terms::{AccountTerms, FloatingTerms, FloorOn, Movement, RateMethod, R
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
 use crate::conventions::rounding::RoundMode;
+use skip::Touch;
 
 /// One change tried.
 #[derive(Debug, Clone)]
@@ -35,6 +36,11 @@ struct Change {
     period: Option<(NaiveDate, NaiveDate)>,
     /// The earliest date the change touches (where the re-run must start).
     from: NaiveDate,
+    /// Which inputs it alters, for [`skip`]'s rules.
+    touch: Touch,
+    /// An earlier change of the list that makes exactly the same inputs
+    /// (its re-run is this one's).
+    same_as: Option<usize>,
 }
 
 impl Change {
@@ -49,6 +55,8 @@ impl Change {
             floating: None,
             period: None,
             from,
+            touch: Touch::Other,
+            same_as: None,
         }
     }
 }
@@ -118,33 +126,40 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
         ..Change::new(kind, words, s)
     };
     for b in Basis::ALL.into_iter().filter(|b| *b != t.basis) {
-        out.push(with(
-            ChangeKind::Basis(b),
-            format!("interest on {} instead of {}", b.name(), t.basis.name()),
-            AccountTerms {
-                basis: b,
-                ..t.clone()
-            },
-        ));
+        out.push(Change {
+            touch: Touch::Basis(b),
+            ..with(
+                ChangeKind::Basis(b),
+                format!("interest on {} instead of {}", b.name(), t.basis.name()),
+                AccountTerms {
+                    basis: b,
+                    ..t.clone()
+                },
+            )
+        });
     }
     for k in Compounding::ALL.into_iter().filter(|k| *k != t.compounding) {
-        out.push(with(
-            ChangeKind::Compounding,
-            format!(
-                "compounding {} instead of {}",
-                k.name(),
-                t.compounding.name()
-            ),
-            AccountTerms {
-                compounding: k,
-                ..t.clone()
-            },
-        ));
+        out.push(Change {
+            touch: Touch::Compounding(k),
+            ..with(
+                ChangeKind::Compounding,
+                format!(
+                    "compounding {} instead of {}",
+                    k.name(),
+                    t.compounding.name()
+                ),
+                AccountTerms {
+                    compounding: k,
+                    ..t.clone()
+                },
+            )
+        });
     }
     let other_point = match t.round_at {
         RoundAt::Posting => RoundAt::Daily,
         RoundAt::Daily => RoundAt::Posting,
     };
+    let point_at = out.len();
     out.push(with(
         ChangeKind::Rounding,
         format!(
@@ -171,15 +186,23 @@ fn term_changes(t: &AccountTerms, s: NaiveDate, out: &mut Vec<Change>) {
     for places in (t.minor_units..=t.minor_units + 4)
         .filter(|p| t.round_at != RoundAt::Daily || *p != current_places)
     {
-        out.push(with(
-            ChangeKind::Rounding,
-            format!("each day's interest rounded to {places} places"),
-            AccountTerms {
-                round_at: RoundAt::Daily,
-                round_places: Some(places),
-                ..t.clone()
-            },
-        ));
+        // Rounded daily to the places an account rounding at posting would
+        // round to daily is the point change above: the engine reads the
+        // places only as `round_places` or else the minor units.
+        let same_as =
+            (t.round_at == RoundAt::Posting && places == current_places).then_some(point_at);
+        out.push(Change {
+            same_as,
+            ..with(
+                ChangeKind::Rounding,
+                format!("each day's interest rounded to {places} places"),
+                AccountTerms {
+                    round_at: RoundAt::Daily,
+                    round_places: Some(places),
+                    ..t.clone()
+                },
+            )
+        });
     }
 }
 
@@ -243,6 +266,12 @@ fn rate_changes(rates: &RateSchedule, row: &Reconciled, out: &mut Vec<Change>) {
                 moved.min(table.effective).min(s),
             );
             c.rates = Some(RateSchedule::from_tables(moved_tables));
+            c.touch = Touch::Rate {
+                index: i,
+                moved: true,
+                lo: moved.min(table.effective),
+                hi: Some(moved.max(table.effective)),
+            };
             out.push(c);
         }
         let mut without = tables.to_vec();
@@ -253,6 +282,12 @@ fn rate_changes(rates: &RateSchedule, row: &Reconciled, out: &mut Vec<Change>) {
             table.effective.min(s),
         );
         c.rates = Some(RateSchedule::from_tables(without));
+        c.touch = Touch::Rate {
+            index: i,
+            moved: false,
+            lo: table.effective,
+            hi: tables.get(i + 1).map(|next| next.effective),
+        };
         out.push(c);
     }
 }
@@ -287,6 +322,13 @@ fn movement_changes(
             }
             ms
         };
+        // Where each day the movement was moved to stands in the list.
+        let mut moved_to: Vec<(NaiveDate, usize)> = Vec::new();
+        let touch = |v: NaiveDate| Touch::Movement {
+            index: i,
+            lo: v.min(m.value_date),
+            hi: Some(v.max(m.value_date)),
+        };
         for k in (-5i64..=5).filter(|k| *k != 0) {
             let Some(v) = shift(m.value_date, k) else {
                 continue;
@@ -294,6 +336,7 @@ fn movement_changes(
             if v < t.open_date {
                 continue;
             }
+            moved_to.push((v, out.len()));
             let mut c = Change::new(
                 ChangeKind::Movement {
                     days: Some(k.unsigned_abs()),
@@ -302,6 +345,7 @@ fn movement_changes(
                 v.min(m.value_date).min(s),
             );
             c.movements = Some(with(v));
+            c.touch = touch(v);
             out.push(c);
         }
         if let Some(b) = m.booking_date.filter(|b| *b != m.value_date) {
@@ -317,6 +361,10 @@ fn movement_changes(
                 b.min(m.value_date).min(s),
             );
             c.movements = Some(with(b));
+            c.touch = touch(b);
+            // Taken from its booking date within five days is taken from
+            // that day: the same movements, from the same day.
+            c.same_as = moved_to.iter().find(|(v, _)| *v == b).map(|(_, at)| *at);
             out.push(c);
         }
         let mut left = movements.to_vec();
@@ -327,6 +375,11 @@ fn movement_changes(
             m.value_date.min(s),
         );
         c.movements = Some(left);
+        c.touch = Touch::Movement {
+            index: i,
+            lo: m.value_date,
+            hi: None,
+        };
         out.push(c);
     }
 }
@@ -529,6 +582,10 @@ pub fn likely_cause(
 
 /// [`likely_cause`] as a finding: each change found with its kind and gap,
 /// for [`plausible`] to rank.
+///
+/// Changes that provably cannot move the period ([`skip`]) and changes that
+/// repeat an earlier one's inputs are not re-run; the finding is the one
+/// re-running every change gives (a property test holds the two equal).
 pub fn search(
     terms: &AccountTerms,
     inputs: &Inputs,
@@ -536,10 +593,102 @@ pub fn search(
     row: &Reconciled,
     tolerance: &Tolerance,
 ) -> LikelyCause {
+    search_with(terms, inputs, states, row, tolerance, Effort::Cheaper)
+}
+
+/// How much of the change list a search re-runs.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Effort {
+    /// Every change, each on its own: what the cheaper search must equal.
+    #[cfg(test)]
+    Full,
+    /// Only the changes that could move the period, each set of inputs once.
+    Cheaper,
+}
+
+/// The unchanged account re-run over `row` from where the term changes
+/// start, for [`skip`]'s rules; `None` when it does not compute or
+/// computes within tolerance (then the rules are not used).
+fn unchanged(
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    tolerance: &Tolerance,
+) -> Option<skip::Unchanged> {
+    let same = Change::new(ChangeKind::Period, String::new(), row.start);
+    let (result, _) = rerun_result(terms, inputs, states, row, &same)?;
+    let (gap, balance_years) = outcome(terms, row, &same, &result)?;
+    let bp = super::reconcile::variance_bp(gap, balance_years);
+    if tolerance.accepts(gap, bp, terms.minor_units) {
+        return None;
+    }
+    Some(skip::Unchanged::new(&result))
+}
+
+/// Whether `change` goes without a re-run: [`skip`]'s rules prove it cannot
+/// move the period from `start` (the state the term changes start from),
+/// and the unchanged account (re-run once for the whole search, into
+/// `base`, when a rule first proves a change unmoving) is outside tolerance
+/// and posts on the days the proof needs.
+#[allow(clippy::too_many_arguments)]
+fn skipped(
+    change: &Change,
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    tolerance: &Tolerance,
+    start: &AccrualState,
+    base: &mut Option<Option<skip::Unchanged>>,
+) -> bool {
+    let Some(posting_ends) = skip::cannot_move(change.touch, terms, inputs, row, start) else {
+        return false;
+    };
+    base.get_or_insert_with(|| unchanged(terms, inputs, states, row, tolerance))
+        .as_ref()
+        .is_some_and(|b| b.posts_on(&posting_ends))
+}
+
+fn search_with(
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    tolerance: &Tolerance,
+    effort: Effort,
+) -> LikelyCause {
     let places = terms.minor_units;
+    let cheaper = effort == Effort::Cheaper;
     let mut found: Vec<(usize, Found)> = Vec::new();
-    for (order, change) in changes(terms, inputs, row).into_iter().enumerate() {
-        let Some((gap, balance_years)) = rerun(terms, inputs, states, row, &change) else {
+    // Each change's re-run, by its place in the list (for `same_as`).
+    let mut outcomes: Vec<Option<(Decimal, Decimal)>> = Vec::new();
+    let mut base: Option<Option<skip::Unchanged>> = None;
+    let start = state_for(states, terms, row.start);
+    let mut list = changes(terms, inputs, row);
+    if cheaper {
+        skip::same_fractions_as_earlier(&mut list, start.day, row.end);
+    }
+    for (order, change) in list.into_iter().enumerate() {
+        let repeated = change
+            .same_as
+            .filter(|_| cheaper)
+            .and_then(|at| outcomes.get(at).copied());
+        let result = match repeated {
+            Some(r) => r,
+            // Outside tolerance as the unchanged account is, or not
+            // computed: not found either way (module `skip`).
+            None if cheaper
+                && skipped(
+                    &change, terms, inputs, states, row, tolerance, &start, &mut base,
+                ) =>
+            {
+                None
+            }
+            None => rerun(terms, inputs, states, row, &change),
+        };
+        outcomes.push(result);
+        let Some((gap, balance_years)) = result else {
             continue;
         };
         let bp = super::reconcile::variance_bp(gap, balance_years);
@@ -579,6 +728,31 @@ fn rerun(
     row: &Reconciled,
     change: &Change,
 ) -> Option<(Decimal, Decimal)> {
+    let (result, _) = rerun_result(terms, inputs, states, row, change)?;
+    outcome(terms, row, change, &result)
+}
+
+/// The gap and balance-years of `change`'s re-run `result`.
+fn outcome(
+    terms: &AccountTerms,
+    row: &Reconciled,
+    change: &Change,
+    result: &super::run::AccountResult,
+) -> Option<(Decimal, Decimal)> {
+    let terms = change.terms.as_ref().unwrap_or(terms);
+    let (ps, pe) = change.period.unwrap_or((row.start, row.end));
+    let e = expected_over(terms, result, ps, pe).ok()?;
+    Some((row.posted - e.amount, e.balance_years))
+}
+
+/// The account re-run with `change`, and the state it started from.
+fn rerun_result(
+    terms: &AccountTerms,
+    inputs: &Inputs,
+    states: &[AccrualState],
+    row: &Reconciled,
+    change: &Change,
+) -> Option<(super::run::AccountResult, AccrualState)> {
     let terms = change.terms.as_ref().unwrap_or(terms);
     let (ps, pe) = change.period.unwrap_or((row.start, row.end));
     // The re-run's spans must end where the period tried does.
@@ -603,8 +777,7 @@ fn rerun(
         fast_path: true,
     };
     let result = resume(terms, changed, options, &state).ok()?;
-    let e = expected_over(terms, &result, ps, pe).ok()?;
-    Some((row.posted - e.amount, e.balance_years))
+    Some((result, state))
 }
 
 /// The parallel shift of the contract rates that the posted amount implies.
@@ -625,6 +798,7 @@ fn implied_rate(row: &Reconciled) -> String {
 }
 
 pub mod plausible;
+mod skip;
 
 #[cfg(test)]
 mod tests;
