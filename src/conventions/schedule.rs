@@ -245,7 +245,7 @@ pub struct Period {
 }
 
 /// The terms that fix an account's posting schedule.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
 pub struct ScheduleTerms {
     /// How often interest posts.
     pub posting: Posting,

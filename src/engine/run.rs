@@ -23,6 +23,7 @@ use crate::conventions::daycount::{DayFraction, PeriodBasis};
 use crate::conventions::growth;
 use crate::conventions::schedule::{Period, PeriodKind};
 use plan::Plan;
+pub(crate) use plan::{last_day, schedule_terms};
 
 /// What to compute besides the postings.
 #[derive(Debug, Clone, Copy)]

@@ -17,8 +17,7 @@ use chrono::{Datelike, NaiveDate};
 use super::Change;
 use crate::conventions::compounding::Compounding;
 use crate::conventions::daycount::Basis;
-use crate::conventions::schedule::{month_end, ScheduleTerms};
-use crate::engine::run::{AccountResult, AccrualState};
+use crate::engine::run::{last_day, schedule_terms, AccountResult, AccrualState};
 use crate::engine::terms::{AccountTerms, Movement};
 use crate::engine::{inputs::Inputs, reconcile::Reconciled};
 
@@ -222,22 +221,8 @@ fn compounding_ends(
     cutoff: NaiveDate,
 ) -> Option<Vec<NaiveDate>> {
     let open = terms.open_date;
-    let anchor = match terms.anchor {
-        Some(a) => a,
-        None => month_end(terms.first_period_start())?,
-    };
-    let schedule = ScheduleTerms {
-        posting: terms.posting,
-        anchor,
-        anchor_kind: terms.anchor_kind,
-        business_day: terms.business_day,
-        maturity: terms.maturity,
-        payment_delay_days: terms.payment_delay_days,
-    };
-    let last_day = match terms.maturity.and_then(|m| m.pred_opt()) {
-        Some(m) if m < cutoff => m,
-        _ => cutoff,
-    };
+    let schedule = schedule_terms(terms)?;
+    let last_day = last_day(terms, cutoff);
     schedule
         .compounding_ends(months, open, last_day.max(open), &terms.calendar)
         .ok()

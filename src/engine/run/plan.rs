@@ -19,9 +19,9 @@ use chrono::NaiveDate;
 use rust_decimal::Decimal;
 
 use super::RunOptions;
-use crate::conventions::calendar::{BusinessDay, Calendar};
+use crate::conventions::calendar::Calendar;
 use crate::conventions::daycount::Basis;
-use crate::conventions::schedule::{month_end, AnchorKind, Period, Posting, ScheduleTerms};
+use crate::conventions::schedule::{month_end, Period, ScheduleTerms};
 use crate::engine::error::EngineError;
 use crate::engine::terms::AccountTerms;
 
@@ -52,12 +52,7 @@ pub(super) struct Shared {
 /// Every input of the schedule functions for one run.
 #[derive(Clone, PartialEq, Eq, Hash)]
 struct Key {
-    posting: Posting,
-    anchor: NaiveDate,
-    anchor_kind: AnchorKind,
-    business_day: BusinessDay,
-    maturity: Option<NaiveDate>,
-    payment_delay_days: u32,
+    schedule: ScheduleTerms,
     calendar: CalendarKey,
     start: NaiveDate,
     open: NaiveDate,
@@ -158,17 +153,9 @@ impl Plan {
     pub(super) fn new(terms: &AccountTerms, options: &RunOptions) -> Result<Plan, EngineError> {
         let open = terms.open_date;
         let start = terms.first_period_start();
-        let anchor = match terms.anchor {
-            Some(a) => a,
-            None => {
-                month_end(start).ok_or(EngineError::Unsupported("a date out of range".into()))?
-            }
-        };
-        let before_maturity = terms.maturity.and_then(|m| m.pred_opt());
-        let last_day = match before_maturity {
-            Some(m) if m < options.cutoff => m,
-            _ => options.cutoff,
-        };
+        let schedule =
+            schedule_terms(terms).ok_or(EngineError::Unsupported("a date out of range".into()))?;
+        let last_day = last_day(terms, options.cutoff);
         if terms.basis == Basis::ActActIcma && terms.posting.per_year().is_none() {
             return Err(EngineError::Unsupported(format!(
                 "ACT/ACT ICMA with posting {}: the basis needs a posting frequency (monthly, quarterly, semiannual or annual)",
@@ -176,12 +163,7 @@ impl Plan {
             )));
         }
         let key = Key {
-            posting: terms.posting,
-            anchor,
-            anchor_kind: terms.anchor_kind,
-            business_day: terms.business_day,
-            maturity: terms.maturity,
-            payment_delay_days: terms.payment_delay_days,
+            schedule,
             calendar: CalendarKey(Arc::clone(&terms.calendar)),
             start,
             open,
@@ -241,14 +223,7 @@ impl Plan {
 
 /// The schedule of `key`, rolled from its anchor.
 fn roll(key: &Key) -> Result<Shared, EngineError> {
-    let schedule = ScheduleTerms {
-        posting: key.posting,
-        anchor: key.anchor,
-        anchor_kind: key.anchor_kind,
-        business_day: key.business_day,
-        maturity: key.maturity,
-        payment_delay_days: key.payment_delay_days,
-    };
+    let schedule = &key.schedule;
     let calendar = &key.calendar.0;
     let periods = schedule.periods(key.start, key.open, key.horizon, calendar)?;
     let compounding_ends = match key.compounding_months {
@@ -268,4 +243,30 @@ fn roll(key: &Key) -> Result<Shared, EngineError> {
         compounding_ends,
         references,
     })
+}
+
+/// The terms that fix `terms`' posting schedule: its anchor, else the month
+/// end of its first period; `None` for a date out of range.
+pub(crate) fn schedule_terms(terms: &AccountTerms) -> Option<ScheduleTerms> {
+    let anchor = match terms.anchor {
+        Some(a) => a,
+        None => month_end(terms.first_period_start())?,
+    };
+    Some(ScheduleTerms {
+        posting: terms.posting,
+        anchor,
+        anchor_kind: terms.anchor_kind,
+        business_day: terms.business_day,
+        maturity: terms.maturity,
+        payment_delay_days: terms.payment_delay_days,
+    })
+}
+
+/// The last day a run of `terms` to `cutoff` computes: the day before
+/// maturity when that comes first.
+pub(crate) fn last_day(terms: &AccountTerms, cutoff: NaiveDate) -> NaiveDate {
+    match terms.maturity.and_then(|m| m.pred_opt()) {
+        Some(m) if m < cutoff => m,
+        _ => cutoff,
+    }
 }
