@@ -74,6 +74,17 @@ impl TextFigures {
         }
     }
 
+    /// Adds `later`'s figures after these, as if they had been written
+    /// after them: what sheets filled side by side give back in sheet order.
+    pub fn absorb(&mut self, later: TextFigures) {
+        let room = LISTED_TEXT_FIGURES.saturating_sub(self.listed.len());
+        self.listed.extend(later.listed.into_iter().take(room));
+        self.count = self.count.saturating_add(later.count);
+        let room = LISTED_TEXT_FIGURES.saturating_sub(self.cut.len());
+        self.cut.extend(later.cut.into_iter().take(room));
+        self.cut_count = self.cut_count.saturating_add(later.cut_count);
+    }
+
     fn record_cut(&mut self, sheet: &str, row: RowNum, col: ColNum, text: &str) {
         self.cut_count = self.cut_count.saturating_add(1);
         if self.cut.len() < LISTED_TEXT_FIGURES {
@@ -297,6 +308,35 @@ pub struct Cells<'a> {
     /// Lines the tallest wrapped text of the current row takes.
     lines: u32,
     row: RowNum,
+    /// When set, nothing is written: each format a write would give a cell
+    /// of its own is noted instead, in order of first use (see [`FormatOrder`]).
+    recording: Option<&'a mut FormatOrder>,
+}
+
+/// The formats a stretch of writing gives cells of their own (not through
+/// their column's format), each once, in order of first use: what the
+/// spreadsheet library numbers the workbook's cell styles by. Noting them
+/// before writing lets sheets be filled side by side and still number
+/// their styles as one sheet after another would.
+#[derive(Debug, Default, Clone)]
+pub struct FormatOrder {
+    /// Each format's address (formats are told apart as [`Cells`] tells a
+    /// column's own format: the same [`Styles`] entry) and the format.
+    seen: Vec<(usize, Format)>,
+}
+
+impl FormatOrder {
+    fn note(&mut self, format: &Format) {
+        let at = std::ptr::from_ref(format).addr();
+        if !self.seen.iter().any(|(a, _)| *a == at) {
+            self.seen.push((at, format.clone()));
+        }
+    }
+
+    /// The formats noted, in order of first use.
+    pub fn formats(&self) -> impl Iterator<Item = &Format> {
+        self.seen.iter().map(|(_, f)| f)
+    }
 }
 
 /// Lines a text takes when wrapped at `width` characters, word by word (a
@@ -352,6 +392,37 @@ impl<'a> Cells<'a> {
             wrap_widths: Vec::new(),
             lines: 1,
             row: 0,
+            recording: None,
+        }
+    }
+
+    /// Writes nothing from here on: notes in `order` each format a write
+    /// would give a cell of its own (column formats included), in order.
+    /// What is measured (widths, wrapped lines) is measured as when writing;
+    /// text figures go to the [`TextFigures`] given as ever.
+    #[must_use]
+    pub fn recording(mut self, order: &'a mut FormatOrder) -> Self {
+        self.recording = Some(order);
+        self
+    }
+
+    /// Whether this writes nothing (see [`Cells::recording`]).
+    pub fn is_recording(&self) -> bool {
+        self.recording.is_some()
+    }
+
+    /// In a recording, notes `format` when the cell is written in it (not
+    /// through column `col`'s format) and says so: the caller writes nothing.
+    fn recorded(&mut self, col: Option<ColNum>, format: &Format) -> bool {
+        let carried = col.is_some_and(|c| self.carried(c, format));
+        match self.recording.as_deref_mut() {
+            Some(order) => {
+                if !carried {
+                    order.note(format);
+                }
+                true
+            }
+            None => false,
         }
     }
 
@@ -377,9 +448,11 @@ impl<'a> Cells<'a> {
     /// their column. Cells in any other format keep their own, and so does
     /// every header cell. Set it before the column's first cell.
     pub fn column_format(&mut self, col: ColNum, format: &'a Format) -> Result<(), ReportError> {
-        self.ws
-            .set_column_format(col, format)
-            .map_err(at(self.sheet, self.row))?;
+        if !self.recorded(None, format) {
+            self.ws
+                .set_column_format(col, format)
+                .map_err(at(self.sheet, self.row))?;
+        }
         self.carry(col, format);
         Ok(())
     }
@@ -431,6 +504,11 @@ impl<'a> Cells<'a> {
         self.row
     }
 
+    /// The name of the sheet written.
+    pub fn sheet_name(&self) -> &'a str {
+        self.sheet
+    }
+
     /// The worksheet, for whole-sheet settings.
     pub fn sheet(&mut self) -> &mut Worksheet {
         self.ws
@@ -473,6 +551,9 @@ impl<'a> Cells<'a> {
                 self.lines = self.lines.max(wrapped_lines(text, width));
             }
         }
+        if self.recorded(Some(col), format) {
+            return Ok(());
+        }
         if self.carried(col, format) {
             self.ws.write_string(row, col, text)
         } else {
@@ -494,6 +575,9 @@ impl<'a> Cells<'a> {
             } else {
                 &styles.header
             };
+            if self.recorded(None, format) {
+                continue;
+            }
             self.ws
                 .write_string_with_format(row, col, *label, format)
                 .map_err(at(self.sheet, row))?;
@@ -507,6 +591,9 @@ impl<'a> Cells<'a> {
         let styles = self.styles;
         let row = self.row;
         for (col, label) in (0..).zip(labels) {
+            if self.recorded(None, &styles.list_header) {
+                continue;
+            }
             self.ws
                 .write_string_with_format(row, col, *label, &styles.list_header)
                 .map_err(at(self.sheet, row))?;
@@ -531,6 +618,9 @@ impl<'a> Cells<'a> {
             self.texts.record_cut(self.sheet, row, col, text);
         }
         let text = cut.as_deref().unwrap_or(text);
+        if self.recorded(None, format) {
+            return Ok(());
+        }
         self.ws
             .write_string_with_format(row, col, text, format)
             .map_err(at(self.sheet, row))?;
@@ -560,6 +650,9 @@ impl<'a> Cells<'a> {
     ) -> Result<(), ReportError> {
         self.seen(col, len);
         let row = self.row;
+        if self.recorded(Some(col), format) {
+            return Ok(());
+        }
         if self.carried(col, format) {
             self.ws.write_number(row, col, n)
         } else {
@@ -706,6 +799,9 @@ impl<'a> Cells<'a> {
         let styles = self.styles;
         self.seen(col, 10);
         let row = self.row;
+        if self.recorded(Some(col), &styles.date) {
+            return Ok(());
+        }
         if self.carried(col, &styles.date) {
             self.ws.write_datetime(row, col, d)
         } else {
@@ -726,6 +822,9 @@ impl<'a> Cells<'a> {
         let styles = self.styles;
         self.seen(col, 19);
         let row = self.row;
+        if self.recorded(None, &styles.datetime) {
+            return Ok(());
+        }
         self.ws
             .write_datetime_with_format(row, col, t, &styles.datetime)
             .map_err(at(self.sheet, row))?;
@@ -735,6 +834,9 @@ impl<'a> Cells<'a> {
     /// A blank cell carrying a format (the template's empty example cells).
     pub fn blank(&mut self, col: ColNum, format: &Format) -> Result<(), ReportError> {
         let row = self.row;
+        if self.recorded(None, format) {
+            return Ok(());
+        }
         self.ws
             .write_blank(row, col, format)
             .map_err(at(self.sheet, row))?;

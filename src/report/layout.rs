@@ -36,6 +36,9 @@ pub struct Limits {
     pub rows_per_sheet: u32,
     /// Bars at most in the Summary chart.
     pub chart_points: usize,
+    /// Fill the list sheets after the Accruals one after another rather
+    /// than side by side: the same file, slower (tests compare the two).
+    pub fill_in_turn: bool,
 }
 
 impl Default for Limits {
@@ -43,6 +46,7 @@ impl Default for Limits {
         Limits {
             rows_per_sheet: SHEET_ROW_LIMIT,
             chart_points: 40,
+            fill_in_turn: false,
         }
     }
 }

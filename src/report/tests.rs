@@ -287,6 +287,7 @@ fn the_chart_takes_the_rows_outside_tolerance_of_the_first_sheet_that_has_them()
     let small = Limits {
         rows_per_sheet: 4,
         chart_points: 40,
+        fill_in_turn: false,
     };
     let plan = super::workbook::chart_plan_for_tests(&lines, &small).unwrap();
     assert_eq!(plan.1, "Reconciliation!$J$3:$J$4");
@@ -1093,4 +1094,82 @@ fn accruals_laid_out_for_lines_that_never_came_are_not_written() {
     }
     assert!(!target.exists());
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 0);
+}
+
+/// The list sheets after the Accruals are filled side by side, yet the
+/// file is the one filling them one after another gives, byte for byte:
+/// the spreadsheet numbers cell styles in order of first use, and here the
+/// formats of later sheets (KWD's three decimals, JPY's none, the text
+/// figure's) are first used deep in earlier sheets and again in the detail.
+#[test]
+fn list_sheets_filled_side_by_side_give_the_file_filled_in_turn() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut r = report();
+    let in_currency = |currency: &'static str, minor_units, expected: &str| ReconciliationLine {
+        account: format!("A-{currency}"),
+        currency: currency.into(),
+        minor_units,
+        expected: dec(expected),
+        ..recon("agrees", Some("0.5"))
+    };
+    r.reconciliation = vec![
+        recon("agrees", Some("0.5")),
+        recon("under-posted", Some("-12.25")),
+        recon("agrees", None),
+        in_currency("KWD", 3, "4.125"),
+        in_currency("JPY", 0, "425"),
+        // Too many digits for a number: written as text and noted.
+        in_currency("USD", 2, "1234567890123456.78"),
+    ];
+    let journal = |currency: &'static str, minor_units, amount: &str| JournalLine {
+        date: day(31),
+        entity: "HM".into(),
+        currency: currency.into(),
+        minor_units,
+        gl_account: "6100".into(),
+        debit: dec(amount),
+        credit: Decimal::ZERO,
+        memo: "interest accrued".into(),
+    };
+    r.journal = vec![
+        journal("USD", 2, "12.50"),
+        journal("JPY", 0, "425"),
+        journal("KWD", 3, "4.125"),
+    ];
+    let mut d = detail(3);
+    d.rows.push(DetailRow {
+        line: 0,
+        account: 0,
+        amount: dec("98765432109876543.21"),
+    });
+    r.journal_detail = Some(d);
+    r.daily = Some(daily(5));
+
+    let mut outcomes = Vec::new();
+    for fill_in_turn in [false, true] {
+        let limits = Limits {
+            rows_per_sheet: 3, // header + 2 rows
+            fill_in_turn,
+            ..Limits::default()
+        };
+        // The same file name both times: the Problems sheet names it.
+        let folder = dir.path().join(format!("in-turn-{fill_in_turn}"));
+        std::fs::create_dir(&folder).unwrap();
+        let target = folder.join("out.xlsx");
+        let outcome = write_report_with(&r, &target, &limits).unwrap();
+        outcomes.push((std::fs::read(&target).unwrap(), outcome));
+    }
+    let (side_by_side, in_turn) = (&outcomes[0], &outcomes[1]);
+    assert_eq!(side_by_side.1.sheets, in_turn.1.sheets);
+    assert_eq!(side_by_side.1.text_figures, in_turn.1.text_figures);
+    assert_eq!(side_by_side.1.text_figure_count, 2);
+    let names: Vec<&str> = side_by_side
+        .1
+        .sheets
+        .iter()
+        .map(|s| s.name.as_str())
+        .collect();
+    assert!(names.contains(&"Reconciliation 3"), "{names:?}");
+    assert!(names.contains(&"Journal detail 4"), "{names:?}");
+    assert!(side_by_side.0 == in_turn.0, "the two files differ");
 }

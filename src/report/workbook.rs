@@ -21,7 +21,7 @@ use rust_xlsxwriter::{
     DocProperties, Format, Note, RowNum, Workbook, Worksheet,
 };
 
-use super::cells::{Cells, TextFigure, TextFigures, EXACT_DIGITS};
+use super::cells::{Cells, FormatOrder, TextFigure, TextFigures, EXACT_DIGITS};
 use super::error::ReportError;
 use super::layout::{
     self, column_width, list_column_width, part_name, place, sheet_ref, Limits, Styles,
@@ -33,6 +33,8 @@ use super::model::{
 };
 use super::output;
 use crate::engine::reconcile::Status;
+
+mod side_by_side;
 use crate::problem::{Position, Problem, Severity};
 
 /// Header labels of the Accruals sheet: the account and its interest, then
@@ -1038,12 +1040,16 @@ fn new_workbook(facts: &RunFacts, target: &Path, dir: &Path) -> Result<Workbook,
 /// The Reconciliation (when there are rows), Accrued check (when there are
 /// rows), Tie-out (when the books have a trial balance), Journal, Journal
 /// detail (when the report holds it) and Daily (when asked for) lists,
-/// after the Accruals; returns how many Reconciliation sheets there are.
+/// after the Accruals, filled side by side ([`side_by_side`]); returns how
+/// many Reconciliation sheets there are.
 fn write_lists(
     wb: &mut Workbook,
     report: &Report,
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
+    let styles = ctx.styles;
+    let per = ctx.limits.data_rows_per_sheet();
+    let mut parts: Vec<side_by_side::Part<'_>> = Vec::new();
     let recon_parts = if report.reconciliation.is_empty() {
         0
     } else {
@@ -1053,29 +1059,88 @@ fn write_lists(
         } else {
             &RECONCILIATION
         };
-        write_list(wb, sheet, &report.reconciliation, ctx)?
+        list_parts(&mut parts, sheet, &report.reconciliation, styles, per)
     };
     if !report.accrued_check.is_empty() {
-        write_list(wb, &ACCRUED_CHECK, &report.accrued_check, ctx)?;
+        list_parts(
+            &mut parts,
+            &ACCRUED_CHECK,
+            &report.accrued_check,
+            styles,
+            per,
+        );
     }
     if let Some(tie_out) = &report.tie_out {
-        write_list(wb, &TIE_OUT, tie_out, ctx)?;
+        list_parts(&mut parts, &TIE_OUT, tie_out, styles, per);
     }
-    write_list(wb, &JOURNAL, &report.journal, ctx)?;
+    list_parts(&mut parts, &JOURNAL, &report.journal, styles, per);
     if let Some(detail) = &report.journal_detail {
-        write_rows(
-            wb,
-            &JOURNAL_DETAIL_SHAPE,
+        add_parts(
+            &mut parts,
+            JOURNAL_DETAIL_SHAPE,
             &detail.rows,
             |s, part| detail_columns(s, detail, part),
-            |c, r| detail_row(c, detail, r),
-            ctx,
-        )?;
+            move |c: &mut Cells<'_>, r: &DetailRow| detail_row(c, detail, r),
+            styles,
+            per,
+        );
     }
     if let Some(daily) = &report.daily {
-        write_list(wb, &DAILY, daily, ctx)?;
+        list_parts(&mut parts, &DAILY, daily, styles, per);
     }
+    side_by_side::write_parts(wb, &parts, ctx)?;
     Ok(recon_parts)
+}
+
+/// Adds the parts of `list` holding `rows` to `parts`; returns how many.
+fn list_parts<'r, T: Sync>(
+    parts: &mut Vec<side_by_side::Part<'r>>,
+    list: &'r ListSheet<T>,
+    rows: &'r [T],
+    styles: &'r Styles,
+    per: usize,
+) -> usize {
+    let shape = Shape {
+        name: list.name,
+        header: list.header,
+        caps: list.caps,
+        notes: list.notes,
+        footer: list.footer,
+    };
+    add_parts(parts, shape, rows, list.columns, list.row, styles, per)
+}
+
+/// Adds to `parts` the sheets of `shape` that `rows` need (at least one),
+/// each with its column formats from `columns` and its rows written by
+/// `row`; returns how many.
+fn add_parts<'r, T, C, R>(
+    parts: &mut Vec<side_by_side::Part<'r>>,
+    shape: Shape<'r>,
+    rows: &'r [T],
+    columns: C,
+    row: R,
+    styles: &'r Styles,
+    per: usize,
+) -> usize
+where
+    T: Sync,
+    C: Fn(&'r Styles, &[T]) -> Vec<Option<&'r Format>>,
+    R: Fn(&mut Cells<'_>, &T) -> Result<(), ReportError> + Sync + Copy + 'r,
+{
+    let mut chunks: Vec<&[T]> = rows.chunks(per.max(1)).collect();
+    if chunks.is_empty() {
+        chunks.push(&[]); // an empty list still gets its sheet and header
+    }
+    let count = chunks.len();
+    for (index, chunk) in chunks.into_iter().enumerate() {
+        parts.push(side_by_side::Part {
+            shape: Shape { ..shape },
+            index,
+            formats: columns(styles, chunk),
+            rows: Box::new(side_by_side::RowsBy { rows: chunk, row }),
+        });
+    }
+    count
 }
 
 /// The Summary, the workbook's first sheet.
@@ -1314,6 +1379,22 @@ fn open_part(
     formats: &[Option<&Format>],
     ctx: &mut Ctx<'_>,
 ) -> Result<OpenPart, ReportError> {
+    open_part_first(wb, list, index, formats, None, ctx)
+}
+
+/// [`open_part`], giving the workbook the styles of `first` (every format
+/// the part's writing will use, in order of first use: see
+/// [`FormatOrder`]) before anything else, so that the part's rows may be
+/// written later, beside another sheet's, and still number their styles
+/// as when written one sheet after another.
+fn open_part_first(
+    wb: &mut Workbook,
+    list: &Shape,
+    index: usize,
+    formats: &[Option<&Format>],
+    first: Option<&FormatOrder>,
+    ctx: &mut Ctx<'_>,
+) -> Result<OpenPart, ReportError> {
     let name = part_name(list.name, index);
     let ws = wb
         .add_worksheet_with_constant_memory()
@@ -1324,6 +1405,12 @@ fn open_part(
     ws.set_freeze_panes(1, 0)
         .map_err(|e| ReportError::sheet(&name, e))?;
     layout::report_page_setup(ws, true, list.footer).map_err(|e| ReportError::sheet(&name, e))?;
+    // A blank cell in each format takes the format's style number in turn;
+    // the header then writes over the cell.
+    for format in first.into_iter().flat_map(FormatOrder::formats) {
+        ws.write_blank(0, 0, format)
+            .map_err(|e| ReportError::sheet(&name, e))?;
+    }
     let mut cells = Cells::new(ws, &name, ctx.styles, &mut ctx.texts);
     for (col, format) in (0..).zip(formats) {
         if let Some(format) = format {
@@ -1380,6 +1467,25 @@ where
         .map_err(|e| ReportError::sheet(name, e))?;
     let mut cells =
         Cells::new(ws, name, ctx.styles, &mut ctx.texts).with_widths(std::mem::take(widths));
+    fill_rows(&mut cells, list, formats, rows, &row, written)?;
+    *widths = cells.into_widths();
+    Ok(())
+}
+
+/// Writes `rows` with `cells` below the `written` rows of its sheet, each
+/// by `row`, counting them in `written`; `formats` are the ones its
+/// columns were given when it opened.
+fn fill_rows<'f, T, R>(
+    cells: &mut Cells<'f>,
+    list: &Shape,
+    formats: &[Option<&'f Format>],
+    rows: &[T],
+    row: &R,
+    written: &mut usize,
+) -> Result<(), ReportError>
+where
+    R: Fn(&mut Cells<'_>, &T) -> Result<(), ReportError>,
+{
     for (col, format) in (0..).zip(formats) {
         if let Some(format) = format {
             cells.carry(col, format);
@@ -1395,18 +1501,18 @@ where
             .unwrap_or(RowNum::MAX)
             .saturating_add(1);
         cells.at(row_number);
-        row(&mut cells, item)?;
+        row(cells, item)?;
         // A row with a wrapped text is as tall as its lines.
         let lines = cells.lines();
-        if lines > 1 {
+        if lines > 1 && !cells.is_recording() {
+            let name = cells.sheet_name().to_string();
             cells
                 .sheet()
                 .set_row_height(row_number, lines.saturating_mul(LINE_HEIGHT))
-                .map_err(|e| ReportError::sheet(name, e))?;
+                .map_err(|e| ReportError::sheet(&name, e))?;
         }
         *written += 1;
     }
-    *widths = cells.into_widths();
     Ok(())
 }
 
