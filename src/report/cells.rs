@@ -100,7 +100,12 @@ impl TextFigures {
 /// `text` as a cell can hold it: unchanged, or cut to [`MAX_CELL_CHARS`]
 /// with an ellipsis as its last character so that the cut shows.
 fn fitted(text: &str) -> Option<String> {
-    // Counting stops one past the limit: a huge text is not walked twice.
+    // A text of at most the limit in bytes has at most as many characters
+    // (the usual case, decided without walking it); else counting stops
+    // one past the limit: a huge text is not walked twice.
+    if text.len() <= MAX_CELL_CHARS {
+        return None;
+    }
     text.chars().nth(MAX_CELL_CHARS)?;
     let mut cut: String = text.chars().take(MAX_CELL_CHARS - 1).collect();
     cut.push('…');
@@ -896,6 +901,20 @@ mod tests {
             posted(dec("-1234567890123456.7"), 2),
             Figure::Text("-1,234,567,890,123,456.70".to_string())
         );
+    }
+
+    #[test]
+    fn a_text_is_cut_only_past_the_cell_limit_in_characters_not_bytes() {
+        // Two bytes a character: twice the limit in bytes, the limit in characters.
+        let at_limit = "é".repeat(MAX_CELL_CHARS);
+        assert_eq!(fitted(&at_limit), None);
+        assert_eq!(fitted(&"a".repeat(MAX_CELL_CHARS)), None);
+        let over = "é".repeat(MAX_CELL_CHARS + 1);
+        let cut = fitted(&over).unwrap();
+        assert_eq!(cut.chars().count(), MAX_CELL_CHARS);
+        assert!(cut.ends_with('…'));
+        let cut = fitted(&"a".repeat(MAX_CELL_CHARS + 1)).unwrap();
+        assert_eq!(cut.chars().count(), MAX_CELL_CHARS);
     }
 
     #[test]
