@@ -3,7 +3,7 @@
 //!
 //! The spreadsheet library numbers the workbook's cell styles in the order
 //! they are first used. So before any row is written, every part of every
-//! list but the last is measured once without writing
+//! list but the last is measured once without writing, side by side
 //! ([`Cells::recording`]): the formats it will use, in order of first use.
 //! Each part then opens in sheet order and takes its formats' numbers
 //! first; only the last part can meet a format not yet numbered, and it
@@ -87,13 +87,16 @@ pub(super) fn write_parts<'r>(
     }
     let styles = ctx.styles;
     let last = parts.len().saturating_sub(1);
+    // Measured side by side too: only the numbering must go in sheet order.
+    // (The first error in sheet order is the one reported, as in turn.)
+    let measured: Vec<Result<Option<FormatOrder>, ReportError>> = parts
+        .par_iter()
+        .enumerate()
+        .map(|(i, part)| (i < last).then(|| formats_of(part, styles)).transpose())
+        .collect();
+    let firsts = measured.into_iter().collect::<Result<Vec<_>, _>>()?;
     let mut open = Vec::with_capacity(parts.len());
-    for (i, part) in parts.iter().enumerate() {
-        let first = if i < last {
-            Some(formats_of(part, styles)?)
-        } else {
-            None
-        };
+    for (part, first) in parts.iter().zip(&firsts) {
         open.push(open_part_first(
             wb,
             &part.shape,
