@@ -18,12 +18,10 @@ use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
 use super::model::{AccountEntry, Book, LeftOut};
-use super::movements::Movements;
 use super::open::load;
 use super::rates::{self, Rates};
-use super::settings::{self, Settings, StatementAmounts, StatementEnd};
+use super::settings::{self, Settings};
 use super::sheet::{Rows, Sheet};
-use super::statements::Statements;
 use super::table::Ctx;
 use super::tax::{self, Taxes};
 use super::{movements, statements, trial_balance};
@@ -185,19 +183,31 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     }
     let mut rejected: BTreeSet<String> = found.rejected;
     let mut entries = found.entries;
-    let (moved, stated) = type_postings(
-        ctx,
-        sheet(SheetKind::Movements),
-        sheet(SheetKind::Statements),
-        &found.known,
-        settings.statement_end,
-        settings.statement_amounts,
-    );
+    // Movements, then Statements: each sheet's text is dropped once it is
+    // typed, so the two texts (the largest after the Accounts') are never
+    // held together beside the typed rows.
+    let moved = sheet(SheetKind::Movements).map(|s| {
+        let mut met = Vec::new();
+        let typed = movements::read(ctx, &s, &found.known, &mut met);
+        (s, typed, met)
+    });
     if let Some(m) = take_typed(moved, &entries, problems, &mut rejected) {
         rejected.extend(m.spoiled);
         book.movements = m.by_account;
         book.accrual.receipts = m.interest;
     }
+    let stated = sheet(SheetKind::Statements).map(|s| {
+        let mut met = Vec::new();
+        let typed = statements::read(
+            ctx,
+            &s,
+            &found.known,
+            settings.statement_end,
+            settings.statement_amounts,
+            &mut met,
+        );
+        (s, typed, met)
+    });
     if let Some(st) = take_typed(stated, &entries, problems, &mut rejected) {
         book.statements = st.rows;
         book.unreadable_statements = st.unreadable;
@@ -302,36 +312,6 @@ fn keep_tables(book: &mut Book, rates: Rates, fixings: FixingsSheet, settings: S
 /// A typed sheet: the sheet, what it gives (`None` when it cannot be read
 /// as a table), and the problems found typing it.
 type Typed<T> = (Sheet, Option<T>, Vec<Problem>);
-
-/// Types the Movements and Statements sheets. They only look up the
-/// accounts, so they are typed side by side; their problems are listed
-/// afterwards in the sequential order.
-fn type_postings(
-    ctx: Ctx<'_>,
-    movements_sheet: Option<Sheet>,
-    statements_sheet: Option<Sheet>,
-    known: &Known,
-    statement_end: StatementEnd,
-    statement_amounts: StatementAmounts,
-) -> (Option<Typed<Movements>>, Option<Typed<Statements>>) {
-    rayon::join(
-        || {
-            movements_sheet.map(|s| {
-                let mut found = Vec::new();
-                let typed = movements::read(ctx, &s, known, &mut found);
-                (s, typed, found)
-            })
-        },
-        || {
-            statements_sheet.map(|s| {
-                let mut found = Vec::new();
-                let typed =
-                    statements::read(ctx, &s, known, statement_end, statement_amounts, &mut found);
-                (s, typed, found)
-            })
-        },
-    )
-}
 
 /// What a typed Movements, Statements or Booked sheet gives, its problems added to
 /// the book's; a sheet that cannot be read as a table keeps every account
