@@ -221,7 +221,10 @@ fn suspense_of<'b>(book: &'b Book, entry: &'b AccountEntry) -> Option<SuspenseIn
 
 /// The statement rows of account `id` in `book`, in sheet order.
 pub fn statements_of<'b>(book: &'b Book, id: &str) -> Vec<&'b StatementRow> {
-    book.statements.iter().filter(|s| s.account == id).collect()
+    book.statements
+        .iter()
+        .filter(|s| &*s.account == id)
+        .collect()
 }
 
 /// How to compute an account.
@@ -755,7 +758,7 @@ fn statement_periods(
             notes.push(Problem {
                 severity: Severity::Warning,
                 position: s.position.to_position(),
-                account: Some(s.account.clone()),
+                account: Some(s.account.to_string()),
                 found: format!(
                     "a statement period {}..{} ending after the cut-off {cutoff}",
                     s.period_start, s.period_end

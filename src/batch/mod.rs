@@ -180,7 +180,7 @@ impl<'b> Rows<'b> {
     fn of(book: &'b Book, entity: &'b str, window_start: NaiveDate, cutoff: NaiveDate) -> Rows<'b> {
         let mut statements: HashMap<&str, Vec<&StatementRow>> = HashMap::new();
         for s in &book.statements {
-            statements.entry(s.account.as_str()).or_default().push(s);
+            statements.entry(&*s.account).or_default().push(s);
         }
         let mut unreadable: HashMap<&str, Vec<&UnreadableStatement>> = HashMap::new();
         for u in &book.unreadable_statements {
@@ -271,35 +271,55 @@ impl Released {
     fn take_from(book: &mut Book, shard: Option<(u32, u32)>) -> Released {
         let mut rows = std::mem::take(&mut book.statements);
         rows.retain(|s| in_shard(&s.account, shard));
-        // Each row's account's place in the book, rows of no account last.
-        let mut places: Vec<(&str, u32)> = book
-            .accounts
-            .iter()
-            .enumerate()
-            .map(|(i, a)| (a.terms.id.as_str(), u32::try_from(i).unwrap_or(u32::MAX)))
-            .collect();
-        places.sort_unstable();
-        let place = |id: &str| {
-            places
-                .binary_search_by(|(k, _)| (*k).cmp(id))
-                .ok()
-                .and_then(|i| places.get(i))
-                .map_or(u32::MAX, |(_, p)| *p)
-        };
-        // Stable: each account's rows stay in sheet order.
-        rows.sort_by_cached_key(|s| place(&s.account));
+        if !in_book_order(&book.accounts, &rows) {
+            by_book_order(&book.accounts, &mut rows);
+        }
         rows.reverse();
         Released {
             movements: std::mem::take(&mut book.movements),
             statements: rows,
         }
     }
+}
 
+/// Whether statement `rows` come account by account in the order of
+/// `accounts` (each account's rows together), as most books give them.
+fn in_book_order(accounts: &[AccountEntry], rows: &[StatementRow]) -> bool {
+    let mut rest = rows;
+    for a in accounts {
+        while rest.first().is_some_and(|s| *s.account == *a.terms.id) {
+            rest = rest.get(1..).unwrap_or_default();
+        }
+    }
+    rest.is_empty()
+}
+
+/// Sorts statement `rows` into the order of their accounts in `accounts`,
+/// each account's rows in sheet order, rows of no account last.
+fn by_book_order(accounts: &[AccountEntry], rows: &mut [StatementRow]) {
+    let mut places: Vec<(&str, u32)> = accounts
+        .iter()
+        .enumerate()
+        .map(|(i, a)| (a.terms.id.as_str(), u32::try_from(i).unwrap_or(u32::MAX)))
+        .collect();
+    places.sort_unstable();
+    let place = |id: &str| {
+        places
+            .binary_search_by(|(k, _)| (*k).cmp(id))
+            .ok()
+            .and_then(|i| places.get(i))
+            .map_or(u32::MAX, |(_, p)| *p)
+    };
+    // Stable: each account's rows stay in sheet order.
+    rows.sort_by_cached_key(|s| place(&s.account));
+}
+
+impl Released {
     /// Account `id`'s rows, which the book no longer holds; accounts are
     /// taken in book order.
     fn take(&mut self, id: &str) -> Taken {
         let mut statements = Vec::new();
-        while self.statements.last().is_some_and(|s| s.account == id) {
+        while self.statements.last().is_some_and(|s| &*s.account == id) {
             statements.extend(self.statements.pop());
         }
         Taken {

@@ -276,7 +276,7 @@ fn book_with_statements(count: usize) -> Book {
         .step_by(3)
         .zip(["1.00", "99999999.00"].iter().cycle())
         .map(|(a, posted)| StatementRow {
-            account: a.terms.id.clone(),
+            account: a.terms.id.clone().into(),
             period_start: d("2026-11-01"),
             period_end: d("2026-11-30"),
             posted: n(posted),

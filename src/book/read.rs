@@ -238,12 +238,11 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     book.left_out = left_out(&rejected, &found.known, problems);
     let kept: HashSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
     book.movements.retain(|id, _| kept.contains(id.as_str()));
-    book.statements
-        .retain(|s| kept.contains(s.account.as_str()));
+    book.statements.retain(|s| kept.contains(&*s.account));
     book.booked.retain(|b| kept.contains(b.account.as_str()));
     book.accrual.retain(|id| kept.contains(id));
     book.unreadable_statements
-        .retain(|s| kept.contains(s.account.as_str()));
+        .retain(|s| kept.contains(&*s.account));
     fixing_holiday_warnings(ctx, &entries, &rates, &fixings, problems);
     book.accounts = entries;
     book.problems.append(&mut changed);
@@ -499,7 +498,7 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
     for s in book
         .statements
         .iter()
-        .filter(|s| !kept.contains_key(s.account.as_str()))
+        .filter(|s| !kept.contains_key(&*s.account))
     {
         out.push(format!(
             "a statement row of an account left out: {}",
@@ -550,9 +549,15 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
 /// ```
 pub fn check_unique_ids(books: &mut [Book]) {
     // The first holder of each id, by (book, account) index: the ids are
-    // borrowed, never copied.
-    let mut seen: HashMap<&str, (usize, usize)> = HashMap::new();
+    // borrowed, never copied. A book holds an id once (its reader keeps the
+    // first row of an id), so the last book's ids are only looked up: a run
+    // of one book builds no index.
+    let held = books
+        .split_last()
+        .map_or(0, |(_, rest)| rest.iter().map(|b| b.accounts.len()).sum());
+    let mut seen: HashMap<&str, (usize, usize)> = HashMap::with_capacity(held);
     let mut found: Vec<(usize, Problem)> = Vec::new();
+    let last = books.len().saturating_sub(1);
     for (b, book) in books.iter().enumerate() {
         for (a, entry) in book.accounts.iter().enumerate() {
             let id = entry.terms.id.as_str();
@@ -573,9 +578,10 @@ pub fn check_unique_ids(books: &mut [Book]) {
                         follows: None,
                     }));
                 }
-                None => {
+                None if b < last => {
                     seen.insert(id, (b, a));
                 }
+                None => {}
             }
         }
     }
@@ -599,10 +605,10 @@ pub fn check_unique_ids(books: &mut [Book]) {
         }
         book.accounts.retain(|e| !dropped.contains(&e.terms.id));
         book.movements.retain(|id, _| !dropped.contains(id));
-        book.statements.retain(|s| !dropped.contains(&s.account));
+        book.statements.retain(|s| !dropped.contains(&*s.account));
         book.booked.retain(|b| !dropped.contains(&b.account));
         book.accrual.retain(|id| !dropped.contains(id));
         book.unreadable_statements
-            .retain(|s| !dropped.contains(&s.account));
+            .retain(|s| !dropped.contains(&*s.account));
     }
 }

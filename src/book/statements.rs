@@ -67,7 +67,10 @@ pub(crate) fn read(
         ));
         return None;
     }
-    let mut out = Statements::default();
+    let mut out = Statements {
+        rows: Vec::with_capacity(sheet.rows_hint()),
+        ..Statements::default()
+    };
     // A ragged row naming an account is not read: the error on it (which
     // names the account) stands for the row.
     out.unreadable.extend(
@@ -194,11 +197,11 @@ pub(crate) fn read(
         }
         let position = f.row_position(ACCOUNT, &row_at);
         out.rows.push(StatementRow {
-            account: id,
+            account: id.into_boxed_str(),
             period_start: start,
             period_end,
             posted,
-            reference,
+            reference: reference.map(String::into_boxed_str),
             posting_date,
             position,
             tax_withheld,
