@@ -684,10 +684,10 @@ fn assumed_back_value(
     owed: Decimal,
     eve: NaiveDate,
 ) -> Problem {
-    let reference = m
-        .reference
-        .clone()
-        .unwrap_or_else(|| format!("{} valued {}", m.amount, m.value_date));
+    let reference = m.reference.as_deref().map_or_else(
+        || format!("{} valued {}", m.amount, m.value_date),
+        str::to_string,
+    );
     let booked = m.booking_date.unwrap_or(m.value_date);
     Problem {
         severity: Severity::Warning,

@@ -78,7 +78,7 @@ pub(crate) fn read(
         let value_date = f.required_date(VALUE_DATE);
         let amount = f.required_decimal(AMOUNT);
         let booking_date = f.date(BOOKING_DATE);
-        let reference = f.text(REFERENCE);
+        let reference = f.text(REFERENCE).map(String::into_boxed_str);
         let applies = f
             .named(APPLIES_TO, applies_to)
             .unwrap_or(AppliesTo::Principal);

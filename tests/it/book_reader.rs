@@ -1281,7 +1281,7 @@ fn movements_keep_their_order_within_an_account_when_rows_interleave() {
     let refs = |id: &str| -> Vec<String> {
         book.movements[id]
             .iter()
-            .map(|m| m.reference.clone().unwrap())
+            .map(|m| m.reference.as_deref().unwrap().to_string())
             .collect()
     };
     assert_eq!(refs("IL-A"), ["A-1", "A-2", "A-3", "A-4"]);
