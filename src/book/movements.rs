@@ -187,7 +187,9 @@ fn join(by_account: &mut BTreeMap<String, Vec<Movement>>, id: String, run: &mut 
     match by_account.get_mut(&id) {
         Some(list) => list.append(run),
         None => {
-            by_account.insert(id, run.drain(..).collect());
+            let mut list = Vec::with_capacity(run.len());
+            list.append(run);
+            by_account.insert(id, list);
         }
     }
 }
