@@ -133,7 +133,7 @@ fn batch(c: &Case) -> Batch {
                 value_date: day("2026-10-12"),
                 amount: Decimal::new(cents / 4, 2),
                 booking_date: None,
-                reference: Some(format!("DEP-{i}")),
+                reference: Some(format!("DEP-{i}").into()),
             }]
         } else {
             Vec::new()

@@ -221,7 +221,10 @@ fn suspense_of<'b>(book: &'b Book, entry: &'b AccountEntry) -> Option<SuspenseIn
 
 /// The statement rows of account `id` in `book`, in sheet order.
 pub fn statements_of<'b>(book: &'b Book, id: &str) -> Vec<&'b StatementRow> {
-    book.statements.iter().filter(|s| s.account == id).collect()
+    book.statements
+        .iter()
+        .filter(|s| &*s.account == id)
+        .collect()
 }
 
 /// How to compute an account.
@@ -681,10 +684,10 @@ fn assumed_back_value(
     owed: Decimal,
     eve: NaiveDate,
 ) -> Problem {
-    let reference = m
-        .reference
-        .clone()
-        .unwrap_or_else(|| format!("{} valued {}", m.amount, m.value_date));
+    let reference = m.reference.as_deref().map_or_else(
+        || format!("{} valued {}", m.amount, m.value_date),
+        str::to_string,
+    );
     let booked = m.booking_date.unwrap_or(m.value_date);
     Problem {
         severity: Severity::Warning,
@@ -755,7 +758,7 @@ fn statement_periods(
             notes.push(Problem {
                 severity: Severity::Warning,
                 position: s.position.to_position(),
-                account: Some(s.account.clone()),
+                account: Some(s.account.to_string()),
                 found: format!(
                     "a statement period {}..{} ending after the cut-off {cutoff}",
                     s.period_start, s.period_end

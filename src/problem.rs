@@ -139,21 +139,41 @@ impl fmt::Display for Position {
 /// assert_eq!(at.to_string(), "b.xlsx Accounts!A3");
 /// assert_eq!(RowPosition::new(sheet, 6, None).to_position().cell, "7:7");
 /// ```
-#[derive(Debug, Clone, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, PartialEq, Eq)]
 pub struct RowPosition {
     /// The book, sheet and column (the cell empty), shared by the sheet's rows.
     sheet: Arc<Position>,
     /// The 0-based row.
     row: u32,
-    /// The 0-based column; `None`: the whole row.
-    col: Option<u32>,
+    /// The 0-based column; [`WHOLE_ROW`]: the whole row (a number, not an
+    /// `Option`, keeps a row's position at 16 bytes).
+    col: u32,
+}
+
+/// The column of a [`RowPosition`] that stands for a whole row: no sheet
+/// has that many columns.
+const WHOLE_ROW: u32 = u32::MAX;
+
+impl Default for RowPosition {
+    fn default() -> RowPosition {
+        RowPosition::new(Arc::default(), 0, None)
+    }
 }
 
 impl RowPosition {
     /// Row `row` (0-based) at column `col` (0-based; `None`: the whole
     /// row) of `sheet`, a position whose cell is empty.
     pub fn new(sheet: Arc<Position>, row: u32, col: Option<u32>) -> RowPosition {
-        RowPosition { sheet, row, col }
+        RowPosition {
+            sheet,
+            row,
+            col: col.unwrap_or(WHOLE_ROW),
+        }
+    }
+
+    /// The 0-based column, `None` for a whole row.
+    fn column(&self) -> Option<u32> {
+        (self.col != WHOLE_ROW).then_some(self.col)
     }
 
     /// A position in A1 notation (`F3`, or `7:7` for a whole row) held
@@ -172,11 +192,7 @@ impl RowPosition {
             Some(c) => Some(u32::try_from(c).ok()?),
             None => None,
         };
-        let at = RowPosition {
-            sheet: Arc::default(),
-            row,
-            col,
-        };
+        let at = RowPosition::new(Arc::default(), row, col);
         if at.to_position().cell != position.cell {
             return None;
         }
@@ -192,7 +208,7 @@ impl RowPosition {
     /// The position it stands for, its cell in A1 notation.
     pub fn to_position(&self) -> Position {
         Position {
-            cell: match self.col {
+            cell: match self.column() {
                 Some(c) => a1(self.row, c),
                 None => a1_row(self.row),
             },

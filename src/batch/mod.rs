@@ -16,7 +16,7 @@ pub mod split;
 pub mod tie_out;
 pub mod totals;
 
-use std::collections::HashMap;
+use std::collections::{BTreeMap, HashMap};
 
 use chrono::NaiveDate;
 use rayon::prelude::*;
@@ -30,7 +30,7 @@ use crate::engine::floating::FixingFallback;
 use crate::engine::ledger::{LedgerPosting, SettlementLines};
 use crate::engine::reconcile::{Reconciled, Status, Tolerance};
 use crate::engine::suspense::Suspense;
-use crate::engine::PostingRow;
+use crate::engine::{Movement, PostingRow};
 use crate::pipeline::{run_account, AccountRun, BookAccount, Options};
 use crate::problem::{report_order, Position, Problem};
 use crate::report::model::{
@@ -180,7 +180,7 @@ impl<'b> Rows<'b> {
     fn of(book: &'b Book, entity: &'b str, window_start: NaiveDate, cutoff: NaiveDate) -> Rows<'b> {
         let mut statements: HashMap<&str, Vec<&StatementRow>> = HashMap::new();
         for s in &book.statements {
-            statements.entry(s.account.as_str()).or_default().push(s);
+            statements.entry(&*s.account).or_default().push(s);
         }
         let mut unreadable: HashMap<&str, Vec<&UnreadableStatement>> = HashMap::new();
         for u in &book.unreadable_statements {
@@ -234,6 +234,122 @@ pub fn run_books_in_parts(
     tick: &(dyn Fn() + Sync),
     part: &mut dyn FnMut(Vec<AccrualLine>),
 ) -> BatchResult {
+    in_parts(books, Vec::new(), settings, tick, part)
+}
+
+/// [`run_books_in_parts`], taking each book's movements and statement rows
+/// out of it and dropping an account's once its part is added up, so that
+/// the rows already accrued no longer take room beside the batch's growing
+/// results. The books are left without movements and statement rows; all
+/// else they hold (accounts, problems, the other sheets) stays. The result is
+/// the same as [`run_books_in_parts`] gives.
+pub fn run_books_releasing(
+    books: &mut [Book],
+    settings: &BatchSettings,
+    tick: &(dyn Fn() + Sync),
+    part: &mut dyn FnMut(Vec<AccrualLine>),
+) -> BatchResult {
+    let released: Vec<Released> = books
+        .iter_mut()
+        .map(|b| Released::take_from(b, settings.shard))
+        .collect();
+    in_parts(books, released, settings, tick, part)
+}
+
+/// A book's movements and statement rows, taken out of the book for
+/// [`run_books_releasing`]: each account's are taken in turn, in book order,
+/// and dropped once its part of the batch is added up.
+struct Released {
+    movements: BTreeMap<String, Vec<Movement>>,
+    /// The statement rows of the accounts to accrue, last account first
+    /// (each account's rows last row first): the next account's rows are at
+    /// the end.
+    statements: Vec<StatementRow>,
+}
+
+impl Released {
+    fn take_from(book: &mut Book, shard: Option<(u32, u32)>) -> Released {
+        let mut rows = std::mem::take(&mut book.statements);
+        rows.retain(|s| in_shard(&s.account, shard));
+        if !in_book_order(&book.accounts, &rows) {
+            by_book_order(&book.accounts, &mut rows);
+        }
+        rows.reverse();
+        Released {
+            movements: std::mem::take(&mut book.movements),
+            statements: rows,
+        }
+    }
+}
+
+/// Whether statement `rows` come account by account in the order of
+/// `accounts` (each account's rows together), as most books give them.
+fn in_book_order(accounts: &[AccountEntry], rows: &[StatementRow]) -> bool {
+    let mut rest = rows;
+    for a in accounts {
+        while rest.first().is_some_and(|s| *s.account == *a.terms.id) {
+            rest = rest.get(1..).unwrap_or_default();
+        }
+    }
+    rest.is_empty()
+}
+
+/// Sorts statement `rows` into the order of their accounts in `accounts`,
+/// each account's rows in sheet order, rows of no account last.
+fn by_book_order(accounts: &[AccountEntry], rows: &mut [StatementRow]) {
+    let mut places: Vec<(&str, u32)> = accounts
+        .iter()
+        .enumerate()
+        .map(|(i, a)| (a.terms.id.as_str(), u32::try_from(i).unwrap_or(u32::MAX)))
+        .collect();
+    places.sort_unstable();
+    let place = |id: &str| {
+        places
+            .binary_search_by(|(k, _)| (*k).cmp(id))
+            .ok()
+            .and_then(|i| places.get(i))
+            .map_or(u32::MAX, |(_, p)| *p)
+    };
+    // Stable: each account's rows stay in sheet order.
+    rows.sort_by_cached_key(|s| place(&s.account));
+}
+
+impl Released {
+    /// Account `id`'s rows, which the book no longer holds; accounts are
+    /// taken in book order.
+    fn take(&mut self, id: &str) -> Taken {
+        let mut statements = Vec::new();
+        while self.statements.last().is_some_and(|s| &*s.account == id) {
+            statements.extend(self.statements.pop());
+        }
+        Taken {
+            movements: self.movements.remove(id).unwrap_or_default(),
+            statements,
+        }
+    }
+
+    /// Gives back the room of the rows taken so far, once they are most of it.
+    fn shrink(&mut self) {
+        let rows = &mut self.statements;
+        if rows.capacity() > 4096 && rows.len() < rows.capacity() / 2 {
+            rows.shrink_to_fit();
+        }
+    }
+}
+
+/// One account's movements and statement rows, taken out of its book.
+struct Taken {
+    movements: Vec<Movement>,
+    statements: Vec<StatementRow>,
+}
+
+fn in_parts(
+    books: &[Book],
+    mut released: Vec<Released>,
+    settings: &BatchSettings,
+    tick: &(dyn Fn() + Sync),
+    part: &mut dyn FnMut(Vec<AccrualLine>),
+) -> BatchResult {
     let options = Options {
         window_start: settings.window_start,
         cutoff: settings.cutoff,
@@ -263,7 +379,13 @@ pub fn run_books_in_parts(
     // parallel, then added to the sums and its lines handed on, so that
     // only one part's outcomes (day rows, postings, notes) are held at a time.
     for chunk in work.chunks(PART) {
-        let outcomes = accrue_part(chunk, &options, life_shown, tick);
+        let taken: Vec<Option<Taken>> = chunk
+            .iter()
+            .map(|&(bi, _, _, entry)| released.get_mut(bi).map(|r| r.take(&entry.terms.id)))
+            .collect();
+        released.iter_mut().for_each(Released::shrink);
+        let outcomes = accrue_part(chunk, &taken, &options, life_shown, tick);
+        drop(taken);
         let mut lines = Vec::with_capacity(chunk.len());
         for (&(_, _, _, entry), outcome) in chunk.iter().zip(outcomes) {
             match outcome {
@@ -385,14 +507,17 @@ fn work_in_book_order<'b>(
 /// One part's accounts accrued in parallel; outcomes in the part's order.
 fn accrue_part(
     part: &[Work<'_>],
+    taken: &[Option<Taken>],
     options: &Options,
     life_shown: bool,
     tick: &(dyn Fn() + Sync),
 ) -> Vec<Result<Outcome, Box<Problem>>> {
     part.par_iter()
         .with_min_len(64)
-        .map(|&(_, book, rows, entry)| {
-            let r = accrue_one(book, rows, entry, options, life_shown);
+        .enumerate()
+        .map(|(i, &(_, book, rows, entry))| {
+            let taken = taken.get(i).and_then(Option::as_ref);
+            let r = accrue_one(book, rows, entry, taken, options, life_shown);
             tick();
             r
         })
@@ -551,13 +676,25 @@ fn accrue_one(
     book: &Book,
     rows: &Rows,
     entry: &AccountEntry,
+    taken: Option<&Taken>,
     options: &Options,
     life_shown: bool,
 ) -> Result<Outcome, Box<Problem>> {
     let id = entry.terms.id.as_str();
-    let statements = rows.statements.get(id).map_or(&[][..], Vec::as_slice);
+    let own: Vec<&StatementRow>;
+    let statements = match taken {
+        Some(t) => {
+            own = t.statements.iter().collect();
+            &own[..]
+        }
+        None => rows.statements.get(id).map_or(&[][..], Vec::as_slice),
+    };
     let unreadable = rows.unreadable.get(id).map_or(&[][..], Vec::as_slice);
-    let account = BookAccount::from_book(book, entry, statements)
+    let mut account = BookAccount::from_book(book, entry, statements);
+    if let Some(t) = taken {
+        account.movements = &t.movements;
+    }
+    let account = account
         .with_booked_opening(rows.booked_opening.get(id).copied())
         .with_booked_close(rows.booked_close.get(id).copied())
         .with_unreadable(unreadable);

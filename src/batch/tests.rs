@@ -276,7 +276,7 @@ fn book_with_statements(count: usize) -> Book {
         .step_by(3)
         .zip(["1.00", "99999999.00"].iter().cycle())
         .map(|(a, posted)| StatementRow {
-            account: a.terms.id.clone(),
+            account: a.terms.id.clone().into(),
             period_start: d("2026-11-01"),
             period_end: d("2026-11-30"),
             posted: n(posted),
@@ -810,4 +810,50 @@ fn lines_handed_on_part_by_part_are_the_whole_run_in_book_order() {
     assert_eq!(parted.accounts_computed, PART + 4);
     let shapes: Vec<LineShape> = line_shapes(&books, &settings()).collect();
     assert_eq!(shapes, lines.iter().map(LineShape::of).collect::<Vec<_>>());
+}
+
+/// The batch that drops what it has accrued gives what the batch that keeps
+/// the books gives, whole or by shard, with statement rows out of the
+/// accounts' order (each account's rows in their sheet order) and in it; the
+/// books are left without movements and statement rows.
+#[test]
+fn releasing_the_accrued_rows_gives_the_same_batch() {
+    let mut b = book_with_statements(PART + 40);
+    let october: Vec<StatementRow> = b
+        .statements
+        .iter()
+        .step_by(2)
+        .map(|s| StatementRow {
+            period_start: d("2026-10-01"),
+            period_end: d("2026-10-31"),
+            ..s.clone()
+        })
+        .collect();
+    b.statements.extend(october);
+    assert!(!b.movements.is_empty());
+    let shuffled = {
+        let mut s = b.clone();
+        s.statements.reverse();
+        s
+    };
+    for books in [[b], [shuffled]] {
+        for shard in [None, Some((1, 2)), Some((2, 2))] {
+            let s = BatchSettings {
+                shard,
+                ..settings()
+            };
+            let kept = run_books(&books, &s, &|| {});
+            assert!(!kept.reconciliation.is_empty());
+            let mut taken = books.clone();
+            let mut lines: Vec<AccrualLine> = Vec::new();
+            let released = run_books_releasing(&mut taken, &s, &|| {}, &mut |p| lines.extend(p));
+            assert_eq!(lines, kept.accruals);
+            assert_eq!(released.reconciliation, kept.reconciliation);
+            assert_eq!(released.journal, kept.journal);
+            assert_eq!(released.totals, kept.totals);
+            assert_eq!(released.accounts_computed, kept.accounts_computed);
+            assert!(taken[0].statements.is_empty() && taken[0].movements.is_empty());
+            assert_eq!(taken[0].accounts.len(), books[0].accounts.len());
+        }
+    }
 }

@@ -109,13 +109,21 @@ pub(crate) struct Life {
 /// dates, for the rows of other sheets.
 #[derive(Debug, Default)]
 pub(crate) struct Known {
-    by_id: HashMap<String, Life>,
+    by_id: HashMap<Box<str>, Life>,
     /// Ids by folded id, to suggest the id a row probably meant: made the
     /// first time a row names an unknown id (a good book never needs it).
     folded: OnceLock<HashMap<String, String>>,
 }
 
 impl Known {
+    /// Room for `ids` ids.
+    fn with_capacity(ids: usize) -> Known {
+        Known {
+            by_id: HashMap::with_capacity(ids),
+            ..Known::default()
+        }
+    }
+
     fn insert(
         &mut self,
         id: String,
@@ -126,7 +134,7 @@ impl Known {
     ) {
         let seq = u32::try_from(self.by_id.len()).unwrap_or(u32::MAX);
         self.by_id.insert(
-            id,
+            id.into_boxed_str(),
             Life {
                 open,
                 maturity,
@@ -156,7 +164,7 @@ impl Known {
             for (id, life) in &self.by_id {
                 let slot = first.entry(fold(id)).or_insert((life.seq, id));
                 if life.seq < slot.0 {
-                    *slot = (life.seq, id);
+                    *slot = (life.seq, &**id);
                 }
             }
             first
@@ -230,7 +238,12 @@ pub(crate) fn read(
     problems: &mut Vec<Problem>,
 ) -> Option<Accounts> {
     let table = Table::open(&ctx, sheet, ACCOUNTS.columns, problems)?;
-    let mut out = Accounts::default();
+    let rows = sheet.rows_hint();
+    let mut out = Accounts {
+        entries: Vec::with_capacity(rows),
+        known: Known::with_capacity(rows),
+        ..Accounts::default()
+    };
     let weekends = Arc::new(Calendar::weekends_only());
     let at = table.column_position(&ctx, ACCOUNT);
     // Rows are typed in blocks, each block's rows side by side (a row's
@@ -362,7 +375,7 @@ fn take_row(
         rec.row,
         entry.as_ref().map(|e| e.terms.side),
     );
-    if let (Some(e), Some(life)) = (&entry, out.known.by_id.get_mut(&id)) {
+    if let (Some(e), Some(life)) = (&entry, out.known.by_id.get_mut(id.as_str())) {
         life.close = e.terms.events.close_date;
         life.penalised = e.terms.events.break_penalty != crate::engine::events::BreakPenalty::None;
     }

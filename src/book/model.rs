@@ -86,7 +86,7 @@ impl AccrualRows {
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct StatementRow {
     /// The account id.
-    pub account: String,
+    pub account: Box<str>,
     /// First day of the period (inclusive).
     pub period_start: NaiveDate,
     /// Last day of the period (inclusive, after any `statement_end` exclusive setting is applied).
@@ -94,7 +94,7 @@ pub struct StatementRow {
     /// Interest actually posted.
     pub posted: Decimal,
     /// The statement's reference.
-    pub reference: Option<String>,
+    pub reference: Option<Box<str>>,
     /// The day the posting was booked to the customer's account, if given
     /// (a row is known to a run as at A when this is on or before A).
     pub posting_date: Option<NaiveDate>,

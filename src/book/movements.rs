@@ -67,7 +67,9 @@ pub(crate) fn read(
     out.spoiled.extend(table.skipped_accounts().iter().cloned());
     // Rows usually come grouped by account: a run of rows of one account is
     // gathered here and joins the map once, in the rows' order.
-    let mut run: Option<(String, Vec<Movement>)> = None;
+    // The account of the current run of rows, and its movements so far.
+    let mut current: Option<String> = None;
+    let mut run: Vec<Movement> = Vec::new();
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
@@ -76,7 +78,7 @@ pub(crate) fn read(
         let value_date = f.required_date(VALUE_DATE);
         let amount = f.required_decimal(AMOUNT);
         let booking_date = f.date(BOOKING_DATE);
-        let reference = f.text(REFERENCE);
+        let reference = f.text(REFERENCE).map(String::into_boxed_str);
         let applies = f
             .named(APPLIES_TO, applies_to)
             .unwrap_or(AppliesTo::Principal);
@@ -161,21 +163,33 @@ pub(crate) fn read(
             booking_date,
             reference,
         };
-        match &mut run {
-            Some((current, list)) if *current == id => list.push(movement),
-            _ => {
-                if let Some((done, list)) = run.replace((id, vec![movement])) {
-                    out.by_account.entry(done).or_default().extend(list);
-                }
+        if current.as_deref() != Some(id.as_str()) {
+            if let Some(done) = current.replace(id) {
+                join(&mut out.by_account, done, &mut run);
             }
         }
+        run.push(movement);
     }
-    if let Some((done, list)) = run {
-        out.by_account.entry(done).or_default().extend(list);
+    if let Some(done) = current {
+        join(&mut out.by_account, done, &mut run);
     }
     // Most accounts have a few movements: no room is kept for more.
     for list in out.by_account.values_mut() {
         list.shrink_to_fit();
     }
     Some(out)
+}
+
+/// Adds a run of account `id`'s movements, emptying `run`. An account's first
+/// run takes room for exactly its movements (most accounts' rows come in one
+/// run), rather than what a growing list happened to reach.
+fn join(by_account: &mut BTreeMap<String, Vec<Movement>>, id: String, run: &mut Vec<Movement>) {
+    match by_account.get_mut(&id) {
+        Some(list) => list.append(run),
+        None => {
+            let mut list = Vec::with_capacity(run.len());
+            list.append(run);
+            by_account.insert(id, list);
+        }
+    }
 }

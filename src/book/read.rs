@@ -18,12 +18,10 @@ use super::cell::NumberStyle;
 use super::fixings::{self, FixingsSheet};
 use super::holidays::{self, Calendars};
 use super::model::{AccountEntry, Book, LeftOut};
-use super::movements::Movements;
 use super::open::load;
 use super::rates::{self, Rates};
-use super::settings::{self, Settings, StatementAmounts, StatementEnd};
+use super::settings::{self, Settings};
 use super::sheet::{Rows, Sheet};
-use super::statements::Statements;
 use super::table::Ctx;
 use super::tax::{self, Taxes};
 use super::{movements, statements, trial_balance};
@@ -185,19 +183,31 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     }
     let mut rejected: BTreeSet<String> = found.rejected;
     let mut entries = found.entries;
-    let (moved, stated) = type_postings(
-        ctx,
-        sheet(SheetKind::Movements),
-        sheet(SheetKind::Statements),
-        &found.known,
-        settings.statement_end,
-        settings.statement_amounts,
-    );
+    // Movements, then Statements: each sheet's text is dropped once it is
+    // typed, so the two texts (the largest after the Accounts') are never
+    // held together beside the typed rows.
+    let moved = sheet(SheetKind::Movements).map(|s| {
+        let mut met = Vec::new();
+        let typed = movements::read(ctx, &s, &found.known, &mut met);
+        (s, typed, met)
+    });
     if let Some(m) = take_typed(moved, &entries, problems, &mut rejected) {
         rejected.extend(m.spoiled);
         book.movements = m.by_account;
         book.accrual.receipts = m.interest;
     }
+    let stated = sheet(SheetKind::Statements).map(|s| {
+        let mut met = Vec::new();
+        let typed = statements::read(
+            ctx,
+            &s,
+            &found.known,
+            settings.statement_end,
+            settings.statement_amounts,
+            &mut met,
+        );
+        (s, typed, met)
+    });
     if let Some(st) = take_typed(stated, &entries, problems, &mut rejected) {
         book.statements = st.rows;
         book.unreadable_statements = st.unreadable;
@@ -228,12 +238,11 @@ fn read_sheets(path: &Path, options: &ReadOptions) -> Book {
     book.left_out = left_out(&rejected, &found.known, problems);
     let kept: HashSet<&str> = entries.iter().map(|e| e.terms.id.as_str()).collect();
     book.movements.retain(|id, _| kept.contains(id.as_str()));
-    book.statements
-        .retain(|s| kept.contains(s.account.as_str()));
+    book.statements.retain(|s| kept.contains(&*s.account));
     book.booked.retain(|b| kept.contains(b.account.as_str()));
     book.accrual.retain(|id| kept.contains(id));
     book.unreadable_statements
-        .retain(|s| kept.contains(s.account.as_str()));
+        .retain(|s| kept.contains(&*s.account));
     fixing_holiday_warnings(ctx, &entries, &rates, &fixings, problems);
     book.accounts = entries;
     book.problems.append(&mut changed);
@@ -302,36 +311,6 @@ fn keep_tables(book: &mut Book, rates: Rates, fixings: FixingsSheet, settings: S
 /// A typed sheet: the sheet, what it gives (`None` when it cannot be read
 /// as a table), and the problems found typing it.
 type Typed<T> = (Sheet, Option<T>, Vec<Problem>);
-
-/// Types the Movements and Statements sheets. They only look up the
-/// accounts, so they are typed side by side; their problems are listed
-/// afterwards in the sequential order.
-fn type_postings(
-    ctx: Ctx<'_>,
-    movements_sheet: Option<Sheet>,
-    statements_sheet: Option<Sheet>,
-    known: &Known,
-    statement_end: StatementEnd,
-    statement_amounts: StatementAmounts,
-) -> (Option<Typed<Movements>>, Option<Typed<Statements>>) {
-    rayon::join(
-        || {
-            movements_sheet.map(|s| {
-                let mut found = Vec::new();
-                let typed = movements::read(ctx, &s, known, &mut found);
-                (s, typed, found)
-            })
-        },
-        || {
-            statements_sheet.map(|s| {
-                let mut found = Vec::new();
-                let typed =
-                    statements::read(ctx, &s, known, statement_end, statement_amounts, &mut found);
-                (s, typed, found)
-            })
-        },
-    )
-}
 
 /// What a typed Movements, Statements or Booked sheet gives, its problems added to
 /// the book's; a sheet that cannot be read as a table keeps every account
@@ -519,7 +498,7 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
     for s in book
         .statements
         .iter()
-        .filter(|s| !kept.contains_key(s.account.as_str()))
+        .filter(|s| !kept.contains_key(&*s.account))
     {
         out.push(format!(
             "a statement row of an account left out: {}",
@@ -570,9 +549,15 @@ pub fn contract_violations(book: &Book) -> Vec<String> {
 /// ```
 pub fn check_unique_ids(books: &mut [Book]) {
     // The first holder of each id, by (book, account) index: the ids are
-    // borrowed, never copied.
-    let mut seen: HashMap<&str, (usize, usize)> = HashMap::new();
+    // borrowed, never copied. A book holds an id once (its reader keeps the
+    // first row of an id), so the last book's ids are only looked up: a run
+    // of one book builds no index.
+    let held = books
+        .split_last()
+        .map_or(0, |(_, rest)| rest.iter().map(|b| b.accounts.len()).sum());
+    let mut seen: HashMap<&str, (usize, usize)> = HashMap::with_capacity(held);
     let mut found: Vec<(usize, Problem)> = Vec::new();
+    let last = books.len().saturating_sub(1);
     for (b, book) in books.iter().enumerate() {
         for (a, entry) in book.accounts.iter().enumerate() {
             let id = entry.terms.id.as_str();
@@ -593,9 +578,10 @@ pub fn check_unique_ids(books: &mut [Book]) {
                         follows: None,
                     }));
                 }
-                None => {
+                None if b < last => {
                     seen.insert(id, (b, a));
                 }
+                None => {}
             }
         }
     }
@@ -619,10 +605,10 @@ pub fn check_unique_ids(books: &mut [Book]) {
         }
         book.accounts.retain(|e| !dropped.contains(&e.terms.id));
         book.movements.retain(|id, _| !dropped.contains(id));
-        book.statements.retain(|s| !dropped.contains(&s.account));
+        book.statements.retain(|s| !dropped.contains(&*s.account));
         book.booked.retain(|b| !dropped.contains(&b.account));
         book.accrual.retain(|id| !dropped.contains(id));
         book.unreadable_statements
-            .retain(|s| !dropped.contains(&s.account));
+            .retain(|s| !dropped.contains(&*s.account));
     }
 }

@@ -11,7 +11,7 @@ use std::borrow::Cow;
 
 use super::cell::shown;
 use super::csv_folder::CheckedCsv;
-use super::csv_records::CsvRows;
+use super::csv_records::{line_breaks, CsvRows};
 use super::row::Row;
 use crate::problem::{Position, Problem, Severity};
 use crate::schema::SheetKind;
@@ -62,6 +62,19 @@ impl Sheet {
             Rows::Csv(text) => SheetRows::Csv(CsvRows::new(text, true)),
             // Never typed before its text is read again.
             Rows::CsvFile(_) => SheetRows::Held([].iter()),
+        }
+    }
+
+    /// At least as many as the sheet's rows (a CSV sheet's lines), to make
+    /// room for its typed rows at once rather than by doubling: room never
+    /// written takes no memory.
+    pub(crate) fn rows_hint(&self) -> usize {
+        match &self.rows {
+            Rows::Held(rows) => rows.len(),
+            Rows::Csv(text) => usize::try_from(line_breaks(text.as_bytes()))
+                .unwrap_or(0)
+                .saturating_add(1),
+            Rows::CsvFile(_) => 0,
         }
     }
 

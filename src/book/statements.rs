@@ -39,6 +39,9 @@ pub(crate) struct Statements {
 }
 
 /// Reads the Statements sheet; `None` when it cannot be read as a table.
+/// A kept row's period and row: start, end, 0-based row.
+type Period = (NaiveDate, NaiveDate, u32);
+
 pub(crate) fn read(
     ctx: Ctx<'_>,
     sheet: &Sheet,
@@ -64,7 +67,10 @@ pub(crate) fn read(
         ));
         return None;
     }
-    let mut out = Statements::default();
+    let mut out = Statements {
+        rows: Vec::with_capacity(sheet.rows_hint()),
+        ..Statements::default()
+    };
     // A ragged row naming an account is not read: the error on it (which
     // names the account) stands for the row.
     out.unreadable.extend(
@@ -82,8 +88,11 @@ pub(crate) fn read(
                 })
             }),
     );
-    // Per account: (start, end, row) of rows kept so far.
-    let mut periods: HashMap<String, Vec<(NaiveDate, NaiveDate, u32)>> = HashMap::new();
+    // Per account, by its place among the sheet's ids: (start, end, row) of
+    // the rows kept so far, the first in `first` (most accounts have one
+    // row) and any later ones in `more`.
+    let mut first: Vec<Option<Period>> = Vec::new();
+    let mut more: HashMap<u32, Vec<Period>> = HashMap::new();
     for rec in table.records() {
         let before = problems.len();
         let mut f = Fields::new(ctx, &table, &rec, problems);
@@ -152,13 +161,22 @@ pub(crate) fn read(
             );
             continue;
         }
-        let kept = periods.entry(id.clone()).or_default();
-        if let Some((s, e, row)) = kept
-            .iter()
-            .find(|(s, e, _)| (*s, *e) != (start, period_end) && *s <= period_end && start <= *e)
-        {
-            let (s, e) = (*s, *e);
-            let cell = table.cell_ref(*row, PERIOD_START);
+        let place = accounts.place(&id).unwrap_or(u32::MAX);
+        let slot = usize::try_from(place).unwrap_or(usize::MAX);
+        if first.len() <= slot && slot < usize::MAX {
+            first.resize(slot + 1, None);
+        }
+        let kept = first
+            .get(slot)
+            .copied()
+            .flatten()
+            .into_iter()
+            .chain(more.get(&place).into_iter().flatten().copied());
+        let overlapped = kept
+            .into_iter()
+            .find(|(s, e, _)| (*s, *e) != (start, period_end) && *s <= period_end && start <= *e);
+        if let Some((s, e, row)) = overlapped {
+            let cell = table.cell_ref(row, PERIOD_START);
             f.report(
                 Severity::Error,
                 PERIOD_START,
@@ -172,14 +190,18 @@ pub(crate) fn read(
                 .push(unreadable(problems, before, id, period, at));
             continue;
         }
-        kept.push((start, period_end, rec.row));
+        let kept = (start, period_end, rec.row);
+        match first.get_mut(slot) {
+            Some(f @ None) => *f = Some(kept),
+            _ => more.entry(place).or_default().push(kept),
+        }
         let position = f.row_position(ACCOUNT, &row_at);
         out.rows.push(StatementRow {
-            account: id,
+            account: id.into_boxed_str(),
             period_start: start,
             period_end,
             posted,
-            reference,
+            reference: reference.map(String::into_boxed_str),
             posting_date,
             position,
             tax_withheld,

@@ -16,7 +16,7 @@ use super::settings::{Given, KnowledgeArgs, Settings, ToleranceArgs};
 use super::summary::print_summary;
 use super::{exit, progress, read_books_showing, refuse_unreadable, run_time, BookArgs};
 use crate::batch::totals::{largest_variances, LARGEST_PER_CURRENCY};
-use crate::batch::{line_shapes, run_books, run_books_in_parts, BatchResult};
+use crate::batch::{line_shapes, run_books, run_books_releasing, BatchResult};
 use crate::book::Book;
 use crate::problem::{Problem, Severity};
 use crate::report::journal_csv::{self, DetailOutput};
@@ -194,20 +194,26 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
     let cannot_write = || format!("cannot write the workbook {}", target.display());
     let writer =
         Writer::start(&target, &facts, plan, &styles, &limits).with_context(cannot_write)?;
-    let (batch, writer) = accrue_writing(&books, &settings, args.threads, writer)?;
+    // The batch takes the books' movements and statement rows, dropping each
+    // account's once it is accrued.
+    let (batch, writer) = accrue_writing(&mut books, &settings, args.threads, writer)?;
     let batch = batch.with_context(cannot_write)?;
     clock.lap("accrue and reconcile (Accruals written alongside)");
 
     let (mut report, mut csv_detail) =
         assemble(&books, batch, facts.clone(), detail_output, &files);
+    // The report holds all the rest of the workbook needs.
+    drop(books);
     let writing = progress::step(format!("writing the workbook {}", target.display()));
     let mut last_step = "write the rest of the workbook";
     let written = match writer.finish(&report) {
         Err(ReportError::PlanMissed(_)) => {
             // Some account's computation stopped and changed the Accruals'
-            // layout decided before the run: accrue again, keeping every
-            // line, and write the workbook from them all at once.
+            // layout decided before the run: read the books again, accrue
+            // again keeping every line, and write the workbook from them all
+            // at once.
             writing.finish_and_clear();
+            let books = read_again(&args.books, &settings, &facts.inputs)?;
             let batch = accrue(&books, &settings, args.threads)?;
             clock.lap("accrue again (layout changed)");
             (report, csv_detail) = assemble(&books, batch, facts, detail_output, &files);
@@ -381,7 +387,7 @@ fn accrue(books: &[Book], settings: &Settings, threads: Option<usize>) -> Result
 /// thread of its own as the batch adds them up (in book order); returns
 /// the batch (without its lines) and the writer, or the writer's error.
 fn accrue_writing<'s>(
-    books: &[Book],
+    books: &mut [Book],
     settings: &Settings,
     threads: Option<usize>,
     mut writer: Writer<'s>,
@@ -408,7 +414,7 @@ fn accrue_writing<'s>(
             let _ = send.send(lines);
         };
         let batch = in_pool(threads, || {
-            run_books_in_parts(books, &batch_settings, &tick, &mut hand_on)
+            run_books_releasing(books, &batch_settings, &tick, &mut hand_on)
         });
         drop(hand_on);
         let written = writing
@@ -420,6 +426,25 @@ fn accrue_writing<'s>(
     let batch = batch?;
     let (stopped, writer) = writer?;
     Ok((stopped.map_or(Ok(batch), Err), writer))
+}
+
+/// The books read again as the run first read them, for a second batch
+/// (the first took their movements and statement rows); an error when an
+/// input no longer has the fingerprint the workbook records.
+fn read_again(args: &BookArgs, settings: &Settings, inputs: &[InputFile]) -> Result<Vec<Book>> {
+    let reading = progress::step("reading the books again");
+    let mut books = read_books_showing(args, &reading)?;
+    reading.finish_and_clear();
+    for (path, first) in args.books.iter().zip(inputs) {
+        if fingerprint(path)? != *first {
+            return Err(anyhow!(
+                "the book {} changed during the run: run again once it is no longer being changed",
+                path.display()
+            ));
+        }
+    }
+    known_to_run(&mut books, settings);
+    Ok(books)
 }
 
 /// `work` on a pool of `threads` worker threads, else on the default pool.

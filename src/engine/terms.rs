@@ -349,7 +349,7 @@ pub struct Movement {
     /// When it was booked, if after the value date (back-valuation).
     pub booking_date: Option<NaiveDate>,
     /// The book's reference for it.
-    pub reference: Option<String>,
+    pub reference: Option<Box<str>>,
 }
 
 /// An amount actually posted for one posting period (from a statement).

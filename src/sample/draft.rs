@@ -642,7 +642,7 @@ fn movements(r: &mut Rng, flow: Flow, t: &AccountTerms, last: NaiveDate) -> Vec<
             value_date,
             amount,
             booking_date,
-            reference: Some(reference(kind, value_date, n + 1, &t.id)),
+            reference: Some(reference(kind, value_date, n + 1, &t.id).into()),
         });
     }
     out
@@ -694,7 +694,7 @@ fn booked_late(r: &mut Rng, flow: Flow, t: &AccountTerms) -> Option<Movement> {
         value_date,
         amount,
         booking_date: Some(booking_date),
-        reference: Some(reference(kind, value_date, 0, &t.id)),
+        reference: Some(reference(kind, value_date, 0, &t.id).into()),
     })
 }
 

@@ -714,7 +714,7 @@ impl Generator {
                 value_date: c.date,
                 amount: -c.payout,
                 booking_date: None,
-                reference: Some(draft::reference("PAYOUT", c.date, n, &d.entry.terms.id)),
+                reference: Some(draft::reference("PAYOUT", c.date, n, &d.entry.terms.id).into()),
             });
         }
         Ok(SampleAccount {

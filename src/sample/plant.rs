@@ -401,7 +401,7 @@ fn movement_moved(job: &Job, r: &mut Rng) -> Option<(Mistake, Decimal)> {
     rerun(job, None, job.rates, &changed).map(|x| {
         (
             Mistake::MovementMoved {
-                reference: m.reference.clone().unwrap_or_default(),
+                reference: m.reference.as_deref().unwrap_or_default().to_string(),
                 value_date: m.value_date,
                 taken,
             },
@@ -418,7 +418,7 @@ fn movement_left_out(job: &Job, r: &mut Rng) -> Option<(Mistake, Decimal)> {
     rerun(job, None, job.rates, &left).map(|x| {
         (
             Mistake::MovementLeftOut {
-                reference: m.reference.unwrap_or_default(),
+                reference: m.reference.as_deref().unwrap_or_default().to_string(),
             },
             x,
         )

@@ -329,7 +329,7 @@ fn statement_ends_written_exclusive_are_read_as_the_last_day_and_repeated_period
         .iter()
         .map(|s| {
             (
-                s.account.as_str(),
+                &*s.account,
                 s.period_start,
                 s.period_end,
                 s.posted,
@@ -1124,7 +1124,7 @@ fn a_broken_book_reports_each_planted_fault_where_it_is() {
     let kept: Vec<(&str, Decimal)> = book
         .statements
         .iter()
-        .map(|s| (s.account.as_str(), s.posted))
+        .map(|s| (&*s.account, s.posted))
         .collect();
     // HM-SAV-132's first row stands; its overlapping second row is unreadable.
     assert_eq!(
@@ -1281,7 +1281,7 @@ fn movements_keep_their_order_within_an_account_when_rows_interleave() {
     let refs = |id: &str| -> Vec<String> {
         book.movements[id]
             .iter()
-            .map(|m| m.reference.clone().unwrap())
+            .map(|m| m.reference.as_deref().unwrap().to_string())
             .collect()
     };
     assert_eq!(refs("IL-A"), ["A-1", "A-2", "A-3", "A-4"]);

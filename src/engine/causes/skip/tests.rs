@@ -459,7 +459,7 @@ fn any_book() -> impl Strategy<Value = (Book, (NaiveDate, NaiveDate))> {
                                     v - Days::new(k.unsigned_abs())
                                 }
                             }),
-                            reference: Some(format!("M-{i}")),
+                            reference: Some(format!("M-{i}").into()),
                         }
                     })
                     .collect();
