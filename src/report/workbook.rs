@@ -1100,14 +1100,15 @@ fn list_parts<'r, T: Sync>(
     styles: &'r Styles,
     per: usize,
 ) -> usize {
-    let shape = Shape {
-        name: list.name,
-        header: list.header,
-        caps: list.caps,
-        notes: list.notes,
-        footer: list.footer,
-    };
-    add_parts(parts, shape, rows, list.columns, list.row, styles, per)
+    add_parts(
+        parts,
+        list.shape(),
+        rows,
+        list.columns,
+        list.row,
+        styles,
+        per,
+    )
 }
 
 /// Adds to `parts` the sheets of `shape` that `rows` need (at least one),
@@ -1313,6 +1314,19 @@ fn problems_sheet<'p>() -> ListSheet<&'p Problem> {
     }
 }
 
+impl<T> ListSheet<T> {
+    /// What the list is besides its rows.
+    fn shape(&self) -> Shape<'static> {
+        Shape {
+            name: self.name,
+            header: self.header,
+            caps: self.caps,
+            notes: self.notes,
+            footer: self.footer,
+        }
+    }
+}
+
 /// The height of one line of text in points (the default row's).
 const LINE_HEIGHT: u32 = 15;
 
@@ -1323,14 +1337,7 @@ fn write_list<T>(
     rows: &[T],
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    let shape = Shape {
-        name: list.name,
-        header: list.header,
-        caps: list.caps,
-        notes: list.notes,
-        footer: list.footer,
-    };
-    write_rows(wb, &shape, rows, list.columns, list.row, ctx)
+    write_rows(wb, &list.shape(), rows, list.columns, list.row, ctx)
 }
 
 /// Writes rows over as many sheets of `list`'s shape as they need, each
