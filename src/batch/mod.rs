@@ -280,6 +280,27 @@ impl Released {
             statements: rows,
         }
     }
+
+    /// Account `id`'s rows, which the book no longer holds; accounts are
+    /// taken in book order.
+    fn take(&mut self, id: &str) -> Taken {
+        let mut statements = Vec::new();
+        while self.statements.last().is_some_and(|s| &*s.account == id) {
+            statements.extend(self.statements.pop());
+        }
+        Taken {
+            movements: self.movements.remove(id).unwrap_or_default(),
+            statements,
+        }
+    }
+
+    /// Gives back the room of the rows taken so far, once they are most of it.
+    fn shrink(&mut self) {
+        let rows = &mut self.statements;
+        if rows.capacity() > 4096 && rows.len() < rows.capacity() / 2 {
+            rows.shrink_to_fit();
+        }
+    }
 }
 
 /// Whether statement `rows` come account by account in the order of
@@ -312,29 +333,6 @@ fn by_book_order(accounts: &[AccountEntry], rows: &mut [StatementRow]) {
     };
     // Stable: each account's rows stay in sheet order.
     rows.sort_by_cached_key(|s| place(&s.account));
-}
-
-impl Released {
-    /// Account `id`'s rows, which the book no longer holds; accounts are
-    /// taken in book order.
-    fn take(&mut self, id: &str) -> Taken {
-        let mut statements = Vec::new();
-        while self.statements.last().is_some_and(|s| &*s.account == id) {
-            statements.extend(self.statements.pop());
-        }
-        Taken {
-            movements: self.movements.remove(id).unwrap_or_default(),
-            statements,
-        }
-    }
-
-    /// Gives back the room of the rows taken so far, once they are most of it.
-    fn shrink(&mut self) {
-        let rows = &mut self.statements;
-        if rows.capacity() > 4096 && rows.len() < rows.capacity() / 2 {
-            rows.shrink_to_fit();
-        }
-    }
 }
 
 /// One account's movements and statement rows, taken out of its book.

@@ -33,9 +33,9 @@ use super::model::{
 };
 use super::output;
 use crate::engine::reconcile::Status;
+use crate::problem::{Position, Problem, Severity};
 
 mod side_by_side;
-use crate::problem::{Position, Problem, Severity};
 
 /// Header labels of the Accruals sheet: the account and its interest, then
 /// what the ledger holds for it (behaviour.md, Books that tie) and the GL
@@ -1135,7 +1135,7 @@ where
     let count = chunks.len();
     for (index, chunk) in chunks.into_iter().enumerate() {
         parts.push(side_by_side::Part {
-            shape: Shape { ..shape },
+            shape,
             index,
             formats: columns(styles, chunk),
             rows: Box::new(side_by_side::RowsBy { rows: chunk, row }),
@@ -1160,6 +1160,7 @@ struct Ctx<'s> {
 
 /// What a list sheet is besides its rows: its name, its columns (label and
 /// widest width), the notes on its header and its footer.
+#[derive(Clone, Copy)]
 struct Shape<'a> {
     name: &'a str,
     header: &'a [&'a str],
@@ -1331,42 +1332,17 @@ impl<T> ListSheet<T> {
 const LINE_HEIGHT: u32 = 15;
 
 /// Writes a list over as many sheets as it needs; returns how many.
-fn write_list<T>(
+fn write_list<T: Sync>(
     wb: &mut Workbook,
     list: &ListSheet<T>,
     rows: &[T],
     ctx: &mut Ctx<'_>,
 ) -> Result<usize, ReportError> {
-    write_rows(wb, &list.shape(), rows, list.columns, list.row, ctx)
-}
-
-/// Writes rows over as many sheets of `list`'s shape as they need, each
-/// part's column formats from `columns` and each row by `row`; returns how
-/// many sheets.
-fn write_rows<T, C, R>(
-    wb: &mut Workbook,
-    list: &Shape,
-    rows: &[T],
-    columns: C,
-    row: R,
-    ctx: &mut Ctx<'_>,
-) -> Result<usize, ReportError>
-where
-    C: for<'s> Fn(&'s Styles, &[T]) -> Vec<Option<&'s Format>>,
-    R: Fn(&mut Cells<'_>, &T) -> Result<(), ReportError>,
-{
+    let mut parts = Vec::new();
     let per = ctx.limits.data_rows_per_sheet();
-    let mut parts: Vec<&[T]> = rows.chunks(per).collect();
-    if parts.is_empty() {
-        parts.push(&[]); // an empty list still gets its sheet and header
-    }
-    for (index, part) in parts.iter().enumerate() {
-        let formats = columns(ctx.styles, part);
-        let mut open = open_part(wb, list, index, &formats, ctx)?;
-        write_part_rows(wb, list, &mut open, &formats, part, &row, ctx)?;
-        close_part(wb, list, open, ctx)?;
-    }
-    Ok(parts.len())
+    let count = list_parts(&mut parts, list, rows, ctx.styles, per);
+    side_by_side::write_parts(wb, &parts, ctx)?;
+    Ok(count)
 }
 
 /// A sheet of a list open for rows: its name, the rows written so far and
@@ -1512,11 +1488,11 @@ where
         // A row with a wrapped text is as tall as its lines.
         let lines = cells.lines();
         if lines > 1 && !cells.is_recording() {
-            let name = cells.sheet_name().to_string();
+            let name = cells.sheet_name();
             cells
                 .sheet()
                 .set_row_height(row_number, lines.saturating_mul(LINE_HEIGHT))
-                .map_err(|e| ReportError::sheet(&name, e))?;
+                .map_err(|e| ReportError::sheet(name, e))?;
         }
         *written += 1;
     }

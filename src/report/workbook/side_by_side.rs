@@ -75,16 +75,30 @@ struct Filled {
     texts: TextFigures,
 }
 
-/// Writes `parts` (in sheet order) into `wb`, as [`super::write_rows`]
-/// would one after another, filling their rows side by side.
-pub(super) fn write_parts<'r>(
+/// Writes `parts` (in sheet order) into `wb`, filling their rows side by
+/// side; with [`Limits::fill_in_turn`](crate::report::layout::Limits) one
+/// part after another (each then the last of its own batch), which must
+/// give the same file byte for byte.
+pub(super) fn write_parts(
+    wb: &mut rust_xlsxwriter::Workbook,
+    parts: &[Part<'_>],
+    ctx: &mut Ctx<'_>,
+) -> Result<(), ReportError> {
+    if ctx.limits.fill_in_turn {
+        for part in parts {
+            fill_side_by_side(wb, std::slice::from_ref(part), ctx)?;
+        }
+        return Ok(());
+    }
+    fill_side_by_side(wb, parts, ctx)
+}
+
+/// Writes `parts`, every one but the last numbering its styles first.
+fn fill_side_by_side<'r>(
     wb: &mut rust_xlsxwriter::Workbook,
     parts: &[Part<'r>],
     ctx: &mut Ctx<'_>,
 ) -> Result<(), ReportError> {
-    if ctx.limits.fill_in_turn {
-        return write_in_turn(wb, parts, ctx);
-    }
     let styles = ctx.styles;
     let last = parts.len().saturating_sub(1);
     // Measured side by side too: only the numbering must go in sheet order.
@@ -152,34 +166,6 @@ pub(super) fn write_parts<'r>(
             name: o.name,
             rows: filled.rows,
             widths: filled.widths,
-        };
-        close_part(wb, &part.shape, done, ctx)?;
-    }
-    Ok(())
-}
-
-/// Writes `parts` one after another, each opened, filled and closed in
-/// turn: what filling them side by side must give byte for byte.
-fn write_in_turn(
-    wb: &mut rust_xlsxwriter::Workbook,
-    parts: &[Part<'_>],
-    ctx: &mut Ctx<'_>,
-) -> Result<(), ReportError> {
-    for part in parts {
-        let open = open_part_first(wb, &part.shape, part.index, &part.formats, None, ctx)?;
-        let ws = wb
-            .worksheet_from_name(&open.name)
-            .map_err(|e| ReportError::sheet(&open.name, e))?;
-        let mut cells =
-            Cells::new(ws, &open.name, ctx.styles, &mut ctx.texts).with_widths(open.widths.clone());
-        let mut rows = 0;
-        part.rows
-            .fill(&mut cells, &part.shape, &part.formats, &mut rows)?;
-        let widths = cells.into_widths();
-        let done = OpenPart {
-            name: open.name,
-            rows,
-            widths,
         };
         close_part(wb, &part.shape, done, ctx)?;
     }
