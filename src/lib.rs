@@ -70,6 +70,7 @@ pub mod conventions;
 pub mod engine;
 pub mod explain;
 pub mod files;
+pub mod ids;
 pub mod panics;
 pub mod pipeline;
 pub mod problem;

@@ -26,6 +26,14 @@ pub(crate) struct Shares {
 }
 
 impl Shares {
+    /// No shares yet, with room for `rows`.
+    pub(crate) fn with_room(rows: usize) -> Shares {
+        Shares {
+            rows: Vec::with_capacity(rows),
+            ..Shares::default()
+        }
+    }
+
     /// Adds `amount` (debit positive) of `account` to line `line`, netted
     /// with the account's share of that line so far. Accounts come one after
     /// another: an id that is not the last one added starts a new account.

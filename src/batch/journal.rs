@@ -245,6 +245,11 @@ struct LineKey {
     memo: String,
 }
 
+/// Shares of the Journal detail an account gives, room is made for at once:
+/// an accrual journal gives two to five (the sample books four on
+/// average), and room beyond what is written costs nothing.
+const SHARES_AN_ACCOUNT: usize = 6;
+
 /// Sums entries into journal lines: one per date, entity, currency, GL account
 /// and purpose, debits and credits netted to one side.
 #[derive(Debug, Default)]
@@ -265,8 +270,19 @@ impl Journal {
     /// An empty journal that keeps each account's share of each line for
     /// the Journal detail ([`Journal::finish`]).
     pub fn keeping_detail() -> Journal {
+        Journal::keeping_detail_of(0)
+    }
+
+    /// As [`Journal::keeping_detail`], with room at once for the shares of
+    /// about `accounts` accounts (a few each), so that the list of shares is
+    /// not grown by doubling: at a million accounts a doubling would hold
+    /// the old room and the new together for a moment, about a hundred
+    /// megabytes. Room never written takes no memory.
+    pub fn keeping_detail_of(accounts: usize) -> Journal {
         Journal {
-            shares: Some(Shares::default()),
+            shares: Some(Shares::with_room(
+                accounts.saturating_mul(SHARES_AN_ACCOUNT),
+            )),
             ..Journal::default()
         }
     }

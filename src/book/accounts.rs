@@ -32,6 +32,7 @@ use crate::engine::events::LifeEvents;
 use crate::engine::shared::Shared;
 use crate::engine::tax::TaxTerms;
 use crate::engine::{AccountTerms, FloatingTerms, FloorOn, RateMethod, RoundAt, Side, TierMethod};
+use crate::ids::IdIndex;
 use crate::problem::{FollowOn, Position, Problem, Severity};
 use crate::schema::{column, SheetKind, ACCOUNTS};
 
@@ -99,8 +100,6 @@ pub(crate) struct Life {
     pub penalised: bool,
     /// The account's first row in the Accounts sheet.
     row: u32,
-    /// Its place among the sheet's ids.
-    seq: u32,
     /// Its side, when its row could be read.
     pub side: Option<Side>,
 }
@@ -109,7 +108,10 @@ pub(crate) struct Life {
 /// dates, for the rows of other sheets.
 #[derive(Debug, Default)]
 pub(crate) struct Known {
-    by_id: HashMap<Box<str>, Life>,
+    /// The ids, by their place among the sheet's ids.
+    ids: IdIndex,
+    /// Each id's dates, by the same place.
+    lives: Vec<Life>,
     /// Ids by folded id, to suggest the id a row probably meant: made the
     /// first time a row names an unknown id (a good book never needs it).
     folded: OnceLock<HashMap<String, String>>,
@@ -119,58 +121,48 @@ impl Known {
     /// Room for `ids` ids.
     fn with_capacity(ids: usize) -> Known {
         Known {
-            by_id: HashMap::with_capacity(ids),
+            ids: IdIndex::with_capacity(ids),
+            lives: Vec::with_capacity(ids),
             ..Known::default()
         }
     }
 
-    fn insert(
-        &mut self,
-        id: String,
-        open: Option<NaiveDate>,
-        maturity: Option<NaiveDate>,
-        row: u32,
-        side: Option<Side>,
-    ) {
-        let seq = u32::try_from(self.by_id.len()).unwrap_or(u32::MAX);
-        self.by_id.insert(
-            id.into_boxed_str(),
-            Life {
-                open,
-                maturity,
-                close: None,
-                penalised: false,
-                row,
-                seq,
-                side,
-            },
-        );
+    /// Holds account `id` with its dates (an id is held once: a second row
+    /// of it is an error before it comes here); `false` when the sheet
+    /// holds more ids than a book can ([`IdIndex::insert`]).
+    fn insert(&mut self, id: &str, life: Life) -> bool {
+        let Some(place) = self.ids.insert(id) else {
+            return false;
+        };
+        match usize::try_from(place)
+            .ok()
+            .and_then(|p| self.lives.get_mut(p))
+        {
+            Some(held) => *held = life,
+            None => self.lives.push(life),
+        }
+        true
     }
 
     /// The dates of account `id` (ids match exactly).
     pub(crate) fn get(&self, id: &str) -> Option<&Life> {
-        self.by_id.get(id)
+        let place = usize::try_from(self.ids.place(id)?).ok()?;
+        self.lives.get(place)
     }
 
     /// The place of account `id` among the sheet's ids (its first row).
     pub(crate) fn place(&self, id: &str) -> Option<u32> {
-        self.by_id.get(id).map(|l| l.seq)
+        self.ids.place(id)
     }
 
     /// Ids by folded id; of ids that fold alike, the first in the sheet.
     fn folded(&self) -> &HashMap<String, String> {
         self.folded.get_or_init(|| {
-            let mut first: HashMap<String, (u32, &str)> = HashMap::new();
-            for (id, life) in &self.by_id {
-                let slot = first.entry(fold(id)).or_insert((life.seq, id));
-                if life.seq < slot.0 {
-                    *slot = (life.seq, &**id);
-                }
+            let mut first: HashMap<String, String> = HashMap::new();
+            for id in self.ids.ids().iter() {
+                first.entry(fold(id)).or_insert_with(|| id.to_string());
             }
             first
-                .into_iter()
-                .map(|(key, (_, id))| (key, id.to_string()))
-                .collect()
         })
     }
 
@@ -368,16 +360,30 @@ fn take_row(
     }
     problems.extend(typed.problems);
     let entry = typed.entry;
-    out.known.insert(
-        id.clone(),
-        typed.open_date,
-        entry.as_ref().and_then(|e| e.terms.maturity),
-        rec.row,
-        entry.as_ref().map(|e| e.terms.side),
+    let held = out.known.insert(
+        &id,
+        Life {
+            open: typed.open_date,
+            maturity: entry.as_ref().and_then(|e| e.terms.maturity),
+            close: entry.as_ref().and_then(|e| e.terms.events.close_date),
+            penalised: entry.as_ref().is_some_and(|e| {
+                e.terms.events.break_penalty != crate::engine::events::BreakPenalty::None
+            }),
+            row: rec.row,
+            side: entry.as_ref().map(|e| e.terms.side),
+        },
     );
-    if let (Some(e), Some(life)) = (&entry, out.known.by_id.get_mut(id.as_str())) {
-        life.close = e.terms.events.close_date;
-        life.penalised = e.terms.events.break_penalty != crate::engine::events::BreakPenalty::None;
+    if !held {
+        let mut f = Fields::new(ctx, table, rec, problems);
+        f.account = Some(id.clone());
+        f.report(
+            Severity::Error,
+            ACCOUNT,
+            &id,
+            "at most 4,294,967,294 account ids, with at most 4 GiB of id text, in one book",
+            "split the accounts over several books (a run reads several at once); this row is not used",
+        );
+        return;
     }
     match entry {
         Some(e) if !typed.failed => out.entries.push(e),

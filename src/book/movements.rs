@@ -66,10 +66,11 @@ pub(crate) fn read(
     // A ragged row of an account is missing from its figures.
     out.spoiled.extend(table.skipped_accounts().iter().cloned());
     // Rows usually come grouped by account: a run of rows of one account is
-    // gathered here and joins the map once, in the rows' order.
+    // gathered here and kept as one list, in the rows' order.
     // The account of the current run of rows, and its movements so far.
     let mut current: Option<String> = None;
     let mut run: Vec<Movement> = Vec::new();
+    let mut runs: Vec<(String, Vec<Movement>)> = Vec::new();
     for rec in table.records() {
         let mut f = Fields::new(ctx, &table, &rec, problems);
         let Some((id, life)) = accounts.of_row(&mut f, ACCOUNT) else {
@@ -165,31 +166,44 @@ pub(crate) fn read(
         };
         if current.as_deref() != Some(id.as_str()) {
             if let Some(done) = current.replace(id) {
-                join(&mut out.by_account, done, &mut run);
+                runs.push((done, exact(&mut run)));
             }
         }
         run.push(movement);
     }
     if let Some(done) = current {
-        join(&mut out.by_account, done, &mut run);
+        runs.push((done, exact(&mut run)));
     }
-    // Most accounts have a few movements: no room is kept for more.
-    for list in out.by_account.values_mut() {
-        list.shrink_to_fit();
-    }
+    out.by_account = by_account(runs);
     Some(out)
 }
 
-/// Adds a run of account `id`'s movements, emptying `run`. An account's first
-/// run takes room for exactly its movements (most accounts' rows come in one
-/// run), rather than what a growing list happened to reach.
-fn join(by_account: &mut BTreeMap<String, Vec<Movement>>, id: String, run: &mut Vec<Movement>) {
-    match by_account.get_mut(&id) {
-        Some(list) => list.append(run),
-        None => {
-            let mut list = Vec::with_capacity(run.len());
-            list.append(run);
-            by_account.insert(id, list);
+/// The movements of `run` in a list of exactly their length (most accounts
+/// have a few: no room is kept for more), emptying `run` for the next.
+fn exact(run: &mut Vec<Movement>) -> Vec<Movement> {
+    let mut list = Vec::with_capacity(run.len());
+    list.append(run);
+    list
+}
+
+/// Runs of rows, each of one account in sheet order, as the map by account:
+/// an account's runs joined in sheet order.
+///
+/// The map is built at once from the runs in id order (already so when the
+/// sheet is sorted by account), which fills its nodes; a map grown one id at
+/// a time in that order leaves them about half empty, some fifty megabytes
+/// at a million accounts.
+fn by_account(mut runs: Vec<(String, Vec<Movement>)>) -> BTreeMap<String, Vec<Movement>> {
+    // Stable: an account's runs stay in sheet order.
+    runs.sort_by(|a, b| a.0.cmp(&b.0));
+    // A later run of an account joins the end of its first.
+    runs.dedup_by(|later, first| {
+        if later.0 != first.0 {
+            return false;
         }
-    }
+        first.1.reserve_exact(later.1.len());
+        first.1.append(&mut later.1);
+        true
+    });
+    runs.into_iter().collect()
 }

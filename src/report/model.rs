@@ -7,6 +7,7 @@ use chrono::{NaiveDate, NaiveDateTime};
 use rust_decimal::Decimal;
 
 use crate::engine::reconcile::Status;
+pub use crate::ids::AccountIds;
 use crate::problem::{Position, Problem};
 
 /// A word of a row that is nearly always one of a few fixed names (a side, a
@@ -419,66 +420,6 @@ pub fn split_sides(amount: Decimal, minor_units: u32) -> (Decimal, Decimal) {
     }
 }
 
-/// Account ids held once, one after another in one text, each found by its
-/// index: a million ids cost their characters and one offset each.
-///
-/// ```
-/// use ledgerate::report::model::AccountIds;
-/// let mut ids = AccountIds::default();
-/// let a = ids.push("HM-SAV-001").unwrap();
-/// let b = ids.push("HM-LN-002").unwrap();
-/// assert_eq!((ids.get(a), ids.get(b), ids.len()), ("HM-SAV-001", "HM-LN-002", 2));
-/// assert_eq!(ids.last(), Some("HM-LN-002"));
-/// assert_eq!(ids.get(7), "");
-/// ```
-#[derive(Debug, Clone, Default, PartialEq, Eq)]
-pub struct AccountIds {
-    text: String,
-    /// Where each id ends in `text`.
-    ends: Vec<u32>,
-}
-
-impl AccountIds {
-    /// Adds an id and returns its index; `None` once [`u32::MAX`] ids, or
-    /// 4 GiB of their text, are held.
-    pub fn push(&mut self, id: &str) -> Option<u32> {
-        let index = u32::try_from(self.ends.len())
-            .ok()
-            .filter(|i| *i < u32::MAX)?;
-        let end = u32::try_from(self.text.len().checked_add(id.len())?).ok()?;
-        self.text.push_str(id);
-        self.ends.push(end);
-        Some(index)
-    }
-
-    /// The id at `index` (empty for an index out of range).
-    pub fn get(&self, index: u32) -> &str {
-        let Ok(i) = usize::try_from(index) else {
-            return "";
-        };
-        let at = |j: usize| self.ends.get(j).and_then(|e| usize::try_from(*e).ok());
-        let start = i.checked_sub(1).and_then(at).unwrap_or(0);
-        let end = at(i).unwrap_or(start);
-        self.text.get(start..end).unwrap_or_default()
-    }
-
-    /// The id added last.
-    pub fn last(&self) -> Option<&str> {
-        let n = u32::try_from(self.ends.len().checked_sub(1)?).ok()?;
-        Some(self.get(n))
-    }
-
-    /// How many ids there are.
-    pub fn len(&self) -> usize {
-        self.ends.len()
-    }
-
-    /// Whether there are none.
-    pub fn is_empty(&self) -> bool {
-        self.ends.is_empty()
-    }
-}
-
 /// One account-day (Daily sheet).
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct DailyLine {
@@ -534,8 +475,9 @@ pub struct ReconciliationLine {
     pub status: Status,
     /// The likely cause, in plain words (empty when agreed or within tolerance).
     pub likely_cause: String,
-    /// The period's withholding tax, for a taxed account's statement period.
-    pub tax: Option<TaxCheck>,
+    /// The period's withholding tax, for a taxed account's statement period
+    /// (boxed: most rows have none, and a row is held for every period).
+    pub tax: Option<Box<TaxCheck>>,
 }
 
 /// How a Tie-out row's closing difference stands.

@@ -594,11 +594,11 @@ impl Written {
                     tax: match (is_taxed, r.decimal(12)?) {
                         (true, Some(expected)) => {
                             let posted = r.decimal(13)?;
-                            Some(TaxCheck {
+                            Some(Box::new(TaxCheck {
                                 expected,
                                 posted,
                                 variance: posted.and(r.decimal(14)?),
-                            })
+                            }))
                         }
                         _ => None,
                     },
