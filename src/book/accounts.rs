@@ -345,14 +345,16 @@ fn take_row(
     let Some((id, typed)) = row.typed else {
         return;
     };
-    if let Some(life) = out.known.get(&id) {
-        let first = table.cell_ref(life.row, ACCOUNT);
+    // An error on the row's id: the row is not used.
+    let id_error = |problems: &mut Vec<Problem>, expected: &str, fix: &str| {
         let mut f = Fields::new(ctx, table, rec, problems);
         f.account = Some(id.clone());
-        f.report(
-            Severity::Error,
-            ACCOUNT,
-            &id,
+        f.report(Severity::Error, ACCOUNT, &id, expected, fix);
+    };
+    if let Some(life) = out.known.get(&id) {
+        let first = table.cell_ref(life.row, ACCOUNT);
+        id_error(
+            problems,
             &format!("each account once (it is already in {first})"),
             "remove the second row or give it its own account id; this row is not used",
         );
@@ -374,12 +376,8 @@ fn take_row(
         },
     );
     if !held {
-        let mut f = Fields::new(ctx, table, rec, problems);
-        f.account = Some(id.clone());
-        f.report(
-            Severity::Error,
-            ACCOUNT,
-            &id,
+        id_error(
+            problems,
             "at most 4,294,967,294 account ids, with at most 4 GiB of id text, in one book",
             "split the accounts over several books (a run reads several at once); this row is not used",
         );
