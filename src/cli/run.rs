@@ -144,8 +144,18 @@ fn audited_command_line() -> String {
     format!("ledgerate {}", out.join(" "))
 }
 
-/// Runs the command.
+/// Runs the command: every step (reading, accruing, writing) on the run's
+/// worker threads, `--threads` of them when given.
 pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
+    let mut summary = Vec::new();
+    let status = in_pool(args.threads, || run_steps(args, &mut summary))??;
+    out.write_all(&summary)?;
+    Ok(status)
+}
+
+/// The run's steps, on the current pool of worker threads; the printed
+/// summary goes to `out`.
+fn run_steps(args: &Args, out: &mut (dyn Write + Send)) -> Result<u8> {
     check_books_exist(&args.books.books)?;
     let mut clock = Timings::start(args.timings);
     let reading = progress::step("reading the books");
@@ -196,7 +206,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
         Writer::start(&target, &facts, plan, &styles, &limits).with_context(cannot_write)?;
     // The batch takes the books' movements and statement rows, dropping each
     // account's once it is accrued.
-    let (batch, writer) = accrue_writing(&mut books, &settings, args.threads, writer)?;
+    let (batch, writer) = accrue_writing(&mut books, &settings, writer)?;
     let batch = batch.with_context(cannot_write)?;
     clock.lap("accrue and reconcile (Accruals written alongside)");
 
@@ -214,7 +224,7 @@ pub fn run(args: &Args, out: &mut dyn Write) -> Result<u8> {
             // at once.
             writing.finish_and_clear();
             let books = read_again(&args.books, &settings, &facts.inputs)?;
-            let batch = accrue(&books, &settings, args.threads)?;
+            let batch = accrue(&books, &settings);
             clock.lap("accrue again (layout changed)");
             (report, csv_detail) = assemble(&books, batch, facts, detail_output, &files);
             last_step = "write the workbook";
@@ -371,16 +381,16 @@ impl Files {
 /// goes on accruing while the writer catches up, and memory stays bounded.
 const PARTS_IN_FLIGHT: usize = 2;
 
-/// Every account accrued on `threads` worker threads (default: one per
-/// core), with a progress bar on a terminal for a long run.
-fn accrue(books: &[Book], settings: &Settings, threads: Option<usize>) -> Result<BatchResult> {
+/// Every account accrued on the current pool's worker threads, with a
+/// progress bar on a terminal for a long run.
+fn accrue(books: &[Book], settings: &Settings) -> BatchResult {
     let batch_settings = settings.batch();
     let total: usize = books.iter().map(|b| b.accounts.len()).sum();
     let bar = progress::accruing(total);
     let tick = || bar.inc(1);
-    let batch = in_pool(threads, || run_books(books, &batch_settings, &tick))?;
+    let batch = run_books(books, &batch_settings, &tick);
     bar.finish_and_clear();
-    Ok(batch)
+    batch
 }
 
 /// As [`accrue`], handing each part's Accruals lines to `writer` on a
@@ -389,7 +399,6 @@ fn accrue(books: &[Book], settings: &Settings, threads: Option<usize>) -> Result
 fn accrue_writing<'s>(
     books: &mut [Book],
     settings: &Settings,
-    threads: Option<usize>,
     mut writer: Writer<'s>,
 ) -> Result<(Result<BatchResult, ReportError>, Writer<'s>)> {
     let batch_settings = settings.batch();
@@ -413,9 +422,7 @@ fn accrue_writing<'s>(
             // Only fails once the writer's thread is gone, which the join reports.
             let _ = send.send(lines);
         };
-        let batch = in_pool(threads, || {
-            run_books_releasing(books, &batch_settings, &tick, &mut hand_on)
-        });
+        let batch = run_books_releasing(books, &batch_settings, &tick, &mut hand_on);
         drop(hand_on);
         let written = writing
             .join()
@@ -423,7 +430,6 @@ fn accrue_writing<'s>(
         (batch, written)
     });
     bar.finish_and_clear();
-    let batch = batch?;
     let (stopped, writer) = writer?;
     Ok((stopped.map_or(Ok(batch), Err), writer))
 }
