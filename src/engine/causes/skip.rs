@@ -111,9 +111,17 @@ pub(super) fn cannot_move(
             // and only taken movements can be unbooked). Moved, it keeps its
             // index; left out, the later movements' indices shift down one,
             // which changes nothing only when the start state owes no
-            // back-value to any of them.
+            // back-value to any of them. Moved within the days before the
+            // period, it leaves the balance on the period's first day as it
+            // was, but only when both its dates are on or after the open
+            // date: a movement valued before it is not applied (the opening
+            // balance is taken to hold it), so a move across the open date
+            // changes that balance.
             None => proved(lo > row.end && start.back_value_owed.iter().all(|(i, _)| *i < index)),
-            Some(hi) => proved(lo > row.end || (hi <= row.start && nothing_carries(terms, inputs))),
+            Some(hi) => proved(
+                lo > row.end
+                    || (hi <= row.start && lo >= terms.open_date && nothing_carries(terms, inputs)),
+            ),
         },
     }
 }
