@@ -713,8 +713,11 @@ impl<'a> Loop<'a> {
             calendar: &terms.calendar,
         };
         // Compounded interest makes the base a 28-digit quotient whose
-        // running sums round; such days stay single.
-        let last = if self.fast && self.state.compounded.is_zero() {
+        // running sums round; such days stay single. So do the days of a
+        // movement valued but not yet booked: its back-value is worked out
+        // on the base with it, whose rate source (credit or debit) and
+        // changes the run's end does not follow.
+        let last = if self.fast && self.state.compounded.is_zero() && at.unbooked.is_empty() {
             self.run_end(d, period, at.ci, at.mi, base, &pb)
         } else {
             d
