@@ -12,6 +12,7 @@
 use std::fmt;
 use std::hash::BuildHasher;
 
+use hashbrown::hash_table::Entry;
 use hashbrown::{DefaultHashBuilder, HashTable};
 
 /// Account ids held once, one after another in one text, each found by its
@@ -129,18 +130,26 @@ impl IdIndex {
     /// The place of `id`: its own when it is held already, else the next;
     /// `None` when the list is full ([`AccountIds::push`]).
     pub fn insert(&mut self, id: &str) -> Option<u32> {
-        if let Some(p) = self.place(id) {
-            return Some(p);
-        }
-        let place = self.ids.push(id)?;
         let IdIndex {
             ids,
             places,
             hasher,
         } = self;
-        // Growing the table hashes each place's id again.
-        places.insert_unique(hasher.hash_one(id), place, |&p| hasher.hash_one(ids.get(p)));
-        Some(place)
+        // One hash finds the id or its room; growing the table hashes each
+        // place's id again.
+        let found = places.entry(
+            hasher.hash_one(id),
+            |&p| ids.get(p) == id,
+            |&p| hasher.hash_one(ids.get(p)),
+        );
+        match found {
+            Entry::Occupied(held) => Some(*held.get()),
+            Entry::Vacant(room) => {
+                let place = ids.push(id)?;
+                room.insert(place);
+                Some(place)
+            }
+        }
     }
 }
 

@@ -419,16 +419,15 @@ impl<'a> Cells<'a> {
     /// In a recording, notes `format` when the cell is written in it (not
     /// through column `col`'s format) and says so: the caller writes nothing.
     fn recorded(&mut self, col: Option<ColNum>, format: &Format) -> bool {
-        let carried = col.is_some_and(|c| self.carried(c, format));
-        match self.recording.as_deref_mut() {
-            Some(order) => {
-                if !carried {
-                    order.note(format);
-                }
-                true
-            }
-            None => false,
+        // Writing (the usual case) decides nothing here.
+        if self.recording.is_none() {
+            return false;
         }
+        let carried = col.is_some_and(|c| self.carried(c, format));
+        if let Some(order) = self.recording.as_deref_mut().filter(|_| !carried) {
+            order.note(format);
+        }
+        true
     }
 
     /// Text written to column `col` in the wrapping format wraps at `width`
